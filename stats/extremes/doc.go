@@ -1,0 +1,28 @@
+// Package extremes estimates extreme sea states for one grid cell: it collects,
+// while the hindcast is streamed one time step at a time, the annual (block)
+// maxima of Hm0 and the declustered storm peaks, each with the Te and Tp of its
+// time step; it fits a generalised extreme value (GEV) distribution to the annual
+// maxima and a generalised Pareto distribution (GPD) to the storm peaks above a
+// threshold, both by maximum likelihood with gonum's optimiser; and it reports
+// return levels with 95% confidence intervals (delta method, optionally a seeded
+// parametric bootstrap), the associated Te/Tp, and quality flags.
+//
+// The package works on plain numbers. It must not know about NetCDF, files,
+// grids, tables or the pipeline: the caller feeds values (Collector.Add), merges
+// partial states (Collector.Merge), stores them (MarshalBinary) and asks for a
+// Result (Analyse). It never writes output itself.
+//
+// The shape parameter follows Coles (2001), An Introduction to Statistical
+// Modeling of Extreme Values, Springer: Shape > 0 is a heavy upper tail,
+// Shape < 0 a bounded one, Shape = 0 the Gumbel (GEV) or exponential (GPD) limit,
+// which every formula here handles smoothly. (scipy's genextreme uses c = -Shape.)
+//
+// Return levels are screening estimates from a statistical model of a modelled
+// record; see Caution.
+package extremes
+
+// Caution is the text that every output carrying return levels must carry.
+const Caution = "Extreme sea states from swellgrid are screening estimates from a statistical model " +
+	"fitted to a modelled (hindcast) record, with uncertainty that grows quickly beyond the record length. " +
+	"They are not design values: design loads, survival conditions and consenting decisions follow the " +
+	"applicable design standards and local codes, site measurements, and review by qualified engineers."
