@@ -1,0 +1,277 @@
+package ingest
+
+import (
+	"bytes"
+	"fmt"
+	"math"
+	"os"
+	"strings"
+	"sync"
+
+	"github.com/fhs/go-netcdf/netcdf"
+)
+
+// ncMu serialises every call into the NetCDF-C library, which (with HDF5
+// underneath) is not thread-safe. In a run one reader goroutine makes all the
+// calls; the mutex guards the rest (catalog building, inspect, tests).
+var ncMu sync.Mutex
+
+// checkMagic refuses files that are not NetCDF before the C library sees them:
+// classic files start with "CDF\x01", "CDF\x02" or "CDF\x05", NetCDF-4 files
+// are HDF5 and start with "\x89HDF\r\n\x1a\n" (NetCDF User's Guide, file
+// format specifications).
+func checkMagic(path string) (format string, size int64, err error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return "", 0, fmt.Errorf("ingest: %s: %v", path, err)
+	}
+	defer f.Close()
+	st, err := f.Stat()
+	if err != nil {
+		return "", 0, fmt.Errorf("ingest: %s: %v", path, err)
+	}
+	head := make([]byte, 8)
+	n, _ := f.Read(head)
+	head = head[:n]
+	switch {
+	case len(head) >= 4 && bytes.Equal(head[:3], []byte("CDF")) && (head[3] == 1 || head[3] == 2 || head[3] == 5):
+		return map[byte]string{1: "classic", 2: "64-bit offset", 5: "64-bit data"}[head[3]], st.Size(), nil
+	case len(head) == 8 && bytes.Equal(head, []byte("\x89HDF\r\n\x1a\n")):
+		return "netcdf4", st.Size(), nil
+	}
+	return "", st.Size(), fmt.Errorf("ingest: %s: not a NetCDF file (%d bytes, unrecognised header); check that the path points at the hindcast's .nc files and that the transfer completed", path, st.Size())
+}
+
+// ncVar is what ingest needs of one variable of an open file.
+type ncVar struct {
+	v     netcdf.Var
+	name  string
+	typ   netcdf.Type
+	dims  []string
+	shape []uint64
+}
+
+type ncFile struct {
+	path string
+	ds   netcdf.Dataset
+	vars []ncVar
+}
+
+func openNC(path string) (*ncFile, error) {
+	ds, err := netcdf.OpenFile(path, netcdf.NOWRITE)
+	if err != nil {
+		return nil, fmt.Errorf("ingest: %s: cannot open as NetCDF: %v; the file may be truncated or corrupt", path, err)
+	}
+	f := &ncFile{path: path, ds: ds}
+	n, err := ds.NVars()
+	if err != nil {
+		ds.Close()
+		return nil, fmt.Errorf("ingest: %s: %v", path, err)
+	}
+	for i := 0; i < n; i++ {
+		v := ds.VarN(i)
+		name, err := v.Name()
+		if err != nil {
+			ds.Close()
+			return nil, fmt.Errorf("ingest: %s: variable %d: %v", path, i, err)
+		}
+		typ, err := v.Type()
+		if err != nil {
+			ds.Close()
+			return nil, fmt.Errorf("ingest: %s: variable %q: %v", path, name, err)
+		}
+		dims, err := v.Dims()
+		if err != nil {
+			ds.Close()
+			return nil, fmt.Errorf("ingest: %s: variable %q: %v", path, name, err)
+		}
+		nv := ncVar{v: v, name: name, typ: typ}
+		for _, d := range dims {
+			dn, err := d.Name()
+			if err != nil {
+				ds.Close()
+				return nil, fmt.Errorf("ingest: %s: variable %q: %v", path, name, err)
+			}
+			dl, err := d.Len()
+			if err != nil {
+				ds.Close()
+				return nil, fmt.Errorf("ingest: %s: variable %q: %v", path, name, err)
+			}
+			nv.dims = append(nv.dims, dn)
+			nv.shape = append(nv.shape, dl)
+		}
+		f.vars = append(f.vars, nv)
+	}
+	return f, nil
+}
+
+func (f *ncFile) close() { f.ds.Close() }
+
+func (f *ncFile) find(name string) *ncVar {
+	for i := range f.vars {
+		if f.vars[i].name == name {
+			return &f.vars[i]
+		}
+	}
+	return nil
+}
+
+// attrString reads a text attribute ("" when absent).
+func attrString(a netcdf.Attr) (string, bool) {
+	t, err := a.Type()
+	if err != nil {
+		return "", false
+	}
+	if t != netcdf.CHAR {
+		return "", false
+	}
+	n, err := a.Len()
+	if err != nil || n == 0 {
+		return "", n == 0 && err == nil
+	}
+	b := make([]byte, n)
+	if err := a.ReadBytes(b); err != nil {
+		return "", false
+	}
+	return strings.TrimRight(string(b), "\x00"), true
+}
+
+// attrFloats reads a numeric attribute as float64 values (nil when absent or
+// not numeric).
+func attrFloats(a netcdf.Attr) []float64 {
+	t, err := a.Type()
+	if err != nil {
+		return nil
+	}
+	n, err := a.Len()
+	if err != nil || n == 0 || n > 1<<16 {
+		return nil
+	}
+	out := make([]float64, n)
+	switch t {
+	case netcdf.DOUBLE:
+		if a.ReadFloat64s(out) != nil {
+			return nil
+		}
+	case netcdf.FLOAT:
+		b := make([]float32, n)
+		if a.ReadFloat32s(b) != nil {
+			return nil
+		}
+		for i, v := range b {
+			out[i] = float64(v)
+		}
+	case netcdf.SHORT:
+		b := make([]int16, n)
+		if a.ReadInt16s(b) != nil {
+			return nil
+		}
+		for i, v := range b {
+			out[i] = float64(v)
+		}
+	case netcdf.INT:
+		b := make([]int32, n)
+		if a.ReadInt32s(b) != nil {
+			return nil
+		}
+		for i, v := range b {
+			out[i] = float64(v)
+		}
+	case netcdf.BYTE:
+		b := make([]int8, n)
+		if a.ReadInt8s(b) != nil {
+			return nil
+		}
+		for i, v := range b {
+			out[i] = float64(v)
+		}
+	case netcdf.UBYTE:
+		b := make([]uint8, n)
+		if a.ReadUint8s(b) != nil {
+			return nil
+		}
+		for i, v := range b {
+			out[i] = float64(v)
+		}
+	case netcdf.USHORT:
+		b := make([]uint16, n)
+		if a.ReadUint16s(b) != nil {
+			return nil
+		}
+		for i, v := range b {
+			out[i] = float64(v)
+		}
+	case netcdf.INT64:
+		b := make([]int64, n)
+		if a.ReadInt64s(b) != nil {
+			return nil
+		}
+		for i, v := range b {
+			out[i] = float64(v)
+		}
+	default:
+		return nil
+	}
+	return out
+}
+
+func (v *ncVar) str(name string) string {
+	s, _ := attrString(v.v.Attr(name))
+	return s
+}
+
+func (v *ncVar) nums(name string) []float64 { return attrFloats(v.v.Attr(name)) }
+
+// defaultFill is the NetCDF default fill value of a type (netcdf.h NC_FILL_*),
+// which CF says applies when a variable has no _FillValue.
+func defaultFill(t netcdf.Type) float64 {
+	switch t {
+	case netcdf.BYTE:
+		return -127
+	case netcdf.SHORT:
+		return -32767
+	case netcdf.INT:
+		return -2147483647
+	case netcdf.FLOAT:
+		return float64(float32(9.9692099683868690e+36))
+	case netcdf.DOUBLE:
+		return 9.9692099683868690e+36
+	case netcdf.UBYTE:
+		return 255
+	case netcdf.USHORT:
+		return 65535
+	}
+	return math.NaN()
+}
+
+func (v *ncVar) size() uint64 {
+	n := uint64(1)
+	for _, s := range v.shape {
+		n *= s
+	}
+	return n
+}
+
+// readAll reads a (small) variable as float64 without unpacking.
+func (v *ncVar) readAll(path string) ([]float64, error) {
+	n := v.size()
+	if n > 1<<28 {
+		return nil, fmt.Errorf("ingest: %s: variable %q has %d values, too many to read at once", path, v.name, n)
+	}
+	out := make([]float64, n)
+	if n == 0 {
+		return out, nil
+	}
+	if err := v.v.ReadFloat64s(out); err != nil {
+		return nil, fmt.Errorf("ingest: %s: variable %q: read failed: %v; the file may be truncated or corrupt", path, v.name, err)
+	}
+	return out, nil
+}
+
+// readSlab reads a hyperslab as float64 without unpacking.
+func (v *ncVar) readSlab(path string, start, count []uint64, buf []float64) error {
+	if err := v.v.ReadFloat64Slice(buf, start, count); err != nil {
+		return fmt.Errorf("ingest: %s: variable %q: read of %v+%v failed: %v; the file may be truncated or corrupt", path, v.name, start, count, err)
+	}
+	return nil
+}

@@ -1,0 +1,238 @@
+package ingest
+
+import (
+	"context"
+	"fmt"
+	"math"
+
+	"swellgrid/grid"
+)
+
+// Block is a [time x cells] piece of the record: steps Step0..Step0+NT-1 of
+// the whole record (all from one file) for cells C0..C1-1 (canonical ids).
+type Block struct {
+	File   int // index into Catalog.Files
+	Step0  int
+	NT     int
+	Times  []Stamp
+	C0, C1 int
+	// Bulk holds each bulk role present as [t*(C1-C0) + c], SI units, NaN
+	// where missing; directions in degrees "from".
+	Bulk map[Role][]float64
+	// Spec holds the spectra as [((t*(C1-C0) + c)*NF + f)*ND + d] in m2/Hz/rad
+	// (ND = 1 and m2/Hz for 1-D spectra), frequencies and directions in the
+	// order of Catalog.Spectral; NaN where missing.
+	Spec   []float64
+	NF, ND int
+	// LastOfFile is true on the last block of a file.
+	LastOfFile bool
+}
+
+// NC is the number of cells of the block.
+func (b *Block) NC() int { return b.C1 - b.C0 }
+
+// ReadRange chooses what Read reads.
+type ReadRange struct {
+	C0, C1   int // cells (canonical ids); C1 = 0 means all
+	MaxSteps int // time steps per block (0: 64)
+	FromFile int // first file to read (resume)
+}
+
+// Read reads the record in time order and sends blocks on out. It makes
+// every NetCDF call of the run and must be called from one goroutine; it
+// returns when all blocks are sent, on the first error, or when ctx ends.
+func (c *Catalog) Read(ctx context.Context, r ReadRange, out chan<- *Block) error {
+	if r.C1 == 0 {
+		r.C1 = c.Grid.NCells()
+	}
+	if r.C0 < 0 || r.C1 > c.Grid.NCells() || r.C0 >= r.C1 {
+		return fmt.Errorf("ingest: cell range %d..%d outside the grid's %d cells", r.C0, r.C1, c.Grid.NCells())
+	}
+	if r.MaxSteps <= 0 {
+		r.MaxSteps = 64
+	}
+	for fi := r.FromFile; fi < len(c.Files); fi++ {
+		if err := c.readFile(ctx, fi, r, out); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- *Block) error {
+	fe := &c.Files[fi]
+	ncMu.Lock()
+	f, err := openNC(fe.Path)
+	ncMu.Unlock()
+	if err != nil {
+		return err
+	}
+	defer func() { ncMu.Lock(); f.close(); ncMu.Unlock() }()
+	// Re-resolve the variables of this file (same names as scanned).
+	vars := map[Role]*VarInfo{}
+	for role, vi := range fe.vars {
+		if role == Depth {
+			continue
+		}
+		v := f.find(vi.Name)
+		if v == nil {
+			return errf(fe.Path, vi.Name, "variable disappeared since the catalog was built; was the file replaced during the run?")
+		}
+		cp := *vi
+		cp.v = v
+		vars[role] = &cp
+	}
+	valid := map[Role]int{}
+	g := c.Grid
+	invX, invY := invert(g.XFile), invert(g.YFile)
+	nc := r.C1 - r.C0
+	var nf, nd int
+	if c.Spectral != nil {
+		nf, nd = len(c.Spectral.FreqHz), max(1, len(c.Spectral.DirDeg))
+	}
+	for t0 := 0; t0 < fe.Steps; t0 += r.MaxSteps {
+		nt := min(r.MaxSteps, fe.Steps-t0)
+		b := &Block{File: fi, Step0: fe.Offset + t0, NT: nt, Times: fe.times[t0 : t0+nt], C0: r.C0, C1: r.C1,
+			Bulk: map[Role][]float64{}, NF: nf, ND: nd, LastOfFile: t0+nt >= fe.Steps}
+		for _, role := range Roles {
+			vi := vars[role]
+			if vi == nil {
+				continue
+			}
+			spec := role == Spectrum2D || role == Spectrum1D
+			per := 1
+			if spec {
+				per = nf * nd
+			}
+			dst := make([]float64, nt*nc*per)
+			for i := range dst {
+				dst[i] = math.NaN()
+			}
+			n, err := c.gather(fe.Path, vi, g, invX, invY, t0, nt, r.C0, r.C1, dst, per)
+			if err != nil {
+				return err
+			}
+			valid[role] += n
+			if spec {
+				b.Spec = dst
+			} else {
+				b.Bulk[role] = dst
+			}
+		}
+		select {
+		case out <- b:
+		case <-ctx.Done():
+			return ctx.Err()
+		}
+	}
+	for role, vi := range vars {
+		if valid[role] == 0 && r.C0 == 0 && r.C1 == g.NCells() {
+			return errf(fe.Path, vi.Name, "every value is a fill value or missing; the variable holds no data")
+		}
+	}
+	return nil
+}
+
+// gather reads one role for steps t0..t0+nt-1 and cells c0..c1-1 and scatters
+// the unpacked values into dst in canonical order; it returns the number of
+// valid values.
+func (c *Catalog) gather(path string, vi *VarInfo, g *grid.Grid, invX, invY []int, t0, nt, c0, c1 int, dst []float64, per int) (int, error) {
+	v := vi.v
+	rank := len(v.shape)
+	start := make([]uint64, rank)
+	count := make([]uint64, rank)
+	// Spatial extent in file indices.
+	var y0, y1 int
+	if g.Kind != grid.Points {
+		iy0, iy1 := c0/g.NX, (c1-1)/g.NX
+		y0, y1 = math.MaxInt, -1
+		for iy := iy0; iy <= iy1; iy++ {
+			y0, y1 = min(y0, g.YFile[iy]), max(y1, g.YFile[iy])
+		}
+	}
+	for k, ax := range vi.axes {
+		switch ax {
+		case axT:
+			start[k], count[k] = uint64(t0), uint64(nt)
+		case axY:
+			start[k], count[k] = uint64(y0), uint64(y1-y0+1)
+		case axX:
+			count[k] = v.shape[k]
+		case axP:
+			start[k], count[k] = uint64(c0), uint64(c1-c0)
+		default:
+			count[k] = v.shape[k]
+		}
+	}
+	total := 1
+	for _, n := range count {
+		total *= int(n)
+	}
+	buf := make([]float64, total)
+	ncMu.Lock()
+	err := v.readSlab(path, start, count, buf)
+	ncMu.Unlock()
+	if err != nil {
+		return 0, err
+	}
+	nc := c1 - c0
+	nd := 1
+	for k, ax := range vi.axes {
+		if ax == axD {
+			nd = int(count[k])
+		}
+	}
+	// Odometer over the slab in storage order.
+	idx := make([]int, rank)
+	valid := 0
+	dirRole := vi.Role == Dir || vi.Role == DirPeak
+	for i := 0; i < total; i++ {
+		var t, fx, fy, f, d int
+		for k, ax := range vi.axes {
+			switch ax {
+			case axT:
+				t = idx[k]
+			case axY:
+				fy = idx[k] + int(start[k])
+			case axX:
+				fx = idx[k]
+			case axP:
+				fx = idx[k] + int(start[k])
+			case axF:
+				f = idx[k]
+			case axD:
+				d = idx[k]
+			}
+		}
+		var cell int
+		if g.Kind == grid.Points {
+			cell = fx
+		} else {
+			cell = invY[fy]*g.NX + invX[fx]
+		}
+		if cell >= c0 && cell < c1 {
+			x := vi.unpack(buf[i])
+			if x == x {
+				if dirRole {
+					if vi.DirTo {
+						x += 180
+					}
+					x = math.Mod(x, 360)
+					if x < 0 {
+						x += 360
+					}
+				}
+				valid++
+			}
+			dst[((t*nc+cell-c0)*(per/nd)+f)*nd+d] = x
+		}
+		for k := rank - 1; k >= 0; k-- {
+			idx[k]++
+			if idx[k] < int(count[k]) {
+				break
+			}
+			idx[k] = 0
+		}
+	}
+	return valid, nil
+}

@@ -1,0 +1,581 @@
+package ingest
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"swellgrid/grid"
+)
+
+// scan is what one file says about itself.
+type scan struct {
+	f        *ncFile
+	info     FileInfo
+	cal      Calendar
+	grid     *grid.Grid
+	gridDim  map[string]axis
+	spectral *Spectral
+	warnings []string
+	invX     []int
+	invY     []int
+}
+
+func errf(path, v, format string, a ...any) error {
+	if v == "" {
+		return fmt.Errorf("ingest: %s: %s", path, fmt.Sprintf(format, a...))
+	}
+	return fmt.Errorf("ingest: %s: variable %q: %s", path, v, fmt.Sprintf(format, a...))
+}
+
+// scanFile reads the metadata, the time axis and the grid of one file, and
+// finds its role variables.
+func scanFile(path string, opt Options) (*scan, error) {
+	format, size, err := checkMagic(path)
+	if err != nil {
+		return nil, err
+	}
+	f, err := openNC(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.close()
+	s := &scan{f: f, info: FileInfo{Path: path, Size: size, Format: format}}
+	tv, err := s.findTime()
+	if err != nil {
+		return nil, err
+	}
+	if err := s.readTime(tv); err != nil {
+		return nil, err
+	}
+	if err := s.findGrid(); err != nil {
+		return nil, err
+	}
+	s.info.vars = map[Role]*VarInfo{}
+	for _, r := range Roles {
+		vi, err := s.findRole(r, opt, tv.dims[0])
+		if err != nil {
+			return nil, err
+		}
+		if vi != nil {
+			s.info.vars[r] = vi
+		}
+	}
+	if s.info.vars[Spectrum2D] == nil && s.info.vars[Spectrum1D] == nil && s.info.vars[Hm0] == nil {
+		return nil, errf(path, "", "no variable for the wave height or spectrum roles (standard_name %s, %s or %s); name the variable in the spec's [roles] table if it lacks a standard_name",
+			StandardNames[Spectrum2D][0], StandardNames[Spectrum1D][0], StandardNames[Hm0][0])
+	}
+	if s.info.vars[Spectrum2D] == nil && s.info.vars[Spectrum1D] == nil && s.info.vars[Te] == nil && s.info.vars[Tp] == nil {
+		return nil, errf(path, "", "bulk wave height found but no period: need a variable with standard_name %s (Te) or %s (Tp)", StandardNames[Te][0], StandardNames[Tp][0])
+	}
+	for _, r := range Roles {
+		if vi := s.info.vars[r]; vi != nil && r != Depth {
+			if err := s.checkNotAllFill(vi); err != nil {
+				return nil, err
+			}
+		}
+	}
+	if err := s.findSpectral(opt); err != nil {
+		return nil, err
+	}
+	for _, vi := range s.info.vars {
+		vi.v = nil // the file is closed after the scan
+	}
+	return s, nil
+}
+
+// scanStatic reads a file that holds only static fields (a bathymetry file).
+func scanStatic(path string, opt Options) (*scan, error) {
+	f, err := openNC(path)
+	if err != nil {
+		return nil, err
+	}
+	s := &scan{f: f, info: FileInfo{Path: path}}
+	if err := s.findGrid(); err != nil {
+		f.close()
+		return nil, err
+	}
+	s.info.vars = map[Role]*VarInfo{}
+	vi, err := s.findRole(Depth, opt, "")
+	if err != nil {
+		f.close()
+		return nil, err
+	}
+	if vi != nil {
+		s.info.vars[Depth] = vi
+	}
+	return s, nil
+}
+
+func (s *scan) findTime() (*ncVar, error) {
+	var cands []*ncVar
+	for i := range s.f.vars {
+		v := &s.f.vars[i]
+		if len(v.dims) != 1 {
+			continue
+		}
+		if v.str("standard_name") == "time" || strings.EqualFold(v.str("axis"), "T") ||
+			(v.dims[0] == v.name && strings.Contains(strings.ToLower(v.str("units")), " since ")) {
+			cands = append(cands, v)
+		}
+	}
+	if len(cands) == 0 {
+		return nil, errf(s.f.path, "", "no time coordinate (a 1-D variable with standard_name \"time\", axis \"T\", or units \"<unit> since <date>\"); add one, or check that this is a hindcast file")
+	}
+	if len(cands) > 1 {
+		names := []string{}
+		for _, c := range cands {
+			names = append(names, c.name)
+		}
+		// Prefer the coordinate variable (named like its dimension).
+		for _, c := range cands {
+			if c.dims[0] == c.name {
+				return c, nil
+			}
+		}
+		return nil, errf(s.f.path, "", "several time coordinates (%s); keep one", strings.Join(names, ", "))
+	}
+	return cands[0], nil
+}
+
+func (s *scan) readTime(tv *ncVar) error {
+	cal, err := ParseCalendar(tv.str("calendar"))
+	if err != nil {
+		return errf(s.f.path, tv.name, "%v", err)
+	}
+	s.cal = cal
+	tu, err := ParseTimeUnits(tv.str("units"), cal)
+	if err != nil {
+		return errf(s.f.path, tv.name, "%v", err)
+	}
+	vals, err := tv.readAll(s.f.path)
+	if err != nil {
+		return err
+	}
+	if len(vals) == 0 {
+		return errf(s.f.path, tv.name, "the time dimension has size 0; the file holds no data: remove it from the input")
+	}
+	fills := tv.nums("_FillValue")
+	s.info.times = make([]Stamp, len(vals))
+	for i, v := range vals {
+		for _, fv := range fills {
+			if v == fv {
+				return errf(s.f.path, tv.name, "time step %d is a fill value; every time must be set", i)
+			}
+		}
+		st, err := tu.Stamp(v)
+		if err != nil {
+			return errf(s.f.path, tv.name, "step %d: %v", i, err)
+		}
+		if i > 0 && st <= s.info.times[i-1] {
+			what := "goes back"
+			if st == s.info.times[i-1] {
+				what = "repeats"
+			}
+			return errf(s.f.path, tv.name, "time %s at step %d %s (previous %s); times must increase strictly: remove the duplicated or misordered steps",
+				DateOf(cal, st), i, what, DateOf(cal, s.info.times[i-1]))
+		}
+		s.info.times[i] = st
+	}
+	s.info.Steps = len(vals)
+	s.info.First, s.info.Last = s.info.times[0], s.info.times[len(vals)-1]
+	s.info.From, s.info.To = DateOf(cal, s.info.First).String(), DateOf(cal, s.info.Last).String()
+	return nil
+}
+
+func (s *scan) coordVar(stdName, unitsPrefix string) []*ncVar {
+	var out []*ncVar
+	for i := range s.f.vars {
+		v := &s.f.vars[i]
+		u := strings.ToLower(v.str("units"))
+		if v.str("standard_name") == stdName || (v.str("standard_name") == "" && strings.HasPrefix(u, unitsPrefix)) {
+			out = append(out, v)
+		}
+	}
+	return out
+}
+
+// findGrid identifies the grid from the longitude/latitude coordinates (CF
+// Conventions 1.8, sections 4.1-4.2 and 5: standard_name longitude/latitude or
+// units degrees_east/degrees_north).
+func (s *scan) findGrid() error {
+	lons := s.coordVar("longitude", "degrees_east")
+	lats := s.coordVar("latitude", "degrees_north")
+	pick := func(vs []*ncVar) *ncVar {
+		for _, v := range vs {
+			if len(v.dims) == 1 && v.dims[0] == v.name {
+				return v
+			}
+		}
+		if len(vs) > 0 {
+			return vs[0]
+		}
+		return nil
+	}
+	lon, lat := pick(lons), pick(lats)
+	if lon == nil || lat == nil {
+		return errf(s.f.path, "", "no longitude/latitude coordinates (variables with standard_name longitude and latitude, or units degrees_east and degrees_north); add them")
+	}
+	lonv, err := lon.readAll(s.f.path)
+	if err != nil {
+		return err
+	}
+	latv, err := lat.readAll(s.f.path)
+	if err != nil {
+		return err
+	}
+	for i := range lonv {
+		if lonv[i] != lonv[i] {
+			if len(lon.dims) == 1 {
+				return errf(s.f.path, lon.name, "value %d is NaN; coordinates must be finite", i)
+			}
+		}
+	}
+	for i := range latv {
+		if latv[i] != latv[i] && len(lat.dims) == 1 {
+			return errf(s.f.path, lat.name, "value %d is NaN; coordinates must be finite", i)
+		}
+	}
+	s.gridDim = map[string]axis{}
+	switch {
+	case len(lon.dims) == 1 && len(lat.dims) == 1 && lon.dims[0] != lat.dims[0]:
+		if len(lonv) == 0 || len(latv) == 0 {
+			return errf(s.f.path, "", "a grid dimension has size 0 (%d lon, %d lat); the file holds no cells", len(lonv), len(latv))
+		}
+		g, err := grid.NewRegular(lonv, latv)
+		if err != nil {
+			return errf(s.f.path, lon.name+"/"+lat.name, "%v", err)
+		}
+		s.grid = g
+		s.gridDim[lon.dims[0]] = axX
+		s.gridDim[lat.dims[0]] = axY
+	case len(lon.dims) == 1 && len(lat.dims) == 1:
+		g, err := grid.NewPoints(lonv, latv)
+		if err != nil {
+			return errf(s.f.path, lon.name+"/"+lat.name, "%v", err)
+		}
+		s.grid = g
+		s.gridDim[lon.dims[0]] = axP
+	case len(lon.dims) == 2 && len(lat.dims) == 2 && lon.dims[0] == lat.dims[0] && lon.dims[1] == lat.dims[1]:
+		g, err := grid.NewCurvilinear(int(lon.shape[1]), int(lon.shape[0]), lonv, latv)
+		if err != nil {
+			return errf(s.f.path, lon.name+"/"+lat.name, "%v", err)
+		}
+		s.grid = g
+		s.gridDim[lon.dims[0]] = axY
+		s.gridDim[lon.dims[1]] = axX
+	default:
+		return errf(s.f.path, lon.name+"/"+lat.name, "coordinates of dimensions %v and %v form no grid swellgrid reads (1-D axes, 2-D curvilinear, or a station dimension)", lon.dims, lat.dims)
+	}
+	s.invX, s.invY = invert(s.grid.XFile), invert(s.grid.YFile)
+	return nil
+}
+
+func invert(p []int) []int {
+	q := make([]int, len(p))
+	for i, v := range p {
+		q[v] = i
+	}
+	return q
+}
+
+func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
+	var v *ncVar
+	if name := opt.Vars[r]; name != "" {
+		v = s.f.find(name)
+		if v == nil {
+			return nil, errf(s.f.path, name, "named for role %s in the spec but not in the file; fix the name in the spec's [roles] table", r)
+		}
+	} else {
+		var found []*ncVar
+		for i := range s.f.vars {
+			for _, sn := range StandardNames[r] {
+				if s.f.vars[i].str("standard_name") == sn {
+					found = append(found, &s.f.vars[i])
+				}
+			}
+		}
+		if len(found) == 0 {
+			return nil, nil
+		}
+		if len(found) > 1 {
+			names := []string{}
+			for _, f := range found {
+				names = append(names, f.name)
+			}
+			return nil, errf(s.f.path, "", "several variables for role %s (%s); choose one in the spec's [roles] table", r, strings.Join(names, ", "))
+		}
+		v = found[0]
+	}
+	vi := &VarInfo{Role: r, Name: v.name, StandardName: v.str("standard_name"), Dims: v.dims, Type: v.typ.String(), v: v}
+	vi.DirTo = strings.Contains(vi.StandardName, "_to_direction")
+	// Axes and rank.
+	nspat := 0
+	for _, d := range v.dims {
+		switch {
+		case d == timeDim && timeDim != "":
+			vi.axes = append(vi.axes, axT)
+		case s.gridDim[d] != 0:
+			vi.axes = append(vi.axes, s.gridDim[d])
+			nspat++
+		default:
+			vi.axes = append(vi.axes, 0) // spectral, resolved by findSpectral
+		}
+	}
+	wantSpat := 2
+	if s.grid.Kind == grid.Points {
+		wantSpat = 1
+	}
+	other := len(v.dims) - nspat
+	hasT := timeDim != "" && len(v.dims) > 0 && vi.axes[0] == axT
+	wantOther := map[Role]int{Spectrum2D: 3, Spectrum1D: 2, Depth: 0}
+	wo, ok := wantOther[r]
+	if !ok {
+		wo = 1
+	}
+	if nspat != wantSpat || other != wo || (r != Depth && !hasT) {
+		expect := "(time, " + map[bool]string{true: "station", false: "y, x"}[wantSpat == 1]
+		switch r {
+		case Spectrum2D:
+			expect += ", frequency, direction)"
+		case Spectrum1D:
+			expect += ", frequency)"
+		case Depth:
+			expect = "(" + expect[7:] + ")"
+		default:
+			expect += ")"
+		}
+		return nil, errf(s.f.path, v.name, "role %s has dimensions %v; expected %s with time first and the grid's dimensions; check the variable or the role mapping", r, v.dims, expect)
+	}
+	for i, sz := range v.shape {
+		if sz == 0 {
+			return nil, errf(s.f.path, v.name, "dimension %q has size 0; the variable holds no data", v.dims[i])
+		}
+	}
+	// Units.
+	vi.Units = v.str("units")
+	if u := opt.Units[r]; u != "" {
+		vi.Units = u
+	}
+	if vi.Units == "" {
+		return nil, errf(s.f.path, v.name, "no units attribute; add one or set units for role %s in the spec", r)
+	}
+	fac, err := ConversionFactor(vi.Units, roleQuantity[r])
+	if err != nil {
+		return nil, errf(s.f.path, v.name, "%v; set units for role %s in the spec if the attribute is wrong", err, r)
+	}
+	vi.Factor = fac
+	// Packing and missing values (CF 1.8 sections 2.5.1 and 8.1).
+	vi.Scale, vi.Offset = 1, 0
+	if sf := v.nums("scale_factor"); len(sf) == 1 {
+		vi.Scale, vi.Packed = sf[0], true
+	}
+	if ao := v.nums("add_offset"); len(ao) == 1 {
+		vi.Offset, vi.Packed = ao[0], true
+	}
+	if fv := v.nums("_FillValue"); len(fv) > 0 {
+		vi.Fill = append(vi.Fill, fv[0])
+	} else if df := defaultFill(v.typ); !math.IsNaN(df) {
+		vi.Fill = append(vi.Fill, df)
+	}
+	vi.Fill = append(vi.Fill, v.nums("missing_value")...)
+	vi.ValidMin, vi.ValidMax = math.Inf(-1), math.Inf(1)
+	if vr := v.nums("valid_range"); len(vr) == 2 {
+		vi.ValidMin, vi.ValidMax = vr[0], vr[1]
+	}
+	if vm := v.nums("valid_min"); len(vm) == 1 {
+		vi.ValidMin = vm[0]
+	}
+	if vm := v.nums("valid_max"); len(vm) == 1 {
+		vi.ValidMax = vm[0]
+	}
+	if vi.Scale == 0 || math.IsNaN(vi.Scale) || math.IsNaN(vi.Offset) {
+		return nil, errf(s.f.path, v.name, "scale_factor %v / add_offset %v cannot unpack values; fix the packing attributes", vi.Scale, vi.Offset)
+	}
+	return vi, nil
+}
+
+// findSpectral resolves the frequency and direction dimensions of a spectrum.
+func (s *scan) findSpectral(opt Options) error {
+	vi := s.info.vars[Spectrum2D]
+	if vi == nil {
+		vi = s.info.vars[Spectrum1D]
+	}
+	if vi == nil {
+		return nil
+	}
+	sp := &Spectral{}
+	for k, d := range vi.Dims {
+		if vi.axes[k] != 0 {
+			continue
+		}
+		cv := s.f.find(d)
+		if cv == nil || len(cv.dims) != 1 {
+			return errf(s.f.path, vi.Name, "dimension %q has no coordinate variable; add %s(%s) with units", d, d, d)
+		}
+		sn := cv.str("standard_name")
+		u := cv.str("units")
+		vals, err := cv.readAll(s.f.path)
+		if err != nil {
+			return err
+		}
+		if fac, err := ConversionFactor(u, Frequency); err == nil && (sn == "" || sn == "sea_surface_wave_frequency") {
+			vi.axes[k] = axF
+			for i, f := range vals {
+				f *= fac
+				if !(f > 0) || math.IsInf(f, 0) {
+					return errf(s.f.path, cv.name, "frequency %d is %v; frequencies must be positive", i, vals[i])
+				}
+				sp.FreqHz = append(sp.FreqHz, f)
+			}
+			continue
+		}
+		if fac, err := ConversionFactor(u, Angle); err == nil {
+			vi.axes[k] = axD
+			to := false
+			switch {
+			case strings.Contains(sn, "to_direction"):
+				to = true
+			case strings.Contains(sn, "from_direction"):
+			case opt.DirectionTo != nil:
+				to = *opt.DirectionTo
+			default:
+				return errf(s.f.path, cv.name, "direction coordinate has no standard_name saying \"from\" or \"to\" (sea_surface_wave_from_direction / sea_surface_wave_to_direction); add it or set direction_convention in the spec")
+			}
+			sp.DirTo = to
+			for i, d := range vals {
+				d *= fac
+				if math.IsNaN(d) || math.IsInf(d, 0) || d < -360 || d > 720 {
+					return errf(s.f.path, cv.name, "direction %d is %v; directions must lie in 0-360 degrees", i, vals[i])
+				}
+				if to {
+					d += 180
+				}
+				d = math.Mod(d, 360)
+				if d < 0 {
+					d += 360
+				}
+				sp.DirDeg = append(sp.DirDeg, d)
+			}
+			continue
+		}
+		return errf(s.f.path, cv.name, "coordinate of spectral dimension %q has units %q, neither a frequency (Hz, rad s-1) nor a direction (degree, rad)", d, u)
+	}
+	if len(sp.FreqHz) == 0 || (vi.Role == Spectrum2D && len(sp.DirDeg) == 0) {
+		return errf(s.f.path, vi.Name, "spectral dimensions %v: found %d frequencies and %d directions; the spectrum needs a frequency and (2-D) a direction coordinate", vi.Dims, len(sp.FreqHz), len(sp.DirDeg))
+	}
+	s.spectral = sp
+	return nil
+}
+
+// checkNotAllFill refuses a role variable whose first and last steps are all
+// missing and, on a closer look, every value.
+func (s *scan) checkNotAllFill(vi *VarInfo) error {
+	v := vi.v
+	start := make([]uint64, len(v.shape))
+	count := append([]uint64(nil), v.shape...)
+	count[0] = 1
+	per := v.size() / v.shape[0]
+	buf := make([]float64, per)
+	steps := []uint64{0}
+	if v.shape[0] > 1 {
+		steps = append(steps, v.shape[0]-1)
+	}
+	anyValid := func(t uint64) (bool, error) {
+		start[0] = t
+		if err := v.readSlab(s.f.path, start, count, buf); err != nil {
+			return false, err
+		}
+		for _, x := range buf {
+			if !math.IsNaN(vi.unpack(x)) {
+				return true, nil
+			}
+		}
+		return false, nil
+	}
+	for _, t := range steps {
+		if ok, err := anyValid(t); err != nil || ok {
+			return err
+		}
+	}
+	for t := uint64(1); t+1 < v.shape[0]; t++ {
+		if ok, err := anyValid(t); err != nil || ok {
+			return err
+		}
+	}
+	return errf(s.f.path, vi.Name, "every value is a fill value or missing; the variable holds no data: check the file or map role %s to another variable", vi.Role)
+}
+
+// compatible checks that a later file has the same grid, calendar, roles and
+// spectral layout as the first.
+func (a *scan) compatible(b *scan) error {
+	if a.cal != b.cal {
+		return fmt.Errorf("ingest: %s uses the %s calendar but %s uses %s; all files of a hindcast must share one calendar", a.info.Path, a.cal, b.info.Path, b.cal)
+	}
+	if ok, why := a.grid.Same(b.grid); !ok {
+		return fmt.Errorf("ingest: %s and %s have different grids (%s); give only files of one grid", a.info.Path, b.info.Path, why)
+	}
+	for r := range a.info.vars {
+		if b.info.vars[r] == nil {
+			return fmt.Errorf("ingest: %s has role %s (variable %q) but %s does not; all files need the same variables", a.info.Path, r, a.info.vars[r].Name, b.info.Path)
+		}
+		if a.info.vars[r].Packed != b.info.vars[r].Packed || a.info.vars[r].Scale != b.info.vars[r].Scale || a.info.vars[r].Offset != b.info.vars[r].Offset {
+			b.warnings = append(b.warnings, fmt.Sprintf("%s: variable %q is packed differently from %s (each file is unpacked with its own attributes)", b.info.Path, b.info.vars[r].Name, a.info.Path))
+		}
+	}
+	for r := range b.info.vars {
+		if a.info.vars[r] == nil {
+			return fmt.Errorf("ingest: %s has role %s (variable %q) but %s does not; all files need the same variables", b.info.Path, r, b.info.vars[r].Name, a.info.Path)
+		}
+	}
+	if (a.spectral == nil) != (b.spectral == nil) {
+		return fmt.Errorf("ingest: %s and %s differ in spectral layout", a.info.Path, b.info.Path)
+	}
+	if a.spectral != nil {
+		if !sameFloats(a.spectral.FreqHz, b.spectral.FreqHz) || !sameFloats(a.spectral.DirDeg, b.spectral.DirDeg) {
+			return fmt.Errorf("ingest: %s and %s have different frequency or direction coordinates; all files need one spectral layout", a.info.Path, b.info.Path)
+		}
+	}
+	return nil
+}
+
+func sameFloats(a, b []float64) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if math.Abs(a[i]-b[i]) > 1e-9*math.Max(1, math.Abs(a[i])) {
+			return false
+		}
+	}
+	return true
+}
+
+// readStatic reads a field with only grid dimensions into dst (canonical
+// cell order), unpacked and in SI units.
+func (s *scan) readStatic(vi *VarInfo, dst []float64) error {
+	raw, err := vi.v.readAll(s.f.path)
+	if err != nil {
+		return err
+	}
+	invX, invY := invert(s.grid.XFile), invert(s.grid.YFile)
+	nx := s.grid.NX
+	shape := vi.v.shape
+	for i, x := range raw {
+		var fx, fy int
+		rem := i
+		for k := len(shape) - 1; k >= 0; k-- {
+			idx := rem % int(shape[k])
+			rem /= int(shape[k])
+			switch vi.axes[k] {
+			case axX, axP:
+				fx = idx
+			case axY:
+				fy = idx
+			}
+		}
+		cell := invY[fy]*nx + invX[fx]
+		dst[cell] = vi.unpack(x)
+	}
+	return nil
+}
