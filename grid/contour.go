@@ -586,9 +586,9 @@ func (f *Field) lonLat(id int64, lo, hi float64) orb.Point {
 }
 
 type xyRing struct {
-	ids  []int64
-	xy   [][2]float64
-	area float64 // signed, index space
+	ids                    []int64
+	xy                     [][2]float64
+	area                   float64 // signed, index space
 	minX, minY, maxX, maxY float64
 }
 
