@@ -262,11 +262,11 @@ func (c *Catalog) buildTimeAxis() error {
 		if i > 0 {
 			p := &c.Files[i-1]
 			if f.First <= p.Last {
-				what := "overlap"
+				what := "overlap in time"
 				if f.First == p.First {
 					what = "start at the same time"
 				}
-				return fmt.Errorf("ingest: %s and %s %s in time (%s .. %s vs %s .. %s); remove the duplicate or overlapping file from the input", p.Path, f.Path, what, p.From, p.To, f.From, f.To)
+				return fmt.Errorf("ingest: %s and %s %s (%s .. %s vs %s .. %s); remove the duplicate or overlapping file from the input", p.Path, f.Path, what, p.From, p.To, f.From, f.To)
 			}
 		}
 		f.Offset = len(c.times)

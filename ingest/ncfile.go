@@ -262,16 +262,122 @@ func (v *ncVar) readAll(path string) ([]float64, error) {
 	if n == 0 {
 		return out, nil
 	}
-	if err := v.v.ReadFloat64s(out); err != nil {
-		return nil, fmt.Errorf("ingest: %s: variable %q: read failed: %v; the file may be truncated or corrupt", path, v.name, err)
+	start := make([]uint64, len(v.shape))
+	if err := v.readSlab(path, start, v.shape, out); err != nil {
+		return nil, err
 	}
 	return out, nil
 }
 
-// readSlab reads a hyperslab as float64 without unpacking.
+// readSlab reads a hyperslab as float64 without unpacking. go-netcdf reads
+// only in a variable's own type, so the values are read as stored and widened
+// (exactly: every stored type but 64-bit integers fits a float64).
 func (v *ncVar) readSlab(path string, start, count []uint64, buf []float64) error {
-	if err := v.v.ReadFloat64Slice(buf, start, count); err != nil {
+	var err error
+	n := len(buf)
+	switch v.typ {
+	case netcdf.DOUBLE:
+		if len(start) == 0 {
+			err = v.v.ReadFloat64s(buf)
+		} else {
+			err = v.v.ReadFloat64Slice(buf, start, count)
+		}
+	case netcdf.FLOAT:
+		b := make([]float32, n)
+		if err = v.readTyped(b, start, count); err == nil {
+			for i, x := range b {
+				buf[i] = float64(x)
+			}
+		}
+	case netcdf.SHORT:
+		b := make([]int16, n)
+		if err = v.readTyped(b, start, count); err == nil {
+			for i, x := range b {
+				buf[i] = float64(x)
+			}
+		}
+	case netcdf.INT:
+		b := make([]int32, n)
+		if err = v.readTyped(b, start, count); err == nil {
+			for i, x := range b {
+				buf[i] = float64(x)
+			}
+		}
+	case netcdf.BYTE:
+		b := make([]int8, n)
+		if err = v.readTyped(b, start, count); err == nil {
+			for i, x := range b {
+				buf[i] = float64(x)
+			}
+		}
+	case netcdf.UBYTE:
+		b := make([]uint8, n)
+		if err = v.readTyped(b, start, count); err == nil {
+			for i, x := range b {
+				buf[i] = float64(x)
+			}
+		}
+	case netcdf.USHORT:
+		b := make([]uint16, n)
+		if err = v.readTyped(b, start, count); err == nil {
+			for i, x := range b {
+				buf[i] = float64(x)
+			}
+		}
+	case netcdf.INT64:
+		b := make([]int64, n)
+		if err = v.readTyped(b, start, count); err == nil {
+			for i, x := range b {
+				buf[i] = float64(x)
+			}
+		}
+	default:
+		return fmt.Errorf("ingest: %s: variable %q has type %v, which swellgrid does not read; store it as a number type", path, v.name, v.typ)
+	}
+	if err != nil {
 		return fmt.Errorf("ingest: %s: variable %q: read of %v+%v failed: %v; the file may be truncated or corrupt", path, v.name, start, count, err)
 	}
 	return nil
+}
+
+func (v *ncVar) readTyped(b any, start, count []uint64) error {
+	full := len(start) == 0
+	switch x := b.(type) {
+	case []float32:
+		if full {
+			return v.v.ReadFloat32s(x)
+		}
+		return v.v.ReadFloat32Slice(x, start, count)
+	case []int16:
+		if full {
+			return v.v.ReadInt16s(x)
+		}
+		return v.v.ReadInt16Slice(x, start, count)
+	case []int32:
+		if full {
+			return v.v.ReadInt32s(x)
+		}
+		return v.v.ReadInt32Slice(x, start, count)
+	case []int8:
+		if full {
+			return v.v.ReadInt8s(x)
+		}
+		return v.v.ReadInt8Slice(x, start, count)
+	case []uint8:
+		if full {
+			return v.v.ReadUint8s(x)
+		}
+		return v.v.ReadUint8Slice(x, start, count)
+	case []uint16:
+		if full {
+			return v.v.ReadUint16s(x)
+		}
+		return v.v.ReadUint16Slice(x, start, count)
+	case []int64:
+		if full {
+			return v.v.ReadInt64s(x)
+		}
+		return v.v.ReadInt64Slice(x, start, count)
+	}
+	return fmt.Errorf("unsupported buffer")
 }

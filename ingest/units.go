@@ -97,7 +97,7 @@ func parseUnits(u string) (dims, error) {
 func ConversionFactor(u string, q Quantity) (float64, error) {
 	d, err := parseUnits(u)
 	if err != nil {
-		return 0, fmt.Errorf("units %q: %v; expected %s", u, err, q.target())
+		return 0, fmt.Errorf("units %q are not convertible to %s (%v)", u, q.target(), err)
 	}
 	bad := fmt.Errorf("units %q are not convertible to %s", u, q.target())
 	switch q {
