@@ -1,0 +1,436 @@
+package extremes
+
+import (
+	"math"
+	"math/rand/v2"
+	"sort"
+
+	"gonum.org/v1/gonum/stat"
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// ThresholdRule says how the peaks-over-threshold level is chosen.
+type ThresholdRule int
+
+const (
+	// ThresholdPeaksPerYear chooses the threshold so that about
+	// TargetPeaksPerYear storm peaks per year exceed it.
+	ThresholdPeaksPerYear ThresholdRule = iota
+	// ThresholdHm0 uses ThresholdValue (m) as given, e.g. a quantile of the
+	// cell's Hm0 distribution that the caller read from its histogram.
+	ThresholdHm0
+)
+
+// Bootstrap asks for seeded parametric-bootstrap intervals (N = 0: none).
+type Bootstrap struct {
+	N    int    // number of resamples (e.g. 500)
+	Seed uint64 // seed; the same seed gives the same intervals
+}
+
+// AnalysisConfig sets the fits and checks of Analyse; zero fields take defaults.
+type AnalysisConfig struct {
+	ReturnPeriods      []float64 // years; default 1, 5, 10, 25, 50, 100
+	Threshold          ThresholdRule
+	ThresholdValue     float64 // m, for ThresholdHm0
+	TargetPeaksPerYear float64 // for ThresholdPeaksPerYear; default 3
+	MinYears           int     // fewer complete years are flagged; default 10
+	MinPeaks           int     // fewer exceedances are flagged; default 20
+	ShapeMin, ShapeMax float64 // plausible shape range; default -0.5, 0.5
+	MinYearCoverage    float64 // fraction of a full year's steps for its maximum to count; default 0.8
+	RecordYears        float64 // record length in years for the peak rate; default from the step counts
+	Bootstrap          Bootstrap
+}
+
+func (c AnalysisConfig) withDefaults() AnalysisConfig {
+	if len(c.ReturnPeriods) == 0 {
+		c.ReturnPeriods = []float64{1, 5, 10, 25, 50, 100}
+	}
+	if !(c.TargetPeaksPerYear > 0) {
+		c.TargetPeaksPerYear = 3
+	}
+	if c.MinYears <= 0 {
+		c.MinYears = 10
+	}
+	if c.MinPeaks <= 0 {
+		c.MinPeaks = 20
+	}
+	if c.ShapeMin == 0 && c.ShapeMax == 0 {
+		c.ShapeMin, c.ShapeMax = -0.5, 0.5
+	}
+	if !(c.MinYearCoverage > 0) {
+		c.MinYearCoverage = 0.8
+	}
+	return c
+}
+
+// Flag is a bitmask of fit-quality flags; a flagged fit still reports what it has.
+type Flag uint32
+
+const (
+	FlagFewYears            Flag = 1 << iota // fewer complete years than MinYears
+	FlagFewPeaks                             // fewer exceedances than MinPeaks
+	FlagShapeImplausible                     // shape outside [ShapeMin, ShapeMax]
+	FlagNoConvergence                        // the optimiser did not converge
+	FlagSingularInformation                  // no covariance: observed information not positive definite
+	FlagNoFit                                // too few values to fit at all
+	FlagIncompleteYears                      // some years left out of the annual maxima for low coverage
+	FlagPeaksTruncated                       // peaks above the threshold were dropped by MaxPeaksPerYear
+	FlagPeriodOutsideModel                   // some return period has no level (GEV: T <= 1 y; GPD: below threshold)
+)
+
+var flagNames = []string{"few_years", "few_peaks", "shape_implausible", "no_convergence",
+	"singular_information", "no_fit", "incomplete_years", "peaks_truncated", "period_outside_model"}
+
+// Names returns the names of the set flags, in bit order.
+func (f Flag) Names() []string {
+	var out []string
+	for i, n := range flagNames {
+		if f&(1<<i) != 0 {
+			out = append(out, n)
+		}
+	}
+	return out
+}
+
+// Level is one return level.
+type Level struct {
+	PeriodYears float64
+	Hm0         float64 // m; NaN if outside the model
+	Lower       float64 // 95% delta-method interval, m
+	Upper       float64
+	BootLower   float64 // 95% parametric-bootstrap percentile interval, m (NaN if not asked)
+	BootUpper   float64
+	Te          float64 // associated energy period, s (see Association)
+	Tp          float64 // associated peak period, s
+}
+
+// MethodResult is one method's fit and levels. For the GPD, Loc holds the
+// threshold and StdErr[0] is NaN.
+type MethodResult struct {
+	Method       string // "gev_annual_maxima" or "gpd_storm_peaks"
+	Loc          float64
+	Scale        float64
+	Shape        float64
+	StdErr       [3]float64
+	LogLik       float64
+	Converged    bool
+	N            int     // maxima or exceedances used
+	PeaksPerYear float64 // GPD: exceedances per year
+	Levels       []Level
+	BootFailed   int // bootstrap resamples whose fit failed (left out)
+	Flags        Flag
+}
+
+// Association is the fitted relation of the periods to Hm0 over the largest
+// storm peaks: T = exp(A + B ln Hm0), by least squares of ln T on ln Hm0.
+type Association struct {
+	TeA, TeB float64
+	TpA, TpB float64
+	N        int // peaks used
+}
+
+// Result is everything Analyse reports for one cell.
+type Result struct {
+	RecordYears  float64 // record length used for the peak rate
+	Years        int     // complete years whose maxima entered the GEV fit
+	Threshold    float64 // m
+	PeaksPerYear float64 // exceedances of the threshold per year
+	GEV          MethodResult
+	GPD          MethodResult
+	GEVFit       GEVFit
+	GPDFit       GPDFit
+	Association  Association
+	Flags        Flag // union of both methods' flags
+	Caution      string
+}
+
+// Analyse fits both methods to a Collector's maxima and peaks and reports
+// return levels with intervals, associated periods and flags. It never fails:
+// problems are flags.
+func Analyse(c *Collector, cfg AnalysisConfig) Result {
+	cfg = cfg.withDefaults()
+	res := Result{Caution: Caution}
+
+	// Annual maxima of sufficiently covered years.
+	years := c.Years()
+	var full int64
+	var valid int64
+	for _, y := range years {
+		full = max(full, y.Steps)
+		valid += y.Valid
+	}
+	am := c.AnnualMaxima()
+	var amx []float64
+	var incomplete bool
+	cov := map[int]int64{}
+	for _, y := range years {
+		cov[y.Year] = y.Valid
+	}
+	for _, m := range am {
+		if float64(cov[m.Year]) >= cfg.MinYearCoverage*float64(full) {
+			amx = append(amx, m.Hm0)
+		} else {
+			incomplete = true
+		}
+	}
+	res.Years = len(amx)
+	res.RecordYears = cfg.RecordYears
+	if !(res.RecordYears > 0) && full > 0 {
+		res.RecordYears = float64(valid) / float64(full)
+	}
+
+	peaks := c.Peaks()
+	res.Threshold = chooseThreshold(peaks, cfg, res.RecordYears)
+	var px []float64
+	var exc []Maximum
+	for _, p := range peaks {
+		if p.Hm0 > res.Threshold {
+			px = append(px, p.Hm0)
+			exc = append(exc, p)
+		}
+	}
+	if res.RecordYears > 0 {
+		res.PeaksPerYear = float64(len(px)) / res.RecordYears
+	}
+	assocSet := exc
+	if len(assocSet) < 5 {
+		assocSet = am
+	}
+	res.Association = associate(assocSet)
+
+	// GEV on annual maxima.
+	g := MethodResult{Method: "gev_annual_maxima"}
+	if incomplete {
+		g.Flags |= FlagIncompleteYears
+	}
+	if len(amx) < cfg.MinYears {
+		g.Flags |= FlagFewYears
+	}
+	gf, err := FitGEV(amx)
+	res.GEVFit = gf
+	g.N = gf.N
+	if err != nil {
+		g.Flags |= FlagNoFit
+		g.Loc, g.Scale, g.Shape, g.LogLik = math.NaN(), math.NaN(), math.NaN(), math.NaN()
+		g.StdErr = [3]float64{math.NaN(), math.NaN(), math.NaN()}
+	} else {
+		g.Loc, g.Scale, g.Shape, g.StdErr, g.LogLik, g.Converged = gf.Loc, gf.Scale, gf.Shape, gf.StdErr, gf.LogLik, gf.Converged
+		g.Flags |= fitFlags(gf.Converged, gf.InfoOK, gf.Shape, cfg)
+	}
+	for _, T := range cfg.ReturnPeriods {
+		lv := Level{PeriodYears: T, Hm0: math.NaN(), Lower: math.NaN(), Upper: math.NaN(), BootLower: math.NaN(), BootUpper: math.NaN()}
+		if err == nil {
+			lv.Hm0, lv.Lower, lv.Upper = gf.ReturnLevel(T)
+		}
+		if math.IsNaN(lv.Hm0) && err == nil {
+			g.Flags |= FlagPeriodOutsideModel
+		}
+		g.Levels = append(g.Levels, lv)
+	}
+	if err == nil && cfg.Bootstrap.N > 0 {
+		g.BootFailed = bootstrapGEV(gf, cfg, g.Levels)
+	}
+
+	// GPD on storm peaks above the threshold.
+	p := MethodResult{Method: "gpd_storm_peaks", Loc: res.Threshold, PeaksPerYear: res.PeaksPerYear}
+	if len(px) < cfg.MinPeaks {
+		p.Flags |= FlagFewPeaks
+	}
+	if res.Years < cfg.MinYears && res.RecordYears < float64(cfg.MinYears) {
+		p.Flags |= FlagFewYears
+	}
+	for _, y := range years {
+		if y.DroppedPeaks > 0 && y.DroppedMaxHm0 > res.Threshold {
+			p.Flags |= FlagPeaksTruncated
+		}
+	}
+	pf, perr := FitGPD(px, res.Threshold, res.PeaksPerYear)
+	res.GPDFit = pf
+	p.N = pf.N
+	p.StdErr = [3]float64{math.NaN(), math.NaN(), math.NaN()}
+	if perr != nil {
+		p.Flags |= FlagNoFit
+		p.Scale, p.Shape, p.LogLik = math.NaN(), math.NaN(), math.NaN()
+	} else {
+		p.Scale, p.Shape, p.LogLik, p.Converged = pf.Scale, pf.Shape, pf.LogLik, pf.Converged
+		p.StdErr[1], p.StdErr[2] = pf.StdErr[0], pf.StdErr[1]
+		p.Flags |= fitFlags(pf.Converged, pf.InfoOK, pf.Shape, cfg)
+	}
+	for _, T := range cfg.ReturnPeriods {
+		lv := Level{PeriodYears: T, Hm0: math.NaN(), Lower: math.NaN(), Upper: math.NaN(), BootLower: math.NaN(), BootUpper: math.NaN()}
+		if perr == nil {
+			lv.Hm0, lv.Lower, lv.Upper = pf.ReturnLevel(T)
+		}
+		if math.IsNaN(lv.Hm0) && perr == nil {
+			p.Flags |= FlagPeriodOutsideModel
+		}
+		p.Levels = append(p.Levels, lv)
+	}
+	if perr == nil && cfg.Bootstrap.N > 0 {
+		p.BootFailed = bootstrapGPD(pf, res.RecordYears, cfg, p.Levels)
+	}
+
+	for _, m := range []*MethodResult{&g, &p} {
+		for i := range m.Levels {
+			m.Levels[i].Te = res.Association.Te(m.Levels[i].Hm0)
+			m.Levels[i].Tp = res.Association.Tp(m.Levels[i].Hm0)
+		}
+	}
+	res.GEV, res.GPD = g, p
+	res.Flags = g.Flags | p.Flags
+	return res
+}
+
+func fitFlags(converged, infoOK bool, shape float64, cfg AnalysisConfig) Flag {
+	var f Flag
+	if !converged {
+		f |= FlagNoConvergence
+	}
+	if !infoOK {
+		f |= FlagSingularInformation
+	}
+	if !(shape >= cfg.ShapeMin && shape <= cfg.ShapeMax) {
+		f |= FlagShapeImplausible
+	}
+	return f
+}
+
+// chooseThreshold applies the threshold rule. For ThresholdPeaksPerYear with
+// k = round(TargetPeaksPerYear * years) it returns the (k+1)-th largest storm
+// peak, so that (without ties) exactly k peaks exceed it; with k+1 or fewer
+// peaks it returns the smallest peak.
+func chooseThreshold(peaks []Maximum, cfg AnalysisConfig, years float64) float64 {
+	if cfg.Threshold == ThresholdHm0 {
+		return cfg.ThresholdValue
+	}
+	if len(peaks) == 0 {
+		return math.NaN()
+	}
+	v := make([]float64, len(peaks))
+	for i, p := range peaks {
+		v[i] = p.Hm0
+	}
+	sort.Sort(sort.Reverse(sort.Float64Slice(v)))
+	k := int(math.Round(cfg.TargetPeaksPerYear * years))
+	k = max(1, min(k, len(v)-1))
+	return v[k]
+}
+
+// associate fits ln Te = A + B ln Hm0 (and the same for Tp) by ordinary least
+// squares (gonum stat.LinearRegression) over the given storm peaks, skipping
+// steps without a positive period. Evaluated at a return level, exp(A + B ln H)
+// is the median period given Hm0 = H if ln T given ln Hm0 is normal with a
+// linear mean: the conditional model of a log-normal wave period (common
+// practice in metocean joint descriptions of Hm0 and period). With fewer than
+// 3 usable peaks, or no spread in Hm0, B = 0 and exp(A) is the geometric mean.
+func associate(set []Maximum) Association {
+	fit := func(get func(Maximum) float64) (a, b float64, n int) {
+		var x, y []float64
+		for _, m := range set {
+			t := get(m)
+			if t > 0 && m.Hm0 > 0 {
+				x = append(x, math.Log(m.Hm0))
+				y = append(y, math.Log(t))
+			}
+		}
+		if len(x) == 0 {
+			return math.NaN(), math.NaN(), 0
+		}
+		if len(x) < 3 || stat.Variance(x, nil) == 0 {
+			return stat.Mean(y, nil), 0, len(x)
+		}
+		a, b = stat.LinearRegression(x, y, nil, false)
+		return a, b, len(x)
+	}
+	var as Association
+	as.TeA, as.TeB, as.N = fit(func(m Maximum) float64 { return m.Te })
+	as.TpA, as.TpB, _ = fit(func(m Maximum) float64 { return m.Tp })
+	return as
+}
+
+// Te returns the associated energy period exp(TeA + TeB ln hm0) (see associate).
+func (a Association) Te(hm0 float64) float64 { return math.Exp(a.TeA + a.TeB*math.Log(hm0)) }
+
+// Tp returns the associated peak period exp(TpA + TpB ln hm0).
+func (a Association) Tp(hm0 float64) float64 { return math.Exp(a.TpA + a.TpB*math.Log(hm0)) }
+
+// percentile95 fills the 2.5% and 97.5% points of each level's bootstrap sample
+// (gonum stat.Quantile, empirical definition) into levels.
+func percentile95(samples [][]float64, levels []Level) {
+	for i := range levels {
+		s := samples[i]
+		if len(s) < 2 {
+			continue
+		}
+		sort.Float64s(s)
+		levels[i].BootLower = stat.Quantile(0.025, stat.Empirical, s, nil)
+		levels[i].BootUpper = stat.Quantile(0.975, stat.Empirical, s, nil)
+	}
+}
+
+// bootstrapGEV draws cfg.Bootstrap.N samples of size N from the fitted GEV
+// (inverse-CDF sampling with a PCG source seeded by Seed), refits each and
+// takes percentile intervals of the return levels. Returns the failed refits.
+func bootstrapGEV(f GEVFit, cfg AnalysisConfig, levels []Level) int {
+	r := rand.New(rand.NewPCG(cfg.Bootstrap.Seed, 0x9e3779b97f4a7c15))
+	samples := make([][]float64, len(levels))
+	x := make([]float64, f.N)
+	failed := 0
+	for b := 0; b < cfg.Bootstrap.N; b++ {
+		for i := range x {
+			x[i] = f.GEV.Quantile(openUnit(r))
+		}
+		bf, err := FitGEV(x)
+		if err != nil || !bf.Converged {
+			failed++
+			continue
+		}
+		for i, lv := range levels {
+			z, _ := bf.GEV.ReturnLevel(lv.PeriodYears)
+			if !math.IsNaN(z) {
+				samples[i] = append(samples[i], z)
+			}
+		}
+	}
+	percentile95(samples, levels)
+	return failed
+}
+
+// bootstrapGPD is bootstrapGEV for the GPD; each resample also draws its
+// number of exceedances from a Poisson law of mean lambda*years (gonum distuv),
+// so the rate uncertainty enters the intervals.
+func bootstrapGPD(f GPDFit, years float64, cfg AnalysisConfig, levels []Level) int {
+	r := rand.New(rand.NewPCG(cfg.Bootstrap.Seed, 0x6a09e667f3bcc909))
+	pois := distuv.Poisson{Lambda: f.PeaksPerYear * years, Src: r}
+	samples := make([][]float64, len(levels))
+	failed := 0
+	for b := 0; b < cfg.Bootstrap.N; b++ {
+		n := int(pois.Rand())
+		x := make([]float64, n)
+		for i := range x {
+			x[i] = f.GPD.Quantile(openUnit(r))
+		}
+		bf, err := FitGPD(x, f.Threshold, float64(n)/years)
+		if err != nil || !bf.Converged {
+			failed++
+			continue
+		}
+		for i, lv := range levels {
+			z, _ := bf.GPD.ReturnLevel(lv.PeriodYears, bf.PeaksPerYear)
+			if !math.IsNaN(z) {
+				samples[i] = append(samples[i], z)
+			}
+		}
+	}
+	percentile95(samples, levels)
+	return failed
+}
+
+// openUnit returns a uniform variate in (0, 1).
+func openUnit(r *rand.Rand) float64 {
+	for {
+		if u := r.Float64(); u > 0 {
+			return u
+		}
+	}
+}
