@@ -2,6 +2,7 @@ package extremes
 
 import (
 	"bufio"
+	"fmt"
 	"math"
 	"os"
 	"strconv"
@@ -46,3 +47,5 @@ func near(t *testing.T, what string, got, want, tol float64) {
 		t.Errorf("%s = %.6g, want %.6g +- %.3g", what, got, want, tol)
 	}
 }
+
+func sprintf(format string, a ...any) string { return fmt.Sprintf(format, a...) }

@@ -1,0 +1,123 @@
+package extremes
+
+import (
+	"math"
+	"math/rand/v2"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+// streamKnown feeds a Collector with an invented, synthetic record of daily steps
+// (360-day toy calendar) whose annual maxima are draws from a known GEV and whose
+// storm Te follows Te = 4.5 sqrt(Hm0) exactly; background steps stay small.
+func streamKnown(years int, seed uint64) (*Collector, []float64) {
+	truth := GEV{Loc: 6, Scale: 1, Shape: 0}
+	r := rand.New(rand.NewPCG(seed, 3))
+	c := NewCollector(CollectorConfig{})
+	var maxima []float64
+	h := 0.0
+	for y := 0; y < years; y++ {
+		peakDay := r.IntN(360)
+		am := truth.Quantile(openUnit(r))
+		maxima = append(maxima, am)
+		for d := 0; d < 360; d++ {
+			v := 1 + 0.5*r.Float64()
+			if d%10 == 5 { // a storm every 10 days, below the annual maximum
+				v = 1.5 + 0.9*(am-1.5)*r.Float64()
+			}
+			if d == peakDay {
+				v = am
+			}
+			c.Add(2000+y, d/30+1, h, v, 4.5*math.Sqrt(v), 5.2*math.Sqrt(v))
+			h += 24
+		}
+	}
+	return c, maxima
+}
+
+func TestAnalyseEndToEnd(t *testing.T) {
+	c, maxima := streamKnown(40, 5)
+	res := Analyse(c, AnalysisConfig{Bootstrap: Bootstrap{N: 200, Seed: 11}})
+	if !strings.Contains(res.Caution, "not design values") {
+		t.Error("caution missing")
+	}
+	if res.Years != 40 || math.Abs(res.RecordYears-40) > 1e-9 {
+		t.Fatalf("years %d / record %.3f, want 40", res.Years, res.RecordYears)
+	}
+	// The GEV of Analyse is the ML fit of exactly the streamed annual maxima.
+	direct, _ := FitGEV(maxima)
+	if res.GEV.Loc != direct.Loc || res.GEV.Shape != direct.Shape {
+		t.Errorf("Analyse GEV %+v differs from FitGEV of the annual maxima %+v", res.GEV, direct.GEV)
+	}
+	// Threshold rule: about 3 exceedances per year (k = 120 of the peaks).
+	if res.GPD.N != 120 || math.Abs(res.PeaksPerYear-3) > 1e-12 {
+		t.Errorf("GPD uses %d peaks (%.3f per year), want 120 (3 per year)", res.GPD.N, res.PeaksPerYear)
+	}
+	// Associated periods: the synthetic storms follow Te = 4.5 sqrt(Hm0) exactly, so
+	// the regression must recover it (invented data: checks the method, not a value).
+	for _, m := range []MethodResult{res.GEV, res.GPD} {
+		if len(m.Levels) != 6 {
+			t.Fatalf("%s: %d levels, want 6", m.Method, len(m.Levels))
+		}
+		for _, lv := range m.Levels {
+			if math.IsNaN(lv.Hm0) {
+				continue
+			}
+			near(t, m.Method+" Te", lv.Te, 4.5*math.Sqrt(lv.Hm0), 1e-9)
+			near(t, m.Method+" Tp", lv.Tp, 5.2*math.Sqrt(lv.Hm0), 1e-9)
+			if !(lv.Lower < lv.Hm0 && lv.Hm0 < lv.Upper) || !(lv.BootLower < lv.BootUpper) {
+				t.Errorf("%s T=%g: level %.3f, delta [%.3f, %.3f], bootstrap [%.3f, %.3f]", m.Method, lv.PeriodYears, lv.Hm0, lv.Lower, lv.Upper, lv.BootLower, lv.BootUpper)
+			}
+		}
+	}
+	// The GEV has no 1-year level from annual maxima: NaN and flagged.
+	if !math.IsNaN(res.GEV.Levels[0].Hm0) || res.GEV.Flags&FlagPeriodOutsideModel == 0 {
+		t.Error("GEV 1-year level should be NaN and flagged period_outside_model")
+	}
+	if res.GPD.Flags != 0 {
+		t.Errorf("GPD flags %v on a clean 40-year record", res.GPD.Flags.Names())
+	}
+	// Seeded bootstrap is reproducible.
+	again := Analyse(c, AnalysisConfig{Bootstrap: Bootstrap{N: 200, Seed: 11}})
+	if !reflect.DeepEqual(nanSafe(res), nanSafe(again)) {
+		t.Error("same seed, different result")
+	}
+	t.Logf("GEV %.3f %.3f %.3f; 100-y GEV %.2f [%.2f, %.2f] boot [%.2f, %.2f]; GPD u=%.2f 100-y %.2f [%.2f, %.2f]",
+		res.GEV.Loc, res.GEV.Scale, res.GEV.Shape, res.GEV.Levels[5].Hm0, res.GEV.Levels[5].Lower, res.GEV.Levels[5].Upper,
+		res.GEV.Levels[5].BootLower, res.GEV.Levels[5].BootUpper, res.Threshold, res.GPD.Levels[5].Hm0, res.GPD.Levels[5].Lower, res.GPD.Levels[5].Upper)
+}
+
+// nanSafe renders a result with NaNs comparable.
+func nanSafe(r Result) string { return strings.ReplaceAll(fmtAny(r), "NaN", "nan") }
+
+func fmtAny(v any) string { return strings.TrimSpace(sprintf("%+v", v)) }
+
+func TestAnalyseFlags(t *testing.T) {
+	c, _ := streamKnown(6, 9)
+	res := Analyse(c, AnalysisConfig{})
+	if res.GEV.Flags&FlagFewYears == 0 || res.GPD.Flags&FlagFewPeaks == 0 {
+		t.Errorf("6 years: flags GEV %v GPD %v, want few_years and few_peaks", res.GEV.Flags.Names(), res.GPD.Flags.Names())
+	}
+	empty := Analyse(NewCollector(CollectorConfig{}), AnalysisConfig{})
+	if empty.GEV.Flags&FlagNoFit == 0 || empty.GPD.Flags&FlagNoFit == 0 {
+		t.Errorf("empty collector: flags %v / %v, want no_fit", empty.GEV.Flags.Names(), empty.GPD.Flags.Names())
+	}
+	// A threshold below peaks that the per-year bound dropped is flagged.
+	small := NewCollector(CollectorConfig{MaxPeaksPerYear: 2})
+	h := 0.0
+	r := rand.New(rand.NewPCG(1, 1))
+	for y := 0; y < 12; y++ {
+		for d := 0; d < 360; d++ {
+			small.Add(2000+y, d/30+1, h, 1+3*r.Float64(), 8, 10)
+			h += 24
+		}
+	}
+	res = Analyse(small, AnalysisConfig{Threshold: ThresholdHm0, ThresholdValue: 1.5})
+	if res.GPD.Flags&FlagPeaksTruncated == 0 {
+		t.Errorf("threshold under dropped peaks not flagged: %v", res.GPD.Flags.Names())
+	}
+	if got := (FlagFewYears | FlagNoConvergence).Names(); len(got) != 2 || got[0] != "few_years" || got[1] != "no_convergence" {
+		t.Errorf("flag names %v", got)
+	}
+}
