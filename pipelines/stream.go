@@ -1,0 +1,229 @@
+package pipelines
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"sync"
+
+	"swellgrid/ingest"
+	"swellgrid/stats/climate"
+	"swellgrid/stats/extremes"
+	"swellgrid/stats/seastate"
+)
+
+// cell is the streaming state of one cell: everything needed for its results,
+// bounded in size by the number of years, never by the number of steps.
+type cell struct {
+	clim *climate.CellState
+	col  *extremes.Collector
+	kern *seastate.Kernel // spectral runs only
+	spec *seastate.RecordMeans // spectral runs only
+}
+
+// engine holds what every worker shares read-only during a pass.
+type engine struct {
+	cat      *ingest.Catalog
+	spec     *Spec
+	ccfg     *climate.Config
+	xcfg     extremes.CollectorConfig
+	layout   *seastate.Layout
+	consts   seastate.Consts
+	dtHours  float64
+	spectral bool
+}
+
+func newEngine(cat *ingest.Catalog, spec *Spec, ccfg *climate.Config) (*engine, error) {
+	e := &engine{cat: cat, spec: spec, ccfg: ccfg,
+		consts:  seastate.Consts{Rho: spec.Physics.Rho, G: spec.Physics.G},
+		dtHours: float64(cat.StepSeconds) / 3600,
+		xcfg:    extremes.CollectorConfig{YearStartMonth: spec.Extremes.YearStartMonth, SeparationHours: spec.Extremes.SeparationH},
+	}
+	if e.dtHours <= 0 {
+		e.dtHours = 1
+	}
+	if cat.Spectral != nil && (cat.Vars[ingest.Spectrum2D] != nil || cat.Vars[ingest.Spectrum1D] != nil) {
+		l, err := seastate.NewLayout(cat.Spectral.FreqHz, cat.Spectral.DirDeg)
+		if err != nil {
+			return nil, fmt.Errorf("spectral layout: %v", err)
+		}
+		e.layout, e.spectral = l, true
+	}
+	return e, nil
+}
+
+func (e *engine) newCell(id int) *cell {
+	c := &cell{clim: climate.NewCellState(e.ccfg), col: extremes.NewCollector(e.xcfg)}
+	if e.spectral {
+		c.kern = seastate.NewKernel(e.layout, e.cat.Depth[id], e.consts)
+		c.spec = &seastate.RecordMeans{}
+	}
+	return c
+}
+
+// stepTime is the calendar information of one time step, shared by all cells.
+type stepTime struct {
+	year, month int
+	hours       float64
+}
+
+// feed adds the block's steps of cells lo..hi-1 (canonical ids) to their
+// states. It is the hot path: one call per worker per block.
+func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi int) {
+	nc := b.NC()
+	var p seastate.Params
+	step := climate.Step{DtHours: e.dtHours}
+	hm0s, tes, tps, dirs := b.Bulk[ingest.Hm0], b.Bulk[ingest.Te], b.Bulk[ingest.Tp], b.Bulk[ingest.Dir]
+	if dirs == nil {
+		dirs = b.Bulk[ingest.DirPeak]
+	}
+	per := b.NF * b.ND
+	alpha := e.spec.Physics.TeOverTp
+	for id := lo; id < hi; id++ {
+		c := cells[id-b.C0]
+		if c == nil {
+			continue
+		}
+		k := id - b.C0
+		depth := e.cat.Depth[id]
+		for t := 0; t < b.NT; t++ {
+			st := times[t]
+			step.Year, step.Month, step.Hours = st.year, st.month, st.hours
+			i := t*nc + k
+			if e.spectral {
+				s := b.Spec[i*per : (i+1)*per]
+				if math.IsNaN(s[0]) {
+					step.J, step.Hm0, step.Te, step.Tp, step.DirDeg = math.NaN(), math.NaN(), math.NaN(), math.NaN(), math.NaN()
+				} else {
+					c.kern.Params(s, &p)
+					c.spec.Add(&p)
+					if p.Valid {
+						step.J, step.Hm0, step.Te, step.Tp, step.DirDeg = p.J, p.Hm0, p.Te, p.Tp, p.DirMaxPowerDeg
+					} else {
+						step.J, step.Hm0, step.Te, step.Tp, step.DirDeg = math.NaN(), math.NaN(), math.NaN(), math.NaN(), math.NaN()
+					}
+				}
+			} else {
+				hm0 := hm0s[i]
+				te, tp := math.NaN(), math.NaN()
+				if tps != nil {
+					tp = tps[i]
+				}
+				if tes != nil {
+					te = tes[i]
+				} else {
+					te = seastate.TeFromTp(tp, alpha)
+				}
+				step.Hm0, step.Te, step.Tp = hm0, te, tp
+				step.DirDeg = math.NaN()
+				if dirs != nil {
+					step.DirDeg = dirs[i]
+				}
+				if hm0 >= 0 && te > 0 {
+					if math.IsInf(depth, 1) || math.IsNaN(depth) {
+						step.J = seastate.BulkPowerDeep(hm0, te, e.consts)
+					} else {
+						step.J = seastate.BulkPowerFinite(hm0, te, depth, e.consts)
+					}
+				} else {
+					step.J = math.NaN()
+				}
+			}
+			c.clim.Add(&step)
+			c.col.Add(step.Year, step.Month, step.Hours, step.Hm0, step.Te, step.Tp)
+		}
+	}
+}
+
+// blockTimes converts a block's stamps to calendar fields once per block.
+func (e *engine) blockTimes(b *ingest.Block) []stepTime {
+	out := make([]stepTime, b.NT)
+	for t, s := range b.Times {
+		d := e.cat.Date(s)
+		out[t] = stepTime{year: d.Year, month: d.Month, hours: s.Hours()}
+	}
+	return out
+}
+
+// streamPass reads the record for cells c0..c1-1 and feeds their states with
+// workers goroutines, each owning a fixed sub-range of cells (no locks on the
+// hot path). After the last block of each file it calls fileDone with the
+// index of the next file to read, while all workers are idle.
+func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, cells []*cell,
+	fileDone func(next int) error, progress func(steps int)) error {
+	ctx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	blocks := make(chan *ingest.Block, 2)
+	readErr := make(chan error, 1)
+	go func() {
+		readErr <- e.cat.Read(ctx, ingest.ReadRange{C0: c0, C1: c1, MaxSteps: e.spec.Run.BlockSteps, FromFile: fromFile}, blocks)
+		close(blocks)
+	}()
+	if workers < 1 {
+		workers = 1
+	}
+	n := c1 - c0
+	if workers > n {
+		workers = n
+	}
+	type job struct {
+		b     *ingest.Block
+		times []stepTime
+		wg    *sync.WaitGroup
+	}
+	chans := make([]chan job, workers)
+	var all sync.WaitGroup
+	for w := 0; w < workers; w++ {
+		chans[w] = make(chan job, 1)
+		lo, hi := c0+n*w/workers, c0+n*(w+1)/workers
+		all.Add(1)
+		go func(ch chan job) {
+			defer all.Done()
+			for j := range ch {
+				e.feed(j.b, j.times, cells, lo, hi)
+				j.wg.Done()
+			}
+		}(chans[w])
+	}
+	stop := func() {
+		for _, ch := range chans {
+			close(ch)
+		}
+		all.Wait()
+	}
+	for b := range blocks {
+		times := e.blockTimes(b)
+		wg := &sync.WaitGroup{}
+		wg.Add(workers)
+		for _, ch := range chans {
+			ch <- job{b, times, wg}
+		}
+		if b.LastOfFile {
+			wg.Wait()
+			if progress != nil {
+				progress(0)
+			}
+			if err := ctx.Err(); err != nil {
+				stop()
+				return err
+			}
+			if fileDone != nil {
+				if err := fileDone(b.File + 1); err != nil {
+					cancel()
+					for range blocks {
+					}
+					stop()
+					return err
+				}
+			}
+		}
+		if progress != nil {
+			progress(b.NT)
+		}
+	}
+	stop()
+	if err := <-readErr; err != nil {
+		return err
+	}
+	return ctx.Err()
+}
