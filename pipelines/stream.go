@@ -17,7 +17,7 @@ import (
 type cell struct {
 	clim *climate.CellState
 	col  *extremes.Collector
-	kern *seastate.Kernel // spectral runs only
+	kern *seastate.Kernel      // spectral runs only
 	spec *seastate.RecordMeans // spectral runs only
 }
 

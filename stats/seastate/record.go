@@ -14,12 +14,12 @@ import (
 // plain float64 additions, so a resumed record (unmarshal, then go on adding)
 // gives the same bits as an uninterrupted one.
 type RecordMeans struct {
-	n              float64 // steps with a valid spectrum
-	sumEps0        float64
-	nEps0          float64
-	sumJ, sumJD    float64 // sum J, sum J * directionality (2-D only)
+	n                float64 // steps with a valid spectrum
+	sumEps0          float64
+	nEps0            float64
+	sumJ, sumJD      float64 // sum J, sum J * directionality (2-D only)
 	sumJSin, sumJCos float64
-	BadBins        int64 // negative or non-finite densities seen (clipped to 0)
+	BadBins          int64 // negative or non-finite densities seen (clipped to 0)
 }
 
 // Add takes one step's parameters.
