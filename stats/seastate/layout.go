@@ -79,7 +79,7 @@ func NewLayout(freqHz, dirDeg []float64) (*Layout, error) {
 	for r := 1; r < nd; r++ {
 		a, b := l.dOrder[r-1], l.dOrder[r]
 		if l.dir[a] == l.dir[b] {
-			return nil, fmt.Errorf("seastate: directions %d and %d are both %v deg (modulo 360); directions must be distinct", a, b, l.dir[a])
+			return nil, fmt.Errorf("seastate: directions %d and %d are both %v deg (modulo 360); directions must be distinct modulo 360", a, b, l.dir[a])
 		}
 	}
 	l.dth = make([]float64, nd)
