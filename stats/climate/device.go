@@ -1,0 +1,307 @@
+package climate
+
+import (
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+)
+
+// Lookup selects how a device's power is read from its matrix.
+type Lookup int
+
+const (
+	// BinLookup takes the power of the bin containing the sea state; bin
+	// edges lie half-way between neighbouring centres and the outer bins are
+	// as wide as their neighbour spacing. This is how a power matrix and a
+	// joint occurrence table are combined by the device-performance
+	// specification IEC TS 62600-100.
+	BinLookup Lookup = iota
+	// Bilinear interpolates linearly in Hm0 and in Te between the four
+	// surrounding bin centres; between an outer centre and the outer edge the
+	// edge value is held.
+	Bilinear
+)
+
+func (l Lookup) String() string {
+	switch l {
+	case BinLookup:
+		return "bin"
+	case Bilinear:
+		return "bilinear"
+	}
+	return fmt.Sprintf("Lookup(%d)", int(l))
+}
+
+// Device is a wave energy converter described by its power matrix: mean
+// electrical power (kW) per sea state, rows by Hm0 bin centre (m) and
+// columns by Te bin centre (s). Outside the matrix (beyond the outer bin
+// edges) the device produces nothing.
+type Device struct {
+	Name    string
+	Hm0M    []float64 // row centres, strictly increasing, at least 2
+	TeS     []float64 // column centres, strictly increasing, at least 2
+	PowerKW []float64 // len(Hm0M)*len(TeS), row-major: PowerKW[i*len(TeS)+j]
+	Lookup  Lookup
+
+	// set by prepare
+	rows, cols axis
+	ratedKW    float64
+}
+
+// RatedKW returns the rated power, taken as the largest entry of the matrix
+// (valid after Config.Validate).
+func (d *Device) RatedKW() float64 { return d.ratedKW }
+
+// axis is one side of a matrix: centres and bin edges, with a fast path for
+// evenly spaced centres.
+type axis struct {
+	c       []float64 // centres
+	e       []float64 // len(c)+1 edges
+	uniform bool
+	e0, inv float64 // first edge and 1/width when uniform
+}
+
+func newAxis(c []float64) axis {
+	n := len(c)
+	a := axis{c: c, e: make([]float64, n+1)}
+	a.e[0] = c[0] - (c[1]-c[0])/2
+	for i := 1; i < n; i++ {
+		a.e[i] = (c[i-1] + c[i]) / 2
+	}
+	a.e[n] = c[n-1] + (c[n-1]-c[n-2])/2
+	w := c[1] - c[0]
+	a.uniform = true
+	for i := 2; i < n; i++ {
+		if math.Abs((c[i]-c[i-1])-w) > 1e-9*math.Max(1, math.Abs(w)) {
+			a.uniform = false
+			break
+		}
+	}
+	a.e0, a.inv = a.e[0], 1/w
+	return a
+}
+
+// bin returns the index of the bin holding x, -1 below the first edge and
+// len(c) at or above the last edge.
+func (a *axis) bin(x float64) int {
+	n := len(a.c)
+	if x < a.e[0] {
+		return -1
+	}
+	if x >= a.e[n] {
+		return n
+	}
+	if a.uniform {
+		i := int((x - a.e0) * a.inv)
+		// guard against rounding at the edges
+		if i >= n {
+			i = n - 1
+		}
+		if x < a.e[i] && i > 0 {
+			i--
+		} else if i+1 < n && x >= a.e[i+1] {
+			i++
+		}
+		return i
+	}
+	// first inner edge above x is the bin index
+	lo, hi := 0, n-1 // search inner edges e[1..n-1]
+	for lo < hi {
+		m := int(uint(lo+hi) >> 1)
+		if a.e[m+1] > x {
+			hi = m
+		} else {
+			lo = m + 1
+		}
+	}
+	return lo
+}
+
+// interp returns the lower centre index k and weight t in [0,1] with
+// x ~ c[k] + t (c[k+1]-c[k]); inside the outer half-bins t is clamped.
+// Callers must have checked that x lies within the outer edges.
+func (a *axis) interp(x float64) (int, float64) {
+	n := len(a.c)
+	if x <= a.c[0] {
+		return 0, 0
+	}
+	if x >= a.c[n-1] {
+		return n - 2, 1
+	}
+	k := sort.SearchFloat64s(a.c, x) - 1 // c[k] < x <= c[k+1]
+	if k < 0 {
+		k = 0
+	}
+	return k, (x - a.c[k]) / (a.c[k+1] - a.c[k])
+}
+
+func (d *Device) prepare() error {
+	if strings.TrimSpace(d.Name) == "" {
+		return errors.New("device has no name: give it one (it names its output columns)")
+	}
+	where := fmt.Sprintf("device %q", d.Name)
+	if len(d.Hm0M) < 2 || len(d.TeS) < 2 {
+		return fmt.Errorf("%s: power matrix needs at least 2 Hm0 rows and 2 Te columns (has %d x %d)", where, len(d.Hm0M), len(d.TeS))
+	}
+	if err := increasing(d.Hm0M, where, "Hm0 row centre"); err != nil {
+		return err
+	}
+	if err := increasing(d.TeS, where, "Te column centre"); err != nil {
+		return err
+	}
+	if len(d.PowerKW) != len(d.Hm0M)*len(d.TeS) {
+		return fmt.Errorf("%s: %d power values for %d x %d bins", where, len(d.PowerKW), len(d.Hm0M), len(d.TeS))
+	}
+	if d.Lookup != BinLookup && d.Lookup != Bilinear {
+		return fmt.Errorf("%s: unknown lookup %d (use BinLookup or Bilinear)", where, int(d.Lookup))
+	}
+	d.ratedKW = 0
+	for k, p := range d.PowerKW {
+		if !(p >= 0) || p > maxDevicePowerKW {
+			return fmt.Errorf("%s: power at Hm0 row %d, Te column %d is %g kW: must be finite, >= 0 and below %g",
+				where, k/len(d.TeS)+1, k%len(d.TeS)+1, p, float64(maxDevicePowerKW))
+		}
+		d.ratedKW = math.Max(d.ratedKW, p)
+	}
+	if d.ratedKW == 0 {
+		return fmt.Errorf("%s: every power in the matrix is zero", where)
+	}
+	d.rows, d.cols = newAxis(d.Hm0M), newAxis(d.TeS)
+	return nil
+}
+
+func increasing(v []float64, where, what string) error {
+	for i, x := range v {
+		if math.IsNaN(x) || math.IsInf(x, 0) || x < 0 {
+			return fmt.Errorf("%s: %s %d is %g: must be finite and >= 0", where, what, i+1, x)
+		}
+		if i > 0 && !(x > v[i-1]) {
+			return fmt.Errorf("%s: %s %d (%g) is not greater than the one before (%g): centres must increase", where, what, i+1, x, v[i-1])
+		}
+	}
+	return nil
+}
+
+// device operating classes of one sea state
+const (
+	devInside = iota
+	devBelowCutIn
+	devOutside
+)
+
+// power returns the device power (kW) in sea state (hm0, te) and its class.
+// Below the lowest Hm0 edge the device is below cut-in; beyond the other
+// edges it is outside its matrix (shut down, e.g. survival mode): zero power.
+func (d *Device) power(hm0, te float64) (float64, int) {
+	i := d.rows.bin(hm0)
+	if i < 0 {
+		return 0, devBelowCutIn
+	}
+	j := d.cols.bin(te)
+	if i >= len(d.Hm0M) || j < 0 || j >= len(d.TeS) {
+		return 0, devOutside
+	}
+	nc := len(d.TeS)
+	var p float64
+	if d.Lookup == BinLookup {
+		p = d.PowerKW[i*nc+j]
+	} else {
+		p = bilinear(d, hm0, te)
+	}
+	if p == 0 {
+		return 0, devBelowCutIn
+	}
+	return p, devInside
+}
+
+// bilinear interpolates the power matrix at (hm0, te):
+//
+//	P = (1-u)(1-t) P[k][l] + (1-u) t P[k][l+1] + u (1-t) P[k+1][l] + u t P[k+1][l+1]
+//
+// with u, t the fractional positions between the surrounding Hm0 and Te
+// centres (textbook bilinear interpolation; common practice for power
+// matrices, which IEC TS 62600-100 defines by bins only).
+func bilinear(d *Device, hm0, te float64) float64 {
+	k, u := d.rows.interp(hm0)
+	l, t := d.cols.interp(te)
+	nc := len(d.TeS)
+	p00, p01 := d.PowerKW[k*nc+l], d.PowerKW[k*nc+l+1]
+	p10, p11 := d.PowerKW[(k+1)*nc+l], d.PowerKW[(k+1)*nc+l+1]
+	return (1-u)*((1-t)*p00+t*p01) + u*((1-t)*p10+t*p11)
+}
+
+// maxDevicePowerKW bounds matrix entries so that the fixed-point energy sums
+// cannot overflow.
+const maxDevicePowerKW = 1 << 30
+
+// ReadPowerMatrixCSV reads a power matrix in swellgrid's CSV layout:
+//
+//	# comment lines start with '#'
+//	hm0_m\te_s, 5.5, 6.5, 7.5      <- first cell is a free label; then Te centres (s)
+//	0.75,        0,  12,  20       <- Hm0 centre (m), then power (kW) per Te column
+//	1.25,       18,  40,  55
+//
+// Every row must have as many cells as the header; centres must increase;
+// powers must be numbers >= 0 (write 0 where the device does not run). The
+// returned device uses BinLookup; set Lookup to Bilinear for interpolation.
+// name names the device (and is used in error messages).
+func ReadPowerMatrixCSV(r io.Reader, name string) (*Device, error) {
+	cr := csv.NewReader(r)
+	cr.FieldsPerRecord = -1
+	cr.Comment = '#'
+	cr.TrimLeadingSpace = true
+	recs, err := cr.ReadAll()
+	if err != nil {
+		return nil, fmt.Errorf("power matrix %q: %w", name, err)
+	}
+	if len(recs) < 3 {
+		return nil, fmt.Errorf("power matrix %q: need a header row and at least 2 Hm0 rows (found %d rows)", name, len(recs))
+	}
+	hdr := recs[0]
+	if len(hdr) < 3 {
+		return nil, fmt.Errorf("power matrix %q: header row has %d cells: need a label and at least 2 Te centres", name, len(hdr))
+	}
+	num := func(s string, row, col int, what string) (float64, error) {
+		v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
+		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+			return 0, fmt.Errorf("power matrix %q: row %d, column %d (%s): %q is not a finite number", name, row, col, what, s)
+		}
+		return v, nil
+	}
+	d := &Device{Name: name}
+	for j := 1; j < len(hdr); j++ {
+		v, err := num(hdr[j], 1, j+1, "Te centre")
+		if err != nil {
+			return nil, err
+		}
+		d.TeS = append(d.TeS, v)
+	}
+	for i, rec := range recs[1:] {
+		row := i + 2
+		if len(rec) != len(hdr) {
+			return nil, fmt.Errorf("power matrix %q: row %d has %d cells, the header has %d: every row needs an Hm0 centre and one power per Te column",
+				name, row, len(rec), len(hdr))
+		}
+		h, err := num(rec[0], row, 1, "Hm0 centre")
+		if err != nil {
+			return nil, err
+		}
+		d.Hm0M = append(d.Hm0M, h)
+		for j := 1; j < len(rec); j++ {
+			p, err := num(rec[j], row, j+1, fmt.Sprintf("power at Te %g s", d.TeS[j-1]))
+			if err != nil {
+				return nil, err
+			}
+			d.PowerKW = append(d.PowerKW, p)
+		}
+	}
+	if err := d.prepare(); err != nil {
+		return nil, fmt.Errorf("power matrix %q: %w", name, err)
+	}
+	return d, nil
+}

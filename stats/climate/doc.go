@@ -1,0 +1,33 @@
+// Package climate keeps the resource climate of one grid cell as a bounded,
+// exactly mergeable state fed one sea state at a time: mean, standard
+// deviation, coefficient of variation, extremes and histogram percentiles of
+// wave power J and Hm0; means of Te and Tp and the circular mean direction;
+// monthly, seasonal and annual means with the monthly and seasonal
+// variability indices and the inter-annual coefficient of variation, with
+// years and months below a coverage threshold excluded and flagged; the joint
+// occurrence of Hm0 and Te with mean power per bin; exceedance curves; weather
+// windows per Hm0 limit, minimum duration and calendar month; and the yield
+// of wave energy devices from their power matrices.
+//
+// It knows nothing of files, NetCDF, grids or output tables: the caller
+// feeds Step values (already unpacked, in physical units, with the data's
+// own calendar fields and a continuous time axis) and reads plain Go values
+// back. It does not compute J from spectra (stats/seastate does).
+//
+// Exactness. Every sum is an integer of fixed-point quanta (see fixed.go):
+// merging the states of two parts of a record gives, bit for bit, the state
+// of the whole record; MarshalBinary then gives the same bytes. Weather
+// windows are exact across block boundaries and merges: a state carries the
+// calm run open at each end of its record and Merge joins them.
+//
+// Size. A state with the default Config takes 10 663 bytes per cell plus 288
+// bytes per cell per year of record (the year-month sums); each device adds
+// 80 bytes, each window limit x duration 96 bytes and each limit 65 bytes. It
+// does not grow with the number of time steps. Config.StateBytes gives the
+// figure for any Config; the histograms (3.5 KB) and the scatter table
+// (5.3 KB) dominate and shrink with coarser settings.
+//
+// Results for design. The figures are screening estimates from a model
+// hindcast. They do not replace site measurements, the applicable design
+// standards, local codes or review by qualified engineers.
+package climate

@@ -1,0 +1,170 @@
+package climate
+
+import (
+	"math"
+	"math/big"
+)
+
+// This file holds every formula of the package, each in one function whose
+// comment gives the formula and its source.
+
+// weightedMean returns the time-weighted mean
+//
+//	mean = sum(w_i x_i) / sum(w_i)
+//
+// from the integer sums s1 = sum(w_i q_i) (q_i = x_i * scale, rounded) and
+// w = sum(w_i), in units of x (definition of the weighted arithmetic mean,
+// e.g. numpy.average with weights). NaN when w = 0.
+func weightedMean(s1 uint64, w uint64, scale float64) float64 {
+	if w == 0 {
+		return math.NaN()
+	}
+	return float64(s1) / float64(w) / scale
+}
+
+// weightedStd returns the time-weighted population standard deviation
+//
+//	var = sum(w_i (x_i - mean)^2) / sum(w_i) = (W S2 - S1^2) / W^2
+//
+// with W = sum w_i, S1 = sum w_i q_i, S2 = sum w_i q_i^2 (the ddof = 0
+// definition, numpy.std / numpy.average). The numerator is formed exactly in
+// big integers, so there is no cancellation however large the mean.
+func weightedStd(s1 uint64, s2 u128, w uint64, scale float64) float64 {
+	if w == 0 {
+		return math.NaN()
+	}
+	W := new(big.Int).SetUint64(w)
+	S1 := new(big.Int).SetUint64(s1)
+	num := new(big.Int).Mul(W, s2.big())
+	num.Sub(num, new(big.Int).Mul(S1, S1))
+	if num.Sign() <= 0 {
+		return 0
+	}
+	den := new(big.Int).Mul(W, W)
+	v, _ := new(big.Float).SetPrec(128).Quo(new(big.Float).SetInt(num), new(big.Float).SetInt(den)).Float64()
+	return math.Sqrt(v) / scale
+}
+
+// coefficientOfVariation returns CoV = std / mean (common practice; the
+// ratio used for the variability of wave power, e.g. Cornett 2008). NaN when
+// the mean is not positive.
+func coefficientOfVariation(std, mean float64) float64 {
+	if !(mean > 0) {
+		return math.NaN()
+	}
+	return std / mean
+}
+
+// circularMeanDeg returns the mean direction of angles theta_i (degrees) with
+// weights w_i,
+//
+//	theta_mean = atan2(sum w_i sin theta_i, sum w_i cos theta_i)
+//
+// in [0, 360), and the mean resultant length R = |sum w e^{i theta}| / sum w
+// in [0, 1] (Mardia & Jupp, Directional Statistics, 2000, section 2.2;
+// scipy.stats.circmean uses the same definition). The angle convention is
+// kept: nautical "coming from", clockwise from north, in and out.
+func circularMeanDeg(sumSin, sumCos int64, w uint64) (deg, r float64) {
+	if w == 0 {
+		return math.NaN(), math.NaN()
+	}
+	s, c := float64(sumSin)/qDir, float64(sumCos)/qDir
+	deg = math.Atan2(s, c) * 180 / math.Pi
+	if deg < 0 {
+		deg += 360
+	}
+	if deg >= 360 {
+		deg -= 360
+	}
+	return deg, math.Hypot(s, c) / float64(w)
+}
+
+// variabilityIndex returns
+//
+//	VI = (P_max - P_min) / P_year
+//
+// where P_max and P_min are the mean powers of the most and least energetic
+// month (monthly variability index, MVI) or season (seasonal variability
+// index, SVI) and P_year the annual mean power (Cornett, A. M., 2008, "A
+// global wave energy resource assessment", Proc. ISOPE; definition quoted
+// from memory).
+func variabilityIndex(pMax, pMin, pYear float64) float64 {
+	if !(pYear > 0) {
+		return math.NaN()
+	}
+	return (pMax - pMin) / pYear
+}
+
+// HoursPerYear is the year length used for annual energy: 365.25 days, as in
+// IEC TS 62600-100 (from memory).
+const HoursPerYear = 8766.0
+
+// annualEnergyMWh returns the mean annual energy production
+//
+//	AEP = P_mean * 8766 h / 1000   (MWh/yr, P_mean in kW)
+//
+// where P_mean = sum_ij P_ij f_ij is the mean power over the joint occurrence
+// f_ij of the sea states (IEC TS 62600-100, mean annual energy production
+// from a power matrix and a scatter diagram; from memory). Summing the
+// matrix power of every time step, weighted by its duration, is the same sum
+// taken one step at a time.
+func annualEnergyMWh(meanKW float64) float64 { return meanKW * HoursPerYear / 1000 }
+
+// capacityFactor returns CF = P_mean / P_rated (common practice).
+func capacityFactor(meanKW, ratedKW float64) float64 {
+	if !(ratedKW > 0) {
+		return math.NaN()
+	}
+	return meanKW / ratedKW
+}
+
+// histPercentile returns the p-th percentile (0..100) of a weighted
+// histogram: the value where the cumulative weight reaches p/100 of the
+// total, interpolated linearly inside the bin (uniform density within a
+// bin; the grouped-data percentile of descriptive statistics, common
+// practice). edges(i) gives bin i's lower and upper edge. The result is
+// clamped to the observed [lo, hi]. It is within one bin width of the sample
+// percentile.
+func histPercentile(counts []uint32, total uint64, p float64, edges func(int) (float64, float64), lo, hi float64) float64 {
+	if total == 0 {
+		return math.NaN()
+	}
+	target := p / 100 * float64(total)
+	var cum float64
+	v := hi
+	for i, c := range counts {
+		if c == 0 {
+			continue
+		}
+		next := cum + float64(c)
+		if next >= target {
+			a, b := edges(i)
+			if math.IsInf(b, 1) {
+				b = hi
+			}
+			v = a + (b-a)*(target-cum)/float64(c)
+			break
+		}
+		cum = next
+	}
+	return math.Min(math.Max(v, lo), hi)
+}
+
+// powerBinEdges returns the edges (kW/m) of bin i of the power histogram with
+// 2^bits bins per octave: bins 0..2^bits-1 split [0, 1) evenly, then octave
+// e (>= 0) holds bins [2^e (1 + k 2^-bits), 2^e (1 + (k+1) 2^-bits)). This
+// is the float layout of an exponent plus the top mantissa bits (a log-linear
+// histogram; common practice). The open bin n has upper edge +Inf.
+func powerBinEdges(i int, bits uint, n int) (float64, float64) {
+	sub := 1 << bits
+	if i >= n {
+		return math.Ldexp(1, n/sub-1), math.Inf(1)
+	}
+	if i < sub {
+		return float64(i) / float64(sub), float64(i+1) / float64(sub)
+	}
+	e := i/sub - 1
+	k := i % sub
+	base := math.Ldexp(1, e)
+	return base * (1 + float64(k)/float64(sub)), base * (1 + float64(k+1)/float64(sub))
+}

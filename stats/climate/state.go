@@ -1,0 +1,474 @@
+package climate
+
+import (
+	"math"
+)
+
+// Step is one sea state at one cell. Times are in the file's own calendar
+// (which may be 360_day or noleap): the caller supplies calendar fields and a
+// continuous time axis.
+type Step struct {
+	Year, Month int     // calendar year and month 1..12 in the data's calendar
+	Hours       float64 // continuous time in hours since a fixed reference (same for the whole record)
+	DtHours     float64 // nominal step length in hours (time weight)
+	// J in W/m, Hm0 in m, Te and Tp in s, DirDeg in degrees nautical
+	// ("coming from", clockwise from north); NaN marks a missing value.
+	J, Hm0, Te, Tp, DirDeg float64
+}
+
+// ymRec holds the sums of one year-month.
+type ymRec struct {
+	wJ, wH uint32 // minutes with a valid J, Hm0
+	sJ, sH uint64 // sum of w*q
+}
+
+// run is a calm spell (consecutive contiguous steps with Hm0 below a limit).
+// While it is shorter than the longest window duration its time is also kept
+// split by calendar month (at most two months, see MaxWindowHours), so that
+// it can be credited when it turns out long enough, also after a Merge.
+type run struct {
+	len     int64 // minutes
+	startCM int8  // calendar month 0..11 of its first step
+	nseg    int8
+	segCM   [3]int8
+	segMin  [3]uint32
+}
+
+// dropSegs forgets the split by month once the run is longer than every
+// duration (it is no longer needed, and forgetting it keeps the state
+// canonical, so that merged and whole states are byte-identical).
+func (r *run) dropSegs() {
+	r.nseg, r.segCM, r.segMin = 0, [3]int8{}, [3]uint32{}
+}
+
+func (r *run) addSeg(cm int8, w uint32) {
+	if r.nseg > 0 && r.segCM[r.nseg-1] == cm {
+		r.segMin[r.nseg-1] += w
+		return
+	}
+	if int(r.nseg) == len(r.segCM) { // cannot happen with durations <= 28 days
+		r.segMin[r.nseg-1] += w
+		return
+	}
+	r.segCM[r.nseg], r.segMin[r.nseg] = cm, w
+	r.nseg++
+}
+
+// devAcc holds the sums of one device.
+type devAcc struct {
+	w      uint64 // minutes with Hm0 and Te valid
+	sP     u128   // sum of w * power quantum
+	wAbove uint64 // minutes at or above rated
+	wBelow uint64 // minutes below cut-in
+	wOut   uint64 // minutes outside the matrix
+	wE     uint64 // minutes of the above with J valid too
+	eAll   uint64 // sum of w*qJ over those
+	eAbove uint64
+	eBelow uint64
+}
+
+// CellState is the mergeable climate state of one cell (see the package
+// comment for what it holds and its size). Create it with NewCellState.
+// It is not safe for concurrent use.
+type CellState struct {
+	cfg *Config
+
+	nSteps, nRejected, nInvalid, nBackwards uint64
+	hasAcc, startBroken, endBroken          bool
+	firstStart, lastEnd                     int64 // minutes
+	wAll                                    uint64
+
+	wJ, sJ     uint64
+	s2J        u128
+	minJ, maxJ float64
+	wH, sH     uint64
+	s2H        u128
+	minH, maxH float64
+	wTe, sTe   uint64
+	wTp, sTp   uint64
+	wDir       uint64
+	sSin, sCos int64
+
+	histH  []uint32
+	histJ  []uint32
+	scW    []uint32
+	scJ    []uint64
+	y0     int
+	ym     []ymRec // 12 per year from y0
+	winCnt []uint32
+	winMin []uint32
+	runs   []run
+	leads  []run
+	// leadOpen[l]: every step so far was calm for limit l (the lead run is
+	// then runs[l]); otherwise leads[l] is the run that began at the first
+	// step (len 0 if that step was not calm).
+	leadOpen []bool
+	dev      []devAcc
+}
+
+// NewCellState returns an empty state for cfg, which must have passed
+// Validate (NewCellState panics otherwise: that is a programming error).
+func NewCellState(cfg *Config) *CellState {
+	if cfg == nil || !cfg.valid {
+		panic("climate.NewCellState: config not validated (call Config.Validate first)")
+	}
+	l := &cfg.lay
+	s := &CellState{cfg: cfg}
+	s.histH = make([]uint32, l.nHm0Hist+1)
+	s.histJ = make([]uint32, l.nPowerHist+1)
+	s.scW = make([]uint32, l.nScH*l.nScT)
+	s.scJ = make([]uint64, l.nScH*l.nScT)
+	s.winCnt = make([]uint32, l.nLim*l.nDur*12)
+	s.winMin = make([]uint32, l.nLim*l.nDur*12)
+	s.runs = make([]run, l.nLim)
+	s.leads = make([]run, l.nLim)
+	s.leadOpen = make([]bool, l.nLim)
+	s.dev = make([]devAcc, l.nDev)
+	s.Reset()
+	return s
+}
+
+// Reset empties the state, keeping its allocations.
+func (s *CellState) Reset() {
+	*s = CellState{cfg: s.cfg, histH: s.histH, histJ: s.histJ, scW: s.scW, scJ: s.scJ, ym: s.ym[:0],
+		winCnt: s.winCnt, winMin: s.winMin, runs: s.runs, leads: s.leads, leadOpen: s.leadOpen, dev: s.dev}
+	clear(s.histH)
+	clear(s.histJ)
+	clear(s.scW)
+	clear(s.scJ)
+	clear(s.winCnt)
+	clear(s.winMin)
+	clear(s.runs)
+	clear(s.leads)
+	clear(s.dev)
+	for i := range s.leadOpen {
+		s.leadOpen[i] = true
+	}
+	s.firstStart, s.lastEnd = noTim, noTim
+	s.minJ, s.maxJ = math.Inf(1), math.Inf(-1)
+	s.minH, s.maxH = math.Inf(1), math.Inf(-1)
+}
+
+// maxYears bounds the span of years one state covers.
+const maxYears = 10000
+
+// ymIndex returns the index of (year, month 0..11) in s.ym, growing the table
+// when the year is new; -1 when the span would exceed maxYears.
+func (s *CellState) ymIndex(year, cm int) int {
+	n := len(s.ym) / 12
+	if n > 0 && year >= s.y0 && year < s.y0+n {
+		return (year-s.y0)*12 + cm
+	}
+	return s.growYears(year, year, cm)
+}
+
+func (s *CellState) growYears(ya, yb, cm int) int {
+	n := len(s.ym) / 12
+	lo, hi := ya, yb
+	if n > 0 {
+		lo, hi = min(lo, s.y0), max(hi, s.y0+n-1)
+	}
+	if hi-lo+1 > maxYears {
+		return -1
+	}
+	nn := hi - lo + 1
+	if n == 0 || lo != s.y0 || nn*12 > cap(s.ym) {
+		ym := make([]ymRec, nn*12, nn*12+12*4)
+		if n > 0 {
+			copy(ym[(s.y0-lo)*12:], s.ym)
+		}
+		s.ym, s.y0 = ym, lo
+	} else {
+		old := len(s.ym)
+		s.ym = s.ym[:nn*12]
+		clear(s.ym[old:])
+	}
+	return (ya-s.y0)*12 + cm
+}
+
+// reject records a step that cannot be placed (bad month, step length or
+// time): it breaks calm runs and time contiguity.
+func (s *CellState) reject() {
+	s.nRejected++
+	s.breakRuns()
+	if !s.hasAcc {
+		s.startBroken = true
+	}
+	s.endBroken = true
+}
+
+// breakRuns ends every calm run (a gap, a rejected step).
+func (s *CellState) breakRuns() {
+	for l := range s.runs {
+		s.endRun(l)
+	}
+}
+
+func (s *CellState) endRun(l int) {
+	r := &s.runs[l]
+	if s.leadOpen[l] {
+		s.leads[l] = *r
+		s.leadOpen[l] = false
+	}
+	if r.len != 0 {
+		*r = run{}
+	}
+}
+
+// Add feeds one step. Steps of one state must come in time order (a step
+// earlier than the previous one is counted and treated as a gap). Missing
+// values (NaN) are skipped per variable; negative, infinite or absurdly large
+// values are counted as invalid and skipped. A step with a month outside
+// 1..12, a step length that is not positive (or under 30 s, or over 728
+// days) or a non-finite time is rejected and counted. Add does not allocate
+// except when a step brings a new year.
+func (s *CellState) Add(st *Step) {
+	s.nSteps++
+	cm := st.Month - 1
+	if cm < 0 || cm > 11 || !(st.DtHours > 0) || st.DtHours*60 > maxW || !(math.Abs(st.Hours) < 1e14) {
+		s.reject()
+		return
+	}
+	wi := uint64(st.DtHours*60 + 0.5)
+	if wi == 0 {
+		s.reject()
+		return
+	}
+	yi := s.ymIndex(st.Year, cm)
+	if yi < 0 {
+		s.reject()
+		return
+	}
+	start := int64(math.Floor(st.Hours*60 + 0.5))
+	contiguous := s.hasAcc && !s.endBroken && s.lastEnd == start
+	if s.hasAcc {
+		if start < s.lastEnd {
+			s.nBackwards++
+		}
+		if !contiguous {
+			s.breakRuns()
+		}
+	} else {
+		s.hasAcc = true
+		s.firstStart = start
+	}
+	s.endBroken = false
+	s.lastEnd = start + int64(wi)
+	s.wAll += wi
+	lay := &s.cfg.lay
+	rec := &s.ym[yi]
+	w32 := uint32(wi)
+
+	// J
+	j := st.J
+	jOK := false
+	var qj uint64
+	if j >= 0 && j < maxJ {
+		jOK = true
+		qj = uint64(j*qJ + 0.5)
+		s.wJ += wi
+		s.sJ += wi * qj
+		s.s2J.addMul(wi, qj*qj)
+		if j < s.minJ {
+			s.minJ = j
+		}
+		if j > s.maxJ {
+			s.maxJ = j
+		}
+		rec.wJ += w32
+		rec.sJ += wi * qj
+		s.histJ[powerBin(j/1000, lay.powerBits, lay.nPowerHist)] += w32
+	} else if j == j {
+		s.nInvalid++
+	}
+
+	// Hm0
+	h := st.Hm0
+	hOK := false
+	if h >= 0 && h < maxH {
+		hOK = true
+		qh := uint64(h*qH + 0.5)
+		s.wH += wi
+		s.sH += wi * qh
+		s.s2H.addMul(wi, qh*qh)
+		if h < s.minH {
+			s.minH = h
+		}
+		if h > s.maxH {
+			s.maxH = h
+		}
+		rec.wH += w32
+		rec.sH += wi * qh
+		b := int(h * lay.invHm0Res)
+		if b > lay.nHm0Hist {
+			b = lay.nHm0Hist
+		}
+		s.histH[b] += w32
+	} else if h == h {
+		s.nInvalid++
+	}
+
+	// Te, Tp
+	te := st.Te
+	teOK := false
+	if te >= 0 && te < maxT {
+		teOK = true
+		s.wTe += wi
+		s.sTe += wi * uint64(te*qT+0.5)
+	} else if te == te {
+		s.nInvalid++
+	}
+	if tp := st.Tp; tp >= 0 && tp < maxT {
+		s.wTp += wi
+		s.sTp += wi * uint64(tp*qT+0.5)
+	} else if tp == tp {
+		s.nInvalid++
+	}
+
+	// direction
+	if d := st.DirDeg; d-d == 0 && math.Abs(d) < 1e9 { // finite
+		k := dirIndex(d)
+		s.wDir += wi
+		s.sSin += int64(wi) * int64(dirTable[k].sin)
+		s.sCos += int64(wi) * int64(dirTable[k].cos)
+	} else if d == d {
+		s.nInvalid++
+	}
+
+	// joint occurrence
+	if jOK && hOK && teOK {
+		r := int(h * lay.invScH)
+		if r >= lay.nScH {
+			r = lay.nScH - 1
+		}
+		c := int(te * lay.invScT)
+		if c >= lay.nScT {
+			c = lay.nScT - 1
+		}
+		k := r*lay.nScT + c
+		s.scW[k] += w32
+		s.scJ[k] += wi * qj
+	}
+
+	// weather windows
+	if lay.nLim > 0 {
+		s.addWindows(hOK, h, int8(cm), int64(wi))
+	}
+
+	// devices
+	if hOK && teOK {
+		for k, d := range s.cfg.Devices {
+			a := &s.dev[k]
+			p, class := d.power(h, te)
+			a.w += wi
+			a.sP.addMul(wi, uint64(p*qP+0.5))
+			above := class == devInside && p >= d.ratedKW*(1-1e-12)
+			switch {
+			case above:
+				a.wAbove += wi
+			case class == devBelowCutIn:
+				a.wBelow += wi
+			case class == devOutside:
+				a.wOut += wi
+			}
+			if jOK {
+				e := wi * qj
+				a.wE += wi
+				a.eAll += e
+				if above {
+					a.eAbove += e
+				} else if class == devBelowCutIn {
+					a.eBelow += e
+				}
+			}
+		}
+	}
+}
+
+// powerBin returns the power histogram bin of v (kW/m, >= 0); see
+// powerBinEdges for the layout.
+func powerBin(v float64, bits uint, n int) int {
+	sub := 1 << bits
+	if v < 1 {
+		return int(v * float64(sub))
+	}
+	b := math.Float64bits(v)
+	e := int(b>>52) - 1023
+	k := int(b>>(52-bits)) & (sub - 1)
+	i := sub + e*sub + k
+	if i > n {
+		i = n
+	}
+	return i
+}
+
+// addWindows advances the calm runs of every limit by one accepted step of
+// w minutes in calendar month cm. Contiguity has been handled by Add.
+func (s *CellState) addWindows(hOK bool, h float64, cm int8, w int64) {
+	lay := &s.cfg.lay
+	nD := lay.nDur
+	for l, lim := range s.cfg.WindowLimitsM {
+		if !(hOK && h < lim) {
+			s.endRun(l)
+			continue
+		}
+		r := &s.runs[l]
+		if r.len == 0 {
+			r.startCM, r.nseg = cm, 0
+		}
+		prev := r.len
+		r.len += w
+		if prev < lay.maxDurMin {
+			r.addSeg(cm, uint32(w))
+		}
+		base := l * nD * 12
+		for d := 0; d < nD; d++ {
+			D := lay.durMin[d]
+			if r.len < D {
+				break
+			}
+			idx := base + d*12
+			if prev < D {
+				s.winCnt[idx+int(r.startCM)]++
+				for k := int8(0); k < r.nseg; k++ {
+					s.winMin[idx+int(r.segCM[k])] += r.segMin[k]
+				}
+			} else {
+				s.winMin[idx+int(cm)] += uint32(w)
+			}
+		}
+		if prev < lay.maxDurMin && r.len >= lay.maxDurMin {
+			r.dropSegs()
+		}
+	}
+}
+
+// Directions are rounded to DirResDeg before their sines and cosines are
+// summed (a table lookup: the sums stay exact integers and the hot path
+// avoids trigonometry). The circular mean is thus within DirResDeg/2 of the
+// mean of the unrounded directions.
+const DirResDeg = 0.1
+
+const dirBins = 3600 // 360 / DirResDeg
+
+type sinCos struct{ sin, cos int32 }
+
+// dirTable holds sin and cos of k*DirResDeg, rounded to the quantum 2^-28.
+var dirTable = func() [dirBins]sinCos {
+	var t [dirBins]sinCos
+	for k := range t {
+		sn, cs := math.Sincos(float64(k) * DirResDeg * math.Pi / 180)
+		t[k] = sinCos{int32(math.Round(sn * qDir)), int32(math.Round(cs * qDir))}
+	}
+	return t
+}()
+
+// dirIndex returns the table index of direction d (degrees, any finite value).
+func dirIndex(d float64) int {
+	k := int64(math.Floor(d*(1/DirResDeg) + 0.5))
+	k %= dirBins
+	if k < 0 {
+		k += dirBins
+	}
+	return int(k)
+}
