@@ -39,7 +39,13 @@ function ident(s) { return '"' + s.replace(/"/g, '""') + '"'; }
     }
     r.first = (await all(`SELECT * EXCLUDE (geometry) FROM read_parquet(${q(f)}) LIMIT 3`).catch(async () => all(`SELECT * FROM read_parquet(${q(f)}) LIMIT 3`)));
     if (r.columns.some(([n]) => n === 'geometry')) {
-      r.geometry_hex = (await all(`SELECT hex(geometry) AS h FROM read_parquet(${q(f)}) LIMIT 3`)).map((x) => x.h);
+      // DuckDB >= 1.5 reads the GeoParquet column as GEOMETRY (decoding the WKB
+      // itself); older versions see a BLOB.
+      try {
+        r.geometry_wkt = (await all(`SELECT ST_AsText(geometry) AS w FROM read_parquet(${q(f)}) LIMIT 3`)).map((x) => x.w);
+      } catch (e) {
+        r.geometry_hex = (await all(`SELECT hex(geometry) AS h FROM read_parquet(${q(f)}) LIMIT 3`)).map((x) => x.h);
+      }
     }
     out.files[f] = r;
   }
