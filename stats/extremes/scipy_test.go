@@ -32,6 +32,10 @@ type scipyRefs struct {
 		LogPDF float64    `json:"logpdf"`
 		PPF    float64    `json:"ppf"`
 	} `json:"gev_values"`
+	Rain struct {
+		N   int        `json:"n"`
+		MLE [2]float64 `json:"mle"`
+	} `json:"rain"`
 	GPDValues []struct {
 		Par    [3]float64 `json:"par"`
 		X      *float64   `json:"x"`
