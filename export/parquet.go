@@ -199,14 +199,22 @@ func writeTable(path string, cols []Column, t *Table, rows int, points *pointCol
 	if group == 0 {
 		group = DefaultRowGroupRows
 	}
-	props := parquet.NewWriterProperties(
+	// Dictionary encoding only for strings (flags, methods repeat a lot);
+	// floats rarely repeat and zstd does better on them plain.
+	opts := []parquet.WriterProperty{
 		parquet.WithCompression(compress.Codecs.Zstd),
 		parquet.WithStats(true),
 		parquet.WithMaxRowGroupLength(int64(group)),
 		parquet.WithCreatedBy(createdBy),
-		parquet.WithDictionaryFor("geometry", false),
+		parquet.WithDictionaryDefault(false),
 		parquet.WithStatsFor("geometry", false),
-	)
+	}
+	for k := range cols {
+		if cols[k].String != nil {
+			opts = append(opts, parquet.WithDictionaryFor(cols[k].Name, true))
+		}
+	}
+	props := parquet.NewWriterProperties(opts...)
 	aprops := pqarrow.NewArrowWriterProperties(pqarrow.WithStoreSchema())
 	mem := memory.NewGoAllocator()
 
