@@ -75,15 +75,15 @@ func (g GEV) Quantile(p float64) float64 {
 }
 
 // expShapeTerm returns A = (exp(xi*s) - 1)/xi and dA/dxi, with the limits
-// A -> s, dA/dxi -> s^2/2 as xi -> 0 (series A = s + xi s^2/2 + xi^2 s^3/6,
-// dA/dxi = s^2/2 + xi s^3/3 + xi^2 s^4/8 for |xi s| < 1e-4).
+// A -> s, dA/dxi -> s^2/2 as xi -> 0 (series A = s (1 + u/2 + u^2/6 + u^3/24),
+// dA/dxi = s^2 (1/2 + u/3 + u^2/8 + u^3/30), u = xi s, for |u| < 1e-4).
 // Source: elementary calculus; used by the return-level formulas of Coles (2001),
 // eqs. (3.10) and (4.12).
 func expShapeTerm(xi, s float64) (a, da float64) {
 	u := xi * s
 	if math.Abs(u) < smallShape {
-		a = s * (1 + u*(0.5+u/6))
-		da = s * s * (0.5 + u*(1.0/3+u/8))
+		a = s * (1 + u*(0.5+u*(1.0/6+u/24)))
+		da = s * s * (0.5 + u*(1.0/3+u*(0.125+u/30)))
 		return a, da
 	}
 	e := math.Expm1(u)
