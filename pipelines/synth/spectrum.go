@@ -13,20 +13,25 @@ const (
 // x^-5 exp(-5/4 x^-4) gamma^r(x) dx, r(x) = exp(-(x-1)^2 / (2 sigma^2)),
 // the m0 of the unscaled JONSWAP shape with fp = 1. For gamma = 1 it is
 // exactly 1/5 (the integrand is d/dx [exp(-5/4 x^-4) / 5]). It is computed by
-// composite Simpson's rule on [0.2, 30] with 60000 panels plus the analytic
-// tail (1 - exp(-5/4 30^-4)) / 5 above 30, where gamma^r = 1 to double precision.
+// composite Simpson's rule on [0.2, 1] and [1, 30] (split at the peak, where
+// sigma changes) with 30000 panels each, plus the analytic tail
+// (1 - exp(-5/4 30^-4)) / 5 above 30, where gamma^r = 1 to double precision;
+// below 0.2 the integrand is under 1e-300.
 func jonswapShapeIntegral(gamma float64) float64 {
-	const a, b, n = 0.2, 30.0, 60000
-	h := (b - a) / n
-	sum := jonswapShape(a, gamma) + jonswapShape(b, gamma)
-	for i := 1; i < n; i++ {
-		w := 2.0
-		if i%2 == 1 {
-			w = 4
+	simpson := func(a, b float64, n int) float64 {
+		h := (b - a) / float64(n)
+		sum := jonswapShape(a, gamma) + jonswapShape(b, gamma)
+		for i := 1; i < n; i++ {
+			w := 2.0
+			if i%2 == 1 {
+				w = 4
+			}
+			sum += w * jonswapShape(a+float64(i)*h, gamma)
 		}
-		sum += w * jonswapShape(a+float64(i)*h, gamma)
+		return sum * h / 3
 	}
-	return sum*h/3 + (1-math.Exp(-1.25*math.Pow(b, -4)))/5
+	const top = 30.0
+	return simpson(0.2, 1, 30000) + simpson(1, top, 30000) + (1-math.Exp(-1.25*math.Pow(top, -4)))/5
 }
 
 // jonswapShape is x^-5 exp(-5/4 x^-4) gamma^r(x) with x = f/fp (see jonswapS).
