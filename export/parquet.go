@@ -225,8 +225,11 @@ func writeTable(path string, cols []Column, t *Table, rows int, points *pointCol
 		}
 		for lo := 0; lo < rows || (rows == 0 && lo == 0); lo += group {
 			hi := min(lo+group, rows)
-			rec := buildRecord(mem, schema, cols, points, lo, hi)
-			err := fw.Write(rec)
+			rec, err := buildRecord(mem, schema, cols, points, lo, hi)
+			if err != nil {
+				return err
+			}
+			err = fw.Write(rec)
 			rec.Release()
 			if err != nil {
 				return err
@@ -239,7 +242,7 @@ func writeTable(path string, cols []Column, t *Table, rows int, points *pointCol
 	})
 }
 
-func buildRecord(mem memory.Allocator, schema *arrow.Schema, cols []Column, points *pointColumn, lo, hi int) arrow.Record {
+func buildRecord(mem memory.Allocator, schema *arrow.Schema, cols []Column, points *pointColumn, lo, hi int) (arrow.Record, error) {
 	arrs := make([]arrow.Array, 0, len(cols)+1)
 	valid := func(c *Column) []bool {
 		if c.Valid == nil {
@@ -284,7 +287,11 @@ func buildRecord(mem memory.Allocator, schema *arrow.Schema, cols []Column, poin
 		for k := lo; k < hi; k++ {
 			g, err := wkb.Marshal(orb.Point{points.lon[k], points.lat[k]})
 			if err != nil {
-				panic(err) // a point always encodes
+				b.Release()
+				for _, a := range arrs {
+					a.Release()
+				}
+				return nil, fmt.Errorf("encoding row %d as a WKB point: %w", k, err)
 			}
 			b.Append(g)
 		}
@@ -295,5 +302,5 @@ func buildRecord(mem memory.Allocator, schema *arrow.Schema, cols []Column, poin
 	for _, a := range arrs {
 		a.Release()
 	}
-	return rec
+	return rec, nil
 }
