@@ -210,6 +210,7 @@ func Open(inputs []string, opt Options) (*Catalog, error) {
 	}
 	ncMu.Lock()
 	defer ncMu.Unlock()
+	defer ncThread()()
 	c := &Catalog{Vars: map[Role]*VarInfo{}}
 	var first *scan
 	for _, p := range paths {

@@ -61,6 +61,7 @@ func (c *Catalog) Read(ctx context.Context, r ReadRange, out chan<- *Block) erro
 
 func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- *Block) error {
 	fe := &c.Files[fi]
+	defer ncThread()()
 	ncMu.Lock()
 	f, err := openNC(fe.Path)
 	ncMu.Unlock()

@@ -289,6 +289,9 @@ func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
 	} else {
 		var found []*ncVar
 		for i := range s.f.vars {
+			if cv := &s.f.vars[i]; len(cv.dims) == 1 && cv.dims[0] == cv.name && len(cv.shape) == 1 && r != Depth {
+				continue // a coordinate variable (e.g. the spectral direction axis), not a field
+			}
 			for _, sn := range StandardNames[r] {
 				if s.f.vars[i].str("standard_name") == sn {
 					found = append(found, &s.f.vars[i])

@@ -213,7 +213,7 @@ func (s *Spec) Validate() error {
 		return bad("statistics.coverage_min", "must lie in (0, 1]", st.CoverageMin)
 	}
 	ex := s.Extremes
-	if err := increasing("extremes.return_periods_y", ex.ReturnPeriodsY, 1, 1e5); err != nil {
+	if err := increasing("extremes.return_periods_y", ex.ReturnPeriodsY, 0, 1e5); err != nil {
 		return err
 	}
 	if ex.YearStartMonth < 1 || ex.YearStartMonth > 12 {

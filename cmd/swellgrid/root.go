@@ -36,6 +36,6 @@ func newRootCmd() *cobra.Command {
 		SilenceUsage:  true,
 		SilenceErrors: true,
 	}
-	root.AddCommand(newInspectCmd())
+	root.AddCommand(newInspectCmd(), newRunCmd())
 	return root
 }

@@ -1,0 +1,142 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"log/slog"
+	"os"
+	"os/signal"
+	"syscall"
+	"time"
+
+	"github.com/spf13/cobra"
+	"golang.org/x/term"
+
+	"swellgrid/pipelines"
+)
+
+const caution = `CAUTION: resource figures and extreme sea states are screening estimates from a
+model hindcast, not design values. Design loads, survival conditions, site selection
+and consenting decisions follow the applicable design standards and local codes,
+site measurements, and review by qualified engineers.`
+
+type runFlags struct {
+	input, out, spec, memory string
+	workers                  int
+	depth                    float64
+	deep, restart            bool
+}
+
+func (f *runFlags) register(cmd *cobra.Command) {
+	cmd.Flags().StringVar(&f.input, "input", "", "hindcast file, directory or glob (overrides input.paths)")
+	cmd.Flags().StringVar(&f.out, "out", "", "output run directory (overrides output.dir)")
+	cmd.Flags().StringVar(&f.spec, "spec", "", "run spec (TOML); see the README for every key")
+	cmd.Flags().IntVar(&f.workers, "workers", 0, "compute workers (0: all cores)")
+	cmd.Flags().Float64Var(&f.depth, "depth", 0, "constant water depth in metres")
+	cmd.Flags().BoolVar(&f.deep, "deep-water", false, "assume deep water everywhere")
+	cmd.Flags().StringVar(&f.memory, "memory-limit", "", "memory budget, e.g. 4GiB (sets the cells per pass)")
+	cmd.Flags().BoolVar(&f.restart, "restart", false, "ignore checkpoints in the output directory and start over")
+}
+
+// buildSpec applies the flags over the spec file (or the defaults).
+func (f *runFlags) buildSpec() (*pipelines.Spec, error) {
+	spec := pipelines.DefaultSpec()
+	if f.spec != "" {
+		s, err := pipelines.LoadSpec(f.spec)
+		if err != nil {
+			return nil, err
+		}
+		spec = s
+	}
+	if f.input != "" {
+		spec.Input.Paths = []string{f.input}
+	}
+	if f.out != "" {
+		spec.Output.Dir = f.out
+	}
+	if f.workers != 0 {
+		spec.Run.Workers = f.workers
+	}
+	if f.memory != "" {
+		spec.Run.MemoryLimit = f.memory
+	}
+	if f.depth != 0 && f.deep {
+		return nil, errors.New("give either --depth or --deep-water, not both")
+	}
+	if f.depth != 0 {
+		spec.Depth.Source, spec.Depth.ConstantM = "constant", f.depth
+	}
+	if f.deep {
+		spec.Depth.Source = "deep-water"
+	}
+	return spec, nil
+}
+
+func newRunCmd() *cobra.Command {
+	var f runFlags
+	cmd := &cobra.Command{
+		Use:   "run --input PATH_OR_GLOB --out DIR [--spec FILE]",
+		Short: "Compute the wave-energy resource atlas of a hindcast",
+		Long: `run reads a CF NetCDF hindcast once, computes per cell the wave power (from spectra
+with finite-depth group velocity, or from bulk Hm0/Te), its variability, exceedance,
+weather windows, device yield and extreme sea states (GEV on annual maxima, GPD on
+storm peaks, with 95% intervals), and writes cells.parquet (GeoParquet), the long
+tables, GeoJSON contour layers and manifest.json into the output directory.
+
+A checkpoint is saved after each input file; rerunning the same command resumes.
+Exit codes: 0 ok, 1 internal error, 2 bad input or spec, 3 interrupted,
+4 output directory locked or not writable.
+
+` + caution,
+		Example: `  swellgrid run --input 'hindcast/*.nc' --out atlas
+  swellgrid run --spec pipelines/examples/bulk.toml --workers 2
+  swellgrid run --input hindcast/ --out atlas --depth 40`,
+		Args: cobra.NoArgs,
+		RunE: func(cmd *cobra.Command, args []string) error {
+			spec, err := f.buildSpec()
+			if err != nil {
+				return &exitErr{2, err}
+			}
+			res, err := runSpec(spec, f.restart)
+			if err != nil {
+				return err
+			}
+			fmt.Fprintf(os.Stdout, "wrote %d files to %s (%d cells, %d steps) in %s\n", len(res.Files), res.OutDir, res.Cells, res.Steps, res.Wall.Round(time.Millisecond))
+			for _, w := range res.Warnings {
+				fmt.Fprintln(os.Stdout, "warning:", w)
+			}
+			return nil
+		},
+	}
+	f.register(cmd)
+	return cmd
+}
+
+// runSpec runs the pipeline with progress on stderr and maps its errors to
+// exit codes.
+func runSpec(spec *pipelines.Spec, restart bool) (*pipelines.Result, error) {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	log := slog.New(slog.NewTextHandler(os.Stderr, nil))
+	opt := pipelines.Options{Restart: restart, Log: log, Version: Version}
+	if term.IsTerminal(int(os.Stderr.Fd())) {
+		opt.Progress = pipelines.NewBarProgress(os.Stderr)
+	} else {
+		opt.Progress = pipelines.NewLogProgress(log, 10*time.Second)
+	}
+	res, err := pipelines.Run(ctx, spec, opt)
+	switch {
+	case err == nil:
+		return res, nil
+	case ctx.Err() != nil:
+		return nil, &exitErr{3, fmt.Errorf("interrupted; checkpoints are in %s/.swellgrid, rerun the same command to resume", spec.Output.Dir)}
+	case pipelines.IsOutputError(err):
+		return nil, &exitErr{4, err}
+	}
+	var ie *pipelines.InputError
+	if errors.As(err, &ie) {
+		return nil, &exitErr{2, err}
+	}
+	return nil, &exitErr{1, err}
+}

@@ -1,0 +1,201 @@
+package pipelines
+
+import (
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"swellgrid/export"
+	"swellgrid/grid"
+	"swellgrid/ingest"
+)
+
+// columnNames lists the columns of cells.parquet for this run.
+func (e *engine) columnNames() map[string]string {
+	t := e.cellsTable(nil)
+	out := map[string]string{}
+	for _, c := range t.Columns {
+		out[c.Name] = c.Unit
+	}
+	return out
+}
+
+func (e *engine) checkContourColumns() error {
+	names := e.columnNames()
+	for _, c := range e.spec.Contours.Columns {
+		if _, ok := names[c]; !ok {
+			return fmt.Errorf("spec: contours.columns: %q is not a column of cells.parquet (see the README's column list)", c)
+		}
+	}
+	for c := range e.spec.Contours.Levels {
+		if _, ok := names[c]; !ok {
+			return fmt.Errorf("spec: contours.levels.%s: not a column of cells.parquet", c)
+		}
+	}
+	return nil
+}
+
+// writeOutputs writes the tables and contour layers; every file is written
+// atomically by export. It returns the files written (relative to out).
+func (e *engine) writeOutputs(out string, res []*cellResult) ([]string, []string, error) {
+	var written, warns []string
+	cells := e.cellsTable(res)
+	if err := export.WriteGeoParquet(filepath.Join(out, "cells.parquet"), cells, e.cat.Grid.Lon, e.cat.Grid.Lat); err != nil {
+		return nil, nil, fmt.Errorf("writing cells.parquet: %v", err)
+	}
+	written = append(written, "cells.parquet")
+	long := e.longTables(res)
+	for _, name := range keys(long) {
+		f := name + ".parquet"
+		if err := export.WriteParquet(filepath.Join(out, f), long[name]); err != nil {
+			return nil, nil, fmt.Errorf("writing %s: %v", f, err)
+		}
+		written = append(written, f)
+	}
+	g := e.cat.Grid
+	if !g.Structured() {
+		warns = append(warns, "no contour layers: the grid is a point set, which has no cells to contour between; use cells.parquet as points")
+		return written, warns, nil
+	}
+	byName := map[string]*export.Column{}
+	for i := range cells.Columns {
+		byName[cells.Columns[i].Name] = &cells.Columns[i]
+	}
+	for _, col := range e.spec.Contours.Columns {
+		c := byName[col]
+		vals := c.Float64
+		if vals == nil {
+			warns = append(warns, fmt.Sprintf("no contours for %s: not a numeric column", col))
+			continue
+		}
+		f := &grid.Field{NX: g.NX, NY: g.NY, Lon: g.Lon, Lat: g.Lat, Value: vals, Mask: e.cat.Masked}
+		levels := e.spec.Contours.Levels[col]
+		if len(levels) == 0 {
+			lo, hi := math.Inf(1), math.Inf(-1)
+			for i, v := range vals {
+				if !math.IsNaN(v) && !e.cat.Masked[i] {
+					lo, hi = math.Min(lo, v), math.Max(hi, v)
+				}
+			}
+			levels = grid.NiceLevels(lo, hi, 8)
+		}
+		if len(levels) == 0 {
+			warns = append(warns, fmt.Sprintf("no contours for %s: the column has no spread of values", col))
+			continue
+		}
+		lines, err := grid.Isolines(f, levels)
+		if err != nil {
+			return nil, nil, fmt.Errorf("contours of %s: %v", col, err)
+		}
+		edges := append(append([]float64{math.Inf(-1)}, levels...), math.Inf(1))
+		bands, err := grid.Bands(f, edges)
+		if err != nil {
+			return nil, nil, fmt.Errorf("contour bands of %s: %v", col, err)
+		}
+		if err := export.WriteContours(out, col, c.Unit, levels, lines, edges, bands); err != nil {
+			return nil, nil, fmt.Errorf("writing contours of %s: %v", col, err)
+		}
+		written = append(written, "contours/"+col+".geojson", "contours/"+col+".bands.geojson")
+	}
+	return written, warns, nil
+}
+
+// Manifest is manifest.json: what went in, what settings, what came out.
+type Manifest struct {
+	Software    string                          `json:"software"`
+	Version     string                          `json:"version"`
+	Caution     string                          `json:"caution"`
+	Inputs      []ManifestInput                 `json:"inputs"`
+	Calendar    string                          `json:"calendar"`
+	Start       string                          `json:"time_start"`
+	End         string                          `json:"time_end"`
+	Steps       int                             `json:"steps"`
+	StepSeconds int64                           `json:"step_seconds"`
+	Gaps        []ingest.Gap                    `json:"gaps"`
+	Grid        ManifestGrid                    `json:"grid"`
+	Roles       map[ingest.Role]*ingest.VarInfo `json:"roles"`
+	DepthSource string                          `json:"depth_source"`
+	Assumptions []string                        `json:"assumptions"`
+	Parameters  *Spec                           `json:"parameters"`
+	Resolution  map[string]float64              `json:"histogram_resolution"`
+	Warnings    []string                        `json:"warnings"`
+	Timings     map[string]float64              `json:"timings_s,omitempty"`
+}
+
+// ManifestInput is one input file.
+type ManifestInput struct {
+	Path   string `json:"path"`
+	Size   int64  `json:"size_bytes"`
+	SHA256 string `json:"sha256"`
+	First  string `json:"first_time"`
+	Last   string `json:"last_time"`
+	Steps  int    `json:"steps"`
+}
+
+// ManifestGrid describes the grid.
+type ManifestGrid struct {
+	Kind   string     `json:"kind"`
+	NY, NX int        `json:"-"`
+	Shape  [2]int     `json:"shape_ny_nx"`
+	Cells  int        `json:"cells"`
+	Masked int        `json:"masked_cells"`
+	BBox   [4]float64 `json:"bbox_lon_lat"`
+}
+
+func (e *engine) manifest(version string, sums, warns []string, timings map[string]float64) *Manifest {
+	c := e.cat
+	m := &Manifest{Software: "swellgrid", Version: version, Caution: Caution, Calendar: string(c.Calendar),
+		Start: c.Start, End: c.End, Steps: c.Steps, StepSeconds: c.StepSeconds, Gaps: c.Gaps, Roles: c.Vars,
+		DepthSource: c.DepthSource, Parameters: e.spec, Timings: timings}
+	if m.Gaps == nil {
+		m.Gaps = []ingest.Gap{}
+	}
+	for i, f := range c.Files {
+		m.Inputs = append(m.Inputs, ManifestInput{Path: f.Path, Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
+	}
+	masked := 0
+	for _, x := range c.Masked {
+		if x {
+			masked++
+		}
+	}
+	a, b, cc, d := c.Grid.Bounds()
+	m.Grid = ManifestGrid{Kind: c.Grid.Kind.String(), Shape: [2]int{c.Grid.NY, c.Grid.NX}, Cells: c.Grid.NCells(), Masked: masked, BBox: [4]float64{a, b, cc, d}}
+	m.Assumptions = []string{fmt.Sprintf("water density %g kg/m3, gravity %g m/s2", e.spec.Physics.Rho, e.spec.Physics.G)}
+	if !e.spectral {
+		m.Assumptions = append(m.Assumptions, "wave power from bulk Hm0 and Te with linear-theory group velocity at the cell depth (deep water where the depth is unknown or the deep-water assumption is chosen)")
+		if c.Vars[ingest.Te] == nil {
+			m.Assumptions = append(m.Assumptions, fmt.Sprintf("Te = %g Tp (no Te in the files)", e.spec.Physics.TeOverTp))
+		}
+	} else {
+		m.Assumptions = append(m.Assumptions, "wave power from the spectra with finite-depth group velocity of linear theory")
+	}
+	if strings.HasPrefix(c.DepthSource, "deep-water") {
+		m.Assumptions = append(m.Assumptions, "deep water everywhere (given)")
+	}
+	m.Resolution = map[string]float64{"hm0_m": e.ccfg.Hm0HistResM}
+	m.Warnings = append(append([]string{}, c.Warnings...), warns...)
+	return m
+}
+
+// listRunDir lists the final-named files of a run directory (for the demo's
+// summary), sorted.
+func listRunDir(out string) []string {
+	var files []string
+	filepath.Walk(out, func(p string, info os.FileInfo, err error) error {
+		if err != nil || info.IsDir() {
+			if info != nil && info.IsDir() && info.Name() == stateDir {
+				return filepath.SkipDir
+			}
+			return nil
+		}
+		rel, _ := filepath.Rel(out, p)
+		files = append(files, rel)
+		return nil
+	})
+	sort.Strings(files)
+	return files
+}
