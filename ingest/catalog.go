@@ -62,20 +62,20 @@ type Options struct {
 
 // VarInfo describes how one role is stored and unpacked in one file.
 type VarInfo struct {
-	Role         Role     `json:"role"`
-	Name         string   `json:"variable"`
-	StandardName string   `json:"standard_name,omitempty"`
-	Units        string   `json:"units"`
-	Factor       float64  `json:"factor_to_si"`
-	Type         string   `json:"type"`
-	Packed       bool     `json:"packed"`
-	Scale        float64  `json:"scale_factor"`
-	Offset       float64  `json:"add_offset"`
+	Role         Role      `json:"role"`
+	Name         string    `json:"variable"`
+	StandardName string    `json:"standard_name,omitempty"`
+	Units        string    `json:"units"`
+	Factor       float64   `json:"factor_to_si"`
+	Type         string    `json:"type"`
+	Packed       bool      `json:"packed"`
+	Scale        float64   `json:"scale_factor"`
+	Offset       float64   `json:"add_offset"`
 	Fill         []float64 `json:"fill_values,omitempty"`
-	ValidMin     float64  `json:"-"`
-	ValidMax     float64  `json:"-"`
-	DirTo        bool     `json:"direction_to,omitempty"`
-	Dims         []string `json:"dims"`
+	ValidMin     float64   `json:"-"`
+	ValidMax     float64   `json:"-"`
+	DirTo        bool      `json:"direction_to,omitempty"`
+	Dims         []string  `json:"dims"`
 	axes         []axis
 	v            *ncVar
 }

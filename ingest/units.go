@@ -36,7 +36,7 @@ var unitAtoms = map[string]dims{
 	"m": {1, 1, 0, 0}, "meter": {1, 1, 0, 0}, "meters": {1, 1, 0, 0}, "metre": {1, 1, 0, 0}, "metres": {1, 1, 0, 0},
 	"cm": {0.01, 1, 0, 0}, "mm": {0.001, 1, 0, 0},
 	"s": {1, 0, 1, 0}, "sec": {1, 0, 1, 0}, "second": {1, 0, 1, 0}, "seconds": {1, 0, 1, 0},
-	"hz": {1, 0, -1, 0},
+	"hz":  {1, 0, -1, 0},
 	"rad": {1, 0, 0, 1}, "radian": {1, 0, 0, 1}, "radians": {1, 0, 0, 1},
 	"degree": {math.Pi / 180, 0, 0, 1}, "degrees": {math.Pi / 180, 0, 0, 1}, "deg": {math.Pi / 180, 0, 0, 1},
 	"degree_true": {math.Pi / 180, 0, 0, 1}, "degrees_true": {math.Pi / 180, 0, 0, 1},
