@@ -31,3 +31,9 @@
 // hindcast. They do not replace site measurements, the applicable design
 // standards, local codes or review by qualified engineers.
 package climate
+
+// Caution is the statement that goes with every figure of this package into
+// outputs, manifests and documentation.
+const Caution = "Screening estimates from a model hindcast: not for design. Design loads, " +
+	"device selection and consenting follow the applicable design standards and local codes, " +
+	"site measurements and review by qualified engineers."

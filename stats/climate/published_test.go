@@ -250,3 +250,25 @@ func TestRejectedAndInvalid(t *testing.T) {
 		t.Errorf("rejected %d invalid %d steps %d mean %g; want 2, 2, 3, NaN", sum.RejectedSteps, sum.InvalidValues, sum.Steps, sum.PowerMeanKWm)
 	}
 }
+
+// TestBinEdges: bin edges half-way between centres, outer bins as wide as
+// their neighbour spacing, closed below (common practice for power
+// matrices). Centres 1, 2, 4 give edges 0.5, 1.5, 3, 5; an evenly spaced
+// axis 1, 2, 3 gives 0.5, 1.5, 2.5, 3.5 through the fast path.
+func TestBinEdges(t *testing.T) {
+	a := newAxis([]float64{1, 2, 4})
+	u := newAxis([]float64{1, 2, 3})
+	if a.uniform || !u.uniform {
+		t.Fatal("uniform detection wrong")
+	}
+	for _, c := range []struct {
+		ax   *axis
+		x    float64
+		want int
+	}{{&a, 0.4, -1}, {&a, 0.5, 0}, {&a, 1.49, 0}, {&a, 1.5, 1}, {&a, 2.99, 1}, {&a, 3, 2}, {&a, 4.99, 2}, {&a, 5, 3},
+		{&u, 0.49, -1}, {&u, 0.5, 0}, {&u, 1.5, 1}, {&u, 2.4999, 1}, {&u, 2.5, 2}, {&u, 3.49, 2}, {&u, 3.5, 3}} {
+		if got := c.ax.bin(c.x); got != c.want {
+			t.Errorf("bin(%g) = %d, want %d (centres %v)", c.x, got, c.want, c.ax.c)
+		}
+	}
+}
