@@ -172,7 +172,7 @@ func (s *CellState) mergeWindows(o *CellState, adjacent bool) {
 
 // copyFrom makes s a deep copy of o (same Config).
 func (s *CellState) copyFrom(o *CellState) {
-	histH, histJ, scW, scJ := s.histH, s.histJ, s.scW, s.scJ
+	histH, histJ, scW, scJ, ym := s.histH, s.histJ, s.scW, s.scJ, s.ym
 	winCnt, winMin, runs, leads, leadOpen, dev := s.winCnt, s.winMin, s.runs, s.leads, s.leadOpen, s.dev
 	*s = *o
 	s.histH, s.histJ, s.scW, s.scJ = histH, histJ, scW, scJ
@@ -187,5 +187,5 @@ func (s *CellState) copyFrom(o *CellState) {
 	copy(s.leads, o.leads)
 	copy(s.leadOpen, o.leadOpen)
 	copy(s.dev, o.dev)
-	s.ym = append([]ymRec(nil), o.ym...)
+	s.ym = append(ym[:0], o.ym...)
 }
