@@ -82,10 +82,10 @@ type JonswapParams struct {
 
 // Spectra asks for spectral output at stations.
 type Spectra struct {
-	// OneD writes the frequency spectrum ef(time, station, frequency) instead of
-	// the directional spectrum efth(time, station, frequency, direction).
+	// OneD writes the frequency spectrum freqspec(time, station, frequency) instead of
+	// the directional spectrum dirspec(time, station, frequency, direction).
 	OneD bool
-	// PerDegree writes efth in m2 s degree-1 instead of m2 s rad-1.
+	// PerDegree writes dirspec in m2 s degree-1 instead of m2 s rad-1.
 	PerDegree bool
 	// Frequency axis f_n = F0 * FRatio^n, n = 0..NFreq-1 (Hz). Defaults 0.035, 1.1, 29.
 	F0, FRatio float64
@@ -96,8 +96,8 @@ type Spectra struct {
 	DirStart float64
 	// Cells picks the grid cells (index iy*NX+ix, or the station index for
 	// Points) that get spectra; empty with a Points grid means every station.
-	// With a Regular or Curvilinear grid the spectra go to a separate file
-	// set named <Name>_spec.
+	// With Bulk also set, the spectra go to a separate file set named
+	// <Name>_spec (and the bulk fields to <Name>_bulk).
 	Cells []int
 	// Fixed, if not empty, gives constant-in-time spectrum parameters per
 	// station (same length as the stations); the generator's sea states are
@@ -107,6 +107,8 @@ type Spectra struct {
 	Gamma, SpreadS float64
 	// FloorRel, if > 0, writes 0 for spectral values below FloorRel times the
 	// station's largest value at that time step (again to help compression).
+	// With 1e-4 (the demo) m0 falls by under 0.1 % for Tp 6-15 s on the
+	// default axes (TestFloorLoss).
 	FloorRel float64
 }
 

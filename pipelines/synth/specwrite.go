@@ -117,7 +117,7 @@ func (b *specBuilder) floor(out []float32) {
 }
 
 // createSpec defines a spectral point-set file: station, frequency, direction,
-// lon/lat/depth per station and efth (or ef), with the generating parameters
+// lon/lat/depth per station and dirspec (or freqspec), with the generating parameters
 // in attributes.
 func (c *Scenario) createSpec(path string, nt int, sites []site, b *specBuilder) (*ncFile, error) {
 	f, d, err := c.create(path)
@@ -155,12 +155,12 @@ func (c *Scenario) createSpec(path string, nt int, sites []site, b *specBuilder)
 	d.f32(depV.Attr("_FillValue"), FillFloat)
 	var v netcdf.Var
 	if b.sp.OneD {
-		v = d.v("ef", netcdf.FLOAT, dims...)
+		v = d.v("freqspec", netcdf.FLOAT, dims...)
 		d.text(v.Attr("standard_name"), "sea_surface_wave_variance_spectral_density")
 		d.text(v.Attr("long_name"), "frequency spectrum of surface elevation variance")
 		d.text(v.Attr("units"), "m2 s")
 	} else {
-		v = d.v("efth", netcdf.FLOAT, dims...)
+		v = d.v("dirspec", netcdf.FLOAT, dims...)
 		d.text(v.Attr("standard_name"), "sea_surface_wave_directional_variance_spectral_density")
 		d.text(v.Attr("long_name"), "directional spectrum of surface elevation variance")
 		if b.sp.PerDegree {

@@ -64,14 +64,17 @@ type ncFile struct {
 	path, tmp string
 	ds        netcdf.Dataset
 	time      netcdf.Var
-	vars      []netcdf.Var // bulk: hm0 te tp wdir; spectral: efth or ef
+	vars      []netcdf.Var // bulk: hm0 te tp wdir; spectral: dirspec or freqspec
 	perm      []int        // file cell order -> site index
 	nsp       int          // cells (or stations) per time step
 	t0        int          // first record index of this file
 }
 
 // Write writes the scenario into dir (created if missing) and returns the
-// paths written, in order. Each file is written under a temporary name and
+// paths written, in order. Files are named <Name>.nc, or <Name>_YYYY-MM.nc
+// with PerMonth; a scenario with both bulk fields and spectra writes
+// <Name>_bulk[_YYYY-MM].nc and <Name>_spec[_YYYY-MM].nc, so that each kind has
+// its own glob. Each file is written under a temporary name and
 // renamed when complete. Same scenario, same values, whatever the machine.
 func (s *Scenario) Write(dir string) ([]string, error) {
 	c := s.withDefaults()
@@ -141,7 +144,11 @@ func (s *Scenario) Write(dir string) ([]string, error) {
 		var bulkF, specF *ncFile
 		var err error
 		if c.Bulk {
-			if bulkF, err = c.createBulk(filepath.Join(dir, c.Name+suffix+".nc"), nt, sites, perm); err != nil {
+			name := c.Name + suffix + ".nc"
+			if sp != nil {
+				name = c.Name + "_bulk" + suffix + ".nc"
+			}
+			if bulkF, err = c.createBulk(filepath.Join(dir, name), nt, sites, perm); err != nil {
 				return written, err
 			}
 			bulkF.t0 = grp[0].firstIndex
