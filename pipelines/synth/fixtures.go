@@ -1,6 +1,7 @@
 package synth
 
 import (
+	"math"
 	"path/filepath"
 	"sort"
 	"strings"
@@ -17,13 +18,7 @@ func fixtureGrid() Grid {
 // Each Tp is 1/f_n of a bin of the default axis f_n = 0.035 * 1.1^n (n = 8, 12,
 // 15), so the discrete peak falls on the generating peak.
 func ReferenceStations() []JonswapParams {
-	bin := func(n int) float64 {
-		f := 0.035
-		for i := 0; i < n; i++ {
-			f *= 1.1
-		}
-		return 1 / f
-	}
+	bin := func(n int) float64 { return 1 / (0.035 * math.Pow(1.1, float64(n))) }
 	return []JonswapParams{
 		{Hm0: 6.0, Tp: bin(8), Gamma: 3.3, SpreadS: 10, DirFrom: 270},
 		{Hm0: 2.5, Tp: bin(12), Gamma: 1.0, SpreadS: 4, DirFrom: 5},

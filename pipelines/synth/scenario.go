@@ -71,7 +71,8 @@ const (
 )
 
 // JonswapParams fixes the spectrum of one station for the whole record (used by
-// the reference fixtures). Zero fields take the generator's defaults.
+// the reference fixtures). Every field must be set (Gamma >= 1, the others > 0
+// except DirFrom).
 type JonswapParams struct {
 	Hm0     float64 // m, of the continuous spectrum
 	Tp      float64 // s, 1/fp
@@ -186,6 +187,19 @@ func (s *Scenario) withDefaults() Scenario {
 		c.Spectra = &sp
 	}
 	return c
+}
+
+// Check reports what is wrong with the scenario (after defaults are filled
+// in), naming the field to fix; Write runs the same check.
+func (s *Scenario) Check() error {
+	c := s.withDefaults()
+	if err := c.validate(); err != nil {
+		return err
+	}
+	if c.Spectra != nil && len(c.stations()) == 0 {
+		return fmt.Errorf("synth: scenario %q: Spectra on a %s grid needs Spectra.Cells", c.Name, c.Grid.Kind)
+	}
+	return nil
 }
 
 // validate checks a defaulted scenario and says which field to fix.

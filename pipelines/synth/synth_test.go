@@ -761,3 +761,15 @@ func TestFloorLoss(t *testing.T) {
 		}
 	}
 }
+
+func TestCheckSpectraNeedCells(t *testing.T) {
+	s := Fixtures()["regular_packed.nc"]
+	s.Spectra = &Spectra{}
+	if err := s.Check(); err == nil || !strings.Contains(err.Error(), "Spectra.Cells") {
+		t.Errorf("Check = %v, want an error naming Spectra.Cells", err)
+	}
+	s.Spectra.Cells = []int{0, 1}
+	if err := s.Check(); err != nil {
+		t.Errorf("Check with cells: %v", err)
+	}
+}

@@ -77,13 +77,10 @@ type ncFile struct {
 // its own glob. Each file is written under a temporary name and
 // renamed when complete. Same scenario, same values, whatever the machine.
 func (s *Scenario) Write(dir string) ([]string, error) {
-	c := s.withDefaults()
-	if err := c.validate(); err != nil {
+	if err := s.Check(); err != nil {
 		return nil, err
 	}
-	if c.Spectra != nil && len(c.stations()) == 0 {
-		return nil, fmt.Errorf("synth: scenario %q: Spectra on a %s grid needs Spectra.Cells", c.Name, c.Grid.Kind)
-	}
+	c := s.withDefaults()
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, fmt.Errorf("synth: make output directory: %w", err)
 	}
