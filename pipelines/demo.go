@@ -1,0 +1,84 @@
+package pipelines
+
+import (
+	"context"
+	_ "embed"
+	"fmt"
+	"os"
+	"path/filepath"
+	"time"
+
+	"swellgrid/pipelines/synth"
+)
+
+//go:embed examples/demo_device.csv
+var demoDeviceCSV []byte
+
+// DemoRun is one atlas the demo made.
+type DemoRun struct {
+	Name   string
+	Input  string
+	Result *Result
+}
+
+// DemoResult says what the demo wrote.
+type DemoResult struct {
+	Dir      string
+	Hindcast []string
+	Runs     []DemoRun
+	Wall     time.Duration
+}
+
+// DemoSpecs returns the specs of the demo's two atlases: bulk fields on the
+// grid and directional spectra at the offshore points of the invented
+// Nullport Shelf hindcast written into dir/hindcast.
+func DemoSpecs(dir string) []*Spec {
+	hind := filepath.Join(dir, "hindcast")
+	mk := func(glob, out string, contours []string) *Spec {
+		s := DefaultSpec()
+		s.Input.Paths = []string{filepath.Join(hind, glob)}
+		s.Output.Dir = filepath.Join(dir, out)
+		s.Devices = []DeviceSpec{{Name: "demo_wec", PowerMatrix: filepath.Join(hind, "demo_device.csv"), Lookup: "bilinear"}}
+		s.Contours.Columns = contours
+		return s
+	}
+	return []*Spec{
+		mk("nullport_bulk_*.nc", "atlas-grid", []string{"power_mean_kw_m", "hm0_mean_m", "hm0_p90_m", "mvi", "aep_demo_wec_mwh"}),
+		mk("nullport_spec_*.nc", "atlas-spectral-points", nil),
+	}
+}
+
+// Demo writes the synthetic scenario and runs the whole job on it twice:
+// once on the bulk grid, once on the spectral points.
+func Demo(ctx context.Context, dir string, opt Options) (*DemoResult, error) {
+	t0 := time.Now()
+	sc := synth.Demo()
+	hind := filepath.Join(dir, "hindcast")
+	if err := os.MkdirAll(hind, 0o755); err != nil {
+		return nil, &outputErr{fmt.Errorf("demo: %v", err)}
+	}
+	if opt.Log != nil {
+		opt.Log.Info("demo: writing the synthetic hindcast", "dir", hind, "place", sc.Place, "months", sc.Months)
+	}
+	files, err := sc.Write(hind)
+	if err != nil {
+		return nil, fmt.Errorf("demo: writing the synthetic hindcast: %v", err)
+	}
+	if err := os.WriteFile(filepath.Join(hind, "demo_device.csv"), demoDeviceCSV, 0o644); err != nil {
+		return nil, &outputErr{fmt.Errorf("demo: %v", err)}
+	}
+	res := &DemoResult{Dir: dir, Hindcast: files}
+	for i, spec := range DemoSpecs(dir) {
+		name := []string{"bulk fields on the grid", "directional spectra at offshore points"}[i]
+		if opt.Log != nil {
+			opt.Log.Info("demo: atlas", "of", name, "out", spec.Output.Dir)
+		}
+		r, err := Run(ctx, spec, opt)
+		if err != nil {
+			return nil, err
+		}
+		res.Runs = append(res.Runs, DemoRun{Name: name, Input: spec.Input.Paths[0], Result: r})
+	}
+	res.Wall = time.Since(t0)
+	return res, nil
+}
