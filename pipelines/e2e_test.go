@@ -1,0 +1,296 @@
+package pipelines
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"swellgrid/ingest"
+	"testing"
+
+	"github.com/apache/arrow/go/v17/arrow/array"
+	"github.com/apache/arrow/go/v17/arrow/memory"
+	"github.com/apache/arrow/go/v17/parquet/file"
+	"github.com/apache/arrow/go/v17/parquet/pqarrow"
+)
+
+var allTables = []string{"cells.parquet", "monthly.parquet", "scatter.parquet", "exceedance.parquet", "windows.parquet", "extremes.parquet", "manifest.json"}
+
+func testSpec(t *testing.T, input string, out string) *Spec {
+	t.Helper()
+	s := DefaultSpec()
+	s.Input.Paths = []string{filepath.Join("..", input)}
+	s.Output.Dir = out
+	return s
+}
+
+func mustRun(t *testing.T, s *Spec) *Result {
+	t.Helper()
+	r, err := Run(context.Background(), s, Options{Version: "test"})
+	if err != nil {
+		t.Fatalf("run %v: %v", s.Input.Paths, err)
+	}
+	return r
+}
+
+func requireFiles(t *testing.T, dir string, names ...string) {
+	t.Helper()
+	for _, n := range names {
+		if st, err := os.Stat(filepath.Join(dir, n)); err != nil || st.Size() == 0 {
+			t.Errorf("%s: missing or empty %s", dir, n)
+		}
+	}
+}
+
+func parquetFiles(t *testing.T, dir string) map[string][]byte {
+	t.Helper()
+	out := map[string][]byte{}
+	for _, n := range allTables[:6] {
+		b, err := os.ReadFile(filepath.Join(dir, n))
+		if err != nil {
+			t.Fatal(err)
+		}
+		out[n] = b
+	}
+	return out
+}
+
+func sameBytes(t *testing.T, what string, a, b map[string][]byte) {
+	t.Helper()
+	for n := range a {
+		if !bytes.Equal(a[n], b[n]) {
+			t.Errorf("%s: %s differs", what, n)
+		}
+	}
+}
+
+// readColumn reads one float column of a Parquet file with the Arrow reader.
+func readColumn(t *testing.T, path, col string) []float64 {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rdr, err := file.NewParquetReader(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fr, err := pqarrow.NewFileReader(rdr, pqarrow.ArrowReadProperties{}, memory.DefaultAllocator)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tbl, err := fr.ReadTable(context.Background())
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer tbl.Release()
+	idx := tbl.Schema().FieldIndices(col)
+	if len(idx) != 1 {
+		t.Fatalf("%s: no column %s", path, col)
+	}
+	var out []float64
+	for _, ch := range tbl.Column(idx[0]).Data().Chunks() {
+		a := ch.(*array.Float64)
+		for i := 0; i < a.Len(); i++ {
+			if a.IsNull(i) {
+				out = append(out, math.NaN())
+			} else {
+				out = append(out, a.Value(i))
+			}
+		}
+	}
+	return out
+}
+
+// The bulk fixture gives every output, and the tables are byte-identical
+// whatever the number of workers (DESIGN.md: deterministic output).
+func TestBulkRunAndWorkerDeterminism(t *testing.T) {
+	var ref map[string][]byte
+	for _, w := range []int{1, 2, 8} {
+		out := t.TempDir()
+		s := testSpec(t, "testdata/bulk_monthly", out)
+		s.Run.Workers = w
+		mustRun(t, s)
+		requireFiles(t, out, allTables...)
+		requireFiles(t, out, "contours/power_mean_kw_m.geojson", "contours/power_mean_kw_m.bands.geojson")
+		got := parquetFiles(t, out)
+		if ref == nil {
+			ref = got
+			continue
+		}
+		sameBytes(t, "workers 1 vs "+string(rune('0'+w)), ref, got)
+	}
+}
+
+// A run over the first year, then the same command over both years in the
+// same directory, resumes from the checkpoint and gives the bytes of a fresh
+// run over both years.
+func TestResumeGivesSameBytes(t *testing.T) {
+	files, _ := filepath.Glob("../testdata/bulk_monthly/*.nc")
+	sort.Strings(files)
+	if len(files) != 24 {
+		t.Fatalf("fixture has %d files", len(files))
+	}
+	fresh := t.TempDir()
+	s := DefaultSpec()
+	s.Input.Paths, s.Output.Dir = files, fresh
+	mustRun(t, s)
+	resumed := t.TempDir()
+	s1 := DefaultSpec()
+	s1.Input.Paths, s1.Output.Dir = files[:12], resumed
+	mustRun(t, s1)
+	s2 := DefaultSpec()
+	s2.Input.Paths, s2.Output.Dir = files, resumed
+	mustRun(t, s2)
+	sameBytes(t, "resumed", parquetFiles(t, fresh), parquetFiles(t, resumed))
+
+	// A changed spec refuses to resume and says why; --restart starts over.
+	s3 := DefaultSpec()
+	s3.Input.Paths, s3.Output.Dir = files, resumed
+	s3.Physics.Rho = 1027
+	_, err := Run(context.Background(), s3, Options{})
+	if err == nil || !strings.Contains(err.Error(), "spec changed") || !strings.Contains(err.Error(), "--restart") {
+		t.Errorf("changed spec: %v", err)
+	}
+	if _, err := Run(context.Background(), s3, Options{Restart: true}); err != nil {
+		t.Errorf("restart: %v", err)
+	}
+}
+
+// The JONSWAP-built spectral fixture gives the mean power computed
+// independently with Debian's python3-netcdf4/numpy/scipy
+// (testdata/pipeline/make_power_ref.py -> power_ref.json) within 0.5% per cell.
+func TestSpectralPowerAgainstNumpy(t *testing.T) {
+	out := t.TempDir()
+	mustRun(t, testSpec(t, "testdata/spectral_points.nc", out))
+	requireFiles(t, out, allTables...)
+	var ref struct {
+		Stations []struct {
+			Station      int
+			PowerMeanKWm float64 `json:"power_mean_kw_m"`
+		}
+	}
+	b, err := os.ReadFile("../testdata/pipeline/power_ref.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(b, &ref); err != nil {
+		t.Fatal(err)
+	}
+	got := readColumn(t, filepath.Join(out, "cells.parquet"), "power_mean_kw_m")
+	if len(ref.Stations) != len(got) || len(got) == 0 {
+		t.Fatalf("%d stations vs %d cells", len(ref.Stations), len(got))
+	}
+	for _, st := range ref.Stations {
+		rel := math.Abs(got[st.Station]-st.PowerMeanKWm) / st.PowerMeanKWm
+		if rel > 0.005 {
+			t.Errorf("station %d: %.4f kW/m vs numpy %.4f (%.3f%%)", st.Station, got[st.Station], st.PowerMeanKWm, 100*rel)
+		}
+	}
+}
+
+// A point set gets every table and no contours, and the manifest says why.
+func TestPointSetRun(t *testing.T) {
+	out := t.TempDir()
+	mustRun(t, testSpec(t, "testdata/points_bulk.nc", out))
+	requireFiles(t, out, allTables...)
+	if _, err := os.Stat(filepath.Join(out, "contours")); err == nil {
+		t.Error("contours written for a point set")
+	}
+	m, _ := os.ReadFile(filepath.Join(out, "manifest.json"))
+	if !bytes.Contains(m, []byte("point set")) || !bytes.Contains(m, []byte("screening estimates")) {
+		t.Error("manifest lacks the no-contour reason or the caution")
+	}
+}
+
+// A curvilinear grid gets contour layers.
+func TestCurvilinearRun(t *testing.T) {
+	out := t.TempDir()
+	mustRun(t, testSpec(t, "testdata/curvilinear_bulk.nc", out))
+	requireFiles(t, out, allTables...)
+	requireFiles(t, out, "contours/power_mean_kw_m.geojson", "contours/hm0_mean_m.bands.geojson")
+}
+
+func TestSpecUnknownKeyAndBadValues(t *testing.T) {
+	dir := t.TempDir()
+	p := filepath.Join(dir, "s.toml")
+	os.WriteFile(p, []byte("[input]\npaths = [\"x\"]\n[physics]\nrho = 1025.0\ngravity = 9.8\n"), 0o644)
+	if _, err := LoadSpec(p); err == nil || !strings.Contains(err.Error(), "physics.gravity") {
+		t.Errorf("unknown key: %v", err)
+	}
+	for _, c := range []struct {
+		mod  func(s *Spec)
+		want string
+	}{
+		{func(s *Spec) { s.Extremes.ReturnPeriodsY = []float64{-5, 10} }, "extremes.return_periods_y"},
+		{func(s *Spec) { s.Statistics.WindowLimitsM = []float64{2, 1.5} }, "strictly increasing"},
+		{func(s *Spec) { s.Devices = []DeviceSpec{{Name: "wec", PowerMatrix: "/nonexistent.csv"}} }, "device[0].power_matrix"},
+		{func(s *Spec) { s.Depth.Source = "guess" }, "depth.source"},
+	} {
+		s := DefaultSpec()
+		s.Input.Paths = []string{"x"}
+		c.mod(s)
+		if err := s.Validate(); err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("want %q, got %v", c.want, err)
+		}
+	}
+}
+
+// An output directory in use by a live process is refused.
+func TestLockedOutputDir(t *testing.T) {
+	out := t.TempDir()
+	os.MkdirAll(filepath.Join(out, stateDir), 0o755)
+	os.WriteFile(filepath.Join(out, stateDir, "lock"), []byte("1\n"), 0o644) // pid 1 is always alive
+	_, err := Run(context.Background(), testSpec(t, "testdata/points_bulk.nc", out), Options{})
+	if err == nil || !IsOutputError(err) || !strings.Contains(err.Error(), "in use") {
+		t.Fatalf("locked dir: %v", err)
+	}
+}
+
+// The demo runs the whole job and writes every output of both atlases.
+func TestDemo(t *testing.T) {
+	if testing.Short() {
+		t.Skip("demo takes ~15 s")
+	}
+	dir := t.TempDir()
+	res, err := Demo(context.Background(), dir, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Runs) != 2 {
+		t.Fatalf("%d atlases", len(res.Runs))
+	}
+	requireFiles(t, res.Runs[0].Result.OutDir, allTables...)
+	requireFiles(t, res.Runs[0].Result.OutDir, "contours/power_mean_kw_m.bands.geojson", "contours/aep_demo_wec_mwh.geojson")
+	requireFiles(t, res.Runs[1].Result.OutDir, allTables...)
+	aep := readColumn(t, filepath.Join(res.Runs[0].Result.OutDir, "cells.parquet"), "aep_demo_wec_mwh")
+	n := 0
+	for _, v := range aep {
+		if v > 0 {
+			n++
+		}
+	}
+	if n == 0 {
+		t.Error("no cell has a device yield")
+	}
+	// A small memory budget splits the 1200 cells into several passes (cell
+	// ranges read separately); the tables are byte-identical to one pass.
+	s := DemoSpecs(dir)[0]
+	s.Output.Dir = t.TempDir()
+	s.Run.MemoryLimit = "16MiB"
+	mustRun(t, s)
+	passes, _ := filepath.Glob(filepath.Join(s.Output.Dir, stateDir, "pass-*.ckpt"))
+	if len(passes) < 2 {
+		t.Fatalf("16MiB gives %d passes; the test needs several", len(passes))
+	}
+	sameBytes(t, "passes", parquetFiles(t, res.Runs[0].Result.OutDir), parquetFiles(t, s.Output.Dir))
+}
+
+func ingestOpen(s *Spec) (*ingest.Catalog, error) {
+	return ingest.Open(s.Input.Paths, s.ingestOptions())
+}
