@@ -294,3 +294,22 @@ func TestDemo(t *testing.T) {
 func ingestOpen(s *Spec) (*ingest.Catalog, error) {
 	return ingest.Open(s.Input.Paths, s.ingestOptions())
 }
+
+// Every example spec loads, validates and runs.
+func TestExampleSpecs(t *testing.T) {
+	files, _ := filepath.Glob("examples/*.toml")
+	if len(files) < 3 {
+		t.Fatalf("%d example specs", len(files))
+	}
+	for _, f := range files {
+		s, err := LoadSpec(f)
+		if err != nil {
+			t.Errorf("%s: %v", f, err)
+			continue
+		}
+		s.Output.Dir = t.TempDir()
+		if _, err := Run(context.Background(), s, Options{}); err != nil {
+			t.Errorf("%s: %v", f, err)
+		}
+	}
+}

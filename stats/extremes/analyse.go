@@ -311,6 +311,9 @@ func chooseThreshold(peaks []Maximum, cfg AnalysisConfig, years float64) float64
 		v[i] = p.Hm0
 	}
 	sort.Sort(sort.Reverse(sort.Float64Slice(v)))
+	if len(v) == 1 {
+		return v[0]
+	}
 	k := int(math.Round(cfg.TargetPeaksPerYear * years))
 	k = max(1, min(k, len(v)-1))
 	return v[k]

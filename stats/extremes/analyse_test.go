@@ -121,3 +121,12 @@ func TestAnalyseFlags(t *testing.T) {
 		t.Errorf("flag names %v", got)
 	}
 }
+
+// A record with a single storm peak must not panic when the threshold is chosen
+// by a target number of peaks per year (regression: index out of range).
+func TestChooseThresholdOnePeak(t *testing.T) {
+	got := chooseThreshold([]Maximum{{Hm0: 3.2}}, AnalysisConfig{Threshold: ThresholdPeaksPerYear, TargetPeaksPerYear: 5}, 0.2)
+	if got != 3.2 {
+		t.Errorf("threshold %v, want the only peak 3.2", got)
+	}
+}
