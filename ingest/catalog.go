@@ -95,7 +95,10 @@ const (
 // unpack turns one raw stored value into SI units, NaN when missing
 // (CF Conventions 1.8, section 8.1 packing and 2.5.1 missing data: values equal
 // to _FillValue or missing_value, or outside valid_min/valid_max, are missing;
-// unpacked = raw * scale_factor + add_offset).
+// unpacked = raw * scale_factor + add_offset). A direction (roles dir and
+// dir_peak) more than a turn outside 0-360 degrees, i.e. outside -360..720,
+// is missing too (common practice: such a value is an error, not an unwrapped
+// angle); directions within it are wrapped to 0-360 by the reader.
 func (vi *VarInfo) unpack(raw float64) float64 {
 	if raw != raw || raw < vi.ValidMin || raw > vi.ValidMax {
 		return math.NaN()
@@ -105,7 +108,13 @@ func (vi *VarInfo) unpack(raw float64) float64 {
 			return math.NaN()
 		}
 	}
-	return (raw*vi.Scale + vi.Offset) * vi.Factor
+	x := (raw*vi.Scale + vi.Offset) * vi.Factor
+	if (vi.Role == Dir || vi.Role == DirPeak) && !(x >= -360 && x <= 720) {
+		// A direction more than a turn outside 0-360 degrees is not a
+		// direction that was merely stored unwrapped; treat it as missing.
+		return math.NaN()
+	}
+	return x
 }
 
 // FileInfo describes one input file.
@@ -252,6 +261,15 @@ func Open(inputs []string, opt Options) (*Catalog, error) {
 		if math.IsNaN(c.Grid.Lon[i]) || math.IsNaN(c.Grid.Lat[i]) {
 			c.Masked[i] = true
 		}
+	}
+	sea := 0
+	for _, m := range c.Masked {
+		if !m {
+			sea++
+		}
+	}
+	if sea == 0 {
+		return nil, fmt.Errorf("ingest: every cell of the grid is land or unknown: depth from %s is <= 0 m or missing in every cell (or no cell has finite coordinates); check the depth's sign convention (positive down, standard_name sea_floor_depth_below_sea_surface) or set depth.source in the spec", c.DepthSource)
 	}
 	return c, nil
 }

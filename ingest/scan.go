@@ -5,6 +5,8 @@ import (
 	"math"
 	"strings"
 
+	"github.com/fhs/go-netcdf/netcdf"
+
 	"swellgrid/grid"
 )
 
@@ -41,6 +43,9 @@ func scanFile(path string, opt Options) (*scan, error) {
 	}
 	defer f.close()
 	s := &scan{f: f, info: FileInfo{Path: path, Size: size, Format: format}}
+	if err := s.checkDeclaredSize(); err != nil {
+		return nil, err
+	}
 	tv, err := s.findTime()
 	if err != nil {
 		return nil, err
@@ -91,6 +96,13 @@ func scanStatic(path string, opt Options) (*scan, error) {
 		return nil, err
 	}
 	s := &scan{f: f, info: FileInfo{Path: path}}
+	if format, size, err := checkMagic(path); err == nil {
+		s.info.Format, s.info.Size = format, size
+	}
+	if err := s.checkDeclaredSize(); err != nil {
+		f.close()
+		return nil, err
+	}
 	if err := s.findGrid(); err != nil {
 		f.close()
 		return nil, err
@@ -105,6 +117,63 @@ func scanStatic(path string, opt Options) (*scan, error) {
 		s.info.vars[Depth] = vi
 	}
 	return s, nil
+}
+
+// typeBytes is the stored size of one value of a NetCDF type (NetCDF User's
+// Guide, classic format specification: NC_BYTE/CHAR 1, NC_SHORT 2, NC_INT and
+// NC_FLOAT 4, NC_DOUBLE 8; the NetCDF-4 types by their width).
+func typeBytes(t netcdf.Type) uint64 {
+	switch t {
+	case netcdf.BYTE, netcdf.UBYTE, netcdf.CHAR:
+		return 1
+	case netcdf.SHORT, netcdf.USHORT:
+		return 2
+	case netcdf.INT, netcdf.UINT, netcdf.FLOAT:
+		return 4
+	}
+	return 8
+}
+
+// checkDeclaredSize refuses a classic-format file that is shorter than the
+// data its header declares. Classic files store every variable uncompressed
+// and in full (record variables for numrecs records), so the file must be at
+// least as long as the sum of the variables' sizes; a shorter file was cut off
+// (an interrupted transfer), or its header claims dimensions it does not hold.
+// The NetCDF library reads such files without complaint (missing bytes come
+// back as zeros or fill values), and a huge claimed dimension would make a
+// reader allocate it, so the check comes before any value is read. NetCDF-4
+// files are compressed and checked by HDF5 instead.
+func (s *scan) checkDeclaredSize() error {
+	if s.info.Format == "netcdf4" || s.info.Format == "" {
+		return nil
+	}
+	var total uint64
+	var big *ncVar
+	var bigBytes uint64
+	for i := range s.f.vars {
+		v := &s.f.vars[i]
+		n := typeBytes(v.typ)
+		for _, d := range v.shape {
+			if d != 0 && n > math.MaxUint64/d {
+				n = math.MaxUint64
+				break
+			}
+			n *= d
+		}
+		if n > bigBytes {
+			big, bigBytes = v, n
+		}
+		if total+n < total {
+			total = math.MaxUint64
+		} else {
+			total += n
+		}
+	}
+	if big != nil && total > uint64(s.info.Size) {
+		return errf(s.f.path, big.name, "the header declares %d bytes of data (this variable alone %d values of shape %v) but the file has only %d bytes; the file is truncated or corrupt: copy or download it again",
+			total, big.size(), big.shape, s.info.Size)
+	}
+	return nil
 }
 
 func (s *scan) findTime() (*ncVar, error) {
@@ -156,6 +225,11 @@ func (s *scan) readTime(tv *ncVar) error {
 		return errf(s.f.path, tv.name, "the time dimension has size 0; the file holds no data: remove it from the input")
 	}
 	fills := tv.nums("_FillValue")
+	if len(fills) == 0 {
+		if df := defaultFill(tv.typ); !math.IsNaN(df) {
+			fills = []float64{df} // CF 1.8 section 2.5.1: the NetCDF default fill applies
+		}
+	}
 	s.info.times = make([]Stamp, len(vals))
 	for i, v := range vals {
 		for _, fv := range fills {
@@ -240,7 +314,7 @@ func (s *scan) findGrid() error {
 	switch {
 	case len(lon.dims) == 1 && len(lat.dims) == 1 && lon.dims[0] != lat.dims[0]:
 		if len(lonv) == 0 || len(latv) == 0 {
-			return errf(s.f.path, "", "a grid dimension has size 0 (%d lon, %d lat); the file holds no cells", len(lonv), len(latv))
+			return errf(s.f.path, lon.name+"/"+lat.name, "a grid dimension has size 0 (%d lon, %d lat); the file holds no cells: remove it from the input or write it again", len(lonv), len(latv))
 		}
 		g, err := grid.NewRegular(lonv, latv)
 		if err != nil {

@@ -1,0 +1,244 @@
+package corpus
+
+import (
+	"fmt"
+	"math"
+	"os"
+
+	"github.com/fhs/go-netcdf/netcdf"
+)
+
+// ncDim is one dimension of a file description.
+type ncDim struct {
+	name string
+	n    int
+}
+
+// ncAttr is one attribute: text when s is set, else numbers of the variable's
+// type (or double for global attributes).
+type ncAttr struct {
+	name string
+	s    string
+	num  []float64
+	text bool
+}
+
+// ncVarDesc is one variable: its type, dimensions, attributes and values in
+// storage order (nil: left unwritten, i.e. fill values).
+type ncVarDesc struct {
+	name  string
+	typ   netcdf.Type
+	dims  []string
+	attrs []ncAttr
+	data  []float64
+}
+
+func (v *ncVarDesc) setText(name, s string) {
+	for i := range v.attrs {
+		if v.attrs[i].name == name {
+			v.attrs[i] = ncAttr{name: name, s: s, text: true}
+			return
+		}
+	}
+	v.attrs = append(v.attrs, ncAttr{name: name, s: s, text: true})
+}
+
+func (v *ncVarDesc) setNum(name string, x ...float64) {
+	for i := range v.attrs {
+		if v.attrs[i].name == name {
+			v.attrs[i] = ncAttr{name: name, num: x}
+			return
+		}
+	}
+	v.attrs = append(v.attrs, ncAttr{name: name, num: x})
+}
+
+func (v *ncVarDesc) delAttr(name string) {
+	out := v.attrs[:0]
+	for _, a := range v.attrs {
+		if a.name != name {
+			out = append(out, a)
+		}
+	}
+	v.attrs = out
+}
+
+// ncDesc describes a whole NetCDF file before it is written.
+type ncDesc struct {
+	netcdf4 bool
+	dims    []ncDim
+	vars    []*ncVarDesc
+	global  []ncAttr
+}
+
+func (d *ncDesc) v(name string) *ncVarDesc {
+	for _, v := range d.vars {
+		if v.name == name {
+			return v
+		}
+	}
+	panic("corpus: no variable " + name) // a mistake in a case definition
+}
+
+func (d *ncDesc) drop(name string) {
+	out := d.vars[:0]
+	for _, v := range d.vars {
+		if v.name != name {
+			out = append(out, v)
+		}
+	}
+	d.vars = out
+}
+
+func (d *ncDesc) dim(name string) int {
+	for _, x := range d.dims {
+		if x.name == name {
+			return x.n
+		}
+	}
+	panic("corpus: no dimension " + name)
+}
+
+func (d *ncDesc) setDim(name string, n int) {
+	for i := range d.dims {
+		if d.dims[i].name == name {
+			d.dims[i].n = n
+			return
+		}
+	}
+	d.dims = append(d.dims, ncDim{name, n})
+}
+
+// clone copies a description deeply, so that a case can change its copy.
+func (d *ncDesc) clone() *ncDesc {
+	c := &ncDesc{netcdf4: d.netcdf4, dims: append([]ncDim(nil), d.dims...), global: append([]ncAttr(nil), d.global...)}
+	for _, v := range d.vars {
+		nv := *v
+		nv.dims = append([]string(nil), v.dims...)
+		nv.attrs = append([]ncAttr(nil), v.attrs...)
+		if v.data != nil {
+			nv.data = append([]float64(nil), v.data...)
+		}
+		c.vars = append(c.vars, &nv)
+	}
+	return c
+}
+
+// write creates the file at path (replacing it).
+func (d *ncDesc) write(path string) (err error) {
+	mode := netcdf.CLOBBER
+	if d.netcdf4 {
+		mode |= netcdf.NETCDF4
+	}
+	ds, err := netcdf.CreateFile(path, mode)
+	if err != nil {
+		return fmt.Errorf("corpus: create %s: %w", path, err)
+	}
+	closed := false
+	defer func() {
+		if !closed {
+			ds.Close()
+		}
+		if err != nil {
+			os.Remove(path)
+		}
+	}()
+	dims := map[string]netcdf.Dim{}
+	for _, dm := range d.dims {
+		x, err := ds.AddDim(dm.name, uint64(dm.n))
+		if err != nil {
+			return fmt.Errorf("corpus: %s: dimension %s: %w", path, dm.name, err)
+		}
+		dims[dm.name] = x
+	}
+	for _, a := range d.global {
+		if err := writeAttr(ds.Attr(a.name), netcdf.DOUBLE, a); err != nil {
+			return fmt.Errorf("corpus: %s: global attribute %s: %w", path, a.name, err)
+		}
+	}
+	nv := make([]netcdf.Var, len(d.vars))
+	for i, v := range d.vars {
+		var vd []netcdf.Dim
+		for _, n := range v.dims {
+			x, ok := dims[n]
+			if !ok {
+				return fmt.Errorf("corpus: %s: variable %s: no dimension %s", path, v.name, n)
+			}
+			vd = append(vd, x)
+		}
+		x, err := ds.AddVar(v.name, v.typ, vd)
+		if err != nil {
+			return fmt.Errorf("corpus: %s: variable %s: %w", path, v.name, err)
+		}
+		for _, a := range v.attrs {
+			if err := writeAttr(x.Attr(a.name), v.typ, a); err != nil {
+				return fmt.Errorf("corpus: %s: %s:%s: %w", path, v.name, a.name, err)
+			}
+		}
+		nv[i] = x
+	}
+	if err := ds.EndDef(); err != nil {
+		return fmt.Errorf("corpus: %s: %w", path, err)
+	}
+	for i, v := range d.vars {
+		if v.data == nil {
+			continue
+		}
+		if err := writeData(nv[i], v.typ, v.data); err != nil {
+			return fmt.Errorf("corpus: %s: variable %s: %w", path, v.name, err)
+		}
+	}
+	closed = true
+	if err := ds.Close(); err != nil {
+		return fmt.Errorf("corpus: close %s: %w", path, err)
+	}
+	return nil
+}
+
+func writeAttr(a netcdf.Attr, typ netcdf.Type, at ncAttr) error {
+	if at.text {
+		return a.WriteBytes([]byte(at.s))
+	}
+	if at.name == "scale_factor" || at.name == "add_offset" {
+		typ = netcdf.DOUBLE // packing attributes as doubles (CF 1.8 section 8.1 allows a wider type)
+	}
+	switch typ {
+	case netcdf.FLOAT:
+		b := make([]float32, len(at.num))
+		for i, x := range at.num {
+			b[i] = float32(x)
+		}
+		return a.WriteFloat32s(b)
+	case netcdf.SHORT:
+		b := make([]int16, len(at.num))
+		for i, x := range at.num {
+			b[i] = int16(x)
+		}
+		return a.WriteInt16s(b)
+	}
+	return a.WriteFloat64s(at.num)
+}
+
+func writeData(v netcdf.Var, typ netcdf.Type, data []float64) error {
+	switch typ {
+	case netcdf.DOUBLE:
+		return v.WriteFloat64s(data)
+	case netcdf.FLOAT:
+		b := make([]float32, len(data))
+		for i, x := range data {
+			b[i] = float32(x)
+		}
+		return v.WriteFloat32s(b)
+	case netcdf.SHORT:
+		b := make([]int16, len(data))
+		for i, x := range data {
+			if math.IsNaN(x) {
+				b[i] = -32767
+			} else {
+				b[i] = int16(math.Round(x))
+			}
+		}
+		return v.WriteInt16s(b)
+	}
+	return fmt.Errorf("type %v not supported by the corpus writer", typ)
+}
