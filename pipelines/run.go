@@ -26,6 +26,16 @@ type Options struct {
 	Log      *slog.Logger // progress and warnings (nil: discard)
 	Progress Progress     // progress display (nil: none)
 	Version  string       // software version for the manifest
+	// Shard, if set, restricts the run to one share of the cells and writes a
+	// shard directory (final states and shard.json) instead of tables; see
+	// Merge.
+	Shard *Shard
+	// Update continues the finished run in the output directory with the
+	// input files that are new (later in time); see update.go.
+	Update bool
+	// Workers, if > 0, is the number of fit workers of Merge (a run takes
+	// run.workers from the spec).
+	Workers int
 }
 
 // Result says what a run wrote.
@@ -234,9 +244,36 @@ func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
 	if workers == 0 {
 		workers = runtime.NumCPU()
 	}
-	passes, err := eng.plan()
+	if opt.Update && opt.Restart {
+		return nil, &InputError{errors.New("--update and --restart exclude each other: an update continues the saved states, a restart discards them")}
+	}
+	lo, hi := 0, cat.Grid.NCells()
+	if opt.Shard != nil {
+		if lo, hi, err = opt.Shard.Cells(cat.Grid); err != nil {
+			return nil, &InputError{err}
+		}
+	}
+	passes, err := eng.plan(lo, hi)
 	if err != nil {
 		return nil, &InputError{err}
+	}
+	trusted := 0
+	if opt.Update {
+		// The earlier files must be unchanged: compare their checksums before
+		// anything is read or written.
+		sumWG.Wait()
+		if sumErr != nil {
+			return nil, &InputError{sumErr}
+		}
+		up, err := checkUpdate(out, spec, cat, sums, opt.Shard)
+		if err != nil {
+			return nil, &InputError{err}
+		}
+		passes, trusted = up.passes, up.earlier
+		if up.shard != nil {
+			opt.Shard, lo, hi = up.shard, up.lo, up.hi
+		}
+		log.Info("update", "earlier_files", up.earlier, "new_files", len(cat.Files)-up.earlier)
 	}
 	log.Info("run", "files", len(cat.Files), "steps", cat.Steps, "cells", cat.Grid.NCells(), "passes", len(passes), "workers", workers, "out", out)
 	var results []*cellResult
@@ -249,7 +286,7 @@ func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
 		from := 0
 		if !opt.Restart {
 			if _, err := os.Stat(path); err == nil {
-				cells, from, err = loadCheckpoint(path, want, eng.newCell)
+				cells, from, err = loadCheckpointTrusting(path, want, trusted, eng.newCell)
 				if err != nil {
 					if IsResumeRefused(err) {
 						return nil, &InputError{err}
@@ -301,6 +338,9 @@ func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
 			opt.Progress.Done()
 		}
 		mark("stream_s", ts)
+		if opt.Shard != nil {
+			continue // a shard keeps its final states; Merge fits them
+		}
 		ts = time.Now()
 		res, err := eng.finishAll(ctx, p[0], cells, acfg, workers, opt.Progress)
 		if err != nil {
@@ -315,6 +355,12 @@ func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
 	}
 	if ctx.Err() != nil {
 		return nil, ctx.Err()
+	}
+	if err := removeStaleCheckpoints(out, passes); err != nil {
+		return nil, &outputErr{err}
+	}
+	if opt.Shard != nil {
+		return writeShard(out, spec, cat, *opt.Shard, lo, hi, passes, sums, opt.Version, t0)
 	}
 	ts = time.Now()
 	written, warns, err := eng.writeOutputs(out, results)
@@ -334,12 +380,11 @@ type devNull struct{}
 
 func (devNull) Write(p []byte) (int, error) { return len(p), nil }
 
-// plan splits the cells into passes that fit the memory budget. The estimate
+// plan splits the cells lo..hi-1 into passes that fit the memory budget. The estimate
 // per cell is the encoded size of a state after the record's years plus the
 // read buffers of a block.
-func (e *engine) plan() ([][2]int, error) {
+func (e *engine) plan(lo, hi int) ([][2]int, error) {
 	limit, _ := ParseSize(e.spec.Run.MemoryLimit)
-	n := e.cat.Grid.NCells()
 	years := math.Max(1, float64(e.cat.Steps)*e.dtHours/8766)
 	probe := climate.NewCellState(e.ccfg)
 	b, _ := probe.MarshalBinary()
@@ -358,8 +403,8 @@ func (e *engine) plan() ([][2]int, error) {
 		per = per / e.cat.Grid.NX * e.cat.Grid.NX // whole rows read best
 	}
 	var out [][2]int
-	for c := 0; c < n; c += per {
-		out = append(out, [2]int{c, min(n, c+per)})
+	for c := lo; c < hi; c += per {
+		out = append(out, [2]int{c, min(hi, c+per)})
 	}
 	return out, nil
 }

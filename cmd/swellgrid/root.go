@@ -36,6 +36,6 @@ func newRootCmd() *cobra.Command {
 		SilenceUsage:  true,
 		SilenceErrors: true,
 	}
-	root.AddCommand(newInspectCmd(), newRunCmd(), newDemoCmd())
+	root.AddCommand(newInspectCmd(), newRunCmd(), newDemoCmd(), newMergeCmd(), newClusterCmd())
 	return root
 }

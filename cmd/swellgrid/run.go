@@ -23,6 +23,7 @@ site measurements, and review by qualified engineers.`
 
 type runFlags struct {
 	input, out, spec, memory string
+	shard, update            string
 	workers                  int
 	depth                    float64
 	deep, restart            bool
@@ -37,6 +38,28 @@ func (f *runFlags) register(cmd *cobra.Command) {
 	cmd.Flags().BoolVar(&f.deep, "deep-water", false, "assume deep water everywhere")
 	cmd.Flags().StringVar(&f.memory, "memory-limit", "", "memory budget, e.g. 4GiB (sets the cells per pass)")
 	cmd.Flags().BoolVar(&f.restart, "restart", false, "ignore checkpoints in the output directory and start over")
+	cmd.Flags().StringVar(&f.shard, "shard", "", "run only share I of N of the cells (I/N, 1-based; whole grid rows) and write a shard directory for `swellgrid merge`")
+	cmd.Flags().StringVar(&f.update, "update", "", "continue the finished run in DIR with the new (later) input files; refused if an earlier file or the spec changed")
+}
+
+// runOptions turns --shard and --update into run options; --update DIR is
+// the output directory.
+func (f *runFlags) runOptions(spec *pipelines.Spec) (pipelines.Options, error) {
+	opt := pipelines.Options{Restart: f.restart, Update: f.update != ""}
+	if f.shard != "" {
+		sh, err := pipelines.ParseShard(f.shard)
+		if err != nil {
+			return opt, err
+		}
+		opt.Shard = &sh
+	}
+	if f.update != "" {
+		if f.out != "" && f.out != f.update {
+			return opt, fmt.Errorf("--update %s writes into that directory; leave --out out (it says %s)", f.update, f.out)
+		}
+		spec.Output.Dir = f.update
+	}
+	return opt, nil
 }
 
 // buildSpec applies the flags over the spec file (or the defaults).
@@ -85,20 +108,31 @@ storm peaks, with 95% intervals), and writes cells.parquet (GeoParquet), the lon
 tables, GeoJSON contour layers and manifest.json into the output directory.
 
 A checkpoint is saved after each input file; rerunning the same command resumes.
+--shard I/N runs one share of the cells (whole grid rows) and writes a shard
+directory; swellgrid merge combines the shards into the outputs of a whole run.
+--update DIR adds the input files later than the run in DIR to its saved states
+and rewrites its outputs, identical to a full run over all files; it refuses when
+an earlier file (size, SHA-256) or the spec changed.
 Exit codes: 0 ok, 1 internal error, 2 bad input or spec, 3 interrupted,
 4 output directory locked or not writable.
 
 ` + caution,
 		Example: `  swellgrid run --input 'hindcast/*.nc' --out atlas
   swellgrid run --spec pipelines/examples/bulk.toml --workers 2
-  swellgrid run --input hindcast/ --out atlas --depth 40`,
+  swellgrid run --input hindcast/ --out atlas --depth 40
+  swellgrid run --spec atlas.toml --shard 3/8 --out shards/3
+  swellgrid run --spec atlas.toml --update atlas --input 'hindcast/*.nc'`,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			spec, err := f.buildSpec()
 			if err != nil {
 				return &exitErr{2, err}
 			}
-			res, err := runSpec(spec, f.restart)
+			opt, err := f.runOptions(spec)
+			if err != nil {
+				return &exitErr{2, err}
+			}
+			res, err := runSpecWith(spec, opt)
 			if err != nil {
 				return err
 			}
@@ -116,10 +150,15 @@ Exit codes: 0 ok, 1 internal error, 2 bad input or spec, 3 interrupted,
 // runSpec runs the pipeline with progress on stderr and maps its errors to
 // exit codes.
 func runSpec(spec *pipelines.Spec, restart bool) (*pipelines.Result, error) {
+	return runSpecWith(spec, pipelines.Options{Restart: restart})
+}
+
+// runSpecWith is runSpec with shard and update options.
+func runSpecWith(spec *pipelines.Spec, opt pipelines.Options) (*pipelines.Result, error) {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
 	log := slog.New(slog.NewTextHandler(os.Stderr, nil))
-	opt := pipelines.Options{Restart: restart, Log: log, Version: Version}
+	opt.Log, opt.Version = log, Version
 	if term.IsTerminal(int(os.Stderr.Fd())) {
 		opt.Progress = pipelines.NewBarProgress(os.Stderr)
 	} else {

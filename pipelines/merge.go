@@ -1,0 +1,268 @@
+package pipelines
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"log/slog"
+	"os"
+	"path/filepath"
+	"runtime"
+	"sort"
+	"strings"
+	"time"
+
+	"swellgrid/export"
+	"swellgrid/ingest"
+)
+
+// Merge combines the shard directories written by runs with Options.Shard
+// into the normal outputs in out: it checks that the shards were run with the
+// same spec over the same, unchanged inputs and cover every cell exactly
+// once, then fits and writes through the same code as a single run, so the
+// tables are byte-identical to a single-process run. The shards' final states
+// are copied to out/.swellgrid, so that the merged run can later be updated
+// (Options.Update) like any run. opt.Restart and opt.Shard are not used.
+func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*Result, error) {
+	t0 := time.Now()
+	log := opt.Log
+	if log == nil {
+		log = slog.New(slog.NewTextHandler(devNull{}, nil))
+	}
+	if len(shardDirs) == 0 {
+		return nil, &InputError{errors.New("merge: no shard directories given")}
+	}
+	ms := make([]*ShardManifest, len(shardDirs))
+	for i, d := range shardDirs {
+		if absPath(d) == absPath(out) {
+			return nil, &InputError{fmt.Errorf("merge: the output directory %s is one of the shards; choose another --out", out)}
+		}
+		m, err := readShardManifest(d)
+		if err != nil {
+			return nil, &InputError{err}
+		}
+		ms[i] = m
+	}
+	order := make([]int, len(ms))
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, b int) bool { return ms[order[a]].Shard < ms[order[b]].Shard })
+	if why := shardsBelongTogether(shardDirs, ms, order); why != "" {
+		return nil, &InputError{errors.New("merge: " + why)}
+	}
+	first := ms[order[0]]
+	spec := *first.Spec
+	spec.Output.Dir = out
+	if opt.Workers > 0 {
+		spec.Run.Workers = opt.Workers
+	}
+	if spec.Run.MemoryLimit == "" {
+		spec.Run.MemoryLimit = DefaultSpec().Run.MemoryLimit
+	}
+	if err := spec.Validate(); err != nil {
+		return nil, &InputError{fmt.Errorf("merge: the shards' spec: %v", err)}
+	}
+	if fp := spec.Fingerprint(); fp != first.Fingerprint {
+		return nil, &InputError{fmt.Errorf("merge: the spec recorded in %s does not reproduce its fingerprint (software version %s); rerun the shards with this version", filepath.Join(shardDirs[order[0]], shardFile), first.Version)}
+	}
+	timings := map[string]float64{}
+	ts := time.Now()
+	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
+	if err != nil {
+		return nil, &InputError{fmt.Errorf("merge: the shards' inputs: %v", err)}
+	}
+	timings["catalog_s"] = time.Since(ts).Seconds()
+	if len(cat.Files) != len(first.Inputs) {
+		return nil, &InputError{fmt.Errorf("merge: the shards read %d input files, the inputs %v hold %d now; merge before adding files, then use run --update", len(first.Inputs), spec.Input.Paths, len(cat.Files))}
+	}
+	sums := make([]string, len(cat.Files))
+	for i, f := range cat.Files {
+		in := first.Inputs[i]
+		if absPath(f.Path) != in.Path || f.Size != in.Size {
+			return nil, &InputError{fmt.Errorf("merge: input %s changed since the shards ran (the shards read %s, %d bytes); rerun the shards", f.Path, in.Path, in.Size)}
+		}
+		sums[i] = in.SHA256
+	}
+	if first.GridCells != cat.Grid.NCells() {
+		return nil, &InputError{fmt.Errorf("merge: the shards were run on a grid of %d cells, the inputs have %d", first.GridCells, cat.Grid.NCells())}
+	}
+	ccfg, err := spec.climateConfig(cat.Calendar)
+	if err != nil {
+		return nil, &InputError{err}
+	}
+	eng, err := newEngine(cat, &spec, ccfg)
+	if err != nil {
+		return nil, &InputError{err}
+	}
+	if err := eng.checkContourColumns(); err != nil {
+		return nil, &InputError{err}
+	}
+	if err := os.MkdirAll(out, 0o755); err != nil {
+		return nil, &outputErr{fmt.Errorf("output directory %s: %v", out, err)}
+	}
+	unlock, err := lockDir(out)
+	if err != nil {
+		return nil, err
+	}
+	defer unlock()
+	ids, err := inputIDs(cat)
+	if err != nil {
+		return nil, &InputError{err}
+	}
+	workers := spec.Run.Workers
+	if workers == 0 {
+		workers = runtime.NumCPU()
+	}
+	acfg := spec.analysisConfig(0)
+	var results []*cellResult
+	var passes [][2]int
+	for _, k := range order {
+		dir, m := shardDirs[k], ms[k]
+		for _, p := range m.Passes {
+			src := ckPath(dir, p[0], p[1])
+			want := ckHeader{Fingerprint: m.Fingerprint, Inputs: ids, C0: p[0], C1: p[1]}
+			ts = time.Now()
+			// The inputs were matched by path and size to the shard's
+			// manifest above; here their modification times are compared
+			// with those the shard saw (paths may be spelled differently).
+			if why := sameFileTimes(src, ids); why != "" {
+				return nil, &InputError{fmt.Errorf("merge: shard %d/%d in %s: %s; rerun the shards", m.Shard, m.Shards, dir, why)}
+			}
+			cells, next, err := loadCheckpointTrusting(src, want, len(ids), eng.newCell)
+			if err != nil {
+				if IsResumeRefused(err) || errors.Is(err, os.ErrNotExist) {
+					return nil, &InputError{fmt.Errorf("merge: shard %d/%d in %s: %v", m.Shard, m.Shards, dir, err)}
+				}
+				return nil, err
+			}
+			if next != len(cat.Files) {
+				return nil, &InputError{fmt.Errorf("merge: shard %d/%d in %s has read %d of %d files; rerun it to finish", m.Shard, m.Shards, dir, next, len(cat.Files))}
+			}
+			timings["load_s"] += time.Since(ts).Seconds()
+			ts = time.Now()
+			res, err := eng.finishAll(ctx, p[0], cells, acfg, workers, opt.Progress)
+			if err != nil {
+				return nil, err
+			}
+			timings["fit_s"] += time.Since(ts).Seconds()
+			results = append(results, res...)
+			if err := copyFile(src, ckPath(out, p[0], p[1])); err != nil {
+				return nil, &outputErr{fmt.Errorf("merge: saving the states in %s: %v", out, err)}
+			}
+			passes = append(passes, p)
+		}
+		log.Info("merged", "dir", dir, "shard", fmt.Sprintf("%d/%d", m.Shard, m.Shards), "cells", m.C1-m.C0)
+	}
+	if err := removeStaleCheckpoints(out, passes); err != nil {
+		return nil, &outputErr{err}
+	}
+	if ctx.Err() != nil {
+		return nil, ctx.Err()
+	}
+	ts = time.Now()
+	written, warns, err := eng.writeOutputs(out, results)
+	if err != nil {
+		return nil, &outputErr{err}
+	}
+	timings["export_s"] = time.Since(ts).Seconds()
+	man := eng.manifest(opt.Version, sums, warns, timings)
+	if err := export.WriteManifest(filepath.Join(out, "manifest.json"), man); err != nil {
+		return nil, &outputErr{err}
+	}
+	written = append(written, "manifest.json")
+	return &Result{OutDir: out, Files: written, Cells: cat.Grid.NCells(), Steps: cat.Steps, Warnings: append(cat.Warnings, warns...), Wall: time.Since(t0)}, nil
+}
+
+// shardsBelongTogether reports "" when the shards (in order, sorted by
+// index) are shards 1..N of one run with one spec over the same inputs,
+// covering every cell exactly once, or says what is wrong.
+func shardsBelongTogether(dirs []string, ms []*ShardManifest, order []int) string {
+	first := ms[order[0]]
+	n := first.Shards
+	seen := map[int]string{}
+	for _, k := range order {
+		m, d := ms[k], dirs[k]
+		if m.Shards != n {
+			return fmt.Sprintf("%s is shard %d of %d, %s is shard %d of %d: all shards must come from one split", d, m.Shard, m.Shards, dirs[order[0]], first.Shard, n)
+		}
+		if o, dup := seen[m.Shard]; dup {
+			return fmt.Sprintf("%s and %s are both shard %d/%d", o, d, m.Shard, n)
+		}
+		seen[m.Shard] = d
+		if m.Fingerprint != first.Fingerprint {
+			return fmt.Sprintf("%s and %s were run with different specs (fingerprints %s, %s); rerun them with one spec", dirs[order[0]], d, short(first.Fingerprint), short(m.Fingerprint))
+		}
+		if why := sameInputs(first.Inputs, m.Inputs); why != "" {
+			return fmt.Sprintf("%s and %s read different inputs: %s", dirs[order[0]], d, why)
+		}
+		if why := tiles(m.Passes, m.C0, m.C1); why != "" {
+			return fmt.Sprintf("%s: its state files do not cover its cells: %s", d, why)
+		}
+	}
+	var missing []string
+	for i := 1; i <= n; i++ {
+		if _, ok := seen[i]; !ok {
+			missing = append(missing, fmt.Sprintf("%d/%d", i, n))
+		}
+	}
+	if len(missing) > 0 {
+		return fmt.Sprintf("shard %s missing; give every shard directory", strings.Join(missing, ", "))
+	}
+	ranges := make([][2]int, 0, len(order))
+	for _, k := range order {
+		ranges = append(ranges, [2]int{ms[k].C0, ms[k].C1})
+	}
+	if why := tiles(ranges, 0, first.GridCells); why != "" {
+		return "the shards do not cover the grid: " + why
+	}
+	return ""
+}
+
+func sameInputs(a, b []ManifestInput) string {
+	if len(a) != len(b) {
+		return fmt.Sprintf("%d files against %d", len(a), len(b))
+	}
+	for i := range a {
+		if a[i].Path != b[i].Path || a[i].Size != b[i].Size || a[i].SHA256 != b[i].SHA256 {
+			return fmt.Sprintf("file %d is %s (%d bytes, SHA-256 %s) against %s (%d bytes, SHA-256 %s)", i+1, a[i].Path, a[i].Size, short(a[i].SHA256), b[i].Path, b[i].Size, short(b[i].SHA256))
+		}
+	}
+	return ""
+}
+
+// copyFile copies src to dst atomically.
+func copyFile(src, dst string) error {
+	f, err := os.Open(src)
+	if err != nil {
+		return err
+	}
+	defer f.Close()
+	if err := os.MkdirAll(filepath.Dir(dst), 0o755); err != nil {
+		return err
+	}
+	return export.WriteFileAtomic(dst, func(w io.Writer) error {
+		_, err := io.Copy(w, f)
+		return err
+	})
+}
+
+// sameFileTimes compares the size and modification time of each input as the
+// checkpoint at path recorded them with ids, by position.
+func sameFileTimes(path string, ids []inputID) string {
+	h, _, f, err := readCkHeader(path)
+	if err != nil {
+		return err.Error()
+	}
+	f.Close()
+	for i, id := range ids {
+		if i >= len(h.Inputs) {
+			return fmt.Sprintf("its states do not record input %s", id.Path)
+		}
+		if h.Inputs[i].Size != id.Size || h.Inputs[i].MTime != id.MTime {
+			return fmt.Sprintf("input %s changed (size or modification time) since the shard read it", id.Path)
+		}
+	}
+	return ""
+}

@@ -1,0 +1,187 @@
+package pipelines
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"swellgrid/ingest"
+)
+
+// An incremental update (Options.Update) continues a finished run with the
+// input files that are new. The saved final states are exactly the states
+// after the earlier files, and every accumulator is mergeable, so adding the
+// new files' steps to them gives the states — and hence the tables — of a
+// full run over all files. This holds only when the earlier files and the
+// spec are unchanged; checkUpdate refuses otherwise and says what changed.
+
+// updatePlan is what an accepted update continues from.
+type updatePlan struct {
+	passes  [][2]int // the saved states' cell ranges
+	earlier int      // number of earlier input files (verified by checksum)
+	shard   *Shard   // the directory is a shard (nil: a whole run)
+	lo, hi  int      // cells covered
+}
+
+// updateRefused says why an update cannot continue the earlier run.
+type updateRefused struct{ dir, why string }
+
+func (e *updateRefused) Error() string {
+	return fmt.Sprintf("cannot update %s: %s", e.dir, e.why)
+}
+
+// IsUpdateRefused reports whether err is a refused update (exit code 2).
+func IsUpdateRefused(err error) bool {
+	var r *updateRefused
+	return errors.As(err, &r)
+}
+
+// priorRun is what a finished run directory says about its inputs and spec.
+type priorRun struct {
+	inputs []ManifestInput
+	spec   json.RawMessage
+	shard  *ShardManifest
+}
+
+func readPriorRun(dir string) (*priorRun, error) {
+	if _, err := os.Stat(filepath.Join(dir, shardFile)); err == nil {
+		m, err := readShardManifest(dir)
+		if err != nil {
+			return nil, err
+		}
+		b, _ := json.Marshal(m.Spec)
+		return &priorRun{inputs: m.Inputs, spec: b, shard: m}, nil
+	}
+	path := filepath.Join(dir, "manifest.json")
+	b, err := os.ReadFile(path)
+	if err != nil {
+		if errors.Is(err, os.ErrNotExist) {
+			return nil, &updateRefused{dir, "it holds no finished run (no manifest.json or shard.json); run without --update first, or finish the earlier run by rerunning it"}
+		}
+		return nil, err
+	}
+	var m struct {
+		Inputs     []ManifestInput `json:"inputs"`
+		Parameters json.RawMessage `json:"parameters"`
+	}
+	if err := json.Unmarshal(b, &m); err != nil {
+		return nil, fmt.Errorf("%s: %v", path, err)
+	}
+	return &priorRun{inputs: m.Inputs, spec: m.Parameters}, nil
+}
+
+// checkUpdate checks that the run in dir can be continued with the catalog
+// cat (whose files have the checksums sums) under spec: same spec
+// fingerprint, every earlier file present first, with the same size and
+// checksum, and final states for every cell.
+func checkUpdate(dir string, spec *Spec, cat *ingest.Catalog, sums []string, sh *Shard) (*updatePlan, error) {
+	prior, err := readPriorRun(dir)
+	if err != nil {
+		return nil, err
+	}
+	up := &updatePlan{earlier: len(prior.inputs), lo: 0, hi: cat.Grid.NCells()}
+	if prior.shard != nil {
+		s := Shard{Index: prior.shard.Shard, Count: prior.shard.Shards}
+		if sh != nil && *sh != s {
+			return nil, &updateRefused{dir, fmt.Sprintf("it is shard %s, not shard %s; give --shard %s or leave --shard out", s, sh, s)}
+		}
+		up.shard, up.lo, up.hi = &s, prior.shard.C0, prior.shard.C1
+	} else if sh != nil {
+		return nil, &updateRefused{dir, fmt.Sprintf("it is a whole run, not a shard; leave --shard %s out", sh)}
+	}
+	fp := spec.Fingerprint()
+	_, hs, err := passCheckpoints(dir)
+	if err != nil {
+		return nil, err
+	}
+	if len(hs) == 0 {
+		return nil, &updateRefused{dir, fmt.Sprintf("its saved per-cell states (%s/pass-*.ckpt) are missing; an update needs them, so run over all files without --update", filepath.Join(dir, stateDir))}
+	}
+	for _, h := range hs {
+		if h.Fingerprint != fp {
+			return nil, &updateRefused{dir, "the spec changed since the earlier run (" + specChanges(prior.spec, spec) + "); results would mix two specs, so run over all files into a new directory instead"}
+		}
+		if h.NextFile < len(prior.inputs) {
+			return nil, &updateRefused{dir, fmt.Sprintf("the saved states of cells %d..%d hold only %d of the earlier run's %d files; rerun the earlier run to finish it", h.C0, h.C1-1, h.NextFile, len(prior.inputs))}
+		}
+		up.passes = append(up.passes, [2]int{h.C0, h.C1})
+	}
+	if why := tiles(up.passes, up.lo, up.hi); why != "" {
+		return nil, &updateRefused{dir, "its saved states do not cover the run's cells: " + why}
+	}
+	if why := inputChanges(prior.inputs, cat, sums); why != "" {
+		return nil, &updateRefused{dir, why}
+	}
+	return up, nil
+}
+
+// inputChanges compares the earlier run's inputs with the new catalog: the
+// earlier files must come first, in the same order, unchanged.
+func inputChanges(old []ManifestInput, cat *ingest.Catalog, sums []string) string {
+	now := map[string]int{}
+	for i, f := range cat.Files {
+		now[absPath(f.Path)] = i
+	}
+	for i, o := range old {
+		p := absPath(o.Path)
+		j, ok := now[p]
+		switch {
+		case !ok:
+			return fmt.Sprintf("the earlier input %s is not among the inputs now; an update must be given every earlier file plus the new ones", o.Path)
+		case j != i:
+			return fmt.Sprintf("the new file %s lies within the earlier record (before %s, which ends %s); an update only adds files later in time, so run over all files into a new directory", cat.Files[i].Path, o.Path, old[len(old)-1].Last)
+		case cat.Files[j].Size != o.Size:
+			return fmt.Sprintf("the earlier input %s changed size (%d bytes then, %d now); run over all files into a new directory", o.Path, o.Size, cat.Files[j].Size)
+		case sums[j] != o.SHA256:
+			return fmt.Sprintf("the earlier input %s changed content (SHA-256 %s then, %s now); run over all files into a new directory", o.Path, short(o.SHA256), short(sums[j]))
+		}
+	}
+	return ""
+}
+
+func short(h string) string {
+	if len(h) > 12 {
+		return h[:12] + "…"
+	}
+	return h
+}
+
+// specChanges names the spec sections that differ between the earlier run's
+// recorded spec and spec (ignoring the input paths, output directory and run
+// settings, as Fingerprint does).
+func specChanges(prior json.RawMessage, spec *Spec) string {
+	var old Spec
+	if len(prior) == 0 || json.Unmarshal(prior, &old) != nil {
+		return "the earlier spec is not recorded"
+	}
+	sections := func(s *Spec) map[string]json.RawMessage {
+		c := *s
+		c.Output, c.Input.Paths, c.Run = OutputSpec{}, nil, RunSpec{}
+		b, _ := json.Marshal(&c)
+		m := map[string]json.RawMessage{}
+		json.Unmarshal(b, &m)
+		return m
+	}
+	a, b := sections(&old), sections(spec)
+	var diff []string
+	for k := range b {
+		if !bytes.Equal(a[k], b[k]) {
+			diff = append(diff, k)
+		}
+	}
+	for k := range a {
+		if _, ok := b[k]; !ok {
+			diff = append(diff, k)
+		}
+	}
+	sort.Strings(diff)
+	if len(diff) == 0 {
+		return "the settings are recorded alike, but the fingerprint differs: a power-matrix or bathymetry path may be spelled differently"
+	}
+	return "changed: " + strings.Join(diff, ", ")
+}
