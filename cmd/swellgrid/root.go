@@ -32,6 +32,15 @@ func newRootCmd() *cobra.Command {
 	root := &cobra.Command{
 		Use:           "swellgrid",
 		Short:         "Turn a CF NetCDF wave hindcast into a wave-energy resource atlas",
+		Long: `swellgrid turns a CF NetCDF wave hindcast (spectra or bulk parameters, one file per
+month or one file) into a wave-energy resource atlas: per-cell wave power, its
+variability, exceedance, weather windows, device yield and extreme sea states, written
+as GeoParquet tables, GeoJSON contour layers and a manifest.
+
+` + caution,
+		Example: `  swellgrid demo --out demo-out
+  swellgrid inspect testdata/bulk_monthly
+  swellgrid run --input testdata/bulk_monthly --out atlas`,
 		Version:       Version,
 		SilenceUsage:  true,
 		SilenceErrors: true,
