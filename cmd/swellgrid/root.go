@@ -30,8 +30,8 @@ func exitCode(err error) int {
 
 func newRootCmd() *cobra.Command {
 	root := &cobra.Command{
-		Use:           "swellgrid",
-		Short:         "Turn a CF NetCDF wave hindcast into a wave-energy resource atlas",
+		Use:   "swellgrid",
+		Short: "Turn a CF NetCDF wave hindcast into a wave-energy resource atlas",
 		Long: `swellgrid turns a CF NetCDF wave hindcast (spectra or bulk parameters, one file per
 month or one file) into a wave-energy resource atlas: per-cell wave power, its
 variability, exceedance, weather windows, device yield and extreme sea states, written
