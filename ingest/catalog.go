@@ -262,6 +262,9 @@ func Open(inputs []string, opt Options) (*Catalog, error) {
 			c.Masked[i] = true
 		}
 	}
+	if err := c.readMask(first); err != nil {
+		return nil, err
+	}
 	sea := 0
 	for _, m := range c.Masked {
 		if !m {
@@ -401,6 +404,40 @@ func (c *Catalog) resolveDepth(first *scan, opt Options) error {
 	}
 	if bad > 0 {
 		c.Warnings = append(c.Warnings, fmt.Sprintf("%d cells have depth <= 0 m and are treated as land", bad))
+	}
+	return nil
+}
+
+// readMask applies a sea_binary_mask variable of the first file (CF standard
+// name table: 1 = sea, 0 = land) to the cell mask.
+func (c *Catalog) readMask(first *scan) error {
+	vi := first.info.vars[Mask]
+	if vi == nil {
+		return nil
+	}
+	f, err := openNC(first.info.Path)
+	if err != nil {
+		return err
+	}
+	defer f.close()
+	vi.v = f.find(vi.Name)
+	m := make([]float64, c.Grid.NCells())
+	s := &scan{f: f, grid: c.Grid, gridDim: c.gridDim}
+	if err := s.readStatic(vi, m); err != nil {
+		return err
+	}
+	vi.v = nil
+	land := 0
+	for i, x := range m {
+		if !(x > 0.5) {
+			if !c.Masked[i] {
+				land++
+			}
+			c.Masked[i] = true
+		}
+	}
+	if land > 0 {
+		c.Warnings = append(c.Warnings, fmt.Sprintf("%d cells masked as land by %s", land, vi.Name))
 	}
 	return nil
 }

@@ -183,3 +183,29 @@ func TestFilesSortedByTime(t *testing.T) {
 		t.Errorf("order %s, steps %d, gaps %+v", cat.Files[0].Path, cat.Steps, cat.Gaps)
 	}
 }
+
+// A sea_binary_mask variable (CF standard name table: 1 = sea, 0 = land)
+// masks the cells it marks as land, beyond those without depth.
+func TestSeaBinaryMask(t *testing.T) {
+	dir := t.TempDir()
+	c := strings.Replace(cdl(), "  float depth(lat, lon) ;", "  byte sea(lat, lon) ; sea:standard_name = \"sea_binary_mask\" ;\n  float depth(lat, lon) ;", 1)
+	c = strings.Replace(c, "  depth = 10,", "  sea = 1,1,1,1, 1,1,1,1, 1,1,1,0 ;\n  depth = 10,", 1)
+	p := ncgenFile(t, dir, "mask", c)
+	cat, err := Open([]string{p}, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// file (row 2, col 3) = lat 50, lon 5 = canonical cell 3
+	n := 0
+	for i, m := range cat.Masked {
+		if m {
+			n++
+			if i != 3 {
+				t.Errorf("cell %d masked", i)
+			}
+		}
+	}
+	if n != 1 {
+		t.Errorf("%d cells masked, want 1", n)
+	}
+}

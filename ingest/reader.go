@@ -72,7 +72,7 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 	// Re-resolve the variables of this file (same names as scanned).
 	vars := map[Role]*VarInfo{}
 	for role, vi := range fe.vars {
-		if role == Depth {
+		if static(role) {
 			continue
 		}
 		v := f.find(vi.Name)

@@ -66,6 +66,11 @@ func scanFile(path string, opt Options) (*scan, error) {
 			s.info.vars[r] = vi
 		}
 	}
+	if vi, err := s.findRole(Mask, opt, tv.dims[0]); err != nil {
+		return nil, err
+	} else if vi != nil {
+		s.info.vars[Mask] = vi
+	}
 	if s.info.vars[Spectrum2D] == nil && s.info.vars[Spectrum1D] == nil && s.info.vars[Hm0] == nil {
 		return nil, errf(path, "", "no variable for the wave height or spectrum roles (standard_name %s, %s or %s); name the variable in the spec's [roles] table if it lacks a standard_name",
 			StandardNames[Spectrum2D][0], StandardNames[Spectrum1D][0], StandardNames[Hm0][0])
@@ -363,7 +368,7 @@ func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
 	} else {
 		var found []*ncVar
 		for i := range s.f.vars {
-			if cv := &s.f.vars[i]; len(cv.dims) == 1 && cv.dims[0] == cv.name && len(cv.shape) == 1 && r != Depth {
+			if cv := &s.f.vars[i]; len(cv.dims) == 1 && cv.dims[0] == cv.name && len(cv.shape) == 1 && !static(r) {
 				continue // a coordinate variable (e.g. the spectral direction axis), not a field
 			}
 			for _, sn := range StandardNames[r] {
@@ -405,19 +410,19 @@ func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
 	}
 	other := len(v.dims) - nspat
 	hasT := timeDim != "" && len(v.dims) > 0 && vi.axes[0] == axT
-	wantOther := map[Role]int{Spectrum2D: 3, Spectrum1D: 2, Depth: 0}
+	wantOther := map[Role]int{Spectrum2D: 3, Spectrum1D: 2, Depth: 0, Mask: 0}
 	wo, ok := wantOther[r]
 	if !ok {
 		wo = 1
 	}
-	if nspat != wantSpat || other != wo || (r != Depth && !hasT) {
+	if nspat != wantSpat || other != wo || (!static(r) && !hasT) {
 		expect := "(time, " + map[bool]string{true: "station", false: "y, x"}[wantSpat == 1]
 		switch r {
 		case Spectrum2D:
 			expect += ", frequency, direction)"
 		case Spectrum1D:
 			expect += ", frequency)"
-		case Depth:
+		case Depth, Mask:
 			expect = "(" + expect[7:] + ")"
 		default:
 			expect += ")"
@@ -428,6 +433,14 @@ func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
 		if sz == 0 {
 			return nil, errf(s.f.path, v.name, "dimension %q has size 0; the variable holds no data", v.dims[i])
 		}
+	}
+	if r == Mask {
+		// CF sea_binary_mask: 1 = sea, 0 = land; dimensionless.
+		vi.Scale, vi.Factor, vi.ValidMin, vi.ValidMax = 1, 1, math.Inf(-1), math.Inf(1)
+		if fv := v.nums("_FillValue"); len(fv) > 0 {
+			vi.Fill = fv[:1]
+		}
+		return vi, nil
 	}
 	// Units.
 	vi.Units = v.str("units")
@@ -656,3 +669,6 @@ func (s *scan) readStatic(vi *VarInfo, dst []float64) error {
 	}
 	return nil
 }
+
+// static reports whether a role is a field without a time dimension.
+func static(r Role) bool { return r == Depth || r == Mask }
