@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"time"
 
 	"swellgrid/grid"
 )
@@ -36,6 +37,15 @@ type ReadRange struct {
 	C0, C1   int // cells (canonical ids); C1 = 0 means all
 	MaxSteps int // time steps per block (0: 64)
 	FromFile int // first file to read (resume)
+	// Stats, if not nil, receives the reader's busy and waiting time.
+	Stats *ReadStats
+}
+
+// ReadStats is where the reader's time went: Wait is the time spent blocked
+// handing blocks on (the consumers were busy), Busy the rest of Read.
+type ReadStats struct {
+	Busy, Wait time.Duration
+	Blocks     int
 }
 
 // Read reads the record in time order and sends blocks on out. It makes
@@ -50,6 +60,10 @@ func (c *Catalog) Read(ctx context.Context, r ReadRange, out chan<- *Block) erro
 	}
 	if r.MaxSteps <= 0 {
 		r.MaxSteps = 64
+	}
+	if r.Stats != nil {
+		t0, w0 := time.Now(), r.Stats.Wait
+		defer func() { r.Stats.Busy += time.Since(t0) - (r.Stats.Wait - w0) }()
 	}
 	for fi := r.FromFile; fi < len(c.Files); fi++ {
 		if err := c.readFile(ctx, fi, r, out); err != nil {
@@ -91,6 +105,7 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 	if c.Spectral != nil {
 		nf, nd = len(c.Spectral.FreqHz), max(1, len(c.Spectral.DirDeg))
 	}
+	var scratch []float64 // the raw slab, reused across blocks and roles
 	for t0 := 0; t0 < fe.Steps; t0 += r.MaxSteps {
 		nt := min(r.MaxSteps, fe.Steps-t0)
 		b := &Block{File: fi, Step0: fe.Offset + t0, NT: nt, Times: fe.times[t0 : t0+nt], C0: r.C0, C1: r.C1,
@@ -109,7 +124,7 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 			for i := range dst {
 				dst[i] = math.NaN()
 			}
-			n, err := c.gather(fe.Path, vi, g, invX, invY, t0, nt, r.C0, r.C1, dst, per)
+			n, err := c.gather(fe.Path, vi, g, invX, invY, t0, nt, r.C0, r.C1, dst, per, &scratch)
 			if err != nil {
 				return err
 			}
@@ -120,10 +135,18 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 				b.Bulk[role] = dst
 			}
 		}
+		var tw time.Time
+		if r.Stats != nil {
+			tw = time.Now()
+		}
 		select {
 		case out <- b:
 		case <-ctx.Done():
 			return ctx.Err()
+		}
+		if r.Stats != nil {
+			r.Stats.Wait += time.Since(tw)
+			r.Stats.Blocks++
 		}
 	}
 	for role, vi := range vars {
@@ -136,8 +159,8 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 
 // gather reads one role for steps t0..t0+nt-1 and cells c0..c1-1 and scatters
 // the unpacked values into dst in canonical order; it returns the number of
-// valid values.
-func (c *Catalog) gather(path string, vi *VarInfo, g *grid.Grid, invX, invY []int, t0, nt, c0, c1 int, dst []float64, per int) (int, error) {
+// valid values. scratch holds the raw slab between calls.
+func (c *Catalog) gather(path string, vi *VarInfo, g *grid.Grid, invX, invY []int, t0, nt, c0, c1 int, dst []float64, per int, scratch *[]float64) (int, error) {
 	v := vi.v
 	rank := len(v.shape)
 	start := make([]uint64, rank)
@@ -169,12 +192,18 @@ func (c *Catalog) gather(path string, vi *VarInfo, g *grid.Grid, invX, invY []in
 	for _, n := range count {
 		total *= int(n)
 	}
-	buf := make([]float64, total)
+	if cap(*scratch) < total {
+		*scratch = make([]float64, total)
+	}
+	buf := (*scratch)[:total]
 	ncMu.Lock()
 	err := v.readSlab(path, start, count, buf)
 	ncMu.Unlock()
 	if err != nil {
 		return 0, err
+	}
+	if valid, ok := scatterFast(vi, g, invX, invY, start, count, c0, c1, buf, dst, per); ok {
+		return valid, nil
 	}
 	nc := c1 - c0
 	nd := 1

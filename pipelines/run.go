@@ -368,6 +368,7 @@ func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
 		return nil, &outputErr{err}
 	}
 	mark("export_s", ts)
+	eng.addStreamTimings(timings)
 	m := eng.manifest(opt.Version, sums, warns, timings)
 	if err := export.WriteManifest(filepath.Join(out, "manifest.json"), m); err != nil {
 		return nil, &outputErr{err}

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"sync"
+	"time"
 
 	"swellgrid/ingest"
 	"swellgrid/stats/climate"
@@ -31,6 +32,29 @@ type engine struct {
 	consts   seastate.Consts
 	dtHours  float64
 	spectral bool
+	// times is where the stream stage's time went, summed over passes.
+	times streamTimes
+}
+
+// streamTimes are the busy and waiting times of the stream stage's parts.
+type streamTimes struct {
+	read     ingest.ReadStats
+	feedBusy time.Duration // summed over workers
+	idleWait time.Duration // the dispatcher waiting for the reader
+	fileDone time.Duration // checkpoints after each file (workers idle)
+}
+
+// addStreamTimings adds the stream stage's busy and waiting times (seconds)
+// to a run's timings: read_busy_s, read_wait_s (the reader blocked because
+// the workers were busy), feed_busy_s (summed over workers) and
+// feed_starved_s (the workers waiting for the reader) and checkpoint_s (the
+// per-file callback, during which the workers are idle).
+func (e *engine) addStreamTimings(m map[string]float64) {
+	m["read_busy_s"] += e.times.read.Busy.Seconds()
+	m["read_wait_s"] += e.times.read.Wait.Seconds()
+	m["feed_busy_s"] += e.times.feedBusy.Seconds()
+	m["feed_starved_s"] += e.times.idleWait.Seconds()
+	m["checkpoint_s"] += e.times.fileDone.Seconds()
 }
 
 func newEngine(cat *ingest.Catalog, spec *Spec, ccfg *climate.Config) (*engine, error) {
@@ -86,6 +110,7 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 		}
 		k := id - b.C0
 		depth := e.cat.Depth[id]
+		deep := math.IsInf(depth, 1) || math.IsNaN(depth)
 		for t := 0; t < b.NT; t++ {
 			st := times[t]
 			step.Year, step.Month, step.Hours = st.year, st.month, st.hours
@@ -120,7 +145,7 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 					step.DirDeg = dirs[i]
 				}
 				if hm0 >= 0 && te > 0 {
-					if math.IsInf(depth, 1) || math.IsNaN(depth) {
+					if deep {
 						step.J = seastate.BulkPowerDeep(hm0, te, e.consts)
 					} else {
 						step.J = seastate.BulkPowerFinite(hm0, te, depth, e.consts)
@@ -156,7 +181,7 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 	blocks := make(chan *ingest.Block, 2)
 	readErr := make(chan error, 1)
 	go func() {
-		readErr <- e.cat.Read(ctx, ingest.ReadRange{C0: c0, C1: c1, MaxSteps: e.spec.Run.BlockSteps, FromFile: fromFile}, blocks)
+		readErr <- e.cat.Read(ctx, ingest.ReadRange{C0: c0, C1: c1, MaxSteps: e.spec.Run.BlockSteps, FromFile: fromFile, Stats: &e.times.read}, blocks)
 		close(blocks)
 	}()
 	if workers < 1 {
@@ -172,26 +197,38 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 		wg    *sync.WaitGroup
 	}
 	chans := make([]chan job, workers)
+	busy := make([]time.Duration, workers)
 	var all sync.WaitGroup
 	for w := 0; w < workers; w++ {
 		chans[w] = make(chan job, 1)
 		lo, hi := c0+n*w/workers, c0+n*(w+1)/workers
 		all.Add(1)
-		go func(ch chan job) {
+		go func(w int, ch chan job) {
 			defer all.Done()
 			for j := range ch {
+				t := time.Now()
 				e.feed(j.b, j.times, cells, lo, hi)
+				busy[w] += time.Since(t)
 				j.wg.Done()
 			}
-		}(chans[w])
+		}(w, chans[w])
 	}
 	stop := func() {
 		for _, ch := range chans {
 			close(ch)
 		}
 		all.Wait()
+		for _, d := range busy {
+			e.times.feedBusy += d
+		}
 	}
-	for b := range blocks {
+	for {
+		tw := time.Now()
+		b, more := <-blocks
+		e.times.idleWait += time.Since(tw)
+		if !more {
+			break
+		}
 		times := e.blockTimes(b)
 		wg := &sync.WaitGroup{}
 		wg.Add(workers)
@@ -208,7 +245,10 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 				return err
 			}
 			if fileDone != nil {
-				if err := fileDone(b.File + 1); err != nil {
+				tc := time.Now()
+				err := fileDone(b.File + 1)
+				e.times.fileDone += time.Since(tc)
+				if err != nil {
 					cancel()
 					for range blocks {
 					}
