@@ -36,8 +36,20 @@ test: test-deps
 	$(GO) vet ./...
 	$(GO) test -count=1 -timeout 45m ./...
 
-bench: build
-	$(GO) test -run '^$$' -bench . -benchmem ./...
+# bench: the pipeline against the read floor (generated data cached in
+# $(BENCH_CACHE); about 10 minutes on 2 cores, plus 2-3 minutes the first time
+# for the data), then every Go micro-benchmark, summarised with benchstat.
+# Figures go to $(BENCH_OUT)/; BENCHMARKS.md says how to read them.
+BENCH_OUT   ?= bench-out
+BENCH_CACHE ?= $(HOME)/.cache/swellgrid-bench
+BENCHSTAT_VERSION := v0.0.0-20260908200009-22c9c6c9d4da
+bench: deps
+	@mkdir -p $(BENCH_OUT)
+	$(GO) build -o bin/sgbench ./pipelines/bench/cmd/sgbench
+	./bin/sgbench -cache $(BENCH_CACHE) -md $(BENCH_OUT)/pipeline.md
+	$(GO) test -run '^$$' -bench . -benchmem -count 5 -benchtime 0.2s ./... > $(BENCH_OUT)/micro.txt
+	$(GO) install golang.org/x/perf/cmd/benchstat@$(BENCHSTAT_VERSION)
+	"$$($(GO) env GOPATH)/bin/benchstat" $(BENCH_OUT)/micro.txt | tee $(BENCH_OUT)/micro-benchstat.txt
 
 clean:
-	rm -rf bin $(DEMO_OUT)
+	rm -rf bin $(DEMO_OUT) $(BENCH_OUT)

@@ -1,0 +1,42 @@
+// Command sgbench is the benchmark driver behind `make bench`: it generates
+// the invented benchmark hindcasts once (cached), measures the read floor and
+// the full pipeline on the whole and on half the record, each in a child
+// process, and prints the figures (and, with -md, a Markdown table).
+package main
+
+import (
+	"encoding/json"
+	"flag"
+	"fmt"
+	"os"
+	"path/filepath"
+
+	"swellgrid/pipelines/bench"
+)
+
+func main() {
+	if raw := os.Getenv(bench.ChildEnv); raw != "" {
+		var c bench.Case
+		if err := json.Unmarshal([]byte(raw), &c); err != nil {
+			fmt.Fprintln(os.Stderr, "sgbench child:", err)
+			os.Exit(1)
+		}
+		m, err := bench.RunChild(c)
+		if err != nil {
+			fmt.Fprintln(os.Stderr, "sgbench child:", err)
+			os.Exit(1)
+		}
+		json.NewEncoder(os.Stdout).Encode(m)
+		return
+	}
+	home, _ := os.UserCacheDir()
+	cache := flag.String("cache", filepath.Join(home, "swellgrid-bench"), "directory for the generated benchmark hindcasts")
+	md := flag.String("md", "", "also write the figures as Markdown to this file")
+	only := flag.String("only", "", `measure only this data set ("bulk" or "spectral")`)
+	flag.Parse()
+	cfg := bench.Config{Cache: *cache, Markdown: *md, Only: *only, Log: os.Stderr, Out: os.Stdout}
+	if err := bench.Main(cfg); err != nil {
+		fmt.Fprintln(os.Stderr, "sgbench:", err)
+		os.Exit(1)
+	}
+}

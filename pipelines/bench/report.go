@@ -1,0 +1,196 @@
+package bench
+
+import (
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"runtime"
+	"sort"
+	"strings"
+	"time"
+)
+
+// Config sets up a benchmark run.
+type Config struct {
+	Cache    string    // cache directory of the generated hindcasts
+	Markdown string    // if set, write the figures as Markdown here
+	Only     string    // "bulk", "spectral" or "" (both)
+	Log, Out io.Writer // progress and the report
+}
+
+// Row gathers the cases of one data set and record length.
+type Row struct {
+	Data, Part              string
+	Floor, Ingest, Pipeline *Measure
+}
+
+// Targets of the benchmark (issue 9): pipeline / read floor.
+var Targets = map[string]float64{"bulk": 1.3, "spectral": 1.5}
+
+// MemoryTarget is the largest allowed peak memory of the full record over
+// that of half the record.
+const MemoryTarget = 1.1
+
+// Main generates the data if needed, measures every case and prints the report.
+func Main(cfg Config) error {
+	logf := func(format string, a ...any) { fmt.Fprintf(cfg.Log, format+"\n", a...) }
+	start := time.Now()
+	var sets []*Dataset
+	if cfg.Only == "" || cfg.Only == "bulk" {
+		d, err := Ensure(cfg.Cache, "bulk", BulkScenario(10), logf)
+		if err != nil {
+			return err
+		}
+		sets = append(sets, d)
+	}
+	if cfg.Only == "" || cfg.Only == "spectral" {
+		d, err := Ensure(cfg.Cache, "spectral", SpectralScenario(2), logf)
+		if err != nil {
+			return err
+		}
+		sets = append(sets, d)
+	}
+	if len(sets) == 0 {
+		return fmt.Errorf("-only %q: want bulk or spectral", cfg.Only)
+	}
+	scratch, err := os.MkdirTemp("", "sgbench-out-")
+	if err != nil {
+		return err
+	}
+	defer os.RemoveAll(scratch)
+	var rows []*Row
+	for _, d := range sets {
+		for _, part := range []string{"full", "half"} {
+			files := d.Files
+			if part == "half" {
+				files = files[:len(files)/2]
+			}
+			r := &Row{Data: d.Name, Part: part}
+			for _, mode := range []string{"floor", "ingest", "pipeline"} {
+				if err := warm(files); err != nil {
+					return err
+				}
+				c := Case{Data: d.Name, Part: part, Mode: mode, Files: files, Out: filepath.Join(scratch, d.Name+"-"+part)}
+				logf("measuring %s %s record: %s ...", d.Name, part, mode)
+				m, err := Spawn(c)
+				if err != nil {
+					return err
+				}
+				logf("  %.1f s, peak %s", m.WallS, mib(m.PeakRSS))
+				switch mode {
+				case "floor":
+					r.Floor = m
+				case "ingest":
+					r.Ingest = m
+				default:
+					r.Pipeline = m
+				}
+				os.RemoveAll(c.Out)
+			}
+			rows = append(rows, r)
+		}
+	}
+	text := Report(rows, sets, time.Since(start))
+	fmt.Fprint(cfg.Out, text)
+	if cfg.Markdown != "" {
+		if err := os.WriteFile(cfg.Markdown, []byte(text), 0o644); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// warm reads the files as plain bytes so that every case starts with the
+// same (warm) page cache.
+func warm(files []string) error {
+	buf := make([]byte, 1<<20)
+	for _, p := range files {
+		f, err := os.Open(p)
+		if err != nil {
+			return err
+		}
+		for {
+			_, err := f.Read(buf)
+			if err != nil {
+				break
+			}
+		}
+		f.Close()
+	}
+	return nil
+}
+
+func mib(b int64) string { return fmt.Sprintf("%.0f MiB", float64(b)/(1<<20)) }
+
+// Report formats the figures as Markdown (readable as plain text).
+func Report(rows []*Row, sets []*Dataset, total time.Duration) string {
+	var b strings.Builder
+	host, _ := os.Hostname()
+	_ = host
+	fmt.Fprintf(&b, "## Figures of the latest run\n\n")
+	fmt.Fprintf(&b, "Machine: %s, %d logical CPUs (GOMAXPROCS %d), %s/%s, %s. Page cache warm (every file read once before each case).\n\n",
+		cpuModel(), runtime.NumCPU(), runtime.GOMAXPROCS(0), runtime.GOOS, runtime.GOARCH, runtime.Version())
+	for _, d := range sets {
+		fmt.Fprintf(&b, "- %s: %s; %d files, %.2f GiB\n", d.Name, Describe(d.Scenario), len(d.Files), float64(d.Bytes(d.Files))/(1<<30))
+	}
+	fmt.Fprintf(&b, "\n| data | record | read floor s | ingest read s | pipeline s | pipeline / floor | target | stream stage / floor | cell-steps/s | spectra/s | peak RSS floor | peak RSS pipeline |\n")
+	fmt.Fprintf(&b, "|---|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|\n")
+	for _, r := range rows {
+		p, f := r.Pipeline, r.Floor
+		cs := float64(p.Cells) * float64(p.Steps)
+		spectra := "-"
+		if r.Data == "spectral" {
+			spectra = fmt.Sprintf("%.3g", cs/p.WallS)
+		}
+		fmt.Fprintf(&b, "| %s | %s (%d steps) | %.1f | %.1f | %.1f | %.2f | %.1f | %.2f | %.3g | %s | %s | %s |\n",
+			r.Data, r.Part, p.Steps, f.WallS, r.Ingest.WallS, p.WallS, p.WallS/f.WallS, Targets[r.Data],
+			p.Timings["stream_s"]/f.WallS, cs/p.WallS, spectra, mib(f.PeakRSS), mib(p.PeakRSS))
+	}
+	fmt.Fprintf(&b, "\nScaling with the record length (full / half):\n\n| data | time ratio | peak memory ratio | memory target |\n|---|---:|---:|---:|\n")
+	for i := 0; i+1 < len(rows); i += 2 {
+		full, half := rows[i], rows[i+1]
+		fmt.Fprintf(&b, "| %s | %.2f | %.3f | %.1f |\n", full.Data, full.Pipeline.WallS/half.Pipeline.WallS,
+			float64(full.Pipeline.PeakRSS)/float64(half.Pipeline.PeakRSS), MemoryTarget)
+	}
+	fmt.Fprintf(&b, "\nPipeline stages (seconds; busy times of concurrent stages overlap the stream stage's wall time):\n\n")
+	keys := map[string]bool{}
+	for _, r := range rows {
+		for k := range r.Pipeline.Timings {
+			keys[k] = true
+		}
+	}
+	var ks []string
+	for k := range keys {
+		ks = append(ks, k)
+	}
+	sort.Strings(ks)
+	fmt.Fprintf(&b, "| data | record | %s | reader waits |\n|---|---|%s---:|\n", strings.Join(ks, " | "), strings.Repeat("---:|", len(ks)))
+	for _, r := range rows {
+		t := r.Pipeline.Timings
+		fmt.Fprintf(&b, "| %s | %s |", r.Data, r.Part)
+		for _, k := range ks {
+			fmt.Fprintf(&b, " %.2f |", t[k])
+		}
+		share := "-"
+		if t["stream_s"] > 0 {
+			share = fmt.Sprintf("%.0f %%", 100*t["read_wait_s"]/t["stream_s"])
+		}
+		fmt.Fprintf(&b, " %s |\n", share)
+	}
+	fmt.Fprintf(&b, "\nWhole benchmark (generation included if it ran): %.1f min.\n", total.Minutes())
+	return b.String()
+}
+
+func cpuModel() string {
+	raw, err := os.ReadFile("/proc/cpuinfo")
+	if err != nil {
+		return "unknown CPU"
+	}
+	for _, line := range strings.Split(string(raw), "\n") {
+		if k, v, ok := strings.Cut(line, ":"); ok && strings.TrimSpace(k) == "model name" {
+			return strings.TrimSpace(v)
+		}
+	}
+	return "unknown CPU"
+}
