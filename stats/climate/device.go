@@ -87,9 +87,12 @@ func newAxis(c []float64) axis {
 }
 
 // bin returns the index of the bin holding x, -1 below the first edge and
-// len(c) at or above the last edge.
+// len(c) at or above the last edge; NaN counts as outside (len(c)).
 func (a *axis) bin(x float64) int {
 	n := len(a.c)
+	if x != x {
+		return n // found by fuzzing: NaN passed both edge tests and indexed at MinInt
+	}
 	if x < a.e[0] {
 		return -1
 	}
