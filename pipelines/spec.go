@@ -127,12 +127,18 @@ func DefaultSpec() *Spec {
 
 // LoadSpec reads a TOML spec over the defaults. Unknown keys are refused.
 func LoadSpec(path string) (*Spec, error) {
-	s := DefaultSpec()
 	raw, err := os.ReadFile(path)
 	if err != nil {
 		return nil, fmt.Errorf("spec: %v", err)
 	}
-	md, err := toml.Decode(string(raw), s)
+	return ParseSpec(raw, path)
+}
+
+// ParseSpec reads a TOML spec from data over the defaults; path names it in
+// messages and its directory anchors relative paths. Unknown keys are refused.
+func ParseSpec(data []byte, path string) (*Spec, error) {
+	s := DefaultSpec()
+	md, err := toml.Decode(string(data), s)
 	if err != nil {
 		return nil, fmt.Errorf("spec %s: %v", path, err)
 	}
