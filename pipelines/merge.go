@@ -232,8 +232,21 @@ func sameInputs(a, b []ManifestInput) string {
 	return ""
 }
 
-// copyFile copies src to dst atomically.
+// copyFile copies src to dst atomically, as a hard link where the file
+// system allows (checkpoints are replaced by rename, never rewritten in
+// place, so a link is safe).
 func copyFile(src, dst string) error {
+	if err := os.MkdirAll(filepath.Dir(dst), 0o755); err != nil {
+		return err
+	}
+	tmp := dst + ".link"
+	os.Remove(tmp)
+	if os.Link(src, tmp) == nil {
+		if err := os.Rename(tmp, dst); err == nil {
+			return nil
+		}
+		os.Remove(tmp)
+	}
 	f, err := os.Open(src)
 	if err != nil {
 		return err
