@@ -51,5 +51,22 @@ bench: deps
 	$(GO) install golang.org/x/perf/cmd/benchstat@$(BENCHSTAT_VERSION)
 	"$$($(GO) env GOPATH)/bin/benchstat" $(BENCH_OUT)/micro.txt | tee $(BENCH_OUT)/micro-benchstat.txt
 
+# Fuzz targets, each for FUZZTIME (go test -fuzz runs one target at a time).
+# A crasher is saved under the package's testdata/fuzz/ and must become a
+# regression test.
+FUZZTIME ?= 60s
+FUZZ_TARGETS := ./ingest:FuzzParseTimeUnits ./ingest:FuzzCatalogMetadata \
+	./pipelines:FuzzSpec ./stats/climate:FuzzPowerMatrix
+
+fuzz: deps
+	@for t in $(FUZZ_TARGETS); do pkg=$${t%%:*}; fn=$${t##*:}; \
+	  echo "fuzz $$fn ($$pkg) for $(FUZZTIME)"; \
+	  $(GO) test -run '^$$' -fuzz "^$$fn$$" -fuzztime $(FUZZTIME) $$pkg || exit 1; done
+
+# The long fault series (24 SIGKILL points and the other faults) and the fuzzing.
+soak: test-deps
+	SWELLGRID_SOAK=1 $(GO) test -count=1 -timeout 30m -run 'TestCorpus|TestKillResume|TestFullDisk|TestReadOnlyOutput|TestInputDeletedMidRun' -v ./cmd/swellgrid
+	$(MAKE) fuzz FUZZTIME=$(FUZZTIME)
+
 clean:
 	rm -rf bin $(DEMO_OUT) $(BENCH_OUT)
