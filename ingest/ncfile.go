@@ -35,6 +35,9 @@ func checkMagic(path string) (format string, size int64, err error) {
 	head = head[:n]
 	switch {
 	case len(head) >= 4 && bytes.Equal(head[:3], []byte("CDF")) && (head[3] == 1 || head[3] == 2 || head[3] == 5):
+		if err := checkClassicHeader(path, head[3], st.Size()); err != nil {
+			return "", st.Size(), err
+		}
 		return map[byte]string{1: "classic", 2: "64-bit offset", 5: "64-bit data"}[head[3]], st.Size(), nil
 	case len(head) == 8 && bytes.Equal(head, []byte("\x89HDF\r\n\x1a\n")):
 		return "netcdf4", st.Size(), nil
