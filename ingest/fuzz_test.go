@@ -2,12 +2,12 @@ package ingest
 
 import (
 	"fmt"
-	"time"
 	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/fhs/go-netcdf/netcdf"
 )
