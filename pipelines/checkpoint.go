@@ -250,3 +250,16 @@ type outputErr struct{ err error }
 
 func (e *outputErr) Error() string { return e.err.Error() }
 func (e *outputErr) Unwrap() error { return e.err }
+
+// removePartials deletes the temporary files (".<name>.partial-*", see
+// export.WriteFileAtomic) that a run killed while writing left in the run
+// directory, its contours folder and its state folder. It runs under the lock,
+// so no live run owns them.
+func removePartials(out string) {
+	for _, d := range []string{out, filepath.Join(out, "contours"), filepath.Join(out, stateDir)} {
+		m, _ := filepath.Glob(filepath.Join(d, ".*.partial-*"))
+		for _, p := range m {
+			os.Remove(p)
+		}
+	}
+}

@@ -313,3 +313,15 @@ func TestExampleSpecs(t *testing.T) {
 		}
 	}
 }
+
+// Temporary files left by a run killed while writing (".<name>.partial-*")
+// are removed by the next run in the same directory.
+func TestPartialsRemoved(t *testing.T) {
+	out := t.TempDir()
+	left := filepath.Join(out, ".cells.parquet.partial-123")
+	os.WriteFile(left, []byte("half"), 0o644)
+	mustRun(t, testSpec(t, "testdata/points_bulk.nc", out))
+	if _, err := os.Stat(left); err == nil {
+		t.Error("partial file left in place")
+	}
+}

@@ -213,6 +213,15 @@ func (e *engine) cellsTable(res []*cellResult) *export.Table {
 		}
 	}
 	cols = append(cols, export.Int64Column("bad_bins", "1", "negative or non-finite spectral densities seen, clipped to 0", bad, valid))
+	inv := make([]int64, n)
+	rej := make([]int64, n)
+	for i, r := range byID {
+		if r != nil {
+			inv[i], rej[i] = int64(r.sum.InvalidValues), int64(r.sum.RejectedSteps)
+		}
+	}
+	cols = append(cols, export.Int64Column("invalid_values", "1", "values that were present but unusable (negative, infinite or out of range), left out", inv, valid))
+	cols = append(cols, export.Int64Column("rejected_steps", "1", "time steps that could not be placed in the calendar, left out", rej, valid))
 	flags := make([]string, n)
 	for i, r := range byID {
 		flags[i] = strings.Join(e.cellFlags(i, r), ",")
@@ -250,6 +259,12 @@ func (e *engine) cellFlags(id int, r *cellResult) []string {
 	}
 	if r.badBins > 0 {
 		out = append(out, "bad_spectral_bins")
+	}
+	if r.sum.InvalidValues > 0 {
+		out = append(out, "invalid_values")
+	}
+	if r.sum.RejectedSteps > 0 {
+		out = append(out, "rejected_steps")
 	}
 	if r.hasExt {
 		for _, n := range r.ext.GEV.Flags.Names() {

@@ -217,6 +217,7 @@ func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
 		return nil, err
 	}
 	defer unlock()
+	removePartials(out)
 	ids, err := inputIDs(cat)
 	if err != nil {
 		return nil, &InputError{err}
