@@ -384,14 +384,7 @@ func (c *Catalog) resolveDepth(first *scan, opt Options) error {
 			c.Warnings = append(c.Warnings, "no depth: no variable with standard_name sea_floor_depth_below_sea_surface; give a bathymetry file, a constant depth or the deep-water assumption")
 			return nil
 		}
-		f, err := openNC(first.info.Path)
-		if err != nil {
-			return err
-		}
-		defer f.close()
-		vi.v = f.find(vi.Name)
-		s := &scan{f: f, grid: c.Grid, gridDim: c.gridDim}
-		if err := s.readStatic(vi, c.Depth); err != nil {
+		if err := c.readStaticField(first.info.Path, vi, c.Depth); err != nil {
 			return err
 		}
 		c.DepthSource = "variable " + vi.Name + " in " + first.info.Path
@@ -415,18 +408,10 @@ func (c *Catalog) readMask(first *scan) error {
 	if vi == nil {
 		return nil
 	}
-	f, err := openNC(first.info.Path)
-	if err != nil {
-		return err
-	}
-	defer f.close()
-	vi.v = f.find(vi.Name)
 	m := make([]float64, c.Grid.NCells())
-	s := &scan{f: f, grid: c.Grid, gridDim: c.gridDim}
-	if err := s.readStatic(vi, m); err != nil {
+	if err := c.readStaticField(first.info.Path, vi, m); err != nil {
 		return err
 	}
-	vi.v = nil
 	land := 0
 	for i, x := range m {
 		if !(x > 0.5) {
@@ -440,4 +425,21 @@ func (c *Catalog) readMask(first *scan) error {
 		c.Warnings = append(c.Warnings, fmt.Sprintf("%d cells masked as land by %s", land, vi.Name))
 	}
 	return nil
+}
+
+// readStaticField reads a field without a time dimension (depth, mask) of the
+// file at path into dst, in canonical cell order.
+func (c *Catalog) readStaticField(path string, vi *VarInfo, dst []float64) error {
+	f, err := openNC(path)
+	if err != nil {
+		return err
+	}
+	defer f.close()
+	vi.v = f.find(vi.Name)
+	defer func() { vi.v = nil }()
+	if vi.v == nil {
+		return errf(path, vi.Name, "variable disappeared since the file was scanned")
+	}
+	s := &scan{f: f, grid: c.Grid, gridDim: c.gridDim}
+	return s.readStatic(vi, dst)
 }
