@@ -189,6 +189,13 @@ func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
 	mark := func(stage string, since time.Time) { timings[stage] += time.Since(since).Seconds() }
 
 	ts := time.Now()
+	// A sixteenth of the memory budget per variable for NetCDF-4 chunks
+	// (clamped to 16 MiB .. 512 MiB): enough for a month of a variable on a
+	// large grid, so each chunk is decompressed once.
+	limit, _ := ParseSize(spec.Run.MemoryLimit)
+	if err := ingest.SetChunkCache(min(max(limit/16, 16<<20), 512<<20)); err != nil {
+		return nil, err
+	}
 	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
 	if err != nil {
 		return nil, &InputError{err}
@@ -309,7 +316,15 @@ func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
 			opt.Progress.Start(fmt.Sprintf("read pass %d/%d", pi+1, len(passes)), int64(cat.Steps), int64(cat.Files[min(from, len(cat.Files)-1)].Offset))
 		}
 		if from < len(cat.Files) {
+			lastCk := time.Now()
+			every := time.Duration(spec.Run.CheckpointEveryS * float64(time.Second))
 			err = eng.streamPass(ctx, p[0], p[1], from, workers, cells, func(next int) error {
+				// The final state is always saved (resume, update, merge); in
+				// between, at most one checkpoint per run.checkpoint_every_s.
+				if next < len(cat.Files) && every > 0 && time.Since(lastCk) < every {
+					return nil
+				}
+				defer func() { lastCk = time.Now() }()
 				h := want
 				h.NextFile = next
 				if err := saveCheckpoint(path, h, cells); err != nil {

@@ -107,6 +107,9 @@ type RunSpec struct {
 	Workers     int    `toml:"workers" json:"-"`
 	MemoryLimit string `toml:"memory_limit" json:"-"`
 	BlockSteps  int    `toml:"block_steps" json:"-"`
+	// CheckpointEveryS: seconds between checkpoints during a pass (each at the
+	// end of an input file); 0 = after every file. The final state is always saved.
+	CheckpointEveryS float64 `toml:"checkpoint_every_s" json:"-"`
 }
 
 // DefaultSpec is the spec of the common case.
@@ -121,7 +124,7 @@ func DefaultSpec() *Spec {
 			ThresholdRule: "quantile", ThresholdQuantile: 0.99, PeaksPerYear: 5, MinYears: 10, Seed: 1},
 		Contours: ContourSpec{Columns: []string{"power_mean_kw_m", "hm0_mean_m", "hm0_rl100y_m"}, Levels: map[string][]float64{}},
 		Output:   OutputSpec{Dir: "swellgrid-out"},
-		Run:      RunSpec{MemoryLimit: "2GiB", BlockSteps: 64},
+		Run:      RunSpec{MemoryLimit: "2GiB", BlockSteps: 64, CheckpointEveryS: 60},
 	}
 }
 
@@ -276,6 +279,9 @@ func (s *Spec) Validate() error {
 	}
 	if _, err := ParseSize(s.Run.MemoryLimit); err != nil {
 		return bad("run.memory_limit", err.Error(), strconv.Quote(s.Run.MemoryLimit))
+	}
+	if !(s.Run.CheckpointEveryS >= 0) || math.IsInf(s.Run.CheckpointEveryS, 0) {
+		return bad("run.checkpoint_every_s", "must be 0 (after every file) or a positive number of seconds", s.Run.CheckpointEveryS)
 	}
 	if s.Run.BlockSteps < 0 {
 		return bad("run.block_steps", "must be positive", s.Run.BlockSteps)

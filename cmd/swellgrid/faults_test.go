@@ -82,7 +82,10 @@ func TestKillResume(t *testing.T) {
 	bin := binary(t)
 	root := t.TempDir()
 	ref := filepath.Join(root, "ref")
-	args := func(out string) []string { return []string{"run", "--input", fixture, "--out", out, "--workers", "2"} }
+	// --checkpoint-every 0: a checkpoint after every file, so kills land between checkpoints.
+	args := func(out string) []string {
+		return []string{"run", "--input", fixture, "--out", out, "--workers", "2", "--checkpoint-every", "0"}
+	}
 	t0 := time.Now()
 	if r := run(t, args(ref)...); r.code != 0 {
 		t.Fatalf("reference run: exit %d: %s", r.code, r.stderr)
@@ -331,7 +334,7 @@ func TestInputDeletedMidRun(t *testing.T) {
 	before := hashTree(t, out, skipCk)
 	spec := filepath.Join(root, "slow.toml")
 	// One step per block makes the read slow enough to delete a file during it.
-	os.WriteFile(spec, []byte("[run]\nblock_steps = 1\n"), 0o644)
+	os.WriteFile(spec, []byte("[run]\nblock_steps = 1\ncheckpoint_every_s = 0\n"), 0o644)
 	ck, _ := filepath.Glob(filepath.Join(out, ".swellgrid", "pass-*.ckpt"))
 	var ck0 time.Time
 	if len(ck) == 1 {

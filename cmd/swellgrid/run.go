@@ -26,6 +26,7 @@ type runFlags struct {
 	shard, update            string
 	workers                  int
 	depth                    float64
+	checkpointEvery          float64
 	deep, restart            bool
 }
 
@@ -37,6 +38,7 @@ func (f *runFlags) register(cmd *cobra.Command) {
 	cmd.Flags().Float64Var(&f.depth, "depth", 0, "constant water depth in metres")
 	cmd.Flags().BoolVar(&f.deep, "deep-water", false, "assume deep water everywhere")
 	cmd.Flags().StringVar(&f.memory, "memory-limit", "", "memory budget, e.g. 4GiB (sets the cells per pass)")
+	cmd.Flags().Float64Var(&f.checkpointEvery, "checkpoint-every", -1, "seconds between checkpoints (0: after every input file; default 60, or run.checkpoint_every_s)")
 	cmd.Flags().BoolVar(&f.restart, "restart", false, "ignore checkpoints in the output directory and start over")
 	cmd.Flags().StringVar(&f.shard, "shard", "", "run only share I of N of the cells (I/N, 1-based; whole grid rows) and write a shard directory for `swellgrid merge`")
 	cmd.Flags().StringVar(&f.update, "update", "", "continue the finished run in DIR with the new (later) input files; refused if an earlier file or the spec changed")
@@ -80,6 +82,9 @@ func (f *runFlags) buildSpec() (*pipelines.Spec, error) {
 	}
 	if f.workers != 0 {
 		spec.Run.Workers = f.workers
+	}
+	if f.checkpointEvery >= 0 {
+		spec.Run.CheckpointEveryS = f.checkpointEvery
 	}
 	if f.memory != "" {
 		spec.Run.MemoryLimit = f.memory
