@@ -217,17 +217,22 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 		g.Loc, g.Scale, g.Shape, g.StdErr, g.LogLik, g.Converged = gf.Loc, gf.Scale, gf.Shape, gf.StdErr, gf.LogLik, gf.Converged
 		g.Flags |= fitFlags(gf.Converged, gf.InfoOK, gf.Shape, cfg)
 	}
+	// A fit that did not converge, or whose information matrix is singular
+	// (no standard errors), keeps its parameters and flags but gives no return
+	// levels: extrapolating such a fit gives numbers without meaning (with 3
+	// annual maxima, 100-year levels of 1e13 m were seen).
+	gevOK := err == nil && gf.Converged && gf.InfoOK
 	for _, T := range cfg.ReturnPeriods {
 		lv := Level{PeriodYears: T, Hm0: math.NaN(), Lower: math.NaN(), Upper: math.NaN(), BootLower: math.NaN(), BootUpper: math.NaN()}
-		if err == nil {
+		if gevOK {
 			lv.Hm0, lv.Lower, lv.Upper = gf.ReturnLevel(T)
 		}
-		if math.IsNaN(lv.Hm0) && err == nil {
+		if math.IsNaN(lv.Hm0) && gevOK {
 			g.Flags |= FlagPeriodOutsideModel
 		}
 		g.Levels = append(g.Levels, lv)
 	}
-	if err == nil && cfg.Bootstrap.N > 0 {
+	if gevOK && cfg.Bootstrap.N > 0 {
 		g.BootFailed = bootstrapGEV(gf, cfg, g.Levels)
 	}
 
@@ -256,17 +261,18 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 		p.StdErr[1], p.StdErr[2] = pf.StdErr[0], pf.StdErr[1]
 		p.Flags |= fitFlags(pf.Converged, pf.InfoOK, pf.Shape, cfg)
 	}
+	gpdOK := perr == nil && pf.Converged && pf.InfoOK // as for the GEV
 	for _, T := range cfg.ReturnPeriods {
 		lv := Level{PeriodYears: T, Hm0: math.NaN(), Lower: math.NaN(), Upper: math.NaN(), BootLower: math.NaN(), BootUpper: math.NaN()}
-		if perr == nil {
+		if gpdOK {
 			lv.Hm0, lv.Lower, lv.Upper = pf.ReturnLevel(T)
 		}
-		if math.IsNaN(lv.Hm0) && perr == nil {
+		if math.IsNaN(lv.Hm0) && gpdOK {
 			p.Flags |= FlagPeriodOutsideModel
 		}
 		p.Levels = append(p.Levels, lv)
 	}
-	if perr == nil && cfg.Bootstrap.N > 0 {
+	if gpdOK && cfg.Bootstrap.N > 0 {
 		p.BootFailed = bootstrapGPD(pf, res.RecordYears, cfg, p.Levels)
 	}
 
