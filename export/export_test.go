@@ -9,12 +9,10 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"swellgrid/export/parquetread"
 	"testing"
 
-	"github.com/apache/arrow/go/v17/arrow/array"
-	"github.com/apache/arrow/go/v17/arrow/memory"
 	"github.com/apache/arrow/go/v17/parquet/file"
-	"github.com/apache/arrow/go/v17/parquet/pqarrow"
 	"github.com/paulmach/orb"
 )
 
@@ -57,38 +55,9 @@ func readBack(t *testing.T, path string) (*file.Reader, map[string][]any) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	fr, err := pqarrow.NewFileReader(rdr, pqarrow.ArrowReadProperties{}, memory.DefaultAllocator)
+	out, err := parquetread.Columns(path)
 	if err != nil {
 		t.Fatal(err)
-	}
-	tbl, err := fr.ReadTable(t.Context())
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer tbl.Release()
-	out := map[string][]any{}
-	for c := 0; c < int(tbl.NumCols()); c++ {
-		col := tbl.Column(c)
-		for _, ch := range col.Data().Chunks() {
-			for r := 0; r < ch.Len(); r++ {
-				if ch.IsNull(r) {
-					out[col.Name()] = append(out[col.Name()], nil)
-					continue
-				}
-				switch a := ch.(type) {
-				case *array.Float64:
-					out[col.Name()] = append(out[col.Name()], a.Value(r))
-				case *array.Int64:
-					out[col.Name()] = append(out[col.Name()], a.Value(r))
-				case *array.String:
-					out[col.Name()] = append(out[col.Name()], a.Value(r))
-				case *array.Boolean:
-					out[col.Name()] = append(out[col.Name()], a.Value(r))
-				case *array.Binary:
-					out[col.Name()] = append(out[col.Name()], append([]byte(nil), a.Value(r)...))
-				}
-			}
-		}
 	}
 	return rdr, out
 }

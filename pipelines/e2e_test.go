@@ -9,13 +9,9 @@ import (
 	"path/filepath"
 	"sort"
 	"strings"
+	"swellgrid/export/parquetread"
 	"swellgrid/ingest"
 	"testing"
-
-	"github.com/apache/arrow/go/v17/arrow/array"
-	"github.com/apache/arrow/go/v17/arrow/memory"
-	"github.com/apache/arrow/go/v17/parquet/file"
-	"github.com/apache/arrow/go/v17/parquet/pqarrow"
 )
 
 var allTables = []string{"cells.parquet", "monthly.parquet", "scatter.parquet", "exceedance.parquet", "windows.parquet", "extremes.parquet", "manifest.json"}
@@ -71,40 +67,11 @@ func sameBytes(t *testing.T, what string, a, b map[string][]byte) {
 // readColumn reads one float column of a Parquet file with the Arrow reader.
 func readColumn(t *testing.T, path, col string) []float64 {
 	t.Helper()
-	f, err := os.Open(path)
+	v, err := parquetread.Float64s(path, col)
 	if err != nil {
 		t.Fatal(err)
 	}
-	defer f.Close()
-	rdr, err := file.NewParquetReader(f)
-	if err != nil {
-		t.Fatal(err)
-	}
-	fr, err := pqarrow.NewFileReader(rdr, pqarrow.ArrowReadProperties{}, memory.DefaultAllocator)
-	if err != nil {
-		t.Fatal(err)
-	}
-	tbl, err := fr.ReadTable(context.Background())
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer tbl.Release()
-	idx := tbl.Schema().FieldIndices(col)
-	if len(idx) != 1 {
-		t.Fatalf("%s: no column %s", path, col)
-	}
-	var out []float64
-	for _, ch := range tbl.Column(idx[0]).Data().Chunks() {
-		a := ch.(*array.Float64)
-		for i := 0; i < a.Len(); i++ {
-			if a.IsNull(i) {
-				out = append(out, math.NaN())
-			} else {
-				out = append(out, a.Value(i))
-			}
-		}
-	}
-	return out
+	return v
 }
 
 // The bulk fixture gives every output, and the tables are byte-identical

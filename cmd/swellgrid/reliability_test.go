@@ -34,11 +34,7 @@ import (
 	"testing"
 	"time"
 
-	"github.com/apache/arrow/go/v17/arrow/array"
-	"github.com/apache/arrow/go/v17/arrow/memory"
-	"github.com/apache/arrow/go/v17/parquet/file"
-	"github.com/apache/arrow/go/v17/parquet/pqarrow"
-
+	"swellgrid/export/parquetread"
 	"swellgrid/pipelines/corpus"
 )
 
@@ -236,50 +232,9 @@ func containsFold(s, sub string) bool {
 // reader, as an outside reader of the file).
 func cellsTable(t *testing.T, path string, cols ...string) map[string][]any {
 	t.Helper()
-	f, err := os.Open(path)
+	out, err := parquetread.Columns(path, cols...)
 	if err != nil {
 		t.Fatal(err)
-	}
-	defer f.Close()
-	rdr, err := file.NewParquetReader(f)
-	if err != nil {
-		t.Fatal(err)
-	}
-	fr, err := pqarrow.NewFileReader(rdr, pqarrow.ArrowReadProperties{}, memory.DefaultAllocator)
-	if err != nil {
-		t.Fatal(err)
-	}
-	tbl, err := fr.ReadTable(t.Context())
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer tbl.Release()
-	out := map[string][]any{}
-	for _, name := range cols {
-		idx := tbl.Schema().FieldIndices(name)
-		if len(idx) == 0 {
-			t.Fatalf("%s: no column %s", path, name)
-		}
-		for _, ch := range tbl.Column(idx[0]).Data().Chunks() {
-			for i := 0; i < ch.Len(); i++ {
-				if ch.IsNull(i) {
-					out[name] = append(out[name], nil)
-					continue
-				}
-				switch a := ch.(type) {
-				case *array.Float64:
-					out[name] = append(out[name], a.Value(i))
-				case *array.Int64:
-					out[name] = append(out[name], a.Value(i))
-				case *array.String:
-					out[name] = append(out[name], a.Value(i))
-				case *array.Dictionary:
-					out[name] = append(out[name], a.Dictionary().(*array.String).Value(a.GetValueIndex(i)))
-				default:
-					out[name] = append(out[name], a.ValueStr(i))
-				}
-			}
-		}
 	}
 	return out
 }
