@@ -8,7 +8,7 @@ SUDO    := $(shell [ "$$(id -u)" = 0 ] || echo sudo)
 # Debian packages the build needs (cgo NetCDF), and the ones the tests use as
 # outside references (ncdump, GDAL's ogrinfo and gdal_contour).
 BUILD_DEBS := libnetcdf-dev pkg-config
-TEST_DEBS  := netcdf-bin gdal-bin slurm-wlm munge
+TEST_DEBS  := netcdf-bin gdal-bin python3-gdal slurm-wlm munge
 
 .PHONY: all deps test-deps build demo test bench fuzz soak clean
 
