@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"os"
 	"time"
 
 	"swellgrid/grid"
@@ -77,6 +78,14 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 	fe := &c.Files[fi]
 	defer ncThread()()
 	ncMu.Lock()
+	if st, err := os.Stat(fe.Path); err != nil || st.Size() != fe.Size {
+		ncMu.Unlock()
+		what := "was removed"
+		if err == nil {
+			what = fmt.Sprintf("changed size (%d bytes, %d when the run started)", st.Size(), fe.Size)
+		}
+		return errf(fe.Path, "", "the input file %s during the run; restore it and rerun the same command to resume", what)
+	}
 	f, err := openNC(fe.Path)
 	ncMu.Unlock()
 	if err != nil {
