@@ -12,7 +12,6 @@ import (
 	"time"
 
 	"github.com/spf13/cobra"
-	"golang.org/x/term"
 
 	"swellgrid/pipelines"
 )
@@ -36,11 +35,7 @@ it wrote and which files to open in GIS software.
 			defer stop()
 			log := slog.New(slog.NewTextHandler(os.Stderr, nil))
 			opt := pipelines.Options{Log: log, Version: Version}
-			if term.IsTerminal(int(os.Stderr.Fd())) {
-				opt.Progress = pipelines.NewBarProgress(os.Stderr)
-			} else {
-				opt.Progress = pipelines.NewLogProgress(log, 10*time.Second)
-			}
+			opt.Progress = stderrProgress(log)
 			res, err := pipelines.Demo(ctx, out, opt)
 			if err != nil {
 				if ctx.Err() != nil {

@@ -164,11 +164,7 @@ func runSpecWith(spec *pipelines.Spec, opt pipelines.Options) (*pipelines.Result
 	defer stop()
 	log := slog.New(slog.NewTextHandler(os.Stderr, nil))
 	opt.Log, opt.Version = log, Version
-	if term.IsTerminal(int(os.Stderr.Fd())) {
-		opt.Progress = pipelines.NewBarProgress(os.Stderr)
-	} else {
-		opt.Progress = pipelines.NewLogProgress(log, 10*time.Second)
-	}
+	opt.Progress = stderrProgress(log)
 	res, err := pipelines.Run(ctx, spec, opt)
 	switch {
 	case err == nil:
@@ -183,4 +179,13 @@ func runSpecWith(spec *pipelines.Spec, opt pipelines.Options) (*pipelines.Result
 		return nil, &exitErr{2, err}
 	}
 	return nil, &exitErr{1, err}
+}
+
+// stderrProgress shows progress on stderr: bars on a terminal, a log line
+// every 10 s otherwise (schedulers).
+func stderrProgress(log *slog.Logger) pipelines.Progress {
+	if term.IsTerminal(int(os.Stderr.Fd())) {
+		return pipelines.NewBarProgress(os.Stderr)
+	}
+	return pipelines.NewLogProgress(log, 10*time.Second)
 }
