@@ -132,6 +132,9 @@ type FileInfo struct {
 
 	vars  map[Role]*VarInfo
 	times []Stamp
+	// xFile, yFile are this file's own orientation: the file index of each
+	// canonical column and row (grid.Grid.XFile/YFile of the file's axes).
+	xFile, yFile []int
 }
 
 // Gap is a stretch of missing time steps between two records.

@@ -107,7 +107,15 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 		vars[role] = &cp
 	}
 	valid := map[Role]int{}
-	g := c.Grid
+	// Each file is read in its own orientation: the catalog's grid holds the
+	// canonical cells, the file's axes may run the other way (a latitude
+	// descending in one month of an ascending record) or be stored in another
+	// order (dimension order is in each file's own vi.axes).
+	fg := *c.Grid
+	if fe.xFile != nil {
+		fg.XFile, fg.YFile = fe.xFile, fe.yFile
+	}
+	g := &fg
 	invX, invY := invert(g.XFile), invert(g.YFile)
 	nc := r.C1 - r.C0
 	var nf, nd int

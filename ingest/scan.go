@@ -347,6 +347,7 @@ func (s *scan) findGrid() error {
 		return errf(s.f.path, lon.name+"/"+lat.name, "coordinates of dimensions %v and %v form no grid swellgrid reads (1-D axes, 2-D curvilinear, or a station dimension)", lon.dims, lat.dims)
 	}
 	s.invX, s.invY = invert(s.grid.XFile), invert(s.grid.YFile)
+	s.info.xFile, s.info.yFile = s.grid.XFile, s.grid.YFile
 	return nil
 }
 
