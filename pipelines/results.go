@@ -135,7 +135,7 @@ func (e *engine) cellsTable(res []*cellResult) *export.Table {
 	f64("hm0_max_m", "m", "largest Hm0 of the record", func(r *cellResult) float64 { return r.sum.Hm0MaxM })
 	f64("te_mean_s", "s", "mean energy period Te", func(r *cellResult) float64 { return r.sum.TeMeanS })
 	f64("tp_mean_s", "s", "mean peak period Tp", func(r *cellResult) float64 { return r.sum.TpMeanS })
-	f64("dir_mean_deg", "degree", "time-weighted circular mean wave direction, nautical from", func(r *cellResult) float64 { return r.sum.DirMeanDeg })
+	f64("dir_mean_deg", "degree", "time-weighted circular mean of the mean wave direction, nautical from (spectra: from the first-order directional moments)", func(r *cellResult) float64 { return r.sum.DirMeanDeg })
 	f64("dir_max_power_deg", "degree", "direction of maximum directional power (spectra: power-weighted circular mean over sea states; bulk: mean direction), nautical from", func(r *cellResult) float64 { return r.dirMax })
 	f64("directionality", "1", "power-weighted mean directionality coefficient J_theta,max / J (spectra only)", func(r *cellResult) float64 { return r.direct })
 	f64("width_mean", "1", "mean spectral width eps0 (spectra only)", func(r *cellResult) float64 { return r.width })
@@ -212,7 +212,7 @@ func (e *engine) cellsTable(res []*cellResult) *export.Table {
 			bad[i] = r.badBins
 		}
 	}
-	cols = append(cols, export.Int64Column("bad_bins", "1", "negative or non-finite spectral densities seen, clipped to 0", bad, valid))
+	cols = append(cols, export.Int64Column("bad_bins", "1", "missing, negative or non-finite spectral densities seen, each set to 0", bad, valid))
 	inv := make([]int64, n)
 	rej := make([]int64, n)
 	for i, r := range byID {

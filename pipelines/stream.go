@@ -117,13 +117,14 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 			i := t*nc + k
 			if e.spectral {
 				s := b.Spec[i*per : (i+1)*per]
-				if math.IsNaN(s[0]) {
+				if allMissing(s) {
 					step.J, step.Hm0, step.Te, step.Tp, step.DirDeg = math.NaN(), math.NaN(), math.NaN(), math.NaN(), math.NaN()
 				} else {
+					// missing (NaN) and non-finite bins are set to 0 and counted by the kernel
 					c.kern.Params(s, &p)
 					c.spec.Add(&p)
 					if p.Valid {
-						step.J, step.Hm0, step.Te, step.Tp, step.DirDeg = p.J, p.Hm0, p.Te, p.Tp, p.DirMaxPowerDeg
+						step.J, step.Hm0, step.Te, step.Tp, step.DirDeg = p.J, p.Hm0, p.Te, p.Tp, p.MeanDirDeg
 					} else {
 						step.J, step.Hm0, step.Te, step.Tp, step.DirDeg = math.NaN(), math.NaN(), math.NaN(), math.NaN(), math.NaN()
 					}
@@ -158,6 +159,18 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 			c.col.Add(step.Year, step.Month, step.Hours, step.Hm0, step.Te, step.Tp)
 		}
 	}
+}
+
+// allMissing reports whether every bin of a spectrum is missing (NaN): the
+// step is then a missing step. A spectrum with some bins missing is used,
+// the missing bins counting as 0 (and in bad_bins).
+func allMissing(s []float64) bool {
+	for _, v := range s {
+		if v == v {
+			return false
+		}
+	}
+	return true
 }
 
 // blockTimes converts a block's stamps to calendar fields once per block.

@@ -23,6 +23,7 @@ type Params struct {
 	JThetaMax      float64    // maximum over theta of the directionally resolved power, W/m (NaN for 1-D)
 	DirMaxPowerDeg float64    // direction of JThetaMax, deg nautical "from" in [0, 360) (NaN for 1-D)
 	Directionality float64    // JThetaMax / J in [0, 1] (NaN for 1-D or J = 0)
+	MeanDirDeg     float64    // mean wave direction from the first-order directional moments, deg nautical "from" in [0, 360) (NaN for 1-D or no energy); see MeanDirection
 	BadBins        int        // densities that were negative, NaN or infinite; they were treated as 0
 	Valid          bool       // m0 finite and > 0: every parameter is defined
 }
@@ -41,6 +42,7 @@ type Kernel struct {
 	pw     []float64    // rho g cg_i df_i
 	e      []float64    // scratch: E_i = sum_j S_ij dtheta_j
 	a      []float64    // scratch: power travelling from direction j, W/m
+	ed     []float64    // scratch: variance coming from direction j, sum_i S_ij df_i (m^2/rad)
 
 	// directional sweep, see dirMax
 	arcB   []float64 // start of arc k, deg
@@ -78,6 +80,7 @@ func NewKernel(l *Layout, depth float64, c Consts) *Kernel {
 	}
 	if nd > 0 {
 		k.a = make([]float64, nd)
+		k.ed = make([]float64, nd)
 		k.prepareArcs()
 	}
 	return k
@@ -186,6 +189,8 @@ func (k *Kernel) prepareArcs() {
 //	J(theta) = rho g sum_ij cg_i S_ij df_i dtheta_j cos(theta - theta_j) delta_ij,
 //	           delta_ij = 1 if cos(theta - theta_j) >= 0, else 0
 //	JThetaMax = max over all theta of J(theta),  Directionality = JThetaMax / J
+//	MeanDirDeg = atan2(sum_ij sin(theta_j) S_ij df_i dtheta_j, sum_ij cos(theta_j) S_ij df_i dtheta_j)
+//	             (see MeanDirection)
 //
 // The maximum of J(theta) is exact over the whole circle, not only at the
 // spectral directions: see dirMax. TpDiscrete is 1/f of the largest E_i (the
@@ -211,14 +216,15 @@ func (k *Kernel) Params(s []float64, out *Params) {
 		}
 	} else {
 		nd := k.nd
-		a := k.a
+		a, ed := k.a, k.ed
 		dth := k.l.dth
 		for j := range a {
-			a[j] = 0
+			a[j], ed[j] = 0, 0
 		}
+		df := k.mw[2]
 		for i := 0; i < k.nf; i++ {
 			row := s[i*nd : i*nd+nd]
-			w := k.pw[i]
+			w, dfi := k.pw[i], df[i]
 			var sum float64
 			for j, v := range row {
 				if !(v >= 0 && v <= big) {
@@ -227,6 +233,7 @@ func (k *Kernel) Params(s []float64, out *Params) {
 				}
 				sum += v * dth[j]
 				a[j] += v * w
+				ed[j] += v * dfi
 			}
 			e[i] = sum
 		}
@@ -251,7 +258,7 @@ func (k *Kernel) Params(s []float64, out *Params) {
 	if !(m0 > 0) || m0 > big || !(jSum <= big) {
 		out.Valid = false
 		out.Hm0, out.Te, out.Tm01, out.Tm02, out.Tp, out.TpDiscrete, out.Eps0 = nan, nan, nan, nan, nan, nan, nan
-		out.J, out.JThetaMax, out.DirMaxPowerDeg, out.Directionality = nan, nan, nan, nan
+		out.J, out.JThetaMax, out.DirMaxPowerDeg, out.Directionality, out.MeanDirDeg = nan, nan, nan, nan, nan
 		if m0 == 0 && bad < len(s) {
 			out.Hm0, out.J = 0, 0
 			if k.nd > 0 {
@@ -273,9 +280,10 @@ func (k *Kernel) Params(s []float64, out *Params) {
 	out.J = jSum
 	out.TpDiscrete, out.Tp = k.peak()
 	if k.nd == 0 {
-		out.JThetaMax, out.DirMaxPowerDeg, out.Directionality = nan, nan, nan
+		out.JThetaMax, out.DirMaxPowerDeg, out.Directionality, out.MeanDirDeg = nan, nan, nan, nan
 		return
 	}
+	out.MeanDirDeg = MeanDirection(k.ed, k.l.dth, k.dirSin, k.dirCos)
 	out.JThetaMax, out.DirMaxPowerDeg = k.dirMax()
 	if jSum > 0 {
 		d := out.JThetaMax / jSum
@@ -286,6 +294,37 @@ func (k *Kernel) Params(s []float64, out *Params) {
 	} else {
 		out.Directionality = nan
 	}
+}
+
+// MeanDirection returns the mean wave direction of a directional spectrum
+// from its first-order directional moments, in degrees nautical "from" in
+// [0, 360):
+//
+//	a1 = sum_i sum_j cos(theta_j) S_ij df_i dtheta_j
+//	b1 = sum_i sum_j sin(theta_j) S_ij df_i dtheta_j
+//	theta_mean = atan2(b1, a1)
+//
+// given ed[j] = sum_i S_ij df_i (the variance coming from direction j per
+// radian), the direction widths dth (rad) and the sines and cosines of the
+// directions theta_j (nautical "from", clockwise from north; the mean keeps
+// that convention). This is the energy-weighted mean direction of the
+// first-order Fourier coefficients of the directional distribution (Kuik, van
+// Vledder and Holthuijsen 1988, J. Phys. Oceanogr. 18, 1020-1034, eq. for
+// theta_0 with the coefficients integrated over frequency; quoted from
+// memory, and the form used by spectral wave models for their mean
+// direction: common practice). NaN when a1 = b1 = 0 (no energy, or a
+// perfectly symmetric spread with no preferred direction).
+func MeanDirection(ed, dth, sin, cos []float64) float64 {
+	var a1, b1 float64
+	for j, v := range ed {
+		w := v * dth[j]
+		a1 += w * cos[j]
+		b1 += w * sin[j]
+	}
+	if a1 == 0 && b1 == 0 {
+		return math.NaN()
+	}
+	return normDeg(math.Atan2(b1, a1) * 180 / math.Pi)
 }
 
 // peak returns the discrete and the parabolic peak period of k.e.

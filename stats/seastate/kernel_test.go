@@ -200,3 +200,38 @@ func TestConstsValidate(t *testing.T) {
 		t.Errorf("g = NaN: %v", err)
 	}
 }
+
+// The mean direction from the first-order moments (MeanDirection) of a
+// spread symmetric about theta_m is theta_m, and of two equal systems from
+// 270 and 0 degrees is 315, by symmetry (common practice); the direction of
+// maximum directional power is a different quantity. A 1-D spectrum has none.
+// The numpy check on an unequal two-peaked sea is in pipelines
+// (testdata/spectral_badbins/make_fixture.py).
+func TestMeanDirectionSymmetry(t *testing.T) {
+	f := logFreqs(0.035, 1.1, 29)
+	dirs := uniformDirs(0, 24)
+	l, err := NewLayout(f, dirs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	k := NewKernel(l, 40, DefaultConsts)
+	var p Params
+	k.Params(outer(JONSWAP(f, 2, 9, 3.3), CosSpread(dirs, 285, 8)), &p)
+	if math.Abs(p.MeanDirDeg-285) > 1e-9 {
+		t.Errorf("single system from 285: mean direction %.12f", p.MeanDirDeg)
+	}
+	sea := outer(JONSWAP(f, 2, 9, 3.3), CosSpread(dirs, 270, 8))
+	swell := outer(JONSWAP(f, 2, 9, 3.3), CosSpread(dirs, 0, 8))
+	for i := range sea {
+		sea[i] += swell[i]
+	}
+	k.Params(sea, &p)
+	if math.Abs(p.MeanDirDeg-315) > 1e-9 {
+		t.Errorf("equal systems from 270 and 0: mean direction %.12f, want 315", p.MeanDirDeg)
+	}
+	l1, _ := NewLayout(f, nil)
+	NewKernel(l1, 40, DefaultConsts).Params(JONSWAP(f, 2, 9, 3.3), &p)
+	if !math.IsNaN(p.MeanDirDeg) {
+		t.Errorf("1-D spectrum: mean direction %g, want NaN", p.MeanDirDeg)
+	}
+}
