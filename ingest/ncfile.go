@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"math"
 	"os"
-	"strings"
 	"sync"
 
 	"github.com/fhs/go-netcdf/netcdf"
@@ -48,6 +47,8 @@ func checkMagic(path string) (format string, size int64, err error) {
 // ncVar is what ingest needs of one variable of an open file.
 type ncVar struct {
 	v     netcdf.Var
+	ds    netcdf.Dataset
+	id    int
 	name  string
 	typ   netcdf.Type
 	dims  []string
@@ -88,7 +89,7 @@ func openNC(path string) (*ncFile, error) {
 			ds.Close()
 			return nil, fmt.Errorf("ingest: %s: variable %q: %v", path, name, err)
 		}
-		nv := ncVar{v: v, name: name, typ: typ}
+		nv := ncVar{v: v, ds: ds, id: i, name: name, typ: typ}
 		for _, d := range dims {
 			dn, err := d.Name()
 			if err != nil {
@@ -119,111 +120,26 @@ func (f *ncFile) find(name string) *ncVar {
 	return nil
 }
 
-// attrString reads a text attribute ("" when absent).
-func attrString(a netcdf.Attr) (string, bool) {
-	t, err := a.Type()
-	if err != nil {
-		return "", false
-	}
-	if t != netcdf.CHAR {
-		return "", false
-	}
-	n, err := a.Len()
-	if err != nil || n == 0 {
-		return "", n == 0 && err == nil
-	}
-	b := make([]byte, n)
-	if err := a.ReadBytes(b); err != nil {
-		return "", false
-	}
-	return strings.TrimRight(string(b), "\x00"), true
-}
-
-// attrFloats reads a numeric attribute as float64 values (nil when absent or
-// not numeric).
-func attrFloats(a netcdf.Attr) []float64 {
-	t, err := a.Type()
-	if err != nil {
-		return nil
-	}
-	n, err := a.Len()
-	if err != nil || n == 0 || n > 1<<16 {
-		return nil
-	}
-	out := make([]float64, n)
-	switch t {
-	case netcdf.DOUBLE:
-		if a.ReadFloat64s(out) != nil {
-			return nil
-		}
-	case netcdf.FLOAT:
-		b := make([]float32, n)
-		if a.ReadFloat32s(b) != nil {
-			return nil
-		}
-		for i, v := range b {
-			out[i] = float64(v)
-		}
-	case netcdf.SHORT:
-		b := make([]int16, n)
-		if a.ReadInt16s(b) != nil {
-			return nil
-		}
-		for i, v := range b {
-			out[i] = float64(v)
-		}
-	case netcdf.INT:
-		b := make([]int32, n)
-		if a.ReadInt32s(b) != nil {
-			return nil
-		}
-		for i, v := range b {
-			out[i] = float64(v)
-		}
-	case netcdf.BYTE:
-		b := make([]int8, n)
-		if a.ReadInt8s(b) != nil {
-			return nil
-		}
-		for i, v := range b {
-			out[i] = float64(v)
-		}
-	case netcdf.UBYTE:
-		b := make([]uint8, n)
-		if a.ReadUint8s(b) != nil {
-			return nil
-		}
-		for i, v := range b {
-			out[i] = float64(v)
-		}
-	case netcdf.USHORT:
-		b := make([]uint16, n)
-		if a.ReadUint16s(b) != nil {
-			return nil
-		}
-		for i, v := range b {
-			out[i] = float64(v)
-		}
-	case netcdf.INT64:
-		b := make([]int64, n)
-		if a.ReadInt64s(b) != nil {
-			return nil
-		}
-		for i, v := range b {
-			out[i] = float64(v)
-		}
-	default:
-		return nil
-	}
-	return out
-}
-
+// str reads a text attribute, NC_CHAR or NC_STRING ("" when absent or not
+// text).
 func (v *ncVar) str(name string) string {
-	s, _ := attrString(v.v.Attr(name))
-	return s
+	a := v.attr(name)
+	if !a.isText || a.err != nil {
+		return ""
+	}
+	return a.text
 }
 
-func (v *ncVar) nums(name string) []float64 { return attrFloats(v.v.Attr(name)) }
+// nums reads a numeric attribute as float64 values (nil when absent, not
+// numeric or unreadable); the strict reading of packing and missing-value
+// attributes is scan.numAttr.
+func (v *ncVar) nums(name string) []float64 {
+	a := v.attr(name)
+	if a.err != nil || len(a.nums) == 0 {
+		return nil
+	}
+	return a.nums
+}
 
 // defaultFill is the NetCDF default fill value of a type (netcdf.h NC_FILL_*),
 // which CF says applies when a variable has no _FillValue.
@@ -243,6 +159,8 @@ func defaultFill(t netcdf.Type) float64 {
 		return 255
 	case netcdf.USHORT:
 		return 65535
+	case netcdf.UINT:
+		return 4294967295
 	}
 	return math.NaN()
 }
@@ -327,6 +245,20 @@ func (v *ncVar) readSlab(path string, start, count []uint64, buf []float64) erro
 				buf[i] = float64(x)
 			}
 		}
+	case netcdf.UINT:
+		b := make([]uint32, n)
+		if err = v.readTyped(b, start, count); err == nil {
+			for i, x := range b {
+				buf[i] = float64(x)
+			}
+		}
+	case netcdf.UINT64:
+		b := make([]uint64, n)
+		if err = v.readTyped(b, start, count); err == nil {
+			for i, x := range b {
+				buf[i] = float64(x)
+			}
+		}
 	case netcdf.INT64:
 		b := make([]int64, n)
 		if err = v.readTyped(b, start, count); err == nil {
@@ -335,7 +267,7 @@ func (v *ncVar) readSlab(path string, start, count []uint64, buf []float64) erro
 			}
 		}
 	default:
-		return fmt.Errorf("ingest: %s: variable %q has type %v, which swellgrid does not read; store it as a number type", path, v.name, v.typ)
+		return fmt.Errorf("ingest: %s: variable %q has type %s, which swellgrid does not read; store it as a number type", path, v.name, typeName(v.typ))
 	}
 	if err != nil {
 		return fmt.Errorf("ingest: %s: variable %q: read of %v+%v failed: %v; the file may be truncated or corrupt", path, v.name, start, count, err)
@@ -381,6 +313,16 @@ func (v *ncVar) readTyped(b any, start, count []uint64) error {
 			return v.v.ReadInt64s(x)
 		}
 		return v.v.ReadInt64Slice(x, start, count)
+	case []uint32:
+		if full {
+			return v.v.ReadUint32s(x)
+		}
+		return v.v.ReadUint32Slice(x, start, count)
+	case []uint64:
+		if full {
+			return v.v.ReadUint64s(x)
+		}
+		return v.v.ReadUint64Slice(x, start, count)
 	}
 	return fmt.Errorf("unsupported buffer")
 }

@@ -456,34 +456,122 @@ func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
 		return nil, errf(s.f.path, v.name, "%v; set units for role %s in the spec if the attribute is wrong", err, r)
 	}
 	vi.Factor = fac
-	// Packing and missing values (CF 1.8 sections 2.5.1 and 8.1).
+	// Packing and missing values (CF 1.8 sections 2.5.1 and 8.1), read
+	// strictly: a packing attribute that is skipped would leave values scaled
+	// by orders of magnitude, so text, the wrong count or a non-finite value
+	// is refused.
+	if err := s.packing(v, vi); err != nil {
+		return nil, err
+	}
+	return vi, nil
+}
+
+// packing reads the packing, missing-value and valid-range attributes of a
+// role variable into vi, refusing those that CF does not allow (CF 1.8
+// section 8.1: scale_factor and add_offset are single numbers; section 2.5.1:
+// _FillValue is a single number of the variable's type, missing_value one or
+// more, valid_range two, valid_min and valid_max one). A NaN _FillValue or
+// missing_value is legal (xarray writes one): a NaN raw value is missing in
+// any case. The scale must be non-zero, and the unpacked values of the
+// variable's type must stay within plausible magnitudes (|x| <= 1e12 in the
+// stored unit; a scale of 1e308 makes them infinite).
+func (s *scan) packing(v *ncVar, vi *VarInfo) error {
 	vi.Scale, vi.Offset = 1, 0
-	if sf := v.nums("scale_factor"); len(sf) == 1 {
+	sf, err := s.numAttr(v, "scale_factor", true, 1)
+	if err != nil {
+		return err
+	}
+	ao, err := s.numAttr(v, "add_offset", true, 1)
+	if err != nil {
+		return err
+	}
+	if sf != nil {
 		vi.Scale, vi.Packed = sf[0], true
 	}
-	if ao := v.nums("add_offset"); len(ao) == 1 {
+	if ao != nil {
 		vi.Offset, vi.Packed = ao[0], true
 	}
-	if fv := v.nums("_FillValue"); len(fv) > 0 {
-		vi.Fill = append(vi.Fill, fv[0])
+	if vi.Scale == 0 {
+		return errf(s.f.path, v.name, "attribute scale_factor is 0, which unpacks every value to add_offset %v; fix the packing attributes (CF 1.8 section 8.1)", vi.Offset)
+	}
+	const maxMag = 1e12
+	if lo, hi := typeRange(v.typ); math.Abs(vi.Offset) > maxMag || math.Abs(vi.Scale) > maxMag ||
+		math.Abs(lo*vi.Scale+vi.Offset) > 1e3*maxMag || math.Abs(hi*vi.Scale+vi.Offset) > 1e3*maxMag {
+		return errf(s.f.path, v.name, "attributes scale_factor %v and add_offset %v unpack values of %s to magnitudes beyond %g %s; fix the packing attributes (CF 1.8 section 8.1)", vi.Scale, vi.Offset, typeName(v.typ), maxMag, vi.Units)
+	}
+	fv, err := s.numAttr(v, "_FillValue", false, 1)
+	if err != nil {
+		return err
+	}
+	// A NaN raw value is missing whatever the attributes say (unpack), so a
+	// NaN _FillValue or missing_value needs no entry in Fill.
+	if fv != nil {
+		if !math.IsNaN(fv[0]) {
+			vi.Fill = append(vi.Fill, fv[0])
+		}
 	} else if df := defaultFill(v.typ); !math.IsNaN(df) {
 		vi.Fill = append(vi.Fill, df)
 	}
-	vi.Fill = append(vi.Fill, v.nums("missing_value")...)
+	mv, err := s.numAttr(v, "missing_value", false)
+	if err != nil {
+		return err
+	}
+	for _, x := range mv {
+		if !math.IsNaN(x) {
+			vi.Fill = append(vi.Fill, x)
+		}
+	}
 	vi.ValidMin, vi.ValidMax = math.Inf(-1), math.Inf(1)
-	if vr := v.nums("valid_range"); len(vr) == 2 {
+	vr, err := s.numAttr(v, "valid_range", true, 2)
+	if err != nil {
+		return err
+	}
+	if vr != nil {
 		vi.ValidMin, vi.ValidMax = vr[0], vr[1]
 	}
-	if vm := v.nums("valid_min"); len(vm) == 1 {
+	if vm, err := s.numAttr(v, "valid_min", true, 1); err != nil {
+		return err
+	} else if vm != nil {
 		vi.ValidMin = vm[0]
 	}
-	if vm := v.nums("valid_max"); len(vm) == 1 {
+	if vm, err := s.numAttr(v, "valid_max", true, 1); err != nil {
+		return err
+	} else if vm != nil {
 		vi.ValidMax = vm[0]
 	}
-	if vi.Scale == 0 || math.IsNaN(vi.Scale) || math.IsNaN(vi.Offset) {
-		return nil, errf(s.f.path, v.name, "scale_factor %v / add_offset %v cannot unpack values; fix the packing attributes", vi.Scale, vi.Offset)
+	if vi.ValidMin > vi.ValidMax {
+		return errf(s.f.path, v.name, "valid range %v..%v is empty (minimum above maximum), so every value would be missing; fix valid_range or valid_min/valid_max", vi.ValidMin, vi.ValidMax)
 	}
-	return vi, nil
+	return nil
+}
+
+// typeIsInt reports whether a NetCDF type is an integer type.
+func typeIsInt(t netcdf.Type) bool {
+	switch t {
+	case netcdf.BYTE, netcdf.UBYTE, netcdf.SHORT, netcdf.USHORT, netcdf.INT, netcdf.UINT, netcdf.INT64, netcdf.UINT64:
+		return true
+	}
+	return false
+}
+
+// typeRange is the range of values of an integer NetCDF type of up to 32 bits
+// (0, 0 for other types).
+func typeRange(t netcdf.Type) (float64, float64) {
+	switch t {
+	case netcdf.BYTE:
+		return math.MinInt8, math.MaxInt8
+	case netcdf.UBYTE:
+		return 0, math.MaxUint8
+	case netcdf.SHORT:
+		return math.MinInt16, math.MaxInt16
+	case netcdf.USHORT:
+		return 0, math.MaxUint16
+	case netcdf.INT:
+		return math.MinInt32, math.MaxInt32
+	case netcdf.UINT:
+		return 0, math.MaxUint32
+	}
+	return 0, 0
 }
 
 // findSpectral resolves the frequency and direction dimensions of a spectrum.
@@ -572,22 +660,39 @@ func (s *scan) checkNotAllFill(vi *VarInfo) error {
 	if v.shape[0] > 1 {
 		steps = append(steps, v.shape[0]-1)
 	}
+	valid, possible := 0, 0
 	anyValid := func(t uint64) (bool, error) {
 		start[0] = t
 		if err := v.readSlab(s.f.path, start, count, buf); err != nil {
 			return false, err
 		}
 		for _, x := range buf {
-			if !math.IsNaN(vi.unpack(x)) {
-				return true, nil
+			if u := vi.unpack(x); !math.IsNaN(u) {
+				valid++
+				if physical(vi.Role, u) {
+					possible++
+				}
 			}
 		}
-		return false, nil
+		return valid > 0, nil
 	}
 	for _, t := range steps {
-		if ok, err := anyValid(t); err != nil || ok {
+		if _, err := anyValid(t); err != nil {
 			return err
 		}
+	}
+	if valid > 0 && possible == 0 {
+		// Every value of the first and last steps is impossible (a negative
+		// height or period): the packing or the sign is wrong, and the whole
+		// computation would end with no results.
+		why := "check the variable or the role mapping"
+		if vi.Packed {
+			why = fmt.Sprintf("check the packing attributes (scale_factor %v, add_offset %v; CF 1.8 section 8.1)", vi.Scale, vi.Offset)
+		}
+		return errf(s.f.path, vi.Name, "every value of the first and last time steps is impossible for role %s (%d values, none %s); %s", vi.Role, valid, physicalRule(vi.Role), why)
+	}
+	if valid > 0 {
+		return nil
 	}
 	for t := uint64(1); t+1 < v.shape[0]; t++ {
 		if ok, err := anyValid(t); err != nil || ok {
@@ -595,6 +700,30 @@ func (s *scan) checkNotAllFill(vi *VarInfo) error {
 		}
 	}
 	return errf(s.f.path, vi.Name, "every value is a fill value or missing; the variable holds no data: check the file or map role %s to another variable", vi.Role)
+}
+
+// physical reports whether an unpacked value (SI units) is possible for a
+// role: heights and spectral densities are >= 0, periods > 0 (common
+// practice: definitions of the quantities). Directions are always possible
+// (they are wrapped).
+func physical(r Role, x float64) bool {
+	switch r {
+	case Hm0, Spectrum1D, Spectrum2D:
+		return x >= 0
+	case Te, Tp:
+		return x > 0
+	}
+	return true
+}
+
+func physicalRule(r Role) string {
+	switch r {
+	case Hm0, Spectrum1D, Spectrum2D:
+		return ">= 0"
+	case Te, Tp:
+		return "> 0"
+	}
+	return "valid"
 }
 
 // compatible checks that a later file has the same grid, calendar, roles and

@@ -149,7 +149,7 @@ hm0_m\te_s,5,7,9,11
 // Cases returns the corpus, in a fixed order.
 func Cases() []Case {
 	cell := baseNX * baseNY
-	return []Case{
+	return append([]Case{
 		{Name: "truncated", Breaks: "a classic file cut to 40% of its length (transfer stopped)", Outcome: Refused, Exit: 2, Stage: "catalog",
 			Want: []string{"cx_2001-02.nc", "truncated or corrupt"},
 			build: func(dir string) (*Setup, error) {
@@ -421,7 +421,7 @@ func Cases() []Case {
 			Want: []string{"alpha", "nonnum.csv", "n/a"},
 			build: runSpecCase("[[device]]\nname = \"alpha\"\npower_matrix = \"nonnum.csv\"\n",
 				map[string]string{"nonnum.csv": strings.Replace(goodMatrix, "2.5,110,190,200,170", "2.5,110,n/a,200,170", 1)})},
-	}
+	}, strictCases()...)
 }
 
 func seq(n int) []int {

@@ -21,6 +21,9 @@ type ncAttr struct {
 	s    string
 	num  []float64
 	text bool
+	// ncString writes the text as one NC_STRING (NetCDF-4 files only)
+	// instead of NC_CHAR.
+	ncString bool
 }
 
 // ncVarDesc is one variable: its type, dimensions, attributes and values in
@@ -41,6 +44,16 @@ func (v *ncVarDesc) setText(name, s string) {
 		}
 	}
 	v.attrs = append(v.attrs, ncAttr{name: name, s: s, text: true})
+}
+
+// setString sets a text attribute stored as NC_STRING.
+func (v *ncVarDesc) setString(name, s string) {
+	v.setText(name, s)
+	for i := range v.attrs {
+		if v.attrs[i].name == name {
+			v.attrs[i].ncString = true
+		}
+	}
 }
 
 func (v *ncVarDesc) setNum(name string, x ...float64) {
@@ -109,6 +122,84 @@ func (d *ncDesc) setDim(name string, n int) {
 	d.dims = append(d.dims, ncDim{name, n})
 }
 
+// reverseDim stores dimension name the other way round: its coordinate
+// variable and every variable over it are reversed along it, so the file
+// holds the same values at the same positions in the opposite order.
+func (d *ncDesc) reverseDim(name string) {
+	for _, v := range d.vars {
+		for k, dn := range v.dims {
+			if dn == name && v.data != nil {
+				v.data = d.permute(v, v.dims, k)
+			}
+		}
+	}
+}
+
+// transpose swaps dimensions a and b in every variable that has both
+// (e.g. (time, lat, lon) to (time, lon, lat)), moving the values with them.
+func (d *ncDesc) transpose(a, b string) {
+	for _, v := range d.vars {
+		ia, ib := -1, -1
+		for k, dn := range v.dims {
+			if dn == a {
+				ia = k
+			}
+			if dn == b {
+				ib = k
+			}
+		}
+		if ia < 0 || ib < 0 {
+			continue
+		}
+		nd := append([]string(nil), v.dims...)
+		nd[ia], nd[ib] = nd[ib], nd[ia]
+		if v.data != nil {
+			v.data = d.permute(v, nd, -1)
+		}
+		v.dims = nd
+	}
+}
+
+// permute returns v's values stored with dimensions newDims (a permutation
+// of v.dims), reversed along old dimension rev (-1: none).
+func (d *ncDesc) permute(v *ncVarDesc, newDims []string, rev int) []float64 {
+	shape := make([]int, len(v.dims))
+	for k, dn := range v.dims {
+		shape[k] = d.dim(dn)
+	}
+	pos := make([]int, len(newDims)) // new axis k is old axis pos[k]
+	for k, dn := range newDims {
+		for j, on := range v.dims {
+			if on == dn {
+				pos[k] = j
+			}
+		}
+	}
+	out := make([]float64, len(v.data))
+	idx := make([]int, len(shape))
+	for i := range v.data {
+		src := idx
+		o := 0
+		for k := range newDims {
+			j := pos[k]
+			x := src[j]
+			if j == rev {
+				x = shape[j] - 1 - x
+			}
+			o = o*shape[j] + x
+		}
+		out[o] = v.data[i]
+		for k := len(shape) - 1; k >= 0; k-- {
+			idx[k]++
+			if idx[k] < shape[k] {
+				break
+			}
+			idx[k] = 0
+		}
+	}
+	return out
+}
+
 // clone copies a description deeply, so that a case can change its copy.
 func (d *ncDesc) clone() *ncDesc {
 	c := &ncDesc{netcdf4: d.netcdf4, dims: append([]ncDim(nil), d.dims...), global: append([]ncAttr(nil), d.global...)}
@@ -171,6 +262,12 @@ func (d *ncDesc) write(path string) (err error) {
 			return fmt.Errorf("corpus: %s: variable %s: %w", path, v.name, err)
 		}
 		for _, a := range v.attrs {
+			if a.ncString {
+				if err := putStringAttr(ds, i, a.name, a.s); err != nil {
+					return fmt.Errorf("corpus: %s: %s:%s: %w", path, v.name, a.name, err)
+				}
+				continue
+			}
 			if err := writeAttr(x.Attr(a.name), v.typ, a); err != nil {
 				return fmt.Errorf("corpus: %s: %s:%s: %w", path, v.name, a.name, err)
 			}

@@ -1,0 +1,110 @@
+package corpus
+
+import (
+	"math"
+
+	"github.com/fhs/go-netcdf/netcdf"
+)
+
+// SameAsGood lists the processed cases whose tables must equal those of the
+// well-formed input (Good): the case stores the same values differently
+// (another axis order, NC_STRING text attributes, a NaN missing value).
+var SameAsGood = map[string]bool{
+	"orient_lat_descending_month":   true,
+	"orient_lon_descending_lonlat":  true,
+	"attr_ncstring_units":           true,
+	"attr_nan_fill_missing_value":   true,
+	"attr_valid_range_wide": true,
+}
+
+// packShort stores hm0 of both files as int16 with the given packing
+// (values rounded to the packing step of a scale of 0.001 m).
+func packShort(scale, offset float64) func(jan, feb *ncDesc) {
+	return func(jan, feb *ncDesc) {
+		for _, d := range []*ncDesc{jan, feb} {
+			v := d.v("hm0")
+			v.typ = netcdf.SHORT
+			for k, x := range v.data {
+				v.data[k] = math.Round(x / 0.001)
+			}
+			v.setNum("_FillValue", -32767)
+			v.setNum("scale_factor", scale)
+			v.setNum("add_offset", offset)
+		}
+	}
+}
+
+// strictCases are the cases of per-file orientation and strict attributes.
+func strictCases() []Case {
+	both := func(f func(d *ncDesc)) func(jan, feb *ncDesc) {
+		return func(jan, feb *ncDesc) { f(jan); f(feb) }
+	}
+	return []Case{
+		{Name: "orient_lat_descending_month", Breaks: "February stored with latitude descending in an ascending record (same values at the same positions)", Outcome: Flagged, Exit: 0, Stage: "read",
+			Want:  []string{"wrote"},
+			build: bulkCase(func(_, feb *ncDesc) { feb.reverseDim("lat") })},
+		{Name: "orient_lon_descending_lonlat", Breaks: "February stored with longitude descending and dimensions (time, lon, lat)", Outcome: Flagged, Exit: 0, Stage: "read",
+			Want: []string{"wrote"},
+			build: bulkCase(func(_, feb *ncDesc) {
+				feb.reverseDim("lon")
+				feb.transpose("lat", "lon")
+			})},
+		{Name: "orient_not_permutation", Breaks: "February latitude descending and one latitude moved by 0.25 degree: not a permutation of January's grid", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want: []string{"cx_2001-01.nc", "cx_2001-02.nc", "different grids", "one grid"},
+			build: bulkCase(func(_, feb *ncDesc) {
+				feb.reverseDim("lat")
+				feb.v("lat").data[0] += 0.25
+			})},
+		{Name: "attr_scale_text", Breaks: `hm0 scale_factor stored as the text "0.1" (was skipped: Hm0 x10, power x100)`, Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_2001-01.nc", `"hm0"`, "scale_factor", "stored as text", "store it as a number"},
+			build: bulkCase(both(func(d *ncDesc) { d.v("hm0").setText("scale_factor", "0.1") }))},
+		{Name: "attr_scale_two_values", Breaks: "hm0 scale_factor with two values (was skipped)", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_2001-01.nc", `"hm0"`, "scale_factor", "has 2 values", "fix or remove the attribute"},
+			build: bulkCase(both(func(d *ncDesc) { d.v("hm0").setNum("scale_factor", 0.1, 0.1) }))},
+		{Name: "attr_scale_inf", Breaks: "hm0 scale_factor = +Inf", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_2001-01.nc", `"hm0"`, "scale_factor", "+Inf", "cannot unpack"},
+			build: bulkCase(both(func(d *ncDesc) { d.v("hm0").setNum("scale_factor", math.Inf(1)) }))},
+		{Name: "attr_scale_nan", Breaks: "te scale_factor = NaN", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_2001-01.nc", `"te"`, "scale_factor", "NaN"},
+			build: bulkCase(both(func(d *ncDesc) { d.v("te").setNum("scale_factor", math.NaN()) }))},
+		{Name: "attr_scale_1e308", Breaks: "hm0 packed as short with scale_factor 1e308 (unpacks to infinity)", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_2001-01.nc", `"hm0"`, "scale_factor", "1e+308", "fix the packing attributes"},
+			build: bulkCase(packShort(1e308, 0))},
+		{Name: "attr_scale_negative", Breaks: "hm0 packed as short with scale_factor -0.001: every height negative", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_2001-01.nc", `"hm0"`, "impossible for role hm0", "scale_factor -0.001"},
+			build: bulkCase(packShort(-0.001, 0))},
+		{Name: "attr_offset_inf", Breaks: "te add_offset = -Inf", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_2001-01.nc", `"te"`, "add_offset", "-Inf"},
+			build: bulkCase(both(func(d *ncDesc) { d.v("te").setNum("add_offset", math.Inf(-1)) }))},
+		// A _FillValue of the wrong type or count cannot be written through
+		// NetCDF-C 4.9 (it refuses with "_FillValue type mismatch"); the check
+		// stands for other writers, and missing_value shows it here.
+		{Name: "attr_missing_value_text", Breaks: `te missing_value stored as the text "n/a"`, Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_2001-01.nc", `"te"`, "missing_value", "stored as text", `"n/a"`},
+			build: bulkCase(both(func(d *ncDesc) { d.v("te").setText("missing_value", "n/a") }))},
+		{Name: "attr_valid_range_reversed", Breaks: "hm0 valid_range = [30, 0] (empty: every value would be missing)", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_2001-01.nc", `"hm0"`, "valid range", "is empty"},
+			build: bulkCase(both(func(d *ncDesc) { d.v("hm0").setNum("valid_range", 30, 0) }))},
+		{Name: "attr_valid_range_wide", Breaks: "hm0 valid_range = [0, 30] (legal, wide: nothing is excluded)", Outcome: Flagged, Exit: 0, Stage: "catalog",
+			Want:  []string{"wrote"},
+			build: bulkCase(both(func(d *ncDesc) { d.v("hm0").setNum("valid_range", 0, 30) }))},
+		{Name: "attr_nan_fill_missing_value", Breaks: "_FillValue NaN on hm0 and missing_value NaN on te (legal: xarray writes them)", Outcome: Flagged, Exit: 0, Stage: "catalog",
+			Want: []string{"wrote"},
+			build: bulkCase(both(func(d *ncDesc) {
+				d.v("hm0").setNum("_FillValue", math.NaN())
+				d.v("te").setNum("missing_value", math.NaN())
+			}))},
+		{Name: "attr_ncstring_units", Breaks: "units and standard_name of every variable stored as NC_STRING (NetCDF-4), not NC_CHAR", Outcome: Flagged, Exit: 0, Stage: "catalog",
+			Want: []string{"wrote"},
+			build: bulkCase(both(func(d *ncDesc) {
+				d.netcdf4 = true
+				for _, v := range d.vars {
+					for _, a := range v.attrs {
+						if a.text && (a.name == "units" || a.name == "standard_name" || a.name == "calendar") {
+							v.setString(a.name, a.s)
+						}
+					}
+				}
+			}))},
+	}
+}
