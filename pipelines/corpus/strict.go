@@ -10,11 +10,11 @@ import (
 // well-formed input (Good): the case stores the same values differently
 // (another axis order, NC_STRING text attributes, a NaN missing value).
 var SameAsGood = map[string]bool{
-	"orient_lat_descending_month":   true,
-	"orient_lon_descending_lonlat":  true,
-	"attr_ncstring_units":           true,
-	"attr_nan_fill_missing_value":   true,
-	"attr_valid_range_wide": true,
+	"orient_lat_descending_month":  true,
+	"orient_lon_descending_lonlat": true,
+	"attr_ncstring_units":          true,
+	"attr_nan_fill_missing_value":  true,
+	"attr_valid_range_wide":        true,
 }
 
 // packShort stores hm0 of both files as int16 with the given packing
