@@ -33,12 +33,21 @@ type AnalysisConfig struct {
 	Threshold          ThresholdRule
 	ThresholdValue     float64 // m, for ThresholdHm0
 	TargetPeaksPerYear float64 // for ThresholdPeaksPerYear; default 3
-	MinYears           int     // fewer complete years are flagged; default 10
-	MinPeaks           int     // fewer exceedances are flagged; default 20
-	ShapeMin, ShapeMax float64 // plausible shape range; default -0.5, 0.5
-	MinYearCoverage    float64 // fraction of a full year's steps for its maximum to count; default 0.8
-	RecordYears        float64 // record length in years for the peak rate; default from the step counts
-	Bootstrap          Bootstrap
+	MinYears           int     // GEV: fewer analysed years publish no level; default 10
+	MinPeaks           int     // GPD: fewer exceedances publish no level; default 20
+	ShapeMin, ShapeMax float64 // shape range of a publishable fit; default -0.5, 0.5 (common practice for wave heights)
+	// MaxExtrapolation: no level is published for a return period longer than
+	// this many times the analysed record (GEV: analysed years; GPD: record
+	// years); default 4 (common practice).
+	MaxExtrapolation float64
+	MinYearCoverage  float64 // fraction of a full year's steps for its maximum to count; default 0.8
+	RecordYears      float64 // record length in years for the peak rate; default from the step counts
+	// DepthM is the water depth of the cell (m; 0, NaN or +Inf: deep or
+	// unknown, no limit). BreakingRatio (default 0.6) times DepthM is the
+	// depth-limited Hm0 (see DepthLimit).
+	DepthM        float64
+	BreakingRatio float64
+	Bootstrap     Bootstrap
 }
 
 func (c AnalysisConfig) withDefaults() AnalysisConfig {
@@ -57,29 +66,58 @@ func (c AnalysisConfig) withDefaults() AnalysisConfig {
 	if c.ShapeMin == 0 && c.ShapeMax == 0 {
 		c.ShapeMin, c.ShapeMax = -0.5, 0.5
 	}
+	if !(c.MaxExtrapolation > 0) {
+		c.MaxExtrapolation = 4
+	}
 	if !(c.MinYearCoverage > 0) {
 		c.MinYearCoverage = 0.8
 	}
+	if !(c.BreakingRatio > 0) {
+		c.BreakingRatio = 0.6
+	}
 	return c
+}
+
+// DepthLimit returns the depth-limited significant wave height ratio x depth
+// (NaN for deep or unknown depth: depth <= 0, NaN or +Inf). The default ratio
+// 0.6 is common practice for the largest Hm0 a sea state reaches in shallow
+// water: irregular waves on a gentle or flat bed saturate at about 0.5-0.6 of
+// the depth (from memory: Nelson 1994, Coastal Engineering 23, 0.55 on
+// horizontal beds; the Coastal Engineering Manual's surf-zone guidance), well
+// below the 0.78 of a single breaking solitary wave (McCowan 1894).
+func DepthLimit(depth, ratio float64) float64 {
+	if !(depth > 0) || math.IsInf(depth, 1) {
+		return math.NaN()
+	}
+	return ratio * depth
 }
 
 // Flag is a bitmask of fit-quality flags; a flagged fit still reports what it has.
 type Flag uint32
 
 const (
-	FlagFewYears            Flag = 1 << iota // fewer complete years than MinYears
-	FlagFewPeaks                             // fewer exceedances than MinPeaks
-	FlagShapeImplausible                     // shape outside [ShapeMin, ShapeMax]
-	FlagNoConvergence                        // the optimiser did not converge
-	FlagSingularInformation                  // no covariance: observed information not positive definite
+	FlagFewYears            Flag = 1 << iota // GEV: fewer analysed years than MinYears (no levels)
+	FlagFewPeaks                             // GPD: fewer exceedances than MinPeaks (no levels)
+	FlagShapeImplausible                     // shape outside [ShapeMin, ShapeMax] (no levels)
+	FlagNoConvergence                        // the optimiser did not converge (no levels, no parameters)
+	FlagSingularInformation                  // observed information not positive definite (no levels)
 	FlagNoFit                                // too few values to fit at all
-	FlagIncompleteYears                      // some years left out of the annual maxima for low coverage
+	FlagIncompleteYears                      // a year inside the record left out of the annual maxima for low coverage
 	FlagPeaksTruncated                       // peaks above the threshold were dropped by MaxPeaksPerYear
 	FlagPeriodOutsideModel                   // some return period has no level (GEV: T <= 1 y; GPD: below threshold)
+	FlagExtrapolation                        // some return period exceeds MaxExtrapolation x the record (no level for it)
+	FlagDepthLimited                         // a level, or its profile upper end, exceeds BreakingRatio x depth
+	FlagBelowRecordMax                       // GEV: a level for T >= the record length lies below the largest analysed annual maximum
+	FlagOpenInterval                         // a profile-likelihood upper end is not bounded by the data (null)
 )
 
 var flagNames = []string{"few_years", "few_peaks", "shape_implausible", "no_convergence",
-	"singular_information", "no_fit", "incomplete_years", "peaks_truncated", "period_outside_model"}
+	"singular_information", "no_fit", "incomplete_years", "peaks_truncated", "period_outside_model",
+	"extrapolation_limit", "depth_limited", "below_record_maximum", "open_interval"}
+
+// Withheld are the flags that stop a return level being published.
+const Withheld = FlagFewYears | FlagFewPeaks | FlagShapeImplausible | FlagNoConvergence |
+	FlagSingularInformation | FlagNoFit | FlagExtrapolation
 
 // Names returns the names of the set flags, in bit order.
 func (f Flag) Names() []string {
@@ -92,20 +130,25 @@ func (f Flag) Names() []string {
 	return out
 }
 
-// Level is one return level.
+// Level is one return level. Every field is NaN when the level is not
+// published (see Publication).
 type Level struct {
 	PeriodYears float64
-	Hm0         float64 // m; NaN if outside the model
-	Lower       float64 // 95% delta-method interval, m
+	Hm0         float64 // m
+	ProfLower   float64 // 95% profile-likelihood interval, m (the default interval)
+	ProfUpper   float64 // NaN when the data do not bound it (FlagOpenInterval)
+	Lower       float64 // 95% delta-method interval, m, truncated at 0 (GEV) or the threshold (GPD)
 	Upper       float64
 	BootLower   float64 // 95% parametric-bootstrap percentile interval, m (NaN if not asked)
 	BootUpper   float64
 	Te          float64 // associated energy period, s (see Association)
 	Tp          float64 // associated peak period, s
+	Flags       Flag    // why this level is withheld, or what is flagged about it
 }
 
 // MethodResult is one method's fit and levels. For the GPD, Loc holds the
-// threshold and StdErr[0] is NaN.
+// threshold and StdErr[0] is NaN. Parameters are NaN unless the fit converged.
+// Flags is the union of the levels' flags and the method's own.
 type MethodResult struct {
 	Method       string // "gev_annual_maxima" or "gpd_storm_peaks"
 	Loc          float64
@@ -133,8 +176,10 @@ type Association struct {
 type Result struct {
 	RecordYears  float64 // record length used for the peak rate
 	Years        int     // complete years whose maxima entered the GEV fit
+	MaxAnnual    float64 // largest analysed annual maximum, m (NaN if none)
 	Threshold    float64 // m
 	PeaksPerYear float64 // exceedances of the threshold per year
+	DepthLimit   float64 // BreakingRatio x depth, m (NaN: deep or unknown)
 	GEV          MethodResult
 	GPD          MethodResult
 	GEVFit       GEVFit
@@ -144,14 +189,71 @@ type Result struct {
 	Caution      string
 }
 
+// FitQuality is what the publication policy needs to know about one fit.
+type FitQuality struct {
+	Fitted    bool    // a fit was attempted and returned (enough values for the parameters)
+	Converged bool    // the optimiser converged at a finite optimum
+	InfoOK    bool    // the observed information matrix is positive definite
+	Shape     float64 // fitted shape, Coles (2001) sign
+	N         int     // GEV: analysed years; GPD: exceedances
+	Record    float64 // analysed record, years (GEV: analysed years; GPD: record length)
+	PerPeaks  bool    // N counts peaks (GPD), not years (GEV)
+}
+
+// Publication is the one publication policy of return levels, for the GEV and
+// the GPD alike. It returns the reasons (flags, one per reason) why the T-year
+// level of a fit may not be published; zero means it may. A level is published
+// only if the fit converged with a regular (positive definite) information
+// matrix, its shape lies in [ShapeMin, ShapeMax], T is at most
+// MaxExtrapolation times the analysed record, and there are at least MinYears
+// annual maxima (GEV) or MinPeaks exceedances (GPD). The shape range, the
+// extrapolation factor of 4 and the minimum counts are common practice for
+// wave heights (e.g. Coles 2001, sections 2.6 and 4.3.4, on how uncertainty
+// grows beyond the record; no single standard fixes the numbers).
+func Publication(q FitQuality, T float64, cfg AnalysisConfig) Flag {
+	cfg = cfg.withDefaults()
+	if !q.Fitted {
+		return FlagNoFit
+	}
+	var f Flag
+	if !q.Converged {
+		f |= FlagNoConvergence
+	}
+	if !q.InfoOK {
+		f |= FlagSingularInformation
+	}
+	if !(q.Shape >= cfg.ShapeMin && q.Shape <= cfg.ShapeMax) {
+		f |= FlagShapeImplausible
+	}
+	if !(T <= cfg.MaxExtrapolation*q.Record) {
+		f |= FlagExtrapolation
+	}
+	if q.PerPeaks {
+		if q.N < cfg.MinPeaks {
+			f |= FlagFewPeaks
+		}
+	} else if q.N < cfg.MinYears {
+		f |= FlagFewYears
+	}
+	return f
+}
+
+func nanLevel(T float64) Level {
+	n := math.NaN()
+	return Level{PeriodYears: T, Hm0: n, ProfLower: n, ProfUpper: n, Lower: n, Upper: n, BootLower: n, BootUpper: n, Te: n, Tp: n}
+}
+
 // Analyse fits both methods to a Collector's maxima and peaks and reports
 // return levels with intervals, associated periods and flags. It never fails:
-// problems are flags.
+// problems are flags. Levels follow Publication; parameters are reported
+// wherever the fit converged.
 func Analyse(c *Collector, cfg AnalysisConfig) Result {
 	cfg = cfg.withDefaults()
-	res := Result{Caution: Caution}
+	res := Result{Caution: Caution, MaxAnnual: math.NaN(), DepthLimit: DepthLimit(cfg.DepthM, cfg.BreakingRatio)}
 
-	// Annual maxima of sufficiently covered years.
+	// Annual maxima of sufficiently covered years. The first and last years of
+	// a record are usually partial: leaving them out is normal and not flagged;
+	// a year left out inside the record is.
 	years := c.Years()
 	var full int64
 	var valid int64
@@ -166,10 +268,13 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 	for _, y := range years {
 		cov[y.Year] = y.Valid
 	}
-	for _, m := range am {
+	for i, m := range am {
 		if float64(cov[m.Year]) >= cfg.MinYearCoverage*float64(full) {
 			amx = append(amx, m.Hm0)
-		} else {
+			if !(m.Hm0 <= res.MaxAnnual) {
+				res.MaxAnnual = m.Hm0
+			}
+		} else if i > 0 && i < len(am)-1 {
 			incomplete = true
 		}
 	}
@@ -203,47 +308,39 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 	if incomplete {
 		g.Flags |= FlagIncompleteYears
 	}
-	if len(amx) < cfg.MinYears {
-		g.Flags |= FlagFewYears
-	}
 	gf, err := FitGEV(amx)
 	res.GEVFit = gf
 	g.N = gf.N
-	if err != nil {
-		g.Flags |= FlagNoFit
-		g.Loc, g.Scale, g.Shape, g.LogLik = math.NaN(), math.NaN(), math.NaN(), math.NaN()
-		g.StdErr = [3]float64{math.NaN(), math.NaN(), math.NaN()}
-	} else {
-		g.Loc, g.Scale, g.Shape, g.StdErr, g.LogLik, g.Converged = gf.Loc, gf.Scale, gf.Shape, gf.StdErr, gf.LogLik, gf.Converged
-		g.Flags |= fitFlags(gf.Converged, gf.InfoOK, gf.Shape, cfg)
+	g.Loc, g.Scale, g.Shape, g.LogLik = math.NaN(), math.NaN(), math.NaN(), math.NaN()
+	g.StdErr = [3]float64{math.NaN(), math.NaN(), math.NaN()}
+	if err == nil && gf.Converged {
+		g.Loc, g.Scale, g.Shape, g.StdErr, g.LogLik, g.Converged = gf.Loc, gf.Scale, gf.Shape, gf.StdErr, gf.LogLik, true
 	}
-	// A fit that did not converge, or whose information matrix is singular
-	// (no standard errors), keeps its parameters and flags but gives no return
-	// levels: extrapolating such a fit gives numbers without meaning (with 3
-	// annual maxima, 100-year levels of 1e13 m were seen).
-	gevOK := err == nil && gf.Converged && gf.InfoOK
+	gq := FitQuality{Fitted: err == nil, Converged: gf.Converged, InfoOK: gf.InfoOK, Shape: gf.Shape, N: len(amx), Record: float64(len(amx))}
 	for _, T := range cfg.ReturnPeriods {
-		lv := Level{PeriodYears: T, Hm0: math.NaN(), Lower: math.NaN(), Upper: math.NaN(), BootLower: math.NaN(), BootUpper: math.NaN()}
-		if gevOK {
+		lv := nanLevel(T)
+		lv.Flags = Publication(gq, T, cfg)
+		if lv.Flags&Withheld == 0 {
 			lv.Hm0, lv.Lower, lv.Upper = gf.ReturnLevel(T)
-		}
-		if math.IsNaN(lv.Hm0) && gevOK {
-			g.Flags |= FlagPeriodOutsideModel
+			if math.IsNaN(lv.Hm0) {
+				lv.Flags |= FlagPeriodOutsideModel
+			} else {
+				lv.ProfLower, lv.ProfUpper = gf.ProfileGEV(T, amx)
+				lv.Lower = math.Max(lv.Lower, 0)
+				lv.ProfLower = math.Max(lv.ProfLower, 0)
+				if T >= float64(res.Years) && lv.Hm0 < res.MaxAnnual {
+					lv.Flags |= FlagBelowRecordMax
+				}
+			}
 		}
 		g.Levels = append(g.Levels, lv)
 	}
-	if gevOK && cfg.Bootstrap.N > 0 {
+	if cfg.Bootstrap.N > 0 && anyPublished(g.Levels) {
 		g.BootFailed = bootstrapGEV(gf, cfg, g.Levels)
 	}
 
 	// GPD on storm peaks above the threshold.
 	p := MethodResult{Method: "gpd_storm_peaks", Loc: res.Threshold, PeaksPerYear: res.PeaksPerYear}
-	if len(px) < cfg.MinPeaks {
-		p.Flags |= FlagFewPeaks
-	}
-	if res.Years < cfg.MinYears && res.RecordYears < float64(cfg.MinYears) {
-		p.Flags |= FlagFewYears
-	}
 	for _, y := range years {
 		if y.DroppedPeaks > 0 && y.DroppedMaxHm0 > res.Threshold {
 			p.Flags |= FlagPeaksTruncated
@@ -253,33 +350,49 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 	res.GPDFit = pf
 	p.N = pf.N
 	p.StdErr = [3]float64{math.NaN(), math.NaN(), math.NaN()}
-	if perr != nil {
-		p.Flags |= FlagNoFit
-		p.Scale, p.Shape, p.LogLik = math.NaN(), math.NaN(), math.NaN()
-	} else {
-		p.Scale, p.Shape, p.LogLik, p.Converged = pf.Scale, pf.Shape, pf.LogLik, pf.Converged
+	p.Scale, p.Shape, p.LogLik = math.NaN(), math.NaN(), math.NaN()
+	if perr == nil && pf.Converged {
+		p.Scale, p.Shape, p.LogLik, p.Converged = pf.Scale, pf.Shape, pf.LogLik, true
 		p.StdErr[1], p.StdErr[2] = pf.StdErr[0], pf.StdErr[1]
-		p.Flags |= fitFlags(pf.Converged, pf.InfoOK, pf.Shape, cfg)
 	}
-	gpdOK := perr == nil && pf.Converged && pf.InfoOK // as for the GEV
+	pq := FitQuality{Fitted: perr == nil, Converged: pf.Converged, InfoOK: pf.InfoOK, Shape: pf.Shape, N: len(px), Record: res.RecordYears, PerPeaks: true}
 	for _, T := range cfg.ReturnPeriods {
-		lv := Level{PeriodYears: T, Hm0: math.NaN(), Lower: math.NaN(), Upper: math.NaN(), BootLower: math.NaN(), BootUpper: math.NaN()}
-		if gpdOK {
+		lv := nanLevel(T)
+		lv.Flags = Publication(pq, T, cfg)
+		if lv.Flags&Withheld == 0 {
 			lv.Hm0, lv.Lower, lv.Upper = pf.ReturnLevel(T)
-		}
-		if math.IsNaN(lv.Hm0) && gpdOK {
-			p.Flags |= FlagPeriodOutsideModel
+			if math.IsNaN(lv.Hm0) {
+				lv.Flags |= FlagPeriodOutsideModel
+			} else {
+				lv.ProfLower, lv.ProfUpper = pf.ProfileGPD(T, px)
+				lv.Lower = math.Max(lv.Lower, res.Threshold)
+			}
 		}
 		p.Levels = append(p.Levels, lv)
 	}
-	if gpdOK && cfg.Bootstrap.N > 0 {
+	if cfg.Bootstrap.N > 0 && anyPublished(p.Levels) {
 		p.BootFailed = bootstrapGPD(pf, res.RecordYears, cfg, p.Levels)
 	}
 
 	for _, m := range []*MethodResult{&g, &p} {
 		for i := range m.Levels {
-			m.Levels[i].Te = res.Association.Te(m.Levels[i].Hm0)
-			m.Levels[i].Tp = res.Association.Tp(m.Levels[i].Hm0)
+			lv := &m.Levels[i]
+			if math.IsNaN(lv.Hm0) {
+				lv.Lower, lv.Upper, lv.BootLower, lv.BootUpper = math.NaN(), math.NaN(), math.NaN(), math.NaN()
+				lv.ProfLower, lv.ProfUpper = math.NaN(), math.NaN()
+				m.Flags |= lv.Flags
+				continue
+			}
+			if math.IsInf(lv.ProfUpper, 1) {
+				lv.ProfUpper = math.NaN()
+				lv.Flags |= FlagOpenInterval
+			}
+			if lim := res.DepthLimit; lv.Hm0 > lim || lv.ProfUpper > lim {
+				lv.Flags |= FlagDepthLimited
+			}
+			lv.Te = res.Association.Te(lv.Hm0)
+			lv.Tp = res.Association.Tp(lv.Hm0)
+			m.Flags |= lv.Flags
 		}
 	}
 	res.GEV, res.GPD = g, p
@@ -287,18 +400,13 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 	return res
 }
 
-func fitFlags(converged, infoOK bool, shape float64, cfg AnalysisConfig) Flag {
-	var f Flag
-	if !converged {
-		f |= FlagNoConvergence
+func anyPublished(levels []Level) bool {
+	for _, l := range levels {
+		if !math.IsNaN(l.Hm0) {
+			return true
+		}
 	}
-	if !infoOK {
-		f |= FlagSingularInformation
-	}
-	if !(shape >= cfg.ShapeMin && shape <= cfg.ShapeMax) {
-		f |= FlagShapeImplausible
-	}
-	return f
+	return false
 }
 
 // chooseThreshold applies the threshold rule. For ThresholdPeaksPerYear with
@@ -395,6 +503,9 @@ func bootstrapGEV(f GEVFit, cfg AnalysisConfig, levels []Level) int {
 			continue
 		}
 		for i, lv := range levels {
+			if math.IsNaN(lv.Hm0) {
+				continue // not published: no interval either
+			}
 			z, _ := bf.GEV.ReturnLevel(lv.PeriodYears)
 			if !math.IsNaN(z) {
 				samples[i] = append(samples[i], z)
@@ -425,6 +536,9 @@ func bootstrapGPD(f GPDFit, years float64, cfg AnalysisConfig, levels []Level) i
 			continue
 		}
 		for i, lv := range levels {
+			if math.IsNaN(lv.Hm0) {
+				continue
+			}
 			z, _ := bf.GPD.ReturnLevel(lv.PeriodYears, bf.PeaksPerYear)
 			if !math.IsNaN(z) {
 				samples[i] = append(samples[i], z)

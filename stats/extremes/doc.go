@@ -4,8 +4,11 @@
 // time step; it fits a generalised extreme value (GEV) distribution to the annual
 // maxima and a generalised Pareto distribution (GPD) to the storm peaks above a
 // threshold, both by maximum likelihood with gonum's optimiser; and it reports
-// return levels with 95% confidence intervals (delta method, optionally a seeded
-// parametric bootstrap), the associated Te/Tp, and quality flags.
+// return levels with 95% confidence intervals (profile likelihood by default,
+// the delta method beside it, optionally a seeded parametric bootstrap), the
+// associated Te/Tp, and quality flags. One publication policy (Publication)
+// decides, for the GEV and the GPD alike, which return levels are published;
+// the others are NaN with the reason in their flags.
 //
 // The package works on plain numbers. It must not know about NetCDF, files,
 // grids, tables or the pipeline: the caller feeds values (Collector.Add), merges
