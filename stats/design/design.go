@@ -1,0 +1,397 @@
+// Package design derives design sea states for one grid cell: a joint model
+// of Hm0 and Te fitted to all sea states of the record, and IFORM
+// environmental contours of it for given return periods.
+//
+// The joint model follows the conditional modelling approach of DNV-RP-C205
+// (section 3.6.3): Hm0 has a 3-parameter Weibull marginal; ln Te given Hm0 = h
+// is normal with mean mu(h) = a0 + a1 h^a2 and standard deviation
+// sigma(h) = b0 + b1 exp(-b2 h). Contours use the inverse first-order
+// reliability method (IFORM, Winterstein et al. 1993, Proc. OMAE; DNV-RP-C205
+// section 3.7.2) with the Rosenblatt transform.
+//
+// The sample is never kept: the fits use bounded, exactly mergeable binned
+// summaries of the record that the per-cell state already holds, the Hm0
+// histogram (for the marginal, by maximum likelihood on the binned counts)
+// and the joint Hm0 x Te occurrence table (for the conditional law of ln Te,
+// by maximum likelihood on its grouped counts). See FitJoint for
+// the error this binning brings.
+//
+// The package works on plain numbers; it must not know about NetCDF, files,
+// grids, tables or the pipeline.
+//
+// Contours are screening estimates (see Caution).
+package design
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/optimize"
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// Caution goes with every output carrying design sea states.
+const Caution = "Environmental contours from swellgrid are screening estimates of joint Hm0-Te extremes from a " +
+	"statistical model fitted to a modelled (hindcast) record. They are not design values: survival and mooring " +
+	"design follow the applicable design standards (e.g. DNV-RP-C205, IEC TS 62600-2), site measurements and review " +
+	"by qualified engineers."
+
+// Weibull3 is the 3-parameter Weibull distribution
+//
+//	F(h) = 1 - exp{-[(h - Loc)/Scale]^Shape},  h > Loc,
+//
+// the usual marginal of Hm0 in the conditional modelling approach
+// (DNV-RP-C205, eq. 3.6.3 in its 2010 edition, from memory).
+type Weibull3 struct{ Loc, Scale, Shape float64 }
+
+// CDF returns F(h).
+func (w Weibull3) CDF(h float64) float64 {
+	if h <= w.Loc {
+		return 0
+	}
+	return -math.Expm1(-math.Pow((h-w.Loc)/w.Scale, w.Shape))
+}
+
+// Quantile returns h with F(h) = p: Loc + Scale (-log(1-p))^(1/Shape).
+func (w Weibull3) Quantile(p float64) float64 {
+	return w.Loc + w.Scale*math.Pow(-math.Log1p(-p), 1/w.Shape)
+}
+
+// Conditional is the model of ln Te given Hm0 = h: normal with mean
+// Mu(h) = A0 + A1 h^A2 and standard deviation Sigma(h) = B0 + B1 exp(-B2 h)
+// (DNV-RP-C205, section 3.6.3, eq. 3.6.4-3.6.5 in its 2010 edition, from memory).
+type Conditional struct{ A0, A1, A2, B0, B1, B2 float64 }
+
+// Mu returns the mean of ln Te given Hm0 = h.
+func (c Conditional) Mu(h float64) float64 { return c.A0 + c.A1*math.Pow(h, c.A2) }
+
+// Sigma returns the standard deviation of ln Te given Hm0 = h.
+func (c Conditional) Sigma(h float64) float64 { return c.B0 + c.B1*math.Exp(-c.B2*h) }
+
+// Joint is the joint model of Hm0 and Te.
+type Joint struct {
+	Hm0  Weibull3
+	LnTe Conditional
+	// Rows are the Hm0 rows of the occurrence table the conditional model was fitted to.
+	Rows []Row
+}
+
+// Row is one Hm0 row of the occurrence table reduced to the moments of ln Te.
+type Row struct {
+	Hm0Mean float64 // mean Hm0 in the row, m (from the Hm0 histogram; the mid-row value if it cannot be had)
+	Weight  float64 // time in the row (any unit; relative weights)
+	Mean    float64 // mean of ln Te
+	Std     float64 // standard deviation of ln Te (grouped-data maximum likelihood)
+}
+
+// Hist is a histogram: bin i is [Edges[i], Edges[i+1]) with weight Weights[i];
+// len(Edges) = len(Weights) + 1. The last edge may be +Inf (open bin).
+type Hist struct {
+	Edges   []float64
+	Weights []float64
+}
+
+// Cell is one bin of the joint Hm0 x Te occurrence table (open bins have an
+// infinite upper edge).
+type Cell struct {
+	Hm0Lo, Hm0Hi, TeLo, TeHi float64
+	Weight                   float64
+}
+
+// ErrFewData is returned when a cell's record cannot support a joint model.
+var ErrFewData = errors.New("design: too few sea states for a joint model")
+
+// MinRows is the least number of occupied Hm0 rows (with at least
+// MinRowShare of the time each) for the two 3-parameter functions of the
+// conditional model.
+const (
+	MinRows     = 5
+	MinRowShare = 1e-4
+)
+
+// FitWeibull3 fits a 3-parameter Weibull to a histogram by maximum likelihood
+// on the binned counts: it maximises sum_k w_k log[F(e_{k+1}) - F(e_k)], the
+// multinomial likelihood of grouped data (e.g. Kendall and Stuart, The
+// Advanced Theory of Statistics, vol. 2, grouped-data ML; common practice).
+// Loc is kept below the upper edge of the lowest occupied bin. Binning a
+// continuous sample at 0.05 m changes the estimates by far less than their
+// sampling error for records of 10^4 or more sea states (TestWeibullAgainstScipy).
+// Gonum's Nelder-Mead, then BFGS with finite-difference gradients.
+func FitWeibull3(h Hist) (Weibull3, error) {
+	first, last := -1, -1
+	var tot, m1, m2 float64
+	for i, w := range h.Weights {
+		if w > 0 {
+			if first < 0 {
+				first = i
+			}
+			last = i
+			x := h.Edges[i]
+			if !math.IsInf(h.Edges[i+1], 1) {
+				x = 0.5 * (h.Edges[i] + h.Edges[i+1])
+			}
+			tot += w
+			m1 += w * x
+			m2 += w * x * x
+		}
+	}
+	if first < 0 || last-first < 3 {
+		return Weibull3{}, fmt.Errorf("%w: the Hm0 histogram has %d occupied bins", ErrFewData, max(0, last-first+1))
+	}
+	top := h.Edges[first+1]
+	nll := func(p []float64) float64 {
+		w := Weibull3{Loc: top - math.Exp(p[0]), Scale: math.Exp(p[1]), Shape: math.Exp(p[2])}
+		var l float64
+		for i := first; i <= last; i++ {
+			if h.Weights[i] == 0 {
+				continue
+			}
+			hi := 1.0
+			if !math.IsInf(h.Edges[i+1], 1) {
+				hi = w.CDF(h.Edges[i+1])
+			}
+			pr := hi - w.CDF(h.Edges[i])
+			if !(pr > 0) {
+				return math.Inf(1)
+			}
+			l -= h.Weights[i] * math.Log(pr)
+		}
+		return l / tot
+	}
+	// Start: Loc a little below the lowest sea state, Scale and Shape from the
+	// mean and variance of h - Loc (Shape 1.5 and the matching scale as a guess).
+	mean := m1 / tot
+	loc0 := h.Edges[first] - 0.5*(top-h.Edges[first])
+	sd := math.Sqrt(math.Max(m2/tot-mean*mean, 1e-6))
+	shape0 := math.Max(0.8, math.Min(4, 1.2*(mean-loc0)/sd))
+	scale0 := (mean - loc0) / math.Gamma(1+1/shape0)
+	x0 := []float64{math.Log(top - loc0), math.Log(scale0), math.Log(shape0)}
+	x, ok := minimiseNM(nll, x0)
+	if !ok {
+		return Weibull3{}, fmt.Errorf("design: the Weibull fit of Hm0 did not converge")
+	}
+	return Weibull3{Loc: top - math.Exp(x[0]), Scale: math.Exp(x[1]), Shape: math.Exp(x[2])}, nil
+}
+
+// minimiseNM minimises f by Nelder-Mead and polishes with BFGS on
+// finite-difference gradients (gonum optimize); ok if a finite optimum was found.
+func minimiseNM(f func([]float64) float64, x0 []float64) ([]float64, bool) {
+	p := optimize.Problem{Func: f}
+	r, err := optimize.Minimize(p, x0, &optimize.Settings{MajorIterations: 4000,
+		Converger: &optimize.FunctionConverge{Absolute: 1e-13, Relative: 1e-13, Iterations: 200}}, &optimize.NelderMead{})
+	if r == nil || math.IsInf(r.F, 0) || math.IsNaN(r.F) {
+		return nil, false
+	}
+	_ = err // Nelder-Mead reports its iteration limit as an error; the point found is still used
+	best := r.X
+	p.Grad = func(g, x []float64) {
+		for i := range x {
+			hstep := 1e-6 * math.Max(1, math.Abs(x[i]))
+			xp := append([]float64(nil), x...)
+			xp[i] += hstep
+			fp := f(xp)
+			xp[i] -= 2 * hstep
+			g[i] = (fp - f(xp)) / (2 * hstep)
+		}
+	}
+	if r2, err := optimize.Minimize(p, best, &optimize.Settings{MajorIterations: 200, GradientThreshold: 1e-9}, &optimize.BFGS{}); err == nil && r2 != nil && r2.F <= r.F {
+		best = r2.X
+	}
+	return best, true
+}
+
+// ConditionalRows reduces the occurrence table to the mean and standard
+// deviation of ln Te per Hm0 row. Te bins are wide on the log scale (1 s at
+// Te = 5 s is 0.18 in ln Te, nearly twice a typical spread), so mid-point
+// moments are biased even with Sheppard's correction; each row's normal law of
+// ln Te is instead fitted by maximum likelihood to the grouped counts,
+// maximising sum_j w_j log[Phi((ln t_j+1 - m)/s) - Phi((ln t_j - m)/s)]
+// (grouped-data ML, as for FitWeibull3), started from the Sheppard-corrected
+// mid-point moments (Kendall and Stuart vol. 1, section 3.18). Rows with the
+// open Hm0 edge, or with less than MinRowShare of the time, are left out; the
+// open Te column and the bin from Te = 0 enter as censored bins. The row's
+// mean Hm0 comes from the finer Hm0 histogram (mid-points of its bins inside
+// the row), or the row's middle if the histogram does not cover it.
+func ConditionalRows(cells []Cell, h Hist) []Row {
+	type bin struct{ lo, hi, w float64 }
+	type acc struct {
+		lo, hi, w, s1, s2, sh float64
+		bins                  []bin
+	}
+	var rows []*acc
+	idx := map[float64]*acc{}
+	var total float64
+	for _, c := range cells {
+		total += c.Weight
+	}
+	for _, c := range cells {
+		if c.Weight <= 0 || math.IsInf(c.Hm0Hi, 1) {
+			continue
+		}
+		a := idx[c.Hm0Lo]
+		if a == nil {
+			a = &acc{lo: c.Hm0Lo, hi: c.Hm0Hi}
+			idx[c.Hm0Lo] = a
+			rows = append(rows, a)
+		}
+		llo, lhi := math.Log(c.TeLo), math.Log(c.TeHi) // -Inf / +Inf for the end bins
+		a.bins = append(a.bins, bin{llo, lhi, c.Weight})
+		a.w += c.Weight
+		if math.IsInf(llo, 0) || math.IsInf(lhi, 0) {
+			continue // censored: not in the starting moments
+		}
+		lt := 0.5 * (llo + lhi)
+		a.s1 += c.Weight * lt
+		a.s2 += c.Weight * lt * lt
+		a.sh += c.Weight * (lhi - llo) * (lhi - llo) / 12
+	}
+	var out []Row
+	for _, a := range rows {
+		if a.w < MinRowShare*total || a.s1 == 0 {
+			continue
+		}
+		wf := a.w
+		for _, b := range a.bins {
+			if math.IsInf(b.lo, 0) || math.IsInf(b.hi, 0) {
+				wf -= b.w
+			}
+		}
+		m := a.s1 / wf
+		v := math.Max(a.s2/wf-m*m-a.sh/wf, 1e-6)
+		nll := func(p []float64) float64 {
+			s := math.Exp(p[1])
+			var l float64
+			for _, b := range a.bins {
+				pr := distuv.UnitNormal.CDF((b.hi-p[0])/s) - distuv.UnitNormal.CDF((b.lo-p[0])/s)
+				if !(pr > 0) {
+					return math.Inf(1)
+				}
+				l -= b.w * math.Log(pr)
+			}
+			return l / a.w
+		}
+		if x, ok := minimiseNM(nll, []float64{m, 0.5 * math.Log(v)}); ok {
+			m, v = x[0], math.Exp(2*x[1])
+		}
+		out = append(out, Row{Hm0Mean: rowMeanHm0(h, a.lo, a.hi), Weight: a.w, Mean: m, Std: math.Sqrt(v)})
+	}
+	return out
+}
+
+func rowMeanHm0(h Hist, lo, hi float64) float64 {
+	var w, s float64
+	for i, c := range h.Weights {
+		a, b := h.Edges[i], h.Edges[i+1]
+		if c > 0 && a >= lo-1e-9 && b <= hi+1e-9 {
+			w += c
+			s += c * 0.5 * (a + b)
+		}
+	}
+	if w > 0 {
+		return s / w
+	}
+	return 0.5 * (lo + hi)
+}
+
+// FitConditional fits Mu(h) = A0 + A1 h^A2 to the rows' means and
+// Sigma(h) = B0 + B1 exp(-B2 h) to their standard deviations by weighted
+// least squares (weights: the rows' time), as DNV-RP-C205 section 3.6.3
+// describes; A2, B0 and B2 are kept non-negative so that the functions stay
+// monotone and Sigma positive when extrapolated. Checked against
+// scipy.optimize.curve_fit (TestConditionalAgainstScipy).
+func FitConditional(rows []Row) (Conditional, error) {
+	if len(rows) < MinRows {
+		return Conditional{}, fmt.Errorf("%w: %d occupied Hm0 rows, need %d", ErrFewData, len(rows), MinRows)
+	}
+	var wt float64
+	for _, r := range rows {
+		wt += r.Weight
+	}
+	ssq := func(f func(r Row) float64) float64 {
+		var s float64
+		for _, r := range rows {
+			d := f(r)
+			s += r.Weight / wt * d * d
+		}
+		return s
+	}
+	mu, ok := minimiseNM(func(p []float64) float64 {
+		return ssq(func(r Row) float64 { return r.Mean - (p[0] + p[1]*math.Pow(r.Hm0Mean, math.Exp(p[2]))) })
+	}, []float64{rows[0].Mean, 0.5, math.Log(0.5)})
+	if !ok {
+		return Conditional{}, fmt.Errorf("design: the fit of the mean of ln Te did not converge")
+	}
+	sg, ok := minimiseNM(func(p []float64) float64 {
+		return ssq(func(r Row) float64 { return r.Std - (math.Exp(p[0]) + p[1]*math.Exp(-math.Exp(p[2])*r.Hm0Mean)) })
+	}, []float64{math.Log(0.05), 0.1, math.Log(0.3)})
+	if !ok {
+		return Conditional{}, fmt.Errorf("design: the fit of the spread of ln Te did not converge")
+	}
+	return Conditional{A0: mu[0], A1: mu[1], A2: math.Exp(mu[2]), B0: math.Exp(sg[0]), B1: sg[1], B2: math.Exp(sg[2])}, nil
+}
+
+// FitJoint fits the joint model to a cell's Hm0 histogram and occurrence
+// table. Binning error (TestWeibullAgainstScipy, TestConditionalAgainstScipy,
+// on 200 000 sea states of a known model): with Hm0 bins of 0.05 m and an
+// occurrence table of 0.5 m x 1 s, the Weibull parameters move by under 1e-4,
+// Mu and Sigma by under 0.005, and the 100-year contour's largest Hm0 and its
+// Te by 0.01 % and 0.07 % against scipy fits to the unbinned sample (tested
+// to 1 %).
+func FitJoint(h Hist, cells []Cell) (Joint, error) {
+	w, err := FitWeibull3(h)
+	if err != nil {
+		return Joint{}, err
+	}
+	rows := ConditionalRows(cells, h)
+	c, err := FitConditional(rows)
+	if err != nil {
+		return Joint{}, err
+	}
+	return Joint{Hm0: w, LnTe: c, Rows: rows}, nil
+}
+
+// Point is one point of an environmental contour.
+type Point struct{ Hm0, Te float64 }
+
+// Quantiler is a marginal distribution of Hm0 given by its quantile function.
+type Quantiler interface{ Quantile(p float64) float64 }
+
+// Beta returns the radius of the IFORM contour in standard normal space for
+// a return period of T years and sea states of seaStateH hours:
+// beta = Phi^-1(1 - seaStateH / (T 8766)) (Winterstein et al. 1993; DNV-RP-C205,
+// section 3.7.2), 8766 h being the mean Gregorian year.
+func Beta(T, seaStateH float64) float64 {
+	return distuv.UnitNormal.Quantile(1 - seaStateH/(T*8766))
+}
+
+// IFORM returns n points of the IFORM contour of radius beta for a marginal
+// of Hm0 and a conditional normal model of ln T given Hm0 (mean mu(h),
+// standard deviation sigma(h)): with u1 = beta cos theta, u2 = beta sin theta,
+// theta = 2 pi k / n (k = 0..n-1, from the largest Hm0 anticlockwise), the
+// inverse Rosenblatt transform gives Hm0 = F^-1(Phi(u1)) and
+// T = exp(mu(Hm0) + sigma(Hm0) u2) (Winterstein et al. 1993; DNV-RP-C205,
+// section 3.7.2).
+func IFORM(marg Quantiler, mu, sigma func(h float64) float64, beta float64, n int) []Point {
+	out := make([]Point, n)
+	for k := range out {
+		th := 2 * math.Pi * float64(k) / float64(n)
+		u1, u2 := beta*math.Cos(th), beta*math.Sin(th)
+		h := marg.Quantile(distuv.UnitNormal.CDF(u1))
+		out[k] = Point{Hm0: h, Te: math.Exp(mu(h) + sigma(h)*u2)}
+	}
+	return out
+}
+
+// Contour returns the n-point IFORM contour of the joint model for T years and
+// sea states of seaStateH hours.
+func (j Joint) Contour(T, seaStateH float64, n int) []Point {
+	return IFORM(j.Hm0, j.LnTe.Mu, j.LnTe.Sigma, Beta(T, seaStateH), n)
+}
+
+// Largest returns the contour's largest Hm0 (at u1 = beta) and the Te there
+// (the conditional median, u2 = 0).
+func (j Joint) Largest(T, seaStateH float64) Point {
+	h := j.Hm0.Quantile(distuv.UnitNormal.CDF(Beta(T, seaStateH)))
+	return Point{Hm0: h, Te: math.Exp(j.LnTe.Mu(h))}
+}
