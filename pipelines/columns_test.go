@@ -2,9 +2,11 @@ package pipelines
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"swellgrid/export/parquetread"
@@ -104,6 +106,79 @@ func TestSpectralBadBinsAndMeanDirectionAgainstNumpy(t *testing.T) {
 		// 20 deg away on this sea; numpy found it on a 0.01 deg grid
 		if d := angleDiff(dmax[i], r.DirPeakPowerDeg); math.Abs(d) > 0.02 {
 			t.Errorf("station %d: dir_max_power_deg %.3f, numpy %.3f", i, dmax[i], r.DirPeakPowerDeg)
+		}
+	}
+}
+
+// With two months of the record missing (the files of 2001-06 and 2001-07
+// left out of testdata/bulk_monthly), monthly.parquet still has a year_month
+// row for each of the 24 year-months from 2001-01 to 2002-12 at every cell:
+// the missing ones with coverage 0, no valid hours, null means and excluded,
+// so that the June and July climatologies are the 2002 months alone.
+func TestMonthlyRowForEveryYearMonth(t *testing.T) {
+	files, _ := filepath.Glob("../testdata/bulk_monthly/*.nc")
+	var keep []string
+	for _, f := range files {
+		if !strings.Contains(f, "2001-06") && !strings.Contains(f, "2001-07") {
+			keep = append(keep, f)
+		}
+	}
+	if len(keep) != 22 {
+		t.Fatalf("fixture: %d files kept", len(keep))
+	}
+	out := t.TempDir()
+	s := DefaultSpec()
+	s.Input.Paths, s.Output.Dir = keep, out
+	mustRun(t, s)
+	path := filepath.Join(out, "monthly.parquet")
+	m, err := parquetread.Columns(path, "cell_id", "period", "year", "month", "power_mean_kw_m", "hm0_mean_m", "valid_hours", "coverage", "excluded")
+	if err != nil {
+		t.Fatal(err)
+	}
+	ids := readInts(t, path, "cell_id")
+	years, months := readInts(t, path, "year"), readInts(t, path, "month")
+	pw := readColumn(t, path, "power_mean_kw_m")
+	hrs := readColumn(t, path, "valid_hours")
+	cov := readColumn(t, path, "coverage")
+	ym := map[int64][]string{}
+	clim := map[[2]int64]float64{}
+	byYM := map[[3]int64]float64{}
+	for i := range ids {
+		period := m["period"][i].(string)
+		switch period {
+		case "year_month":
+			key := fmt.Sprintf("%04d-%02d", years[i], months[i])
+			ym[ids[i]] = append(ym[ids[i]], key)
+			byYM[[3]int64{ids[i], years[i], months[i]}] = pw[i]
+			gap := years[i] == 2001 && (months[i] == 6 || months[i] == 7)
+			excl := m["excluded"][i].(bool)
+			if gap && (cov[i] != 0 || hrs[i] != 0 || !math.IsNaN(pw[i]) || !excl) {
+				t.Errorf("cell %d %s (no file): coverage %g, valid_hours %g, power %g, excluded %v; want 0, 0, null, true", ids[i], key, cov[i], hrs[i], pw[i], excl)
+			}
+			if !gap && !math.IsNaN(pw[i]) && !(cov[i] > 0.99) {
+				t.Errorf("cell %d %s: coverage %g with data for the whole month", ids[i], key, cov[i])
+			}
+		case "calendar_month":
+			clim[[2]int64{ids[i], months[i]}] = pw[i]
+		}
+	}
+	var want []string
+	for y := 2001; y <= 2002; y++ {
+		for mo := 1; mo <= 12; mo++ {
+			want = append(want, fmt.Sprintf("%04d-%02d", y, mo))
+		}
+	}
+	if len(ym) != 24 {
+		t.Fatalf("%d cells with year_month rows, the grid has 24 sea cells (6 land)", len(ym))
+	}
+	for id, got := range ym {
+		if strings.Join(got, " ") != strings.Join(want, " ") {
+			t.Errorf("cell %d: year_month rows %v, want every month 2001-01 .. 2002-12", id, got)
+		}
+		for _, mo := range []int64{6, 7} {
+			if c, y := clim[[2]int64{id, mo}], byYM[[3]int64{id, 2002, mo}]; !math.IsNaN(y) && math.Abs(c-y) > 1e-9*y {
+				t.Errorf("cell %d: month %d climatology %g, the only month with data (2002) has %g", id, mo, c, y)
+			}
 		}
 	}
 }

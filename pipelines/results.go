@@ -39,7 +39,7 @@ func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResu
 	} else {
 		r.dirMax = r.sum.DirMeanDeg
 	}
-	r.monthly, r.season, r.scatter, r.exceed, r.windows = c.clim.Monthly(), c.clim.Seasonal(), c.clim.Scatter(), c.clim.Exceedance(), c.clim.Windows()
+	r.monthly, r.season, r.scatter, r.exceed, r.windows = c.clim.MonthlyOver(e.recordMonths()), c.clim.Seasonal(), c.clim.Scatter(), c.clim.Exceedance(), c.clim.Windows()
 	if r.sum.Steps > 0 {
 		cfg := acfg
 		if e.spec.Extremes.ThresholdRule == "quantile" {
@@ -51,6 +51,18 @@ func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResu
 		r.maxima = c.col.AnnualMaxima()
 	}
 	return r
+}
+
+// recordMonths returns the first and last year-month of the record (its
+// first and last time step): monthly.parquet has a row for every year-month
+// between them, those without data included (coverage 0, excluded).
+func (e *engine) recordMonths() (y0, m0, y1, m1 int) {
+	ts := e.cat.Times()
+	if len(ts) == 0 {
+		return 0, 1, -1, 1
+	}
+	a, b := e.cat.Date(ts[0]), e.cat.Date(ts[len(ts)-1])
+	return a.Year, a.Month, b.Year, b.Month
 }
 
 func percentileOf(s climate.Summary, p float64) float64 {
@@ -312,7 +324,7 @@ func (e *engine) longTables(res []*cellResult) map[string]*export.Table {
 			export.Float64Column("power_mean_kw_m", "kW/m", "mean wave power", pw),
 			export.Float64Column("hm0_mean_m", "m", "mean Hm0", hm),
 			export.Float64Column("valid_hours", "h", "time with a valid wave power", hrs),
-			export.Float64Column("coverage", "1", "year-month: valid share of the month; climatology: share of year-months included", cov),
+			export.Float64Column("coverage", "1", "year-month: valid share of the month (0: no data; every year-month of the record has a row); climatology: share of year-months included", cov),
 			export.BoolColumn("excluded", "", "year-month below the coverage threshold, left out of climatology and indices", excl, nil),
 		}, RowGroupRows: 1 << 17}
 	}

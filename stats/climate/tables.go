@@ -19,16 +19,38 @@ type MonthRow struct {
 }
 
 // Monthly returns twelve climatology rows (Year 0) followed by one row per
-// year-month with data, in time order.
-func (s *CellState) Monthly() []MonthRow {
+// year-month with data, in time order. MonthlyOver also gives the months
+// of a record that have no data.
+func (s *CellState) Monthly() []MonthRow { return s.monthly(0, -1, false) }
+
+// MonthlyOver returns twelve climatology rows (Year 0) followed by one row
+// per year-month from (y0, m0) to (y1, m1) inclusive (months 1..12: the
+// record's span), in time order. A year-month with no data has Coverage 0,
+// ValidHours 0, NaN means and is Excluded (it takes no part in the
+// climatology, seasons and indices, as before). Year-months with data outside
+// the span are listed too, in their place.
+func (s *CellState) MonthlyOver(y0, m0, y1, m1 int) []MonthRow {
+	return s.monthly(y0*12+m0-1, y1*12+m1-1, true)
+}
+
+// monthly lists the climatology and the year-months k = 12 year + month-1
+// from lo to hi, widened to every year-month with data; with all false only
+// those with data.
+func (s *CellState) monthly(lo, hi int, all bool) []MonthRow {
 	cl := s.climatology()
 	var withData [12]int
 	for i, r := range s.ym {
 		if r.wJ > 0 || r.wH > 0 {
 			withData[i%12]++
+			k := s.y0*12 + i
+			if hi < lo {
+				lo, hi = k, k
+			} else {
+				lo, hi = min(lo, k), max(hi, k)
+			}
 		}
 	}
-	rows := make([]MonthRow, 0, 12+len(s.ym))
+	rows := make([]MonthRow, 0, 12+max(0, hi-lo+1))
 	for m := 0; m < 12; m++ {
 		cov := math.NaN()
 		if withData[m] > 0 {
@@ -37,16 +59,30 @@ func (s *CellState) Monthly() []MonthRow {
 		rows = append(rows, MonthRow{Month: m + 1, PowerMeanKWm: cl.monthJ[m], Hm0MeanM: cl.monthH[m],
 			ValidHours: float64(cl.monthW[m]) / 60, Coverage: cov, YearsUsed: cl.monthYears[m]})
 	}
-	for i, r := range s.ym {
-		if r.wJ == 0 && r.wH == 0 {
+	for k := lo; k <= hi; k++ {
+		y, cm := floorDiv(k, 12), k-12*floorDiv(k, 12)
+		i := k - s.y0*12
+		if i < 0 || i >= len(s.ym) || (s.ym[i].wJ == 0 && s.ym[i].wH == 0) {
+			if all {
+				rows = append(rows, MonthRow{Year: y, Month: cm + 1, PowerMeanKWm: math.NaN(), Hm0MeanM: math.NaN(), Excluded: true})
+			}
 			continue
 		}
+		r := s.ym[i]
 		cov := s.ymCoverage(i)
-		rows = append(rows, MonthRow{Year: s.y0 + i/12, Month: i%12 + 1,
+		rows = append(rows, MonthRow{Year: y, Month: cm + 1,
 			PowerMeanKWm: weightedMean(r.sJ, uint64(r.wJ), qJ*1000), Hm0MeanM: weightedMean(r.sH, uint64(r.wH), qH),
 			ValidHours: float64(r.wJ) / 60, Coverage: cov, Excluded: cov < s.cfg.CoverageMin})
 	}
 	return rows
+}
+
+func floorDiv(a, b int) int {
+	q := a / b
+	if a%b != 0 && (a < 0) != (b < 0) {
+		q--
+	}
+	return q
 }
 
 // SeasonRow is one meteorological season (DJF, MAM, JJA, SON; named for the
