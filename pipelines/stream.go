@@ -109,8 +109,7 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 			continue
 		}
 		k := id - b.C0
-		depth := e.cat.Depth[id]
-		deep := math.IsInf(depth, 1) || math.IsNaN(depth)
+		bd := seastate.NewBulkDepth(e.cat.Depth[id], e.consts.G) // NaN/+Inf: deep water
 		for t := 0; t < b.NT; t++ {
 			st := times[t]
 			step.Year, step.Month, step.Hours = st.year, st.month, st.hours
@@ -146,11 +145,7 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 					step.DirDeg = dirs[i]
 				}
 				if hm0 >= 0 && te > 0 {
-					if deep {
-						step.J = seastate.BulkPowerDeep(hm0, te, e.consts)
-					} else {
-						step.J = seastate.BulkPowerFinite(hm0, te, depth, e.consts)
-					}
+					step.J = bd.Power(hm0, te, e.consts) // cg from the table, rel. error < 1e-9
 				} else {
 					step.J = math.NaN()
 				}

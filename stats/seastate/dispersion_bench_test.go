@@ -47,3 +47,17 @@ func itoa(n int) string {
 	}
 	return s
 }
+
+// BenchmarkBulkDepthPower measures the finite-depth bulk power of one step
+// with the group velocity from the table (the stream stage's bulk path).
+func BenchmarkBulkDepthPower(b *testing.B) {
+	d := NewBulkDepth(40, 9.81)
+	c := Consts{Rho: 1025, G: 9.81}
+	var sum float64
+	for i := 0; i < b.N; i++ {
+		sum += d.Power(2, 4+float64(i&15), c)
+	}
+	if math.IsNaN(sum) || sum <= 0 {
+		b.Fatal("bad powers")
+	}
+}
