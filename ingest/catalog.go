@@ -58,6 +58,7 @@ type Options struct {
 	DeepWater      bool            // assume deep water (no depth needed)
 	BathymetryFile string          // a separate file holding the depth role
 	DirectionTo    *bool           // spectral direction convention when the coordinate does not say
+	AllowLongGaps  bool            // accept time gaps longer than the rest of the record
 }
 
 // VarInfo describes how one role is stored and unpacked in one file.
@@ -130,8 +131,9 @@ type FileInfo struct {
 	// Offset is the index of the file's first step in the whole record.
 	Offset int `json:"-"`
 
-	vars  map[Role]*VarInfo
-	times []Stamp
+	vars      map[Role]*VarInfo
+	times     []Stamp
+	timeUnits string // the time variable's units attribute
 	// xFile, yFile are this file's own orientation: the file index of each
 	// canonical column and row (grid.Grid.XFile/YFile of the file's axes).
 	xFile, yFile []int
@@ -249,6 +251,9 @@ func Open(inputs []string, opt Options) (*Catalog, error) {
 	}
 	sort.SliceStable(c.Files, func(i, j int) bool { return c.Files[i].First < c.Files[j].First })
 	if err := c.buildTimeAxis(); err != nil {
+		return nil, err
+	}
+	if err := c.checkLongGaps(opt.AllowLongGaps); err != nil {
 		return nil, err
 	}
 	if err := c.resolveDepth(first, opt); err != nil {

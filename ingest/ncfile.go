@@ -173,11 +173,16 @@ func (v *ncVar) size() uint64 {
 	return n
 }
 
+// maxReadAll bounds the values read at once by readAll (coordinates, time,
+// static fields): 2^26 values, 512 MiB as float64, beyond any grid axis or
+// static field of a hindcast swellgrid can process in memory.
+const maxReadAll = 1 << 26
+
 // readAll reads a (small) variable as float64 without unpacking.
 func (v *ncVar) readAll(path string) ([]float64, error) {
 	n := v.size()
-	if n > 1<<28 {
-		return nil, fmt.Errorf("ingest: %s: variable %q has %d values, too many to read at once", path, v.name, n)
+	if n > maxReadAll {
+		return nil, fmt.Errorf("ingest: %s: variable %q has %d values (shape %v), more than the %d swellgrid reads for a coordinate, time axis or static field; check the file's dimensions", path, v.name, n, v.shape, maxReadAll)
 	}
 	out := make([]float64, n)
 	if n == 0 {

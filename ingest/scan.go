@@ -139,17 +139,24 @@ func typeBytes(t netcdf.Type) uint64 {
 	return 8
 }
 
-// checkDeclaredSize refuses a classic-format file that is shorter than the
-// data its header declares. Classic files store every variable uncompressed
-// and in full (record variables for numrecs records), so the file must be at
-// least as long as the sum of the variables' sizes; a shorter file was cut off
-// (an interrupted transfer), or its header claims dimensions it does not hold.
-// The NetCDF library reads such files without complaint (missing bytes come
-// back as zeros or fill values), and a huge claimed dimension would make a
-// reader allocate it, so the check comes before any value is read. NetCDF-4
-// files are compressed and checked by HDF5 instead.
+// checkDeclaredSize refuses a file whose header declares more data than the
+// file can hold, before any value is read (a huge claimed dimension would
+// make a reader allocate it, and NetCDF-C returns fill values for data that
+// are not there).
+//
+// Classic files store every variable uncompressed and in full (record
+// variables for numrecs records), so the file must be at least as long as
+// the sum of the variables' sizes; a shorter file was cut off (an
+// interrupted transfer), or its header claims dimensions it does not hold.
+//
+// NetCDF-4 (HDF5) files may be compressed, and chunks never written take no
+// space, so their bound is looser: the declared data may exceed the file by
+// at most maxNC4Ratio plus 1 MiB of headroom. Deflate, the compression of
+// NetCDF-4, cannot compress by more than about 1032:1 (zlib technical notes,
+// "maximum compression factor"; figure quoted from memory). A file beyond
+// that holds unwritten data (its writer stopped) or a damaged header.
 func (s *scan) checkDeclaredSize() error {
-	if s.info.Format == "netcdf4" || s.info.Format == "" {
+	if s.info.Format == "" {
 		return nil
 	}
 	var total uint64
@@ -174,12 +181,26 @@ func (s *scan) checkDeclaredSize() error {
 			total += n
 		}
 	}
-	if big != nil && total > uint64(s.info.Size) {
-		return errf(s.f.path, big.name, "the header declares %d bytes of data (this variable alone %d values of shape %v) but the file has only %d bytes; the file is truncated or corrupt: copy or download it again",
-			total, big.size(), big.shape, s.info.Size)
+	if big == nil {
+		return nil
+	}
+	size := uint64(max(s.info.Size, 0))
+	if s.info.Format != "netcdf4" {
+		if total > size {
+			return errf(s.f.path, big.name, "the header declares %d bytes of data (this variable alone %d values of shape %v) but the file has only %d bytes; the file is truncated or corrupt: copy or download it again",
+				total, big.size(), big.shape, s.info.Size)
+		}
+		return nil
+	}
+	if limit := size*maxNC4Ratio + 1<<20; total > limit {
+		return errf(s.f.path, big.name, "the header declares %d bytes of data (this variable alone %d values of shape %v) but the file has only %d bytes, more than compression can explain (%d:1 at most); the file was not completely written, or its header claims dimensions it does not hold: write or download it again",
+			total, big.size(), big.shape, s.info.Size, maxNC4Ratio)
 	}
 	return nil
 }
+
+// maxNC4Ratio bounds declared data over file size for NetCDF-4 files.
+const maxNC4Ratio = 1100
 
 func (s *scan) findTime() (*ncVar, error) {
 	var cands []*ncVar
@@ -222,6 +243,7 @@ func (s *scan) readTime(tv *ncVar) error {
 	if err != nil {
 		return errf(s.f.path, tv.name, "%v", err)
 	}
+	s.info.timeUnits = tv.str("units")
 	vals, err := tv.readAll(s.f.path)
 	if err != nil {
 		return err
@@ -303,16 +325,21 @@ func (s *scan) findGrid() error {
 	if err != nil {
 		return err
 	}
-	for i := range lonv {
-		if lonv[i] != lonv[i] {
-			if len(lon.dims) == 1 {
-				return errf(s.f.path, lon.name, "value %d is NaN; coordinates must be finite", i)
+	// Every coordinate must be finite, on every kind of grid: a node or
+	// station without a position cannot be placed in the tables or on the map
+	// (and would fail only at the export, after the computation).
+	for _, c := range []struct {
+		v    *ncVar
+		vals []float64
+	}{{lon, lonv}, {lat, latv}} {
+		for i, x := range c.vals {
+			if math.IsNaN(x) || math.IsInf(x, 0) {
+				where := ""
+				if len(c.v.shape) == 2 {
+					where = fmt.Sprintf(" (%s %d, %s %d)", c.v.dims[0], i/int(c.v.shape[1]), c.v.dims[1], i%int(c.v.shape[1]))
+				}
+				return errf(s.f.path, c.v.name, "value %d%s is %v; coordinates must be finite: give every grid node or station a position, or leave it out of the file", i, where, x)
 			}
-		}
-	}
-	for i := range latv {
-		if latv[i] != latv[i] && len(lat.dims) == 1 {
-			return errf(s.f.path, lat.name, "value %d is NaN; coordinates must be finite", i)
 		}
 	}
 	s.gridDim = map[string]axis{}

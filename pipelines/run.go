@@ -69,7 +69,7 @@ func IsResumeRefused(err error) bool {
 
 // ingestOptions maps the spec to the reader's options.
 func (s *Spec) ingestOptions() ingest.Options {
-	opt := ingest.Options{Vars: map[ingest.Role]string{}, Units: map[ingest.Role]string{}}
+	opt := ingest.Options{Vars: map[ingest.Role]string{}, Units: map[ingest.Role]string{}, AllowLongGaps: s.Input.AllowLongGaps}
 	for k, v := range s.Roles {
 		opt.Vars[ingest.Role(k)] = v
 	}

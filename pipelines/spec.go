@@ -41,6 +41,9 @@ type InputSpec struct {
 	// DirectionConvention of spectral direction coordinates without a
 	// standard_name: "from" or "to" ("" = refuse such files).
 	DirectionConvention string `toml:"direction_convention" json:"direction_convention"`
+	// AllowLongGaps accepts a time gap longer than the rest of the record
+	// (refused by default: usually a mistyped reference date).
+	AllowLongGaps bool `toml:"allow_long_gaps" json:"allow_long_gaps,omitempty"`
 }
 
 // DepthSpec says where the water depth comes from.

@@ -34,12 +34,94 @@ func packShort(scale, offset float64) func(jan, feb *ncDesc) {
 	}
 }
 
+// curvilinear replaces the 1-D lat(lat) and lon(lon) coordinates of a bulk
+// description by 2-D auxiliary coordinates nav_lat(lat, lon) and
+// nav_lon(lat, lon) (CF 1.8 section 5.2), making the grid curvilinear.
+func curvilinear(d *ncDesc) {
+	lon, lat := d.v("lon").data, d.v("lat").data
+	d.drop("lon")
+	d.drop("lat")
+	var lon2, lat2 []float64
+	for _, y := range lat {
+		for k, x := range lon {
+			lon2 = append(lon2, x+0.1*float64(k)*0) // a plain (unrotated) curvilinear grid
+			lat2 = append(lat2, y)
+		}
+	}
+	d.vars = append(d.vars,
+		&ncVarDesc{name: "nav_lon", typ: netcdf.DOUBLE, dims: []string{"lat", "lon"}, data: lon2,
+			attrs: []ncAttr{text("standard_name", "longitude"), text("units", "degrees_east")}},
+		&ncVarDesc{name: "nav_lat", typ: netcdf.DOUBLE, dims: []string{"lat", "lon"}, data: lat2,
+			attrs: []ncAttr{text("standard_name", "latitude"), text("units", "degrees_north")}})
+}
+
+// hugeClaim describes a small NetCDF-4 file whose dimensions claim far more
+// data than it holds: time(nt), lat(nlat), lon(nlon) with CF coordinates, and
+// hm0(time, lat, lon); only the time and latitude values (and the longitudes
+// if writeLon) are written, nothing of hm0.
+func hugeClaim(nt, nlat, nlon int, writeLon bool) *ncDesc {
+	times := make([]float64, nt)
+	for i := range times {
+		times[i] = 3 * float64(i)
+	}
+	lat := make([]float64, nlat)
+	for i := range lat {
+		lat[i] = -80 + 160*float64(i)/float64(nlat)
+	}
+	var lon []float64
+	if writeLon {
+		lon = make([]float64, nlon)
+		for i := range lon {
+			lon[i] = -180 + 360*float64(i)/float64(nlon)
+		}
+	}
+	return &ncDesc{netcdf4: true,
+		dims:   []ncDim{{"time", nt}, {"lat", nlat}, {"lon", nlon}},
+		global: syntheticGlobals,
+		vars: []*ncVarDesc{
+			{name: "time", typ: netcdf.DOUBLE, dims: []string{"time"}, data: times,
+				attrs: []ncAttr{text("standard_name", "time"), text("units", baseRefUnits)}},
+			{name: "lat", typ: netcdf.DOUBLE, dims: []string{"lat"}, data: lat,
+				attrs: []ncAttr{text("standard_name", "latitude"), text("units", "degrees_north")}},
+			{name: "lon", typ: netcdf.DOUBLE, dims: []string{"lon"}, data: lon,
+				attrs: []ncAttr{text("standard_name", "longitude"), text("units", "degrees_east")}},
+			{name: "hm0", typ: netcdf.FLOAT, dims: []string{"time", "lat", "lon"},
+				attrs: []ncAttr{text("standard_name", "sea_surface_wave_significant_height"), text("units", "m")}},
+		}}
+}
+
+// oneFile writes d as in/<name> under dir.
+func oneFile(name string, d *ncDesc) func(string) (*Setup, error) {
+	return func(dir string) (*Setup, error) {
+		in, err := writeAll(dir, map[string]*ncDesc{name: d})
+		return &Setup{Input: in}, err
+	}
+}
+
 // strictCases are the cases of per-file orientation and strict attributes.
 func strictCases() []Case {
 	both := func(f func(d *ncDesc)) func(jan, feb *ncDesc) {
 		return func(jan, feb *ncDesc) { f(jan); f(feb) }
 	}
 	return []Case{
+		{Name: "coord_points_inf", Breaks: "a station longitude of +Inf (was exit 4 at the export, after the computation)", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_spec_2001-01.nc", `"longitude"`, "+Inf", "must be finite"},
+			build: specCase(func(d *ncDesc) { d.v("longitude").data[1] = math.Inf(1) })},
+		{Name: "coord_curvilinear_nan", Breaks: "a NaN node longitude of a curvilinear grid (was exit 4 at the export)", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want: []string{"cx_2001-01.nc", `"nav_lon"`, "(lat 1, lon 2)", "NaN", "must be finite"},
+			build: bulkCase(both(func(d *ncDesc) {
+				curvilinear(d)
+				d.v("nav_lon").data[baseNX+2] = math.NaN()
+			}))},
+		{Name: "huge_dimension_netcdf4", Breaks: "a NetCDF-4 file of a few KB whose longitude dimension claims 2^28 values (took 4.2 GB and minutes)", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_huge4.nc", "declares", "more than compression can explain", "write or download it again"},
+			build: oneFile("cx_huge4.nc", hugeClaim(2, 2, 1<<28, false))},
+		{Name: "huge_values_netcdf4", Breaks: "a NetCDF-4 file of about 1 MB whose hm0 claims 2e11 values (2000 x 1000 x 100000; would take minutes to refuse)", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_huge4v.nc", `"hm0"`, "200000000000 values", "more than compression can explain"},
+			build: oneFile("cx_huge4v.nc", hugeClaim(2000, 1000, 100000, true))},
+		{Name: "time_jump_year_9000", Breaks: `February's time units "hours since 9000-01-01 00:00:00" (reference year mistyped): a 7000-year gap`, Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_2001-02.nc", "longer than the rest of the record", "hours since 9000-01-01", "input.allow_long_gaps"},
+			build: bulkCase(func(_, feb *ncDesc) { feb.v("time").setText("units", "hours since 9000-01-01 00:00:00") })},
 		{Name: "orient_lat_descending_month", Breaks: "February stored with latitude descending in an ascending record (same values at the same positions)", Outcome: Flagged, Exit: 0, Stage: "read",
 			Want:  []string{"wrote"},
 			build: bulkCase(func(_, feb *ncDesc) { feb.reverseDim("lat") })},
