@@ -131,8 +131,9 @@ type FileInfo struct {
 	// Offset is the index of the file's first step in the whole record.
 	Offset int `json:"-"`
 
-	vars      map[Role]*VarInfo
-	times     []Stamp
+	vars  map[Role]*VarInfo
+	times []Stamp
+
 	timeUnits string // the time variable's units attribute
 	// xFile, yFile are this file's own orientation: the file index of each
 	// canonical column and row (grid.Grid.XFile/YFile of the file's axes).
