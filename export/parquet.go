@@ -19,8 +19,8 @@ import (
 
 // Metadata keys written into every table's Parquet key/value metadata.
 const (
-	MetaColumns = "swellgrid:columns" // JSON list of {name, unit, doc}
-	MetaCaution = "swellgrid:caution" // ScreeningCaution
+	MetaColumns = "swellgrid:columns" // JSON list of {name, unit, doc, standard_name, cell_methods}
+	MetaCaution = "swellgrid:caution" // the caller's caution, else ScreeningCaution
 	MetaGeo     = "geo"               // GeoParquet metadata (WriteGeoParquet only)
 )
 
@@ -133,9 +133,26 @@ type geoColumn struct {
 type pointColumn struct{ lon, lat []float64 }
 
 type colDoc struct {
-	Name string `json:"name"`
-	Unit string `json:"unit"`
-	Doc  string `json:"doc"`
+	Name         string `json:"name"`
+	Unit         string `json:"unit"`
+	Doc          string `json:"doc"`
+	StandardName string `json:"standard_name,omitempty"`
+	CellMethods  string `json:"cell_methods,omitempty"`
+}
+
+// fieldMeta is a column's Arrow field metadata: doc and unit, and the CF
+// attributes where the column has them (keys sorted).
+func fieldMeta(c *Column) arrow.Metadata {
+	keys, vals := []string{}, []string{}
+	if c.CellMethods != "" {
+		keys, vals = append(keys, "cell_methods"), append(vals, c.CellMethods)
+	}
+	keys, vals = append(keys, "doc"), append(vals, c.Doc)
+	if c.StandardName != "" {
+		keys, vals = append(keys, "standard_name"), append(vals, c.StandardName)
+	}
+	keys, vals = append(keys, "unit"), append(vals, c.Unit)
+	return arrow.NewMetadata(keys, vals)
 }
 
 // onlyWriter hides any Close method, so that the Parquet writer never closes
@@ -162,12 +179,11 @@ func writeTable(path string, cols []Column, t *Table, rows int, points *pointCol
 	fields := make([]arrow.Field, 0, len(cols)+1)
 	for k := range cols {
 		c := &cols[k]
-		docs = append(docs, colDoc{c.Name, c.Unit, c.Doc})
-		fields = append(fields, arrow.Field{Name: c.Name, Type: arrowType(c), Nullable: true,
-			Metadata: arrow.NewMetadata([]string{"doc", "unit"}, []string{c.Doc, c.Unit})})
+		docs = append(docs, colDoc{c.Name, c.Unit, c.Doc, c.StandardName, c.CellMethods})
+		fields = append(fields, arrow.Field{Name: c.Name, Type: arrowType(c), Nullable: true, Metadata: fieldMeta(c)})
 	}
 	if points != nil {
-		docs = append(docs, colDoc{"geometry", "", "cell centre as a WKB point (lon, lat; OGC:CRS84)"})
+		docs = append(docs, colDoc{Name: "geometry", Doc: "cell centre as a WKB point (lon, lat; OGC:CRS84)"})
 		fields = append(fields, arrow.Field{Name: "geometry", Type: arrow.BinaryTypes.Binary, Nullable: false})
 	}
 	docJSON, err := json.Marshal(docs)
@@ -179,7 +195,9 @@ func writeTable(path string, cols []Column, t *Table, rows int, points *pointCol
 		kv[k] = v
 	}
 	kv[MetaColumns] = string(docJSON)
-	kv[MetaCaution] = ScreeningCaution
+	if kv[MetaCaution] == "" {
+		kv[MetaCaution] = ScreeningCaution
+	}
 	if geo != "" {
 		kv[MetaGeo] = geo
 	}

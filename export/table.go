@@ -3,6 +3,8 @@ package export
 import (
 	"fmt"
 	"regexp"
+
+	"swellgrid/stats"
 )
 
 // Column is one named column of a table. Exactly one of Float64, Int64, String
@@ -10,16 +12,20 @@ import (
 // cell without a result is null, never zero). For the other kinds, Valid marks
 // which rows hold a value (false = null); a nil Valid means every row does.
 // Unit (for example "kW/m", "m", "s", "1") and Doc (one line: what the column
-// means and how it was obtained) are stored with the schema.
+// means and how it was obtained) are stored with the schema, and so are
+// StandardName and CellMethods, the CF standard_name and cell_methods of the
+// column where they apply (empty: none; not written).
 type Column struct {
-	Name    string
-	Unit    string
-	Doc     string
-	Float64 []float64
-	Int64   []int64
-	String  []string
-	Bool    []bool
-	Valid   []bool
+	Name         string
+	Unit         string
+	Doc          string
+	StandardName string
+	CellMethods  string
+	Float64      []float64
+	Int64        []int64
+	String       []string
+	Bool         []bool
+	Valid        []bool
 }
 
 // Table is a set of columns of equal length, written in the given order.
@@ -39,11 +45,9 @@ type Table struct {
 // rows per group by default).
 const DefaultRowGroupRows = 65536
 
-// ScreeningCaution is written into every table and contour layer.
-const ScreeningCaution = "Screening estimates from a wave model hindcast, not design values: " +
-	"extreme sea states, resource figures and maps must not be used for siting, design loads " +
-	"or survival conditions without the applicable design standards, local codes, site " +
-	"measurements and review by qualified engineers."
+// ScreeningCaution is written into every table and contour layer whose
+// caller gives no caution of its own: the one caution text, stats.Caution.
+const ScreeningCaution = stats.Caution
 
 // Float64Column returns a float column; NaN values are written as null.
 func Float64Column(name, unit, doc string, v []float64) Column {

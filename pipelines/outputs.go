@@ -15,9 +15,8 @@ import (
 
 // columnNames lists the columns of cells.parquet for this run.
 func (e *engine) columnNames() map[string]string {
-	t := e.cellsTable(nil)
 	out := map[string]string{}
-	for _, c := range t.Columns {
+	for _, c := range e.cellsColumns() {
 		out[c.Name] = c.Unit
 	}
 	return out
@@ -121,6 +120,7 @@ type Manifest struct {
 	Assumptions []string                        `json:"assumptions"`
 	Parameters  *Spec                           `json:"parameters"`
 	Resolution  map[string]float64              `json:"histogram_resolution"`
+	Columns     map[string][]ColumnSpec         `json:"columns"`
 	Warnings    []string                        `json:"warnings"`
 	Timings     map[string]float64              `json:"timings_s,omitempty"`
 }
@@ -177,6 +177,7 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 		m.Assumptions = append(m.Assumptions, "deep water everywhere (given)")
 	}
 	m.Resolution = map[string]float64{"hm0_m": e.ccfg.Hm0HistResM}
+	m.Columns = e.outputColumns()
 	m.Warnings = append(append([]string{}, c.Warnings...), warns...)
 	return m
 }

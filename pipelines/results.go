@@ -3,6 +3,7 @@ package pipelines
 import (
 	"math"
 
+	"swellgrid/stats"
 	"swellgrid/stats/climate"
 	"swellgrid/stats/extremes"
 )
@@ -116,6 +117,6 @@ func (e *engine) cellFlags(id int, r *cellResult) []string {
 	return out
 }
 
-// Caution is carried by every output with return levels or resource figures.
-const Caution = "Resource figures and extreme sea states from swellgrid are screening estimates from a model hindcast. " + extremes.Caution +
-	" Sites chosen from these maps need site measurements and review under the applicable standards."
+// Caution is carried by every output with return levels or resource figures:
+// the one caution text, stats.Caution.
+const Caution = stats.Caution

@@ -498,7 +498,7 @@ func fill[R any](c *column[R], name, doc string, rows []R, isNull func(R) bool) 
 			valid[i] = !isNull(r)
 		}
 	}
-	col := export.Column{Name: name, Unit: c.Unit, Doc: doc}
+	col := export.Column{Name: name, Unit: c.Unit, Doc: doc, StandardName: c.StandardName, CellMethods: c.CellMethods}
 	switch {
 	case c.f64 != nil:
 		col.Float64 = make([]float64, n)
@@ -606,22 +606,13 @@ func (e *engine) cellsTable(res []*cellResult) *export.Table {
 		rows[r.id].r = r
 	}
 	var cols []export.Column
-	for lo := 0; lo < len(cellsSchema); {
-		hi := lo + 1 // a block of consecutive entries with the same parameter
-		for p := cellsSchema[lo].Param; p != NoParam && hi < len(cellsSchema) && cellsSchema[hi].Param == p; hi++ {
+	forEachCellColumn(e, func(c *column[*cellRow], v paramValue) {
+		for _, row := range rows {
+			row.k = v.k
 		}
-		for _, v := range e.paramValues(cellsSchema[lo].Param) {
-			for k := lo; k < hi; k++ {
-				c := &cellsSchema[k]
-				for _, row := range rows {
-					row.k = v.k
-				}
-				name, doc := e.expand(&c.ColumnSpec, v)
-				cols = append(cols, fill(c, name, doc, rows, c.null.test()))
-			}
-		}
-		lo = hi
-	}
+		name, doc := e.expand(&c.ColumnSpec, v)
+		cols = append(cols, fill(c, name, doc, rows, c.null.test()))
+	})
 	return &export.Table{Columns: cols, Meta: map[string]string{export.MetaCaution: Caution}, RowGroupRows: 65536}
 }
 
@@ -637,4 +628,48 @@ func (e *engine) longTables(res []*cellResult) map[string]*export.Table {
 
 func sortByID(res []*cellResult) {
 	sort.Slice(res, func(i, j int) bool { return res[i].id < res[j].id })
+}
+
+// cellsColumns lists the columns of this run's cells.parquet, patterns
+// expanded, in file order (the GeoParquet geometry column, added by export,
+// not included).
+func (e *engine) cellsColumns() []ColumnSpec {
+	var out []ColumnSpec
+	forEachCellColumn(e, func(c *column[*cellRow], v paramValue) {
+		s := c.ColumnSpec
+		s.File, s.Type = "cells.parquet", c.typ()
+		s.Name, s.Doc = e.expand(&c.ColumnSpec, v)
+		out = append(out, s)
+	})
+	return out
+}
+
+// forEachCellColumn calls f for every column of cells.parquet in file order:
+// each entry of cellsSchema with each value of its parameter, a block of
+// consecutive entries with the same parameter repeated value by value.
+func forEachCellColumn(e *engine, f func(c *column[*cellRow], v paramValue)) {
+	for lo := 0; lo < len(cellsSchema); {
+		hi := lo + 1
+		for p := cellsSchema[lo].Param; p != NoParam && hi < len(cellsSchema) && cellsSchema[hi].Param == p; hi++ {
+		}
+		for _, v := range e.paramValues(cellsSchema[lo].Param) {
+			for k := lo; k < hi; k++ {
+				f(&cellsSchema[k], v)
+			}
+		}
+		lo = hi
+	}
+}
+
+// geometryColumn is the point column WriteGeoParquet adds to cells.parquet.
+var geometryColumn = ColumnSpec{File: "cells.parquet", Name: "geometry", Type: "binary", Doc: "cell centre as a WKB point (lon, lat; OGC:CRS84)"}
+
+// outputColumns lists every column of every table of this run, patterns expanded,
+// keyed by file name: the manifest's column list.
+func (e *engine) outputColumns() map[string][]ColumnSpec {
+	out := map[string][]ColumnSpec{"cells.parquet": append(e.cellsColumns(), geometryColumn)}
+	for _, t := range longSchemas {
+		out[t.file()] = t.specs()
+	}
+	return out
 }

@@ -7,6 +7,7 @@ import (
 	"log/slog"
 	"os"
 	"os/signal"
+	"strings"
 	"syscall"
 	"time"
 
@@ -16,10 +17,28 @@ import (
 	"swellgrid/pipelines"
 )
 
-const caution = `CAUTION: resource figures and extreme sea states are screening estimates from a
-model hindcast, not design values. Design loads, survival conditions, site selection
-and consenting decisions follow the applicable design standards and local codes,
-site measurements, and review by qualified engineers.`
+// caution is the one caution text (pipelines.Caution), wrapped for the help.
+var caution = wrapText("CAUTION: "+pipelines.Caution, 86)
+
+// wrapText breaks s into lines of at most width characters at spaces.
+func wrapText(s string, width int) string {
+	var b strings.Builder
+	n := 0
+	for _, w := range strings.Fields(s) {
+		switch {
+		case n == 0:
+		case n+1+len(w) > width:
+			b.WriteByte('\n')
+			n = 0
+		default:
+			b.WriteByte(' ')
+			n++
+		}
+		b.WriteString(w)
+		n += len(w)
+	}
+	return b.String()
+}
 
 type runFlags struct {
 	input, out, spec, memory string

@@ -32,8 +32,8 @@
 // standards, local codes or review by qualified engineers.
 package climate
 
+import "swellgrid/stats"
+
 // Caution is the statement that goes with every figure of this package into
 // outputs, manifests and documentation.
-const Caution = "Screening estimates from a model hindcast: not for design. Design loads, " +
-	"device selection and consenting follow the applicable design standards and local codes, " +
-	"site measurements and review by qualified engineers."
+const Caution = stats.Caution // the one caution text; see stats.Caution

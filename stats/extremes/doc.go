@@ -24,8 +24,7 @@
 // record; see Caution.
 package extremes
 
+import "swellgrid/stats"
+
 // Caution is the text that every output carrying return levels must carry.
-const Caution = "Extreme sea states from swellgrid are screening estimates from a statistical model " +
-	"fitted to a modelled (hindcast) record, with uncertainty that grows quickly beyond the record length. " +
-	"They are not design values: design loads, survival conditions and consenting decisions follow the " +
-	"applicable design standards and local codes, site measurements, and review by qualified engineers."
+const Caution = stats.Caution // the one caution text; see stats.Caution
