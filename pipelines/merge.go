@@ -5,16 +5,13 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"log/slog"
 	"os"
 	"path/filepath"
-	"runtime"
 	"sort"
 	"strings"
 	"time"
 
 	"swellgrid/export"
-	"swellgrid/ingest"
 )
 
 // Merge combines the shard directories written by runs with Options.Shard
@@ -25,22 +22,87 @@ import (
 // are copied to out/.swellgrid, so that the merged run can later be updated
 // (Options.Update) like any run. opt.Restart and opt.Shard are not used.
 func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*Result, error) {
-	t0 := time.Now()
-	log := opt.Log
-	if log == nil {
-		log = slog.New(slog.NewTextHandler(devNull{}, nil))
+	j, parts, err := validateMerge(out, shardDirs, opt)
+	if err != nil {
+		return nil, err
 	}
+	unlock, err := j.lock()
+	if err != nil {
+		return nil, err
+	}
+	defer unlock()
+	// Where the states come from: the shards' final states; where they go:
+	// copied into out/.swellgrid.
+	restore := func(pi int, p [2]int) ([]*cell, int, error) {
+		ts := time.Now()
+		defer j.mark("load_s", ts)
+		pt := parts[pi]
+		cells, next, err := loadCheckpointTrusting(pt.src, pt.want, len(j.ids), j.eng.newCell)
+		if err != nil {
+			if IsResumeRefused(err) || errors.Is(err, os.ErrNotExist) {
+				return nil, 0, &InputError{fmt.Errorf("merge: shard %d/%d in %s: %v", pt.m.Shard, pt.m.Shards, pt.dir, err)}
+			}
+			return nil, 0, err
+		}
+		if next != len(j.cat.Files) {
+			return nil, 0, &InputError{fmt.Errorf("merge: shard %d/%d in %s has read %d of %d files; rerun it to finish", pt.m.Shard, pt.m.Shards, pt.dir, next, len(j.cat.Files))}
+		}
+		return cells, next, nil
+	}
+	saved := func(pi int, p [2]int) error {
+		pt := parts[pi]
+		if err := copyFile(pt.src, ckPath(j.out, p[0], p[1])); err != nil {
+			return &outputErr{fmt.Errorf("merge: saving the states in %s: %v", j.out, err)}
+		}
+		if pt.lastOfShard {
+			j.log.Info("merged", "dir", pt.dir, "shard", fmt.Sprintf("%d/%d", pt.m.Shard, pt.m.Shards), "cells", pt.m.C1-pt.m.C0)
+		}
+		return nil
+	}
+	results, err := j.runPasses(ctx, restore, saved)
+	if err != nil {
+		return nil, err
+	}
+	if err := removeStaleCheckpoints(j.out, j.passes); err != nil {
+		return nil, &outputErr{err}
+	}
+	if ctx.Err() != nil {
+		return nil, ctx.Err()
+	}
+	sums := make([]string, len(parts[0].m.Inputs))
+	for i, in := range parts[0].m.Inputs {
+		sums[i] = in.SHA256
+	}
+	return j.export(results, sums)
+}
+
+// mergePart is one pass of one shard: the state file a merge loads.
+type mergePart struct {
+	dir         string
+	m           *ShardManifest
+	p           [2]int
+	src         string   // the shard's state file
+	want        ckHeader // what its header must say
+	lastOfShard bool
+}
+
+// validateMerge is the validate stage of Merge: the shards belong together,
+// their spec reproduces its fingerprint, the inputs are those the shards
+// read, unchanged, and every state file says so in its header. Nothing is
+// written.
+func validateMerge(out string, shardDirs []string, opt Options) (*job, []mergePart, error) {
+	t0 := time.Now()
 	if len(shardDirs) == 0 {
-		return nil, &InputError{errors.New("merge: no shard directories given")}
+		return nil, nil, &InputError{errors.New("merge: no shard directories given")}
 	}
 	ms := make([]*ShardManifest, len(shardDirs))
 	for i, d := range shardDirs {
 		if absPath(d) == absPath(out) {
-			return nil, &InputError{fmt.Errorf("merge: the output directory %s is one of the shards; choose another --out", out)}
+			return nil, nil, &InputError{fmt.Errorf("merge: the output directory %s is one of the shards; choose another --out", out)}
 		}
 		m, err := readShardManifest(d)
 		if err != nil {
-			return nil, &InputError{err}
+			return nil, nil, &InputError{err}
 		}
 		ms[i] = m
 	}
@@ -50,7 +112,7 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 	}
 	sort.SliceStable(order, func(a, b int) bool { return ms[order[a]].Shard < ms[order[b]].Shard })
 	if why := shardsBelongTogether(shardDirs, ms, order); why != "" {
-		return nil, &InputError{errors.New("merge: " + why)}
+		return nil, nil, &InputError{errors.New("merge: " + why)}
 	}
 	first := ms[order[0]]
 	spec := *first.Spec
@@ -62,117 +124,50 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 		spec.Run.MemoryLimit = DefaultSpec().Run.MemoryLimit
 	}
 	if err := spec.Validate(); err != nil {
-		return nil, &InputError{fmt.Errorf("merge: the shards' spec: %v", err)}
+		return nil, nil, &InputError{fmt.Errorf("merge: the shards' spec: %v", err)}
 	}
 	if fp := spec.Fingerprint(); fp != first.Fingerprint {
-		return nil, &InputError{fmt.Errorf("merge: the spec recorded in %s does not reproduce its fingerprint (software version %s); rerun the shards with this version", filepath.Join(shardDirs[order[0]], shardFile), first.Version)}
+		return nil, nil, &InputError{fmt.Errorf("merge: the spec recorded in %s does not reproduce its fingerprint (software version %s); rerun the shards with this version", filepath.Join(shardDirs[order[0]], shardFile), first.Version)}
 	}
-	timings := map[string]float64{}
 	ts := time.Now()
-	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
+	cat, err := openCatalog(&spec)
 	if err != nil {
-		return nil, &InputError{fmt.Errorf("merge: the shards' inputs: %v", err)}
+		return nil, nil, &InputError{fmt.Errorf("merge: the shards' inputs: %w", err)}
 	}
-	timings["catalog_s"] = time.Since(ts).Seconds()
 	if len(cat.Files) != len(first.Inputs) {
-		return nil, &InputError{fmt.Errorf("merge: the shards read %d input files, the inputs %v hold %d now; merge before adding files, then use run --update", len(first.Inputs), spec.Input.Paths, len(cat.Files))}
+		return nil, nil, &InputError{fmt.Errorf("merge: the shards read %d input files, the inputs %v hold %d now; merge before adding files, then use run --update", len(first.Inputs), spec.Input.Paths, len(cat.Files))}
 	}
-	sums := make([]string, len(cat.Files))
 	for i, f := range cat.Files {
 		in := first.Inputs[i]
 		if absPath(f.Path) != in.Path || f.Size != in.Size {
-			return nil, &InputError{fmt.Errorf("merge: input %s changed since the shards ran (the shards read %s, %d bytes); rerun the shards", f.Path, in.Path, in.Size)}
+			return nil, nil, &InputError{fmt.Errorf("merge: input %s changed since the shards ran (the shards read %s, %d bytes); rerun the shards", f.Path, in.Path, in.Size)}
 		}
-		sums[i] = in.SHA256
 	}
 	if first.GridCells != cat.Grid.NCells() {
-		return nil, &InputError{fmt.Errorf("merge: the shards were run on a grid of %d cells, the inputs have %d", first.GridCells, cat.Grid.NCells())}
+		return nil, nil, &InputError{fmt.Errorf("merge: the shards were run on a grid of %d cells, the inputs have %d", first.GridCells, cat.Grid.NCells())}
 	}
-	ccfg, err := spec.climateConfig(cat.Calendar)
+	j, err := newJob(&spec, opt, cat, t0)
 	if err != nil {
-		return nil, &InputError{err}
+		return nil, nil, err
 	}
-	eng, err := newEngine(cat, &spec, ccfg)
-	if err != nil {
-		return nil, &InputError{err}
-	}
-	if err := eng.checkContourColumns(); err != nil {
-		return nil, &InputError{err}
-	}
-	if err := os.MkdirAll(out, 0o755); err != nil {
-		return nil, &outputErr{fmt.Errorf("output directory %s: %v", out, err)}
-	}
-	unlock, err := lockDir(out)
-	if err != nil {
-		return nil, err
-	}
-	defer unlock()
-	ids, err := inputIDs(cat)
-	if err != nil {
-		return nil, &InputError{err}
-	}
-	workers := spec.Run.Workers
-	if workers == 0 {
-		workers = runtime.NumCPU()
-	}
-	acfg := spec.analysisConfig(0)
-	var results []*cellResult
-	var passes [][2]int
+	j.mark("catalog_s", ts)
+	var parts []mergePart
 	for _, k := range order {
 		dir, m := shardDirs[k], ms[k]
-		for _, p := range m.Passes {
-			src := ckPath(dir, p[0], p[1])
-			want := ckHeader{Fingerprint: m.Fingerprint, Inputs: ids, C0: p[0], C1: p[1]}
-			ts = time.Now()
+		for i, p := range m.Passes {
+			pt := mergePart{dir: dir, m: m, p: p, src: ckPath(dir, p[0], p[1]), lastOfShard: i == len(m.Passes)-1,
+				want: ckHeader{Fingerprint: m.Fingerprint, Inputs: j.ids, C0: p[0], C1: p[1]}}
 			// The inputs were matched by path and size to the shard's
 			// manifest above; here their modification times are compared
 			// with those the shard saw (paths may be spelled differently).
-			if why := sameFileTimes(src, ids); why != "" {
-				return nil, &InputError{fmt.Errorf("merge: shard %d/%d in %s: %s; rerun the shards", m.Shard, m.Shards, dir, why)}
+			if why := sameFileTimes(pt.src, j.ids); why != "" {
+				return nil, nil, &InputError{fmt.Errorf("merge: shard %d/%d in %s: %s; rerun the shards", m.Shard, m.Shards, dir, why)}
 			}
-			cells, next, err := loadCheckpointTrusting(src, want, len(ids), eng.newCell)
-			if err != nil {
-				if IsResumeRefused(err) || errors.Is(err, os.ErrNotExist) {
-					return nil, &InputError{fmt.Errorf("merge: shard %d/%d in %s: %v", m.Shard, m.Shards, dir, err)}
-				}
-				return nil, err
-			}
-			if next != len(cat.Files) {
-				return nil, &InputError{fmt.Errorf("merge: shard %d/%d in %s has read %d of %d files; rerun it to finish", m.Shard, m.Shards, dir, next, len(cat.Files))}
-			}
-			timings["load_s"] += time.Since(ts).Seconds()
-			ts = time.Now()
-			res, err := eng.finishAll(ctx, p[0], cells, acfg, workers, opt.Progress)
-			if err != nil {
-				return nil, err
-			}
-			timings["fit_s"] += time.Since(ts).Seconds()
-			results = append(results, res...)
-			if err := copyFile(src, ckPath(out, p[0], p[1])); err != nil {
-				return nil, &outputErr{fmt.Errorf("merge: saving the states in %s: %v", out, err)}
-			}
-			passes = append(passes, p)
+			parts = append(parts, pt)
+			j.passes = append(j.passes, p)
 		}
-		log.Info("merged", "dir", dir, "shard", fmt.Sprintf("%d/%d", m.Shard, m.Shards), "cells", m.C1-m.C0)
 	}
-	if err := removeStaleCheckpoints(out, passes); err != nil {
-		return nil, &outputErr{err}
-	}
-	if ctx.Err() != nil {
-		return nil, ctx.Err()
-	}
-	ts = time.Now()
-	written, warns, err := eng.writeOutputs(out, results)
-	if err != nil {
-		return nil, &outputErr{err}
-	}
-	timings["export_s"] = time.Since(ts).Seconds()
-	man := eng.manifest(opt.Version, sums, warns, timings)
-	if err := export.WriteManifest(filepath.Join(out, "manifest.json"), man); err != nil {
-		return nil, &outputErr{err}
-	}
-	written = append(written, "manifest.json")
-	return &Result{OutDir: out, Files: written, Cells: cat.Grid.NCells(), Steps: cat.Steps, Warnings: append(cat.Warnings, warns...), Wall: time.Since(t0)}, nil
+	return j, parts, nil
 }
 
 // shardsBelongTogether reports "" when the shards (in order, sorted by

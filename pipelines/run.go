@@ -7,13 +7,10 @@ import (
 	"log/slog"
 	"math"
 	"os"
-	"path/filepath"
-	"runtime"
 	"sort"
 	"sync"
 	"time"
 
-	"swellgrid/export"
 	"swellgrid/grid"
 	"swellgrid/ingest"
 	"swellgrid/stats/climate"
@@ -172,225 +169,56 @@ func (s *Spec) analysisConfig(years float64) extremes.AnalysisConfig {
 	return a
 }
 
-// Run runs the whole job: catalog, stream, fits, export.
+// Run runs the whole job through the stages of stages.go: validate, lock,
+// restore, stream, fit, export.
 func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
-	t0 := time.Now()
-	log := opt.Log
-	if log == nil {
-		log = slog.New(slog.NewTextHandler(devNull{}, nil))
-	}
-	if err := spec.Validate(); err != nil {
-		return nil, &InputError{err}
-	}
-	if err := spec.checkRoles(); err != nil {
-		return nil, &InputError{err}
-	}
-	timings := map[string]float64{}
-	mark := func(stage string, since time.Time) { timings[stage] += time.Since(since).Seconds() }
-
-	ts := time.Now()
-	// A sixteenth of the memory budget per variable for NetCDF-4 chunks
-	// (clamped to 16 MiB .. 512 MiB): enough for a month of a variable on a
-	// large grid, so each chunk is decompressed once.
-	limit, _ := ParseSize(spec.Run.MemoryLimit)
-	if err := ingest.SetChunkCache(min(max(limit/16, 16<<20), 512<<20)); err != nil {
+	j, err := validateRun(spec, opt)
+	if err != nil {
 		return nil, err
 	}
-	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
-	if err != nil {
-		return nil, &InputError{err}
-	}
-	mark("catalog_s", ts)
-	if cat.DepthSource == "none" {
-		return nil, &InputError{fmt.Errorf("no water depth: the files hold no variable with standard_name sea_floor_depth_below_sea_surface; set depth.source in the spec (\"constant\", \"bathymetry\" or \"deep-water\"), or give --depth METRES or --deep-water")}
-	}
-	ccfg, err := spec.climateConfig(cat.Calendar)
-	if err != nil {
-		return nil, &InputError{err}
-	}
-	eng, err := newEngine(cat, spec, ccfg)
-	if err != nil {
-		return nil, &InputError{err}
-	}
-	if err := eng.checkContourColumns(); err != nil {
-		return nil, &InputError{err}
-	}
-	out := spec.Output.Dir
-	if err := os.MkdirAll(out, 0o755); err != nil {
-		return nil, &outputErr{fmt.Errorf("output directory %s: %v", out, err)}
-	}
-	unlock, err := lockDir(out)
+	unlock, err := j.lock()
 	if err != nil {
 		return nil, err
 	}
 	defer unlock()
-	removePartials(out)
-	ids, err := inputIDs(cat)
-	if err != nil {
-		return nil, &InputError{err}
-	}
-	// Checksums of the inputs, read as plain files beside the NetCDF reader.
-	sums := make([]string, len(cat.Files))
-	var sumWG sync.WaitGroup
-	var sumErr error
-	sumWG.Add(1)
-	go func() {
-		defer sumWG.Done()
-		for i, f := range cat.Files {
-			if ctx.Err() != nil {
-				return
-			}
-			s, err := export.SHA256File(f.Path)
-			if err != nil {
-				sumErr = err
-				return
-			}
-			sums[i] = s
-		}
-	}()
-	workers := spec.Run.Workers
-	if workers == 0 {
-		workers = runtime.NumCPU()
-	}
-	if opt.Update && opt.Restart {
-		return nil, &InputError{errors.New("--update and --restart exclude each other: an update continues the saved states, a restart discards them")}
-	}
-	lo, hi := 0, cat.Grid.NCells()
-	if opt.Shard != nil {
-		if lo, hi, err = opt.Shard.Cells(cat.Grid); err != nil {
-			return nil, &InputError{err}
-		}
-	}
-	passes, err := eng.plan(lo, hi)
-	if err != nil {
-		return nil, &InputError{err}
-	}
+	sums := startChecksums(ctx, j.cat.Files)
+	defer sums.stop()
 	trusted := 0
-	if opt.Update {
-		// The earlier files must be unchanged: compare their checksums before
-		// anything is read or written.
-		sumWG.Wait()
-		if sumErr != nil {
-			return nil, &InputError{sumErr}
-		}
-		up, err := checkUpdate(out, spec, cat, sums, opt.Shard)
+	if j.update != nil {
+		// The earlier files must be unchanged: compare their checksums
+		// before any state is read or written.
+		s, err := sums.wait()
 		if err != nil {
+			if ctx.Err() != nil {
+				return nil, ctx.Err()
+			}
 			return nil, &InputError{err}
 		}
-		passes, trusted = up.passes, up.earlier
-		if up.shard != nil {
-			opt.Shard, lo, hi = up.shard, up.lo, up.hi
+		if why := inputContentChanges(j.update.prior, j.cat, s); why != "" {
+			return nil, &InputError{&updateRefused{j.out, why}}
 		}
-		log.Info("update", "earlier_files", up.earlier, "new_files", len(cat.Files)-up.earlier)
+		trusted = j.update.earlier
+		j.log.Info("update", "earlier_files", j.update.earlier, "new_files", len(j.cat.Files)-j.update.earlier)
 	}
-	log.Info("run", "files", len(cat.Files), "steps", cat.Steps, "cells", cat.Grid.NCells(), "passes", len(passes), "workers", workers, "out", out)
-	var results []*cellResult
-	acfg := spec.analysisConfig(0)
-	for pi, p := range passes {
-		ts = time.Now()
-		path := ckPath(out, p[0], p[1])
-		want := ckHeader{Fingerprint: spec.Fingerprint(), Inputs: ids, C0: p[0], C1: p[1]}
-		var cells []*cell
-		from := 0
-		if !opt.Restart {
-			if _, err := os.Stat(path); err == nil {
-				cells, from, err = loadCheckpointTrusting(path, want, trusted, eng.newCell)
-				if err != nil {
-					if IsResumeRefused(err) {
-						return nil, &InputError{err}
-					}
-					return nil, err
-				}
-				log.Info("resuming", "pass", pi+1, "from_file", from, "of", len(cat.Files))
-			}
-		}
-		if cells == nil {
-			cells = make([]*cell, p[1]-p[0])
-			for i := range cells {
-				if !cat.Masked[p[0]+i] {
-					cells[i] = eng.newCell(p[0] + i)
-				}
-			}
-		}
-		if opt.Progress != nil {
-			opt.Progress.Start(fmt.Sprintf("read pass %d/%d", pi+1, len(passes)), int64(cat.Steps), int64(cat.Files[min(from, len(cat.Files)-1)].Offset))
-		}
-		if from < len(cat.Files) {
-			lastCk := time.Now()
-			every := time.Duration(spec.Run.CheckpointEveryS * float64(time.Second))
-			err = eng.streamPass(ctx, p[0], p[1], from, workers, cells, func(next int) error {
-				// The final state is always saved (resume, update, merge); in
-				// between, at most one checkpoint per run.checkpoint_every_s.
-				if next < len(cat.Files) && every > 0 && time.Since(lastCk) < every {
-					return nil
-				}
-				defer func() { lastCk = time.Now() }()
-				h := want
-				h.NextFile = next
-				if err := saveCheckpoint(path, h, cells); err != nil {
-					return &outputErr{fmt.Errorf("checkpoint %s: %v", path, err)}
-				}
-				return nil
-			}, func(steps int) {
-				if opt.Progress != nil {
-					opt.Progress.Add(int64(steps))
-				}
-			})
-			if err != nil {
-				if opt.Progress != nil {
-					opt.Progress.Done()
-				}
-				if ctx.Err() != nil {
-					return nil, ctx.Err()
-				}
-				var ie *outputErr
-				if errors.As(err, &ie) {
-					return nil, err
-				}
-				return nil, &InputError{err}
-			}
-		}
-		if opt.Progress != nil {
-			opt.Progress.Done()
-		}
-		mark("stream_s", ts)
-		if opt.Shard != nil {
-			continue // a shard keeps its final states; Merge fits them
-		}
-		ts = time.Now()
-		res, err := eng.finishAll(ctx, p[0], cells, acfg, workers, opt.Progress)
-		if err != nil {
-			return nil, err
-		}
-		results = append(results, res...)
-		mark("fit_s", ts)
-	}
-	sumWG.Wait()
-	if sumErr != nil {
-		return nil, &InputError{sumErr}
-	}
-	if ctx.Err() != nil {
-		return nil, ctx.Err()
-	}
-	if err := removeStaleCheckpoints(out, passes); err != nil {
-		return nil, &outputErr{err}
-	}
-	if opt.Shard != nil {
-		return writeShard(out, spec, cat, *opt.Shard, lo, hi, passes, sums, opt.Version, t0)
-	}
-	ts = time.Now()
-	written, warns, err := eng.writeOutputs(out, results)
+	j.log.Info("run", "files", len(j.cat.Files), "steps", j.cat.Steps, "cells", j.cat.Grid.NCells(), "passes", len(j.passes), "workers", j.workers, "out", j.out)
+	results, err := j.runPasses(ctx, j.restoreOwn(trusted), nil)
 	if err != nil {
+		return nil, err
+	}
+	s, err := sums.wait()
+	if err != nil {
+		if ctx.Err() != nil {
+			return nil, ctx.Err()
+		}
+		return nil, &InputError{err}
+	}
+	if err := removeStaleCheckpoints(j.out, j.passes); err != nil {
 		return nil, &outputErr{err}
 	}
-	mark("export_s", ts)
-	eng.addStreamTimings(timings)
-	m := eng.manifest(opt.Version, sums, warns, timings)
-	if err := export.WriteManifest(filepath.Join(out, "manifest.json"), m); err != nil {
-		return nil, &outputErr{err}
+	if j.opt.Shard != nil {
+		return writeShard(j.out, spec, j.cat, *j.opt.Shard, j.lo, j.hi, j.passes, s, opt.Version, j.t0)
 	}
-	written = append(written, "manifest.json")
-	return &Result{OutDir: out, Files: written, Cells: cat.Grid.NCells(), Steps: cat.Steps, Warnings: append(cat.Warnings, warns...), Wall: time.Since(t0)}, nil
+	return j.export(results, s)
 }
 
 type devNull struct{}

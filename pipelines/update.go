@@ -22,10 +22,11 @@ import (
 
 // updatePlan is what an accepted update continues from.
 type updatePlan struct {
-	passes  [][2]int // the saved states' cell ranges
-	earlier int      // number of earlier input files (verified by checksum)
-	shard   *Shard   // the directory is a shard (nil: a whole run)
-	lo, hi  int      // cells covered
+	passes  [][2]int        // the saved states' cell ranges
+	earlier int             // number of earlier input files (verified by checksum)
+	shard   *Shard          // the directory is a shard (nil: a whole run)
+	lo, hi  int             // cells covered
+	prior   []ManifestInput // the earlier run's inputs
 }
 
 // updateRefused says why an update cannot continue the earlier run.
@@ -76,15 +77,16 @@ func readPriorRun(dir string) (*priorRun, error) {
 }
 
 // checkUpdate checks that the run in dir can be continued with the catalog
-// cat (whose files have the checksums sums) under spec: same spec
-// fingerprint, every earlier file present first, with the same size and
-// checksum, and final states for every cell.
-func checkUpdate(dir string, spec *Spec, cat *ingest.Catalog, sums []string, sh *Shard) (*updatePlan, error) {
+// cat under spec: same spec fingerprint, every earlier file present first,
+// with the same size, and final states for every cell. It reads and writes
+// nothing else; the earlier files' contents are compared by
+// inputContentChanges once their checksums are known.
+func checkUpdate(dir string, spec *Spec, cat *ingest.Catalog, sh *Shard) (*updatePlan, error) {
 	prior, err := readPriorRun(dir)
 	if err != nil {
 		return nil, err
 	}
-	up := &updatePlan{earlier: len(prior.inputs), lo: 0, hi: cat.Grid.NCells()}
+	up := &updatePlan{earlier: len(prior.inputs), lo: 0, hi: cat.Grid.NCells(), prior: prior.inputs}
 	if prior.shard != nil {
 		s := Shard{Index: prior.shard.Shard, Count: prior.shard.Shards}
 		if sh != nil && *sh != s {
@@ -114,14 +116,21 @@ func checkUpdate(dir string, spec *Spec, cat *ingest.Catalog, sums []string, sh 
 	if why := tiles(up.passes, up.lo, up.hi); why != "" {
 		return nil, &updateRefused{dir, "its saved states do not cover the run's cells: " + why}
 	}
-	if why := inputChanges(prior.inputs, cat, sums); why != "" {
+	if why := inputChanges(prior.inputs, cat, nil); why != "" {
 		return nil, &updateRefused{dir, why}
 	}
 	return up, nil
 }
 
+// inputContentChanges is inputChanges with the checksums sums of the
+// catalog's files.
+func inputContentChanges(old []ManifestInput, cat *ingest.Catalog, sums []string) string {
+	return inputChanges(old, cat, sums)
+}
+
 // inputChanges compares the earlier run's inputs with the new catalog: the
-// earlier files must come first, in the same order, unchanged.
+// earlier files must come first, in the same order, unchanged (by content
+// too when sums, the checksums of the catalog's files, is not nil).
 func inputChanges(old []ManifestInput, cat *ingest.Catalog, sums []string) string {
 	now := map[string]int{}
 	for i, f := range cat.Files {
@@ -137,7 +146,7 @@ func inputChanges(old []ManifestInput, cat *ingest.Catalog, sums []string) strin
 			return fmt.Sprintf("the new file %s lies within the earlier record (before %s, which ends %s); an update only adds files later in time, so run over all files into a new directory", cat.Files[i].Path, o.Path, old[len(old)-1].Last)
 		case cat.Files[j].Size != o.Size:
 			return fmt.Sprintf("the earlier input %s changed size (%d bytes then, %d now); run over all files into a new directory", o.Path, o.Size, cat.Files[j].Size)
-		case sums[j] != o.SHA256:
+		case sums != nil && sums[j] != o.SHA256:
 			return fmt.Sprintf("the earlier input %s changed content (SHA-256 %s then, %s now); run over all files into a new directory", o.Path, short(o.SHA256), short(sums[j]))
 		}
 	}

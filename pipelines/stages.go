@@ -1,0 +1,377 @@
+package pipelines
+
+import (
+	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"io"
+	"log/slog"
+	"os"
+	"path/filepath"
+	"runtime"
+	"sync"
+	"time"
+
+	"swellgrid/export"
+	"swellgrid/ingest"
+	"swellgrid/stats/extremes"
+)
+
+// A run and a merge are the same sequence of small stages, each with one job:
+//
+//	validate  everything that can be refused is refused here, with no side
+//	          effect (no directory created, no file written, no lock taken)
+//	lock      the output directory: create it, take its lock, clear partials
+//	restore   each pass's states: fresh, from the run's own checkpoint (resume,
+//	          update) or from a shard directory (merge)
+//	stream    the input files not yet in the states, checkpointing as it goes
+//	fit       the per-cell results of a pass (not for a shard, which keeps
+//	          its states for a merge)
+//	export    tables, contours and manifest (or a shard's shard.json)
+//
+// Fresh, resume, update, shard and merge differ only in where the states come
+// from (restore) and where they go (the pass's checkpoint, a merge's copy).
+
+// job is a run or a merge after validation: everything is known and
+// checked, nothing is written yet.
+type job struct {
+	spec    *Spec
+	opt     Options
+	log     *slog.Logger
+	cat     *ingest.Catalog
+	eng     *engine
+	ids     []inputID // the inputs as found now (path, size, mtime)
+	out     string
+	passes  [][2]int // cell ranges, in order
+	lo, hi  int      // cells covered (a shard's share, or the grid)
+	workers int
+	acfg    extremes.AnalysisConfig
+	update  *updatePlan // Options.Update: the run it continues
+	// streamed says the job read input files (a merge only loads states).
+	streamed bool
+	timings  map[string]float64
+	t0       time.Time
+}
+
+func (j *job) mark(stage string, since time.Time) { j.timings[stage] += time.Since(since).Seconds() }
+
+// openCatalog builds the catalog of the spec's inputs, with a NetCDF chunk
+// cache sized from the memory budget.
+func openCatalog(spec *Spec) (*ingest.Catalog, error) {
+	// A sixteenth of the memory budget per variable for NetCDF-4 chunks
+	// (clamped to 16 MiB .. 512 MiB): enough for a month of a variable on a
+	// large grid, so each chunk is decompressed once.
+	limit, _ := ParseSize(spec.Run.MemoryLimit)
+	if err := ingest.SetChunkCache(min(max(limit/16, 16<<20), 512<<20)); err != nil {
+		return nil, err
+	}
+	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
+	if err != nil {
+		return nil, &InputError{err}
+	}
+	return cat, nil
+}
+
+// newJob checks what the catalog and the spec say together and sets up the
+// engine; it writes nothing.
+func newJob(spec *Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, error) {
+	log := opt.Log
+	if log == nil {
+		log = slog.New(slog.NewTextHandler(devNull{}, nil))
+	}
+	if cat.DepthSource == "none" {
+		return nil, &InputError{fmt.Errorf("no water depth: the files hold no variable with standard_name sea_floor_depth_below_sea_surface; set depth.source in the spec (\"constant\", \"bathymetry\" or \"deep-water\"), or give --depth METRES or --deep-water")}
+	}
+	ccfg, err := spec.climateConfig(cat.Calendar)
+	if err != nil {
+		return nil, &InputError{err}
+	}
+	eng, err := newEngine(cat, spec, ccfg)
+	if err != nil {
+		return nil, &InputError{err}
+	}
+	if err := eng.checkContourColumns(); err != nil {
+		return nil, &InputError{err}
+	}
+	ids, err := inputIDs(cat)
+	if err != nil {
+		return nil, &InputError{err}
+	}
+	workers := spec.Run.Workers
+	if workers == 0 {
+		workers = runtime.NumCPU()
+	}
+	return &job{spec: spec, opt: opt, log: log, cat: cat, eng: eng, ids: ids, out: spec.Output.Dir,
+		lo: 0, hi: cat.Grid.NCells(), workers: workers, acfg: spec.analysisConfig(0),
+		timings: map[string]float64{}, t0: t0}, nil
+}
+
+// validateRun is the validate stage of Run.
+func validateRun(spec *Spec, opt Options) (*job, error) {
+	t0 := time.Now()
+	if err := spec.Validate(); err != nil {
+		return nil, &InputError{err}
+	}
+	if err := spec.checkRoles(); err != nil {
+		return nil, &InputError{err}
+	}
+	if opt.Update && opt.Restart {
+		return nil, &InputError{errors.New("--update and --restart exclude each other: an update continues the saved states, a restart discards them")}
+	}
+	ts := time.Now()
+	cat, err := openCatalog(spec)
+	if err != nil {
+		return nil, err
+	}
+	j, err := newJob(spec, opt, cat, t0)
+	if err != nil {
+		return nil, err
+	}
+	j.mark("catalog_s", ts)
+	if opt.Shard != nil {
+		if j.lo, j.hi, err = opt.Shard.Cells(cat.Grid); err != nil {
+			return nil, &InputError{err}
+		}
+	}
+	if j.passes, err = j.eng.plan(j.lo, j.hi); err != nil {
+		return nil, &InputError{err}
+	}
+	if opt.Update {
+		// Everything but the earlier files' contents (checked once their
+		// checksums are known, before any state is read).
+		up, err := checkUpdate(j.out, spec, cat, opt.Shard)
+		if err != nil {
+			return nil, &InputError{err}
+		}
+		j.update, j.passes = up, up.passes
+		if up.shard != nil {
+			j.opt.Shard, j.lo, j.hi = up.shard, up.lo, up.hi
+		}
+	}
+	return j, nil
+}
+
+// lock is the lock stage: it creates the output directory, takes its lock
+// and removes the partial files of a killed run (which no live run owns).
+func (j *job) lock() (func(), error) {
+	if err := os.MkdirAll(j.out, 0o755); err != nil {
+		return nil, &outputErr{fmt.Errorf("output directory %s: %v", j.out, err)}
+	}
+	unlock, err := lockDir(j.out)
+	if err != nil {
+		return nil, err
+	}
+	removePartials(j.out)
+	return unlock, nil
+}
+
+// restoreOwn is the restore stage of Run: the pass's states from the run
+// directory's checkpoint (unless --restart), or fresh ones. The first
+// trusted inputs were verified by content (an update).
+func (j *job) restoreOwn(trusted int) func(pi int, p [2]int) ([]*cell, int, error) {
+	return func(pi int, p [2]int) ([]*cell, int, error) {
+		path := ckPath(j.out, p[0], p[1])
+		if !j.opt.Restart {
+			if _, err := os.Stat(path); err == nil {
+				cells, from, err := loadCheckpointTrusting(path, j.ckWant(p), trusted, j.eng.newCell)
+				if err != nil {
+					if IsResumeRefused(err) {
+						return nil, 0, &InputError{err}
+					}
+					return nil, 0, err
+				}
+				j.log.Info("resuming", "pass", pi+1, "from_file", from, "of", len(j.cat.Files))
+				return cells, from, nil
+			}
+		}
+		cells := make([]*cell, p[1]-p[0])
+		for i := range cells {
+			if !j.cat.Masked[p[0]+i] {
+				cells[i] = j.eng.newCell(p[0] + i)
+			}
+		}
+		return cells, 0, nil
+	}
+}
+
+// ckWant is the checkpoint header of pass p under this job.
+func (j *job) ckWant(p [2]int) ckHeader {
+	return ckHeader{Fingerprint: j.spec.Fingerprint(), Inputs: j.ids, C0: p[0], C1: p[1]}
+}
+
+// stream is the stream stage of one pass: it feeds the files from..end to
+// the states, saving them to the pass's checkpoint after files (at most one
+// per run.checkpoint_every_s) and always after the last.
+func (j *job) stream(ctx context.Context, pi int, p [2]int, cells []*cell, from int) error {
+	nf := len(j.cat.Files)
+	if j.opt.Progress != nil {
+		j.opt.Progress.Start(fmt.Sprintf("read pass %d/%d", pi+1, len(j.passes)), int64(j.cat.Steps), int64(j.cat.Files[min(from, nf-1)].Offset))
+		defer j.opt.Progress.Done()
+	}
+	if from >= nf {
+		return nil
+	}
+	j.streamed = true
+	path, want := ckPath(j.out, p[0], p[1]), j.ckWant(p)
+	lastCk := time.Now()
+	every := time.Duration(j.spec.Run.CheckpointEveryS * float64(time.Second))
+	err := j.eng.streamPass(ctx, p[0], p[1], from, j.workers, cells, func(next int) error {
+		if next < nf && every > 0 && time.Since(lastCk) < every {
+			return nil
+		}
+		defer func() { lastCk = time.Now() }()
+		h := want
+		h.NextFile = next
+		if err := saveCheckpoint(path, h, cells); err != nil {
+			return &outputErr{fmt.Errorf("checkpoint %s: %v", path, err)}
+		}
+		return nil
+	}, func(steps int) {
+		if j.opt.Progress != nil {
+			j.opt.Progress.Add(int64(steps))
+		}
+	})
+	if err != nil {
+		if ctx.Err() != nil {
+			return ctx.Err()
+		}
+		var oe *outputErr
+		if errors.As(err, &oe) {
+			return err
+		}
+		return &InputError{err}
+	}
+	return nil
+}
+
+// runPasses runs restore, stream and fit for every pass. restore gives a
+// pass's states and the first file they lack; saved, if set, is called once
+// a pass is done (a merge copies the states it loaded). A shard fits
+// nothing: its states are its result.
+func (j *job) runPasses(ctx context.Context, restore func(pi int, p [2]int) ([]*cell, int, error), saved func(pi int, p [2]int) error) ([]*cellResult, error) {
+	var results []*cellResult
+	for pi, p := range j.passes {
+		ts := time.Now()
+		cells, from, err := restore(pi, p)
+		if err != nil {
+			return nil, err
+		}
+		if err := j.stream(ctx, pi, p, cells, from); err != nil {
+			return nil, err
+		}
+		j.mark("stream_s", ts)
+		if j.opt.Shard == nil {
+			ts = time.Now()
+			res, err := j.eng.finishAll(ctx, p[0], cells, j.acfg, j.workers, j.opt.Progress)
+			if err != nil {
+				return nil, err
+			}
+			results = append(results, res...)
+			j.mark("fit_s", ts)
+		}
+		if saved != nil {
+			if err := saved(pi, p); err != nil {
+				return nil, err
+			}
+		}
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	return results, nil
+}
+
+// export is the export stage: tables, contours and the manifest, each file
+// written atomically.
+func (j *job) export(results []*cellResult, sums []string) (*Result, error) {
+	ts := time.Now()
+	written, warns, err := j.eng.writeOutputs(j.out, results)
+	if err != nil {
+		return nil, &outputErr{err}
+	}
+	j.mark("export_s", ts)
+	if j.streamed {
+		j.eng.addStreamTimings(j.timings)
+	}
+	m := j.eng.manifest(j.opt.Version, sums, warns, j.timings)
+	if err := export.WriteManifest(filepath.Join(j.out, "manifest.json"), m); err != nil {
+		return nil, &outputErr{err}
+	}
+	written = append(written, "manifest.json")
+	return &Result{OutDir: j.out, Files: written, Cells: j.cat.Grid.NCells(), Steps: j.cat.Steps,
+		Warnings: append(j.cat.Warnings, warns...), Wall: time.Since(j.t0)}, nil
+}
+
+// checksums computes the SHA-256 of the input files in a goroutine of its
+// own, as plain files beside the NetCDF reader. stop cancels it and waits
+// for it; every path out of a run calls it.
+type checksums struct {
+	sums   []string
+	err    error
+	done   chan struct{}
+	cancel context.CancelFunc
+	once   sync.Once
+}
+
+func startChecksums(ctx context.Context, files []ingest.FileInfo) *checksums {
+	ctx, cancel := context.WithCancel(ctx)
+	c := &checksums{sums: make([]string, len(files)), done: make(chan struct{}), cancel: cancel}
+	go func() {
+		defer close(c.done)
+		for i, f := range files {
+			s, err := sha256File(ctx, f.Path)
+			if err != nil {
+				c.err = err
+				return
+			}
+			c.sums[i] = s
+		}
+	}()
+	return c
+}
+
+// wait returns the checksums once all are known.
+func (c *checksums) wait() ([]string, error) {
+	<-c.done
+	if c.err != nil {
+		return nil, c.err
+	}
+	return c.sums, nil
+}
+
+// stop cancels the checksums and waits for the goroutine to end.
+func (c *checksums) stop() {
+	c.once.Do(c.cancel)
+	<-c.done
+}
+
+// sha256File is the hex SHA-256 of a file's bytes; it gives up with the
+// context's error when ctx is cancelled.
+func sha256File(ctx context.Context, path string) (string, error) {
+	if err := ctx.Err(); err != nil {
+		return "", err
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return "", fmt.Errorf("checksum of %s: %w", path, err)
+	}
+	defer f.Close()
+	h := sha256.New()
+	buf := make([]byte, 1<<20)
+	for {
+		if err := ctx.Err(); err != nil {
+			return "", err
+		}
+		n, err := f.Read(buf)
+		h.Write(buf[:n])
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return "", fmt.Errorf("checksum of %s: %w", path, err)
+		}
+	}
+	return hex.EncodeToString(h.Sum(nil)), nil
+}
