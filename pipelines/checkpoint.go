@@ -3,6 +3,7 @@ package pipelines
 import (
 	"bufio"
 	"bytes"
+	"crypto/sha256"
 	"encoding/binary"
 	"encoding/json"
 	"errors"
@@ -10,9 +11,6 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"strconv"
-	"strings"
-	"syscall"
 
 	"swellgrid/export"
 	"swellgrid/ingest"
@@ -21,7 +19,7 @@ import (
 // stateDir is the run directory's folder for checkpoints and the lock.
 const stateDir = ".swellgrid"
 
-var ckMagic = []byte("SWGCKPT1")
+var ckMagic = []byte("SWGCKPT2")
 
 // inputID identifies one input file for resuming: a checkpoint is only
 // resumed over the same files, unchanged.
@@ -37,6 +35,11 @@ type ckHeader struct {
 	C0          int       `json:"c0"`
 	C1          int       `json:"c1"`
 	NextFile    int       `json:"next_file"`
+	// Spec is what the fingerprint hashes (the settings and the named
+	// files' checksums), so that a refusal can name what changed.
+	Spec json.RawMessage `json:"fingerprinted,omitempty"`
+
+	spec *Spec // the spec now (wanted headers only)
 }
 
 func inputIDs(cat *ingest.Catalog) ([]inputID, error) {
@@ -44,7 +47,7 @@ func inputIDs(cat *ingest.Catalog) ([]inputID, error) {
 	for i, f := range cat.Files {
 		st, err := os.Stat(f.Path)
 		if err != nil {
-			return nil, fmt.Errorf("input %s: %v", f.Path, err)
+			return nil, fmt.Errorf("input %s: %w", f.Path, err)
 		}
 		out[i] = inputID{Path: f.Path, Size: st.Size(), MTime: st.ModTime().UnixNano()}
 	}
@@ -55,10 +58,24 @@ func ckPath(out string, c0, c1 int) string {
 	return filepath.Join(out, stateDir, fmt.Sprintf("pass-%d-%d.ckpt", c0, c1))
 }
 
-// saveCheckpoint writes the states of cells c0..c1-1 atomically.
+// A checkpoint (and a shard's state file, which is the same) is
+//
+//	magic "SWGCKPT2" | header (JSON, length-prefixed) | per cell: flag byte,
+//	then the climate, extremes and spectral states (length-prefixed)
+//	| SHA-256 of every byte before it (32 bytes)
+//
+// so that any damage (a flipped byte, a truncation) is found before a state
+// is used: a damaged file is refused, never loaded.
+
+// sealSize is the length of the checksum that ends a state file.
+const sealSize = sha256.Size
+
+// saveCheckpoint writes the states of cells c0..c1-1 atomically, sealed by
+// the SHA-256 of its content.
 func saveCheckpoint(path string, h ckHeader, cells []*cell) error {
 	return export.WriteFileAtomic(path, func(w io.Writer) error {
-		bw := bufio.NewWriterSize(w, 1<<20)
+		sum := sha256.New()
+		bw := bufio.NewWriterSize(io.MultiWriter(w, sum), 1<<20)
 		hb, _ := json.Marshal(h)
 		bw.Write(ckMagic)
 		writeBytes(bw, hb)
@@ -84,8 +101,63 @@ func saveCheckpoint(path string, h ckHeader, cells []*cell) error {
 			}
 			writeBytes(bw, sp)
 		}
-		return bw.Flush()
+		if err := bw.Flush(); err != nil {
+			return err
+		}
+		_, err := w.Write(sum.Sum(nil))
+		return err
 	})
+}
+
+// damagedState is a state file whose content does not match its seal, or
+// that cannot be parsed although it does.
+type damagedState struct{ path, why string }
+
+func (e *damagedState) Error() string {
+	return fmt.Sprintf("the saved state %s is damaged (%s), so it is not used; rerun with --restart to start over (a shard: rerun it with --restart)", e.path, e.why)
+}
+
+// openSealed opens a state file and checks its seal; it returns a reader
+// of the content before the seal.
+func openSealed(path string) (*bufio.Reader, *os.File, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	st, err := f.Stat()
+	if err != nil {
+		f.Close()
+		return nil, nil, err
+	}
+	n := st.Size() - sealSize
+	if n < int64(len(ckMagic)) {
+		f.Close()
+		return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("truncated: %d bytes", st.Size())})
+	}
+	m := make([]byte, len(ckMagic))
+	if _, err := io.ReadFull(f, m); err != nil || !bytes.Equal(m, ckMagic) {
+		f.Close()
+		if bytes.HasPrefix(m, []byte("SWGCKPT")) {
+			return nil, nil, inputErr(&damagedState{path, "not written by this version of swellgrid, or its first bytes are altered"})
+		}
+		return nil, nil, inputErr(&damagedState{path, "not a swellgrid state file"})
+	}
+	sum := sha256.New()
+	sum.Write(m)
+	if _, err := io.CopyN(sum, f, n-int64(len(m))); err != nil {
+		f.Close()
+		return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cannot be read: %v", err)})
+	}
+	seal := make([]byte, sealSize)
+	if _, err := io.ReadFull(f, seal); err != nil || !bytes.Equal(seal, sum.Sum(nil)) {
+		f.Close()
+		return nil, nil, inputErr(&damagedState{path, "its SHA-256 does not match its content: truncated or altered"})
+	}
+	if _, err := f.Seek(int64(len(m)), io.SeekStart); err != nil {
+		f.Close()
+		return nil, nil, err
+	}
+	return bufio.NewReaderSize(io.LimitReader(f, n-int64(len(m))), 1<<20), f, nil
 }
 
 func writeBytes(w *bufio.Writer, b []byte) {
@@ -109,39 +181,31 @@ func readBytes(r *bufio.Reader) ([]byte, error) {
 	return b, err
 }
 
+// readCkHeader opens a state file, checks its seal and reads its header;
+// the reader is left at the first cell.
 func readCkHeader(path string) (*ckHeader, *bufio.Reader, *os.File, error) {
-	f, err := os.Open(path)
+	r, f, err := openSealed(path)
 	if err != nil {
 		return nil, nil, nil, err
-	}
-	r := bufio.NewReaderSize(f, 1<<20)
-	m := make([]byte, len(ckMagic))
-	if _, err := io.ReadFull(r, m); err != nil || !bytes.Equal(m, ckMagic) {
-		f.Close()
-		return nil, nil, nil, fmt.Errorf("checkpoint %s is not a swellgrid checkpoint", path)
 	}
 	hb, err := readBytes(r)
 	if err != nil {
 		f.Close()
-		return nil, nil, nil, fmt.Errorf("checkpoint %s: %v", path, err)
+		return nil, nil, nil, inputErr(&damagedState{path, fmt.Sprintf("header: %v", err)})
 	}
 	var h ckHeader
 	if err := json.Unmarshal(hb, &h); err != nil {
 		f.Close()
-		return nil, nil, nil, fmt.Errorf("checkpoint %s: %v", path, err)
+		return nil, nil, nil, inputErr(&damagedState{path, fmt.Sprintf("header: %v", err)})
 	}
 	return &h, r, f, nil
 }
 
-// loadCheckpoint restores the states of a pass; newCell makes an empty state
-// for a cell id (it carries the configuration and the depth kernel).
-func loadCheckpoint(path string, want ckHeader, newCell func(id int) *cell) ([]*cell, int, error) {
-	return loadCheckpointTrusting(path, want, 0, newCell)
-}
-
-// loadCheckpointTrusting is loadCheckpoint where the first trusted inputs have
-// already been verified by content (size and SHA-256, by an update or a
-// merge), so their modification times are not compared.
+// loadCheckpointTrusting restores the states of a pass; newCell makes an
+// empty state for a cell id (it carries the configuration and the depth
+// kernel). The first trusted inputs have already been verified by content
+// (size and SHA-256, by an update or a merge), so their modification times
+// are not compared.
 func loadCheckpointTrusting(path string, want ckHeader, trusted int, newCell func(id int) *cell) ([]*cell, int, error) {
 	h, r, f, err := readCkHeader(path)
 	if err != nil {
@@ -149,42 +213,48 @@ func loadCheckpointTrusting(path string, want ckHeader, trusted int, newCell fun
 	}
 	defer f.Close()
 	if why := h.mismatch(want, trusted); why != "" {
-		return nil, 0, &resumeRefused{path: path, why: why}
+		return nil, 0, inputErr(&resumeRefused{path: path, why: why})
 	}
 	cells := make([]*cell, h.C1-h.C0)
 	for i := range cells {
 		flag, err := r.ReadByte()
 		if err != nil {
-			return nil, 0, fmt.Errorf("checkpoint %s: truncated: %v", path, err)
+			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 		}
 		if flag == 0 {
 			continue
 		}
+		if flag != 1 {
+			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: flag byte %d", h.C0+i, flag)})
+		}
 		c := newCell(h.C0 + i)
 		a, err := readBytes(r)
 		if err != nil {
-			return nil, 0, fmt.Errorf("checkpoint %s: truncated: %v", path, err)
+			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 		}
 		b, err := readBytes(r)
 		if err != nil {
-			return nil, 0, fmt.Errorf("checkpoint %s: truncated: %v", path, err)
+			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 		}
 		if err := c.clim.UnmarshalBinary(a); err != nil {
-			return nil, 0, fmt.Errorf("checkpoint %s: cell %d: %v", path, h.C0+i, err)
+			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 		}
 		if err := c.col.UnmarshalBinary(b); err != nil {
-			return nil, 0, fmt.Errorf("checkpoint %s: cell %d: %v", path, h.C0+i, err)
+			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 		}
 		sp, err := readBytes(r)
 		if err != nil {
-			return nil, 0, fmt.Errorf("checkpoint %s: truncated: %v", path, err)
+			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 		}
 		if c.spec != nil {
 			if err := c.spec.UnmarshalBinary(sp); err != nil {
-				return nil, 0, fmt.Errorf("checkpoint %s: cell %d: %v", path, h.C0+i, err)
+				return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 			}
 		}
 		cells[i] = c
+	}
+	if _, err := r.ReadByte(); err != io.EOF {
+		return nil, 0, inputErr(&damagedState{path, "data beyond the last cell"})
 	}
 	return cells, h.NextFile, nil
 }
@@ -198,7 +268,7 @@ func (e *resumeRefused) Error() string {
 
 func (h *ckHeader) mismatch(w ckHeader, trusted int) string {
 	if h.Fingerprint != w.Fingerprint {
-		return "the spec changed since the checkpoint was written"
+		return "the spec changed since the checkpoint was written (" + fingerprintChanges(h.Spec, w.spec) + ")"
 	}
 	if h.C0 != w.C0 || h.C1 != w.C1 {
 		return "the cell range changed"
@@ -216,40 +286,6 @@ func (h *ckHeader) mismatch(w ckHeader, trusted int) string {
 	}
 	return ""
 }
-
-// lockDir takes the run directory's lock: a file holding the pid of the run.
-// A lock whose process is gone is taken over.
-func lockDir(out string) (func(), error) {
-	dir := filepath.Join(out, stateDir)
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return nil, &outputErr{fmt.Errorf("output directory %s: %v", out, err)}
-	}
-	path := filepath.Join(dir, "lock")
-	for attempt := 0; attempt < 2; attempt++ {
-		f, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o644)
-		if err == nil {
-			fmt.Fprintf(f, "%d\n", os.Getpid())
-			f.Close()
-			return func() { os.Remove(path) }, nil
-		}
-		if !os.IsExist(err) {
-			return nil, &outputErr{fmt.Errorf("output directory %s: cannot create lock: %v", out, err)}
-		}
-		b, _ := os.ReadFile(path)
-		pid, perr := strconv.Atoi(strings.TrimSpace(string(b)))
-		if perr == nil && pid > 0 && syscall.Kill(pid, 0) == nil {
-			return nil, &outputErr{fmt.Errorf("output directory %s is in use by another run (pid %d, lock %s); wait for it or choose another --out", out, pid, path)}
-		}
-		os.Remove(path) // stale: its process is gone
-	}
-	return nil, &outputErr{fmt.Errorf("output directory %s: cannot take the lock %s", out, path)}
-}
-
-// outputErr marks failures of the output directory (exit code 4).
-type outputErr struct{ err error }
-
-func (e *outputErr) Error() string { return e.err.Error() }
-func (e *outputErr) Unwrap() error { return e.err }
 
 // removePartials deletes the temporary files (".<name>.partial-*", see
 // export.WriteFileAtomic) that a run killed while writing left in the run

@@ -10,7 +10,6 @@ package pipelines
 import (
 	"bytes"
 	"context"
-	"errors"
 	"os"
 	"path/filepath"
 	"sort"
@@ -313,8 +312,7 @@ func TestUpdateRefusals(t *testing.T) {
 		if err == nil {
 			t.Fatalf("%s: the update was accepted", what)
 		}
-		var ie *InputError
-		if !IsUpdateRefused(err) || !errors.As(err, &ie) {
+		if !IsUpdateRefused(err) || KindOf(err) != BadInput {
 			t.Errorf("%s: got %T %v, want a refused update marked as bad input (exit code 2)", what, err, err)
 		}
 		for _, f := range frag {

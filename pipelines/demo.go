@@ -55,17 +55,17 @@ func Demo(ctx context.Context, dir string, opt Options) (*DemoResult, error) {
 	sc := synth.Demo()
 	hind := filepath.Join(dir, "hindcast")
 	if err := os.MkdirAll(hind, 0o755); err != nil {
-		return nil, &outputErr{fmt.Errorf("demo: %v", err)}
+		return nil, outputError(fmt.Errorf("demo: %w", err))
 	}
 	if opt.Log != nil {
 		opt.Log.Info("demo: writing the synthetic hindcast", "dir", hind, "place", sc.Place, "months", sc.Months)
 	}
 	files, err := sc.Write(hind)
 	if err != nil {
-		return nil, fmt.Errorf("demo: writing the synthetic hindcast: %v", err)
+		return nil, fmt.Errorf("demo: writing the synthetic hindcast: %w", err)
 	}
 	if err := os.WriteFile(filepath.Join(hind, "demo_device.csv"), demoDeviceCSV, 0o644); err != nil {
-		return nil, &outputErr{fmt.Errorf("demo: %v", err)}
+		return nil, outputError(fmt.Errorf("demo: %w", err))
 	}
 	res := &DemoResult{Dir: dir, Hindcast: files}
 	for i, spec := range DemoSpecs(dir) {

@@ -40,19 +40,19 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 		cells, next, err := loadCheckpointTrusting(pt.src, pt.want, len(j.ids), j.eng.newCell)
 		if err != nil {
 			if IsResumeRefused(err) || errors.Is(err, os.ErrNotExist) {
-				return nil, 0, &InputError{fmt.Errorf("merge: shard %d/%d in %s: %v", pt.m.Shard, pt.m.Shards, pt.dir, err)}
+				return nil, 0, inputErr(fmt.Errorf("merge: shard %d/%d in %s: %w", pt.m.Shard, pt.m.Shards, pt.dir, err))
 			}
 			return nil, 0, err
 		}
 		if next != len(j.cat.Files) {
-			return nil, 0, &InputError{fmt.Errorf("merge: shard %d/%d in %s has read %d of %d files; rerun it to finish", pt.m.Shard, pt.m.Shards, pt.dir, next, len(j.cat.Files))}
+			return nil, 0, inputErr(fmt.Errorf("merge: shard %d/%d in %s has read %d of %d files; rerun it to finish", pt.m.Shard, pt.m.Shards, pt.dir, next, len(j.cat.Files)))
 		}
 		return cells, next, nil
 	}
 	saved := func(pi int, p [2]int) error {
 		pt := parts[pi]
 		if err := copyFile(pt.src, ckPath(j.out, p[0], p[1])); err != nil {
-			return &outputErr{fmt.Errorf("merge: saving the states in %s: %v", j.out, err)}
+			return outputError(fmt.Errorf("merge: saving the states in %s: %w", j.out, err))
 		}
 		if pt.lastOfShard {
 			j.log.Info("merged", "dir", pt.dir, "shard", fmt.Sprintf("%d/%d", pt.m.Shard, pt.m.Shards), "cells", pt.m.C1-pt.m.C0)
@@ -64,7 +64,7 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 		return nil, err
 	}
 	if err := removeStaleCheckpoints(j.out, j.passes); err != nil {
-		return nil, &outputErr{err}
+		return nil, outputError(err)
 	}
 	if ctx.Err() != nil {
 		return nil, ctx.Err()
@@ -93,16 +93,16 @@ type mergePart struct {
 func validateMerge(out string, shardDirs []string, opt Options) (*job, []mergePart, error) {
 	t0 := time.Now()
 	if len(shardDirs) == 0 {
-		return nil, nil, &InputError{errors.New("merge: no shard directories given")}
+		return nil, nil, inputErr(errors.New("merge: no shard directories given"))
 	}
 	ms := make([]*ShardManifest, len(shardDirs))
 	for i, d := range shardDirs {
 		if absPath(d) == absPath(out) {
-			return nil, nil, &InputError{fmt.Errorf("merge: the output directory %s is one of the shards; choose another --out", out)}
+			return nil, nil, inputErr(fmt.Errorf("merge: the output directory %s is one of the shards; choose another --out", out))
 		}
 		m, err := readShardManifest(d)
 		if err != nil {
-			return nil, nil, &InputError{err}
+			return nil, nil, inputErr(err)
 		}
 		ms[i] = m
 	}
@@ -112,7 +112,7 @@ func validateMerge(out string, shardDirs []string, opt Options) (*job, []mergePa
 	}
 	sort.SliceStable(order, func(a, b int) bool { return ms[order[a]].Shard < ms[order[b]].Shard })
 	if why := shardsBelongTogether(shardDirs, ms, order); why != "" {
-		return nil, nil, &InputError{errors.New("merge: " + why)}
+		return nil, nil, inputErr(errors.New("merge: " + why))
 	}
 	first := ms[order[0]]
 	spec := *first.Spec
@@ -124,27 +124,27 @@ func validateMerge(out string, shardDirs []string, opt Options) (*job, []mergePa
 		spec.Run.MemoryLimit = DefaultSpec().Run.MemoryLimit
 	}
 	if err := spec.Validate(); err != nil {
-		return nil, nil, &InputError{fmt.Errorf("merge: the shards' spec: %v", err)}
+		return nil, nil, inputErr(fmt.Errorf("merge: the shards' spec: %w", err))
 	}
 	if fp := spec.Fingerprint(); fp != first.Fingerprint {
-		return nil, nil, &InputError{fmt.Errorf("merge: the spec recorded in %s does not reproduce its fingerprint (software version %s); rerun the shards with this version", filepath.Join(shardDirs[order[0]], shardFile), first.Version)}
+		return nil, nil, inputErr(fmt.Errorf("merge: the spec recorded in %s does not reproduce its fingerprint (software version %s); rerun the shards with this version", filepath.Join(shardDirs[order[0]], shardFile), first.Version))
 	}
 	ts := time.Now()
 	cat, err := openCatalog(&spec)
 	if err != nil {
-		return nil, nil, &InputError{fmt.Errorf("merge: the shards' inputs: %w", err)}
+		return nil, nil, inputErr(fmt.Errorf("merge: the shards' inputs: %w", err))
 	}
 	if len(cat.Files) != len(first.Inputs) {
-		return nil, nil, &InputError{fmt.Errorf("merge: the shards read %d input files, the inputs %v hold %d now; merge before adding files, then use run --update", len(first.Inputs), spec.Input.Paths, len(cat.Files))}
+		return nil, nil, inputErr(fmt.Errorf("merge: the shards read %d input files, the inputs %v hold %d now; merge before adding files, then use run --update", len(first.Inputs), spec.Input.Paths, len(cat.Files)))
 	}
 	for i, f := range cat.Files {
 		in := first.Inputs[i]
 		if absPath(f.Path) != in.Path || f.Size != in.Size {
-			return nil, nil, &InputError{fmt.Errorf("merge: input %s changed since the shards ran (the shards read %s, %d bytes); rerun the shards", f.Path, in.Path, in.Size)}
+			return nil, nil, inputErr(fmt.Errorf("merge: input %s changed since the shards ran (the shards read %s, %d bytes); rerun the shards", f.Path, in.Path, in.Size))
 		}
 	}
 	if first.GridCells != cat.Grid.NCells() {
-		return nil, nil, &InputError{fmt.Errorf("merge: the shards were run on a grid of %d cells, the inputs have %d", first.GridCells, cat.Grid.NCells())}
+		return nil, nil, inputErr(fmt.Errorf("merge: the shards were run on a grid of %d cells, the inputs have %d", first.GridCells, cat.Grid.NCells()))
 	}
 	j, err := newJob(&spec, opt, cat, t0)
 	if err != nil {
@@ -156,12 +156,12 @@ func validateMerge(out string, shardDirs []string, opt Options) (*job, []mergePa
 		dir, m := shardDirs[k], ms[k]
 		for i, p := range m.Passes {
 			pt := mergePart{dir: dir, m: m, p: p, src: ckPath(dir, p[0], p[1]), lastOfShard: i == len(m.Passes)-1,
-				want: ckHeader{Fingerprint: m.Fingerprint, Inputs: j.ids, C0: p[0], C1: p[1]}}
+				want: ckHeader{Fingerprint: m.Fingerprint, Inputs: j.ids, C0: p[0], C1: p[1], spec: j.spec}}
 			// The inputs were matched by path and size to the shard's
 			// manifest above; here their modification times are compared
 			// with those the shard saw (paths may be spelled differently).
 			if why := sameFileTimes(pt.src, j.ids); why != "" {
-				return nil, nil, &InputError{fmt.Errorf("merge: shard %d/%d in %s: %s; rerun the shards", m.Shard, m.Shards, dir, why)}
+				return nil, nil, inputErr(fmt.Errorf("merge: shard %d/%d in %s: %s; rerun the shards", m.Shard, m.Shards, dir, why))
 			}
 			parts = append(parts, pt)
 			j.passes = append(j.passes, p)

@@ -1,12 +1,12 @@
 package pipelines
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
 	"log/slog"
 	"math"
-	"os"
 	"sort"
 	"sync"
 	"time"
@@ -43,19 +43,6 @@ type Result struct {
 	Steps    int
 	Warnings []string
 	Wall     time.Duration
-}
-
-// InputError marks bad input or a bad spec (exit code 2).
-type InputError struct{ Err error }
-
-func (e *InputError) Error() string { return e.Err.Error() }
-func (e *InputError) Unwrap() error { return e.Err }
-
-// IsOutputError reports whether err concerns the output directory (locked,
-// not writable; exit code 4).
-func IsOutputError(err error) bool {
-	var o *outputErr
-	return errors.As(err, &o)
 }
 
 // IsResumeRefused reports whether err is a refused resume (exit code 2).
@@ -139,15 +126,15 @@ func (s *Spec) climateConfig(cal ingest.Calendar) (*climate.Config, error) {
 	c.WindowLimitsM = append([]float64(nil), s.Statistics.WindowLimitsM...)
 	c.WindowDurationsH = append([]float64(nil), s.Statistics.WindowDurationsH...)
 	c.CoverageMin = s.Statistics.CoverageMin
-	for _, d := range s.Devices {
-		f, err := os.Open(d.PowerMatrix)
-		if err != nil {
-			return nil, fmt.Errorf("device %s: %v", d.Name, err)
+	for i, d := range s.Devices {
+		// The bytes Validate read (bounded) and fingerprinted.
+		b, ok := s.namedData(fmt.Sprintf("device[%d].power_matrix", i))
+		if !ok {
+			return nil, fmt.Errorf("device %s: power matrix %s: not read; validate the spec first", d.Name, d.PowerMatrix)
 		}
-		dev, err := climate.ReadPowerMatrixCSV(f, d.Name)
-		f.Close()
+		dev, err := climate.ReadPowerMatrixCSV(bytes.NewReader(b), d.Name)
 		if err != nil {
-			return nil, fmt.Errorf("device %s: power matrix %s: %v", d.Name, d.PowerMatrix, err)
+			return nil, fmt.Errorf("device %s: power matrix %s: %w", d.Name, d.PowerMatrix, err)
 		}
 		if d.Lookup == "bilinear" {
 			dev.Lookup = climate.Bilinear
@@ -164,7 +151,7 @@ func (s *Spec) analysisConfig(years float64) extremes.AnalysisConfig {
 	a := extremes.AnalysisConfig{ReturnPeriods: s.Extremes.ReturnPeriodsY, MinYears: s.Extremes.MinYears,
 		Threshold: extremes.ThresholdPeaksPerYear, TargetPeaksPerYear: s.Extremes.PeaksPerYear}
 	if s.Extremes.Bootstrap > 0 {
-		a.Bootstrap = extremes.Bootstrap{N: s.Extremes.Bootstrap, Seed: s.Extremes.Seed}
+		a.Bootstrap = extremes.Bootstrap{N: s.Extremes.Bootstrap, Seed: uint64(s.Extremes.Seed)}
 	}
 	return a
 }
@@ -192,10 +179,10 @@ func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
 			if ctx.Err() != nil {
 				return nil, ctx.Err()
 			}
-			return nil, &InputError{err}
+			return nil, inputErr(err)
 		}
 		if why := inputContentChanges(j.update.prior, j.cat, s); why != "" {
-			return nil, &InputError{&updateRefused{j.out, why}}
+			return nil, inputErr(&updateRefused{j.out, why})
 		}
 		trusted = j.update.earlier
 		j.log.Info("update", "earlier_files", j.update.earlier, "new_files", len(j.cat.Files)-j.update.earlier)
@@ -210,10 +197,10 @@ func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
 		if ctx.Err() != nil {
 			return nil, ctx.Err()
 		}
-		return nil, &InputError{err}
+		return nil, inputErr(err)
 	}
 	if err := removeStaleCheckpoints(j.out, j.passes); err != nil {
-		return nil, &outputErr{err}
+		return nil, outputError(err)
 	}
 	if j.opt.Shard != nil {
 		return writeShard(j.out, spec, j.cat, *j.opt.Shard, j.lo, j.hi, j.passes, s, opt.Version, j.t0)

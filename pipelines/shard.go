@@ -99,7 +99,7 @@ func writeShard(out string, spec *Spec, cat *ingest.Catalog, sh Shard, c0, c1 in
 		_, err := w.Write(append(b, '\n'))
 		return err
 	}); err != nil {
-		return nil, &outputErr{fmt.Errorf("writing %s: %v", path, err)}
+		return nil, outputError(fmt.Errorf("writing %s: %w", path, err))
 	}
 	return &Result{OutDir: out, Files: []string{shardFile}, Cells: c1 - c0, Steps: cat.Steps, Warnings: cat.Warnings, Wall: time.Since(t0)}, nil
 }
@@ -116,7 +116,7 @@ func readShardManifest(dir string) (*ShardManifest, error) {
 	}
 	var m ShardManifest
 	if err := json.Unmarshal(b, &m); err != nil {
-		return nil, fmt.Errorf("%s: %v", path, err)
+		return nil, fmt.Errorf("%s: %w", path, err)
 	}
 	if m.Spec == nil || m.Shards < 1 {
 		return nil, fmt.Errorf("%s: not a swellgrid shard manifest", path)
@@ -198,7 +198,7 @@ func removeStaleCheckpoints(dir string, passes [][2]int) error {
 	for _, p := range paths {
 		if !keep[p] {
 			if err := os.Remove(p); err != nil {
-				return fmt.Errorf("removing the stale checkpoint %s: %v", p, err)
+				return fmt.Errorf("removing the stale checkpoint %s: %w", p, err)
 			}
 		}
 	}

@@ -38,28 +38,28 @@ type SlurmScripts struct {
 // writes the two job scripts. Every path in them is absolute.
 func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 	if j.SpecFile == "" {
-		return nil, &InputError{fmt.Errorf("cluster slurm: give --spec FILE: the array tasks and the merge job all read the same spec")}
+		return nil, inputErr(fmt.Errorf("cluster slurm: give --spec FILE: the array tasks and the merge job all read the same spec"))
 	}
 	specFile := absPath(j.SpecFile)
 	spec, err := LoadSpec(specFile)
 	if err != nil {
-		return nil, &InputError{err}
+		return nil, inputErr(err)
 	}
 	if j.Out != "" {
 		spec.Output.Dir = j.Out
 	}
 	if err := spec.Validate(); err != nil {
-		return nil, &InputError{err}
+		return nil, inputErr(err)
 	}
 	if j.Shards < 1 {
-		return nil, &InputError{fmt.Errorf("cluster slurm: --shards %d: give at least 1 shard", j.Shards)}
+		return nil, inputErr(fmt.Errorf("cluster slurm: --shards %d: give at least 1 shard", j.Shards))
 	}
 	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
 	if err != nil {
-		return nil, &InputError{err}
+		return nil, inputErr(err)
 	}
 	if _, _, err := (Shard{Index: 1, Count: j.Shards}).Cells(cat.Grid); err != nil {
-		return nil, &InputError{fmt.Errorf("cluster slurm: --shards %d: %v", j.Shards, err)}
+		return nil, inputErr(fmt.Errorf("cluster slurm: --shards %d: %w", j.Shards, err))
 	}
 	mem := ""
 	if j.Mem != "" {
@@ -69,7 +69,7 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 			mem += "M"
 		}
 		if _, err := ParseSize(mem); err != nil {
-			return nil, &InputError{fmt.Errorf("cluster slurm: --mem %q: %v", j.Mem, err)}
+			return nil, inputErr(fmt.Errorf("cluster slurm: --mem %q: %w", j.Mem, err))
 		}
 	}
 	cpus := j.CPUs
@@ -79,7 +79,7 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 	bin := j.Binary
 	if bin == "" {
 		if bin, err = os.Executable(); err != nil {
-			return nil, fmt.Errorf("cluster slurm: cannot find this executable (%v); give --binary", err)
+			return nil, fmt.Errorf("cluster slurm: cannot find this executable (%w); give --binary", err)
 		}
 	}
 	bin = absPath(bin)
@@ -91,10 +91,10 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 	sdir = absPath(sdir)
 	shardRoot := filepath.Join(out, stateDir, "shards")
 	if err := os.MkdirAll(sdir, 0o755); err != nil {
-		return nil, &outputErr{fmt.Errorf("cluster slurm: script directory %s: %v", sdir, err)}
+		return nil, outputError(fmt.Errorf("cluster slurm: script directory %s: %w", sdir, err))
 	}
 	if err := os.MkdirAll(shardRoot, 0o755); err != nil {
-		return nil, &outputErr{fmt.Errorf("cluster slurm: shard directory %s: %v", shardRoot, err)}
+		return nil, outputError(fmt.Errorf("cluster slurm: shard directory %s: %w", shardRoot, err))
 	}
 	cwd, _ := os.Getwd()
 	res := &SlurmScripts{ArrayScript: filepath.Join(sdir, "shards.sbatch"), MergeScript: filepath.Join(sdir, "merge.sbatch"), Out: out}
@@ -139,7 +139,7 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 		fmt.Sprintf("exec %s merge --out %s --workers \"${SLURM_CPUS_PER_TASK:-%d}\" %s\n", shQuote(bin), shQuote(out), cpus, strings.Join(dirs, " "))
 	for _, f := range [][2]string{{res.ArrayScript, array}, {res.MergeScript, merge}} {
 		if err := os.WriteFile(f[0], []byte(f[1]), 0o755); err != nil {
-			return nil, &outputErr{fmt.Errorf("cluster slurm: %v", err)}
+			return nil, outputError(fmt.Errorf("cluster slurm: %w", err))
 		}
 	}
 	return res, nil
@@ -152,7 +152,7 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 func SubmitSlurm(ctx context.Context, s *SlurmScripts) (arrayID, mergeID string, err error) {
 	sbatch, err := exec.LookPath("sbatch")
 	if err != nil {
-		return "", "", fmt.Errorf("cluster slurm --submit: sbatch is not on PATH (%v); run on a Slurm login node, or submit the scripts yourself: sbatch %s, then sbatch --dependency=afterok:<job id> %s", err, s.ArrayScript, s.MergeScript)
+		return "", "", fmt.Errorf("cluster slurm --submit: sbatch is not on PATH (%w); run on a Slurm login node, or submit the scripts yourself: sbatch %s, then sbatch --dependency=afterok:<job id> %s", err, s.ArrayScript, s.MergeScript)
 	}
 	submit := func(args ...string) (string, error) {
 		cmd := exec.CommandContext(ctx, sbatch, append([]string{"--parsable"}, args...)...)
@@ -160,7 +160,7 @@ func SubmitSlurm(ctx context.Context, s *SlurmScripts) (arrayID, mergeID string,
 		cmd.Stderr = &stderr
 		b, err := cmd.Output()
 		if err != nil {
-			return "", fmt.Errorf("sbatch %s: %v: %s", strings.Join(args, " "), err, strings.TrimSpace(stderr.String()))
+			return "", fmt.Errorf("sbatch %s: %w: %s", strings.Join(args, " "), err, strings.TrimSpace(stderr.String()))
 		}
 		id, _, _ := strings.Cut(strings.TrimSpace(string(b)), ";") // "id" or "id;cluster"
 		if _, err := strconv.Atoi(id); err != nil {
@@ -172,7 +172,7 @@ func SubmitSlurm(ctx context.Context, s *SlurmScripts) (arrayID, mergeID string,
 		return "", "", err
 	}
 	if mergeID, err = submit("--dependency=afterok:"+arrayID, s.MergeScript); err != nil {
-		return arrayID, "", fmt.Errorf("%v (the array job %s was submitted; cancel it with scancel %s or submit the merge yourself)", err, arrayID, arrayID)
+		return arrayID, "", fmt.Errorf("%w (the array job %s was submitted; cancel it with scancel %s or submit the merge yourself)", err, arrayID, arrayID)
 	}
 	return arrayID, mergeID, nil
 }

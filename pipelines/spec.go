@@ -6,9 +6,11 @@ import (
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"sort"
 	"strconv"
 	"strings"
@@ -33,6 +35,18 @@ type Spec struct {
 	Run        RunSpec           `toml:"run" json:"run"`
 
 	dir string // directory of the spec file: relative paths are relative to it
+	// named are the files the spec names (power matrices, bathymetry) with
+	// their content, read by Validate: their SHA-256 is in the fingerprint
+	// and the power matrices are parsed from these bytes.
+	named []namedFile
+}
+
+// namedFile is a file a spec names, by its key, with its content's SHA-256.
+type namedFile struct {
+	Key    string `json:"key"`
+	Path   string `json:"path"`
+	SHA256 string `json:"sha256"`
+	data   []byte // power matrices only
 }
 
 // InputSpec names the hindcast.
@@ -84,7 +98,7 @@ type ExtremesSpec struct {
 	PeaksPerYear      float64   `toml:"peaks_per_year" json:"peaks_per_year"`
 	MinYears          int       `toml:"min_years" json:"min_years"`
 	Bootstrap         int       `toml:"bootstrap" json:"bootstrap"`
-	Seed              uint64    `toml:"seed" json:"seed"`
+	Seed              int64     `toml:"seed" json:"seed"`
 }
 
 // DeviceSpec names a device power matrix.
@@ -135,7 +149,7 @@ func DefaultSpec() *Spec {
 func LoadSpec(path string) (*Spec, error) {
 	raw, err := os.ReadFile(path)
 	if err != nil {
-		return nil, fmt.Errorf("spec: %v", err)
+		return nil, inputErr(fmt.Errorf("spec: %w", err))
 	}
 	return ParseSpec(raw, path)
 }
@@ -146,16 +160,19 @@ func ParseSpec(data []byte, path string) (*Spec, error) {
 	s := DefaultSpec()
 	md, err := toml.Decode(string(data), s)
 	if err != nil {
-		return nil, fmt.Errorf("spec %s: %v", path, err)
+		return nil, inputErr(fmt.Errorf("spec %s: %w", path, err))
 	}
 	if und := md.Undecoded(); len(und) > 0 {
 		keys := make([]string, len(und))
 		for i, k := range und {
 			keys[i] = k.String()
 		}
-		return nil, fmt.Errorf("spec %s: unknown key %s; see the README's run spec section for the keys", path, strings.Join(keys, ", "))
+		return nil, inputErr(fmt.Errorf("spec %s: unknown key %s; see the README's run spec section for the keys", path, strings.Join(keys, ", ")))
 	}
 	s.dir = filepath.Dir(path)
+	if md.IsDefined("output", "dir") {
+		s.Output.Dir = s.resolve(s.Output.Dir)
+	}
 	for i, p := range s.Input.Paths {
 		s.Input.Paths[i] = s.resolve(p)
 	}
@@ -209,6 +226,21 @@ func (s *Spec) Validate() error {
 	if !(st.Hm0BinM > 0 && st.Hm0BinM <= 1) {
 		return bad("statistics.hm0_bin_m", "must lie in (0, 1] m", st.Hm0BinM)
 	}
+	for _, l := range []struct {
+		key string
+		n   int
+	}{{"statistics.percentiles", len(st.Percentiles)}, {"statistics.window_limits_m", len(st.WindowLimitsM)},
+		{"statistics.window_durations_h", len(st.WindowDurationsH)}, {"extremes.return_periods_y", len(s.Extremes.ReturnPeriodsY)},
+		{"device", len(s.Devices)}, {"contours.columns", len(s.Contours.Columns)}} {
+		if err := withinLimit(l.key, l.n); err != nil {
+			return err
+		}
+	}
+	for _, col := range keys(s.Contours.Levels) {
+		if err := withinLimit("contours.levels."+col, len(s.Contours.Levels[col])); err != nil {
+			return err
+		}
+	}
 	if err := increasing("statistics.percentiles", st.Percentiles, 0, 100); err != nil {
 		return err
 	}
@@ -252,19 +284,19 @@ func (s *Spec) Validate() error {
 	if ex.Bootstrap < 0 || ex.Bootstrap > 10000 {
 		return bad("extremes.bootstrap", "must lie in 0..10000", ex.Bootstrap)
 	}
+	if ex.Seed < 0 {
+		return bad("extremes.seed", "must be 0 or a positive integer (it seeds the bootstrap)", ex.Seed)
+	}
 	names := map[string]bool{}
 	for i, d := range s.Devices {
 		key := fmt.Sprintf("device[%d]", i)
-		if d.Name == "" || strings.ContainsAny(d.Name, " /\\.\"") {
-			return bad(key+".name", "must be a short name without spaces, dots or slashes (it names columns)", strconv.Quote(d.Name))
+		if !deviceName.MatchString(d.Name) {
+			return bad(key+".name", fmt.Sprintf("must be lower-case letters, digits and _, starting with a letter, at most %d characters (it names columns)", maxDeviceName), strconv.Quote(d.Name))
 		}
 		if names[d.Name] {
 			return bad(key+".name", "appears twice", d.Name)
 		}
 		names[d.Name] = true
-		if _, err := os.Stat(d.PowerMatrix); err != nil {
-			return bad(key+".power_matrix", "cannot be read: "+err.Error(), strconv.Quote(d.PowerMatrix))
-		}
 		if d.Lookup != "" && d.Lookup != "bin" && d.Lookup != "bilinear" {
 			return bad(key+".lookup", `must be "bin" or "bilinear"`, strconv.Quote(d.Lookup))
 		}
@@ -289,7 +321,124 @@ func (s *Spec) Validate() error {
 	if s.Run.BlockSteps < 0 {
 		return bad("run.block_steps", "must be positive", s.Run.BlockSteps)
 	}
+	return s.readNamedFiles()
+}
+
+// Limits of the spec: lists longer than these are refused (each entry adds
+// columns or rows to every cell, or work to every step).
+const (
+	maxListLen        = 64      // percentiles, periods, window limits and durations, devices, contour columns and levels
+	maxDeviceName     = 40      // characters
+	maxMatrixBytes    = 1 << 20 // a power-matrix CSV
+	maxMatrixRows     = 1000    // rows (and cells per row) of a power matrix
+	maxNamedFileBytes = 1 << 34 // a bathymetry file (16 GiB), hashed only
+)
+
+var deviceName = regexp.MustCompile(fmt.Sprintf(`^[a-z][a-z0-9_]{0,%d}$`, maxDeviceName-1))
+
+func withinLimit(key string, n int) error {
+	if n > maxListLen {
+		return fmt.Errorf("spec: %s has %d entries; at most %d are allowed", key, n, maxListLen)
+	}
 	return nil
+}
+
+// readNamedFiles reads every file the spec names (power matrices within
+// their size and row limits, the bathymetry file) and records its SHA-256,
+// so that the fingerprint changes with their content.
+func (s *Spec) readNamedFiles() error {
+	var named []namedFile
+	for i, d := range s.Devices {
+		key := fmt.Sprintf("device[%d].power_matrix", i)
+		b, err := readBounded(d.PowerMatrix, maxMatrixBytes)
+		if err != nil {
+			return fmt.Errorf("spec: %s = %q: %w", key, d.PowerMatrix, err)
+		}
+		if n := bytes.Count(b, []byte("\n")); n > maxMatrixRows {
+			return fmt.Errorf("spec: %s = %q: %d rows; a power matrix may have at most %d rows", key, d.PowerMatrix, n, maxMatrixRows)
+		}
+		for _, line := range bytes.Split(b, []byte("\n")) {
+			if n := bytes.Count(line, []byte(",")) + 1; n > maxMatrixRows {
+				return fmt.Errorf("spec: %s = %q: a row of %d cells; a power matrix may have at most %d per row", key, d.PowerMatrix, n, maxMatrixRows)
+			}
+		}
+		h := sha256.Sum256(b)
+		named = append(named, namedFile{Key: key, Path: d.PowerMatrix, SHA256: hex.EncodeToString(h[:]), data: b})
+	}
+	if s.Depth.Source == "bathymetry" {
+		key := "depth.bathymetry_file"
+		sum, err := hashBounded(s.Depth.BathymetryFile, maxNamedFileBytes)
+		if err != nil {
+			return fmt.Errorf("spec: %s = %q: %w", key, s.Depth.BathymetryFile, err)
+		}
+		named = append(named, namedFile{Key: key, Path: s.Depth.BathymetryFile, SHA256: sum})
+	}
+	s.named = named
+	return nil
+}
+
+// openRegular opens path if it is a regular file of at most limit bytes.
+func openRegular(path string, limit int64) (*os.File, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("cannot be read: %w", err)
+	}
+	st, err := f.Stat()
+	if err != nil {
+		f.Close()
+		return nil, fmt.Errorf("cannot be read: %w", err)
+	}
+	if !st.Mode().IsRegular() {
+		f.Close()
+		return nil, fmt.Errorf("is not a regular file (%s); give a file", st.Mode().Type())
+	}
+	if st.Size() > limit {
+		f.Close()
+		return nil, fmt.Errorf("is %d bytes; the limit is %d bytes", st.Size(), limit)
+	}
+	return f, nil
+}
+
+// readBounded reads a regular file of at most limit bytes (checked while
+// reading too: the file may grow).
+func readBounded(path string, limit int64) ([]byte, error) {
+	f, err := openRegular(path, limit)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	b, err := io.ReadAll(io.LimitReader(f, limit+1))
+	if err != nil {
+		return nil, fmt.Errorf("cannot be read: %w", err)
+	}
+	if int64(len(b)) > limit {
+		return nil, fmt.Errorf("is over %d bytes, the limit", limit)
+	}
+	return b, nil
+}
+
+// hashBounded is the SHA-256 of a regular file of at most limit bytes.
+func hashBounded(path string, limit int64) (string, error) {
+	f, err := openRegular(path, limit)
+	if err != nil {
+		return "", err
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, io.LimitReader(f, limit+1)); err != nil {
+		return "", fmt.Errorf("cannot be read: %w", err)
+	}
+	return hex.EncodeToString(h.Sum(nil)), nil
+}
+
+// namedFile returns the content read by Validate of the file under key.
+func (s *Spec) namedData(key string) ([]byte, bool) {
+	for _, n := range s.named {
+		if n.Key == key {
+			return n.data, n.data != nil
+		}
+	}
+	return nil, false
 }
 
 func increasing(key string, v []float64, lo, hi float64) error {
@@ -332,17 +481,50 @@ func ParseSize(s string) (int64, error) {
 }
 
 // Fingerprint is a hash of everything in the spec that changes results (not
-// the run settings nor the output directory): a checkpoint or an update is
-// refused when it differs.
+// the run settings nor the output directory), including the content of the
+// files it names (power matrices, bathymetry: by SHA-256, read by Validate,
+// whatever their path is spelled like): a checkpoint or an update is refused
+// when it differs.
 func (s *Spec) Fingerprint() string {
+	b, _ := json.Marshal(s.fingerprinted())
+	// Maps marshal with sorted keys, so the bytes are stable.
+	h := sha256.Sum256(b)
+	return hex.EncodeToString(h[:])
+}
+
+// fingerprinted is what Fingerprint hashes: the spec's result-changing
+// settings and the named files' checksums by key.
+type fingerprinted struct {
+	Spec  *Spec             `json:"spec"`
+	Files map[string]string `json:"files,omitempty"`
+}
+
+func (s *Spec) fingerprinted() fingerprinted {
 	c := *s
 	c.Output = OutputSpec{}
 	c.Input.Paths = nil // inputs are compared file by file (size, checksum)
 	c.Run = RunSpec{}
-	b, _ := json.Marshal(&c)
-	// Maps marshal with sorted keys, so the bytes are stable.
-	h := sha256.Sum256(b)
-	return hex.EncodeToString(h[:])
+	c.Devices = append([]DeviceSpec(nil), s.Devices...)
+	files := map[string]string{}
+	for _, n := range s.named {
+		files[n.Key] = n.SHA256
+	}
+	for i := range c.Devices {
+		if _, ok := files[fmt.Sprintf("device[%d].power_matrix", i)]; ok {
+			c.Devices[i].PowerMatrix = "" // by content
+		}
+	}
+	if _, ok := files["depth.bathymetry_file"]; ok {
+		c.Depth.BathymetryFile = ""
+	}
+	return fingerprinted{Spec: &c, Files: files}
+}
+
+// fingerprintJSON is what Fingerprint hashes, for a checkpoint's header, so
+// that a refusal can name what changed.
+func (s *Spec) fingerprintJSON() json.RawMessage {
+	b, _ := json.Marshal(s.fingerprinted())
+	return b
 }
 
 // keys returns a map's keys, sorted.
@@ -354,5 +536,3 @@ func keys[V any](m map[string]V) []string {
 	sort.Strings(out)
 	return out
 }
-
-var _ = bytes.Compare

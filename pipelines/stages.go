@@ -69,7 +69,7 @@ func openCatalog(spec *Spec) (*ingest.Catalog, error) {
 	}
 	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
 	if err != nil {
-		return nil, &InputError{err}
+		return nil, inputErr(err)
 	}
 	return cat, nil
 }
@@ -82,22 +82,22 @@ func newJob(spec *Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, e
 		log = slog.New(slog.NewTextHandler(devNull{}, nil))
 	}
 	if cat.DepthSource == "none" {
-		return nil, &InputError{fmt.Errorf("no water depth: the files hold no variable with standard_name sea_floor_depth_below_sea_surface; set depth.source in the spec (\"constant\", \"bathymetry\" or \"deep-water\"), or give --depth METRES or --deep-water")}
+		return nil, inputErr(fmt.Errorf("no water depth: the files hold no variable with standard_name sea_floor_depth_below_sea_surface; set depth.source in the spec (\"constant\", \"bathymetry\" or \"deep-water\"), or give --depth METRES or --deep-water"))
 	}
 	ccfg, err := spec.climateConfig(cat.Calendar)
 	if err != nil {
-		return nil, &InputError{err}
+		return nil, inputErr(err)
 	}
 	eng, err := newEngine(cat, spec, ccfg)
 	if err != nil {
-		return nil, &InputError{err}
+		return nil, inputErr(err)
 	}
 	if err := eng.checkContourColumns(); err != nil {
-		return nil, &InputError{err}
+		return nil, inputErr(err)
 	}
 	ids, err := inputIDs(cat)
 	if err != nil {
-		return nil, &InputError{err}
+		return nil, inputErr(err)
 	}
 	workers := spec.Run.Workers
 	if workers == 0 {
@@ -112,13 +112,13 @@ func newJob(spec *Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, e
 func validateRun(spec *Spec, opt Options) (*job, error) {
 	t0 := time.Now()
 	if err := spec.Validate(); err != nil {
-		return nil, &InputError{err}
+		return nil, inputErr(err)
 	}
 	if err := spec.checkRoles(); err != nil {
-		return nil, &InputError{err}
+		return nil, inputErr(err)
 	}
 	if opt.Update && opt.Restart {
-		return nil, &InputError{errors.New("--update and --restart exclude each other: an update continues the saved states, a restart discards them")}
+		return nil, inputErr(errors.New("--update and --restart exclude each other: an update continues the saved states, a restart discards them"))
 	}
 	ts := time.Now()
 	cat, err := openCatalog(spec)
@@ -132,18 +132,18 @@ func validateRun(spec *Spec, opt Options) (*job, error) {
 	j.mark("catalog_s", ts)
 	if opt.Shard != nil {
 		if j.lo, j.hi, err = opt.Shard.Cells(cat.Grid); err != nil {
-			return nil, &InputError{err}
+			return nil, inputErr(err)
 		}
 	}
 	if j.passes, err = j.eng.plan(j.lo, j.hi); err != nil {
-		return nil, &InputError{err}
+		return nil, inputErr(err)
 	}
 	if opt.Update {
 		// Everything but the earlier files' contents (checked once their
 		// checksums are known, before any state is read).
 		up, err := checkUpdate(j.out, spec, cat, opt.Shard)
 		if err != nil {
-			return nil, &InputError{err}
+			return nil, inputErr(err)
 		}
 		j.update, j.passes = up, up.passes
 		if up.shard != nil {
@@ -157,7 +157,7 @@ func validateRun(spec *Spec, opt Options) (*job, error) {
 // and removes the partial files of a killed run (which no live run owns).
 func (j *job) lock() (func(), error) {
 	if err := os.MkdirAll(j.out, 0o755); err != nil {
-		return nil, &outputErr{fmt.Errorf("output directory %s: %v", j.out, err)}
+		return nil, outputError(fmt.Errorf("output directory %s: %w", j.out, err))
 	}
 	unlock, err := lockDir(j.out)
 	if err != nil {
@@ -178,7 +178,7 @@ func (j *job) restoreOwn(trusted int) func(pi int, p [2]int) ([]*cell, int, erro
 				cells, from, err := loadCheckpointTrusting(path, j.ckWant(p), trusted, j.eng.newCell)
 				if err != nil {
 					if IsResumeRefused(err) {
-						return nil, 0, &InputError{err}
+						return nil, 0, inputErr(err)
 					}
 					return nil, 0, err
 				}
@@ -198,7 +198,7 @@ func (j *job) restoreOwn(trusted int) func(pi int, p [2]int) ([]*cell, int, erro
 
 // ckWant is the checkpoint header of pass p under this job.
 func (j *job) ckWant(p [2]int) ckHeader {
-	return ckHeader{Fingerprint: j.spec.Fingerprint(), Inputs: j.ids, C0: p[0], C1: p[1]}
+	return ckHeader{Fingerprint: j.spec.Fingerprint(), Spec: j.spec.fingerprintJSON(), Inputs: j.ids, C0: p[0], C1: p[1], spec: j.spec}
 }
 
 // stream is the stream stage of one pass: it feeds the files from..end to
@@ -225,7 +225,7 @@ func (j *job) stream(ctx context.Context, pi int, p [2]int, cells []*cell, from 
 		h := want
 		h.NextFile = next
 		if err := saveCheckpoint(path, h, cells); err != nil {
-			return &outputErr{fmt.Errorf("checkpoint %s: %v", path, err)}
+			return outputError(fmt.Errorf("checkpoint %s: %w", path, err))
 		}
 		return nil
 	}, func(steps int) {
@@ -237,11 +237,10 @@ func (j *job) stream(ctx context.Context, pi int, p [2]int, cells []*cell, from 
 		if ctx.Err() != nil {
 			return ctx.Err()
 		}
-		var oe *outputErr
-		if errors.As(err, &oe) {
+		if isOutput(err) {
 			return err
 		}
-		return &InputError{err}
+		return inputErr(err)
 	}
 	return nil
 }
@@ -289,7 +288,7 @@ func (j *job) export(results []*cellResult, sums []string) (*Result, error) {
 	ts := time.Now()
 	written, warns, err := j.eng.writeOutputs(j.out, results)
 	if err != nil {
-		return nil, &outputErr{err}
+		return nil, outputError(err)
 	}
 	j.mark("export_s", ts)
 	if j.streamed {
@@ -297,7 +296,7 @@ func (j *job) export(results []*cellResult, sums []string) (*Result, error) {
 	}
 	m := j.eng.manifest(j.opt.Version, sums, warns, j.timings)
 	if err := export.WriteManifest(filepath.Join(j.out, "manifest.json"), m); err != nil {
-		return nil, &outputErr{err}
+		return nil, outputError(err)
 	}
 	written = append(written, "manifest.json")
 	return &Result{OutDir: j.out, Files: written, Cells: j.cat.Grid.NCells(), Steps: j.cat.Steps,

@@ -71,7 +71,7 @@ func readPriorRun(dir string) (*priorRun, error) {
 		Parameters json.RawMessage `json:"parameters"`
 	}
 	if err := json.Unmarshal(b, &m); err != nil {
-		return nil, fmt.Errorf("%s: %v", path, err)
+		return nil, fmt.Errorf("%s: %w", path, err)
 	}
 	return &priorRun{inputs: m.Inputs, spec: m.Parameters}, nil
 }
@@ -106,7 +106,11 @@ func checkUpdate(dir string, spec *Spec, cat *ingest.Catalog, sh *Shard) (*updat
 	}
 	for _, h := range hs {
 		if h.Fingerprint != fp {
-			return nil, &updateRefused{dir, "the spec changed since the earlier run (" + specChanges(prior.spec, spec) + "); results would mix two specs, so run over all files into a new directory instead"}
+			what := specChanges(prior.spec, spec)
+			if len(h.Spec) > 0 {
+				what = fingerprintChanges(h.Spec, spec)
+			}
+			return nil, &updateRefused{dir, "the spec changed since the earlier run (" + what + "); results would mix two specs, so run over all files into a new directory instead"}
 		}
 		if h.NextFile < len(prior.inputs) {
 			return nil, &updateRefused{dir, fmt.Sprintf("the saved states of cells %d..%d hold only %d of the earlier run's %d files; rerun the earlier run to finish it", h.C0, h.C1-1, h.NextFile, len(prior.inputs))}
@@ -158,6 +162,54 @@ func short(h string) string {
 		return h[:12] + "…"
 	}
 	return h
+}
+
+// fingerprintChanges names what differs between a recorded fingerprinted
+// spec (ckHeader.Spec) and spec: the settings sections, and the files named
+// by the spec whose content changed.
+func fingerprintChanges(prior json.RawMessage, spec *Spec) string {
+	var old struct {
+		Spec  map[string]json.RawMessage `json:"spec"`
+		Files map[string]string          `json:"files"`
+	}
+	if spec == nil || len(prior) == 0 || json.Unmarshal(prior, &old) != nil {
+		return "the earlier settings are not recorded"
+	}
+	now := spec.fingerprinted()
+	b, _ := json.Marshal(now.Spec)
+	sec := map[string]json.RawMessage{}
+	json.Unmarshal(b, &sec)
+	var diff []string
+	for _, k := range keys(sec) {
+		if !bytes.Equal(old.Spec[k], sec[k]) {
+			diff = append(diff, k)
+		}
+	}
+	for _, k := range keys(old.Spec) {
+		if _, ok := sec[k]; !ok {
+			diff = append(diff, k)
+		}
+	}
+	var files []string
+	for _, n := range spec.named {
+		if o, ok := old.Files[n.Key]; !ok || o != n.SHA256 {
+			files = append(files, fmt.Sprintf("the content of %s %s (SHA-256 %s then, %s now)", n.Key, n.Path, short(o), short(n.SHA256)))
+		}
+	}
+	for _, k := range keys(old.Files) {
+		if _, ok := now.Files[k]; !ok {
+			files = append(files, k+" is no longer given")
+		}
+	}
+	var parts []string
+	if len(diff) > 0 {
+		parts = append(parts, "changed settings: "+strings.Join(diff, ", "))
+	}
+	parts = append(parts, files...)
+	if len(parts) == 0 {
+		return "the settings are recorded alike, but the fingerprint differs"
+	}
+	return strings.Join(parts, "; ")
 }
 
 // specChanges names the spec sections that differ between the earlier run's

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"context"
 	"fmt"
 	"os"
 
@@ -39,7 +38,7 @@ a file system the compute nodes share.
 		RunE: func(cmd *cobra.Command, args []string) error {
 			s, err := pipelines.WriteSlurmScripts(j)
 			if err != nil {
-				return mapRunErr(context.Background(), err, "")
+				return err
 			}
 			fmt.Fprintf(os.Stdout, "array job script: %s\nmerge job script: %s\nmerged outputs:   %s\n", s.ArrayScript, s.MergeScript, s.Out)
 			if !submit {
@@ -48,7 +47,7 @@ a file system the compute nodes share.
 			}
 			a, m, err := pipelines.SubmitSlurm(cmd.Context(), s)
 			if err != nil {
-				return &exitErr{1, err}
+				return err
 			}
 			fmt.Fprintf(os.Stdout, "array job %s\nmerge job %s\n", a, m)
 			return nil

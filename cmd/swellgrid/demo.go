@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"log/slog"
 	"os"
@@ -36,15 +35,10 @@ it wrote and which files to open in GIS software.
 			log := slog.New(slog.NewTextHandler(os.Stderr, nil))
 			opt := pipelines.Options{Log: log, Version: Version}
 			opt.Progress = stderrProgress(log)
+			crashDir = out
 			res, err := pipelines.Demo(ctx, out, opt)
 			if err != nil {
-				if ctx.Err() != nil {
-					return &exitErr{3, errors.New("interrupted")}
-				}
-				if pipelines.IsOutputError(err) {
-					return &exitErr{4, err}
-				}
-				return &exitErr{1, err}
+				return interrupted(ctx, err, "interrupted; rerun the demo")
 			}
 			w := os.Stdout
 			fmt.Fprintf(w, "swellgrid demo: synthetic scenario (invented coast, not a real place)\n")

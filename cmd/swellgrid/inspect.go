@@ -29,7 +29,7 @@ the variable and what to do (exit code 2).`,
 			opt := ingest.Options{DepthConstant: depth, DeepWater: deep, BathymetryFile: bathy}
 			r, err := pipelines.Inspect(args, opt)
 			if err != nil {
-				return &exitErr{2, err}
+				return badInput(err)
 			}
 			if asJSON {
 				return r.WriteJSON(os.Stdout)

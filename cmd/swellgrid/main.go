@@ -4,13 +4,9 @@
 package main
 
 import (
-	"fmt"
 	"os"
 )
 
 func main() {
-	if err := newRootCmd().Execute(); err != nil {
-		fmt.Fprintln(os.Stderr, "swellgrid:", err)
-		os.Exit(exitCode(err))
-	}
+	os.Exit(mainCode(os.Args[1:], os.Stderr))
 }

@@ -34,14 +34,15 @@ Exit codes as for run.
 		Args:    cobra.MinimumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if out == "" {
-				return &exitErr{2, errors.New("give --out DIR, the run directory of the merged outputs")}
+				return badInput(errors.New("give --out DIR, the run directory of the merged outputs"))
 			}
 			ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 			defer stop()
 			log := slog.New(slog.NewTextHandler(os.Stderr, nil))
+			crashDir = out
 			res, err := pipelines.Merge(ctx, out, args, pipelines.Options{Log: log, Version: Version, Workers: workers})
 			if err != nil {
-				return mapRunErr(ctx, err, "interrupted; nothing is lost: rerun the same merge")
+				return interrupted(ctx, err, "interrupted; nothing is lost: rerun the same merge")
 			}
 			fmt.Fprintf(os.Stdout, "merged %d shards: wrote %d files to %s (%d cells, %d steps) in %s\n", len(args), len(res.Files), res.OutDir, res.Cells, res.Steps, res.Wall.Round(time.Millisecond))
 			for _, w := range res.Warnings {
@@ -53,19 +54,4 @@ Exit codes as for run.
 	cmd.Flags().StringVar(&out, "out", "", "run directory of the merged outputs")
 	cmd.Flags().IntVar(&workers, "workers", 0, "fit workers (0: all cores)")
 	return cmd
-}
-
-// mapRunErr maps a pipelines error to an exit code.
-func mapRunErr(ctx context.Context, err error, interrupted string) error {
-	switch {
-	case ctx.Err() != nil:
-		return &exitErr{3, errors.New(interrupted)}
-	case pipelines.IsOutputError(err):
-		return &exitErr{4, err}
-	}
-	var ie *pipelines.InputError
-	if errors.As(err, &ie) {
-		return &exitErr{2, err}
-	}
-	return &exitErr{1, err}
 }

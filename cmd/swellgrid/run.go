@@ -150,11 +150,11 @@ Exit codes: 0 ok, 1 internal error, 2 bad input or spec, 3 interrupted,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			spec, err := f.buildSpec()
 			if err != nil {
-				return &exitErr{2, err}
+				return badInput(err)
 			}
 			opt, err := f.runOptions(spec)
 			if err != nil {
-				return &exitErr{2, err}
+				return badInput(err)
 			}
 			res, err := runSpecWith(spec, opt)
 			if err != nil {
@@ -171,33 +171,20 @@ Exit codes: 0 ok, 1 internal error, 2 bad input or spec, 3 interrupted,
 	return cmd
 }
 
-// runSpec runs the pipeline with progress on stderr and maps its errors to
-// exit codes.
-func runSpec(spec *pipelines.Spec, restart bool) (*pipelines.Result, error) {
-	return runSpecWith(spec, pipelines.Options{Restart: restart})
-}
-
-// runSpecWith is runSpec with shard and update options.
+// runSpecWith runs the pipeline with progress on stderr; on a signal the
+// run stops and says how to resume.
 func runSpecWith(spec *pipelines.Spec, opt pipelines.Options) (*pipelines.Result, error) {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
 	log := slog.New(slog.NewTextHandler(os.Stderr, nil))
 	opt.Log, opt.Version = log, Version
 	opt.Progress = stderrProgress(log)
+	crashDir = spec.Output.Dir
 	res, err := pipelines.Run(ctx, spec, opt)
-	switch {
-	case err == nil:
-		return res, nil
-	case ctx.Err() != nil:
-		return nil, &exitErr{3, fmt.Errorf("interrupted; checkpoints are in %s/.swellgrid, rerun the same command to resume", spec.Output.Dir)}
-	case pipelines.IsOutputError(err):
-		return nil, &exitErr{4, err}
+	if err != nil {
+		return nil, interrupted(ctx, err, fmt.Sprintf("interrupted; checkpoints are in %s/.swellgrid, rerun the same command to resume", spec.Output.Dir))
 	}
-	var ie *pipelines.InputError
-	if errors.As(err, &ie) {
-		return nil, &exitErr{2, err}
-	}
-	return nil, &exitErr{1, err}
+	return res, nil
 }
 
 // stderrProgress shows progress on stderr: bars on a terminal, a log line

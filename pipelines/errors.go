@@ -1,0 +1,102 @@
+package pipelines
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"runtime/debug"
+)
+
+// Kind is the class of a failure of a run; it decides the process exit code.
+type Kind int
+
+const (
+	// Internal is a defect of swellgrid itself (exit code 1).
+	Internal Kind = iota
+	// BadInput is an input file or a spec that cannot be used as it is,
+	// including a refused resume, update or merge (exit code 2).
+	BadInput
+	// Interrupted is a run stopped by a signal or its context (exit code 3);
+	// its state is resumable.
+	Interrupted
+	// OutputUnusable is an output directory that is locked by another run
+	// or cannot be written (exit code 4).
+	OutputUnusable
+)
+
+// ExitCode is the documented exit code of the kind.
+func (k Kind) ExitCode() int {
+	switch k {
+	case BadInput:
+		return 2
+	case Interrupted:
+		return 3
+	case OutputUnusable:
+		return 4
+	}
+	return 1
+}
+
+func (k Kind) String() string {
+	return [...]string{"internal error", "bad input or spec", "interrupted", "output directory unusable"}[k]
+}
+
+// Error is the one error type of the run machinery: a failure with its kind.
+// Err says what, where and what to do; Stack, for an internal error caught
+// from a panic, is the goroutine's stack.
+type Error struct {
+	Kind  Kind
+	Err   error
+	Stack []byte
+}
+
+func (e *Error) Error() string { return e.Err.Error() }
+func (e *Error) Unwrap() error { return e.Err }
+
+// KindOf is the kind of err: that of the outermost *Error it wraps;
+// Interrupted for a cancelled context; Internal otherwise.
+func KindOf(err error) Kind {
+	var e *Error
+	switch {
+	case errors.As(err, &e):
+		return e.Kind
+	case errors.Is(err, context.Canceled), errors.Is(err, context.DeadlineExceeded):
+		return Interrupted
+	}
+	return Internal
+}
+
+// ExitCode is the process exit code for err (0 for nil).
+func ExitCode(err error) int {
+	if err == nil {
+		return 0
+	}
+	return KindOf(err).ExitCode()
+}
+
+// inputErr marks err as bad input or a bad spec (exit code 2).
+func inputErr(err error) error { return &Error{Kind: BadInput, Err: err} }
+
+// outputError marks err as an unusable output directory (exit code 4).
+func outputError(err error) error { return &Error{Kind: OutputUnusable, Err: err} }
+
+// isOutput reports whether err is marked as an unusable output directory.
+func isOutput(err error) bool { return KindOf(err) == OutputUnusable }
+
+// panicError turns a recovered panic value into an internal error with the
+// stack of the goroutine that panicked.
+func panicError(r any) error {
+	return &Error{Kind: Internal, Err: fmt.Errorf("internal error: %v", r), Stack: debug.Stack()}
+}
+
+// catchPanic runs f and returns its error, or the panic it raised as an
+// internal error: a panic in a worker goroutine must not end the process
+// with the runtime's exit code 2, which means bad input.
+func catchPanic(f func() error) (err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			err = panicError(r)
+		}
+	}()
+	return f()
+}
