@@ -1,6 +1,7 @@
 package ingest
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"os"
@@ -59,6 +60,8 @@ type Options struct {
 	BathymetryFile string          // a separate file holding the depth role
 	DirectionTo    *bool           // spectral direction convention when the coordinate does not say
 	AllowLongGaps  bool            // accept time gaps longer than the rest of the record
+	// Ctx, if set, stops Open between files when it is cancelled (a signal).
+	Ctx context.Context
 }
 
 // VarInfo describes how one role is stored and unpacked in one file.
@@ -229,6 +232,9 @@ func Open(inputs []string, opt Options) (*Catalog, error) {
 	c := &Catalog{Vars: map[Role]*VarInfo{}}
 	var first *scan
 	for _, p := range paths {
+		if opt.Ctx != nil && opt.Ctx.Err() != nil {
+			return nil, opt.Ctx.Err()
+		}
 		s, err := scanFile(p, opt)
 		if err != nil {
 			return nil, err

@@ -4,7 +4,9 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"os"
 	"runtime/debug"
+	"sync"
 )
 
 // Kind is the class of a failure of a run; it decides the process exit code.
@@ -74,11 +76,21 @@ func ExitCode(err error) int {
 	return KindOf(err).ExitCode()
 }
 
-// inputErr marks err as bad input or a bad spec (exit code 2).
-func inputErr(err error) error { return &Error{Kind: BadInput, Err: err} }
+// inputErr marks err as bad input or a bad spec (exit code 2), unless it
+// already carries a kind (an internal error caught from a panic stays one).
+func inputErr(err error) error { return withKind(BadInput, err) }
 
-// outputError marks err as an unusable output directory (exit code 4).
-func outputError(err error) error { return &Error{Kind: OutputUnusable, Err: err} }
+// outputError marks err as an unusable output directory (exit code 4),
+// unless it already carries a kind.
+func outputError(err error) error { return withKind(OutputUnusable, err) }
+
+func withKind(k Kind, err error) error {
+	var e *Error
+	if errors.As(err, &e) {
+		return err
+	}
+	return &Error{Kind: k, Err: err}
+}
 
 // isOutput reports whether err is marked as an unusable output directory.
 func isOutput(err error) bool { return KindOf(err) == OutputUnusable }
@@ -99,4 +111,40 @@ func catchPanic(f func() error) (err error) {
 		}
 	}()
 	return f()
+}
+
+// failure keeps the first error of a pool of goroutines.
+type failure struct {
+	mu  sync.Mutex
+	err error
+}
+
+func (f *failure) record(err error) {
+	if err == nil {
+		return
+	}
+	f.mu.Lock()
+	if f.err == nil {
+		f.err = err
+	}
+	f.mu.Unlock()
+}
+
+func (f *failure) get() error {
+	f.mu.Lock()
+	defer f.mu.Unlock()
+	return f.err
+}
+
+func (f *failure) set() bool { return f.get() != nil }
+
+// testPanic names a stage (fit, stream) whose workers panic: a hook for the
+// tests that an internal error exits 1 with its stack saved (environment
+// variable SWELLGRID_TEST_PANIC). Unset in normal use.
+var testPanic = os.Getenv("SWELLGRID_TEST_PANIC")
+
+func panicHook(stage string) {
+	if testPanic == stage {
+		panic("test panic in stage " + stage + " (SWELLGRID_TEST_PANIC)")
+	}
 }

@@ -22,7 +22,7 @@ import (
 // are copied to out/.swellgrid, so that the merged run can later be updated
 // (Options.Update) like any run. opt.Restart and opt.Shard are not used.
 func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*Result, error) {
-	j, parts, err := validateMerge(out, shardDirs, opt)
+	j, parts, err := validateMerge(ctx, out, shardDirs, opt)
 	if err != nil {
 		return nil, err
 	}
@@ -73,7 +73,7 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 	for i, in := range parts[0].m.Inputs {
 		sums[i] = in.SHA256
 	}
-	return j.export(results, sums)
+	return j.export(ctx, results, sums)
 }
 
 // mergePart is one pass of one shard: the state file a merge loads.
@@ -90,7 +90,7 @@ type mergePart struct {
 // their spec reproduces its fingerprint, the inputs are those the shards
 // read, unchanged, and every state file says so in its header. Nothing is
 // written.
-func validateMerge(out string, shardDirs []string, opt Options) (*job, []mergePart, error) {
+func validateMerge(ctx context.Context, out string, shardDirs []string, opt Options) (*job, []mergePart, error) {
 	t0 := time.Now()
 	if len(shardDirs) == 0 {
 		return nil, nil, inputErr(errors.New("merge: no shard directories given"))
@@ -130,7 +130,7 @@ func validateMerge(out string, shardDirs []string, opt Options) (*job, []mergePa
 		return nil, nil, inputErr(fmt.Errorf("merge: the spec recorded in %s does not reproduce its fingerprint (software version %s); rerun the shards with this version", filepath.Join(shardDirs[order[0]], shardFile), first.Version))
 	}
 	ts := time.Now()
-	cat, err := openCatalog(&spec)
+	cat, err := openCatalog(ctx, &spec)
 	if err != nil {
 		return nil, nil, inputErr(fmt.Errorf("merge: the shards' inputs: %w", err))
 	}

@@ -159,7 +159,7 @@ func (s *Spec) analysisConfig(years float64) extremes.AnalysisConfig {
 // Run runs the whole job through the stages of stages.go: validate, lock,
 // restore, stream, fit, export.
 func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
-	j, err := validateRun(spec, opt)
+	j, err := validateRun(ctx, spec, opt)
 	if err != nil {
 		return nil, err
 	}
@@ -205,7 +205,7 @@ func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
 	if j.opt.Shard != nil {
 		return writeShard(j.out, spec, j.cat, *j.opt.Shard, j.lo, j.hi, j.passes, s, opt.Version, j.t0)
 	}
-	return j.export(results, s)
+	return j.export(ctx, results, s)
 }
 
 type devNull struct{}
@@ -250,13 +250,18 @@ func (e *engine) finishAll(ctx context.Context, c0 int, cells []*cell, acfg extr
 		pr.Start("fit extremes", int64(len(cells)), 0)
 		defer pr.Done()
 	}
+	var failed failure
 	for w := 0; w < workers; w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
 			for i := range next {
-				if cells[i] != nil {
-					res[i] = e.finish(c0+i, cells[i], acfg)
+				if cells[i] != nil && !failed.set() {
+					failed.record(catchPanic(func() error {
+						panicHook("fit")
+						res[i] = e.finish(c0+i, cells[i], acfg)
+						return nil
+					}))
 				}
 				if pr != nil {
 					pr.Add(1)
@@ -272,6 +277,9 @@ func (e *engine) finishAll(ctx context.Context, c0 int, cells []*cell, acfg extr
 	}
 	close(next)
 	wg.Wait()
+	if err := failed.get(); err != nil {
+		return nil, err
+	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}

@@ -59,7 +59,7 @@ func (j *job) mark(stage string, since time.Time) { j.timings[stage] += time.Sin
 
 // openCatalog builds the catalog of the spec's inputs, with a NetCDF chunk
 // cache sized from the memory budget.
-func openCatalog(spec *Spec) (*ingest.Catalog, error) {
+func openCatalog(ctx context.Context, spec *Spec) (*ingest.Catalog, error) {
 	// A sixteenth of the memory budget per variable for NetCDF-4 chunks
 	// (clamped to 16 MiB .. 512 MiB): enough for a month of a variable on a
 	// large grid, so each chunk is decompressed once.
@@ -67,8 +67,14 @@ func openCatalog(spec *Spec) (*ingest.Catalog, error) {
 	if err := ingest.SetChunkCache(min(max(limit/16, 16<<20), 512<<20)); err != nil {
 		return nil, err
 	}
-	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
+	hold(ctx, "catalog")
+	opt := spec.ingestOptions()
+	opt.Ctx = ctx
+	cat, err := ingest.Open(spec.Input.Paths, opt)
 	if err != nil {
+		if ctx.Err() != nil {
+			return nil, ctx.Err()
+		}
 		return nil, inputErr(err)
 	}
 	return cat, nil
@@ -109,7 +115,7 @@ func newJob(spec *Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, e
 }
 
 // validateRun is the validate stage of Run.
-func validateRun(spec *Spec, opt Options) (*job, error) {
+func validateRun(ctx context.Context, spec *Spec, opt Options) (*job, error) {
 	t0 := time.Now()
 	if err := spec.Validate(); err != nil {
 		return nil, inputErr(err)
@@ -121,7 +127,7 @@ func validateRun(spec *Spec, opt Options) (*job, error) {
 		return nil, inputErr(errors.New("--update and --restart exclude each other: an update continues the saved states, a restart discards them"))
 	}
 	ts := time.Now()
-	cat, err := openCatalog(spec)
+	cat, err := openCatalog(ctx, spec)
 	if err != nil {
 		return nil, err
 	}
@@ -227,6 +233,7 @@ func (j *job) stream(ctx context.Context, pi int, p [2]int, cells []*cell, from 
 		if err := saveCheckpoint(path, h, cells); err != nil {
 			return outputError(fmt.Errorf("checkpoint %s: %w", path, err))
 		}
+		hold(ctx, "stream")
 		return nil
 	}, func(steps int) {
 		if j.opt.Progress != nil {
@@ -262,6 +269,7 @@ func (j *job) runPasses(ctx context.Context, restore func(pi int, p [2]int) ([]*
 		}
 		j.mark("stream_s", ts)
 		if j.opt.Shard == nil {
+			hold(ctx, "fit")
 			ts = time.Now()
 			res, err := j.eng.finishAll(ctx, p[0], cells, j.acfg, j.workers, j.opt.Progress)
 			if err != nil {
@@ -284,11 +292,23 @@ func (j *job) runPasses(ctx context.Context, restore func(pi int, p [2]int) ([]*
 
 // export is the export stage: tables, contours and the manifest, each file
 // written atomically.
-func (j *job) export(results []*cellResult, sums []string) (*Result, error) {
+func (j *job) export(ctx context.Context, results []*cellResult, sums []string) (*Result, error) {
 	ts := time.Now()
+	hold(ctx, "export")
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	// Until the new manifest is written, the directory holds no manifest: an
+	// interrupted export leaves no manifest beside tables it did not write.
+	if err := os.Remove(filepath.Join(j.out, "manifest.json")); err != nil && !errors.Is(err, os.ErrNotExist) {
+		return nil, outputError(err)
+	}
 	written, warns, err := j.eng.writeOutputs(j.out, results)
 	if err != nil {
 		return nil, outputError(err)
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
 	}
 	j.mark("export_s", ts)
 	if j.streamed {
@@ -302,6 +322,28 @@ func (j *job) export(results []*cellResult, sums []string) (*Result, error) {
 	return &Result{OutDir: j.out, Files: written, Cells: j.cat.Grid.NCells(), Steps: j.cat.Steps,
 		Warnings: append(j.cat.Warnings, warns...), Wall: time.Since(j.t0)}, nil
 }
+
+// testHold names a stage (catalog, stream, fit, export) at which a run
+// waits for its context to be cancelled, up to a minute: a hook for the
+// tests that signal the built binary in each stage (environment variable
+// SWELLGRID_TEST_HOLD). Unset in normal use.
+var testHold = os.Getenv("SWELLGRID_TEST_HOLD")
+
+// hold waits at stage while testHold names it, saying so on stderr once.
+func hold(ctx context.Context, stage string) {
+	if testHold != stage {
+		return
+	}
+	holdOnce.Do(func() {
+		fmt.Fprintf(os.Stderr, "swellgrid: test hold in stage %s\n", stage)
+		select {
+		case <-ctx.Done():
+		case <-time.After(time.Minute):
+		}
+	})
+}
+
+var holdOnce sync.Once
 
 // checksums computes the SHA-256 of the input files in a goroutine of its
 // own, as plain files beside the NetCDF reader. stop cancels it and waits
@@ -319,14 +361,16 @@ func startChecksums(ctx context.Context, files []ingest.FileInfo) *checksums {
 	c := &checksums{sums: make([]string, len(files)), done: make(chan struct{}), cancel: cancel}
 	go func() {
 		defer close(c.done)
-		for i, f := range files {
-			s, err := sha256File(ctx, f.Path)
-			if err != nil {
-				c.err = err
-				return
+		c.err = catchPanic(func() error {
+			for i, f := range files {
+				s, err := sha256File(ctx, f.Path)
+				if err != nil {
+					return err
+				}
+				c.sums[i] = s
 			}
-			c.sums[i] = s
-		}
+			return nil
+		})
 	}()
 	return c
 }

@@ -189,7 +189,9 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 	blocks := make(chan *ingest.Block, 2)
 	readErr := make(chan error, 1)
 	go func() {
-		readErr <- e.cat.Read(ctx, ingest.ReadRange{C0: c0, C1: c1, MaxSteps: e.spec.Run.BlockSteps, FromFile: fromFile, Stats: &e.times.read}, blocks)
+		readErr <- catchPanic(func() error {
+			return e.cat.Read(ctx, ingest.ReadRange{C0: c0, C1: c1, MaxSteps: e.spec.Run.BlockSteps, FromFile: fromFile, Stats: &e.times.read}, blocks)
+		})
 		close(blocks)
 	}()
 	if workers < 1 {
@@ -204,6 +206,7 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 		times []stepTime
 		wg    *sync.WaitGroup
 	}
+	var failed failure // a worker's panic, as an internal error
 	chans := make([]chan job, workers)
 	busy := make([]time.Duration, workers)
 	var all sync.WaitGroup
@@ -215,7 +218,13 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 			defer all.Done()
 			for j := range ch {
 				t := time.Now()
-				e.feed(j.b, j.times, cells, lo, hi)
+				if !failed.set() {
+					failed.record(catchPanic(func() error {
+						panicHook("stream")
+						e.feed(j.b, j.times, cells, lo, hi)
+						return nil
+					}))
+				}
 				busy[w] += time.Since(t)
 				j.wg.Done()
 			}
@@ -245,6 +254,13 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 		}
 		if b.LastOfFile {
 			wg.Wait()
+			if err := failed.get(); err != nil {
+				cancel()
+				for range blocks {
+				}
+				stop()
+				return err // no checkpoint of a state a panic left
+			}
 			if progress != nil {
 				progress(0)
 			}
@@ -270,6 +286,10 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 		}
 	}
 	stop()
+	if err := failed.get(); err != nil {
+		<-readErr
+		return err
+	}
 	if err := <-readErr; err != nil {
 		return err
 	}
