@@ -5,12 +5,25 @@ GO      ?= go
 BIN     := bin/swellgrid
 DEMO_OUT ?= demo-out
 SUDO    := $(shell [ "$$(id -u)" = 0 ] || echo sudo)
-# Debian packages the build needs (cgo NetCDF), and the ones the tests use as
-# outside references (ncdump, GDAL's ogrinfo and gdal_contour).
+# Debian packages the build needs (cgo NetCDF), and every outside tool the
+# tests use as a reference: ncgen/ncdump (netcdf-bin), GDAL's ogrinfo and
+# gdal_contour (gdal-bin) and osgeo (python3-gdal), Debian's python3 with numpy,
+# scipy, netCDF4, xarray and cftime (fixtures and independent computations),
+# R with evd, Slurm and munge (single-node cluster test), node and npm (the
+# DuckDB reader check). A failed install fails `make test`: under CI=true
+# (.ci/run) a test whose tool is missing fails instead of skipping
+# (internal/testtool), so nothing is skipped quietly.
 BUILD_DEBS := libnetcdf-dev pkg-config
-TEST_DEBS  := netcdf-bin gdal-bin python3-gdal slurm-wlm munge
+TEST_DEBS  := netcdf-bin gdal-bin python3-gdal python3-numpy python3-scipy python3-netcdf4 \
+	python3-xarray python3-cftime r-base-core r-cran-evd slurm-wlm munge nodejs
+# The npm DuckDB package the export tests read our Parquet files with (the
+# version export/export_ext_test.go pins), installed outside the repository.
+DUCKDB_NODE_API := @duckdb/node-api@1.5.6-r.1
+SWELLGRID_NODE_CACHE ?= $(HOME)/.cache/swellgrid-test/duckdb-node
+export SWELLGRID_NODE_CACHE
+STATICCHECK_VERSION := v0.8.2
 
-.PHONY: all deps test-deps build demo test bench fuzz soak clean
+.PHONY: all deps test-deps build demo test lint mutants bench fuzz soak clean
 
 all: build
 
@@ -24,7 +37,13 @@ test-deps: deps
 	@missing=""; for p in $(TEST_DEBS); do dpkg -s $$p >/dev/null 2>&1 || missing="$$missing $$p"; done; \
 	if [ -n "$$missing" ]; then echo "installing:$$missing"; \
 	  $(SUDO) apt-get update -qq && $(SUDO) env DEBIAN_FRONTEND=noninteractive apt-get install -y -qq $$missing \
-	  || echo "warning: could not install$$missing; tests that need them will skip"; fi
+	  || { echo "error: could not install$$missing (the tests need them as outside references)"; exit 1; }; fi
+	@command -v npm >/dev/null || { echo "installing: npm"; $(SUDO) env DEBIAN_FRONTEND=noninteractive apt-get install -y -qq npm; } \
+	  || { echo "error: could not install npm (nodejs from another source usually brings its own)"; exit 1; }
+	@if [ ! -f "$(SWELLGRID_NODE_CACHE)/node_modules/@duckdb/node-api/package.json" ]; then \
+	  echo "installing $(DUCKDB_NODE_API) into $(SWELLGRID_NODE_CACHE)"; mkdir -p "$(SWELLGRID_NODE_CACHE)" && \
+	  npm install --prefix "$(SWELLGRID_NODE_CACHE)" --no-audit --no-fund $(DUCKDB_NODE_API) >/dev/null \
+	  || { echo "error: npm could not install $(DUCKDB_NODE_API)"; exit 1; }; fi
 
 build: deps
 	$(GO) build -o $(BIN) ./cmd/swellgrid
@@ -32,9 +51,24 @@ build: deps
 demo: build
 	./$(BIN) demo --out $(DEMO_OUT)
 
+# test: every package; the summary counts passed, failed and skipped tests,
+# and under CI=true a skipped test fails the target (there must be none).
+TEST_LOG ?= test-out/go-test.json
 test: test-deps
 	$(GO) vet ./...
-	$(GO) test -count=1 -timeout 45m ./...
+	@mkdir -p $(dir $(TEST_LOG))
+	$(GO) test -count=1 -timeout 45m -json ./... > $(TEST_LOG); rc=$$?; \
+	  /usr/bin/python3 .ci/test_summary.py $(TEST_LOG) || rc=1; exit $$rc
+
+# lint: staticcheck (honnef.co/go/tools) at a pinned version, plus gofmt.
+lint: deps
+	@out=$$(gofmt -l $$(git ls-files '*.go')); if [ -n "$$out" ]; then echo "gofmt needed:"; echo "$$out"; exit 1; fi
+	$(GO) run honnef.co/go/tools/cmd/staticcheck@$(STATICCHECK_VERSION) ./...
+
+# mutants: wiring mutations of the column-filling code, each of which must
+# fail the end-to-end column checks (pipelines/mutants_test.go).
+mutants: test-deps
+	SWELLGRID_MUTANTS=1 $(GO) test -count=1 -timeout 60m -run TestMutants -v ./pipelines/
 
 # bench: the pipeline against the read floor (generated data cached in
 # $(BENCH_CACHE); about 10 minutes on 2 cores, plus 2-3 minutes the first time
@@ -69,4 +103,4 @@ soak: test-deps
 	$(MAKE) fuzz FUZZTIME=$(FUZZTIME)
 
 clean:
-	rm -rf bin $(DEMO_OUT) $(BENCH_OUT)
+	rm -rf bin $(DEMO_OUT) $(BENCH_OUT) test-out

@@ -5,6 +5,8 @@ package export
 // Parquet tables. Each test skips with a message when its tool is missing.
 
 import (
+	"swellgrid/internal/testtool"
+
 	"encoding/json"
 	"math"
 	"os"
@@ -35,9 +37,7 @@ func coneField(n int) *grid.Field {
 // ogrinfo must open each layer with the GeoJSON driver and report the feature
 // count and geometry type we wrote (GDAL GeoJSON driver documentation).
 func TestContoursOgrinfo(t *testing.T) {
-	if _, err := exec.LookPath("ogrinfo"); err != nil {
-		t.Skip("ogrinfo not found (Debian package gdal-bin); skipping the GDAL reader check")
-	}
+	testtool.Need(t, "ogrinfo", "gdal-bin")
 	f := coneField(81)
 	levels := grid.NiceLevels(0, 7, 6)
 	lines, err := grid.Isolines(f, levels)
@@ -84,14 +84,12 @@ func duckdbAPI(t *testing.T) string {
 	if testing.Short() {
 		t.Skip("-short: skipping the DuckDB reader check")
 	}
-	if _, err := exec.LookPath("node"); err != nil {
-		t.Skip("node not found; skipping the DuckDB reader check")
-	}
+	testtool.Need(t, "node", "nodejs")
 	cache := os.Getenv("SWELLGRID_NODE_CACHE")
 	if cache == "" {
 		base, err := os.UserCacheDir()
 		if err != nil {
-			t.Skipf("no cache directory (%v); set SWELLGRID_NODE_CACHE", err)
+			testtool.Unavailable(t, "no cache directory for the npm DuckDB package (%v); set SWELLGRID_NODE_CACHE", err)
 		}
 		cache = filepath.Join(base, "swellgrid-test", "duckdb-node")
 	}
@@ -99,15 +97,13 @@ func duckdbAPI(t *testing.T) string {
 	if _, err := os.Stat(filepath.Join(pkg, "package.json")); err == nil {
 		return pkg
 	}
-	if _, err := exec.LookPath("npm"); err != nil {
-		t.Skip("npm not found; skipping the DuckDB reader check")
-	}
+	testtool.Need(t, "npm", "npm")
 	if err := os.MkdirAll(cache, 0o755); err != nil {
-		t.Skipf("cannot create %s: %v", cache, err)
+		testtool.Unavailable(t, "cannot create %s for the npm DuckDB package: %v", cache, err)
 	}
 	cmd := exec.Command("npm", "install", "--prefix", cache, "--no-audit", "--no-fund", "@duckdb/node-api@1.5.6-r.1")
 	if out, err := cmd.CombinedOutput(); err != nil {
-		t.Skipf("npm install @duckdb/node-api failed (offline?); skipping the DuckDB reader check: %v\n%s", err, out)
+		testtool.Unavailable(t, "npm install @duckdb/node-api failed (offline?; `make test-deps` installs it): %v\n%s", err, out)
 	}
 	return pkg
 }

@@ -6,6 +6,8 @@ package grid
 // The tests skip with a message when the tools are absent.
 
 import (
+	"swellgrid/internal/testtool"
+
 	"bufio"
 	"bytes"
 	"encoding/json"
@@ -54,9 +56,7 @@ func writeASC(t *testing.T, path string, f *Field) {
 
 func gdalLengths(t *testing.T, f *Field, levels []float64) map[float64]float64 {
 	t.Helper()
-	if _, err := exec.LookPath("gdal_contour"); err != nil {
-		t.Skip("gdal_contour not found (Debian package gdal-bin); skipping the GDAL comparison")
-	}
+	testtool.Need(t, "gdal_contour", "gdal-bin")
 	dir := t.TempDir()
 	asc := filepath.Join(dir, "field.asc")
 	out := filepath.Join(dir, "contours.geojson")
@@ -211,7 +211,7 @@ func TestBandsValidGEOS(t *testing.T) {
 	}
 	out, err := exec.Command(py, append([]string{script}, paths...)...).CombinedOutput()
 	if strings.Contains(string(out), "NO-OSGEO") {
-		t.Skip("python3-gdal (osgeo) not available; skipping the GEOS validity check")
+		testtool.Unavailable(t, "python3 cannot import osgeo (Debian package python3-gdal); the GEOS validity check needs it")
 	}
 	if err != nil {
 		t.Fatalf("%s: %v\n%s", script, err, out)

@@ -1,6 +1,8 @@
 package ingest
 
 import (
+	"swellgrid/internal/testtool"
+
 	"context"
 	"math"
 	"os/exec"
@@ -116,9 +118,7 @@ func TestSpectrumPerDegreeEqualsPerRadian(t *testing.T) {
 // Dates decoded by swellgrid equal the dates Debian's ncdump -t prints (an
 // independent CF time decoder in netcdf-bin) for every calendar fixture.
 func TestCalendarFixturesAgainstNcdump(t *testing.T) {
-	if _, err := exec.LookPath("ncdump"); err != nil {
-		t.Skip("ncdump (Debian netcdf-bin) not installed; `make test` installs it")
-	}
+	testtool.Need(t, "ncdump", "netcdf-bin")
 	for _, cal := range []string{"noleap", "360_day", "all_leap", "julian", "proleptic_gregorian"} {
 		p := "../testdata/calendar_" + cal + ".nc"
 		out, err := exec.Command("ncdump", "-t", "-v", "time", p).Output()

@@ -1,6 +1,8 @@
 package ingest
 
 import (
+	"swellgrid/internal/testtool"
+
 	"context"
 	"math"
 	"os"
@@ -14,9 +16,7 @@ import (
 // an implementation of the format independent of swellgrid's reader.
 func ncgenFile(t *testing.T, dir, name, cdl string) string {
 	t.Helper()
-	if _, err := exec.LookPath("ncgen"); err != nil {
-		t.Skip("ncgen (Debian netcdf-bin) not installed; `make test` installs it")
-	}
+	testtool.Need(t, "ncgen", "netcdf-bin")
 	src := filepath.Join(dir, name+".cdl")
 	out := filepath.Join(dir, name+".nc")
 	if err := os.WriteFile(src, []byte(cdl), 0o644); err != nil {

@@ -1,6 +1,8 @@
 package pipelines
 
 import (
+	"swellgrid/internal/testtool"
+
 	"bufio"
 	"bytes"
 	"context"
@@ -55,13 +57,11 @@ func TestSlurmSingleNode(t *testing.T) {
 	if testing.Short() {
 		t.Skip("-short: the Slurm test starts daemons")
 	}
-	for _, p := range []string{"munged", "slurmctld", "slurmd", "sbatch"} {
-		if _, err := exec.LookPath(p); err != nil {
-			t.Skipf("%s not installed (Debian packages slurm-wlm and munge; `make test-deps` installs them)", p)
-		}
+	for _, p := range [][2]string{{"munged", "munge"}, {"slurmctld", "slurm-wlm"}, {"slurmd", "slurm-wlm"}, {"sbatch", "slurm-wlm"}} {
+		testtool.Need(t, p[0], p[1])
 	}
 	if os.Geteuid() != 0 {
-		t.Skip("the single-node Slurm test runs its daemons as root")
+		testtool.Unavailable(t, "the single-node Slurm test runs its daemons as root")
 	}
 	tmp := t.TempDir()
 	bin := filepath.Join(tmp, "swellgrid")
@@ -83,7 +83,7 @@ func TestSlurmSingleNode(t *testing.T) {
 	out, err := cmd.Output()
 	var ee *exec.ExitError
 	if errors.As(err, &ee) && ee.ExitCode() == 77 {
-		t.Skipf("Slurm cannot be started here:\n%s", stderr.String())
+		testtool.Unavailable(t, "Slurm (slurm-wlm, munge) cannot be started here:\n%s", stderr.String())
 	}
 	if err != nil {
 		t.Fatalf("%s: %v\nstdout:\n%s\nstderr:\n%s", script, err, out, stderr.String())

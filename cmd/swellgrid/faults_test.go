@@ -1,6 +1,8 @@
 package main
 
 import (
+	"swellgrid/internal/testtool"
+
 	"bytes"
 	"math/rand/v2"
 	"os"
@@ -154,7 +156,7 @@ func mountTmpfs(t *testing.T, dir string, size int64) {
 		t.Fatal(err)
 	}
 	if err := syscall.Mount("tmpfs", dir, "tmpfs", 0, "size="+strconv.FormatInt(size, 10)); err != nil {
-		t.Skipf("cannot mount a tmpfs here (%v); this fault needs root in a mount namespace", err)
+		testtool.Unavailable(t, "cannot mount a tmpfs here (%v); this fault needs root in a mount namespace", err)
 	}
 	t.Cleanup(func() { syscall.Unmount(dir, syscall.MNT_DETACH) })
 }
@@ -304,7 +306,7 @@ func TestReadOnlyOutput(t *testing.T) {
 	out := filepath.Join(disk, "out")
 	copyTree(t, prev, out)
 	if err := syscall.Mount("", disk, "", syscall.MS_REMOUNT|syscall.MS_RDONLY, ""); err != nil {
-		t.Skipf("cannot remount read-only: %v", err)
+		testtool.Unavailable(t, "cannot remount read-only: %v", err)
 	}
 	before := hashTree(t, out, nil)
 	for _, extra := range [][]string{nil, {"--restart"}} {

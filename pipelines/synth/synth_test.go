@@ -1,6 +1,8 @@
 package synth
 
 import (
+	"swellgrid/internal/testtool"
+
 	"bytes"
 	"encoding/json"
 	"math"
@@ -151,9 +153,7 @@ func writeFixtures(t *testing.T) (string, []string) {
 
 func needNcdump(t *testing.T) {
 	t.Helper()
-	if _, err := exec.LookPath("ncdump"); err != nil {
-		t.Skip("ncdump (Debian netcdf-bin) not installed; make test-deps installs it")
-	}
+	testtool.Need(t, "ncdump", "netcdf-bin")
 }
 
 func ncdump(t *testing.T, args ...string) string {
@@ -314,7 +314,7 @@ func TestCalendarsAgainstCftime(t *testing.T) {
 				break
 			}
 		}
-		if _, err := exec.LookPath("ncdump"); err == nil {
+		if testtool.Have("ncdump") {
 			last := map[string]string{"noleap": "2004-03-31 12", "360_day": "2004-03-30 12", "all_leap": "2004-03-31 12",
 				"julian": "2004-03-31 12", "proleptic_gregorian": "2004-03-31 12"}[cal]
 			out := ncdump(t, "-t", "-v", "time", paths[0])
