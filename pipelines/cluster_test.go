@@ -208,7 +208,7 @@ func readAllStates(t *testing.T, dir string) (*ckHeader, []*cell) {
 		t.Fatal(err)
 	}
 	s := clSpec(nil, dir)
-	ccfg, _ := s.climateConfig(cat.Calendar)
+	ccfg, _ := s.climateConfig(cat)
 	eng, _ := newEngine(cat, s, ccfg)
 	cells, _, err := loadCheckpointTrusting(paths[0], *hs[0], len(hs[0].Inputs), eng.newCell)
 	if err != nil {

@@ -1,6 +1,7 @@
 package pipelines
 
 import (
+	"context"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -180,5 +181,110 @@ func TestMonthlyRowForEveryYearMonth(t *testing.T) {
 				t.Errorf("cell %d: month %d climatology %g, the only month with data (2002) has %g", id, mo, c, y)
 			}
 		}
+	}
+}
+
+type deviceRef struct {
+	Lon, Lat           float64
+	AEPMWh             float64 `json:"aep_mwh"`
+	CF                 float64 `json:"cf"`
+	OutsideEnergyShare float64 `json:"outside_energy_share"`
+	Steps              int
+}
+
+// checkDevice compares a device's columns of cells.parquet with the numpy
+// reference, cell by cell (matched by position).
+func checkDevice(t *testing.T, cells, dev string, ref []deviceRef) {
+	t.Helper()
+	lon, lat := readColumn(t, cells, "lon"), readColumn(t, cells, "lat")
+	aep := readColumn(t, cells, "aep_"+dev+"_mwh")
+	cf := readColumn(t, cells, "cf_"+dev)
+	out := readColumn(t, cells, "energy_outside_matrix_"+dev+"_frac")
+	if len(ref) == 0 {
+		t.Fatalf("%s: empty reference", dev)
+	}
+	for _, r := range ref {
+		i := -1
+		for k := range lon {
+			if math.Abs(lon[k]-r.Lon) < 1e-9 && math.Abs(lat[k]-r.Lat) < 1e-9 {
+				i = k
+			}
+		}
+		if i < 0 {
+			t.Fatalf("%s: no cell at %g, %g", dev, r.Lon, r.Lat)
+		}
+		// device power is summed in quanta of 2^-16 kW, J in 1/16 W/m (climate/fixed.go)
+		if math.Abs(aep[i]-r.AEPMWh) > 1e-7*r.AEPMWh {
+			t.Errorf("%s cell %d (%g, %g): aep %.6f MWh, numpy %.6f", dev, i, r.Lon, r.Lat, aep[i], r.AEPMWh)
+		}
+		if math.Abs(cf[i]-r.CF) > 1e-7*r.CF {
+			t.Errorf("%s cell %d: cf %.9f, numpy %.9f (on rated_kw 750)", dev, i, cf[i], r.CF)
+		}
+		if math.Abs(out[i]-r.OutsideEnergyShare) > 1e-7 {
+			t.Errorf("%s cell %d: energy outside the matrix %.8f, numpy %.8f", dev, i, out[i], r.OutsideEnergyShare)
+		}
+	}
+}
+
+// manifestAssumptions returns the assumptions of a run's manifest.
+func manifestAssumptions(t *testing.T, dir string) string {
+	t.Helper()
+	var m struct{ Assumptions []string }
+	readRef(t, filepath.Join(dir, "manifest.json"), &m)
+	return strings.Join(m.Assumptions, "\n")
+}
+
+// A power matrix over Tp (said in the CSV header, or in the spec), with the
+// data sheet's rated power (rated_kw 750 kW, above the matrix maximum of 661
+// kW), by bin lookup and bilinear interpolation: AEP, capacity factor and the
+// share of incident energy outside the matrix equal the numpy computation of
+// testdata/devices/make_reference.py, which reimplements the lookup from its
+// documentation (reference.json). With Tp in the files it is used directly;
+// on a file without Tp (bulk_no_tp.nc, written by python3-netcdf4) through
+// Te/Tp = 0.9, and the manifest says which.
+func TestDeviceYieldAgainstNumpy(t *testing.T) {
+	var ref struct {
+		BulkMonthly map[string][]deviceRef `json:"bulk_monthly"`
+		NoTp        map[string][]deviceRef `json:"no_tp"`
+	}
+	readRef(t, "../testdata/devices/reference.json", &ref)
+	matrix, _ := filepath.Abs("../testdata/devices/tp_matrix.csv")
+
+	out := t.TempDir()
+	s := testSpec(t, "testdata/bulk_monthly", out)
+	s.Devices = []DeviceSpec{
+		{Name: "tpbin", PowerMatrix: matrix, RatedKW: 750},
+		{Name: "tpbil", PowerMatrix: matrix, Lookup: "bilinear", Period: "tp", RatedKW: 750},
+	}
+	mustRun(t, s)
+	cells := filepath.Join(out, "cells.parquet")
+	checkDevice(t, cells, "tpbin", ref.BulkMonthly["tpbin"])
+	checkDevice(t, cells, "tpbil", ref.BulkMonthly["tpbil"])
+	if a := manifestAssumptions(t, out); !strings.Contains(a, "device tpbin: power matrix over Tp, with each step's Tp from the files") ||
+		!strings.Contains(a, "rated power 750 kW (rated_kw)") {
+		t.Errorf("manifest assumptions do not say how the matrix was read:\n%s", a)
+	}
+
+	out2 := t.TempDir()
+	s2 := testSpec(t, "testdata/devices/bulk_no_tp.nc", out2)
+	s2.Devices = []DeviceSpec{{Name: "tpbin", PowerMatrix: matrix, RatedKW: 750}}
+	mustRun(t, s2)
+	checkDevice(t, filepath.Join(out2, "cells.parquet"), "tpbin", ref.NoTp["tpbin"])
+	if a := manifestAssumptions(t, out2); !strings.Contains(a, "Tp = Te / 0.9") {
+		t.Errorf("manifest does not record the Te/Tp assumption of the Tp matrix:\n%s", a)
+	}
+
+	// the spec and the header disagree: refused before any output, as an input error
+	s3 := testSpec(t, "testdata/devices/bulk_no_tp.nc", t.TempDir())
+	s3.Devices = []DeviceSpec{{Name: "tpbin", PowerMatrix: matrix, Period: "te"}}
+	_, err := Run(context.Background(), s3, Options{})
+	if err == nil || KindOf(err) != BadInput || !strings.Contains(err.Error(), `header of its power matrix`) {
+		t.Errorf("period te against a tp header: %v", err)
+	}
+	// rated power below the matrix maximum
+	s4 := testSpec(t, "testdata/devices/bulk_no_tp.nc", t.TempDir())
+	s4.Devices = []DeviceSpec{{Name: "tpbin", PowerMatrix: matrix, RatedKW: 600}}
+	if _, err := Run(context.Background(), s4, Options{}); err == nil || KindOf(err) != BadInput || !strings.Contains(err.Error(), "below the largest entry") {
+		t.Errorf("rated_kw 600 below the 661 kW maximum: %v", err)
 	}
 }

@@ -173,6 +173,7 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 	} else {
 		m.Assumptions = append(m.Assumptions, "wave power from the spectra with finite-depth group velocity of linear theory")
 	}
+	m.Assumptions = append(m.Assumptions, e.deviceAssumptions()...)
 	if strings.HasPrefix(c.DepthSource, "deep-water") {
 		m.Assumptions = append(m.Assumptions, "deep water everywhere (given)")
 	}

@@ -106,7 +106,8 @@ func (s *Spec) checkRoles() error {
 }
 
 // climateConfig maps the spec to the per-cell state's configuration.
-func (s *Spec) climateConfig(cal ingest.Calendar) (*climate.Config, error) {
+func (s *Spec) climateConfig(cat *ingest.Catalog) (*climate.Config, error) {
+	cal := cat.Calendar
 	c := climate.DefaultConfig()
 	c.Calendar = string(cal)
 	c.Hm0HistResM = s.Statistics.Hm0BinM
@@ -139,6 +140,10 @@ func (s *Spec) climateConfig(cal ingest.Calendar) (*climate.Config, error) {
 		if d.Lookup == "bilinear" {
 			dev.Lookup = climate.Bilinear
 		}
+		if err := s.devicePeriod(dev, d, cat); err != nil {
+			return nil, err
+		}
+		dev.Rated = d.RatedKW
 		c.Devices = append(c.Devices, dev)
 	}
 	if err := c.Validate(); err != nil {

@@ -106,6 +106,11 @@ type DeviceSpec struct {
 	Name        string `toml:"name" json:"name"`
 	PowerMatrix string `toml:"power_matrix" json:"power_matrix"`
 	Lookup      string `toml:"lookup" json:"lookup"` // "bin" or "bilinear"
+	// Period of the matrix's columns: "te" (default) or "tp"; the CSV's
+	// corner label may say it too ("hm0_m\tp_s"), and must then agree.
+	Period string `toml:"period" json:"period"`
+	// RatedKW is the data sheet's rated power, kW (0: the largest matrix entry).
+	RatedKW float64 `toml:"rated_kw" json:"rated_kw"`
 }
 
 // ContourSpec chooses the contour layers.
@@ -299,6 +304,12 @@ func (s *Spec) Validate() error {
 		names[d.Name] = true
 		if d.Lookup != "" && d.Lookup != "bin" && d.Lookup != "bilinear" {
 			return bad(key+".lookup", `must be "bin" or "bilinear"`, strconv.Quote(d.Lookup))
+		}
+		if d.Period != "" && d.Period != "te" && d.Period != "tp" {
+			return bad(key+".period", `must be "te" (energy period) or "tp" (peak period)`, strconv.Quote(d.Period))
+		}
+		if !(d.RatedKW >= 0 && d.RatedKW < 1<<30) {
+			return bad(key+".rated_kw", "must be a power in kW >= 0 (0: the largest matrix entry)", d.RatedKW)
 		}
 	}
 	for col, lv := range s.Contours.Levels {

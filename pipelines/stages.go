@@ -90,7 +90,7 @@ func newJob(spec *Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, e
 	if cat.DepthSource == "none" {
 		return nil, inputErr(fmt.Errorf("no water depth: the files hold no variable with standard_name sea_floor_depth_below_sea_surface; set depth.source in the spec (\"constant\", \"bathymetry\" or \"deep-water\"), or give --depth METRES or --deep-water"))
 	}
-	ccfg, err := spec.climateConfig(cat.Calendar)
+	ccfg, err := spec.climateConfig(cat)
 	if err != nil {
 		return nil, inputErr(err)
 	}

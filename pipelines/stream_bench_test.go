@@ -19,7 +19,7 @@ func benchFeed(b *testing.B, input string) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	ccfg, err := spec.climateConfig(cat.Calendar)
+	ccfg, err := spec.climateConfig(cat)
 	if err != nil {
 		b.Fatal(err)
 	}

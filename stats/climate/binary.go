@@ -12,7 +12,7 @@ import (
 // fingerprint u64, the scalar fields, then each array with its length.
 const (
 	binMagic   = "SGCS"
-	binVersion = 1
+	binVersion = 2
 )
 
 type enc struct{ b []byte }
@@ -131,7 +131,7 @@ func (s *CellState) MarshalBinary() ([]byte, error) {
 	for _, a := range s.dev {
 		e.u64(a.w)
 		e.u128(a.sP)
-		for _, v := range []uint64{a.wAbove, a.wBelow, a.wOut, a.wE, a.eAll, a.eAbove, a.eBelow} {
+		for _, v := range []uint64{a.wAbove, a.wBelow, a.wOut, a.wE, a.eAll, a.eAbove, a.eBelow, a.eOut} {
 			e.u64(v)
 		}
 	}
@@ -205,7 +205,7 @@ func (s *CellState) UnmarshalBinary(b []byte) error {
 	for k := range t.dev {
 		a := &t.dev[k]
 		a.w, a.sP = d.u64(), d.u128()
-		for _, p := range []*uint64{&a.wAbove, &a.wBelow, &a.wOut, &a.wE, &a.eAll, &a.eAbove, &a.eBelow} {
+		for _, p := range []*uint64{&a.wAbove, &a.wBelow, &a.wOut, &a.wE, &a.eAll, &a.eAbove, &a.eBelow, &a.eOut} {
 			*p = d.u64()
 		}
 	}
@@ -222,5 +222,5 @@ func (s *CellState) UnmarshalBinary(b []byte) error {
 // approxBytes is the size of the checkpoint encoding.
 func (s *CellState) approxBytes() int {
 	return 4 + 2 + 8 + 27*16 + 4*(len(s.histH)+len(s.histJ)+len(s.scW)+len(s.winCnt)+len(s.winMin)) +
-		8*len(s.scJ) + 24*len(s.ym) + 64*len(s.runs) + 88*len(s.dev) + 128
+		8*len(s.scJ) + 24*len(s.ym) + 64*len(s.runs) + 96*len(s.dev) + 128
 }

@@ -230,6 +230,9 @@ func (c *Config) computeFingerprint() uint64 {
 	for _, d := range c.Devices {
 		w(d.Name)
 		w(strconv.Itoa(int(d.Lookup)))
+		w(d.Period.String())
+		f(d.TeOverTp)
+		f(d.Rated)
 		for _, group := range [][]float64{d.Hm0M, d.TeS, d.PowerKW} {
 			w(strconv.Itoa(len(group)))
 			for _, x := range group {

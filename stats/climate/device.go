@@ -21,11 +21,47 @@ const (
 	// joint occurrence table are combined by the device-performance
 	// specification IEC TS 62600-100.
 	BinLookup Lookup = iota
-	// Bilinear interpolates linearly in Hm0 and in Te between the four
-	// surrounding bin centres; between an outer centre and the outer edge the
-	// edge value is held.
+	// Bilinear interpolates linearly in Hm0 and in the period between the
+	// four surrounding bin centres. Edges: between an outer centre and the
+	// outer bin edge (half a bin spacing beyond it) the value on the outer
+	// centre line is held, not extrapolated; beyond the outer edges the
+	// result is that of BinLookup outside the matrix (zero power: below
+	// cut-in under the lowest Hm0 edge, outside the matrix elsewhere); zero
+	// entries take part in the interpolation like any other, so the power
+	// ramps up from a zero bin to its non-zero neighbour. See bilinear.
 	Bilinear
 )
+
+// Period says which period a power matrix's columns are given over.
+type Period int
+
+const (
+	// PeriodTe: columns by energy period Te = m_-1/m0 (IEC TS 62600-100).
+	PeriodTe Period = iota
+	// PeriodTp: columns by peak period Tp, as many data sheets publish them.
+	PeriodTp
+)
+
+func (p Period) String() string {
+	switch p {
+	case PeriodTe:
+		return "te"
+	case PeriodTp:
+		return "tp"
+	}
+	return fmt.Sprintf("Period(%d)", int(p))
+}
+
+// ParsePeriod reads "te" or "tp" (any case; "" is Te).
+func ParsePeriod(s string) (Period, error) {
+	switch strings.ToLower(strings.TrimSpace(s)) {
+	case "", "te":
+		return PeriodTe, nil
+	case "tp":
+		return PeriodTp, nil
+	}
+	return 0, fmt.Errorf("period %q: use \"te\" (energy period) or \"tp\" (peak period)", s)
+}
 
 func (l Lookup) String() string {
 	switch l {
@@ -39,22 +75,34 @@ func (l Lookup) String() string {
 
 // Device is a wave energy converter described by its power matrix: mean
 // electrical power (kW) per sea state, rows by Hm0 bin centre (m) and
-// columns by Te bin centre (s). Outside the matrix (beyond the outer bin
-// edges) the device produces nothing.
+// columns by period bin centre (s): Te, or Tp when Period is PeriodTp.
+// Outside the matrix (beyond the outer bin edges) the device produces
+// nothing.
 type Device struct {
 	Name    string
 	Hm0M    []float64 // row centres, strictly increasing, at least 2
-	TeS     []float64 // column centres, strictly increasing, at least 2
+	TeS     []float64 // column centres (s) of the matrix's period (Te or Tp), strictly increasing, at least 2
 	PowerKW []float64 // len(Hm0M)*len(TeS), row-major: PowerKW[i*len(TeS)+j]
 	Lookup  Lookup
+	// Period is the period of the columns. A Tp matrix takes each step's Tp
+	// (Step.Tp) when TeOverTp is 0, and Tp = Te / TeOverTp otherwise (a
+	// record without Tp: the run's Te/Tp assumption).
+	Period   Period
+	TeOverTp float64
+	// Rated is the device's rated power (kW) from its data sheet; 0 means
+	// the largest entry of the matrix. It may not lie below that entry.
+	Rated float64
+	// HeaderPeriod is the period named by the corner label of the CSV
+	// header ("te", "tp"), "" when the label names none (ReadPowerMatrixCSV).
+	HeaderPeriod string
 
 	// set by prepare
 	rows, cols axis
 	ratedKW    float64
 }
 
-// RatedKW returns the rated power, taken as the largest entry of the matrix
-// (valid after Config.Validate).
+// RatedKW returns the rated power: Rated when given, else the largest entry
+// of the matrix (valid after Config.Validate).
 func (d *Device) RatedKW() float64 { return d.ratedKW }
 
 // axis is one side of a matrix: centres and bin edges, with a fast path for
@@ -174,6 +222,19 @@ func (d *Device) prepare() error {
 	if d.ratedKW == 0 {
 		return fmt.Errorf("%s: every power in the matrix is zero", where)
 	}
+	if d.Rated != 0 {
+		if !(d.Rated >= d.ratedKW) || d.Rated > maxDevicePowerKW {
+			return fmt.Errorf("%s: rated power %g kW is below the largest entry of the power matrix (%g kW) or not a finite number: give the data sheet's rated power, at least the matrix maximum",
+				where, d.Rated, d.ratedKW)
+		}
+		d.ratedKW = d.Rated
+	}
+	if d.Period != PeriodTe && d.Period != PeriodTp {
+		return fmt.Errorf("%s: unknown period %d (use PeriodTe or PeriodTp)", where, int(d.Period))
+	}
+	if d.TeOverTp != 0 && !(d.TeOverTp > 0 && d.TeOverTp <= 1) {
+		return fmt.Errorf("%s: Te/Tp ratio %g must lie in (0, 1]", where, d.TeOverTp)
+	}
 	d.rows, d.cols = newAxis(d.Hm0M), newAxis(d.TeS)
 	return nil
 }
@@ -197,7 +258,20 @@ const (
 	devOutside
 )
 
-// power returns the device power (kW) in sea state (hm0, te) and its class.
+// period returns the value of the matrix's period for a step with energy
+// period te (teOK: valid) and peak period tp, and whether it is valid.
+func (d *Device) period(te float64, teOK bool, tp float64) (float64, bool) {
+	switch {
+	case d.Period == PeriodTe:
+		return te, teOK
+	case d.TeOverTp > 0:
+		return te / d.TeOverTp, teOK
+	}
+	return tp, tp >= 0 && tp < maxT
+}
+
+// power returns the device power (kW) in sea state (hm0, te) and its class;
+// te is the matrix's period (Te or Tp, see period).
 // Below the lowest Hm0 edge the device is below cut-in; beyond the other
 // edges it is outside its matrix (shut down, e.g. survival mode): zero power.
 func (d *Device) power(hm0, te float64) (float64, int) {
@@ -226,9 +300,13 @@ func (d *Device) power(hm0, te float64) (float64, int) {
 //
 //	P = (1-u)(1-t) P[k][l] + (1-u) t P[k][l+1] + u (1-t) P[k+1][l] + u t P[k+1][l+1]
 //
-// with u, t the fractional positions between the surrounding Hm0 and Te
+// with u, t the fractional positions between the surrounding Hm0 and period
 // centres (textbook bilinear interpolation; common practice for power
-// matrices, which IEC TS 62600-100 defines by bins only).
+// matrices, which IEC TS 62600-100 defines by bins only). Edges: u and t are
+// clamped to [0, 1], so between an outer centre and the outer bin edge the
+// value on the outer centre line is held (no extrapolation); the caller
+// (power) has already sent every sea state beyond the outer edges to zero
+// power, so a sea state there is never interpolated.
 func bilinear(d *Device, hm0, te float64) float64 {
 	k, u := d.rows.interp(hm0)
 	l, t := d.cols.interp(te)
@@ -245,9 +323,15 @@ const maxDevicePowerKW = 1 << 30
 // ReadPowerMatrixCSV reads a power matrix in swellgrid's CSV layout:
 //
 //	# comment lines start with '#'
-//	hm0_m\te_s, 5.5, 6.5, 7.5      <- first cell is a free label; then Te centres (s)
-//	0.75,        0,  12,  20       <- Hm0 centre (m), then power (kW) per Te column
+//	hm0_m\te_s, 5.5, 6.5, 7.5      <- first cell is a label; then period centres (s)
+//	0.75,        0,  12,  20       <- Hm0 centre (m), then power (kW) per column
 //	1.25,       18,  40,  55
+//
+// The corner label may say the period of the columns after a backslash or
+// slash: "hm0_m\te_s" (Te) or "hm0_m\tp_s" (Tp) set HeaderPeriod and
+// Period; a label that names another period (Tz, Tm02, T01, ...) is refused,
+// since the matrix cannot be used with Te or Tp; any other label is free and
+// leaves the period to the caller (Te by default).
 //
 // Every row must have as many cells as the header; centres must increase;
 // powers must be numbers >= 0 (write 0 where the device does not run). The
@@ -277,6 +361,14 @@ func ReadPowerMatrixCSV(r io.Reader, name string) (*Device, error) {
 		return v, nil
 	}
 	d := &Device{Name: name}
+	hp, err := labelPeriod(hdr[0])
+	if err != nil {
+		return nil, fmt.Errorf("power matrix %q: row 1, column 1: %w", name, err)
+	}
+	d.HeaderPeriod = hp
+	if hp == "tp" {
+		d.Period = PeriodTp
+	}
 	for j := 1; j < len(hdr); j++ {
 		v, err := num(hdr[j], 1, j+1, "Te centre")
 		if err != nil {
@@ -307,4 +399,29 @@ func ReadPowerMatrixCSV(r io.Reader, name string) (*Device, error) {
 		return nil, fmt.Errorf("power matrix %q: %w", name, err)
 	}
 	return d, nil
+}
+
+// labelPeriod reads the period named by a matrix's corner label
+// ("hm0_m\tp_s" -> "tp"): the part after the last backslash, slash or
+// '|', up to '_', ' ', '(' or '[', in lower case. Te and its symbol Tm-1,0
+// give "te", Tp "tp", other period symbols an error, anything else "".
+func labelPeriod(label string) (string, error) {
+	l := strings.ToLower(strings.TrimSpace(label))
+	k := strings.LastIndexAny(l, `\/|`)
+	if k < 0 {
+		return "", nil
+	}
+	tok := strings.TrimSpace(l[k+1:])
+	if e := strings.IndexAny(tok, "_ ([,"); e >= 0 {
+		tok = tok[:e]
+	}
+	switch tok {
+	case "te", "tm-10", "tm-1", "t-10", "tm10":
+		return "te", nil
+	case "tp", "tpeak":
+		return "tp", nil
+	case "tz", "t02", "tm02", "tm2", "t01", "tm01", "tm", "tmean", "tm1", "ts":
+		return "", fmt.Errorf("label %q gives the columns over %s: swellgrid uses power matrices over Te or Tp only; convert the matrix", label, tok)
+	}
+	return "", nil
 }

@@ -93,6 +93,7 @@ func (s *CellState) Merge(later *CellState) error {
 		a.eAll += b.eAll
 		a.eAbove += b.eAbove
 		a.eBelow += b.eBelow
+		a.eOut += b.eOut
 	}
 	return nil
 }

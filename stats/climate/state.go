@@ -65,6 +65,7 @@ type devAcc struct {
 	eAll   uint64 // sum of w*qJ over those
 	eAbove uint64
 	eBelow uint64
+	eOut   uint64
 }
 
 // CellState is the mergeable climate state of one cell (see the package
@@ -356,10 +357,14 @@ func (s *CellState) Add(st *Step) {
 	}
 
 	// devices
-	if hOK && teOK {
+	if hOK {
 		for k, d := range s.cfg.Devices {
+			x, xOK := d.period(te, teOK, st.Tp)
+			if !xOK {
+				continue
+			}
 			a := &s.dev[k]
-			p, class := d.power(h, te)
+			p, class := d.power(h, x)
 			a.w += wi
 			a.sP.addMul(wi, uint64(p*qP+0.5))
 			above := class == devInside && p >= d.ratedKW*(1-1e-12)
@@ -379,6 +384,8 @@ func (s *CellState) Add(st *Step) {
 					a.eAbove += e
 				} else if class == devBelowCutIn {
 					a.eBelow += e
+				} else if class == devOutside {
+					a.eOut += e
 				}
 			}
 		}

@@ -8,20 +8,24 @@ import (
 type DeviceSummary struct {
 	Name    string
 	Lookup  string  // "bin" or "bilinear"
-	RatedKW float64 // largest entry of the power matrix
+	RatedKW float64 // the device's rated power (Device.Rated), else the largest entry of the power matrix
+	Period  string  // "te" or "tp": the period of the matrix's columns
 	// MeanPowerKW is the time-weighted mean device power over the steps with
-	// valid Hm0 and Te; AEPMWh = MeanPowerKW * 8766 h / 1000; CapacityFactor
-	// = MeanPowerKW / RatedKW.
+	// valid Hm0 and matrix period; AEPMWh = MeanPowerKW * 8766 h / 1000;
+	// CapacityFactor = MeanPowerKW / RatedKW.
 	MeanPowerKW, AEPMWh, CapacityFactor float64
 	// Shares of time (of the steps with valid Hm0 and Te) the device is at
 	// rated power, below cut-in (zero power inside the matrix, or Hm0 below
 	// its lowest bin), or outside the matrix (shut down).
 	AboveRatedTimeShare, BelowCutInTimeShare, OutsideMatrixTimeShare float64
 	// Shares of the incident wave energy (sum of J dt) arriving while the
-	// device is at rated power or below cut-in: the resource it cannot use
-	// beyond rating, and the resource in seas too small for it.
-	AboveRatedEnergyShare, BelowCutInEnergyShare float64
-	// CoverageFrac is the share of the accepted step time with valid Hm0 and Te.
+	// device is at rated power, below cut-in, or in sea states outside its
+	// matrix (Hm0 above the top row's edge, or the period beyond the outer
+	// column edges): the resource it cannot use beyond rating, in seas too
+	// small for it, and in seas its matrix does not cover (zero power).
+	AboveRatedEnergyShare, BelowCutInEnergyShare, OutsideMatrixEnergyShare float64
+	// CoverageFrac is the share of the accepted step time with valid Hm0 and
+	// matrix period (Te, or Tp for a matrix over Tp).
 	CoverageFrac float64
 }
 
@@ -132,7 +136,7 @@ func (s *CellState) Summary() Summary {
 
 	for k, d := range c.Devices {
 		a := &s.dev[k]
-		ds := DeviceSummary{Name: d.Name, Lookup: d.Lookup.String(), RatedKW: d.ratedKW}
+		ds := DeviceSummary{Name: d.Name, Lookup: d.Lookup.String(), RatedKW: d.ratedKW, Period: d.Period.String()}
 		share := func(x, w uint64) float64 {
 			if w == 0 {
 				return nan
@@ -151,6 +155,7 @@ func (s *CellState) Summary() Summary {
 		ds.OutsideMatrixTimeShare = share(a.wOut, a.w)
 		ds.AboveRatedEnergyShare = share(a.eAbove, a.eAll)
 		ds.BelowCutInEnergyShare = share(a.eBelow, a.eAll)
+		ds.OutsideMatrixEnergyShare = share(a.eOut, a.eAll)
 		ds.CoverageFrac = share(a.w, s.wAll)
 		out.Devices = append(out.Devices, ds)
 	}
