@@ -72,18 +72,37 @@ mutants: test-deps
 
 # bench: the pipeline against the read floor (generated data cached in
 # $(BENCH_CACHE); about 10 minutes on 2 cores, plus 2-3 minutes the first time
-# for the data), then every Go micro-benchmark, summarised with benchstat.
-# Figures go to $(BENCH_OUT)/; BENCHMARKS.md says how to read them.
+# for the data), before and after in one run: the same benchmark driver is also
+# built on the library of commit $(BENCH_BEFORE) (git archive, this tree's
+# pipelines/bench and stream benchmarks laid over it) and every pipeline case
+# runs with both, the before case first. Then the key micro-benchmarks on both
+# trees (benchstat before vs after) and the tables of every fixture compared
+# (compare_outputs.sh). Figures go to $(BENCH_OUT)/; BENCHMARKS.md says how to
+# read them. BENCH_PARTS=full measures the full record only.
 BENCH_OUT   ?= bench-out
 BENCH_CACHE ?= $(HOME)/.cache/swellgrid-bench
+BENCH_BEFORE ?= 60c6ddd
+BENCH_PARTS ?= full,half
+BENCH_MICRO ?= FeedBulk|FeedSpectral|FinishBulk|GroupVelocity|BulkDepthPower|FitGEV|FitGPD|^BenchmarkAdd
 BENCHSTAT_VERSION := v0.0.0-20260908200009-22c9c6c9d4da
 bench: deps
-	@mkdir -p $(BENCH_OUT)
+	@mkdir -p $(BENCH_OUT) bin
 	$(GO) build -o bin/sgbench ./pipelines/bench/cmd/sgbench
-	./bin/sgbench -cache $(BENCH_CACHE) -md $(BENCH_OUT)/pipeline.md
-	$(GO) test -run '^$$' -bench . -benchmem -count 5 -benchtime 0.2s ./... > $(BENCH_OUT)/micro.txt
+	$(GO) build -o bin/sgdiff ./pipelines/bench/cmd/sgdiff
+	$(GO) build -o $(BIN) ./cmd/swellgrid
+	rm -rf $(BENCH_OUT)/before-src && mkdir -p $(BENCH_OUT)/before-src
+	git archive $(BENCH_BEFORE) | tar -x -C $(BENCH_OUT)/before-src
+	rm -rf $(BENCH_OUT)/before-src/pipelines/bench && cp -r pipelines/bench $(BENCH_OUT)/before-src/pipelines/
+	cp pipelines/stream_bench_test.go $(BENCH_OUT)/before-src/pipelines/
+	cd $(BENCH_OUT)/before-src && $(GO) build -o $(CURDIR)/bin/sgbench-before ./pipelines/bench/cmd/sgbench \
+	  && $(GO) build -o $(CURDIR)/bin/swellgrid-before ./cmd/swellgrid
+	./bin/sgbench -cache $(BENCH_CACHE) -before bin/sgbench-before -parts $(BENCH_PARTS) -md $(BENCH_OUT)/pipeline.md
+	cd $(BENCH_OUT)/before-src && $(GO) test -run '^$$' -bench '$(BENCH_MICRO)' -benchmem -count 5 -benchtime 0.2s \
+	  ./pipelines/ ./stats/... > $(CURDIR)/$(BENCH_OUT)/micro-before.txt
+	$(GO) test -run '^$$' -bench '$(BENCH_MICRO)' -benchmem -count 5 -benchtime 0.2s ./pipelines/ ./stats/... > $(BENCH_OUT)/micro.txt
 	$(GO) install golang.org/x/perf/cmd/benchstat@$(BENCHSTAT_VERSION)
-	"$$($(GO) env GOPATH)/bin/benchstat" $(BENCH_OUT)/micro.txt | tee $(BENCH_OUT)/micro-benchstat.txt
+	"$$($(GO) env GOPATH)/bin/benchstat" before=$(BENCH_OUT)/micro-before.txt after=$(BENCH_OUT)/micro.txt | tee $(BENCH_OUT)/micro-benchstat.txt
+	./pipelines/bench/compare_outputs.sh bin/swellgrid-before $(BIN) bin/sgdiff > $(BENCH_OUT)/tables.txt; cat $(BENCH_OUT)/tables.txt
 
 # Fuzz targets, each for FUZZTIME (go test -fuzz runs one target at a time).
 # A crasher is saved under the package's testdata/fuzz/ and must become a

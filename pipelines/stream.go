@@ -89,20 +89,55 @@ func (e *engine) newCell(id int) *cell {
 type stepTime struct {
 	year, month int
 	hours       float64
+	ct          climate.StepTime // the same, checked and in minutes, for climate.CellState.AddAt
 }
 
 // feed adds the block's steps of cells lo..hi-1 (canonical ids) to their
 // states. It is the hot path: one call per worker per block.
 func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi int) {
+	if !e.spectral {
+		e.feedBulk(b, times, cells, lo, hi)
+		return
+	}
 	nc := b.NC()
 	var p seastate.Params
-	step := climate.Step{DtHours: e.dtHours}
+	per := b.NF * b.ND
+	nan := math.NaN()
+	for id := lo; id < hi; id++ {
+		c := cells[id-b.C0]
+		if c == nil {
+			continue
+		}
+		k := id - b.C0
+		for t := 0; t < b.NT; t++ {
+			st := &times[t]
+			i := t*nc + k
+			j, hm0, te, tp, dir := nan, nan, nan, nan, nan
+			if s := b.Spec[i*per : (i+1)*per]; !allMissing(s) {
+				// missing (NaN) and non-finite bins are set to 0 and counted by the kernel
+				c.kern.Params(s, &p)
+				c.spec.Add(&p)
+				if p.Valid {
+					j, hm0, te, tp, dir = p.J, p.Hm0, p.Te, p.Tp, p.MeanDirDeg
+				}
+			}
+			c.clim.AddAt(&st.ct, j, hm0, te, tp, dir)
+			c.col.Add(st.year, st.month, st.hours, hm0, te, tp)
+		}
+	}
+}
+
+// feedBulk is feed for bulk parameters: the finite-depth power from the
+// group-velocity table (seastate.BulkDepth), one cell at a time over the
+// block's steps, with the time fields prepared once per block.
+func (e *engine) feedBulk(b *ingest.Block, times []stepTime, cells []*cell, lo, hi int) {
+	nc := b.NC()
 	hm0s, tes, tps, dirs := b.Bulk[ingest.Hm0], b.Bulk[ingest.Te], b.Bulk[ingest.Tp], b.Bulk[ingest.Dir]
 	if dirs == nil {
 		dirs = b.Bulk[ingest.DirPeak]
 	}
-	per := b.NF * b.ND
 	alpha := e.spec.Physics.TeOverTp
+	nan := math.NaN()
 	for id := lo; id < hi; id++ {
 		c := cells[id-b.C0]
 		if c == nil {
@@ -111,47 +146,27 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 		k := id - b.C0
 		bd := seastate.NewBulkDepth(e.cat.Depth[id], e.consts.G) // NaN/+Inf: deep water
 		for t := 0; t < b.NT; t++ {
-			st := times[t]
-			step.Year, step.Month, step.Hours = st.year, st.month, st.hours
+			st := &times[t]
 			i := t*nc + k
-			if e.spectral {
-				s := b.Spec[i*per : (i+1)*per]
-				if allMissing(s) {
-					step.J, step.Hm0, step.Te, step.Tp, step.DirDeg = math.NaN(), math.NaN(), math.NaN(), math.NaN(), math.NaN()
-				} else {
-					// missing (NaN) and non-finite bins are set to 0 and counted by the kernel
-					c.kern.Params(s, &p)
-					c.spec.Add(&p)
-					if p.Valid {
-						step.J, step.Hm0, step.Te, step.Tp, step.DirDeg = p.J, p.Hm0, p.Te, p.Tp, p.MeanDirDeg
-					} else {
-						step.J, step.Hm0, step.Te, step.Tp, step.DirDeg = math.NaN(), math.NaN(), math.NaN(), math.NaN(), math.NaN()
-					}
-				}
-			} else {
-				hm0 := hm0s[i]
-				te, tp := math.NaN(), math.NaN()
-				if tps != nil {
-					tp = tps[i]
-				}
-				if tes != nil {
-					te = tes[i]
-				} else {
-					te = seastate.TeFromTp(tp, alpha)
-				}
-				step.Hm0, step.Te, step.Tp = hm0, te, tp
-				step.DirDeg = math.NaN()
-				if dirs != nil {
-					step.DirDeg = dirs[i]
-				}
-				if hm0 >= 0 && te > 0 {
-					step.J = bd.Power(hm0, te, e.consts) // cg from the table, rel. error < 1e-9
-				} else {
-					step.J = math.NaN()
-				}
+			hm0 := hm0s[i]
+			te, tp, dir := nan, nan, nan
+			if tps != nil {
+				tp = tps[i]
 			}
-			c.clim.Add(&step)
-			c.col.Add(step.Year, step.Month, step.Hours, step.Hm0, step.Te, step.Tp)
+			if tes != nil {
+				te = tes[i]
+			} else {
+				te = seastate.TeFromTp(tp, alpha)
+			}
+			if dirs != nil {
+				dir = dirs[i]
+			}
+			j := nan
+			if hm0 >= 0 && te > 0 {
+				j = bd.Power(hm0, te, e.consts) // cg from the table, rel. error < 1e-9
+			}
+			c.clim.AddAt(&st.ct, j, hm0, te, tp, dir)
+			c.col.Add(st.year, st.month, st.hours, hm0, te, tp)
 		}
 	}
 }
@@ -173,7 +188,8 @@ func (e *engine) blockTimes(b *ingest.Block) []stepTime {
 	out := make([]stepTime, b.NT)
 	for t, s := range b.Times {
 		d := e.cat.Date(s)
-		out[t] = stepTime{year: d.Year, month: d.Month, hours: s.Hours()}
+		out[t] = stepTime{year: d.Year, month: d.Month, hours: s.Hours(),
+			ct: climate.PrepareTime(d.Year, d.Month, s.Hours(), e.dtHours)}
 	}
 	return out
 }

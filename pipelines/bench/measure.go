@@ -11,6 +11,7 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"syscall"
 	"time"
 
 	"swellgrid/ingest"
@@ -24,6 +25,8 @@ type Case struct {
 	Mode  string   `json:"mode"`  // "floor", "ingest" or "pipeline"
 	Files []string `json:"files"` // the input files
 	Out   string   `json:"out"`   // scratch output directory (pipeline)
+	// MemoryLimit, if set, is the pipeline's run.memory_limit (default 2GiB).
+	MemoryLimit string `json:"memory_limit,omitempty"`
 }
 
 // Measure is what a child reports.
@@ -37,6 +40,10 @@ type Measure struct {
 	PeakRSS   int64              `json:"peak_rss_bytes"`
 	Timings   map[string]float64 `json:"timings_s,omitempty"` // pipeline: the manifest's stage timings
 	InputSize int64              `json:"input_bytes"`
+	// CPUS is the child's user + system CPU time (getrusage of the child,
+	// filled in by Spawn): on a machine shared with other jobs it shows the
+	// work done, which the wall time mixes with waiting for a core.
+	CPUS float64 `json:"cpu_s"`
 }
 
 // RunChild performs one case in this process and returns its figures. The
@@ -71,6 +78,9 @@ func RunChild(c Case) (*Measure, error) {
 	case "pipeline":
 		spec.Input.Paths = c.Files
 		spec.Output.Dir = c.Out
+		if c.MemoryLimit != "" {
+			spec.Run.MemoryLimit = c.MemoryLimit
+		}
 		t0 := time.Now()
 		res, err := pipelines.Run(context.Background(), spec, pipelines.Options{Restart: true, Version: "bench"})
 		if err != nil {
@@ -133,11 +143,17 @@ const ChildEnv = "SWELLGRID_BENCH_CASE"
 // Spawn runs one case in a child process (this executable with ChildEnv set)
 // and decodes its report.
 func Spawn(c Case) (*Measure, error) {
-	raw, err := json.Marshal(c)
+	exe, err := os.Executable()
 	if err != nil {
 		return nil, err
 	}
-	exe, err := os.Executable()
+	return SpawnWith(exe, c)
+}
+
+// SpawnWith runs one case in the benchmark program exe (for instance the same
+// driver built on the library of an earlier commit, see `make bench`).
+func SpawnWith(exe string, c Case) (*Measure, error) {
+	raw, err := json.Marshal(c)
 	if err != nil {
 		return nil, err
 	}
@@ -151,6 +167,9 @@ func Spawn(c Case) (*Measure, error) {
 	var m Measure
 	if err := json.Unmarshal(stdout.Bytes(), &m); err != nil {
 		return nil, fmt.Errorf("bench: case %s/%s/%s: bad report %q: %v", c.Data, c.Part, c.Mode, stdout.String(), err)
+	}
+	if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
+		m.CPUS = float64(ru.Utime.Nano()+ru.Stime.Nano()) / 1e9
 	}
 	return &m, nil
 }

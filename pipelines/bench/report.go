@@ -13,9 +13,15 @@ import (
 
 // Config sets up a benchmark run.
 type Config struct {
-	Cache    string    // cache directory of the generated hindcasts
-	Markdown string    // if set, write the figures as Markdown here
-	Only     string    // "bulk", "spectral" or "" (both)
+	Cache    string // cache directory of the generated hindcasts
+	Markdown string // if set, write the figures as Markdown here
+	Only     string // "bulk", "spectral" or "" (both)
+	// Before, if set, is the benchmark program built on the library of an
+	// earlier commit (`make bench` builds it from BENCH_BEFORE): every
+	// pipeline case then runs with it too, right before the current one.
+	Before string
+	// Parts are the record lengths measured: "full", "half" (default both).
+	Parts    []string
 	Log, Out io.Writer // progress and the report
 }
 
@@ -23,6 +29,10 @@ type Config struct {
 type Row struct {
 	Data, Part              string
 	Floor, Ingest, Pipeline *Measure
+	Before                  *Measure // the pipeline with Config.Before (nil: not run)
+	// Mem256 and Mem256Before: the pipeline with run.memory_limit = 256MiB
+	// (bulk, the first record length measured).
+	Mem256, Mem256Before *Measure
 }
 
 // Targets of the benchmark (issue 9): pipeline / read floor.
@@ -61,28 +71,53 @@ func Main(cfg Config) error {
 	defer os.RemoveAll(scratch)
 	var rows []*Row
 	for _, d := range sets {
-		for _, part := range []string{"full", "half"} {
+		parts := cfg.Parts
+		if len(parts) == 0 {
+			parts = []string{"full", "half"}
+		}
+		for _, part := range parts {
 			files := d.Files
 			if part == "half" {
 				files = files[:len(files)/2]
 			}
 			r := &Row{Data: d.Name, Part: part}
-			for _, mode := range []string{"floor", "ingest", "pipeline"} {
+			modes := []string{"floor", "ingest", "pipeline-before", "pipeline"}
+			if d.Name == "bulk" && part == parts[0] {
+				modes = append(modes, "mem256-before", "mem256")
+			}
+			for _, mode := range modes {
+				exe, _ := os.Executable()
+				if strings.HasSuffix(mode, "-before") {
+					if cfg.Before == "" {
+						continue
+					}
+					exe = cfg.Before
+				}
 				if err := warm(files); err != nil {
 					return err
 				}
-				c := Case{Data: d.Name, Part: part, Mode: mode, Files: files, Out: filepath.Join(scratch, d.Name+"-"+part)}
+				base := strings.TrimSuffix(mode, "-before")
+				c := Case{Data: d.Name, Part: part, Mode: base, Files: files, Out: filepath.Join(scratch, d.Name+"-"+part)}
+				if base == "mem256" {
+					c.Mode, c.MemoryLimit = "pipeline", "256MiB"
+				}
 				logf("measuring %s %s record: %s ...", d.Name, part, mode)
-				m, err := Spawn(c)
+				m, err := SpawnWith(exe, c)
 				if err != nil {
 					return err
 				}
-				logf("  %.1f s, peak %s", m.WallS, mib(m.PeakRSS))
+				logf("  %.1f s (CPU %.1f s), peak %s", m.WallS, m.CPUS, mib(m.PeakRSS))
 				switch mode {
 				case "floor":
 					r.Floor = m
 				case "ingest":
 					r.Ingest = m
+				case "pipeline-before":
+					r.Before = m
+				case "mem256":
+					r.Mem256 = m
+				case "mem256-before":
+					r.Mem256Before = m
 				default:
 					r.Pipeline = m
 				}
@@ -147,11 +182,34 @@ func Report(rows []*Row, sets []*Dataset, total time.Duration) string {
 			r.Data, r.Part, p.Steps, f.WallS, r.Ingest.WallS, p.WallS, p.WallS/f.WallS, Targets[r.Data],
 			p.Timings["stream_s"]/f.WallS, cs/p.WallS, spectra, mib(f.PeakRSS), mib(p.PeakRSS))
 	}
-	fmt.Fprintf(&b, "\nScaling with the record length (full / half):\n\n| data | time ratio | peak memory ratio | memory target |\n|---|---:|---:|---:|\n")
-	for i := 0; i+1 < len(rows); i += 2 {
-		full, half := rows[i], rows[i+1]
-		fmt.Fprintf(&b, "| %s | %.2f | %.3f | %.1f |\n", full.Data, full.Pipeline.WallS/half.Pipeline.WallS,
-			float64(full.Pipeline.PeakRSS)/float64(half.Pipeline.PeakRSS), MemoryTarget)
+	if anyBefore(rows) {
+		fmt.Fprintf(&b, "\nBefore and after, same machine, same run (each pipeline case right after its before case; CPU = user + system of the child process, which on a shared machine shows the work done while the wall time also counts waiting for a core):\n\n")
+		fmt.Fprintf(&b, "| data | record | memory limit | read floor s | floor CPU s | before s | after s | before / floor | after / floor | before CPU s | after CPU s | before peak RSS | after peak RSS | before fit_s | after fit_s |\n")
+		fmt.Fprintf(&b, "|---|---|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|\n")
+		line := func(r *Row, lim string, bm, am *Measure) {
+			if bm == nil || am == nil {
+				return
+			}
+			f := r.Floor
+			fmt.Fprintf(&b, "| %s | %s | %s | %.1f | %.1f | %.1f | %.1f | %.2f | %.2f | %.1f | %.1f | %s | %s | %.2f | %.2f |\n",
+				r.Data, r.Part, lim, f.WallS, f.CPUS, bm.WallS, am.WallS, bm.WallS/f.WallS, am.WallS/f.WallS,
+				bm.CPUS, am.CPUS, mib(bm.PeakRSS), mib(am.PeakRSS), bm.Timings["fit_s"], am.Timings["fit_s"])
+		}
+		for _, r := range rows {
+			line(r, "2GiB", r.Before, r.Pipeline)
+			line(r, "256MiB", r.Mem256Before, r.Mem256)
+		}
+	}
+	if len(rows) >= 2 && rows[0].Data == rows[1].Data {
+		fmt.Fprintf(&b, "\nScaling with the record length (full / half):\n\n| data | time ratio | peak memory ratio | memory target |\n|---|---:|---:|---:|\n")
+		for i := 0; i+1 < len(rows); i += 2 {
+			full, half := rows[i], rows[i+1]
+			if full.Data != half.Data {
+				break
+			}
+			fmt.Fprintf(&b, "| %s | %.2f | %.3f | %.1f |\n", full.Data, full.Pipeline.WallS/half.Pipeline.WallS,
+				float64(full.Pipeline.PeakRSS)/float64(half.Pipeline.PeakRSS), MemoryTarget)
+		}
 	}
 	fmt.Fprintf(&b, "\nPipeline stages (seconds; busy times of concurrent stages overlap the stream stage's wall time):\n\n")
 	keys := map[string]bool{}
@@ -180,6 +238,15 @@ func Report(rows []*Row, sets []*Dataset, total time.Duration) string {
 	}
 	fmt.Fprintf(&b, "\nWhole benchmark (generation included if it ran): %.1f min.\n", total.Minutes())
 	return b.String()
+}
+
+func anyBefore(rows []*Row) bool {
+	for _, r := range rows {
+		if r.Before != nil {
+			return true
+		}
+	}
+	return false
 }
 
 func cpuModel() string {

@@ -216,31 +216,65 @@ func (s *CellState) endRun(l int) {
 	}
 }
 
+// StepTime is the part of a step that every cell at that time shares: the
+// calendar month, the start and the weight in whole minutes, checked once
+// (PrepareTime) so that the per-cell update does not redo it.
+type StepTime struct {
+	Year  int
+	cm    int8 // calendar month 0..11
+	bad   bool // rejected: bad month, step length or time
+	start int64
+	w     uint64
+}
+
+// PrepareTime checks and converts the time fields of a step (see Add): a
+// month outside 1..12, a step length that is not positive (or under 30 s,
+// or over 728 days) or a non-finite time makes the step rejected.
+func PrepareTime(year, month int, hours, dtHours float64) StepTime {
+	t := StepTime{Year: year, cm: int8(month - 1)}
+	cm := month - 1
+	if cm < 0 || cm > 11 || !(dtHours > 0) || dtHours*60 > maxW || !(math.Abs(hours) < 1e14) {
+		t.bad = true
+		return t
+	}
+	t.w = uint64(dtHours*60 + 0.5)
+	if t.w == 0 {
+		t.bad = true
+		return t
+	}
+	t.start = int64(math.Floor(hours*60 + 0.5))
+	return t
+}
+
 // Add feeds one step. Steps of one state must come in time order (a step
 // earlier than the previous one is counted and treated as a gap). Missing
 // values (NaN) are skipped per variable; negative, infinite or absurdly large
 // values are counted as invalid and skipped. A step with a month outside
 // 1..12, a step length that is not positive (or under 30 s, or over 728
 // days) or a non-finite time is rejected and counted. Add does not allocate
-// except when a step brings a new year.
+// except when a step brings a new year. It is PrepareTime then AddAt.
 func (s *CellState) Add(st *Step) {
+	t := PrepareTime(st.Year, st.Month, st.Hours, st.DtHours)
+	s.AddAt(&t, st.J, st.Hm0, st.Te, st.Tp, st.DirDeg)
+}
+
+// AddAt feeds one step whose time fields were prepared by PrepareTime (shared
+// by all cells of a time step), with J (W/m), Hm0 (m), Te, Tp (s) and the
+// direction (degrees); exactly as Add.
+func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) {
 	s.nSteps++
-	cm := st.Month - 1
-	if cm < 0 || cm > 11 || !(st.DtHours > 0) || st.DtHours*60 > maxW || !(math.Abs(st.Hours) < 1e14) {
+	if t.bad {
 		s.reject()
 		return
 	}
-	wi := uint64(st.DtHours*60 + 0.5)
-	if wi == 0 {
-		s.reject()
-		return
-	}
-	yi := s.ymIndex(st.Year, cm)
+	cm := int(t.cm)
+	wi := t.w
+	yi := s.ymIndex(t.Year, cm)
 	if yi < 0 {
 		s.reject()
 		return
 	}
-	start := int64(math.Floor(st.Hours*60 + 0.5))
+	start := t.start
 	contiguous := s.hasAcc && !s.endBroken && s.lastEnd == start
 	if s.hasAcc {
 		if start < s.lastEnd {
@@ -260,13 +294,13 @@ func (s *CellState) Add(st *Step) {
 	rec := &s.ym[yi]
 	w32 := uint32(wi)
 
-	// J
-	j := st.J
+	// J (values are below 2^63 here, so the float-to-int64 conversion,
+	// cheaper than to uint64, gives the same integer)
 	jOK := false
 	var qj uint64
 	if j >= 0 && j < maxJ {
 		jOK = true
-		qj = uint64(j*qJ + 0.5)
+		qj = uint64(int64(j*qJ + 0.5))
 		s.wJ += wi
 		s.sJ += wi * qj
 		s.s2J.addMul(wi, qj*qj)
@@ -284,11 +318,10 @@ func (s *CellState) Add(st *Step) {
 	}
 
 	// Hm0
-	h := st.Hm0
 	hOK := false
 	if h >= 0 && h < maxH {
 		hOK = true
-		qh := uint64(h*qH + 0.5)
+		qh := uint64(int64(h*qH + 0.5))
 		s.wH += wi
 		s.sH += wi * qh
 		s.s2H.addMul(wi, qh*qh)
@@ -310,24 +343,23 @@ func (s *CellState) Add(st *Step) {
 	}
 
 	// Te, Tp
-	te := st.Te
 	teOK := false
 	if te >= 0 && te < maxT {
 		teOK = true
 		s.wTe += wi
-		s.sTe += wi * uint64(te*qT+0.5)
+		s.sTe += wi * uint64(int64(te*qT+0.5))
 	} else if te == te {
 		s.nInvalid++
 	}
-	if tp := st.Tp; tp >= 0 && tp < maxT {
+	if tp >= 0 && tp < maxT {
 		s.wTp += wi
-		s.sTp += wi * uint64(tp*qT+0.5)
+		s.sTp += wi * uint64(int64(tp*qT+0.5))
 	} else if tp == tp {
 		s.nInvalid++
 	}
 
 	// direction
-	if d := st.DirDeg; d-d == 0 && math.Abs(d) < 1e9 { // finite
+	if d-d == 0 && math.Abs(d) < 1e9 { // finite
 		k := dirIndex(d)
 		s.wDir += wi
 		s.sSin += int64(wi) * int64(dirTable[k].sin)
@@ -472,6 +504,13 @@ var dirTable = func() [dirBins]sinCos {
 
 // dirIndex returns the table index of direction d (degrees, any finite value).
 func dirIndex(d float64) int {
+	if d >= 0 && d < 360 { // the usual case: truncation is the floor
+		k := int(d*(1/DirResDeg) + 0.5)
+		if k >= dirBins {
+			k -= dirBins
+		}
+		return k
+	}
 	k := int64(math.Floor(d*(1/DirResDeg) + 0.5))
 	k %= dirBins
 	if k < 0 {

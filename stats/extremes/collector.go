@@ -84,6 +84,11 @@ type Collector struct {
 	years   []yearStats
 	head    []Maximum // finite steps with t < t0 + sep (for exact merging)
 	window  []Maximum // monotone (decreasing Hm0) queue of finite steps within sep of last
+	// wbuf is the array window was last allocated in (window is a slice of
+	// it): feedPeak moves the queue back to its front instead of allocating
+	// when the queue has reached the end of the array. Never shared (clone
+	// and UnmarshalBinary leave it nil).
+	wbuf    []Maximum
 	hasPend bool
 	pend    Maximum   // candidate peak not yet confirmed
 	peaks   []Maximum // confirmed peaks, time order
@@ -184,7 +189,15 @@ func (c *Collector) feedPeak(s Maximum) {
 	for j > 0 && c.window[j-1].Hm0 <= s.Hm0 {
 		j--
 	}
-	c.window = append(c.window[:j], s)
+	if j == cap(c.window) && j < cap(c.wbuf) {
+		c.window = c.wbuf[:copy(c.wbuf[:j], c.window[:j])]
+	}
+	if j == cap(c.window) {
+		c.window = append(c.window[:j], s)
+		c.wbuf = c.window[:0]
+	} else {
+		c.window = append(c.window[:j], s)
+	}
 	if cand {
 		// Any pending candidate is within sep and smaller: it was removed above.
 		c.hasPend, c.pend = true, s
@@ -384,6 +397,7 @@ func (c *Collector) clone() *Collector {
 	d.years = append([]yearStats(nil), c.years...)
 	d.head = append([]Maximum(nil), c.head...)
 	d.window = append([]Maximum(nil), c.window...)
+	d.wbuf = nil
 	d.peaks = append([]Maximum(nil), c.peaks...)
 	return &d
 }

@@ -10,6 +10,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"swellgrid/pipelines/bench"
 )
@@ -33,8 +34,10 @@ func main() {
 	cache := flag.String("cache", filepath.Join(home, "swellgrid-bench"), "directory for the generated benchmark hindcasts")
 	md := flag.String("md", "", "also write the figures as Markdown to this file")
 	only := flag.String("only", "", `measure only this data set ("bulk" or "spectral")`)
+	before := flag.String("before", "", "also run every pipeline case with this benchmark program (built on an earlier commit)")
+	parts := flag.String("parts", "full,half", "record lengths to measure (full, half)")
 	flag.Parse()
-	cfg := bench.Config{Cache: *cache, Markdown: *md, Only: *only, Log: os.Stderr, Out: os.Stdout}
+	cfg := bench.Config{Cache: *cache, Markdown: *md, Only: *only, Before: *before, Parts: strings.Split(*parts, ","), Log: os.Stderr, Out: os.Stdout}
 	if err := bench.Main(cfg); err != nil {
 		fmt.Fprintln(os.Stderr, "sgbench:", err)
 		os.Exit(1)
