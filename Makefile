@@ -74,7 +74,7 @@ mutants: test-deps
 # $(BENCH_CACHE); about 10 minutes on 2 cores, plus 2-3 minutes the first time
 # for the data), before and after in one run: the same benchmark driver is also
 # built on the library of commit $(BENCH_BEFORE) (git archive, this tree's
-# pipelines/bench and stream benchmarks laid over it) and every pipeline case
+# pipelines/bench laid over it) and every pipeline case
 # runs with both, the before case first. Then the key micro-benchmarks on both
 # trees (benchstat before vs after) and the tables of every fixture compared
 # (compare_outputs.sh). Figures go to $(BENCH_OUT)/; BENCHMARKS.md says how to
@@ -93,7 +93,6 @@ bench: deps
 	rm -rf $(BENCH_OUT)/before-src && mkdir -p $(BENCH_OUT)/before-src
 	git archive $(BENCH_BEFORE) | tar -x -C $(BENCH_OUT)/before-src
 	rm -rf $(BENCH_OUT)/before-src/pipelines/bench && cp -r pipelines/bench $(BENCH_OUT)/before-src/pipelines/
-	cp pipelines/stream_bench_test.go $(BENCH_OUT)/before-src/pipelines/
 	cd $(BENCH_OUT)/before-src && $(GO) build -o $(CURDIR)/bin/sgbench-before ./pipelines/bench/cmd/sgbench \
 	  && $(GO) build -o $(CURDIR)/bin/swellgrid-before ./cmd/swellgrid
 	./bin/sgbench -cache $(BENCH_CACHE) -before bin/sgbench-before -parts $(BENCH_PARTS) -md $(BENCH_OUT)/pipeline.md

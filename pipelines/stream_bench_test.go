@@ -93,7 +93,7 @@ func BenchmarkFinishBulk(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	ccfg, err := spec.climateConfig(cat.Calendar)
+	ccfg, err := spec.climateConfig(cat)
 	if err != nil {
 		b.Fatal(err)
 	}

@@ -391,7 +391,7 @@ func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) {
 	// devices
 	if hOK {
 		for k, d := range s.cfg.Devices {
-			x, xOK := d.period(te, teOK, st.Tp)
+			x, xOK := d.period(te, teOK, tp)
 			if !xOK {
 				continue
 			}
