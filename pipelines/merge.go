@@ -127,6 +127,16 @@ func validateMerge(ctx context.Context, out string, shardDirs []string, opt Opti
 		return nil, nil, inputErr(fmt.Errorf("merge: the shards' spec: %w", err))
 	}
 	if fp := spec.Fingerprint(); fp != first.Fingerprint {
+		// The shards' state files record what the fingerprint hashed.
+		if len(first.Passes) > 0 {
+			p := first.Passes[0]
+			if h, _, f, err := readCkHeader(ckPath(shardDirs[order[0]], p[0], p[1])); err == nil {
+				f.Close()
+				if len(h.Spec) > 0 {
+					return nil, nil, inputErr(fmt.Errorf("merge: the spec or a file it names changed since the shards ran (%s); rerun the shards", fingerprintChanges(h.Spec, &spec)))
+				}
+			}
+		}
 		return nil, nil, inputErr(fmt.Errorf("merge: the spec recorded in %s does not reproduce its fingerprint (software version %s); rerun the shards with this version", filepath.Join(shardDirs[order[0]], shardFile), first.Version))
 	}
 	ts := time.Now()

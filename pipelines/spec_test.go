@@ -172,4 +172,21 @@ func TestFingerprintFollowsNamedFileContent(t *testing.T) {
 	if ExitCode(err) != 2 || !strings.Contains(err.Error(), "device[0].power_matrix") || !strings.Contains(err.Error(), a) || !strings.Contains(err.Error(), "--restart") {
 		t.Fatalf("resume after the matrix changed: %v", err)
 	}
+
+	// A merge of shards run before the edit is refused the same way.
+	root := t.TempDir()
+	in := []string{filepath.Join("..", "testdata", "points_bulk.nc")}
+	var dirs []string
+	for i := 1; i <= 2; i++ {
+		d := filepath.Join(root, "shard", itoa(i))
+		sh := clSpec(in, d)
+		sh.Devices = []DeviceSpec{{Name: "wec", PowerMatrix: a}}
+		clRun(t, sh, Options{Shard: &Shard{Index: i, Count: 2}})
+		dirs = append(dirs, d)
+	}
+	os.WriteFile(a, []byte(testMatrix), 0o644)
+	_, err = Merge(context.Background(), filepath.Join(root, "merged"), dirs, Options{})
+	if ExitCode(err) != 2 || !strings.Contains(err.Error(), "the content of device[0].power_matrix") {
+		t.Fatalf("merge after the matrix changed: %v", err)
+	}
 }

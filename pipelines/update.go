@@ -192,7 +192,9 @@ func fingerprintChanges(prior json.RawMessage, spec *Spec) string {
 	}
 	var files []string
 	for _, n := range spec.named {
-		if o, ok := old.Files[n.Key]; !ok || o != n.SHA256 {
+		if o, ok := old.Files[n.Key]; !ok {
+			files = append(files, fmt.Sprintf("%s %s is new", n.Key, n.Path))
+		} else if o != n.SHA256 {
 			files = append(files, fmt.Sprintf("the content of %s %s (SHA-256 %s then, %s now)", n.Key, n.Path, short(o), short(n.SHA256)))
 		}
 	}
