@@ -298,17 +298,12 @@ func (j *job) export(ctx context.Context, results []*cellResult, sums []string) 
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
-	// Until the new manifest is written, the directory holds no manifest: an
-	// interrupted export leaves no manifest beside tables it did not write.
-	if err := os.Remove(filepath.Join(j.out, "manifest.json")); err != nil && !errors.Is(err, os.ErrNotExist) {
-		return nil, outputError(err)
-	}
 	written, warns, err := j.eng.writeOutputs(j.out, results)
 	if err != nil {
 		return nil, outputError(err)
 	}
 	if err := ctx.Err(); err != nil {
-		return nil, err
+		return nil, err // interrupted: the manifest, written last, stays the old one
 	}
 	j.mark("export_s", ts)
 	if j.streamed {

@@ -281,6 +281,8 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 				progress(0)
 			}
 			if err := ctx.Err(); err != nil {
+				for range blocks { // the reader ends: wait for it
+				}
 				stop()
 				return err
 			}

@@ -182,7 +182,7 @@ func runSpecWith(spec *pipelines.Spec, opt pipelines.Options) (*pipelines.Result
 	crashDir = spec.Output.Dir
 	res, err := pipelines.Run(ctx, spec, opt)
 	if err != nil {
-		return nil, interrupted(ctx, err, fmt.Sprintf("interrupted; checkpoints are in %s/.swellgrid, rerun the same command to resume", spec.Output.Dir))
+		return nil, interrupted(ctx, err, fmt.Sprintf("interrupted; rerun the same command to continue (it resumes from the checkpoints in %s/.swellgrid if the run got that far)", spec.Output.Dir))
 	}
 	return res, nil
 }
