@@ -137,7 +137,8 @@ type FileInfo struct {
 	vars  map[Role]*VarInfo
 	times []Stamp
 
-	timeUnits string // the time variable's units attribute
+	timeUnits string    // the time variable's units attribute
+	stamp     fileStamp // the file as the catalog saw it (identity.go)
 	// xFile, yFile are this file's own orientation: the file index of each
 	// canonical column and row (grid.Grid.XFile/YFile of the file's axes).
 	xFile, yFile []int
@@ -192,7 +193,7 @@ func Expand(inputs []string) ([]string, error) {
 		switch {
 		case err == nil && st.IsDir():
 			for _, pat := range []string{"*.nc", "*.nc4", "*.cdf"} {
-				m, _ := filepath.Glob(filepath.Join(in, pat))
+				m, _ := filepath.Glob(filepath.Join(globEscape(in), pat)) // the directory's name literally
 				out = append(out, m...)
 			}
 		case err == nil:

@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"sync"
+	"syscall"
 
 	"github.com/fhs/go-netcdf/netcdf"
 )
@@ -20,28 +21,56 @@ var ncMu sync.Mutex
 // are HDF5 and start with "\x89HDF\r\n\x1a\n" (NetCDF User's Guide, file
 // format specifications).
 func checkMagic(path string) (format string, size int64, err error) {
-	f, err := os.Open(path)
+	format, size, _, err = checkMagicStamp(path)
+	return format, size, err
+}
+
+// checkMagicStamp is checkMagic that also returns the file's stamp. Only
+// regular files are read: the file is opened without blocking (a named pipe
+// would block open and read forever) and refused by name when it is not a
+// regular file.
+func checkMagicStamp(path string) (format string, size int64, stamp fileStamp, err error) {
+	f, err := os.OpenFile(path, os.O_RDONLY|syscall.O_NONBLOCK, 0)
 	if err != nil {
-		return "", 0, fmt.Errorf("ingest: %s: %v", path, err)
+		return "", 0, stamp, fmt.Errorf("ingest: %s: %w", path, err)
 	}
 	defer f.Close()
 	st, err := f.Stat()
 	if err != nil {
-		return "", 0, fmt.Errorf("ingest: %s: %v", path, err)
+		return "", 0, stamp, fmt.Errorf("ingest: %s: %w", path, err)
 	}
+	if !st.Mode().IsRegular() {
+		return "", 0, stamp, fmt.Errorf("ingest: %s: not a regular file (%s); give NetCDF files, directories of them or globs", path, modeName(st.Mode()))
+	}
+	stamp = stampOf(st)
 	head := make([]byte, 8)
 	n, _ := f.Read(head)
 	head = head[:n]
 	switch {
 	case len(head) >= 4 && bytes.Equal(head[:3], []byte("CDF")) && (head[3] == 1 || head[3] == 2 || head[3] == 5):
 		if err := checkClassicHeader(path, head[3], st.Size()); err != nil {
-			return "", st.Size(), err
+			return "", st.Size(), stamp, err
 		}
-		return map[byte]string{1: "classic", 2: "64-bit offset", 5: "64-bit data"}[head[3]], st.Size(), nil
+		return map[byte]string{1: "classic", 2: "64-bit offset", 5: "64-bit data"}[head[3]], st.Size(), stamp, nil
 	case len(head) == 8 && bytes.Equal(head, []byte("\x89HDF\r\n\x1a\n")):
-		return "netcdf4", st.Size(), nil
+		return "netcdf4", st.Size(), stamp, nil
 	}
-	return "", st.Size(), fmt.Errorf("ingest: %s: not a NetCDF file (%d bytes, unrecognised header); check that the path points at the hindcast's .nc files and that the transfer completed", path, st.Size())
+	return "", st.Size(), stamp, fmt.Errorf("ingest: %s: not a NetCDF file (%d bytes, unrecognised header); check that the path points at the hindcast's .nc files and that the transfer completed", path, st.Size())
+}
+
+// modeName names the kind of a file that is not a regular file.
+func modeName(m os.FileMode) string {
+	switch {
+	case m&os.ModeNamedPipe != 0:
+		return "a named pipe (FIFO)"
+	case m&os.ModeSocket != 0:
+		return "a socket"
+	case m&os.ModeDevice != 0:
+		return "a device"
+	case m.IsDir():
+		return "a directory"
+	}
+	return "mode " + m.String()
 }
 
 // ncVar is what ingest needs of one variable of an open file.

@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"math"
-	"os"
 	"time"
 
 	"swellgrid/grid"
@@ -78,13 +77,12 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 	fe := &c.Files[fi]
 	defer ncThread()()
 	ncMu.Lock()
-	if st, err := os.Stat(fe.Path); err != nil || st.Size() != fe.Size {
+	// The file must be the one the catalog saw, before its first read and
+	// (below) after its last: then the values read are of the bytes whose
+	// SHA-256 the manifest gives (Catalog.HashFile checks the same stamp).
+	if err := c.Unchanged(fi); err != nil {
 		ncMu.Unlock()
-		what := "was removed"
-		if err == nil {
-			what = fmt.Sprintf("changed size (%d bytes, %d when the run started)", st.Size(), fe.Size)
-		}
-		return errf(fe.Path, "", "the input file %s during the run; restore it and rerun the same command to resume", what)
+		return err
 	}
 	f, err := openNC(fe.Path)
 	ncMu.Unlock()
@@ -150,6 +148,14 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 				b.Spec = dst
 			} else {
 				b.Bulk[role] = dst
+			}
+		}
+		if b.LastOfFile {
+			// Every value of the file is read: a file rewritten meanwhile is
+			// refused before its last block is used (no state is saved past
+			// a file whose last block was not handed on).
+			if err := c.Unchanged(fi); err != nil {
+				return err
 			}
 		}
 		var tw time.Time

@@ -33,7 +33,7 @@ func errf(path, v, format string, a ...any) error {
 // scanFile reads the metadata, the time axis and the grid of one file, and
 // finds its role variables.
 func scanFile(path string, opt Options) (*scan, error) {
-	format, size, err := checkMagic(path)
+	format, size, stamp, err := checkMagicStamp(path)
 	if err != nil {
 		return nil, err
 	}
@@ -42,7 +42,7 @@ func scanFile(path string, opt Options) (*scan, error) {
 		return nil, err
 	}
 	defer f.close()
-	s := &scan{f: f, info: FileInfo{Path: path, Size: size, Format: format}}
+	s := &scan{f: f, info: FileInfo{Path: path, Size: size, Format: format, stamp: stamp}}
 	if err := s.checkDeclaredSize(); err != nil {
 		return nil, err
 	}

@@ -24,9 +24,12 @@ var ckMagic = []byte("SWGCKPT2")
 // inputID identifies one input file for resuming: a checkpoint is only
 // resumed over the same files, unchanged.
 type inputID struct {
-	Path  string `json:"path"`
+	Path  string `json:"path"` // absolute, ingest.PathText
 	Size  int64  `json:"size"`
 	MTime int64  `json:"mtime_ns"`
+	// SHA256 is the content of a file the checkpoint has read (set for the
+	// first NextFile inputs); resume compares it, not the mtime.
+	SHA256 string `json:"sha256,omitempty"`
 }
 
 type ckHeader struct {
@@ -49,7 +52,7 @@ func inputIDs(cat *ingest.Catalog) ([]inputID, error) {
 		if err != nil {
 			return nil, fmt.Errorf("input %s: %w", f.Path, err)
 		}
-		out[i] = inputID{Path: f.Path, Size: st.Size(), MTime: st.ModTime().UnixNano()}
+		out[i] = inputID{Path: ingest.PathText(absPath(f.Path)), Size: st.Size(), MTime: st.ModTime().UnixNano()}
 	}
 	return out, nil
 }
@@ -280,8 +283,17 @@ func (h *ckHeader) mismatch(w ckHeader, trusted int) string {
 		if i < trusted && i < len(h.Inputs) {
 			continue
 		}
-		if i >= len(h.Inputs) || h.Inputs[i] != w.Inputs[i] {
-			return fmt.Sprintf("input %s changed (path, size or modification time) since the checkpoint", w.Inputs[i].Path)
+		if i >= len(h.Inputs) {
+			return fmt.Sprintf("the checkpoint does not record input %s", w.Inputs[i].Path)
+		}
+		a, b := h.Inputs[i], w.Inputs[i]
+		switch {
+		case a.Path != b.Path:
+			return fmt.Sprintf("input %d is %s now, %s when the checkpoint was written", i+1, b.Path, a.Path)
+		case a.Size != b.Size:
+			return fmt.Sprintf("input %s changed size (%d bytes then, %d now) since the checkpoint", b.Path, a.Size, b.Size)
+		case a.SHA256 != b.SHA256:
+			return fmt.Sprintf("input %s changed content since the checkpoint (SHA-256 %s then, %s now)", b.Path, short(a.SHA256), short(b.SHA256))
 		}
 	}
 	return ""

@@ -154,7 +154,7 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 		m.Gaps = []ingest.Gap{}
 	}
 	for i, f := range c.Files {
-		m.Inputs = append(m.Inputs, ManifestInput{Path: f.Path, Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
+		m.Inputs = append(m.Inputs, ManifestInput{Path: ingest.PathText(f.Path), Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
 	}
 	masked := 0
 	for _, x := range c.Masked {

@@ -173,8 +173,9 @@ func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
 		return nil, err
 	}
 	defer unlock()
-	sums := startChecksums(ctx, j.cat.Files)
+	sums := startChecksums(ctx, j.cat)
 	defer sums.stop()
+	j.sums = sums
 	trusted := 0
 	if j.update != nil {
 		// The earlier files must be unchanged: compare their checksums

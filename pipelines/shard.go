@@ -88,7 +88,7 @@ func writeShard(out string, spec *Spec, cat *ingest.Catalog, sh Shard, c0, c1 in
 		WallS: time.Since(t0).Seconds(),
 		Note:  "a shard of a swellgrid run: its per-cell states are in .swellgrid/; combine all shards with `swellgrid merge --out DIR SHARD_DIR...`"}
 	for i, f := range cat.Files {
-		m.Inputs = append(m.Inputs, ManifestInput{Path: absPath(f.Path), Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
+		m.Inputs = append(m.Inputs, ManifestInput{Path: ingest.PathText(absPath(f.Path)), Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
 	}
 	b, err := json.MarshalIndent(m, "", "  ")
 	if err != nil {

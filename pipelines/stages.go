@@ -2,11 +2,8 @@ package pipelines
 
 import (
 	"context"
-	"crypto/sha256"
-	"encoding/hex"
 	"errors"
 	"fmt"
-	"io"
 	"log/slog"
 	"os"
 	"path/filepath"
@@ -51,6 +48,9 @@ type job struct {
 	update  *updatePlan // Options.Update: the run it continues
 	// streamed says the job read input files (a merge only loads states).
 	streamed bool
+	// sums are the inputs' checksums (Run; nil in a merge, which trusts
+	// the shards' verified inputs).
+	sums *checksums
 	timings  map[string]float64
 	t0       time.Time
 }
@@ -181,7 +181,15 @@ func (j *job) restoreOwn(trusted int) func(pi int, p [2]int) ([]*cell, int, erro
 		path := ckPath(j.out, p[0], p[1])
 		if !j.opt.Restart {
 			if _, err := os.Stat(path); err == nil {
-				cells, from, err := loadCheckpointTrusting(path, j.ckWant(p), trusted, j.eng.newCell)
+				want := j.ckWant(p)
+				if hd, _, f, err := readCkHeader(path); err == nil && j.sums != nil {
+					// Resume compares the content of the files read so far.
+					f.Close()
+					if want.Inputs, err = j.sums.withSums(j.ids, hd.NextFile); err != nil {
+						return nil, 0, inputErr(err)
+					}
+				}
+				cells, from, err := loadCheckpointTrusting(path, want, trusted, j.eng.newCell)
 				if err != nil {
 					if IsResumeRefused(err) {
 						return nil, 0, inputErr(err)
@@ -230,6 +238,12 @@ func (j *job) stream(ctx context.Context, pi int, p [2]int, cells []*cell, from 
 		defer func() { lastCk = time.Now() }()
 		h := want
 		h.NextFile = next
+		if j.sums != nil {
+			var err error
+			if h.Inputs, err = j.sums.withSums(j.ids, next); err != nil {
+				return err
+			}
+		}
 		if err := saveCheckpoint(path, h, cells); err != nil {
 			return outputError(fmt.Errorf("checkpoint %s: %w", path, err))
 		}
@@ -341,28 +355,36 @@ func hold(ctx context.Context, stage string) {
 var holdOnce sync.Once
 
 // checksums computes the SHA-256 of the input files in a goroutine of its
-// own, as plain files beside the NetCDF reader. stop cancels it and waits
-// for it; every path out of a run calls it.
+// own, as plain files beside the NetCDF reader, in order. Each is of the
+// bytes the run reads: ingest.Catalog.HashFile checks the file's stamp
+// (size, mtime, ctime, inode) against the catalog's around the hash, as the
+// reader does around its reads. stop cancels it and waits for it; every path
+// out of a run calls it.
 type checksums struct {
 	sums   []string
+	ready  []chan struct{} // ready[i] is closed once sums[i] is set
 	err    error
 	done   chan struct{}
 	cancel context.CancelFunc
 	once   sync.Once
 }
 
-func startChecksums(ctx context.Context, files []ingest.FileInfo) *checksums {
+func startChecksums(ctx context.Context, cat *ingest.Catalog) *checksums {
 	ctx, cancel := context.WithCancel(ctx)
-	c := &checksums{sums: make([]string, len(files)), done: make(chan struct{}), cancel: cancel}
+	c := &checksums{sums: make([]string, len(cat.Files)), ready: make([]chan struct{}, len(cat.Files)), done: make(chan struct{}), cancel: cancel}
+	for i := range c.ready {
+		c.ready[i] = make(chan struct{})
+	}
 	go func() {
 		defer close(c.done)
 		c.err = catchPanic(func() error {
-			for i, f := range files {
-				s, err := sha256File(ctx, f.Path)
+			for i := range cat.Files {
+				s, err := cat.HashFile(ctx, i)
 				if err != nil {
 					return err
 				}
 				c.sums[i] = s
+				close(c.ready[i])
 			}
 			return nil
 		})
@@ -379,37 +401,36 @@ func (c *checksums) wait() ([]string, error) {
 	return c.sums, nil
 }
 
+// upTo waits until the first n checksums are known.
+func (c *checksums) upTo(n int) error {
+	if n <= 0 {
+		return nil
+	}
+	select {
+	case <-c.ready[n-1]:
+		return nil
+	case <-c.done:
+		return c.err
+	}
+}
+
+// withSums is ids with the checksums of the first n files: a checkpoint
+// records the content of the files it has read, and resume compares it.
+func (c *checksums) withSums(ids []inputID, n int) ([]inputID, error) {
+	n = min(n, len(ids))
+	if err := c.upTo(n); err != nil {
+		return nil, err
+	}
+	out := append([]inputID(nil), ids...)
+	for i := 0; i < n; i++ {
+		out[i].SHA256 = c.sums[i]
+	}
+	return out, nil
+}
+
 // stop cancels the checksums and waits for the goroutine to end.
 func (c *checksums) stop() {
 	c.once.Do(c.cancel)
 	<-c.done
 }
 
-// sha256File is the hex SHA-256 of a file's bytes; it gives up with the
-// context's error when ctx is cancelled.
-func sha256File(ctx context.Context, path string) (string, error) {
-	if err := ctx.Err(); err != nil {
-		return "", err
-	}
-	f, err := os.Open(path)
-	if err != nil {
-		return "", fmt.Errorf("checksum of %s: %w", path, err)
-	}
-	defer f.Close()
-	h := sha256.New()
-	buf := make([]byte, 1<<20)
-	for {
-		if err := ctx.Err(); err != nil {
-			return "", err
-		}
-		n, err := f.Read(buf)
-		h.Write(buf[:n])
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return "", fmt.Errorf("checksum of %s: %w", path, err)
-		}
-	}
-	return hex.EncodeToString(h.Sum(nil)), nil
-}

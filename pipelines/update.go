@@ -138,7 +138,7 @@ func inputContentChanges(old []ManifestInput, cat *ingest.Catalog, sums []string
 func inputChanges(old []ManifestInput, cat *ingest.Catalog, sums []string) string {
 	now := map[string]int{}
 	for i, f := range cat.Files {
-		now[absPath(f.Path)] = i
+		now[ingest.PathText(absPath(f.Path))] = i
 	}
 	for i, o := range old {
 		p := absPath(o.Path)

@@ -2,6 +2,9 @@ package corpus
 
 import (
 	"math"
+	"os"
+	"path/filepath"
+	"syscall"
 
 	"github.com/fhs/go-netcdf/netcdf"
 )
@@ -15,6 +18,8 @@ var SameAsGood = map[string]bool{
 	"attr_ncstring_units":          true,
 	"attr_nan_fill_missing_value":  true,
 	"attr_valid_range_wide":        true,
+	"input_brackets_dir":           true,
+	"input_non_utf8_names":         true,
 }
 
 // packShort stores hm0 of both files as int16 with the given packing
@@ -98,12 +103,47 @@ func oneFile(name string, d *ncDesc) func(string) (*Setup, error) {
 	}
 }
 
+// goodIn writes the well-formed two months under dir/sub with the given
+// file names and returns the input directory.
+func goodIn(dir, sub, jan, feb string) (string, error) {
+	a, b := bulkPair(7)
+	in := filepath.Join(dir, sub)
+	if err := os.MkdirAll(in, 0o755); err != nil {
+		return "", err
+	}
+	if err := a.write(filepath.Join(in, jan)); err != nil {
+		return "", err
+	}
+	return in, b.write(filepath.Join(in, feb))
+}
+
 // strictCases are the cases of per-file orientation and strict attributes.
 func strictCases() []Case {
 	both := func(f func(d *ncDesc)) func(jan, feb *ncDesc) {
 		return func(jan, feb *ncDesc) { f(jan); f(feb) }
 	}
 	return []Case{
+		{Name: "input_fifo", Breaks: "a named pipe (FIFO) named like a NetCDF file among the inputs (open blocked forever)", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want: []string{"cx_2001-03.nc", "not a regular file", "named pipe"},
+			build: func(dir string) (*Setup, error) {
+				in, err := goodIn(dir, "in", "cx_2001-01.nc", "cx_2001-02.nc")
+				if err != nil {
+					return nil, err
+				}
+				return &Setup{Input: in}, syscall.Mkfifo(filepath.Join(in, "cx_2001-03.nc"), 0o644)
+			}},
+		{Name: "input_brackets_dir", Breaks: `the input directory is named "brackets[2001]" (was taken as a glob: "no NetCDF files found")`, Outcome: Flagged, Exit: 0, Stage: "catalog",
+			Want: []string{"wrote"},
+			build: func(dir string) (*Setup, error) {
+				in, err := goodIn(dir, "brackets[2001]", "cx_2001-01.nc", "cx_2001-02.nc")
+				return &Setup{Input: in}, err
+			}},
+		{Name: "input_non_utf8_names", Breaks: "file names with bytes that are not UTF-8 (Latin-1 \\xe9, \\xff): kept byte for byte, escaped as \\xNN in the manifest", Outcome: Flagged, Exit: 0, Stage: "catalog",
+			Want: []string{`cx_2001-01_caf\\xe9.nc`, `cx_2001-02_\\xff.nc`},
+			build: func(dir string) (*Setup, error) {
+				in, err := goodIn(dir, "in", "cx_2001-01_caf\xe9.nc", "cx_2001-02_\xff.nc")
+				return &Setup{Input: in}, err
+			}},
 		{Name: "coord_points_inf", Breaks: "a station longitude of +Inf (was exit 4 at the export, after the computation)", Outcome: Refused, Exit: 2, Stage: "catalog",
 			Want:  []string{"cx_spec_2001-01.nc", `"longitude"`, "+Inf", "must be finite"},
 			build: specCase(func(d *ncDesc) { d.v("longitude").data[1] = math.Inf(1) })},
