@@ -85,3 +85,19 @@ func TestResumeComparesContent(t *testing.T) {
 		t.Errorf("refusal has exit code %d, want 2 (bad input)", c)
 	}
 }
+
+// hashedWant is the checkpoint header pass p of job j wants on resume: its
+// inputs with their content checksums (as Run fills them in).
+func hashedWant(t *testing.T, j *job, p [2]int) ckHeader {
+	t.Helper()
+	w := j.ckWant(p)
+	w.Inputs = append([]inputID(nil), w.Inputs...)
+	for i := range w.Inputs {
+		h, err := j.cat.HashFile(context.Background(), i)
+		if err != nil {
+			t.Fatal(err)
+		}
+		w.Inputs[i].SHA256 = h
+	}
+	return w
+}

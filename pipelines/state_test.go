@@ -55,13 +55,13 @@ func TestDamagedCheckpointRefused(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if cells, next, err := loadCheckpointTrusting(path, j.ckWant(p), 0, j.eng.newCell); err != nil || cells == nil || next != len(j.cat.Files) {
+	if cells, next, err := loadCheckpointTrusting(path, hashedWant(t, j, p), 0, j.eng.newCell); err != nil || cells == nil || next != len(j.cat.Files) {
 		t.Fatalf("the undamaged checkpoint does not load: %v", err)
 	}
 	bad := filepath.Join(t.TempDir(), "pass.ckpt")
 	refused := func(what string) {
 		t.Helper()
-		cells, _, err := loadCheckpointTrusting(bad, j.ckWant(p), 0, j.eng.newCell)
+		cells, _, err := loadCheckpointTrusting(bad, hashedWant(t, j, p), 0, j.eng.newCell)
 		if err == nil || cells != nil {
 			t.Fatalf("%s: loaded (%d cells), want refused", what, len(cells))
 		}
