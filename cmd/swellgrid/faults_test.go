@@ -267,7 +267,7 @@ func TestFullDisk(t *testing.T) {
 	deadline := time.Now().Add(20 * time.Second)
 	filled := false
 	for time.Now().Before(deadline) && !filled {
-		if b, err := os.ReadFile(ckp); err == nil && bytes.Contains(b[:min(len(b), 4096)], []byte(`"next_file":24`)) {
+		if b, err := os.ReadFile(ckp); err == nil && bytes.Contains(b[:min(len(b), 64<<10)], []byte(`"next_file":24`)) {
 			var st syscall.Statfs_t
 			if err := syscall.Statfs(disk, &st); err != nil {
 				t.Fatal(err)
