@@ -128,13 +128,20 @@ func TestAnnualEnergyByHand(t *testing.T) {
 	within(t, "time share below cut-in", d.BelowCutInTimeShare, 0, 0)
 	within(t, "rated power", d.RatedKW, 100, 0)
 
-	// the same AEP from the scatter table the state itself built (1 m bins
-	// here are the device's bins: rows 1 and 2 m sit in 0.5 m bins 2 and 4)
-	var mean float64
+	// the same AEP from the joint occurrence table the state itself built,
+	// with the matrix powers typed in by hand (not through the code's lookup):
+	// the sea states sit at the lower edges of the 0.5 m x 1 s scatter bins
+	byHand := map[[2]float64]float64{{1, 6}: 10, {1, 8}: 20, {2, 8}: 80, {2, 10}: 100}
+	var mean, share float64
 	for _, r := range s.Scatter() {
-		p, _ := dev.power(r.Hm0LoM, r.TeLoS)
+		p, ok := byHand[[2]float64{r.Hm0LoM, r.TeLoS}]
+		if !ok {
+			t.Errorf("scatter bin (%g m, %g s) holds %g of the time, but no sea state was put there", r.Hm0LoM, r.TeLoS, r.TimeShare)
+		}
 		mean += p * r.TimeShare
+		share += r.TimeShare
 	}
+	within(t, "time shares of the joint occurrence table", share, 1, 1e-12)
 	within(t, "AEP from the joint occurrence table", annualEnergyMWh(mean), 604.854, 1e-9)
 }
 
