@@ -296,3 +296,39 @@ func TestDeviceYieldAgainstNumpy(t *testing.T) {
 		t.Errorf("rated_kw 600 below the 661 kW maximum: %v", err)
 	}
 }
+
+// The device keys period and rated_kw are checked with the rest of the spec,
+// from TOML, naming the key.
+func TestDeviceSpecKeys(t *testing.T) {
+	dir := t.TempDir()
+	csv := filepath.Join(dir, "m.csv")
+	if err := os.WriteFile(csv, []byte("hm0_m\\tp_s, 6, 8\n1, 10, 20\n2, 40, 80\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	base := "[input]\npaths = [\"x\"]\n[[device]]\nname = \"wec\"\npower_matrix = \"m.csv\"\n"
+	for _, c := range []struct{ extra, want string }{
+		{"period = \"tz\"\n", "device[0].period"},
+		{"rated_kw = -1.0\n", "device[0].rated_kw"},
+		{"period = \"tp\"\nrated_kw = 750.0\n", ""},
+	} {
+		p := filepath.Join(dir, "s.toml")
+		if err := os.WriteFile(p, []byte(base+c.extra), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		s, err := LoadSpec(p)
+		if err == nil {
+			err = s.Validate()
+		}
+		if c.want == "" {
+			if err != nil {
+				t.Errorf("%q: %v", c.extra, err)
+			} else if s.Devices[0].Period != "tp" || s.Devices[0].RatedKW != 750 {
+				t.Errorf("%q read as %+v", c.extra, s.Devices[0])
+			}
+			continue
+		}
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%q: want an error naming %s, got %v", c.extra, c.want, err)
+		}
+	}
+}
