@@ -7,6 +7,7 @@
 # table differs.
 set -u
 before=$1; after=$2; sgdiff=$3; scratch=${4:-$(mktemp -d)}
+mkdir -p "$scratch"
 status=0
 inputs="testdata/bulk_monthly $(ls testdata/*.nc)"
 for in in $inputs; do
