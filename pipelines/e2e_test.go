@@ -10,7 +10,6 @@ import (
 	"sort"
 	"strings"
 	"swellgrid/export/parquetread"
-	"swellgrid/ingest"
 	"testing"
 )
 
@@ -256,10 +255,6 @@ func TestDemo(t *testing.T) {
 		t.Fatalf("16MiB gives %d passes; the test needs several", len(passes))
 	}
 	sameBytes(t, "passes", parquetFiles(t, res.Runs[0].Result.OutDir), parquetFiles(t, s.Output.Dir))
-}
-
-func ingestOpen(s *Spec) (*ingest.Catalog, error) {
-	return ingest.Open(s.Input.Paths, s.ingestOptions())
 }
 
 // Every example spec loads, validates and runs.

@@ -10,7 +10,6 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
-	"runtime"
 	"strings"
 	"testing"
 	"time"
@@ -65,7 +64,7 @@ func TestSlurmSingleNode(t *testing.T) {
 	}
 	tmp := t.TempDir()
 	bin := filepath.Join(tmp, "swellgrid")
-	goBin := filepath.Join(runtime.GOROOT(), "bin", "go")
+	goBin := testtool.Need(t, "go", "golang-go")
 	if out, err := exec.Command(goBin, "build", "-o", bin, "swellgrid/cmd/swellgrid").CombinedOutput(); err != nil {
 		t.Fatalf("go build: %v\n%s", err, out)
 	}
