@@ -524,7 +524,7 @@ func (s *scan) packing(v *ncVar, vi *VarInfo) error {
 	const maxMag = 1e12
 	if lo, hi := typeRange(v.typ); math.Abs(vi.Offset) > maxMag || math.Abs(vi.Scale) > maxMag ||
 		math.Abs(lo*vi.Scale+vi.Offset) > 1e3*maxMag || math.Abs(hi*vi.Scale+vi.Offset) > 1e3*maxMag {
-		return errf(s.f.path, v.name, "attributes scale_factor %v and add_offset %v unpack values of %s to magnitudes beyond %g %s; fix the packing attributes (CF 1.8 section 8.1)", vi.Scale, vi.Offset, typeName(v.typ), maxMag, vi.Units)
+		return errf(s.f.path, v.name, "attributes scale_factor %v and add_offset %v unpack values of %s beyond plausible magnitudes (scale and offset at most %g, unpacked values at most %g %s); fix the packing attributes (CF 1.8 section 8.1)", vi.Scale, vi.Offset, typeName(v.typ), maxMag, 1e3*maxMag, vi.Units)
 	}
 	fv, err := s.numAttr(v, "_FillValue", false, 1)
 	if err != nil {
