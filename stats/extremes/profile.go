@@ -194,14 +194,45 @@ func profileEnd(inner profileFit, level, step, bound, nllMax float64, start []fl
 		}
 		return bound
 	}
+	// Illinois (modified regula falsi) on g(x) = deviance - chi2Crit95, with
+	// bisection whenever the outer value is not finite; to 1e-7 of the
+	// level (far below the interval's own uncertainty).
 	a, b := inside, outside
-	for i := 0; i < 60 && math.Abs(b-a) > 1e-9*math.Max(1, math.Abs(level)); i++ {
+	ga := -chi2Crit95 // the deviance is 0 at the level itself
+	if a != level {
+		d, _ := dev(a, insideAt)
+		ga = d - chi2Crit95
+	}
+	db, _ := dev(b, insideAt)
+	gb := db - chi2Crit95
+	tol := 1e-7 * math.Max(1, math.Abs(level))
+	side := 0
+	for i := 0; i < 100 && math.Abs(b-a) > tol; i++ {
 		m := 0.5 * (a + b)
+		if !math.IsInf(gb, 0) && !math.IsNaN(gb) && gb != ga {
+			m = b - gb*(b-a)/(gb-ga)
+			// Keep the new point well inside the bracket.
+			lo, hi := math.Min(a, b), math.Max(a, b)
+			w := hi - lo
+			m = math.Max(lo+0.01*w, math.Min(hi-0.01*w, m))
+		}
 		d, at := dev(m, insideAt)
-		if d < chi2Crit95 {
-			a, insideAt = m, at
+		gm := d - chi2Crit95
+		if gm < 0 {
+			a, ga, insideAt = m, gm, at
+			if side == -1 {
+				gb /= 2
+			}
+			side = -1
 		} else {
-			b = m
+			b, gb = m, gm
+			if side == 1 {
+				ga /= 2
+			}
+			side = 1
+		}
+		if math.Abs(gm) < 1e-9 {
+			return m
 		}
 	}
 	return 0.5 * (a + b)
