@@ -52,17 +52,20 @@ func DemoSpecs(dir string) []*Spec {
 // once on the bulk grid, once on the spectral points.
 func Demo(ctx context.Context, dir string, opt Options) (*DemoResult, error) {
 	t0 := time.Now()
-	sc := synth.Demo()
 	hind := filepath.Join(dir, "hindcast")
 	if err := os.MkdirAll(hind, 0o755); err != nil {
 		return nil, outputError(fmt.Errorf("demo: %w", err))
 	}
-	if opt.Log != nil {
-		opt.Log.Info("demo: writing the synthetic hindcast", "dir", hind, "place", sc.Place, "months", sc.Months)
-	}
-	files, err := sc.Write(hind)
-	if err != nil {
-		return nil, fmt.Errorf("demo: writing the synthetic hindcast: %w", err)
+	var files []string
+	for _, sc := range []synth.Scenario{synth.Demo(), synth.DemoSpectra()} {
+		if opt.Log != nil {
+			opt.Log.Info("demo: writing the synthetic hindcast", "dir", hind, "place", sc.Place, "files", sc.Name, "months", sc.Months)
+		}
+		f, err := sc.Write(hind)
+		if err != nil {
+			return nil, fmt.Errorf("demo: writing the synthetic hindcast: %w", err)
+		}
+		files = append(files, f...)
 	}
 	if err := os.WriteFile(filepath.Join(hind, "demo_device.csv"), demoDeviceCSV, 0o644); err != nil {
 		return nil, outputError(fmt.Errorf("demo: %w", err))

@@ -288,17 +288,3 @@ func TestPartialsRemoved(t *testing.T) {
 	}
 }
 
-// With two years of data the GEV fit of two annual maxima cannot converge to
-// anything meaningful: no cell may report a GEV return level then, and the
-// cells say why (fit flags). Common practice: no extrapolation from a fit
-// without a valid information matrix.
-func TestNoReturnLevelsFromDegenerateFits(t *testing.T) {
-	out := t.TempDir()
-	mustRun(t, testSpec(t, "testdata/bulk_monthly", out))
-	rl := readColumn(t, filepath.Join(out, "cells.parquet"), "hm0_rl100y_m")
-	for i, v := range rl {
-		if !math.IsNaN(v) {
-			t.Errorf("cell %d: GEV 100-year level %v from 2 annual maxima", i, v)
-		}
-	}
-}

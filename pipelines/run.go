@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"log/slog"
 	"math"
+	"slices"
 	"sort"
 	"sync"
 	"time"
@@ -112,17 +113,22 @@ func (s *Spec) climateConfig(cat *ingest.Catalog) (*climate.Config, error) {
 	c.Calendar = string(cal)
 	c.Hm0HistResM = s.Statistics.Hm0BinM
 	c.Percentiles = append([]float64(nil), s.Statistics.Percentiles...)
+	// The POT threshold quantile and the threshold-diagnostics ladder need
+	// those percentiles of Hm0 (not written as columns unless asked).
+	var need []float64
 	if s.Extremes.ThresholdRule == "quantile" {
-		q := 100 * s.Extremes.ThresholdQuantile
-		have := false
-		for _, p := range c.Percentiles {
-			have = have || p == q
-		}
-		if !have {
+		need = append(need, 100*s.Extremes.ThresholdQuantile)
+	}
+	for _, q := range extremes.LadderQuantiles {
+		need = append(need, 100*q)
+	}
+	for _, q := range need {
+		q = math.Round(q*1e9) / 1e9 // 100 * 0.995 is not exactly 99.5 in binary
+		if !slices.Contains(c.Percentiles, q) {
 			c.Percentiles = append(c.Percentiles, q)
-			sort.Float64s(c.Percentiles)
 		}
 	}
+	sort.Float64s(c.Percentiles)
 	c.ScatterHm0StepM, c.ScatterTeStepS = s.Statistics.ScatterHm0BinM, s.Statistics.ScatterTeBinS
 	c.WindowLimitsM = append([]float64(nil), s.Statistics.WindowLimitsM...)
 	c.WindowDurationsH = append([]float64(nil), s.Statistics.WindowDurationsH...)
@@ -154,7 +160,9 @@ func (s *Spec) climateConfig(cat *ingest.Catalog) (*climate.Config, error) {
 
 func (s *Spec) analysisConfig(years float64) extremes.AnalysisConfig {
 	a := extremes.AnalysisConfig{ReturnPeriods: s.Extremes.ReturnPeriodsY, MinYears: s.Extremes.MinYears,
-		Threshold: extremes.ThresholdPeaksPerYear, TargetPeaksPerYear: s.Extremes.PeaksPerYear}
+		Threshold: extremes.ThresholdPeaksPerYear, TargetPeaksPerYear: s.Extremes.PeaksPerYear,
+		MinPeaks: s.Extremes.MinPeaks, ShapeMin: s.Extremes.ShapeRange[0], ShapeMax: s.Extremes.ShapeRange[1],
+		MaxExtrapolation: s.Extremes.MaxExtrapolation, BreakingRatio: s.Extremes.BreakingRatio}
 	if s.Extremes.Bootstrap > 0 {
 		a.Bootstrap = extremes.Bootstrap{N: s.Extremes.Bootstrap, Seed: uint64(s.Extremes.Seed)}
 	}

@@ -29,6 +29,7 @@ type Spec struct {
 	Physics    PhysicsSpec       `toml:"physics" json:"physics"`
 	Statistics StatisticsSpec    `toml:"statistics" json:"statistics"`
 	Extremes   ExtremesSpec      `toml:"extremes" json:"extremes"`
+	Design     DesignSpec        `toml:"design" json:"design"`
 	Devices    []DeviceSpec      `toml:"device" json:"devices"`
 	Contours   ContourSpec       `toml:"contours" json:"contours"`
 	Output     OutputSpec        `toml:"output" json:"output"`
@@ -99,6 +100,20 @@ type ExtremesSpec struct {
 	MinYears          int       `toml:"min_years" json:"min_years"`
 	Bootstrap         int       `toml:"bootstrap" json:"bootstrap"`
 	Seed              int64     `toml:"seed" json:"seed"`
+	// Publication policy of return levels (extremes.Publication) and the
+	// depth limit (extremes.DepthLimit).
+	MinPeaks         int       `toml:"min_peaks" json:"min_peaks"`
+	ShapeRange       []float64 `toml:"shape_range" json:"shape_range"`
+	MaxExtrapolation float64   `toml:"max_extrapolation" json:"max_extrapolation"`
+	BreakingRatio    float64   `toml:"breaking_ratio" json:"breaking_ratio"`
+}
+
+// DesignSpec holds the design sea-state (environmental contour) settings.
+type DesignSpec struct {
+	Enabled        bool      `toml:"enabled" json:"enabled"`
+	ReturnPeriodsY []float64 `toml:"return_periods_y" json:"return_periods_y"`
+	SeaStateH      float64   `toml:"sea_state_h" json:"sea_state_h"` // 0: the data's time step
+	ContourPoints  int       `toml:"contour_points" json:"contour_points"`
 }
 
 // DeviceSpec names a device power matrix.
@@ -143,7 +158,9 @@ func DefaultSpec() *Spec {
 		Statistics: StatisticsSpec{Hm0BinM: 0.05, Percentiles: []float64{10, 50, 90, 99}, ScatterHm0BinM: 0.5, ScatterTeBinS: 1,
 			WindowLimitsM: []float64{1.5, 2.0, 2.5}, WindowDurationsH: []float64{6, 12, 24, 48}, CoverageMin: 0.8},
 		Extremes: ExtremesSpec{ReturnPeriodsY: []float64{1, 5, 10, 25, 50, 100}, YearStartMonth: 1, SeparationH: 48,
-			ThresholdRule: "quantile", ThresholdQuantile: 0.99, PeaksPerYear: 5, MinYears: 10, Seed: 1},
+			ThresholdRule: "quantile", ThresholdQuantile: 0.99, PeaksPerYear: 5, MinYears: 10, Seed: 1,
+			MinPeaks: 20, ShapeRange: []float64{-0.5, 0.5}, MaxExtrapolation: 4, BreakingRatio: 0.6},
+		Design:   DesignSpec{Enabled: true, ReturnPeriodsY: []float64{1, 10, 50, 100}, ContourPoints: 36},
 		Contours: ContourSpec{Columns: []string{"power_mean_kw_m", "hm0_mean_m", "hm0_rl100y_m"}, Levels: map[string][]float64{}},
 		Output:   OutputSpec{Dir: "swellgrid-out"},
 		Run:      RunSpec{MemoryLimit: "2GiB", BlockSteps: 64, CheckpointEveryS: 60},
@@ -291,6 +308,29 @@ func (s *Spec) Validate() error {
 	}
 	if ex.Seed < 0 {
 		return bad("extremes.seed", "must be 0 or a positive integer (it seeds the bootstrap)", ex.Seed)
+	}
+	if ex.MinPeaks < 3 {
+		return bad("extremes.min_peaks", "must be at least 3", ex.MinPeaks)
+	}
+	if len(ex.ShapeRange) != 2 || !(ex.ShapeRange[0] < ex.ShapeRange[1]) || ex.ShapeRange[0] < -1 || ex.ShapeRange[1] > 1 {
+		return bad("extremes.shape_range", "must be [low, high] with -1 <= low < high <= 1", ex.ShapeRange)
+	}
+	if !(ex.MaxExtrapolation > 0 && ex.MaxExtrapolation <= 100) {
+		return bad("extremes.max_extrapolation", "must lie in (0, 100] (times the analysed record)", ex.MaxExtrapolation)
+	}
+	if !(ex.BreakingRatio > 0 && ex.BreakingRatio <= 1) {
+		return bad("extremes.breaking_ratio", "must lie in (0, 1] (depth-limited Hm0 / depth)", ex.BreakingRatio)
+	}
+	if d := s.Design; d.Enabled {
+		if err := increasing("design.return_periods_y", d.ReturnPeriodsY, 0, 1e5); err != nil {
+			return err
+		}
+		if !(d.SeaStateH >= 0 && d.SeaStateH <= 24) {
+			return bad("design.sea_state_h", "must be 0 (the data's time step) or hours in (0, 24]", d.SeaStateH)
+		}
+		if d.ContourPoints < 8 || d.ContourPoints > 720 {
+			return bad("design.contour_points", "must lie in 8..720", d.ContourPoints)
+		}
 	}
 	names := map[string]bool{}
 	for i, d := range s.Devices {
