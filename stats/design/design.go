@@ -140,18 +140,26 @@ func FitWeibull3(h Hist) (Weibull3, error) {
 		return Weibull3{}, fmt.Errorf("%w: the Hm0 histogram has %d occupied bins", ErrFewData, max(0, last-first+1))
 	}
 	top := h.Edges[first+1]
+	// Occupied bins and the edges they need (each CDF evaluated once per call).
+	var occ []int
+	for i := first; i <= last; i++ {
+		if h.Weights[i] > 0 {
+			occ = append(occ, i)
+		}
+	}
+	edges := h.Edges[first : last+2]
+	cdf := make([]float64, len(edges))
 	nll := func(p []float64) float64 {
 		w := Weibull3{Loc: top - math.Exp(p[0]), Scale: math.Exp(p[1]), Shape: math.Exp(p[2])}
+		for k, e := range edges {
+			cdf[k] = 1
+			if !math.IsInf(e, 1) {
+				cdf[k] = w.CDF(e)
+			}
+		}
 		var l float64
-		for i := first; i <= last; i++ {
-			if h.Weights[i] == 0 {
-				continue
-			}
-			hi := 1.0
-			if !math.IsInf(h.Edges[i+1], 1) {
-				hi = w.CDF(h.Edges[i+1])
-			}
-			pr := hi - w.CDF(h.Edges[i])
+		for _, i := range occ {
+			pr := cdf[i+1-first] - cdf[i-first]
 			if !(pr > 0) {
 				return math.Inf(1)
 			}
@@ -179,7 +187,7 @@ func FitWeibull3(h Hist) (Weibull3, error) {
 func minimiseNM(f func([]float64) float64, x0 []float64) ([]float64, bool) {
 	p := optimize.Problem{Func: f}
 	r, err := optimize.Minimize(p, x0, &optimize.Settings{MajorIterations: 4000,
-		Converger: &optimize.FunctionConverge{Absolute: 1e-13, Relative: 1e-13, Iterations: 200}}, &optimize.NelderMead{})
+		Converger: &optimize.FunctionConverge{Absolute: 1e-11, Relative: 1e-11, Iterations: 40}}, &optimize.NelderMead{})
 	if r == nil || math.IsInf(r.F, 0) || math.IsNaN(r.F) {
 		return nil, false
 	}
