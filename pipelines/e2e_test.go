@@ -244,7 +244,8 @@ func TestDemo(t *testing.T) {
 	if n == 0 {
 		t.Error("no cell has a device yield")
 	}
-	// A small memory budget splits the 1200 cells into several passes (cell
+	checkDemoExtremes(t, res.Runs[0].Result.OutDir)
+	// A small memory budget splits the cells into several passes (cell
 	// ranges read separately); the tables are byte-identical to one pass.
 	s := DemoSpecs(dir)[0]
 	s.Output.Dir = t.TempDir()

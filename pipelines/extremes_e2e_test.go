@@ -156,3 +156,75 @@ func TestNoReturnLevelsFromDegenerateFits(t *testing.T) {
 		t.Errorf("%d of 4 GEV rows found in extremes.parquet", found)
 	}
 }
+
+// checkDemoExtremes looks at the demo's extremes as a user would: no published
+// Hm0 level (GEV or GPD, any return period, level or interval end) above 3
+// times the largest Hm0 of its cell (common sense: the 1,214.7 m level of an
+// earlier demo came from a cell whose largest Hm0 was 7.98 m), none above the
+// cell's depth limit without the depth_limited flag, and the demo does
+// publish 100-year levels and design contours (a 30-year record).
+func checkDemoExtremes(t *testing.T, dir string) {
+	t.Helper()
+	cp := filepath.Join(dir, "cells.parquet")
+	hmax := readColumn(t, cp, "hm0_max_m")
+	lim := readColumn(t, cp, "hm0_depth_limit_m")
+	flags := readStrings(t, cp, "qc_flags")
+	s := DefaultSpec()
+	published := 0
+	best, bestCell := math.Inf(-1), -1
+	for _, T := range s.Extremes.ReturnPeriodsY {
+		tag := periodTag(T)
+		for _, m := range []struct{ prefix, flag string }{{"hm0_rl", "gev_depth_limited"}, {"hm0_pot_rl", "gpd_depth_limited"}} {
+			lv := readColumn(t, cp, m.prefix+tag+"y_m")
+			hi := readColumn(t, cp, m.prefix+tag+"y_hi_m")
+			for i, v := range lv {
+				if math.IsNaN(v) {
+					continue
+				}
+				published++
+				if T == 100 && m.prefix == "hm0_rl" && v > best {
+					best, bestCell = v, i
+				}
+				for _, x := range []float64{v, hi[i]} {
+					if x > 3*hmax[i] {
+						t.Errorf("cell %d: %s%sy level or upper end %.2f m above 3 x its largest Hm0 %.2f m", i, m.prefix, tag, x, hmax[i])
+					}
+					if x > lim[i] && !hasFlag(flags[i], m.flag) {
+						t.Errorf("cell %d: %s%sy %.2f m above the depth limit %.2f m without %s (%q)", i, m.prefix, tag, x, lim[i], m.flag, flags[i])
+					}
+				}
+			}
+		}
+	}
+	if bestCell < 0 {
+		t.Fatal("the demo publishes no GEV 100-year level")
+	}
+	t.Logf("demo: %d published levels; largest published GEV 100-year Hm0 %.2f m in cell %d, whose largest Hm0 is %.2f m", published, best, bestCell, hmax[bestCell])
+	pot := readColumn(t, cp, "hm0_pot_rl100y_m")
+	pbest, pcell := math.Inf(-1), -1
+	for i, v := range pot {
+		if v > pbest {
+			pbest, pcell = v, i
+		}
+	}
+	if pcell >= 0 {
+		t.Logf("demo: largest published GPD 100-year Hm0 %.2f m in cell %d, whose largest Hm0 is %.2f m", pbest, pcell, hmax[pcell])
+	}
+	dh := readColumn(t, cp, "design_hm0_100y_m")
+	n := 0
+	for i, v := range dh {
+		if !math.IsNaN(v) {
+			n++
+			if v > 3*hmax[i] {
+				t.Errorf("cell %d: 100-year contour Hm0 %.2f m above 3 x its largest Hm0 %.2f m", i, v, hmax[i])
+			}
+		}
+	}
+	if n == 0 {
+		t.Error("the demo has no design contour")
+	}
+	rows, err := parquetread.Columns(filepath.Join(dir, "design.parquet"), "cell_id")
+	if err != nil || len(rows["cell_id"]) == 0 {
+		t.Errorf("design.parquet: %v, %d rows", err, len(rows["cell_id"]))
+	}
+}

@@ -682,16 +682,27 @@ func TestDemoScenario(t *testing.T) {
 		}
 		minD, maxD = math.Min(minD, st.depth), math.Max(maxD, st.depth)
 	}
-	if d.Grid.NX*d.Grid.NY != 1200 || land == 0 || minD > 20 || maxD != 200 {
+	if d.Grid.NX*d.Grid.NY != 192 || land == 0 || minD > 20 || maxD != 200 {
 		t.Errorf("demo grid %dx%d with %d land cells, depths %.1f..%.1f", d.Grid.NX, d.Grid.NY, land, minD, maxD)
 	}
-	for _, c := range d.stations() {
-		if !sites[c].sea || sites[c].depth < 100 {
-			t.Errorf("demo spectral cell %d is not offshore (depth %v)", c, sites[c].depth)
+	// 30 years: the extremes and design sea states of the demo rest on a record
+	// of the usual length for such analyses.
+	if d.Months != 360 || d.StepHours != 3 || !d.PerMonth || d.Spectra != nil {
+		t.Errorf("demo: %d months, %d-hourly, per month %v, spectra %v", d.Months, d.StepHours, d.PerMonth, d.Spectra != nil)
+	}
+	sp := DemoSpectra()
+	ds := sp.withDefaults()
+	if err := ds.validate(); err != nil {
+		t.Fatal(err)
+	}
+	ssites := ds.sites()
+	for _, c := range ds.stations() {
+		if !ssites[c].sea || ssites[c].depth < 100 {
+			t.Errorf("demo spectral cell %d is not offshore (depth %v)", c, ssites[c].depth)
 		}
 	}
-	if len(d.stations()) != 12 || d.Months != 36 || d.StepHours != 3 || !d.PerMonth {
-		t.Errorf("demo: %d spectral points, %d months, %d-hourly, per month %v", len(d.stations()), d.Months, d.StepHours, d.PerMonth)
+	if len(ds.stations()) != 12 || ds.Months != 36 || ds.Bulk {
+		t.Errorf("demo spectra: %d points, %d months, bulk %v", len(ds.stations()), ds.Months, ds.Bulk)
 	}
 }
 
