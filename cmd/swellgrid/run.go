@@ -128,8 +128,22 @@ func newRunCmd() *cobra.Command {
 		Long: `run reads a CF NetCDF hindcast once, computes per cell the wave power (from spectra
 with finite-depth group velocity, or from bulk Hm0/Te), its variability, exceedance,
 weather windows, device yield and extreme sea states (GEV on annual maxima, GPD on
-storm peaks, with 95% intervals), and writes cells.parquet (GeoParquet), the long
-tables, GeoJSON contour layers and manifest.json into the output directory.
+storm peaks, with 95% profile-likelihood intervals) and design sea states (IFORM
+environmental contours of a joint Hm0-Te model), and writes cells.parquet
+(GeoParquet), the long tables, GeoJSON contour layers and manifest.json into the
+output directory.
+
+Extremes (spec [extremes]): a return level is published only if its fit converged
+with a regular information matrix, the shape lies in shape_range (default
+[-0.5, 0.5]), the period is at most max_extrapolation (default 4) times the
+analysed record, and there are min_years annual maxima (GEV, default 10) or
+min_peaks exceedances (GPD, default 20); otherwise it is null and qc_flags says
+why. Levels above breaking_ratio (default 0.6) x depth are flagged depth_limited.
+Design sea states (spec [design]): contours for return_periods_y (default 1, 10,
+50, 100) with the data's time step as sea-state duration (or sea_state_h).
+These are screening estimates, not design values: design loads and survival
+conditions follow the applicable design standards, site measurements and review
+by qualified engineers.
 
 A checkpoint is saved after each input file; rerunning the same command resumes.
 --shard I/N runs one share of the cells (whole grid rows) and writes a shard
