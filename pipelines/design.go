@@ -13,6 +13,7 @@ type cellDesign struct {
 	ok       bool
 	why      string // flag when not ok
 	model    design.Joint
+	periods  []float64        // design.return_periods_y
 	largest  []design.Point   // per design.return_periods_y
 	contours [][]design.Point // per design.return_periods_y
 	belowMax bool             // some contour's largest Hm0, for T >= the record, lies below the record's largest Hm0
@@ -78,6 +79,7 @@ func (e *engine) designFor(r *cellResult) *cellDesign {
 	years := r.ext.RecordYears
 	for _, T := range e.spec.Design.ReturnPeriodsY {
 		big := m.Largest(T, dur)
+		d.periods = append(d.periods, T)
 		d.largest = append(d.largest, big)
 		d.contours = append(d.contours, m.Contour(T, dur, e.spec.Design.ContourPoints))
 		if T >= years && big.Hm0 < r.sum.Hm0MaxM {

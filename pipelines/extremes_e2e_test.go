@@ -115,10 +115,10 @@ func TestNoReturnLevelsFromDegenerateFits(t *testing.T) {
 		near("gev_loc_m", col("gev_loc_m")[i], r.loc, 2e-4)
 		near("gev_scale_m", col("gev_scale_m")[i], r.scale, 2e-4)
 		near("gev_shape", col("gev_shape")[i], r.shape, 5e-4)
-		near("level", col("hm0_rl"+tag+"y_m")[i], r.level, 5e-4*r.level)
+		near("level", col("hm0_rl" + tag + "y_m")[i], r.level, 5e-4*r.level)
 		// evd interpolates the profile on a mesh of level/4000.
-		near("profile lower", col("hm0_rl"+tag+"y_lo_m")[i], r.lo, 1e-3*r.level)
-		near("profile upper", col("hm0_rl"+tag+"y_hi_m")[i], r.hi, 1e-3*r.level)
+		near("profile lower", col("hm0_rl" + tag + "y_lo_m")[i], r.lo, 1e-3*r.level)
+		near("profile upper", col("hm0_rl" + tag + "y_hi_m")[i], r.hi, 1e-3*r.level)
 	}
 	lim := col("hm0_depth_limit_m")
 	if lim[0] != 0.6*60 || lim[1] != 0.6*80 || math.Abs(lim[2]-4.8) > 1e-12 {
@@ -141,7 +141,8 @@ func TestNoReturnLevelsFromDegenerateFits(t *testing.T) {
 			}
 			found++
 			f := func(n string) float64 { return m[n][k].(float64) }
-			if math.Abs(f("hm0_delta_lo_m")-r.dlo) > 1e-3 || math.Abs(f("hm0_delta_hi_m")-r.dhi) > 1e-3 {
+			// Both sides take the covariance from finite-difference Hessians: 2e-3 m.
+			if math.Abs(f("hm0_delta_lo_m")-r.dlo) > 2e-3 || math.Abs(f("hm0_delta_hi_m")-r.dhi) > 2e-3 {
 				t.Errorf("%s T=%g delta [%.4f, %.4f], evd [%.4f, %.4f]", r.station, r.T, f("hm0_delta_lo_m"), f("hm0_delta_hi_m"), r.dlo, r.dhi)
 			}
 			if math.Abs(f("hm0_lo_m")-r.lo) > 1e-3*r.level || math.Abs(f("hm0_hi_m")-r.hi) > 1e-3*r.level || math.Abs(f("hm0_m")-r.level) > 5e-4*r.level {
@@ -226,5 +227,94 @@ func checkDemoExtremes(t *testing.T, dir string) {
 	rows, err := parquetread.Columns(filepath.Join(dir, "design.parquet"), "cell_id")
 	if err != nil || len(rows["cell_id"]) == 0 {
 		t.Errorf("design.parquet: %v, %d rows", err, len(rows["cell_id"]))
+	}
+}
+
+// End to end, the design columns equal an independent scipy computation on
+// the unbinned sea states (testdata/extremes_points/make_design_refs.py:
+// weibull_min.fit, curve_fit, IFORM with 6-hour sea states, the fixture's time
+// step): the contour's largest Hm0 and its Te in cells.parquet, and every
+// point of design.parquet, within 3 % (the points near the Weibull location
+// within one 0.05 m histogram bin, their Te within 5 %): the
+// fixture's Hm0 is not Weibull (a log-normal background plus storms), and on
+// a misfitting model the binned and the continuous maximum likelihood weigh
+// the tail differently (on a true Weibull sample they agree to 1e-4, see
+// stats/design); observed: 5.41 against 5.31 m, 2.99 against 2.92 m. The threshold
+// diagnostics row at the 0.99 quantile is the POT fit of cells.parquet
+// (same threshold, count, shape, and modified scale sigma - xi u).
+func TestDesignEndToEnd(t *testing.T) {
+	out := extremesPointsRun(t)
+	cp := filepath.Join(out, "cells.parquet")
+	var ref map[string]struct {
+		Contours map[string]struct {
+			Hm0Max  float64      `json:"hm0_max"`
+			TeAtMax float64      `json:"te_at_max"`
+			Points  [][2]float64 `json:"points"`
+		}
+	}
+	readRef(t, "../testdata/extremes_points/design_refs.json", &ref)
+	m, err := parquetread.Columns(filepath.Join(out, "design.parquet"), "cell_id", "return_period_y", "point", "hm0_m", "te_s")
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The flat station (one Hm0 bin) has no joint model: no rows, a flag.
+	if n := len(m["cell_id"]); n != 2*4*36 {
+		t.Errorf("design.parquet has %d rows, want 2 stations x 4 periods x 36 points", n)
+	}
+	if f := readStrings(t, cp, "qc_flags")[0]; !hasFlag(f, "design_few_data") {
+		t.Errorf("flat station: flags %q, want design_few_data", f)
+	}
+	for _, st := range []int{1, 2} {
+		for _, T := range []float64{1, 10, 50, 100} {
+			tag := periodTag(T)
+			r := ref[strconv.Itoa(st)].Contours[tag]
+			h := readColumn(t, cp, "design_hm0_"+tag+"y_m")[st]
+			te := readColumn(t, cp, "design_te_"+tag+"y_s")[st]
+			if math.Abs(h-r.Hm0Max) > 0.03*r.Hm0Max || math.Abs(te-r.TeAtMax) > 0.03*r.TeAtMax {
+				t.Errorf("station %d T=%g: largest Hm0 %.3f m at Te %.3f s; scipy %.3f m at %.3f s", st, T, h, te, r.Hm0Max, r.TeAtMax)
+			}
+			seen := 0
+			for k := range m["cell_id"] {
+				if m["cell_id"][k].(int64) != int64(st) || m["return_period_y"][k].(float64) != T {
+					continue
+				}
+				p := m["point"][k].(int64)
+				want := r.Points[p]
+				seen++
+				if math.Abs(m["hm0_m"][k].(float64)-want[0]) > 0.03*want[0]+0.05 || math.Abs(m["te_s"][k].(float64)-want[1]) > 0.05*want[1] {
+					t.Errorf("station %d T=%g point %d: (%.3f m, %.3f s), scipy (%.3f, %.3f)", st, T, p, m["hm0_m"][k], m["te_s"][k], want[0], want[1])
+				}
+			}
+			if seen != 36 {
+				t.Errorf("station %d T=%g: %d contour points", st, T, seen)
+			}
+			if T == 100 {
+				t.Logf("station %d: 100-year contour largest Hm0 %.3f m at Te %.2f s; scipy on the unbinned sample %.3f m at %.2f s", st, h, te, r.Hm0Max, r.TeAtMax)
+			}
+		}
+	}
+	// Threshold diagnostics at q = 0.99 against the POT columns.
+	td, err := parquetread.Columns(filepath.Join(out, "threshold_diagnostics.parquet"), "cell_id", "quantile", "threshold_m", "n_peaks", "shape", "modified_scale_m", "mean_excess_m")
+	if err != nil {
+		t.Fatal(err)
+	}
+	thr, sh, sc := readColumn(t, cp, "gpd_threshold_m"), readColumn(t, cp, "gpd_shape"), readColumn(t, cp, "gpd_scale_m")
+	rows := 0
+	for k := range td["cell_id"] {
+		i := int(td["cell_id"][k].(int64))
+		if td["quantile"][k].(float64) != 0.99 || i == 0 {
+			continue
+		}
+		rows++
+		u := td["threshold_m"][k].(float64)
+		if u != thr[i] || math.Abs(td["shape"][k].(float64)-sh[i]) > 1e-9 || math.Abs(td["modified_scale_m"][k].(float64)-(sc[i]-sh[i]*u)) > 1e-9 {
+			t.Errorf("station %d: diagnostics at 0.99 (u %v, shape %v, modified scale %v) vs POT fit (u %v, shape %v, scale %v)", i, u, td["shape"][k], td["modified_scale_m"][k], thr[i], sh[i], sc[i])
+		}
+		if !(td["mean_excess_m"][k].(float64) > 0) {
+			t.Errorf("station %d: mean excess %v", i, td["mean_excess_m"][k])
+		}
+	}
+	if rows != 2 || len(td["cell_id"]) != 3*6 {
+		t.Errorf("%d rows at 0.99 for stations 1-2, %d rows in all (want 3 x 6)", rows, len(td["cell_id"]))
 	}
 }

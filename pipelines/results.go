@@ -25,6 +25,8 @@ type cellResult struct {
 	exceed  []climate.ExceedRow
 	windows []climate.WindowRow
 	maxima  []extremes.Maximum
+	ladder  []extremes.ThresholdRow // threshold diagnostics
+	design  *cellDesign             // design sea states (nil: not asked or no data)
 }
 
 // finish computes the results of one cell from its state (fits included).
@@ -42,9 +44,12 @@ func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResu
 			cfg.Threshold = extremes.ThresholdHm0
 			cfg.ThresholdValue = percentileOf(r.sum, 100*e.spec.Extremes.ThresholdQuantile)
 		}
+		cfg.DepthM = e.cat.Depth[id]
 		r.ext = extremes.Analyse(c.col, cfg)
 		r.hasExt = true
 		r.maxima = c.col.AnnualMaxima()
+		r.ladder = ladderFor(r, c)
+		r.design = e.designFor(r)
 	}
 	return r
 }
@@ -114,7 +119,7 @@ func (e *engine) cellFlags(id int, r *cellResult) []string {
 			out = append(out, "gpd_"+n)
 		}
 	}
-	return out
+	return append(out, r.design.flags()...)
 }
 
 // Caution is carried by every output with return levels or resource figures:

@@ -9,6 +9,7 @@ import (
 
 	"swellgrid/export"
 	"swellgrid/stats/climate"
+	"swellgrid/stats/design"
 	"swellgrid/stats/extremes"
 )
 
@@ -45,6 +46,7 @@ const (
 	ParamPercentile Param = "P"      // statistics.percentiles
 	ParamPeriod     Param = "T"      // extremes.return_periods_y
 	ParamDevice     Param = "device" // [[device]] name
+	ParamDesign     Param = "TD"     // design.return_periods_y
 )
 
 // ColumnSpec describes one column, or one family of columns when Name is a
@@ -223,10 +225,10 @@ var cellsSchema = []column[*cellRow]{
 		func(c *cellRow) int64 { return int64(c.r.ext.Years) }).when(nullNoFit),
 	f64Col("hm0_rl<T>y_m", "m", "", "", "<T>-year return level of Hm0, GEV on annual maxima (screening estimate)",
 		func(c *cellRow) float64 { return gevLevel(c, func(l extremes.Level) float64 { return l.Hm0 }) }).when(nullNoFit).per(ParamPeriod),
-	f64Col("hm0_rl<T>y_lo_m", "m", "", "", "lower end of its 95% delta-method interval",
-		func(c *cellRow) float64 { return gevLevel(c, func(l extremes.Level) float64 { return l.Lower }) }).when(nullNoFit).per(ParamPeriod),
-	f64Col("hm0_rl<T>y_hi_m", "m", "", "", "upper end of its 95% delta-method interval",
-		func(c *cellRow) float64 { return gevLevel(c, func(l extremes.Level) float64 { return l.Upper }) }).when(nullNoFit).per(ParamPeriod),
+	f64Col("hm0_rl<T>y_lo_m", "m", "", "", "lower end of its 95% profile-likelihood interval",
+		func(c *cellRow) float64 { return gevLevel(c, func(l extremes.Level) float64 { return l.ProfLower }) }).when(nullNoFit).per(ParamPeriod),
+	f64Col("hm0_rl<T>y_hi_m", "m", "", "", "upper end of its 95% profile-likelihood interval (null: not bounded by the data)",
+		func(c *cellRow) float64 { return gevLevel(c, func(l extremes.Level) float64 { return l.ProfUpper }) }).when(nullNoFit).per(ParamPeriod),
 	f64Col("te_rl<T>y_s", "s", "", "", "energy period associated with the GEV return level (see README)",
 		func(c *cellRow) float64 { return gevLevel(c, func(l extremes.Level) float64 { return l.Te }) }).when(nullNoFit).per(ParamPeriod),
 	f64Col("gpd_threshold_m", "m", "", "", "peaks-over-threshold threshold of Hm0",
@@ -239,10 +241,16 @@ var cellsSchema = []column[*cellRow]{
 		func(c *cellRow) float64 { return c.r.ext.PeaksPerYear }).when(nullNoFit),
 	f64Col("hm0_pot_rl<T>y_m", "m", "", "", "<T>-year return level of Hm0, GPD on storm peaks (screening estimate)",
 		func(c *cellRow) float64 { return gpdLevel(c, func(l extremes.Level) float64 { return l.Hm0 }) }).when(nullNoFit).per(ParamPeriod),
-	f64Col("hm0_pot_rl<T>y_lo_m", "m", "", "", "lower end of its 95% delta-method interval",
-		func(c *cellRow) float64 { return gpdLevel(c, func(l extremes.Level) float64 { return l.Lower }) }).when(nullNoFit).per(ParamPeriod),
-	f64Col("hm0_pot_rl<T>y_hi_m", "m", "", "", "upper end of its 95% delta-method interval",
-		func(c *cellRow) float64 { return gpdLevel(c, func(l extremes.Level) float64 { return l.Upper }) }).when(nullNoFit).per(ParamPeriod),
+	f64Col("hm0_pot_rl<T>y_lo_m", "m", "", "", "lower end of its 95% profile-likelihood interval (above the threshold)",
+		func(c *cellRow) float64 { return gpdLevel(c, func(l extremes.Level) float64 { return l.ProfLower }) }).when(nullNoFit).per(ParamPeriod),
+	f64Col("hm0_pot_rl<T>y_hi_m", "m", "", "", "upper end of its 95% profile-likelihood interval (null: not bounded by the data)",
+		func(c *cellRow) float64 { return gpdLevel(c, func(l extremes.Level) float64 { return l.ProfUpper }) }).when(nullNoFit).per(ParamPeriod),
+	f64Col("hm0_depth_limit_m", "m", "", "", "depth-limited Hm0, extremes.breaking_ratio x depth: levels above it are flagged depth_limited (null: deep water or unknown depth)",
+		func(c *cellRow) float64 { return c.r.ext.DepthLimit }).when(nullNoFit),
+	f64Col("design_hm0_<TD>y_m", "m", "", "", "largest Hm0 of the <TD>-year IFORM environmental contour (screening estimate; see design.parquet)",
+		func(c *cellRow) float64 { return designLargest(c, func(p design.Point) float64 { return p.Hm0 }) }).when(nullNoFit).per(ParamDesign),
+	f64Col("design_te_<TD>y_s", "s", "", "", "median Te at the largest Hm0 of the <TD>-year contour",
+		func(c *cellRow) float64 { return designLargest(c, func(p design.Point) float64 { return p.Te }) }).when(nullNoFit).per(ParamDesign),
 	f64Col("aep_<device>_mwh", "MWh/yr", "", "", "mean annual energy of device <device> from its power matrix",
 		func(c *cellRow) float64 { return device(c).AEPMWh }).when(nullNoData).per(ParamDevice),
 	f64Col("cf_<device>", "1", "", "", "capacity factor of device <device>: mean power / rated power (rated_kw, else the largest matrix entry)",
@@ -399,8 +407,10 @@ var extremesSchema = []column[eRow]{
 	strCol("method", "", "gev_annual_maxima or gpd_storm_peaks", func(x eRow) string { return x.v.m.Method }),
 	f64Col("return_period_y", "yr", "", "", "return period", func(x eRow) float64 { return x.v.l.PeriodYears }),
 	f64Col("hm0_m", "m", "", "", "return level of Hm0 (screening estimate; see caution)", func(x eRow) float64 { return x.v.l.Hm0 }),
-	f64Col("hm0_lo_m", "m", "", "", "95% delta-method interval, lower", func(x eRow) float64 { return x.v.l.Lower }),
-	f64Col("hm0_hi_m", "m", "", "", "95% delta-method interval, upper", func(x eRow) float64 { return x.v.l.Upper }),
+	f64Col("hm0_lo_m", "m", "", "", "95% profile-likelihood interval, lower", func(x eRow) float64 { return x.v.l.ProfLower }),
+	f64Col("hm0_hi_m", "m", "", "", "95% profile-likelihood interval, upper (null: not bounded by the data)", func(x eRow) float64 { return x.v.l.ProfUpper }),
+	f64Col("hm0_delta_lo_m", "m", "", "", "95% delta-method interval, lower (truncated at 0 or the threshold)", func(x eRow) float64 { return x.v.l.Lower }),
+	f64Col("hm0_delta_hi_m", "m", "", "", "95% delta-method interval, upper", func(x eRow) float64 { return x.v.l.Upper }),
 	f64Col("hm0_boot_lo_m", "m", "", "", "95% parametric-bootstrap interval, lower (null unless asked)", func(x eRow) float64 { return x.v.l.BootLower }),
 	f64Col("hm0_boot_hi_m", "m", "", "", "95% parametric-bootstrap interval, upper (null unless asked)", func(x eRow) float64 { return x.v.l.BootUpper }),
 	f64Col("te_s", "s", "", "", "associated energy period", func(x eRow) float64 { return x.v.l.Te }),
@@ -409,7 +419,9 @@ var extremesSchema = []column[eRow]{
 	f64Col("scale_m", "m", "", "", "scale", func(x eRow) float64 { return x.v.m.Scale }),
 	f64Col("shape", "1", "", "", "shape, Coles (2001) sign", func(x eRow) float64 { return x.v.m.Shape }),
 	i64Col("n", "1", "", "", "maxima or exceedances fitted", func(x eRow) int64 { return int64(x.v.m.N) }),
-	strCol("qc_flags", "", "fit-quality flags", func(x eRow) string { return strings.Join(x.v.m.Flags.Names(), ",") }),
+	strCol("qc_flags", "", "flags of the level (why it is null, or what is flagged about it) and of its fit", func(x eRow) string {
+		return strings.Join((x.v.m.Flags&^extremes.Withheld | x.v.l.Flags).Names(), ",")
+	}),
 }
 
 func extremesRows(r *cellResult) []extremesRow {
@@ -468,6 +480,8 @@ var longSchemas = []longTable{
 	longSchema[climate.ExceedRow]{"exceedance", exceedanceSchema, exceedRows},
 	longSchema[climate.WindowRow]{"windows", windowsSchema, windowRows},
 	longSchema[extremesRow]{"extremes", extremesSchema, extremesRows},
+	longSchema[extremes.ThresholdRow]{"threshold_diagnostics", thresholdSchema, ladderRows},
+	longSchema[designRow]{"design", designSchema, designRows},
 }
 
 func specsOf[R any](file string, cols []column[R]) []ColumnSpec {
@@ -575,6 +589,12 @@ func (e *engine) paramValues(p Param) []paramValue {
 		for i, t := range e.spec.Extremes.ReturnPeriodsY {
 			out = append(out, paramValue{i, periodTag(t), fmt.Sprintf("%g", t)})
 		}
+	case ParamDesign:
+		if e.spec.Design.Enabled {
+			for i, t := range e.spec.Design.ReturnPeriodsY {
+				out = append(out, paramValue{i, periodTag(t), fmt.Sprintf("%g", t)})
+			}
+		}
 	case ParamDevice:
 		for i, d := range e.ccfg.Devices {
 			out = append(out, paramValue{i, d.Name, d.Name})
@@ -672,6 +692,66 @@ func (e *engine) outputColumns() map[string][]ColumnSpec {
 	out := map[string][]ColumnSpec{"cells.parquet": append(e.cellsColumns(), geometryColumn)}
 	for _, t := range longSchemas {
 		out[t.file()] = t.specs()
+	}
+	return out
+}
+
+// designLargest reads the k-th design return period's largest contour point.
+func designLargest(c *cellRow, get func(design.Point) float64) float64 {
+	d := c.r.design
+	if d == nil || !d.ok || c.k >= len(d.largest) {
+		return math.NaN()
+	}
+	return get(d.largest[c.k])
+}
+
+type tRow = longRow[extremes.ThresholdRow]
+
+var thresholdSchema = []column[tRow]{
+	cellID[extremes.ThresholdRow](),
+	f64Col("quantile", "1", "", "", "quantile of the cell's Hm0 that sets the threshold", func(x tRow) float64 { return x.v.Quantile }),
+	f64Col("threshold_m", "m", "", "", "threshold of Hm0", func(x tRow) float64 { return x.v.Threshold }),
+	i64Col("n_peaks", "1", "", "", "declustered storm peaks above the threshold", func(x tRow) int64 { return int64(x.v.N) }),
+	f64Col("mean_excess_m", "m", "", "", "mean excess of the peaks over the threshold (mean residual life)", func(x tRow) float64 { return x.v.MeanExcess }),
+	f64Col("mean_excess_lo_m", "m", "", "", "95% normal interval of the mean excess, lower", func(x tRow) float64 { return x.v.MeanExcessLo }),
+	f64Col("mean_excess_hi_m", "m", "", "", "95% normal interval of the mean excess, upper", func(x tRow) float64 { return x.v.MeanExcessHi }),
+	f64Col("shape", "1", "", "", "GPD shape (Coles 2001 sign) of the peaks above the threshold", func(x tRow) float64 { return x.v.Shape }),
+	f64Col("shape_lo", "1", "", "", "95% delta-method interval of the shape, lower", func(x tRow) float64 { return x.v.ShapeLo }),
+	f64Col("shape_hi", "1", "", "", "95% delta-method interval of the shape, upper", func(x tRow) float64 { return x.v.ShapeHi }),
+	f64Col("modified_scale_m", "m", "", "", "modified scale sigma - xi u, constant above a threshold where the GPD holds", func(x tRow) float64 { return x.v.ModScale }),
+	f64Col("modified_scale_lo_m", "m", "", "", "95% delta-method interval of the modified scale, lower", func(x tRow) float64 { return x.v.ModScaleLo }),
+	f64Col("modified_scale_hi_m", "m", "", "", "95% delta-method interval of the modified scale, upper", func(x tRow) float64 { return x.v.ModScaleHi }),
+}
+
+func ladderRows(r *cellResult) []extremes.ThresholdRow { return r.ladder }
+
+// designRow is one point of one environmental contour.
+type designRow struct {
+	T     float64
+	point int
+	p     design.Point
+}
+
+type dRow = longRow[designRow]
+
+var designSchema = []column[dRow]{
+	cellID[designRow](),
+	f64Col("return_period_y", "yr", "", "", "return period of the environmental contour", func(x dRow) float64 { return x.v.T }),
+	i64Col("point", "1", "", "", "point index along the contour, from its largest Hm0 anticlockwise in standard normal space", func(x dRow) int64 { return int64(x.v.point) }),
+	f64Col("hm0_m", "m", cfHm0, "", "Hm0 of the contour point (IFORM; screening estimate, see caution)", func(x dRow) float64 { return x.v.p.Hm0 }),
+	f64Col("te_s", "s", cfTe, "", "Te of the contour point", func(x dRow) float64 { return x.v.p.Te }),
+}
+
+func designRows(r *cellResult) []designRow {
+	d := r.design
+	if d == nil || !d.ok {
+		return nil
+	}
+	var out []designRow
+	for k, c := range d.contours {
+		for i, p := range c {
+			out = append(out, designRow{T: d.periods[k], point: i, p: p})
+		}
 	}
 	return out
 }

@@ -148,22 +148,31 @@ func FitWeibull3(h Hist) (Weibull3, error) {
 		}
 	}
 	edges := h.Edges[first : last+2]
-	cdf := make([]float64, len(edges))
+	z := make([]float64, len(edges)) // cumulative hazard ((x - Loc)/Scale)^Shape at each edge
 	nll := func(p []float64) float64 {
-		w := Weibull3{Loc: top - math.Exp(p[0]), Scale: math.Exp(p[1]), Shape: math.Exp(p[2])}
+		loc, scale, shape := top-math.Exp(p[0]), math.Exp(p[1]), math.Exp(p[2])
 		for k, e := range edges {
-			cdf[k] = 1
-			if !math.IsInf(e, 1) {
-				cdf[k] = w.CDF(e)
+			switch {
+			case math.IsInf(e, 1):
+				z[k] = math.Inf(1)
+			case e <= loc:
+				z[k] = 0
+			default:
+				z[k] = math.Pow((e-loc)/scale, shape)
 			}
 		}
 		var l float64
 		for _, i := range occ {
-			pr := cdf[i+1-first] - cdf[i-first]
-			if !(pr > 0) {
+			a, b := z[i-first], z[i+1-first]
+			// log Pr = log(S(a) - S(b)) = -za + log(1 - exp(za - zb)), finite far in the tail.
+			lp := -a
+			if !math.IsInf(b, 1) {
+				lp += math.Log(-math.Expm1(a - b))
+			}
+			if math.IsNaN(lp) || math.IsInf(lp, 0) {
 				return math.Inf(1)
 			}
-			l -= h.Weights[i] * math.Log(pr)
+			l -= h.Weights[i] * lp
 		}
 		return l / tot
 	}
@@ -172,7 +181,7 @@ func FitWeibull3(h Hist) (Weibull3, error) {
 	mean := m1 / tot
 	loc0 := h.Edges[first] - 0.5*(top-h.Edges[first])
 	sd := math.Sqrt(math.Max(m2/tot-mean*mean, 1e-6))
-	shape0 := math.Max(0.8, math.Min(4, 1.2*(mean-loc0)/sd))
+	shape0 := math.Max(0.8, math.Min(3, 1.2*(mean-loc0)/sd))
 	scale0 := (mean - loc0) / math.Gamma(1+1/shape0)
 	x0 := []float64{math.Log(top - loc0), math.Log(scale0), math.Log(shape0)}
 	x, ok := minimiseNM(nll, x0)
