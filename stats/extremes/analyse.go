@@ -108,12 +108,18 @@ const (
 	FlagExtrapolation                        // some return period exceeds MaxExtrapolation x the record (no level for it)
 	FlagDepthLimited                         // a level, or its profile upper end, exceeds BreakingRatio x depth
 	FlagBelowRecordMax                       // GEV: a level for T >= the record length lies below the largest analysed annual maximum
-	FlagOpenInterval                         // a profile-likelihood upper end is not bounded by the data (null)
+	FlagOpenInterval                         // a profile-likelihood upper end is not bounded by the data below PlausibleFactor x the record maximum (null)
 )
 
 var flagNames = []string{"few_years", "few_peaks", "shape_implausible", "no_convergence",
 	"singular_information", "no_fit", "incomplete_years", "peaks_truncated", "period_outside_model",
 	"extrapolation_limit", "depth_limited", "below_record_maximum", "open_interval"}
+
+// PlausibleFactor times the record's largest Hm0 is the highest upper
+// interval end reported: a profile-likelihood interval still open there is
+// reported open (null, FlagOpenInterval). Common sense, not a standard: no sea
+// state three times the largest of a multi-year record is a useful bound.
+const PlausibleFactor = 3
 
 // Withheld are the flags that stop a return level being published.
 const Withheld = FlagFewYears | FlagFewPeaks | FlagShapeImplausible | FlagNoConvergence |
@@ -279,6 +285,13 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 		}
 	}
 	res.Years = len(amx)
+	// Interval upper ends are searched up to PlausibleFactor x the record's
+	// largest Hm0; beyond, the interval is open (FlagOpenInterval).
+	recMax := math.Inf(-1)
+	for _, m := range am {
+		recMax = math.Max(recMax, m.Hm0)
+	}
+	upLimit := PlausibleFactor * recMax
 	res.RecordYears = cfg.RecordYears
 	if !(res.RecordYears > 0) && full > 0 {
 		res.RecordYears = float64(valid) / float64(full)
@@ -325,7 +338,7 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 			if math.IsNaN(lv.Hm0) {
 				lv.Flags |= FlagPeriodOutsideModel
 			} else {
-				lv.ProfLower, lv.ProfUpper = gf.ProfileGEV(T, amx)
+				lv.ProfLower, lv.ProfUpper = gf.ProfileGEV(T, amx, upLimit)
 				lv.Lower = math.Max(lv.Lower, 0)
 				lv.ProfLower = math.Max(lv.ProfLower, 0)
 				if T >= float64(res.Years) && lv.Hm0 < res.MaxAnnual {
@@ -364,7 +377,7 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 			if math.IsNaN(lv.Hm0) {
 				lv.Flags |= FlagPeriodOutsideModel
 			} else {
-				lv.ProfLower, lv.ProfUpper = pf.ProfileGPD(T, px)
+				lv.ProfLower, lv.ProfUpper = pf.ProfileGPD(T, px, upLimit)
 				lv.Lower = math.Max(lv.Lower, res.Threshold)
 			}
 		}

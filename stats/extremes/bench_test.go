@@ -68,8 +68,8 @@ func BenchmarkProfileIntervals(b *testing.B) {
 	for i := 0; i < b.N; i++ {
 		k := i % len(am)
 		for _, T := range []float64{2, 5, 10, 25, 50, 100} {
-			gf[k].ProfileGEV(T, am[k])
-			pf[k].ProfileGPD(T, pk[k])
+			gf[k].ProfileGEV(T, am[k], 0)
+			pf[k].ProfileGPD(T, pk[k], 0)
 		}
 	}
 }

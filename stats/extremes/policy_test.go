@@ -235,5 +235,15 @@ func TestDeltaIntervalTruncatedAtThreshold(t *testing.T) {
 	if math.IsNaN(l.Hm0) || l.Lower != 30 || !(l.ProfLower > 30) || !(l.Upper > l.Hm0) {
 		t.Errorf("T=%g: level %.2f, delta [%.2f, %.2f] (raw lower %.2f), profile [%.2f, %.2f]", T, l.Hm0, l.Lower, l.Upper, rawLo, l.ProfLower, l.ProfUpper)
 	}
-	t.Logf("20 exceedances, T=%g: level %.2f, delta [%.2f (raw %.2f), %.2f], profile [%.2f, %.2f], flags %v", T, l.Hm0, l.Lower, rawLo, l.Upper, l.ProfLower, l.ProfUpper, l.Flags.Names())
+	// The profile upper end (about 323 mm without a limit) lies beyond 3 times
+	// the record's largest value: reported open, null and flagged.
+	xmax := 0.0
+	for _, v := range x {
+		xmax = math.Max(xmax, v)
+	}
+	_, rawHi := r.GPDFit.ProfileGPD(T, x, 0)
+	if !(rawHi > PlausibleFactor*xmax) || !math.IsNaN(l.ProfUpper) || l.Flags&FlagOpenInterval == 0 {
+		t.Errorf("profile upper %v (unlimited %.1f, 3 x max %.1f), flags %v", l.ProfUpper, rawHi, PlausibleFactor*xmax, l.Flags.Names())
+	}
+	t.Logf("20 exceedances, T=%g: level %.2f, delta [%.2f (raw %.2f), %.2f], profile [%.2f, open (%.2f unlimited)], flags %v", T, l.Hm0, l.Lower, rawLo, l.Upper, l.ProfLower, rawHi, l.Flags.Names())
 }

@@ -22,9 +22,11 @@ type profileFit func(level float64, start []float64) (nll float64, at []float64,
 // and 3.3.3). The lower end is never below zero (Hm0 is not negative): if the
 // deviance stays below the critical value down to 0, lo = 0. hi is +Inf when
 // the deviance does not reach the critical value within 50 delta-method
-// standard errors (or 20 scales) above the level: the data do not bound it.
+// standard errors (or 20 scales) above the level, or below limit when limit
+// is positive (Analyse passes 3 times the record's largest Hm0): the data do
+// not bound it within plausible values.
 // NaN without a converged fit or for T <= 1.
-func (f GEVFit) ProfileGEV(T float64, z []float64) (lo, hi float64) {
+func (f GEVFit) ProfileGEV(T float64, z []float64, limit float64) (lo, hi float64) {
 	nan := math.NaN()
 	zt, _ := f.GEV.ReturnLevel(T)
 	if !f.Converged || math.IsNaN(zt) {
@@ -71,7 +73,7 @@ func (f GEVFit) ProfileGEV(T float64, z []float64) (lo, hi float64) {
 	}
 	start := []float64{math.Log(f.Scale), f.Shape}
 	lo = profileEnd(inner, zt, -step, 0, nllMax, start)
-	hi = profileEnd(inner, zt, step, zt+math.Max(50*step, 20*f.Scale), nllMax, start)
+	hi = profileEnd(inner, zt, step, searchLimit(zt+math.Max(50*step, 20*f.Scale), limit, zt), nllMax, start)
 	return lo, hi
 }
 
@@ -84,8 +86,8 @@ func (f GEVFit) ProfileGEV(T float64, z []float64) (lo, hi float64) {
 // the likelihood maximised over Shape at each fixed x_T, and the interval is
 // where the deviance stays within chi2_1(0.95). Because Scale > 0, the lower
 // end always lies above the threshold u. hi is +Inf when the data do not bound
-// it (see ProfileGEV). NaN without a converged fit or for lambda T < 1.
-func (f GPDFit) ProfileGPD(T float64, peaks []float64) (lo, hi float64) {
+// it (see ProfileGEV, also for limit). NaN without a converged fit or for lambda T < 1.
+func (f GPDFit) ProfileGPD(T float64, peaks []float64, limit float64) (lo, hi float64) {
 	nan := math.NaN()
 	xt, _ := f.GPD.ReturnLevel(T, f.PeaksPerYear)
 	if !f.Converged || math.IsNaN(xt) || !(f.PeaksPerYear*T > 1) {
@@ -134,8 +136,17 @@ func (f GPDFit) ProfileGPD(T float64, peaks []float64) (lo, hi float64) {
 		step = 0.1 * f.Scale
 	}
 	lo = profileEnd(inner, xt, -step, u, -f.LogLik, []float64{f.Shape})
-	hi = profileEnd(inner, xt, step, xt+math.Max(50*step, 20*f.Scale), -f.LogLik, []float64{f.Shape})
+	hi = profileEnd(inner, xt, step, searchLimit(xt+math.Max(50*step, 20*f.Scale), limit, xt), -f.LogLik, []float64{f.Shape})
 	return lo, hi
+}
+
+// searchLimit is the highest level the upper-end search visits: the default
+// reach, lowered to limit when limit is positive and above the level.
+func searchLimit(reach, limit, level float64) float64 {
+	if limit > level && limit < reach {
+		return limit
+	}
+	return reach
 }
 
 // deltaSD is the delta-method standard error of the GEV T-year level.

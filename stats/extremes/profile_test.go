@@ -69,11 +69,11 @@ func TestProfileIntervalsAgainstEvd(t *testing.T) {
 		switch r.cas {
 		case "portpirie_gev":
 			lv, _ = gf.GEV.ReturnLevel(r.T)
-			lo, hi = gf.ProfileGEV(r.T, pp)
+			lo, hi = gf.ProfileGEV(r.T, pp, 0)
 			tol = 2e-3
 		case "rain_gpd":
 			lv, _ = pf.GPD.ReturnLevel(r.T, lambda)
-			lo, hi = pf.ProfileGPD(r.T, rain)
+			lo, hi = pf.ProfileGPD(r.T, rain, 0)
 			tol = 0.05
 		}
 		t.Logf("%s T=%g: level %.5f [%.5f, %.5f]; evd %.5f [%.5f, %.5f]", r.cas, r.T, lv, lo, hi, r.level, r.lower, r.upp)
