@@ -224,6 +224,13 @@ func checkDemoExtremes(t *testing.T, dir string) {
 	if n == 0 {
 		t.Error("the demo has no design contour")
 	}
+	below := 0
+	for _, f := range flags {
+		if hasFlag(f, "design_below_record_max") {
+			below++
+		}
+	}
+	t.Logf("demo: %d cells with design contours; 100-year contour Hm0 %.2f m in cell %d (largest Hm0 %.2f m); %d cells flagged design_below_record_max", n, dh[bestCell], bestCell, hmax[bestCell], below)
 	rows, err := parquetread.Columns(filepath.Join(dir, "design.parquet"), "cell_id")
 	if err != nil || len(rows["cell_id"]) == 0 {
 		t.Errorf("design.parquet: %v, %d rows", err, len(rows["cell_id"]))

@@ -1,3 +1,0 @@
-package pipelines
-import ("testing";"os")
-func TestZZDemoCheck(t *testing.T) { checkDemoExtremes(t, os.Getenv("ZZDIR")) }
