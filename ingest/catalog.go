@@ -79,9 +79,20 @@ type VarInfo struct {
 	ValidMin     float64   `json:"-"`
 	ValidMax     float64   `json:"-"`
 	DirTo        bool      `json:"direction_to,omitempty"`
+	PositiveUp   bool      `json:"positive_up,omitempty"` // depth stored as a height (positive = "up")
 	Dims         []string  `json:"dims"`
 	axes         []axis
 	v            *ncVar
+}
+
+// Static reports whether the variable has no time dimension.
+func (vi *VarInfo) Static() bool {
+	for _, a := range vi.axes {
+		if a == axT {
+			return false
+		}
+	}
+	return true
 }
 
 // axis is the meaning of one dimension of a role variable.
@@ -131,12 +142,21 @@ type FileInfo struct {
 	Last   Stamp  `json:"-"`
 	From   string `json:"first_time"`
 	To     string `json:"last_time"`
+	// Roles are the roles the file carries, in the order of Roles.
+	Roles []Role `json:"roles"`
+	// Static is true for a file holding only fields without time (depth,
+	// mask); it has no steps.
+	Static bool `json:"static,omitempty"`
 	// Offset is the index of the file's first step in the whole record.
+	// Files are in order of Offset, and file i is read as the record's
+	// steps Offset(i) .. Offset(i+1)-1, every role from the file of that
+	// role holding them (Read); a file starting at the same step as the
+	// next has none of its own.
 	Offset int `json:"-"`
 
-	vars  map[Role]*VarInfo
-	times []Stamp
-
+	vars      map[Role]*VarInfo
+	times     []Stamp
+	uidx      []int     // index in the record of each of the file's steps
 	timeUnits string    // the time variable's units attribute
 	stamp     fileStamp // the file as the catalog saw it (identity.go)
 	// xFile, yFile are this file's own orientation: the file index of each
@@ -144,10 +164,15 @@ type FileInfo struct {
 	xFile, yFile []int
 }
 
-// Gap is a stretch of missing time steps between two records.
+// Gap is a stretch of missing time steps: steps absent from the record
+// between two of its times, or (with Role) steps of the record that no file
+// of one role holds.
 type Gap struct {
-	After   string `json:"after"`
-	Before  string `json:"before"`
+	Role    string `json:"role,omitempty"`
+	After   string `json:"after,omitempty"`  // the last time before the gap ("" at the start)
+	Before  string `json:"before,omitempty"` // the first time after it ("" at the end)
+	First   string `json:"first_missing,omitempty"`
+	Last    string `json:"last_missing,omitempty"`
 	Missing int    `json:"missing_steps"`
 }
 
@@ -169,13 +194,21 @@ type Catalog struct {
 	Grid        *grid.Grid        `json:"-"`
 	Vars        map[Role]*VarInfo `json:"roles"`
 	Spectral    *Spectral         `json:"spectral,omitempty"`
+	RoleGaps    []Gap             `json:"role_gaps,omitempty"`
 	Depth       []float64         `json:"-"` // per cell, m; NaN unknown; +Inf deep water
 	DepthSource string            `json:"depth_source"`
-	Masked      []bool            `json:"-"`
-	Warnings    []string          `json:"warnings"`
+	// DepthVaries is true when depth varies in time: the reader then gives
+	// each step's depth as Block.Bulk[Depth], and Depth holds the first step.
+	DepthVaries bool     `json:"depth_varies,omitempty"`
+	Masked      []bool   `json:"-"`
+	Warnings    []string `json:"warnings"`
+	// Names are the station names of a point set (cf_role =
+	// "timeseries_id"), per cell; nil when the files give none.
+	Names []string `json:"-"`
 
-	times   []Stamp
-	gridDim map[string]axis // dimension name -> spatial axis
+	times     []Stamp
+	gridDim   map[string]axis // dimension name -> spatial axis
+	roleFiles map[Role][]int  // role varying in time -> indices of the files holding it, in time order
 }
 
 // Times returns the time of every step of the record, in order.
@@ -222,6 +255,13 @@ func Expand(inputs []string) ([]string, error) {
 }
 
 // Open builds the catalog of a hindcast from files, directories or globs.
+//
+// Files are grouped by the roles they carry: a set may hold every role in
+// each file, one variable per file (hs_2001-01.nc, tp_2001-01.nc, ...), or
+// anything between, and a static field (depth, mask) may sit in a file of
+// its own. Each role's files must tile the record without overlap; the
+// record's time axis is the union of every file's times, and a step where a
+// role has no file is missing for that role (a per-role gap).
 func Open(inputs []string, opt Options) (*Catalog, error) {
 	paths, err := Expand(inputs)
 	if err != nil {
@@ -231,7 +271,7 @@ func Open(inputs []string, opt Options) (*Catalog, error) {
 	defer ncMu.Unlock()
 	defer ncThread()()
 	c := &Catalog{Vars: map[Role]*VarInfo{}}
-	var first *scan
+	var scans []*scan
 	for _, p := range paths {
 		if opt.Ctx != nil && opt.Ctx.Err() != nil {
 			return nil, opt.Ctx.Err()
@@ -240,31 +280,63 @@ func Open(inputs []string, opt Options) (*Catalog, error) {
 		if err != nil {
 			return nil, err
 		}
-		if first == nil {
-			first = s
-			c.Calendar = s.cal
-			c.Grid = s.grid
-			c.gridDim = s.gridDim
-			c.Spectral = s.spectral
-			for r, vi := range s.info.vars {
-				c.Vars[r] = vi
+		scans = append(scans, s)
+	}
+	// Static-only files first, then by first time, then by path.
+	sort.SliceStable(scans, func(i, j int) bool {
+		a, b := &scans[i].info, &scans[j].info
+		if a.Static != b.Static {
+			return a.Static
+		}
+		return a.First < b.First
+	})
+	first := scans[0]
+	c.Calendar, c.Grid, c.gridDim = first.cal, first.grid, first.gridDim
+	var w warnings
+	var spec *scan
+	for _, s := range scans {
+		if err := c.compatible(first, s); err != nil {
+			return nil, err
+		}
+		if s.spectral != nil {
+			if spec == nil {
+				spec, c.Spectral = s, s.spectral
+			} else if !sameFloats(spec.spectral.FreqHz, s.spectral.FreqHz) || !sameFloats(spec.spectral.DirDeg, s.spectral.DirDeg) {
+				return nil, fmt.Errorf("ingest: %s and %s have different frequency or direction coordinates; all files need one spectral layout", spec.info.Path, s.info.Path)
 			}
-		} else {
-			if err := first.compatible(s); err != nil {
-				return nil, err
+		}
+		for _, r := range s.info.Roles {
+			vi := s.info.vars[r]
+			if a := c.Vars[r]; a == nil {
+				c.Vars[r] = vi
+			} else if a.Packed != vi.Packed || a.Scale != vi.Scale || a.Offset != vi.Offset {
+				w.add("packing", vi.Name, s.info.Path, fmt.Sprintf("scale %.6g offset %.6g", vi.Scale, vi.Offset), vi.Scale,
+					fmt.Sprintf("is packed differently from %s (each file is unpacked with its own attributes)", filepath.Base(c.fileOf(r))))
 			}
 		}
 		c.Files = append(c.Files, s.info)
-		c.Warnings = append(c.Warnings, s.warnings...)
+		if c.Names == nil && s.names != nil {
+			c.Names = s.names
+		}
+		for _, m := range s.warnings {
+			w.plain(m)
+		}
 	}
-	sort.SliceStable(c.Files, func(i, j int) bool { return c.Files[i].First < c.Files[j].First })
+	for r, name := range opt.Vars {
+		if name != "" && c.Vars[r] == nil {
+			return nil, fmt.Errorf("ingest: variable %q is named for role %s in the spec but is in none of the %d input files (e.g. %s); fix the name in the spec's [roles] table", name, r, len(c.Files), c.Files[0].Path)
+		}
+	}
+	if err := c.checkRoles(scans); err != nil {
+		return nil, err
+	}
 	if err := c.buildTimeAxis(); err != nil {
 		return nil, err
 	}
 	if err := c.checkLongGaps(opt.AllowLongGaps); err != nil {
 		return nil, err
 	}
-	if err := c.resolveDepth(first, opt); err != nil {
+	if err := c.resolveDepth(scans, opt); err != nil {
 		return nil, err
 	}
 	c.Masked = make([]bool, c.Grid.NCells())
@@ -278,9 +350,10 @@ func Open(inputs []string, opt Options) (*Catalog, error) {
 			c.Masked[i] = true
 		}
 	}
-	if err := c.readMask(first); err != nil {
+	if err := c.readMask(scans); err != nil {
 		return nil, err
 	}
+	c.Warnings = append(w.lines(), c.Warnings...)
 	sea := 0
 	for _, m := range c.Masked {
 		if !m {
@@ -288,31 +361,120 @@ func Open(inputs []string, opt Options) (*Catalog, error) {
 		}
 	}
 	if sea == 0 {
-		return nil, fmt.Errorf("ingest: every cell of the grid is land or unknown: depth from %s is <= 0 m or missing in every cell (or no cell has finite coordinates); check the depth's sign convention (positive down, standard_name sea_floor_depth_below_sea_surface) or set depth.source in the spec", c.DepthSource)
+		return nil, fmt.Errorf("ingest: every cell of the grid is land or unknown: depth from %s is <= 0 m or missing in every cell (or no cell has finite coordinates); check the depth's sign convention (positive down, standard_name sea_floor_depth_below_sea_surface, or a height with positive = \"up\") or set depth.source in the spec", c.DepthSource)
 	}
 	return c, nil
 }
 
-// buildTimeAxis checks that files follow each other in time and records gaps.
-func (c *Catalog) buildTimeAxis() error {
+// fileOf is the path of the first file holding role r (so far).
+func (c *Catalog) fileOf(r Role) string {
 	for i := range c.Files {
-		f := &c.Files[i]
-		if i > 0 {
-			p := &c.Files[i-1]
+		if c.Files[i].vars[r] != nil {
+			return c.Files[i].Path
+		}
+	}
+	return ""
+}
+
+// compatible checks that a file has the grid and calendar of the first.
+func (c *Catalog) compatible(a, b *scan) error {
+	if a == b {
+		return nil
+	}
+	if a.cal != b.cal && !b.info.Static {
+		if a.info.Static {
+			a.cal = b.cal
+			c.Calendar = b.cal
+		} else {
+			return fmt.Errorf("ingest: %s uses the %s calendar but %s uses %s; all files of a hindcast must share one calendar", a.info.Path, a.cal, b.info.Path, b.cal)
+		}
+	}
+	if ok, why := a.grid.Same(b.grid); !ok {
+		return fmt.Errorf("ingest: %s and %s have different grids (%s); give only files of one grid", a.info.Path, b.info.Path, why)
+	}
+	return nil
+}
+
+// checkRoles refuses a set without the roles a run needs and records, for
+// every role that varies in time, the files that carry it.
+func (c *Catalog) checkRoles(scans []*scan) error {
+	if c.Vars[Spectrum2D] == nil && c.Vars[Spectrum1D] == nil && c.Vars[Hm0] == nil {
+		return &NoRoleError{Path: scans[0].info.Path, Vars: allDataVars(scans), Err: fmt.Errorf("ingest: %s: no variable for the wave height or spectrum roles (standard_name %s, %s or %s) in any of the %d input files; name the variable in the spec's [roles] table if it lacks a standard_name",
+			filesWord(c.Files), StandardNames[Spectrum2D][0], StandardNames[Spectrum1D][0], StandardNames[Hm0][0], len(c.Files))}
+	}
+	if c.Vars[Spectrum2D] == nil && c.Vars[Spectrum1D] == nil && c.Vars[Te] == nil && c.Vars[Tp] == nil {
+		return &NoRoleError{Path: scans[0].info.Path, Vars: allDataVars(scans), Err: fmt.Errorf("ingest: %s: bulk wave height found but no period: need a variable with standard_name %s (Te) or %s (Tp), or one named for te or tp in the spec's [roles] table",
+			filesWord(c.Files), StandardNames[Te][0], StandardNames[Tp][0])}
+	}
+	if c.Vars[Spectrum2D] != nil && c.Vars[Spectrum1D] != nil {
+		return fmt.Errorf("ingest: %s: both a 2-D spectrum (%q) and a 1-D spectrum (%q); map one of them in the spec's [roles] table", filesWord(c.Files), c.Vars[Spectrum2D].Name, c.Vars[Spectrum1D].Name)
+	}
+	if vi := c.Vars[Depth]; vi != nil {
+		// Depth is static or varies in time in every file that has it.
+		for _, s := range scans {
+			if d := s.info.vars[Depth]; d != nil && d.Static() != vi.Static() {
+				return errf(s.info.Path, d.Name, "depth has dimensions %v here but %v in %s; give depth either with or without time in every file", d.Dims, vi.Dims, scans[0].info.Path)
+			}
+		}
+	}
+	c.roleFiles = map[Role][]int{}
+	for i := range c.Files {
+		for _, r := range c.Files[i].Roles {
+			if !c.Files[i].vars[r].Static() {
+				c.roleFiles[r] = append(c.roleFiles[r], i)
+			}
+		}
+	}
+	return nil
+}
+
+func filesWord(fs []FileInfo) string {
+	if len(fs) == 1 {
+		return fs[0].Path
+	}
+	return fmt.Sprintf("%s .. %s", fs[0].Path, fs[len(fs)-1].Path)
+}
+
+// buildTimeAxis builds the record's time axis, the union of every file's
+// times, checks that each role's files follow each other without overlap,
+// and records gaps of the whole record and of each role.
+func (c *Catalog) buildTimeAxis() error {
+	for _, r := range sortedRoles(c.roleFiles) {
+		fs := c.roleFiles[r]
+		for k := 1; k < len(fs); k++ {
+			p, f := &c.Files[fs[k-1]], &c.Files[fs[k]]
 			if f.First <= p.Last {
 				what := "overlap in time"
 				if f.First == p.First {
 					what = "start at the same time"
 				}
-				return fmt.Errorf("ingest: %s and %s %s (%s .. %s vs %s .. %s); remove the duplicate or overlapping file from the input", p.Path, f.Path, what, p.From, p.To, f.From, f.To)
+				return fmt.Errorf("ingest: %s and %s %s (%s .. %s vs %s .. %s), both holding role %s (variable %q); remove the duplicate or overlapping file from the input", p.Path, f.Path, what, p.From, p.To, f.From, f.To, r, f.vars[r].Name)
 			}
 		}
-		f.Offset = len(c.times)
-		c.times = append(c.times, f.times...)
+	}
+	var all []Stamp
+	for i := range c.Files {
+		all = append(all, c.Files[i].times...)
+	}
+	sort.Slice(all, func(i, j int) bool { return all[i] < all[j] })
+	for _, t := range all {
+		if len(c.times) == 0 || t != c.times[len(c.times)-1] {
+			c.times = append(c.times, t)
+		}
 	}
 	c.Steps = len(c.times)
 	if c.Steps == 0 {
 		return fmt.Errorf("ingest: the input files hold no time steps")
+	}
+	for i := range c.Files {
+		f := &c.Files[i]
+		f.uidx = make([]int, len(f.times))
+		for k, t := range f.times {
+			f.uidx[k] = sort.Search(len(c.times), func(j int) bool { return c.times[j] >= t })
+		}
+		if len(f.uidx) > 0 {
+			f.Offset = f.uidx[0]
+		}
 	}
 	c.Start, c.End = c.Date(c.times[0]).String(), c.Date(c.times[c.Steps-1]).String()
 	// Nominal step: the most common difference (ties: the smallest).
@@ -334,7 +496,7 @@ func (c *Catalog) buildTimeAxis() error {
 	for i := 1; i < len(c.times) && best > 0; i++ {
 		d := int64(c.times[i] - c.times[i-1])
 		if d > best {
-			c.Gaps = append(c.Gaps, Gap{After: c.Date(c.times[i-1]).String(), Before: c.Date(c.times[i]).String(), Missing: int((d+best/2)/best) - 1})
+			c.Gaps = append(c.Gaps, c.gap(c.times[i-1], c.times[i], int((d+best/2)/best)-1))
 		}
 		if d%best != 0 {
 			irregular++
@@ -350,10 +512,55 @@ func (c *Catalog) buildTimeAxis() error {
 		}
 		c.Warnings = append(c.Warnings, fmt.Sprintf("%d gaps in the time axis, %d missing steps in all", len(c.Gaps), miss))
 	}
+	// Per-role gaps: steps of the record that no file of the role holds.
+	for _, r := range sortedRoles(c.roleFiles) {
+		have := make([]bool, c.Steps)
+		for _, fi := range c.roleFiles[r] {
+			for _, u := range c.Files[fi].uidx {
+				have[u] = true
+			}
+		}
+		var gaps []Gap
+		miss := 0
+		for i := 0; i < c.Steps; {
+			if have[i] {
+				i++
+				continue
+			}
+			j := i
+			for j < c.Steps && !have[j] {
+				j++
+			}
+			g := Gap{Role: string(r), Missing: j - i, First: c.Date(c.times[i]).String(), Last: c.Date(c.times[j-1]).String()}
+			if i > 0 {
+				g.After = c.Date(c.times[i-1]).String()
+			}
+			if j < c.Steps {
+				g.Before = c.Date(c.times[j]).String()
+			}
+			gaps = append(gaps, g)
+			miss += j - i
+			i = j
+		}
+		if len(gaps) > 0 {
+			c.RoleGaps = append(c.RoleGaps, gaps...)
+			c.Warnings = append(c.Warnings, fmt.Sprintf("role %s (variable %q): %d steps of the record are in no file of the role (%d gaps, first %s .. %s); they are missing for %s", r, c.Vars[r].Name, miss, len(gaps), gaps[0].First, gaps[0].Last, r))
+		}
+	}
 	return nil
 }
 
-func (c *Catalog) resolveDepth(first *scan, opt Options) error {
+// gap describes the missing steps between two consecutive times a and b.
+func (c *Catalog) gap(a, b Stamp, missing int) Gap {
+	g := Gap{After: c.Date(a).String(), Before: c.Date(b).String(), Missing: missing}
+	if missing > 0 && c.StepSeconds > 0 {
+		g.First = c.Date(a + Stamp(c.StepSeconds)).String()
+		g.Last = c.Date(b - Stamp(c.StepSeconds)).String()
+	}
+	return g
+}
+
+func (c *Catalog) resolveDepth(scans []*scan, opt Options) error {
 	n := c.Grid.NCells()
 	c.Depth = make([]float64, n)
 	fill := func(v float64) {
@@ -393,17 +600,31 @@ func (c *Catalog) resolveDepth(first *scan, opt Options) error {
 		s.f.close()
 		c.DepthSource = "bathymetry file " + opt.BathymetryFile + " variable " + vi.Name
 	default:
-		vi := first.info.vars[Depth]
-		if vi == nil {
+		var from *scan
+		for _, s := range scans {
+			if s.info.vars[Depth] != nil {
+				from = s
+				break
+			}
+		}
+		if from == nil {
 			fill(math.NaN())
 			c.DepthSource = "none"
 			c.Warnings = append(c.Warnings, "no depth: no variable with standard_name sea_floor_depth_below_sea_surface; give a bathymetry file, a constant depth or the deep-water assumption")
 			return nil
 		}
-		if err := c.readStaticField(first.info.Path, vi, c.Depth); err != nil {
+		vi := from.info.vars[Depth]
+		if err := c.readStaticField(&from.info, vi, c.Depth); err != nil {
 			return err
 		}
-		c.DepthSource = "variable " + vi.Name + " in " + first.info.Path
+		c.DepthSource = "variable " + vi.Name + " in " + from.info.Path
+		if !vi.Static() {
+			c.DepthVaries = true
+			c.DepthSource = "variable " + vi.Name + " (varying in time; group velocity uses each step's depth; the per-cell depth shown is the first step's, from " + from.info.Path + ")"
+		}
+		if vi.PositiveUp {
+			c.DepthSource += ", a height with positive = \"up\" converted to depth"
+		}
 	}
 	bad := 0
 	for _, d := range c.Depth {
@@ -417,15 +638,22 @@ func (c *Catalog) resolveDepth(first *scan, opt Options) error {
 	return nil
 }
 
-// readMask applies a sea_binary_mask variable of the first file (CF standard
+// readMask applies a sea_binary_mask variable of the first file holding one (CF standard
 // name table: 1 = sea, 0 = land) to the cell mask.
-func (c *Catalog) readMask(first *scan) error {
-	vi := first.info.vars[Mask]
-	if vi == nil {
+func (c *Catalog) readMask(scans []*scan) error {
+	var from *scan
+	for _, s := range scans {
+		if s.info.vars[Mask] != nil {
+			from = s
+			break
+		}
+	}
+	if from == nil {
 		return nil
 	}
+	vi := from.info.vars[Mask]
 	m := make([]float64, c.Grid.NCells())
-	if err := c.readStaticField(first.info.Path, vi, m); err != nil {
+	if err := c.readStaticField(&from.info, vi, m); err != nil {
 		return err
 	}
 	land := 0
@@ -445,7 +673,8 @@ func (c *Catalog) readMask(first *scan) error {
 
 // readStaticField reads a field without a time dimension (depth, mask) of the
 // file at path into dst, in canonical cell order.
-func (c *Catalog) readStaticField(path string, vi *VarInfo, dst []float64) error {
+func (c *Catalog) readStaticField(fe *FileInfo, vi *VarInfo, dst []float64) error {
+	path := fe.Path
 	f, err := openNC(path)
 	if err != nil {
 		return err
@@ -456,6 +685,11 @@ func (c *Catalog) readStaticField(path string, vi *VarInfo, dst []float64) error
 	if vi.v == nil {
 		return errf(path, vi.Name, "variable disappeared since the file was scanned")
 	}
-	s := &scan{f: f, grid: c.Grid, gridDim: c.gridDim}
+	// Read in the file's own orientation.
+	fg := *c.Grid
+	if fe.xFile != nil {
+		fg.XFile, fg.YFile = fe.xFile, fe.yFile
+	}
+	s := &scan{f: f, grid: &fg, gridDim: c.gridDim}
 	return s.readStatic(vi, dst)
 }

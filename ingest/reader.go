@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"sort"
 	"time"
 
 	"swellgrid/grid"
@@ -37,6 +38,9 @@ type ReadRange struct {
 	C0, C1   int // cells (canonical ids); C1 = 0 means all
 	MaxSteps int // time steps per block (0: 64)
 	FromFile int // first file to read (resume)
+	// Sample > 0 reads only the first Sample steps of each file (in blocks of
+	// Sample steps): a quick look at every file, for inspect.
+	Sample int
 	// Stats, if not nil, receives the reader's busy and waiting time.
 	Stats *ReadStats
 }
@@ -61,6 +65,9 @@ func (c *Catalog) Read(ctx context.Context, r ReadRange, out chan<- *Block) erro
 	if r.MaxSteps <= 0 {
 		r.MaxSteps = 64
 	}
+	if r.Sample > 0 {
+		r.MaxSteps = r.Sample
+	}
 	if r.Stats != nil {
 		t0, w0 := time.Now(), r.Stats.Wait
 		defer func() { r.Stats.Busy += time.Since(t0) - (r.Stats.Wait - w0) }()
@@ -73,61 +80,98 @@ func (c *Catalog) Read(ctx context.Context, r ReadRange, out chan<- *Block) erro
 	return nil
 }
 
+// readFile reads the record's steps Files[fi].Offset .. Files[fi+1].Offset-1
+// (the file's segment), each role from the file of that role that holds
+// them: the file itself when it carries every role, the files of one month
+// when each holds one variable. A role with no file for some steps leaves
+// them NaN (missing).
 func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- *Block) error {
-	fe := &c.Files[fi]
+	s0, s1 := c.Files[fi].Offset, c.Steps
+	if fi+1 < len(c.Files) {
+		s1 = c.Files[fi+1].Offset
+	}
+	if c.Files[fi].Static || s1 <= s0 {
+		return nil
+	}
 	defer ncThread()()
-	ncMu.Lock()
-	// The file must be the one the catalog saw, before its first read and
-	// (below) after its last: then the values read are of the bytes whose
-	// SHA-256 the manifest gives (Catalog.HashFile checks the same stamp).
-	if err := c.Unchanged(fi); err != nil {
+	// The source of each role: the file of the role holding step s0.
+	type source struct {
+		fi         int
+		vi         *VarInfo
+		g          *grid.Grid // the catalog's grid in this file's orientation
+		invX, invY []int
+	}
+	sources := map[Role]source{}
+	opened := map[int]*ncFile{}
+	defer func() {
+		ncMu.Lock()
+		for _, f := range opened {
+			f.close()
+		}
 		ncMu.Unlock()
-		return err
-	}
-	f, err := openNC(fe.Path)
-	ncMu.Unlock()
-	if err != nil {
-		return err
-	}
-	defer func() { ncMu.Lock(); f.close(); ncMu.Unlock() }()
-	// Re-resolve the variables of this file (same names as scanned).
-	vars := map[Role]*VarInfo{}
-	for role, vi := range fe.vars {
-		if static(role) {
-			continue
+	}()
+	t0 := c.times[s0]
+	for _, role := range sortedRoles(c.roleFiles) {
+		for _, j := range c.roleFiles[role] {
+			fe := &c.Files[j]
+			if fe.First > t0 || fe.Last < t0 {
+				continue
+			}
+			f := opened[j]
+			if f == nil {
+				ncMu.Lock()
+				// The file must be the one the catalog saw, before its first
+				// read and (below) after the segment's last: then the values
+				// read are of the bytes whose SHA-256 the manifest gives
+				// (Catalog.HashFile checks the same stamp).
+				if err := c.Unchanged(j); err != nil {
+					ncMu.Unlock()
+					return err
+				}
+				var err error
+				f, err = openNC(fe.Path)
+				ncMu.Unlock()
+				if err != nil {
+					return err
+				}
+				opened[j] = f
+			}
+			vi := fe.vars[role]
+			v := f.find(vi.Name)
+			if v == nil {
+				return errf(fe.Path, vi.Name, "variable disappeared since the catalog was built; was the file replaced during the run?")
+			}
+			cp := *vi
+			cp.v = v
+			// Each file is read in its own orientation: the catalog's grid
+			// holds the canonical cells, the file's axes may run the other way
+			// (a latitude descending in one month of an ascending record) or be
+			// stored in another order (dimension order is in vi.axes).
+			fg := *c.Grid
+			if fe.xFile != nil {
+				fg.XFile, fg.YFile = fe.xFile, fe.yFile
+			}
+			sources[role] = source{j, &cp, &fg, invert(fg.XFile), invert(fg.YFile)}
+			break
 		}
-		v := f.find(vi.Name)
-		if v == nil {
-			return errf(fe.Path, vi.Name, "variable disappeared since the catalog was built; was the file replaced during the run?")
-		}
-		cp := *vi
-		cp.v = v
-		vars[role] = &cp
 	}
 	valid := map[Role]int{}
-	// Each file is read in its own orientation: the catalog's grid holds the
-	// canonical cells, the file's axes may run the other way (a latitude
-	// descending in one month of an ascending record) or be stored in another
-	// order (dimension order is in each file's own vi.axes).
-	fg := *c.Grid
-	if fe.xFile != nil {
-		fg.XFile, fg.YFile = fe.xFile, fe.yFile
-	}
-	g := &fg
-	invX, invY := invert(g.XFile), invert(g.YFile)
+	g := c.Grid
 	nc := r.C1 - r.C0
 	var nf, nd int
 	if c.Spectral != nil {
 		nf, nd = len(c.Spectral.FreqHz), max(1, len(c.Spectral.DirDeg))
 	}
-	var scratch []float64 // the raw slab, reused across blocks and roles
-	for t0 := 0; t0 < fe.Steps; t0 += r.MaxSteps {
-		nt := min(r.MaxSteps, fe.Steps-t0)
-		b := &Block{File: fi, Step0: fe.Offset + t0, NT: nt, Times: fe.times[t0 : t0+nt], C0: r.C0, C1: r.C1,
-			Bulk: map[Role][]float64{}, NF: nf, ND: nd, LastOfFile: t0+nt >= fe.Steps}
+	var scratch, rows []float64 // the raw slab and unaligned rows, reused across blocks and roles
+	if r.Sample > 0 {
+		s1 = min(s1, s0+r.Sample)
+	}
+	for b0 := s0; b0 < s1; b0 += r.MaxSteps {
+		nt := min(r.MaxSteps, s1-b0)
+		b := &Block{File: fi, Step0: b0, NT: nt, Times: c.times[b0 : b0+nt], C0: r.C0, C1: r.C1,
+			Bulk: map[Role][]float64{}, NF: nf, ND: nd, LastOfFile: b0+nt >= s1}
 		for _, role := range Roles {
-			vi := vars[role]
-			if vi == nil {
+			if c.roleFiles[role] == nil {
 				continue
 			}
 			spec := role == Spectrum2D || role == Spectrum1D
@@ -139,11 +183,34 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 			for i := range dst {
 				dst[i] = math.NaN()
 			}
-			n, err := c.gather(fe.Path, vi, g, invX, invY, t0, nt, r.C0, r.C1, dst, per, &scratch)
-			if err != nil {
-				return err
+			if src, ok := sources[role]; ok {
+				// The source's steps within this block, k0..k1-1.
+				u := c.Files[src.fi].uidx
+				k0 := sort.SearchInts(u, b0)
+				k1 := sort.SearchInts(u, b0+nt)
+				if k1 > k0 {
+					row := nc * per
+					var n int
+					var err error
+					if u[k1-1]-u[k0] == k1-1-k0 {
+						// Contiguous in the record (the common case): read in place.
+						n, err = c.gather(c.Files[src.fi].Path, src.vi, src.g, src.invX, src.invY, k0, k1-k0, r.C0, r.C1, dst[(u[k0]-b0)*row:(u[k1-1]-b0+1)*row], per, &scratch)
+					} else {
+						if cap(rows) < (k1-k0)*row {
+							rows = make([]float64, (k1-k0)*row)
+						}
+						tmp := rows[:(k1-k0)*row]
+						n, err = c.gather(c.Files[src.fi].Path, src.vi, src.g, src.invX, src.invY, k0, k1-k0, r.C0, r.C1, tmp, per, &scratch)
+						for k := k0; k < k1; k++ {
+							copy(dst[(u[k]-b0)*row:(u[k]-b0+1)*row], tmp[(k-k0)*row:(k-k0+1)*row])
+						}
+					}
+					if err != nil {
+						return err
+					}
+					valid[role] += n
+				}
 			}
-			valid[role] += n
 			if spec {
 				b.Spec = dst
 			} else {
@@ -151,11 +218,13 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 			}
 		}
 		if b.LastOfFile {
-			// Every value of the file is read: a file rewritten meanwhile is
-			// refused before its last block is used (no state is saved past
-			// a file whose last block was not handed on).
-			if err := c.Unchanged(fi); err != nil {
-				return err
+			// Every value of the segment is read: a file rewritten meanwhile
+			// is refused before the last block is used (no state is saved
+			// past a segment whose last block was not handed on).
+			for _, src := range sources {
+				if err := c.Unchanged(src.fi); err != nil {
+					return err
+				}
 			}
 		}
 		var tw time.Time
@@ -172,9 +241,12 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 			r.Stats.Blocks++
 		}
 	}
-	for role, vi := range vars {
-		if valid[role] == 0 && r.C0 == 0 && r.C1 == g.NCells() {
-			return errf(fe.Path, vi.Name, "every value is a fill value or missing; the variable holds no data")
+	for _, role := range sortedRoles(sources) {
+		src := sources[role]
+		fe := &c.Files[src.fi]
+		whole := fe.uidx[0] >= s0 && fe.uidx[len(fe.uidx)-1] < s1
+		if valid[role] == 0 && whole && r.C0 == 0 && r.C1 == g.NCells() {
+			return errf(fe.Path, src.vi.Name, "every value is a fill value or missing; the variable holds no data")
 		}
 	}
 	return nil

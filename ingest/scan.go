@@ -19,6 +19,8 @@ type scan struct {
 	gridDim  map[string]axis
 	spectral *Spectral
 	warnings []string
+	vars     []VarSummary // the file's data variables (for a refusal's listing)
+	names    []string     // station names of a point set, canonical order
 	invX     []int
 	invY     []int
 }
@@ -46,19 +48,29 @@ func scanFile(path string, opt Options) (*scan, error) {
 	if err := s.checkDeclaredSize(); err != nil {
 		return nil, err
 	}
-	tv, err := s.findTime()
-	if err != nil {
+	// A file without a time coordinate may hold static fields (depth, mask)
+	// of a set whose wave variables are in other files.
+	tv, terr := s.findTime()
+	timeDim := ""
+	if terr == nil {
+		if err := s.readTime(tv); err != nil {
+			return nil, err
+		}
+		timeDim = tv.dims[0]
+	}
+	if err := s.findGrid(timeDim); err != nil {
+		if terr != nil {
+			return nil, terr
+		}
 		return nil, err
 	}
-	if err := s.readTime(tv); err != nil {
-		return nil, err
-	}
-	if err := s.findGrid(); err != nil {
+	s.vars = s.dataVars()
+	if s.names, err = s.findNames(); err != nil {
 		return nil, err
 	}
 	s.info.vars = map[Role]*VarInfo{}
-	for _, r := range Roles {
-		vi, err := s.findRole(r, opt, tv.dims[0])
+	for _, r := range append(append([]Role{}, Roles...), Mask) {
+		vi, err := s.findRole(r, opt, timeDim)
 		if err != nil {
 			return nil, err
 		}
@@ -66,20 +78,28 @@ func scanFile(path string, opt Options) (*scan, error) {
 			s.info.vars[r] = vi
 		}
 	}
-	if vi, err := s.findRole(Mask, opt, tv.dims[0]); err != nil {
-		return nil, err
-	} else if vi != nil {
-		s.info.vars[Mask] = vi
+	timeRoles := 0
+	for r, vi := range s.info.vars {
+		s.info.Roles = append(s.info.Roles, r)
+		if !vi.Static() {
+			timeRoles++
+		}
 	}
-	if s.info.vars[Spectrum2D] == nil && s.info.vars[Spectrum1D] == nil && s.info.vars[Hm0] == nil {
-		return nil, errf(path, "", "no variable for the wave height or spectrum roles (standard_name %s, %s or %s); name the variable in the spec's [roles] table if it lacks a standard_name",
-			StandardNames[Spectrum2D][0], StandardNames[Spectrum1D][0], StandardNames[Hm0][0])
-	}
-	if s.info.vars[Spectrum2D] == nil && s.info.vars[Spectrum1D] == nil && s.info.vars[Te] == nil && s.info.vars[Tp] == nil {
-		return nil, errf(path, "", "bulk wave height found but no period: need a variable with standard_name %s (Te) or %s (Tp)", StandardNames[Te][0], StandardNames[Tp][0])
+	sortRoles(s.info.Roles)
+	if timeRoles == 0 {
+		if len(s.info.vars) == 0 {
+			if terr != nil {
+				return nil, terr
+			}
+			return nil, &NoRoleError{Path: path, Vars: s.vars, Err: errf(path, "", "no variable for any role: none has a wave standard_name (e.g. %s) and none is named in the spec's [roles] table; name the variables in [roles] (see the list below) or leave the file out",
+				StandardNames[Hm0][0])}
+		}
+		// Only static fields: the file's time axis, if any, is not part of the record.
+		s.info.Static, s.info.Steps, s.info.times = true, 0, nil
+		s.info.From, s.info.To, s.info.First, s.info.Last = "", "", 0, 0
 	}
 	for _, r := range Roles {
-		if vi := s.info.vars[r]; vi != nil && r != Depth {
+		if vi := s.info.vars[r]; vi != nil && !vi.Static() {
 			if err := s.checkNotAllFill(vi); err != nil {
 				return nil, err
 			}
@@ -108,7 +128,7 @@ func scanStatic(path string, opt Options) (*scan, error) {
 		f.close()
 		return nil, err
 	}
-	if err := s.findGrid(); err != nil {
+	if err := s.findGrid(""); err != nil {
 		f.close()
 		return nil, err
 	}
@@ -298,8 +318,10 @@ func (s *scan) coordVar(stdName, unitsPrefix string) []*ncVar {
 
 // findGrid identifies the grid from the longitude/latitude coordinates (CF
 // Conventions 1.8, sections 4.1-4.2 and 5: standard_name longitude/latitude or
-// units degrees_east/degrees_north).
-func (s *scan) findGrid() error {
+// units degrees_east/degrees_north). Point sets may store their coordinates
+// over (time, station), as spectral point output often does; they must then
+// be constant in time (within 1e-6 degree).
+func (s *scan) findGrid(timeDim string) error {
 	lons := s.coordVar("longitude", "degrees_east")
 	lats := s.coordVar("latitude", "degrees_north")
 	pick := func(vs []*ncVar) *ncVar {
@@ -342,9 +364,19 @@ func (s *scan) findGrid() error {
 			}
 		}
 	}
+	lonDims, latDims := lon.dims, lat.dims
+	if timeDim != "" && len(lonDims) == 2 && len(latDims) == 2 && lonDims[0] == timeDim && latDims[0] == timeDim && lonDims[1] == latDims[1] {
+		if lonv, err = constantInTime(s.f.path, lon.name, lonv, lon.shape); err != nil {
+			return err
+		}
+		if latv, err = constantInTime(s.f.path, lat.name, latv, lat.shape); err != nil {
+			return err
+		}
+		lonDims, latDims = lonDims[1:], latDims[1:]
+	}
 	s.gridDim = map[string]axis{}
 	switch {
-	case len(lon.dims) == 1 && len(lat.dims) == 1 && lon.dims[0] != lat.dims[0]:
+	case len(lonDims) == 1 && len(latDims) == 1 && lonDims[0] != latDims[0]:
 		if len(lonv) == 0 || len(latv) == 0 {
 			return errf(s.f.path, lon.name+"/"+lat.name, "a grid dimension has size 0 (%d lon, %d lat); the file holds no cells: remove it from the input or write it again", len(lonv), len(latv))
 		}
@@ -353,29 +385,49 @@ func (s *scan) findGrid() error {
 			return errf(s.f.path, lon.name+"/"+lat.name, "%v", err)
 		}
 		s.grid = g
-		s.gridDim[lon.dims[0]] = axX
-		s.gridDim[lat.dims[0]] = axY
-	case len(lon.dims) == 1 && len(lat.dims) == 1:
+		s.gridDim[lonDims[0]] = axX
+		s.gridDim[latDims[0]] = axY
+	case len(lonDims) == 1 && len(latDims) == 1:
 		g, err := grid.NewPoints(lonv, latv)
 		if err != nil {
 			return errf(s.f.path, lon.name+"/"+lat.name, "%v", err)
 		}
 		s.grid = g
-		s.gridDim[lon.dims[0]] = axP
-	case len(lon.dims) == 2 && len(lat.dims) == 2 && lon.dims[0] == lat.dims[0] && lon.dims[1] == lat.dims[1]:
+		s.gridDim[lonDims[0]] = axP
+	case len(lonDims) == 2 && len(latDims) == 2 && lonDims[0] == latDims[0] && lonDims[1] == latDims[1]:
 		g, err := grid.NewCurvilinear(int(lon.shape[1]), int(lon.shape[0]), lonv, latv)
 		if err != nil {
 			return errf(s.f.path, lon.name+"/"+lat.name, "%v", err)
 		}
 		s.grid = g
-		s.gridDim[lon.dims[0]] = axY
-		s.gridDim[lon.dims[1]] = axX
+		s.gridDim[lonDims[0]] = axY
+		s.gridDim[lonDims[1]] = axX
 	default:
-		return errf(s.f.path, lon.name+"/"+lat.name, "coordinates of dimensions %v and %v form no grid swellgrid reads (1-D axes, 2-D curvilinear, or a station dimension)", lon.dims, lat.dims)
+		return errf(s.f.path, lon.name+"/"+lat.name, "coordinates of dimensions %v and %v form no grid swellgrid reads (1-D axes, 2-D curvilinear, or a station dimension)", lonDims, latDims)
 	}
 	s.invX, s.invY = invert(s.grid.XFile), invert(s.grid.YFile)
 	s.info.xFile, s.info.yFile = s.grid.XFile, s.grid.YFile
 	return nil
+}
+
+// constantInTime reduces coordinates stored over (time, station) to one row,
+// refusing stations that move by more than 1e-6 degree (a moving platform is
+// not a point set swellgrid reads).
+func constantInTime(path, name string, v []float64, shape []uint64) ([]float64, error) {
+	nt, np := int(shape[0]), int(shape[1])
+	row := append([]float64(nil), v[:np]...)
+	for t := 1; t < nt; t++ {
+		for p := 0; p < np; p++ {
+			x := v[t*np+p]
+			if x != x && row[p] != row[p] {
+				continue
+			}
+			if d := math.Abs(x - row[p]); !(d <= 1e-6) {
+				return nil, errf(path, name, "station %d moves: %v at step 0 but %v at step %d (more than 1e-6 degree); swellgrid reads fixed points only: give coordinates that are constant in time, or split the record per position", p, row[p], x, t)
+			}
+		}
+	}
+	return row, nil
 }
 
 func invert(p []int) []int {
@@ -388,10 +440,14 @@ func invert(p []int) []int {
 
 func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
 	var v *ncVar
+	if timeDim == "" && !static(r) {
+		return nil, nil // a file without time holds only static fields
+	}
 	if name := opt.Vars[r]; name != "" {
-		v = s.f.find(name)
-		if v == nil {
-			return nil, errf(s.f.path, name, "named for role %s in the spec but not in the file; fix the name in the spec's [roles] table", r)
+		// In a set with one variable per file, a named variable is in some
+		// files only; Open refuses a name found in none of them.
+		if v = s.f.find(name); v == nil {
+			return nil, nil
 		}
 	} else {
 		var found []*ncVar
@@ -443,19 +499,25 @@ func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
 	if !ok {
 		wo = 1
 	}
+	if r == Depth && hasT {
+		wo = 1 // depth that varies in time (tides): (time, station) or (time, y, x)
+	}
 	if nspat != wantSpat || other != wo || (!static(r) && !hasT) {
-		expect := "(time, " + map[bool]string{true: "station", false: "y, x"}[wantSpat == 1]
+		spat := map[bool]string{true: "station", false: "y, x"}[wantSpat == 1]
+		expect := "(time, " + spat
 		switch r {
 		case Spectrum2D:
-			expect += ", frequency, direction)"
+			expect += ", frequency, direction) with time first"
 		case Spectrum1D:
-			expect += ", frequency)"
-		case Depth, Mask:
-			expect = "(" + expect[7:] + ")"
+			expect += ", frequency) with time first"
+		case Depth:
+			expect = "(" + spat + ") or, varying in time, (time, " + spat + ")"
+		case Mask:
+			expect = "(" + spat + ")"
 		default:
-			expect += ")"
+			expect += ") with time first"
 		}
-		return nil, errf(s.f.path, v.name, "role %s has dimensions %v; expected %s with time first and the grid's dimensions; check the variable or the role mapping", r, v.dims, expect)
+		return nil, errf(s.f.path, v.name, "role %s has dimensions %v; expected %s, using the grid's dimensions; check the variable or the role mapping", r, v.dims, expect)
 	}
 	for i, sz := range v.shape {
 		if sz == 0 {
@@ -483,6 +545,11 @@ func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
 		return nil, errf(s.f.path, v.name, "%v; set units for role %s in the spec if the attribute is wrong", err, r)
 	}
 	vi.Factor = fac
+	if r == Depth && strings.EqualFold(strings.TrimSpace(v.str("positive")), "up") {
+		// A height (CF 1.8 section 4.3: positive = "up"), negative below the
+		// surface: depth = -height.
+		vi.Factor, vi.PositiveUp = -fac, true
+	}
 	// Packing and missing values (CF 1.8 sections 2.5.1 and 8.1), read
 	// strictly: a packing attribute that is skipped would leave values scaled
 	// by orders of magnitude, so text, the wrong count or a non-finite value
@@ -753,39 +820,6 @@ func physicalRule(r Role) string {
 	return "valid"
 }
 
-// compatible checks that a later file has the same grid, calendar, roles and
-// spectral layout as the first.
-func (a *scan) compatible(b *scan) error {
-	if a.cal != b.cal {
-		return fmt.Errorf("ingest: %s uses the %s calendar but %s uses %s; all files of a hindcast must share one calendar", a.info.Path, a.cal, b.info.Path, b.cal)
-	}
-	if ok, why := a.grid.Same(b.grid); !ok {
-		return fmt.Errorf("ingest: %s and %s have different grids (%s); give only files of one grid", a.info.Path, b.info.Path, why)
-	}
-	for r := range a.info.vars {
-		if b.info.vars[r] == nil {
-			return fmt.Errorf("ingest: %s has role %s (variable %q) but %s does not; all files need the same variables", a.info.Path, r, a.info.vars[r].Name, b.info.Path)
-		}
-		if a.info.vars[r].Packed != b.info.vars[r].Packed || a.info.vars[r].Scale != b.info.vars[r].Scale || a.info.vars[r].Offset != b.info.vars[r].Offset {
-			b.warnings = append(b.warnings, fmt.Sprintf("%s: variable %q is packed differently from %s (each file is unpacked with its own attributes)", b.info.Path, b.info.vars[r].Name, a.info.Path))
-		}
-	}
-	for r := range b.info.vars {
-		if a.info.vars[r] == nil {
-			return fmt.Errorf("ingest: %s has role %s (variable %q) but %s does not; all files need the same variables", b.info.Path, r, b.info.vars[r].Name, a.info.Path)
-		}
-	}
-	if (a.spectral == nil) != (b.spectral == nil) {
-		return fmt.Errorf("ingest: %s and %s differ in spectral layout", a.info.Path, b.info.Path)
-	}
-	if a.spectral != nil {
-		if !sameFloats(a.spectral.FreqHz, b.spectral.FreqHz) || !sameFloats(a.spectral.DirDeg, b.spectral.DirDeg) {
-			return fmt.Errorf("ingest: %s and %s have different frequency or direction coordinates; all files need one spectral layout", a.info.Path, b.info.Path)
-		}
-	}
-	return nil
-}
-
 func sameFloats(a, b []float64) bool {
 	if len(a) != len(b) {
 		return false
@@ -800,14 +834,24 @@ func sameFloats(a, b []float64) bool {
 
 // readStatic reads a field with only grid dimensions into dst (canonical
 // cell order), unpacked and in SI units.
+// A field that varies in time (depth with tides) gives its first step.
 func (s *scan) readStatic(vi *VarInfo, dst []float64) error {
-	raw, err := vi.v.readAll(s.f.path)
-	if err != nil {
+	shape := append([]uint64(nil), vi.v.shape...)
+	for k, ax := range vi.axes {
+		if ax == axT {
+			shape[k] = 1
+		}
+	}
+	n := 1
+	for _, d := range shape {
+		n *= int(d)
+	}
+	raw := make([]float64, n)
+	if err := vi.v.readSlab(s.f.path, make([]uint64, len(shape)), shape, raw); err != nil {
 		return err
 	}
 	invX, invY := invert(s.grid.XFile), invert(s.grid.YFile)
 	nx := s.grid.NX
-	shape := vi.v.shape
 	for i, x := range raw {
 		var fx, fy int
 		rem := i

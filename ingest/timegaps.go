@@ -12,10 +12,23 @@ func (c *Catalog) checkLongGaps(allow bool) error {
 		return nil
 	}
 	span := int64(c.times[c.Steps-1] - c.times[0])
-	for i := 1; i < len(c.Files); i++ {
-		p, f := &c.Files[i-1], &c.Files[i]
+	// p is the file reaching furthest so far: files of different roles may
+	// overlap, and static files have no times.
+	var p *FileInfo
+	for i := range c.Files {
+		f := &c.Files[i]
+		if f.Static {
+			continue
+		}
+		if p == nil {
+			p = f
+			continue
+		}
 		gap := int64(f.First - p.Last)
 		if gap <= span-gap {
+			if f.Last > p.Last {
+				p = f
+			}
 			continue
 		}
 		// The suspect is the side of the gap with fewer steps.

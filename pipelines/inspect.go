@@ -1,29 +1,38 @@
 package pipelines
 
 import (
+	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"math"
 	"sort"
 	"strings"
+	"text/tabwriter"
 
 	"swellgrid/ingest"
 )
 
 // InspectReport is what `swellgrid inspect` shows of a hindcast.
 type InspectReport struct {
-	Files       []ingest.FileInfo               `json:"files"`
-	Calendar    ingest.Calendar                 `json:"calendar"`
-	Start       string                          `json:"start"`
-	End         string                          `json:"end"`
-	Steps       int                             `json:"steps"`
-	StepSeconds int64                           `json:"step_seconds"`
-	Gaps        []ingest.Gap                    `json:"gaps"`
-	GridKind    string                          `json:"grid_kind"`
-	GridShape   [2]int                          `json:"grid_shape_ny_nx"`
-	Cells       int                             `json:"cells"`
-	MaskedCells int                             `json:"masked_cells"`
+	Files       []ingest.FileInfo `json:"files"`
+	Calendar    ingest.Calendar   `json:"calendar"`
+	Start       string            `json:"start"`
+	End         string            `json:"end"`
+	Steps       int               `json:"steps"`
+	StepSeconds int64             `json:"step_seconds"`
+	Gaps        []ingest.Gap      `json:"gaps"`
+	RoleGaps    []ingest.Gap      `json:"role_gaps,omitempty"`
+	GridKind    string            `json:"grid_kind"`
+	GridShape   [2]int            `json:"grid_shape_ny_nx"`
+	Cells       int               `json:"cells"`
+	MaskedCells int               `json:"masked_cells"`
+	// EmptyCells of MaskedCells have no depth or mask against them but no
+	// value at any sampled step (the first steps of every file): land in a
+	// set without depth. A run flags every cell without a value masked.
+	EmptyCells  int                             `json:"masked_cells_without_values"`
+	SampleSteps int                             `json:"sampled_steps_per_file"`
 	Bounds      [4]float64                      `json:"bbox_lon_lat"`
 	Roles       map[ingest.Role]*ingest.VarInfo `json:"roles"`
 	Spectral    *ingest.Spectral                `json:"spectral,omitempty"`
@@ -38,12 +47,175 @@ func Inspect(inputs []string, opt ingest.Options) (*InspectReport, error) {
 	if err != nil {
 		return nil, err
 	}
-	return report(cat), nil
+	r := report(cat)
+	if err := r.countEmpty(cat); err != nil {
+		return nil, err
+	}
+	return r, nil
+}
+
+// InspectSpec inspects the inputs of a spec (or inputs, when given) with the
+// spec's roles, units, depth and direction convention, as a run would read
+// them.
+func InspectSpec(spec *Spec, inputs []string) (*InspectReport, error) {
+	if err := spec.checkRoles(); err != nil {
+		return nil, inputErr(err)
+	}
+	if len(inputs) == 0 {
+		inputs = spec.Input.Paths
+	}
+	if len(inputs) == 0 {
+		return nil, inputErr(fmt.Errorf("inspect: no input: give paths or a spec with input.paths"))
+	}
+	return Inspect(inputs, spec.ingestOptions())
+}
+
+// inspectSample is the number of steps inspect reads of each file to find
+// cells without any value.
+const inspectSample = 4
+
+// countEmpty reads the first steps of every file and counts the cells not
+// masked by depth or mask that have no value there (land where the files
+// give no depth); they are counted as masked. It reads in cell ranges of a
+// bounded size.
+func (r *InspectReport) countEmpty(cat *ingest.Catalog) error {
+	lead := ingest.Hm0
+	per := 1
+	if cat.Spectral != nil && (cat.Vars[ingest.Spectrum2D] != nil || cat.Vars[ingest.Spectrum1D] != nil) {
+		lead = ingest.Spectrum2D
+		per = len(cat.Spectral.FreqHz) * max(1, len(cat.Spectral.DirDeg))
+	}
+	n := cat.Grid.NCells()
+	seen := make([]bool, n)
+	chunk := max(1, (1<<21)/(per*inspectSample))
+	for c0 := 0; c0 < n; c0 += chunk {
+		c1 := min(n, c0+chunk)
+		out := make(chan *ingest.Block, 2)
+		errc := make(chan error, 1)
+		go func() {
+			errc <- cat.Read(context.Background(), ingest.ReadRange{C0: c0, C1: c1, Sample: inspectSample}, out)
+			close(out)
+		}()
+		for b := range out {
+			nc := b.NC()
+			for t := 0; t < b.NT; t++ {
+				for k := 0; k < nc; k++ {
+					i := t*nc + k
+					var x float64
+					if lead == ingest.Hm0 {
+						x = b.Bulk[ingest.Hm0][i]
+					} else {
+						x = math.NaN()
+						for _, v := range b.Spec[i*per : (i+1)*per] {
+							if !math.IsNaN(v) {
+								x = v
+								break
+							}
+						}
+					}
+					if !math.IsNaN(x) {
+						seen[b.C0+k] = true
+					}
+				}
+			}
+		}
+		if err := <-errc; err != nil {
+			return err
+		}
+	}
+	r.SampleSteps = inspectSample
+	for i, ok := range seen {
+		if !ok && !cat.Masked[i] {
+			r.EmptyCells++
+			r.MaskedCells++
+		}
+	}
+	return nil
+}
+
+// GuidedHelp explains a refusal for want of a role: it lists every data
+// variable of the input files (name, dimensions, units, long_name,
+// standard_name) and prints a [roles] table, guessed from long_name and
+// units, that would let swellgrid read them. It returns "" for any other
+// error.
+func GuidedHelp(err error) string {
+	var nr *ingest.NoRoleError
+	if !errors.As(err, &nr) || len(nr.Vars) == 0 {
+		return ""
+	}
+	var sb strings.Builder
+	fmt.Fprintf(&sb, "data variables of the input files (coordinates left out):\n")
+	w := tabwriter.NewWriter(&sb, 0, 0, 2, ' ', 0)
+	fmt.Fprintf(w, "  name\tdimensions\tunits\tlong_name\tstandard_name\n")
+	for _, v := range nr.Vars {
+		fmt.Fprintf(w, "  %s\t(%s)\t%s\t%s\t%s\n", v.Name, strings.Join(v.Dims, ", "), dash(v.Units), dash(v.LongName), dash(v.StandardName))
+	}
+	w.Flush()
+	guess := ingest.Guess(nr.Vars)
+	if len(guess) == 0 {
+		sb.WriteString("no role could be guessed from long_name and units; map the variables yourself:\n[roles]\nhm0 = \"...\"   # significant wave height\nte = \"...\"    # energy period (or tp = peak period)\n")
+		return sb.String()
+	}
+	sb.WriteString("\nA GUESS from long_name and units (check every line before use), for a spec or --role:\n[roles]\n")
+	units := map[ingest.Role]string{}
+	for _, role := range append(append([]ingest.Role{}, ingest.Roles...), ingest.Mask) {
+		name, ok := guess[role]
+		if !ok {
+			continue
+		}
+		var vs ingest.VarSummary
+		for _, v := range nr.Vars {
+			if v.Name == name {
+				vs = v
+			}
+		}
+		fmt.Fprintf(&sb, "%s = %q   # %s\n", role, name, dash(vs.LongName))
+		if u := ingest.SuggestUnits(role, vs.Units); u != "" {
+			units[role] = u
+		}
+	}
+	if len(units) > 0 {
+		sb.WriteString("[units]   # these units attributes are not understood; check the conversion\n")
+		for _, role := range ingest.Roles {
+			if u, ok := units[role]; ok {
+				var vs string
+				for _, v := range nr.Vars {
+					if v.Name == guess[role] {
+						vs = v.Units
+					}
+				}
+				fmt.Fprintf(&sb, "%s = %q   # the file says %q\n", role, u, vs)
+			}
+		}
+	}
+	if guess[ingest.Depth] == "" {
+		sb.WriteString("# no depth variable guessed: set [depth] source = \"constant\", \"bathymetry\" or \"deep-water\" (or --depth / --deep-water)\n")
+	}
+	sb.WriteString("Try it: swellgrid inspect")
+	for _, role := range ingest.Roles {
+		if name, ok := guess[role]; ok {
+			fmt.Fprintf(&sb, " --role %s=%s", role, name)
+		}
+	}
+	for _, role := range ingest.Roles {
+		if u, ok := units[role]; ok {
+			fmt.Fprintf(&sb, " --units %s=%q", role, u)
+		}
+	}
+	sb.WriteString(" PATH...\n")
+	return sb.String()
+}
+
+func dash(s string) string {
+	if s == "" {
+		return "-"
+	}
+	return s
 }
 
 func report(cat *ingest.Catalog) *InspectReport {
 	r := &InspectReport{Files: cat.Files, Calendar: cat.Calendar, Start: cat.Start, End: cat.End, Steps: cat.Steps,
-		StepSeconds: cat.StepSeconds, Gaps: cat.Gaps, GridKind: cat.Grid.Kind.String(), GridShape: [2]int{cat.Grid.NY, cat.Grid.NX},
+		StepSeconds: cat.StepSeconds, Gaps: cat.Gaps, RoleGaps: cat.RoleGaps, GridKind: cat.Grid.Kind.String(), GridShape: [2]int{cat.Grid.NY, cat.Grid.NX},
 		Cells: cat.Grid.NCells(), Roles: cat.Vars, Spectral: cat.Spectral, DepthSource: cat.DepthSource, Warnings: cat.Warnings}
 	if r.Gaps == nil {
 		r.Gaps = []ingest.Gap{}
@@ -85,34 +257,60 @@ func (r *InspectReport) WriteText(w io.Writer) error {
 		total += f.Size
 	}
 	fmt.Fprintf(&sb, "files        %d (%.1f MB)\n", len(r.Files), float64(total)/1e6)
-	for i, f := range r.Files {
-		if i == 3 && len(r.Files) > 6 {
-			fmt.Fprintf(&sb, "  ... %d more\n", len(r.Files)-6)
+	// Files grouped by the roles they carry.
+	var groups []string
+	byGroup := map[string][]ingest.FileInfo{}
+	for _, f := range r.Files {
+		var rs []string
+		for _, x := range f.Roles {
+			rs = append(rs, string(x))
 		}
-		if i >= 3 && i < len(r.Files)-3 {
-			continue
+		k := strings.Join(rs, ", ")
+		if byGroup[k] == nil {
+			groups = append(groups, k)
 		}
-		fmt.Fprintf(&sb, "  %s  %s .. %s  %d steps  %s\n", f.Path, f.From, f.To, f.Steps, f.Format)
+		byGroup[k] = append(byGroup[k], f)
+	}
+	for _, k := range groups {
+		fs := byGroup[k]
+		if len(groups) > 1 {
+			fmt.Fprintf(&sb, "  roles %s: %d file(s)\n", k, len(fs))
+		}
+		for i, f := range fs {
+			if i == 3 && len(fs) > 6 {
+				fmt.Fprintf(&sb, "    ... %d more\n", len(fs)-6)
+			}
+			if i >= 3 && i < len(fs)-3 {
+				continue
+			}
+			if f.Static {
+				fmt.Fprintf(&sb, "    %s  static fields  %s\n", f.Path, f.Format)
+				continue
+			}
+			fmt.Fprintf(&sb, "    %s  %s .. %s  %d steps  %s\n", f.Path, f.From, f.To, f.Steps, f.Format)
+		}
 	}
 	fmt.Fprintf(&sb, "time         %s .. %s (%s calendar)\n", r.Start, r.End, r.Calendar)
 	fmt.Fprintf(&sb, "steps        %d, step %s\n", r.Steps, hms(r.StepSeconds))
-	if len(r.Gaps) == 0 {
-		fmt.Fprintf(&sb, "gaps         none\n")
-	} else {
-		miss := 0
-		for _, g := range r.Gaps {
-			miss += g.Missing
-		}
-		fmt.Fprintf(&sb, "gaps         %d (%d missing steps)\n", len(r.Gaps), miss)
-		for i, g := range r.Gaps {
-			if i == 10 {
-				fmt.Fprintf(&sb, "  ... %d more\n", len(r.Gaps)-10)
-				break
+	writeGaps(&sb, "gaps        ", r.Gaps)
+	if len(r.RoleGaps) > 0 {
+		byRole := map[string][]ingest.Gap{}
+		var order []string
+		for _, g := range r.RoleGaps {
+			if byRole[g.Role] == nil {
+				order = append(order, g.Role)
 			}
-			fmt.Fprintf(&sb, "  after %s, before %s: %d missing\n", g.After, g.Before, g.Missing)
+			byRole[g.Role] = append(byRole[g.Role], g)
+		}
+		for _, role := range order {
+			writeGaps(&sb, fmt.Sprintf("gaps of %-4s", role), byRole[role])
 		}
 	}
-	fmt.Fprintf(&sb, "grid         %s, %d x %d (ny x nx), %d cells, %d masked\n", r.GridKind, r.GridShape[0], r.GridShape[1], r.Cells, r.MaskedCells)
+	fmt.Fprintf(&sb, "grid         %s, %d x %d (ny x nx), %d cells, %d masked", r.GridKind, r.GridShape[0], r.GridShape[1], r.Cells, r.MaskedCells)
+	if r.EmptyCells > 0 {
+		fmt.Fprintf(&sb, " (%d of them without any value in the first %d steps of every file)", r.EmptyCells, r.SampleSteps)
+	}
+	sb.WriteString("\n")
 	fmt.Fprintf(&sb, "extent       lon %.4f .. %.4f, lat %.4f .. %.4f\n", r.Bounds[0], r.Bounds[2], r.Bounds[1], r.Bounds[3])
 	roles := make([]string, 0, len(r.Roles))
 	for k := range r.Roles {
@@ -150,6 +348,31 @@ func (r *InspectReport) WriteText(w io.Writer) error {
 	}
 	_, err := io.WriteString(w, sb.String())
 	return err
+}
+
+// writeGaps lists gaps with their dates: the first five, then a count.
+func writeGaps(sb *strings.Builder, label string, gaps []ingest.Gap) {
+	if len(gaps) == 0 {
+		fmt.Fprintf(sb, "%s none\n", label)
+		return
+	}
+	miss := 0
+	for _, g := range gaps {
+		miss += g.Missing
+	}
+	fmt.Fprintf(sb, "%s %d (%d missing steps)\n", label, len(gaps), miss)
+	for i, g := range gaps {
+		if i == 5 {
+			fmt.Fprintf(sb, "  ... and %d more gaps\n", len(gaps)-5)
+			break
+		}
+		switch {
+		case g.First != "":
+			fmt.Fprintf(sb, "  %s .. %s missing (%d steps)\n", g.First, g.Last, g.Missing)
+		default:
+			fmt.Fprintf(sb, "  after %s, before %s: %d missing\n", g.After, g.Before, g.Missing)
+		}
+	}
 }
 
 func hms(s int64) string {

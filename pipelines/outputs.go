@@ -114,6 +114,7 @@ type Manifest struct {
 	Steps       int                             `json:"steps"`
 	StepSeconds int64                           `json:"step_seconds"`
 	Gaps        []ingest.Gap                    `json:"gaps"`
+	RoleGaps    []ingest.Gap                    `json:"role_gaps,omitempty"` // steps with no file for one role (one variable per file)
 	Grid        ManifestGrid                    `json:"grid"`
 	Roles       map[ingest.Role]*ingest.VarInfo `json:"roles"`
 	DepthSource string                          `json:"depth_source"`
@@ -148,7 +149,7 @@ type ManifestGrid struct {
 func (e *engine) manifest(version string, sums, warns []string, timings map[string]float64) *Manifest {
 	c := e.cat
 	m := &Manifest{Software: "swellgrid", Version: version, Caution: Caution, Calendar: string(c.Calendar),
-		Start: c.Start, End: c.End, Steps: c.Steps, StepSeconds: c.StepSeconds, Gaps: c.Gaps, Roles: c.Vars,
+		Start: c.Start, End: c.End, Steps: c.Steps, StepSeconds: c.StepSeconds, Gaps: c.Gaps, RoleGaps: c.RoleGaps, Roles: c.Vars,
 		DepthSource: c.DepthSource, Parameters: e.spec, Timings: timings}
 	if m.Gaps == nil {
 		m.Gaps = []ingest.Gap{}

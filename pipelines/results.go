@@ -12,6 +12,7 @@ import (
 // complete; the long-table rows are kept as the stats packages give them.
 type cellResult struct {
 	id      int
+	name    string // station name of a point set ("" when the files give none)
 	sum     climate.Summary
 	ext     extremes.Result
 	hasExt  bool
@@ -31,7 +32,7 @@ type cellResult struct {
 
 // finish computes the results of one cell from its state (fits included).
 func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResult {
-	r := &cellResult{id: id, sum: c.clim.Summary(), width: math.NaN(), dirMax: math.NaN(), direct: math.NaN()}
+	r := &cellResult{id: id, name: e.cellName(id), sum: c.clim.Summary(), width: math.NaN(), dirMax: math.NaN(), direct: math.NaN()}
 	if c.spec != nil {
 		r.width, r.dirMax, r.direct, r.badBins = c.spec.WidthMean(), c.spec.DirMaxPowerDeg(), c.spec.Directionality(), c.spec.BadBins
 	} else {
@@ -87,10 +88,13 @@ func (e *engine) userPercentile(p float64) bool {
 // cellFlags lists a cell's quality flags in a fixed order.
 func (e *engine) cellFlags(id int, r *cellResult) []string {
 	var out []string
-	if e.cat.Masked[id] {
+	// A cell whose every value is missing (land in a set that gives no
+	// depth) is masked, as a cell masked by depth or a mask variable is.
+	empty := r == nil || r.sum.Steps == 0 || r.sum.ValidPowerHours == 0 && math.IsNaN(r.sum.Hm0MeanM)
+	if e.cat.Masked[id] || empty {
 		out = append(out, "masked")
 	}
-	if r == nil || r.sum.Steps == 0 {
+	if empty {
 		return append(out, "no_data")
 	}
 	if r.sum.CoverageFrac < e.spec.Statistics.CoverageMin {
@@ -125,3 +129,11 @@ func (e *engine) cellFlags(id int, r *cellResult) []string {
 // Caution is carried by every output with return levels or resource figures:
 // the one caution text, stats.Caution.
 const Caution = stats.Caution
+
+// cellName is the station name of cell id ("" when the files give none).
+func (e *engine) cellName(id int) string {
+	if e.cat.Names == nil {
+		return ""
+	}
+	return e.cat.Names[id]
+}

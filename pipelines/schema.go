@@ -166,6 +166,8 @@ func device(c *cellRow) climate.DeviceSummary { return c.r.sum.Devices[c.k] }
 var cellsSchema = []column[*cellRow]{
 	i64Col("cell_id", "1", "", "", "stable cell id: index in swellgrid's canonical cell order",
 		func(c *cellRow) int64 { return int64(c.id) }),
+	strCol("name", "", "station name of a point set (cf_role timeseries_id, CF 1.8 section 9.5); empty when the files give none",
+		func(c *cellRow) string { return c.e.cellName(c.id) }),
 	f64Col("lon", "degree_east", "longitude", "", "cell longitude, WGS 84, [-180, 180)",
 		func(c *cellRow) float64 { return c.e.cat.Grid.Lon[c.id] }),
 	f64Col("lat", "degree_north", "latitude", "", "cell latitude, WGS 84",
@@ -273,12 +275,17 @@ var cellsSchema = []column[*cellRow]{
 
 // A row of a long table: the cell and one row of the cell's results.
 type longRow[T any] struct {
-	id int
-	v  T
+	id   int
+	name string
+	v    T
 }
 
 func cellID[T any]() column[longRow[T]] {
 	return i64Col("cell_id", "1", "", "", "cell id", func(x longRow[T]) int64 { return int64(x.id) })
+}
+
+func cellName[T any]() column[longRow[T]] {
+	return strCol("name", "", "station name of the cell (point sets: cf_role timeseries_id; empty when the files give none)", func(x longRow[T]) string { return x.name })
 }
 
 // monthlyRow is a year-month or calendar-month row (m) or a season row (s).
@@ -291,6 +298,7 @@ type mRow = longRow[monthlyRow]
 
 var monthlySchema = []column[mRow]{
 	cellID[monthlyRow](),
+	cellName[monthlyRow](),
 	strCol("period", "", "year_month, calendar_month (climatology over included years) or season_<DJF|MAM|JJA|SON>",
 		func(x mRow) string {
 			switch {
@@ -362,6 +370,7 @@ type sRow = longRow[climate.ScatterRow]
 
 var scatterSchema = []column[sRow]{
 	cellID[climate.ScatterRow](),
+	cellName[climate.ScatterRow](),
 	f64Col("hm0_lo_m", "m", "", "", "Hm0 bin lower edge", func(x sRow) float64 { return x.v.Hm0LoM }),
 	f64Col("hm0_hi_m", "m", "", "", "Hm0 bin upper edge (null: open bin)", func(x sRow) float64 { return x.v.Hm0HiM }),
 	f64Col("te_lo_s", "s", "", "", "Te bin lower edge", func(x sRow) float64 { return x.v.TeLoS }),
@@ -375,6 +384,7 @@ type xRow = longRow[climate.ExceedRow]
 
 var exceedanceSchema = []column[xRow]{
 	cellID[climate.ExceedRow](),
+	cellName[climate.ExceedRow](),
 	strCol("variable", "", "hm0_m or power_kw_m", func(x xRow) string { return x.v.Variable }),
 	f64Col("value", "m or kW/m", "", "", "level (histogram bin edge)", func(x xRow) float64 { return x.v.Value }),
 	f64Col("share_exceeded", "1", "", "", "share of valid time above the level", func(x xRow) float64 { return x.v.ShareExceeded }),
@@ -384,6 +394,7 @@ type wRow = longRow[climate.WindowRow]
 
 var windowsSchema = []column[wRow]{
 	cellID[climate.WindowRow](),
+	cellName[climate.WindowRow](),
 	f64Col("hm0_limit_m", "m", "", "", "Hm0 limit of the window", func(x wRow) float64 { return x.v.LimitM }),
 	f64Col("min_duration_h", "h", "", "", "minimum window duration", func(x wRow) float64 { return x.v.DurationH }),
 	i64Col("month", "1", "", "", "calendar month 1..12", func(x wRow) int64 { return int64(x.v.Month) }),
@@ -404,6 +415,7 @@ type eRow = longRow[extremesRow]
 
 var extremesSchema = []column[eRow]{
 	cellID[extremesRow](),
+	cellName[extremesRow](),
 	strCol("method", "", "gev_annual_maxima or gpd_storm_peaks", func(x eRow) string { return x.v.m.Method }),
 	f64Col("return_period_y", "yr", "", "", "return period", func(x eRow) float64 { return x.v.l.PeriodYears }),
 	f64Col("hm0_m", "m", "", "", "return level of Hm0 (screening estimate; see caution)", func(x eRow) float64 { return x.v.l.Hm0 }),
@@ -463,7 +475,7 @@ func (s longSchema[T]) build(res []*cellResult) *export.Table {
 	var rows []longRow[T]
 	for _, r := range res {
 		for _, v := range s.rows(r) {
-			rows = append(rows, longRow[T]{r.id, v})
+			rows = append(rows, longRow[T]{r.id, r.name, v})
 		}
 	}
 	cols := make([]export.Column, len(s.cols))

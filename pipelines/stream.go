@@ -103,6 +103,7 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 	var p seastate.Params
 	per := b.NF * b.ND
 	nan := math.NaN()
+	depths := b.Bulk[ingest.Depth] // per step when depth varies in time, else nil
 	for id := lo; id < hi; id++ {
 		c := cells[id-b.C0]
 		if c == nil {
@@ -113,12 +114,18 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 			st := &times[t]
 			i := t*nc + k
 			j, hm0, te, tp, dir := nan, nan, nan, nan, nan
+			if depths != nil {
+				c.kern.SetDepth(depths[i]) // depth varying in time: this step's
+			}
 			if s := b.Spec[i*per : (i+1)*per]; !allMissing(s) {
 				// missing (NaN) and non-finite bins are set to 0 and counted by the kernel
 				c.kern.Params(s, &p)
 				c.spec.Add(&p)
 				if p.Valid {
 					j, hm0, te, tp, dir = p.J, p.Hm0, p.Te, p.Tp, p.MeanDirDeg
+				}
+				if depths != nil && !(depths[i] > 0) {
+					j = nan // a step whose depth is missing or <= 0 (dry) has no power
 				}
 			}
 			c.clim.AddAt(&st.ct, j, hm0, te, tp, dir)
@@ -133,6 +140,7 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 func (e *engine) feedBulk(b *ingest.Block, times []stepTime, cells []*cell, lo, hi int) {
 	nc := b.NC()
 	hm0s, tes, tps, dirs := b.Bulk[ingest.Hm0], b.Bulk[ingest.Te], b.Bulk[ingest.Tp], b.Bulk[ingest.Dir]
+	depths := b.Bulk[ingest.Depth] // per step when depth varies in time, else nil
 	if dirs == nil {
 		dirs = b.Bulk[ingest.DirPeak]
 	}
@@ -162,7 +170,14 @@ func (e *engine) feedBulk(b *ingest.Block, times []stepTime, cells []*cell, lo, 
 				dir = dirs[i]
 			}
 			j := nan
-			if hm0 >= 0 && te > 0 {
+			dry := false
+			if depths != nil {
+				// Depth varying in time: this step's depth; a step whose depth
+				// is missing or <= 0 (dry) has no power.
+				bd = seastate.NewBulkDepth(depths[i], e.consts.G)
+				dry = !(depths[i] > 0)
+			}
+			if hm0 >= 0 && te > 0 && !dry {
 				j = bd.Power(hm0, te, e.consts) // cg from the table, rel. error < 1e-9
 			}
 			c.clim.AddAt(&st.ct, j, hm0, te, tp, dir)

@@ -1,11 +1,12 @@
 package main
 
 import (
+	"fmt"
 	"os"
+	"strings"
 
 	"github.com/spf13/cobra"
 
-	"swellgrid/ingest"
 	"swellgrid/pipelines"
 )
 
@@ -13,22 +14,59 @@ func newInspectCmd() *cobra.Command {
 	var asJSON bool
 	var depth float64
 	var deep bool
-	var bathy string
+	var bathy, specFile string
+	var roles, units []string
 	cmd := &cobra.Command{
-		Use:   "inspect PATH...",
+		Use:   "inspect [PATH...]",
 		Short: "Show what a hindcast holds: files, time span, gaps, grid, roles, depth",
 		Long: `inspect builds the catalog of a CF NetCDF hindcast (files, directories or globs)
-and prints the files, time span, step, gaps, grid kind and size, the variable found
-for each role (by CF standard_name) with its units and packing, the spectral layout,
-the depth source and any warnings. Bad input stops it with a message naming the file,
-the variable and what to do (exit code 2).`,
+and prints the files (grouped by the roles they carry), time span, step, gaps with
+their dates, grid kind and size, the variable found for each role (by CF
+standard_name, or as mapped by --role / the spec's [roles]) with its units and
+packing, the spectral layout, the depth source and any warnings.
+
+With --spec it reads the inputs as that run spec would (its input.paths unless
+paths are given, [roles], [units], [depth]); --role and --units add to or
+override the spec. When a role is not found, inspect lists every data variable
+of the files (name, dimensions, units, long_name, standard_name) and prints a
+[roles] table guessed from long_name and units: a guess, to be checked.
+Bad input stops it with a message naming the file, the variable and what to do
+(exit code 2).`,
 		Example: `  swellgrid inspect testdata/bulk_monthly
-  swellgrid inspect --json 'hindcast/*.nc'`,
-		Args: cobra.MinimumNArgs(1),
+  swellgrid inspect --json 'hindcast/*.nc'
+  swellgrid inspect --role hm0=hsig --role te=tm10 --units dir=degree --deep-water export/
+  swellgrid inspect --spec my-run.toml`,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			opt := ingest.Options{DepthConstant: depth, DeepWater: deep, BathymetryFile: bathy}
-			r, err := pipelines.Inspect(args, opt)
+			spec := pipelines.DefaultSpec()
+			if specFile != "" {
+				s, err := pipelines.LoadSpec(specFile)
+				if err != nil {
+					return badInput(err)
+				}
+				spec = s
+			}
+			if len(args) == 0 && len(spec.Input.Paths) == 0 {
+				return badInput(fmt.Errorf("inspect: give the hindcast's paths, or a spec with input.paths (--spec)"))
+			}
+			if err := setPairs(&spec.Roles, roles, "--role"); err != nil {
+				return badInput(err)
+			}
+			if err := setPairs(&spec.Units, units, "--units"); err != nil {
+				return badInput(err)
+			}
+			switch {
+			case deep:
+				spec.Depth.Source = "deep-water"
+			case depth != 0:
+				spec.Depth.Source, spec.Depth.ConstantM = "constant", depth
+			case bathy != "":
+				spec.Depth.Source, spec.Depth.BathymetryFile = "bathymetry", bathy
+			}
+			r, err := pipelines.InspectSpec(spec, args)
 			if err != nil {
+				if help := pipelines.GuidedHelp(err); help != "" {
+					err = fmt.Errorf("%w\n\n%s", err, strings.TrimRight(help, "\n"))
+				}
 				return badInput(err)
 			}
 			if asJSON {
@@ -38,8 +76,26 @@ the variable and what to do (exit code 2).`,
 		},
 	}
 	cmd.Flags().BoolVar(&asJSON, "json", false, "print the catalog as JSON")
+	cmd.Flags().StringVar(&specFile, "spec", "", "read the inputs as this run spec (TOML) would")
+	cmd.Flags().StringArrayVar(&roles, "role", nil, "ROLE=VAR: read role ROLE (hm0, te, tp, dir, dir_peak, depth, spectrum2d, spectrum1d, mask) from variable VAR (repeatable)")
+	cmd.Flags().StringArrayVar(&units, "units", nil, "ROLE=UNITS: units to use for a role instead of its units attribute (repeatable)")
 	cmd.Flags().Float64Var(&depth, "depth", 0, "constant water depth in metres, instead of a depth variable")
 	cmd.Flags().BoolVar(&deep, "deep-water", false, "assume deep water everywhere")
 	cmd.Flags().StringVar(&bathy, "bathymetry", "", "separate NetCDF file with sea_floor_depth_below_sea_surface on the same grid")
 	return cmd
+}
+
+// setPairs adds ROLE=VALUE pairs to a spec table.
+func setPairs(m *map[string]string, pairs []string, flag string) error {
+	for _, p := range pairs {
+		k, v, ok := strings.Cut(p, "=")
+		if !ok || strings.TrimSpace(k) == "" || strings.TrimSpace(v) == "" {
+			return fmt.Errorf("inspect: %s %q: give ROLE=VALUE, e.g. %s hm0=swh", flag, p, flag)
+		}
+		if *m == nil {
+			*m = map[string]string{}
+		}
+		(*m)[strings.TrimSpace(k)] = strings.TrimSpace(v)
+	}
+	return nil
 }

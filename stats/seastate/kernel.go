@@ -86,6 +86,20 @@ func NewKernel(l *Layout, depth float64, c Consts) *Kernel {
 	return k
 }
 
+// SetDepth changes the kernel's depth (m; NaN, +Inf or <= 0: deep water),
+// recomputing the group velocity table cg_i = GroupVelocity(f_i, depth, g)
+// only when the depth differs, for depth that varies in time.
+func (k *Kernel) SetDepth(depth float64) {
+	if depth == k.depth || isDeep(depth) && isDeep(k.depth) {
+		return
+	}
+	k.depth = depth
+	for i, f := range k.l.freq {
+		k.cg[i] = GroupVelocity(f, depth, k.c.G)
+		k.pw[i] = k.c.Rho * k.c.G * k.cg[i] * k.l.df[i]
+	}
+}
+
 // Layout returns the layout the kernel was built for.
 func (k *Kernel) Layout() *Layout { return k.l }
 
