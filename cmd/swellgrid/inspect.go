@@ -36,6 +36,7 @@ Bad input stops it with a message naming the file, the variable and what to do
   swellgrid inspect --json 'hindcast/*.nc'
   swellgrid inspect --role hm0=hsig --role te=tm10 --units dir=degree --deep-water export/
   swellgrid inspect --spec my-run.toml`,
+		Args: cobra.ArbitraryArgs, // paths, or none with --spec
 		RunE: func(cmd *cobra.Command, args []string) error {
 			spec := pipelines.DefaultSpec()
 			if specFile != "" {
