@@ -151,8 +151,13 @@ directory; swellgrid merge combines the shards into the outputs of a whole run.
 --update DIR adds the input files later than the run in DIR to its saved states
 and rewrites its outputs, identical to a full run over all files; it refuses when
 an earlier file (size, SHA-256) or the spec changed.
-Exit codes: 0 ok, 1 internal error, 2 bad input or spec, 3 interrupted,
-4 output directory locked or not writable.
+Everything that can be refused (spec, inputs, conflicting flags, a changed file
+the spec names) is refused before the output directory is
+created or locked. SIGINT/SIGTERM stop any stage within seconds, leaving a
+resumable state. A directory locked by a run that is gone (another host, a
+reused pid) is refused with the command that breaks the lock: swellgrid unlock DIR.
+Exit codes: 0 ok, 1 internal error (stack saved in DIR/swellgrid-internal-error.log),
+2 bad input, spec or usage, 3 interrupted, 4 output directory locked or not writable.
 
 ` + caution,
 		Example: `  swellgrid run --input 'hindcast/*.nc' --out atlas
