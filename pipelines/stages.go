@@ -50,9 +50,9 @@ type job struct {
 	streamed bool
 	// sums are the inputs' checksums (Run; nil in a merge, which trusts
 	// the shards' verified inputs).
-	sums *checksums
-	timings  map[string]float64
-	t0       time.Time
+	sums    *checksums
+	timings map[string]float64
+	t0      time.Time
 }
 
 func (j *job) mark(stage string, since time.Time) { j.timings[stage] += time.Since(since).Seconds() }
@@ -433,4 +433,3 @@ func (c *checksums) stop() {
 	c.once.Do(c.cancel)
 	<-c.done
 }
-
