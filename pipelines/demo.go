@@ -42,8 +42,11 @@ func DemoSpecs(dir string) []*Spec {
 		s.Contours.Columns = contours
 		return s
 	}
+	grid := mk("nullport_bulk_*.nc", "atlas-grid", []string{"power_mean_kw_m", "hm0_mean_m", "hm0_p90_m", "mvi", "aep_demo_wec_mwh"})
+	// Two invented places of interest get a report page each.
+	grid.Sites = []SiteSpec{{Name: "Outer shelf mooring (invented)", Lon: -32.0, Lat: 45.6}, {Name: "Inner shelf (invented)", Lon: -34.4, Lat: 45.1}}
 	return []*Spec{
-		mk("nullport_bulk_*.nc", "atlas-grid", []string{"power_mean_kw_m", "hm0_mean_m", "hm0_p90_m", "mvi", "aep_demo_wec_mwh"}),
+		grid,
 		mk("nullport_spec_*.nc", "atlas-spectral-points", nil),
 	}
 }

@@ -123,6 +123,7 @@ type Manifest struct {
 	Resolution  map[string]float64              `json:"histogram_resolution"`
 	Columns     map[string][]ColumnSpec         `json:"columns"`
 	Warnings    []string                        `json:"warnings"`
+	Outputs     []string                        `json:"outputs"` // files of the run directory, relative to it
 	Timings     map[string]float64              `json:"timings_s,omitempty"`
 }
 

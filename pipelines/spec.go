@@ -33,6 +33,7 @@ type Spec struct {
 	Devices    []DeviceSpec      `toml:"device" json:"devices"`
 	Contours   ContourSpec       `toml:"contours" json:"contours"`
 	Output     OutputSpec        `toml:"output" json:"output"`
+	Sites      []SiteSpec        `toml:"site" json:"sites"`
 	Run        RunSpec           `toml:"run" json:"run"`
 
 	dir string // directory of the spec file: relative paths are relative to it
@@ -134,9 +135,21 @@ type ContourSpec struct {
 	Levels  map[string][]float64 `toml:"levels" json:"levels"`
 }
 
-// OutputSpec names the run directory.
+// OutputSpec names the run directory and switches the products made from
+// the tables (each on by default).
 type OutputSpec struct {
-	Dir string `toml:"dir" json:"dir"`
+	Dir        string `toml:"dir" json:"dir"`
+	Report     bool   `toml:"report" json:"report"`         // report/index.html with maps and site pages
+	NetCDF     bool   `toml:"netcdf" json:"netcdf"`         // atlas.nc, CF raster (structured grids)
+	GeoPackage bool   `toml:"geopackage" json:"geopackage"` // atlas.gpkg, OGC GeoPackage
+}
+
+// SiteSpec is a named place of interest: the report gives it a page, taken to
+// the nearest sea cell.
+type SiteSpec struct {
+	Name string  `toml:"name" json:"name"`
+	Lon  float64 `toml:"lon" json:"lon"`
+	Lat  float64 `toml:"lat" json:"lat"`
 }
 
 // RunSpec holds execution settings; they change neither results nor bytes.
@@ -162,7 +175,7 @@ func DefaultSpec() *Spec {
 			MinPeaks: 20, ShapeRange: []float64{-0.5, 0.5}, MaxExtrapolation: 4, BreakingRatio: 0.6},
 		Design:   DesignSpec{Enabled: true, ReturnPeriodsY: []float64{1, 10, 50, 100}, ContourPoints: 36},
 		Contours: ContourSpec{Columns: []string{"power_mean_kw_m", "hm0_mean_m", "hm0_rl100y_m"}, Levels: map[string][]float64{}},
-		Output:   OutputSpec{Dir: "swellgrid-out"},
+		Output:   OutputSpec{Dir: "swellgrid-out", Report: true, NetCDF: true, GeoPackage: true},
 		Run:      RunSpec{MemoryLimit: "2GiB", BlockSteps: 64, CheckpointEveryS: 60},
 	}
 }
@@ -360,6 +373,9 @@ func (s *Spec) Validate() error {
 	if s.Output.Dir == "" {
 		return fmt.Errorf("spec: output.dir is empty; give --out or output.dir")
 	}
+	if err := checkSites(s.Sites); err != nil {
+		return err
+	}
 	if s.Run.Workers < 0 {
 		return bad("run.workers", "must be 0 (all cores) or positive", s.Run.Workers)
 	}
@@ -555,6 +571,7 @@ func (s *Spec) fingerprinted() fingerprinted {
 	c.Output = OutputSpec{}
 	c.Input.Paths = nil // inputs are compared file by file (size, checksum)
 	c.Run = RunSpec{}
+	c.Sites = nil // sites choose report pages, not results
 	c.Devices = append([]DeviceSpec(nil), s.Devices...)
 	files := map[string]string{}
 	for _, n := range s.named {

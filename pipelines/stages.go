@@ -324,6 +324,9 @@ func (j *job) export(ctx context.Context, results []*cellResult, sums []string) 
 		j.eng.addStreamTimings(j.timings)
 	}
 	m := j.eng.manifest(j.opt.Version, sums, warns, j.timings)
+	if err := j.eng.finishManifest(j.out, m, &written, &warns); err != nil {
+		return nil, outputError(err)
+	}
 	if err := export.WriteManifest(filepath.Join(j.out, "manifest.json"), m); err != nil {
 		return nil, outputError(err)
 	}

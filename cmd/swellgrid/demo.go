@@ -7,6 +7,7 @@ import (
 	"os"
 	"os/signal"
 	"path/filepath"
+	"strings"
 	"syscall"
 	"time"
 
@@ -46,8 +47,11 @@ it wrote and which files to open in GIS software.
 			for _, r := range res.Runs {
 				fmt.Fprintf(w, "atlas      %s: %d cells, %d steps -> %s\n", r.Name, r.Result.Cells, r.Result.Steps, r.Result.OutDir)
 				for _, f := range r.Result.Files {
-					fmt.Fprintf(w, "             %s\n", f)
+					if !strings.HasPrefix(f, "report"+string(filepath.Separator)) {
+						fmt.Fprintf(w, "             %s\n", f)
+					}
 				}
+				printProducts(w, r.Result.OutDir, r.Result.Files)
 				for _, wr := range r.Result.Warnings {
 					fmt.Fprintf(w, "           warning: %s\n", wr)
 				}

@@ -1,0 +1,343 @@
+// Package raster writes atlas.nc: the per-cell results of a finished run as a
+// CF-1.8 NetCDF-4 raster on the run's own grid (regular: 1-D lat/lon axes;
+// curvilinear: the 2-D lat/lon of the input), for GIS users who load mean
+// power as a raster layer rather than as points.
+//
+// Every numeric column of cells.parquet becomes a 2-D variable with units,
+// long_name, and standard_name and cell_methods where the schema gives them,
+// tied to a WGS 84 grid_mapping; the calendar-month climatology of power and
+// Hm0 from monthly.parquet becomes (month, y, x). raster encodes values it is
+// given (through export/rundir); it computes nothing. Its NetCDF calls run
+// inside ingest.WithNetCDF, the lock every NetCDF call of the program takes,
+// because NetCDF-C and HDF5 are not thread-safe.
+package raster
+
+import (
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"github.com/fhs/go-netcdf/netcdf"
+
+	"swellgrid/export/rundir"
+	"swellgrid/ingest"
+)
+
+// FileName is the raster's name in the run directory.
+const FileName = "atlas.nc"
+
+// IntFill is the _FillValue of the integer variables (counts; never negative).
+const IntFill int64 = -1
+
+// WGS84WKT is the OGC WKT of EPSG:4326 (WGS 84 geographic 2-D), as GDAL
+// writes it (OGC 06-103r4 / EPSG registry).
+const WGS84WKT = `GEOGCS["WGS 84",DATUM["WGS_1984",SPHEROID["WGS 84",6378137,298.257223563,AUTHORITY["EPSG","7030"]],AUTHORITY["EPSG","6326"]],PRIMEM["Greenwich",0,AUTHORITY["EPSG","8901"]],UNIT["degree",0.0174532925199433,AUTHORITY["EPSG","9122"]],AXIS["Latitude",NORTH],AXIS["Longitude",EAST],AUTHORITY["EPSG","4326"]]`
+
+// CFUnits maps swellgrid's column units to UDUNITS-2 strings, which CF
+// requires ("kW/m" -> "kW m-1"); units already in UDUNITS form pass through.
+func CFUnits(u string) string {
+	switch u {
+	case "kW/m":
+		return "kW m-1"
+	case "MWh/yr":
+		return "MW h yr-1"
+	case "1/yr":
+		return "yr-1"
+	case "degree":
+		return "degree"
+	case "":
+		return ""
+	}
+	return strings.ReplaceAll(u, "/", " ")
+}
+
+// Write writes dir/atlas.nc from the run r, atomically: a temporary file in
+// dir renamed when complete. Point sets have no raster and are refused.
+func Write(r *rundir.Run) error {
+	if !r.Structured() {
+		return fmt.Errorf("raster: %s: the grid is a point set (%s); there is no raster to write, use cells.parquet or atlas.gpkg", r.Dir, r.Kind)
+	}
+	monthly, err := r.Table("monthly")
+	if err != nil {
+		return err
+	}
+	final := filepath.Join(r.Dir, FileName)
+	tmp := filepath.Join(r.Dir, "."+FileName+".partial")
+	os.Remove(tmp)
+	err = ingest.WithNetCDF(func() error { return write(tmp, r, monthly) })
+	if err != nil {
+		os.Remove(tmp)
+		return fmt.Errorf("raster: writing %s: %w", final, err)
+	}
+	if err := os.Rename(tmp, final); err != nil {
+		os.Remove(tmp)
+		return fmt.Errorf("raster: renaming the finished %s into place: %w", final, err)
+	}
+	return nil
+}
+
+func text(a netcdf.Attr, s string) error { return a.WriteBytes([]byte(s)) }
+
+func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
+	ds, err := netcdf.CreateFile(path, netcdf.CLOBBER|netcdf.NETCDF4)
+	if err != nil {
+		return err
+	}
+	defer func() {
+		if cerr := ds.Close(); err == nil && cerr != nil {
+			err = cerr
+		}
+	}()
+	nx, ny := r.NX, r.NY
+	var yd, xd netcdf.Dim
+	regular := r.Kind == "regular"
+	yn, xn := "y", "x"
+	if regular {
+		yn, xn = "lat", "lon"
+	}
+	if yd, err = ds.AddDim(yn, uint64(ny)); err != nil {
+		return err
+	}
+	if xd, err = ds.AddDim(xn, uint64(nx)); err != nil {
+		return err
+	}
+	md, err := ds.AddDim("month", 12)
+	if err != nil {
+		return err
+	}
+	m := r.Manifest
+	for _, kv := range [][2]string{
+		{"Conventions", "CF-1.8"},
+		{"title", "swellgrid wave-energy resource atlas"},
+		{"source", fmt.Sprintf("%s %s: per-cell results of a wave hindcast (cells.parquet, monthly.parquet of this run directory)", m.Software, m.Version)},
+		{"time_coverage_start", m.Start},
+		{"time_coverage_end", m.End},
+		{"calendar_of_record", m.Calendar},
+		{"depth_source", m.DepthSource},
+		{"caution", m.Caution},
+	} {
+		if err := text(ds.Attr(kv[0]), kv[1]); err != nil {
+			return err
+		}
+	}
+	if s := r.Cells.Meta["swellgrid:synthetic"]; s != "" {
+		if err := text(ds.Attr("comment"), s); err != nil {
+			return err
+		}
+	}
+	crs, err := ds.AddVar("crs", netcdf.INT, nil)
+	if err != nil {
+		return err
+	}
+	if err := text(crs.Attr("grid_mapping_name"), "latitude_longitude"); err != nil {
+		return err
+	}
+	if err := crs.Attr("semi_major_axis").WriteFloat64s([]float64{6378137}); err != nil {
+		return err
+	}
+	if err := crs.Attr("inverse_flattening").WriteFloat64s([]float64{298.257223563}); err != nil {
+		return err
+	}
+	if err := crs.Attr("longitude_of_prime_meridian").WriteFloat64s([]float64{0}); err != nil {
+		return err
+	}
+	if err := text(crs.Attr("crs_wkt"), WGS84WKT); err != nil {
+		return err
+	}
+	if err := text(crs.Attr("spatial_ref"), WGS84WKT); err != nil { // GDAL reads this name
+		return err
+	}
+	coord := func(name, std, units, long, axis string, dims []netcdf.Dim, vals []float64) error {
+		v, err := ds.AddVar(name, netcdf.DOUBLE, dims)
+		if err != nil {
+			return err
+		}
+		for _, kv := range [][2]string{{"standard_name", std}, {"units", units}, {"long_name", long}, {"axis", axis}} {
+			if kv[1] == "" {
+				continue
+			}
+			if err := text(v.Attr(kv[0]), kv[1]); err != nil {
+				return err
+			}
+		}
+		return v.WriteFloat64s(vals)
+	}
+	lon, lat := r.Lon(), r.Lat()
+	dims2 := []netcdf.Dim{yd, xd}
+	coordsAttr := ""
+	if regular {
+		if err := coord("lat", "latitude", "degrees_north", "latitude", "Y", []netcdf.Dim{yd}, column(lat, nx, ny, false)); err != nil {
+			return err
+		}
+		if err := coord("lon", "longitude", "degrees_east", "longitude", "X", []netcdf.Dim{xd}, column(lon, nx, ny, true)); err != nil {
+			return err
+		}
+	} else {
+		if err := coord("lat", "latitude", "degrees_north", "latitude", "", dims2, lat); err != nil {
+			return err
+		}
+		if err := coord("lon", "longitude", "degrees_east", "longitude", "", dims2, lon); err != nil {
+			return err
+		}
+		coordsAttr = "lat lon"
+	}
+	months := make([]int32, 12)
+	for i := range months {
+		months[i] = int32(i + 1)
+	}
+	mv, err := ds.AddVar("month", netcdf.INT, []netcdf.Dim{md})
+	if err != nil {
+		return err
+	}
+	if err := text(mv.Attr("long_name"), "calendar month (1 = January)"); err != nil {
+		return err
+	}
+	if err := text(mv.Attr("units"), "1"); err != nil {
+		return err
+	}
+	if err := mv.WriteInt32s(months); err != nil {
+		return err
+	}
+	attrs := func(v netcdf.Var, c *rundir.Column, long string) error {
+		for _, kv := range [][2]string{{"units", CFUnits(c.Unit)}, {"long_name", long}, {"standard_name", c.StandardName},
+			{"cell_methods", c.CellMethods}, {"grid_mapping", "crs"}, {"coordinates", coordsAttr}} {
+			if kv[1] == "" {
+				continue
+			}
+			if err := text(v.Attr(kv[0]), kv[1]); err != nil {
+				return err
+			}
+		}
+		return nil
+	}
+	for _, c := range r.Cells.Columns {
+		if !c.Numeric() || c.Name == "lon" || c.Name == "lat" {
+			continue
+		}
+		long := c.LongName
+		if long == "" {
+			long = c.Doc
+		}
+		switch c.Kind {
+		case rundir.Float:
+			v, err := ds.AddVar(c.Name, netcdf.DOUBLE, dims2)
+			if err != nil {
+				return err
+			}
+			if err := v.SetCompression(true, true, 4); err != nil {
+				return err
+			}
+			if err := v.Attr("_FillValue").WriteFloat64s([]float64{math.NaN()}); err != nil {
+				return err
+			}
+			if err := attrs(v, c, long); err != nil {
+				return err
+			}
+			if err := v.WriteFloat64s(c.Float); err != nil {
+				return fmt.Errorf("variable %s: %w", c.Name, err)
+			}
+		case rundir.Int:
+			v, err := ds.AddVar(c.Name, netcdf.INT64, dims2)
+			if err != nil {
+				return err
+			}
+			if err := v.SetCompression(true, true, 4); err != nil {
+				return err
+			}
+			if err := v.Attr("_FillValue").WriteInt64s([]int64{IntFill}); err != nil {
+				return err
+			}
+			if err := attrs(v, c, long); err != nil {
+				return err
+			}
+			vals := make([]int64, len(c.Int))
+			for i, x := range c.Int {
+				vals[i] = x
+				if !c.Valid[i] {
+					vals[i] = IntFill
+				}
+			}
+			if err := v.WriteInt64s(vals); err != nil {
+				return fmt.Errorf("variable %s: %w", c.Name, err)
+			}
+		}
+	}
+	if monthly == nil {
+		return nil
+	}
+	clim, err := Climatology(monthly, nx*ny)
+	if err != nil {
+		return err
+	}
+	for _, cv := range []struct{ name, col, std, long string }{
+		{"power_monthly_mean_kw_m", "power_mean_kw_m", "", "mean wave power J of each calendar month over the included years"},
+		{"hm0_monthly_mean_m", "hm0_mean_m", "sea_surface_wave_significant_height", "mean significant wave height Hm0 of each calendar month over the included years"},
+	} {
+		v, err := ds.AddVar(cv.name, netcdf.DOUBLE, []netcdf.Dim{md, yd, xd})
+		if err != nil {
+			return err
+		}
+		if err := v.SetCompression(true, true, 4); err != nil {
+			return err
+		}
+		if err := v.Attr("_FillValue").WriteFloat64s([]float64{math.NaN()}); err != nil {
+			return err
+		}
+		c := &rundir.Column{Unit: monthly.Col(cv.col).Unit, StandardName: cv.std, CellMethods: "time: mean"}
+		if err := attrs(v, c, cv.long); err != nil {
+			return err
+		}
+		if err := v.WriteFloat64s(clim[cv.col]); err != nil {
+			return fmt.Errorf("variable %s: %w", cv.name, err)
+		}
+	}
+	return nil
+}
+
+// column extracts a regular grid's 1-D axis from the per-cell coordinates in
+// canonical order (rows of ascending latitude, each of ascending longitude).
+func column(v []float64, nx, ny int, isLon bool) []float64 {
+	if isLon {
+		return append([]float64(nil), v[:nx]...)
+	}
+	out := make([]float64, ny)
+	for j := range out {
+		out[j] = v[j*nx]
+	}
+	return out
+}
+
+// Climatology arranges the calendar_month rows of monthly.parquet as
+// (month, cell) arrays of power_mean_kw_m and hm0_mean_m, NaN where a cell
+// has no row.
+func Climatology(monthly *rundir.Table, cells int) (map[string][]float64, error) {
+	out := map[string][]float64{}
+	period, id, month := monthly.Col("period"), monthly.Col("cell_id"), monthly.Col("month")
+	if period == nil || id == nil || month == nil {
+		return nil, fmt.Errorf("%s: no period, cell_id or month column", monthly.Path)
+	}
+	for _, name := range []string{"power_mean_kw_m", "hm0_mean_m"} {
+		src := monthly.Col(name)
+		if src == nil {
+			return nil, fmt.Errorf("%s: no column %s", monthly.Path, name)
+		}
+		a := make([]float64, 12*cells)
+		for i := range a {
+			a[i] = math.NaN()
+		}
+		for i := 0; i < monthly.Rows; i++ {
+			if period.Str[i] != "calendar_month" {
+				continue
+			}
+			mo, c := month.Int[i], id.Int[i]
+			if mo < 1 || mo > 12 || c < 0 || int(c) >= cells {
+				return nil, fmt.Errorf("%s: row %d: month %d of cell %d is out of range", monthly.Path, i, mo, c)
+			}
+			a[int(mo-1)*cells+int(c)] = src.Float[i]
+		}
+		out[name] = a
+	}
+	return out, nil
+}

@@ -1,0 +1,280 @@
+package report
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+
+	"github.com/paulmach/orb"
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+
+	"swellgrid/grid"
+)
+
+// Field is what a map shows: a value per cell on a structured grid (NX x NY
+// nodes, row-major) or on a point set (Points true).
+type Field struct {
+	NX, NY   int
+	Points   bool
+	Lon, Lat []float64
+	Value    []float64
+	Land     []bool // drawn as land, no value
+	Name     string // column name
+	Unit     string
+	Levels   []float64 // isolines (nil: none)
+}
+
+// MapInfo says what a map shows; the HTML carries it so a reader (and the
+// browser test) can check the colour bar against the column.
+type MapInfo struct {
+	Name, Column, Unit, Title string
+	Min, Max                  float64 // the colour bar's range: the column's min and max over sea cells
+	Levels                    []float64
+	Valid, Land               int
+}
+
+// Range is the min and max of the finite values of f on cells that are not land.
+func (f *Field) Range() (lo, hi float64, n int) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for i, v := range f.Value {
+		if f.Land[i] || math.IsNaN(v) || math.IsInf(v, 0) {
+			continue
+		}
+		lo, hi, n = math.Min(lo, v), math.Max(hi, v), n+1
+	}
+	return
+}
+
+// cellPolygons returns each cell's outline in lon/lat: for a structured grid
+// the quadrilateral whose corners are the means of the four surrounding nodes
+// (nodes beyond the edge extrapolated linearly), nil where a corner is not
+// finite.
+func (f *Field) cellPolygons() [][]orb.Point {
+	nx, ny := f.NX, f.NY
+	var node func(i, j int) orb.Point
+	node = func(i, j int) orb.Point {
+		ci, cj := min(max(i, 0), nx-1), min(max(j, 0), ny-1)
+		p := orb.Point{f.Lon[cj*nx+ci], f.Lat[cj*nx+ci]}
+		// linear extrapolation beyond the edge, from the neighbour inside
+		if i != ci && nx > 1 {
+			in := min(max(ci+(ci-i), 0), nx-1)
+			q := orb.Point{f.Lon[cj*nx+in], f.Lat[cj*nx+in]}
+			p = orb.Point{2*p[0] - q[0], 2*p[1] - q[1]}
+		}
+		if j != cj && ny > 1 {
+			in := min(max(cj+(cj-j), 0), ny-1)
+			q := orb.Point{f.Lon[in*nx+ci], f.Lat[in*nx+ci]}
+			if i != ci && nx > 1 {
+				q = node(i, in)
+			}
+			p = orb.Point{2*p[0] - q[0], 2*p[1] - q[1]}
+		}
+		return p
+	}
+	corner := func(i, j int) orb.Point { // corner between nodes (i-1..i, j-1..j)
+		a, b, c, d := node(i-1, j-1), node(i, j-1), node(i-1, j), node(i, j)
+		return orb.Point{(a[0] + b[0] + c[0] + d[0]) / 4, (a[1] + b[1] + c[1] + d[1]) / 4}
+	}
+	out := make([][]orb.Point, nx*ny)
+	for j := 0; j < ny; j++ {
+		for i := 0; i < nx; i++ {
+			poly := []orb.Point{corner(i, j), corner(i+1, j), corner(i+1, j+1), corner(i, j+1)}
+			ok := true
+			for _, p := range poly {
+				ok = ok && !math.IsNaN(p[0]+p[1]) && !math.IsInf(p[0]+p[1], 0)
+			}
+			if ok {
+				out[j*nx+i] = poly
+			}
+		}
+	}
+	return out
+}
+
+// cellsLayer draws the cells coloured by value, land in sand, cells without a
+// result in grey, then the isolines on top with their labels.
+type cellsLayer struct {
+	f        *Field
+	cmap     *Viridis
+	polys    [][]orb.Point
+	lines    []orb.MultiLineString
+	bounds   orb.Bound
+	pointRad vg.Length
+}
+
+func (l *cellsLayer) colorOf(i int) color.Color {
+	v := l.f.Value[i]
+	switch {
+	case l.f.Land[i]:
+		return landColor
+	case math.IsNaN(v) || math.IsInf(v, 0):
+		return noDataColor
+	}
+	c, err := l.cmap.At(v)
+	if err != nil {
+		return noDataColor
+	}
+	return c
+}
+
+func (l *cellsLayer) Plot(c draw.Canvas, p *plot.Plot) {
+	tx, ty := p.Transforms(&c)
+	if l.f.Points {
+		for i := range l.f.Lon {
+			if math.IsNaN(l.f.Lon[i]) {
+				continue
+			}
+			pt := vg.Point{X: tx(l.f.Lon[i]), Y: ty(l.f.Lat[i])}
+			c.SetColor(l.colorOf(i))
+			c.Fill(circle(pt, l.pointRad))
+			c.SetLineStyle(draw.LineStyle{Color: lineColor, Width: vg.Points(0.4)})
+			c.Stroke(circle(pt, l.pointRad))
+		}
+		return
+	}
+	for i, poly := range l.polys {
+		if poly == nil {
+			continue
+		}
+		pts := make([]vg.Point, len(poly))
+		for k, q := range poly {
+			pts[k] = vg.Point{X: tx(q[0]), Y: ty(q[1])}
+		}
+		col := l.colorOf(i)
+		c.FillPolygon(col, pts)
+		// a hairline of the same colour closes the anti-aliasing seams between cells
+		c.StrokeLines(draw.LineStyle{Color: col, Width: vg.Points(0.3)}, append(pts, pts[0]))
+	}
+	ls := draw.LineStyle{Color: lineColor, Width: vg.Points(0.8)}
+	font := plot.DefaultFont
+	font.Size = vg.Points(7)
+	ts := draw.TextStyle{Color: lineColor, Font: font, Handler: plot.DefaultTextHandler, XAlign: draw.XCenter, YAlign: draw.YCenter}
+	for k, mls := range l.lines {
+		for _, line := range mls {
+			pts := make([]vg.Point, len(line))
+			for m, q := range line {
+				pts[m] = vg.Point{X: tx(q[0]), Y: ty(q[1])}
+			}
+			c.StrokeLines(ls, pts)
+			if pathLen(pts) > 1.2*vg.Inch { // no labels on small loops
+				mid := pts[len(pts)/2]
+				lab := fmtNum(l.f.Levels[k])
+				w := ts.Width(lab)
+				h := ts.Height(lab)
+				c.FillPolygon(color.NRGBA{255, 255, 255, 200}, []vg.Point{
+					{X: mid.X - w/2 - 1, Y: mid.Y - h/2}, {X: mid.X + w/2 + 1, Y: mid.Y - h/2},
+					{X: mid.X + w/2 + 1, Y: mid.Y + h/2}, {X: mid.X - w/2 - 1, Y: mid.Y + h/2}})
+				c.FillText(ts, mid, lab)
+			}
+		}
+	}
+}
+
+func circle(c vg.Point, r vg.Length) vg.Path {
+	var p vg.Path
+	p.Move(vg.Point{X: c.X + r, Y: c.Y})
+	p.Arc(c, r, 0, 2*math.Pi)
+	p.Close()
+	return p
+}
+
+func (l *cellsLayer) DataRange() (xmin, xmax, ymin, ymax float64) {
+	return l.bounds.Min[0], l.bounds.Max[0], l.bounds.Min[1], l.bounds.Max[1]
+}
+
+// Map draws f on its grid: lon/lat axes with the data area's aspect set so a
+// degree of latitude and cos(mean latitude) degrees of longitude have the
+// same length on the page (equirectangular at the mean latitude), cells
+// coloured with viridis from the column's min to its max, land and masked
+// cells in sand, the isolines at f.Levels on top, and a colour bar titled with
+// the unit whose ends are labelled with the min and the max.
+func Map(name, title string, f *Field) (*figure, *MapInfo, error) {
+	lo, hi, n := f.Range()
+	if n == 0 {
+		return nil, nil, fmt.Errorf("no finite values of %s on sea cells", f.Name)
+	}
+	info := &MapInfo{Name: name, Column: f.Name, Unit: f.Unit, Title: title, Min: lo, Max: hi, Levels: f.Levels, Valid: n}
+	for _, x := range f.Land {
+		if x {
+			info.Land++
+		}
+	}
+	cmHi := hi
+	if cmHi == lo {
+		cmHi = lo + math.Max(1e-9, math.Abs(lo)*1e-6)
+	}
+	layer := &cellsLayer{f: f, cmap: NewViridis(lo, cmHi), pointRad: vg.Points(4)}
+	layer.bounds = orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}
+	if f.Points {
+		for i := range f.Lon {
+			if !math.IsNaN(f.Lon[i]) {
+				layer.bounds = layer.bounds.Extend(orb.Point{f.Lon[i], f.Lat[i]})
+			}
+		}
+		pad := math.Max(0.05*math.Max(layer.bounds.Max[0]-layer.bounds.Min[0], layer.bounds.Max[1]-layer.bounds.Min[1]), 0.05)
+		layer.bounds = layer.bounds.Pad(pad)
+	} else {
+		layer.polys = f.cellPolygons()
+		for _, poly := range layer.polys {
+			for _, p := range poly {
+				layer.bounds = layer.bounds.Extend(p)
+			}
+		}
+		if len(f.Levels) > 0 {
+			lines, err := grid.Isolines(&grid.Field{NX: f.NX, NY: f.NY, Lon: f.Lon, Lat: f.Lat, Value: f.Value, Mask: f.Land}, f.Levels)
+			if err != nil {
+				return nil, nil, fmt.Errorf("isolines of %s: %w", f.Name, err)
+			}
+			layer.lines = lines
+		}
+	}
+	b := layer.bounds
+	p := newPlot(title, "longitude (°E)", "latitude (°N)")
+	p.Add(layer)
+	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = b.Min[0], b.Max[0], b.Min[1], b.Max[1]
+	midLat := (b.Min[1] + b.Max[1]) / 2
+	aspect := (b.Max[0] - b.Min[0]) * math.Cos(midLat*math.Pi/180) / (b.Max[1] - b.Min[1]) // width / height
+	if !(aspect > 0) || math.IsInf(aspect, 0) {
+		aspect = 1
+	}
+	const mapW, barW = 5.6 * vg.Inch, 1.2 * vg.Inch
+	pl, pr, pb, pt := paddings(p, mapW, 4*vg.Inch)
+	dataW := mapW - pl - pr
+	dataH := vg.Length(float64(dataW) / aspect)
+	if dataH > 7*vg.Inch {
+		dataH = 7 * vg.Inch
+		dataW = vg.Length(float64(dataH) * aspect)
+	}
+	if dataH < 1.5*vg.Inch {
+		dataH = 1.5 * vg.Inch
+	}
+	w, h := pl+dataW+pr, pb+dataH+pt
+	cb := plot.New()
+	cb.Add(&plotter.ColorBar{ColorMap: NewViridis(lo, cmHi), Vertical: true, Colors: 256})
+	cb.HideX()
+	cb.Y.Tick.Marker = endTicks{}
+	cb.Y.Label.Text = f.Unit
+	cb.Title.Text = " "
+	fig := &figure{Name: name, Title: title, W: w + barW, H: h}
+	fig.draw = func(dc draw.Canvas) {
+		dc.SetColor(color.White)
+		dc.Fill(dc.Rectangle.Path())
+		left := draw.Crop(dc, 0, -barW, 0, 0)
+		p.Draw(left)
+		right := draw.Crop(dc, w, 0, pb, 0)
+		right = draw.Crop(right, 0.15*vg.Inch, -0.25*vg.Inch, 0, -pt+cb.Title.TextStyle.Height(" "))
+		cb.Draw(right)
+	}
+	return fig, info, nil
+}
+
+func pathLen(pts []vg.Point) vg.Length {
+	var d vg.Length
+	for i := 1; i < len(pts); i++ {
+		d += vg.Length(math.Hypot(float64(pts[i].X-pts[i-1].X), float64(pts[i].Y-pts[i-1].Y)))
+	}
+	return d
+}

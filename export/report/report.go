@@ -1,0 +1,356 @@
+// Package report writes report/ of a finished run: index.html (a summary of
+// the run, maps of the main per-cell results on the grid) and a page per
+// site (monthly climatology with the inter-annual spread, exceedance curves,
+// the joint Hm0 x Te occurrence with power isolines, return levels with their
+// intervals, design contours where the run has them, and the site's numbers).
+// Every figure is written beside the pages as PNG and SVG, named after what
+// it shows; the pages hold their CSS inline and load nothing from the
+// network, so the directory can be opened from disk, mailed or archived.
+//
+// report draws what the run's tables hold (through export/rundir); it
+// computes no statistics. The only derived curves are the wave-power
+// isolines of the occurrence diagram, from seastate's bulk formula, and the
+// isolines of the maps, from grid's contouring.
+package report
+
+import (
+	"bytes"
+	"fmt"
+	"html/template"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"swellgrid/export/rundir"
+	"swellgrid/grid"
+)
+
+// Dir is the report's directory in the run directory.
+const Dir = "report"
+
+// mapColumns are the columns mapped, with their titles, when the run has
+// them with at least one value: mean power, Hm0 p90, the 100-year Hm0, MVI,
+// then each device's AEP and capacity factor.
+func mapColumns(r *rundir.Run) [][2]string {
+	out := [][2]string{
+		{"power_mean_kw_m", "Mean wave power"},
+		{"hm0_p90_m", "90th percentile of Hm0"},
+		{"hm0_rl100y_m", "100-year return level of Hm0 (GEV, screening estimate)"},
+		{"mvi", "Monthly variability index (MVI)"},
+	}
+	for _, d := range r.Manifest.Parameters.Devices {
+		out = append(out, [2]string{"aep_" + d.Name + "_mwh", "Mean annual energy of device " + d.Name},
+			[2]string{"cf_" + d.Name, "Capacity factor of device " + d.Name})
+	}
+	return out
+}
+
+// Levels are the isolines of column c on a map: the spec's contour levels of
+// the column if it gave them, else grid.NiceLevels over [lo, hi] (as the
+// contour layers are made).
+func Levels(r *rundir.Run, column string, lo, hi float64) []float64 {
+	if lv := r.Manifest.Parameters.Contours.Levels[column]; len(lv) > 0 {
+		return lv
+	}
+	return grid.NiceLevels(lo, hi, 8)
+}
+
+type pageFigure struct {
+	Title, Caption, PNG, SVG string
+	Map                      *MapInfo
+}
+
+type siteView struct {
+	Site
+	File     string
+	CellLon  float64
+	CellLat  float64
+	Figures  []pageFigure
+	Notes    []string
+	Numbers  [][4]string // name, value, unit, meaning
+	Distance string
+}
+
+type indexView struct {
+	Title, Caution, Software, Version, Synthetic string
+	Summary                                      [][2]string
+	Inputs                                       []rundir.Input
+	InputsMore                                   int
+	Gaps                                         []rundir.Gap
+	GapsMore                                     int
+	Assumptions, Warnings, Notes, Outputs        []string
+	Maps                                         []pageFigure
+	Sites                                        []*siteView
+	CSS                                          template.CSS
+}
+
+// Build writes r.Dir/report/ (replacing an earlier one once the new one is
+// complete) and returns the files written, relative to r.Dir, and warnings.
+func Build(r *rundir.Run) ([]string, []string, error) {
+	tmp, err := os.MkdirTemp(r.Dir, ".report.partial-")
+	if err != nil {
+		return nil, nil, fmt.Errorf("report: %w", err)
+	}
+	done := false
+	defer func() {
+		if !done {
+			os.RemoveAll(tmp)
+		}
+	}()
+	var files, warns, notes []string
+	add := func(names ...string) {
+		for _, n := range names {
+			files = append(files, filepath.Join(Dir, n))
+		}
+	}
+	m := r.Manifest
+	v := &indexView{Title: "Wave-energy resource atlas", Caution: m.Caution, Software: m.Software, Version: m.Version, CSS: template.CSS(css)}
+	v.Synthetic = r.Cells.Meta["swellgrid:synthetic"]
+	lon, lat := r.Lon(), r.Lat()
+	for _, mc := range mapColumns(r) {
+		c := r.Cells.Col(mc[0])
+		if c == nil || c.Kind != rundir.Float {
+			continue
+		}
+		f := &Field{NX: r.NX, NY: r.NY, Points: !r.Structured(), Lon: lon, Lat: lat, Value: c.Float, Land: r.Land, Name: c.Name, Unit: c.Unit}
+		lo, hi, n := f.Range()
+		if n == 0 {
+			notes = append(notes, fmt.Sprintf("no map of %s: no cell has a value (%s)", c.Name, c.Doc))
+			continue
+		}
+		if r.Structured() && hi > lo {
+			f.Levels = Levels(r, c.Name, lo, hi)
+		}
+		fig, info, err := Map("map_"+c.Name, mc[1]+unitSuffix(c.Unit), f)
+		if err != nil {
+			return nil, nil, fmt.Errorf("report: map of %s: %w", c.Name, err)
+		}
+		names, err := save(tmp, fig)
+		if err != nil {
+			return nil, nil, err
+		}
+		add(names...)
+		fig.Caption = fmt.Sprintf("%s: %s. Colour from %s to %s %s (viridis); sand: land or masked cells; grey: sea cells without a result.", c.Name, c.Doc, fmtNum(lo), fmtNum(hi), c.Unit)
+		if len(f.Levels) > 0 {
+			fig.Caption += " Isolines at " + joinNums(f.Levels) + " " + c.Unit + "."
+		}
+		v.Maps = append(v.Maps, pageFigure{Title: fig.Title, Caption: fig.Caption, PNG: names[0], SVG: names[1], Map: info})
+	}
+	sites, sw := Sites(r)
+	warns = append(warns, sw...)
+	for _, s := range sites {
+		sv := &siteView{Site: s, File: "site_" + s.Slug + ".html", CellLon: lon[s.Cell], CellLat: lat[s.Cell]}
+		if r.Kind != "points" {
+			sv.Distance = fmt.Sprintf("%.1f km", s.DistKM)
+		}
+		figs, fn, err := siteFigures(r, s)
+		if err != nil {
+			return nil, nil, fmt.Errorf("report: site %s: %w", s.Name, err)
+		}
+		sv.Notes = fn
+		for _, f := range figs {
+			names, err := save(tmp, f)
+			if err != nil {
+				return nil, nil, err
+			}
+			add(names...)
+			sv.Figures = append(sv.Figures, pageFigure{Title: f.Title, Caption: f.Caption, PNG: names[0], SVG: names[1]})
+		}
+		for _, c := range r.Cells.Columns {
+			val := ""
+			switch c.Kind {
+			case rundir.Float, rundir.Int:
+				val = fmtNum(c.Value(s.Cell))
+			case rundir.String:
+				val = c.Str[s.Cell]
+			case rundir.Bool:
+				val = fmt.Sprint(c.Bool[s.Cell])
+			}
+			sv.Numbers = append(sv.Numbers, [4]string{c.Name, val, c.Unit, c.Doc})
+		}
+		v.Sites = append(v.Sites, sv)
+	}
+	v.Summary = summary(r)
+	v.Inputs = m.Inputs
+	if len(v.Inputs) > 12 {
+		v.InputsMore, v.Inputs = len(v.Inputs)-12, v.Inputs[:12]
+	}
+	v.Gaps = m.Gaps
+	if len(v.Gaps) > 20 {
+		v.GapsMore, v.Gaps = len(v.Gaps)-20, v.Gaps[:20]
+	}
+	v.Assumptions, v.Warnings, v.Notes = m.Assumptions, m.Warnings, notes
+	outs, _ := filepath.Glob(filepath.Join(r.Dir, "*.*"))
+	for _, o := range outs {
+		if b := filepath.Base(o); !strings.HasPrefix(b, ".") {
+			v.Outputs = append(v.Outputs, b)
+		}
+	}
+	sort.Strings(v.Outputs)
+	for _, sv := range v.Sites {
+		if err := writePage(filepath.Join(tmp, sv.File), sitePage, struct {
+			*indexView
+			S *siteView
+		}{v, sv}); err != nil {
+			return nil, nil, err
+		}
+		add(sv.File)
+	}
+	if err := writePage(filepath.Join(tmp, "index.html"), indexPage, v); err != nil {
+		return nil, nil, err
+	}
+	add("index.html")
+	final := filepath.Join(r.Dir, Dir)
+	old := final + ".old"
+	os.RemoveAll(old)
+	if _, err := os.Stat(final); err == nil {
+		if err := os.Rename(final, old); err != nil {
+			return nil, nil, fmt.Errorf("report: moving the earlier %s aside: %w", final, err)
+		}
+	}
+	if err := os.Rename(tmp, final); err != nil {
+		return nil, nil, fmt.Errorf("report: renaming the finished report into %s: %w", final, err)
+	}
+	done = true
+	os.RemoveAll(old)
+	sort.Strings(files)
+	return files, append(warns, notes...), nil
+}
+
+func unitSuffix(u string) string {
+	if u == "" || u == "1" {
+		return ""
+	}
+	return " (" + u + ")"
+}
+
+func joinNums(v []float64) string {
+	s := make([]string, len(v))
+	for i, x := range v {
+		s[i] = fmtNum(x)
+	}
+	return strings.Join(s, ", ")
+}
+
+func summary(r *rundir.Run) [][2]string {
+	m := r.Manifest
+	var size int64
+	for _, in := range m.Inputs {
+		size += in.Size
+	}
+	missing := 0
+	for _, g := range m.Gaps {
+		missing += g.Missing
+	}
+	cov := "no gaps in the time axis"
+	if len(m.Gaps) > 0 {
+		cov = fmt.Sprintf("%d gaps, %d missing time steps (%.2f%% of the record)", len(m.Gaps), missing, 100*float64(missing)/math.Max(1, float64(m.Steps+missing)))
+	}
+	if c := r.Cells.Col("coverage"); c != nil {
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for i, x := range c.Float {
+			if !r.Land[i] && !math.IsNaN(x) {
+				lo, hi = math.Min(lo, x), math.Max(hi, x)
+			}
+		}
+		if !math.IsInf(lo, 0) {
+			cov += fmt.Sprintf("; per-cell coverage %s to %s", fmtNum(lo), fmtNum(hi))
+		}
+	}
+	g := m.Grid
+	return [][2]string{
+		{"Inputs", fmt.Sprintf("%d files, %.1f MB", len(m.Inputs), float64(size)/1e6)},
+		{"Record", fmt.Sprintf("%s to %s, %d time steps of %s, calendar %s", m.Start, m.End, m.Steps, stepText(m.StepSeconds), m.Calendar)},
+		{"Coverage and gaps", cov},
+		{"Grid", fmt.Sprintf("%s, %d x %d (%d cells, %d masked), lon %s to %s, lat %s to %s", g.Kind, g.Shape[0], g.Shape[1], g.Cells, g.Masked,
+			fmtNum(g.BBox[0]), fmtNum(g.BBox[2]), fmtNum(g.BBox[1]), fmtNum(g.BBox[3]))},
+		{"Depth source", m.DepthSource},
+		{"Software", m.Software + " " + m.Version},
+	}
+}
+
+func stepText(s int64) string {
+	switch {
+	case s%3600 == 0:
+		return fmt.Sprintf("%d h", s/3600)
+	case s%60 == 0:
+		return fmt.Sprintf("%d min", s/60)
+	}
+	return fmt.Sprintf("%d s", s)
+}
+
+func writePage(path string, t *template.Template, data any) error {
+	var b bytes.Buffer
+	if err := t.Execute(&b, data); err != nil {
+		return fmt.Errorf("report: %s: %w", path, err)
+	}
+	if err := os.WriteFile(path, b.Bytes(), 0o644); err != nil {
+		return fmt.Errorf("report: %w", err)
+	}
+	return nil
+}
+
+var funcs = template.FuncMap{"num": fmtNum, "nums": joinNums}
+
+const css = `body{font-family:sans-serif;margin:0 auto;max-width:1100px;padding:0 1.2em 3em;color:#1b1b1b;line-height:1.4}
+h1{font-size:1.6em;margin-top:1em}h2{font-size:1.25em;border-bottom:1px solid #ccc;padding-bottom:.2em;margin-top:1.6em}
+.caution{border:2px solid #a33;background:#fff3f0;padding:.6em 1em;margin:1em 0}
+.synthetic{border:1px solid #557;background:#f0f2ff;padding:.4em 1em}
+table{border-collapse:collapse;margin:.5em 0}td,th{border:1px solid #ccc;padding:.2em .5em;text-align:left;vertical-align:top;font-size:.92em}
+th{background:#f2f2f2}figure{margin:1.2em 0}figure img{max-width:100%;height:auto;border:1px solid #ddd}
+figcaption{font-size:.9em;color:#333;max-width:60em}.files{font-size:.85em}.sw{display:inline-block;width:1em;height:.8em;border:1px solid #999;vertical-align:middle}
+nav a{margin-right:1em}`
+
+var indexPage = template.Must(template.New("index").Funcs(funcs).Parse(`<!DOCTYPE html>
+<html lang="en"><head><meta charset="utf-8"><title>{{.Title}}</title>
+<style>{{.CSS}}</style></head><body>
+<h1>{{.Title}}</h1>
+<div class="caution"><strong>Caution.</strong> {{.Caution}}</div>
+{{if .Synthetic}}<p class="synthetic">{{.Synthetic}}</p>{{end}}
+<h2 id="summary">Summary</h2>
+<table>{{range .Summary}}<tr><th>{{index . 0}}</th><td>{{index . 1}}</td></tr>{{end}}</table>
+<h3>Inputs</h3>
+<table><tr><th>file</th><th>first time</th><th>last time</th><th>steps</th></tr>
+{{range .Inputs}}<tr><td>{{.Path}}</td><td>{{.First}}</td><td>{{.Last}}</td><td>{{.Steps}}</td></tr>{{end}}</table>
+{{if .InputsMore}}<p>and {{.InputsMore}} more files (see manifest.json).</p>{{end}}
+{{if .Gaps}}<h3>Gaps in the record</h3><table><tr><th>after</th><th>before</th><th>missing steps</th></tr>
+{{range .Gaps}}<tr><td>{{.After}}</td><td>{{.Before}}</td><td>{{.Missing}}</td></tr>{{end}}</table>
+{{if .GapsMore}}<p>and {{.GapsMore}} more gaps (see manifest.json).</p>{{end}}{{end}}
+<h3>Assumptions</h3><ul>{{range .Assumptions}}<li>{{.}}</li>{{end}}</ul>
+<h3>Warnings</h3>{{if .Warnings}}<ul>{{range .Warnings}}<li>{{.}}</li>{{end}}</ul>{{else}}<p>none</p>{{end}}
+{{if .Notes}}<h3>Notes on this report</h3><ul>{{range .Notes}}<li>{{.}}</li>{{end}}</ul>{{end}}
+<h2 id="maps">Maps</h2>
+<p>Colour scale: viridis (perceptually uniform); <span class="sw" style="background:#d8ccb2"></span> land or masked cells,
+<span class="sw" style="background:#c8c8c8"></span> sea cells without a result. Axes in degrees on WGS 84, drawn with the
+aspect of the mean latitude. Each figure is also an SVG file (link below it).</p>
+{{range .Maps}}<figure class="map" data-column="{{.Map.Column}}" data-min="{{printf "%.17g" .Map.Min}}" data-max="{{printf "%.17g" .Map.Max}}" data-unit="{{.Map.Unit}}">
+<img src="{{.PNG}}" alt="{{.Title}}"><figcaption>{{.Caption}} <a href="{{.SVG}}">SVG</a></figcaption></figure>
+{{else}}<p>No maps: no mapped column has values.</p>{{end}}
+<h2 id="sites">Sites</h2>
+{{if .Sites}}<table><tr><th>site</th><th>cell</th><th>lon</th><th>lat</th><th>mean power (kW/m)</th></tr>
+{{range .Sites}}<tr><td><a href="{{.File}}">{{.Name}}</a></td><td>{{.Cell}}</td><td>{{num .CellLon}}</td><td>{{num .CellLat}}</td><td>{{range .Numbers}}{{if eq (index . 0) "power_mean_kw_m"}}{{index . 1}}{{end}}{{end}}</td></tr>{{end}}</table>
+{{else}}<p>No site pages: the spec has no [[site]] list (a point set gets a page for every point).</p>{{end}}
+<h2 id="files">Files of this run</h2><p class="files">{{range .Outputs}}{{.}} {{end}}</p>
+<p class="files">Made by {{.Software}} {{.Version}} from the run's tables and manifest.</p>
+</body></html>
+`))
+
+var sitePage = template.Must(template.New("site").Funcs(funcs).Parse(`<!DOCTYPE html>
+<html lang="en"><head><meta charset="utf-8"><title>{{.S.Name}} – {{.Title}}</title>
+<style>{{.CSS}}</style></head><body>
+<nav><a href="index.html">atlas summary and maps</a></nav>
+<h1>Site: {{.S.Name}}</h1>
+<div class="caution"><strong>Caution.</strong> {{.Caution}}</div>
+{{if .Synthetic}}<p class="synthetic">{{.Synthetic}}</p>{{end}}
+<table><tr><th>asked position</th><td>{{num .S.Lon}} °E, {{num .S.Lat}} °N</td></tr>
+<tr><th>cell</th><td>{{.S.Cell}} at {{num .S.CellLon}} °E, {{num .S.CellLat}} °N{{if .S.Distance}} (nearest sea cell, {{.S.Distance}} away){{end}}</td></tr></table>
+{{range .S.Figures}}<figure><img src="{{.PNG}}" alt="{{.Title}}"><figcaption>{{.Caption}} <a href="{{.SVG}}">SVG</a></figcaption></figure>
+{{end}}
+{{if .S.Notes}}<ul>{{range .S.Notes}}<li>{{.}}</li>{{end}}</ul>{{end}}
+<h2>The cell's numbers</h2>
+<table><tr><th>column</th><th>value</th><th>unit</th><th>meaning</th></tr>
+{{range .S.Numbers}}<tr><td>{{index . 0}}</td><td>{{index . 1}}</td><td>{{index . 2}}</td><td>{{index . 3}}</td></tr>{{end}}</table>
+</body></html>
+`))

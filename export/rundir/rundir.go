@@ -1,0 +1,409 @@
+// Package rundir reads a finished run directory back: the manifest and the
+// Parquet tables, as typed columns. It serves the products made from a run
+// after its tables are written (the HTML report, the CF raster atlas.nc and
+// the GeoPackage atlas.gpkg), so that `swellgrid report DIR` can rebuild them
+// without recomputing anything.
+//
+// rundir knows the file names and columns of the output contract; it never
+// computes statistics and never reads NetCDF.
+package rundir
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"github.com/apache/arrow/go/v17/arrow"
+	"github.com/apache/arrow/go/v17/arrow/array"
+	"github.com/apache/arrow/go/v17/arrow/memory"
+	"github.com/apache/arrow/go/v17/parquet/file"
+	"github.com/apache/arrow/go/v17/parquet/pqarrow"
+)
+
+// Kind of values a Column holds.
+type Kind int
+
+const (
+	Float Kind = iota
+	Int
+	String
+	Bool
+)
+
+// Column is one column of a table read back. Float columns hold NaN for
+// nulls; Int, String and Bool columns mark nulls with Valid (false = null).
+type Column struct {
+	Name         string
+	Unit         string
+	Doc          string
+	StandardName string // CF standard_name, where the schema gives one
+	CellMethods  string // CF cell_methods, where the schema gives them
+	LongName     string // CF long_name, where the schema gives one
+	Kind         Kind
+	Float        []float64
+	Int          []int64
+	Str          []string
+	Bool         []bool
+	Valid        []bool
+}
+
+// Numeric reports whether c holds numbers (float or integer).
+func (c *Column) Numeric() bool { return c.Kind == Float || c.Kind == Int }
+
+// Value returns row i as a float64 (NaN for null or non-numeric).
+func (c *Column) Value(i int) float64 {
+	switch c.Kind {
+	case Float:
+		return c.Float[i]
+	case Int:
+		if !c.Valid[i] {
+			return math.NaN()
+		}
+		return float64(c.Int[i])
+	}
+	return math.NaN()
+}
+
+// Table is a Parquet table read back, columns in file order.
+type Table struct {
+	Path    string
+	Columns []*Column
+	Rows    int
+	Meta    map[string]string
+	byName  map[string]*Column
+}
+
+// Col returns the named column or nil.
+func (t *Table) Col(name string) *Column {
+	if t == nil {
+		return nil
+	}
+	return t.byName[name]
+}
+
+// ReadTable reads every column of the Parquet file at path except the WKB
+// geometry.
+func ReadTable(path string) (*Table, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("rundir: %w", err)
+	}
+	defer f.Close()
+	rdr, err := file.NewParquetReader(f)
+	if err != nil {
+		return nil, fmt.Errorf("rundir: %s: not a readable Parquet file (rerun the run or its export): %w", path, err)
+	}
+	defer rdr.Close()
+	fr, err := pqarrow.NewFileReader(rdr, pqarrow.ArrowReadProperties{}, memory.DefaultAllocator)
+	if err != nil {
+		return nil, fmt.Errorf("rundir: %s: %w", path, err)
+	}
+	tbl, err := fr.ReadTable(context.Background())
+	if err != nil {
+		return nil, fmt.Errorf("rundir: %s: %w", path, err)
+	}
+	defer tbl.Release()
+	t := &Table{Path: path, Rows: int(tbl.NumRows()), Meta: map[string]string{}, byName: map[string]*Column{}}
+	md := tbl.Schema().Metadata()
+	for i, k := range md.Keys() {
+		t.Meta[k] = md.Values()[i]
+	}
+	docs := map[string]map[string]any{}
+	if s := t.Meta["swellgrid:columns"]; s != "" {
+		var list []map[string]any
+		if err := json.Unmarshal([]byte(s), &list); err == nil {
+			for _, d := range list {
+				if n, ok := d["name"].(string); ok {
+					docs[n] = d
+				}
+			}
+		}
+	}
+	str := func(d map[string]any, k string) string {
+		if v, ok := d[k].(string); ok {
+			return v
+		}
+		return ""
+	}
+	for ci := 0; ci < int(tbl.NumCols()); ci++ {
+		ac := tbl.Column(ci)
+		if ac.Name() == "geometry" {
+			continue
+		}
+		c := &Column{Name: ac.Name()}
+		d := docs[c.Name]
+		c.Unit, c.Doc, c.StandardName, c.CellMethods, c.LongName = str(d, "unit"), str(d, "doc"), str(d, "standard_name"), str(d, "cell_methods"), str(d, "long_name")
+		switch ac.DataType().ID() {
+		case arrow.FLOAT64:
+			c.Kind, c.Float = Float, make([]float64, 0, t.Rows)
+		case arrow.INT64:
+			c.Kind, c.Int, c.Valid = Int, make([]int64, 0, t.Rows), make([]bool, 0, t.Rows)
+		case arrow.BOOL:
+			c.Kind, c.Bool, c.Valid = Bool, make([]bool, 0, t.Rows), make([]bool, 0, t.Rows)
+		default:
+			c.Kind, c.Str, c.Valid = String, make([]string, 0, t.Rows), make([]bool, 0, t.Rows)
+		}
+		for _, ch := range ac.Data().Chunks() {
+			for i := 0; i < ch.Len(); i++ {
+				null := ch.IsNull(i)
+				switch a := ch.(type) {
+				case *array.Float64:
+					v := a.Value(i)
+					if null {
+						v = math.NaN()
+					}
+					c.Float = append(c.Float, v)
+				case *array.Int64:
+					c.Int, c.Valid = append(c.Int, a.Value(i)), append(c.Valid, !null)
+				case *array.Boolean:
+					c.Bool, c.Valid = append(c.Bool, a.Value(i)), append(c.Valid, !null)
+				case *array.String:
+					c.Str, c.Valid = append(c.Str, a.Value(i)), append(c.Valid, !null)
+				case *array.Dictionary:
+					s := ""
+					if !null {
+						s = a.Dictionary().(*array.String).Value(a.GetValueIndex(i))
+					}
+					c.Str, c.Valid = append(c.Str, s), append(c.Valid, !null)
+				default:
+					s := ""
+					if !null {
+						s = a.ValueStr(i)
+					}
+					c.Str, c.Valid = append(c.Str, s), append(c.Valid, !null)
+				}
+			}
+		}
+		t.Columns = append(t.Columns, c)
+		t.byName[c.Name] = c
+	}
+	return t, nil
+}
+
+// Manifest is the part of manifest.json the products use; Raw keeps the
+// whole document.
+type Manifest struct {
+	Software    string          `json:"software"`
+	Version     string          `json:"version"`
+	Caution     string          `json:"caution"`
+	Inputs      []Input         `json:"inputs"`
+	Calendar    string          `json:"calendar"`
+	Start       string          `json:"time_start"`
+	End         string          `json:"time_end"`
+	Steps       int             `json:"steps"`
+	StepSeconds int64           `json:"step_seconds"`
+	Gaps        []Gap           `json:"gaps"`
+	Grid        Grid            `json:"grid"`
+	DepthSource string          `json:"depth_source"`
+	Assumptions []string        `json:"assumptions"`
+	Warnings    []string        `json:"warnings"`
+	Parameters  Parameters      `json:"parameters"`
+	Raw         json.RawMessage `json:"-"`
+}
+
+// Input is one input file of the run.
+type Input struct {
+	Path  string `json:"path"`
+	Size  int64  `json:"size_bytes"`
+	First string `json:"first_time"`
+	Last  string `json:"last_time"`
+	Steps int    `json:"steps"`
+}
+
+// Gap is a hole in the time axis.
+type Gap struct {
+	After   string `json:"after"`
+	Before  string `json:"before"`
+	Missing int    `json:"missing_steps"`
+}
+
+// Grid is the grid of the run.
+type Grid struct {
+	Kind   string     `json:"kind"`
+	Shape  [2]int     `json:"shape_ny_nx"`
+	Cells  int        `json:"cells"`
+	Masked int        `json:"masked_cells"`
+	BBox   [4]float64 `json:"bbox_lon_lat"`
+}
+
+// Parameters is the part of the recorded spec the products use.
+type Parameters struct {
+	Devices []struct {
+		Name        string `json:"name"`
+		PowerMatrix string `json:"power_matrix"`
+		Lookup      string `json:"lookup"`
+	} `json:"devices"`
+	Extremes struct {
+		ReturnPeriodsY []float64 `json:"return_periods_y"`
+	} `json:"extremes"`
+	Contours struct {
+		Columns []string             `json:"columns"`
+		Levels  map[string][]float64 `json:"levels"`
+	} `json:"contours"`
+	Physics struct {
+		Rho float64 `json:"rho_kg_m3"`
+		G   float64 `json:"g_m_s2"`
+	} `json:"physics"`
+	Sites []Site `json:"sites"`
+}
+
+// Site is a named place of the spec's [[site]] list.
+type Site struct {
+	Name string  `json:"name"`
+	Lon  float64 `json:"lon"`
+	Lat  float64 `json:"lat"`
+}
+
+// DecodeManifest decodes manifest.json bytes.
+func DecodeManifest(b []byte) (*Manifest, error) {
+	m := &Manifest{}
+	if err := json.Unmarshal(b, m); err != nil {
+		return nil, fmt.Errorf("rundir: manifest.json: %w", err)
+	}
+	m.Raw = append(json.RawMessage(nil), b...)
+	return m, nil
+}
+
+// Run is a finished run directory read back.
+type Run struct {
+	Dir      string
+	Manifest *Manifest
+	Cells    *Table
+	// NX, NY: the structured shape (points: NX = points, NY = 1).
+	NX, NY int
+	Kind   string // regular, curvilinear or points
+	Land   []bool // masked cells (qc flag "masked"): drawn as land, no values
+	tables map[string]*Table
+}
+
+// Open reads the manifest and cells.parquet of the run directory dir. The
+// manifest bytes may be given (a run that is about to write its manifest);
+// nil reads dir/manifest.json.
+func Open(dir string, manifest []byte) (*Run, error) {
+	if manifest == nil {
+		b, err := os.ReadFile(filepath.Join(dir, "manifest.json"))
+		if err != nil {
+			return nil, fmt.Errorf("rundir: %s is not a finished run directory (no manifest.json; run `swellgrid run` or `swellgrid merge` first): %w", dir, err)
+		}
+		manifest = b
+	}
+	m, err := DecodeManifest(manifest)
+	if err != nil {
+		return nil, err
+	}
+	cells, err := ReadTable(filepath.Join(dir, "cells.parquet"))
+	if err != nil {
+		return nil, err
+	}
+	r := &Run{Dir: dir, Manifest: m, Cells: cells, Kind: m.Grid.Kind, NY: m.Grid.Shape[0], NX: m.Grid.Shape[1], tables: map[string]*Table{}}
+	if r.NX*r.NY != cells.Rows {
+		return nil, fmt.Errorf("rundir: %s: the manifest's grid is %d x %d but cells.parquet has %d rows; the directory mixes two runs, rerun it", dir, r.NY, r.NX, cells.Rows)
+	}
+	for _, need := range []string{"cell_id", "lon", "lat"} {
+		if cells.Col(need) == nil {
+			return nil, fmt.Errorf("rundir: %s: cells.parquet has no column %q", dir, need)
+		}
+	}
+	id := cells.Col("cell_id")
+	for i := 0; i < cells.Rows; i++ {
+		if id.Int[i] != int64(i) {
+			return nil, fmt.Errorf("rundir: %s: cells.parquet row %d holds cell %d; rows must be in cell-id order", dir, i, id.Int[i])
+		}
+	}
+	r.Land = make([]bool, cells.Rows)
+	if q := cells.Col("qc_flags"); q != nil && q.Kind == String {
+		for i, s := range q.Str {
+			for _, f := range strings.Split(s, ",") {
+				if f == "masked" {
+					r.Land[i] = true
+				}
+			}
+		}
+	}
+	return r, nil
+}
+
+// Table reads (once) the long table name (e.g. "monthly" for
+// monthly.parquet); it returns nil, nil when the run has no such file.
+func (r *Run) Table(name string) (*Table, error) {
+	if t, ok := r.tables[name]; ok {
+		return t, nil
+	}
+	p := filepath.Join(r.Dir, name+".parquet")
+	if _, err := os.Stat(p); errors.Is(err, os.ErrNotExist) {
+		r.tables[name] = nil
+		return nil, nil
+	}
+	t, err := ReadTable(p)
+	if err != nil {
+		return nil, err
+	}
+	r.tables[name] = t
+	return t, nil
+}
+
+// Lon and Lat of every cell.
+func (r *Run) Lon() []float64 { return r.Cells.Col("lon").Float }
+func (r *Run) Lat() []float64 { return r.Cells.Col("lat").Float }
+
+// Structured reports whether the cells form a (y, x) grid.
+func (r *Run) Structured() bool { return r.Kind == "regular" || r.Kind == "curvilinear" }
+
+// NearestSeaCell returns the cell nearest to (lon, lat) by great-circle
+// distance among the cells that are not land and have a mean power, and the
+// distance in km (haversine on a sphere of radius 6371.0088 km, the IUGG mean
+// Earth radius). It returns -1 if there is no such cell.
+func (r *Run) NearestSeaCell(lon, lat float64) (int, float64) {
+	pw := r.Cells.Col("power_mean_kw_m")
+	best, bd := -1, math.Inf(1)
+	lons, lats := r.Lon(), r.Lat()
+	for i := range lons {
+		if r.Land[i] || math.IsNaN(lons[i]) || (pw != nil && math.IsNaN(pw.Float[i])) {
+			continue
+		}
+		if d := Haversine(lon, lat, lons[i], lats[i]); d < bd {
+			best, bd = i, d
+		}
+	}
+	return best, bd
+}
+
+// Haversine is the great-circle distance in km between two points given in
+// degrees: d = 2 R asin(sqrt(sin^2(dphi/2) + cos phi1 cos phi2 sin^2(dlambda/2)))
+// with R = 6371.0088 km (IUGG mean radius; Moritz 2000, Geodetic Reference
+// System 1980).
+func Haversine(lon1, lat1, lon2, lat2 float64) float64 {
+	const R = 6371.0088
+	p1, p2 := lat1*math.Pi/180, lat2*math.Pi/180
+	dp, dl := p2-p1, (lon2-lon1)*math.Pi/180
+	a := math.Sin(dp/2)*math.Sin(dp/2) + math.Cos(p1)*math.Cos(p2)*math.Sin(dl/2)*math.Sin(dl/2)
+	return 2 * R * math.Asin(math.Min(1, math.Sqrt(a)))
+}
+
+// RowsOf returns the row indices of t whose int column key equals v, in order
+// (the long tables are in cell-id order; others are scanned).
+func (t *Table) RowsOf(key string, v int64) []int {
+	c := t.Col(key)
+	if c == nil || c.Kind != Int {
+		return nil
+	}
+	lo := sort.Search(len(c.Int), func(i int) bool { return c.Int[i] >= v })
+	var out []int
+	for i := lo; i < len(c.Int) && c.Int[i] == v; i++ {
+		out = append(out, i)
+	}
+	if out == nil { // not sorted by key: scan
+		for i, x := range c.Int {
+			if x == v {
+				out = append(out, i)
+			}
+		}
+	}
+	return out
+}

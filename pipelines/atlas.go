@@ -1,0 +1,123 @@
+package pipelines
+
+import (
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"swellgrid/export"
+
+	"swellgrid/export/gpkg"
+	"swellgrid/export/raster"
+	atlasreport "swellgrid/export/report"
+	"swellgrid/export/rundir"
+)
+
+// Products says which of the products made from a finished run's tables to
+// (re)build.
+type Products struct {
+	Report, NetCDF, GeoPackage bool
+}
+
+func (s *Spec) products() Products {
+	return Products{Report: s.Output.Report, NetCDF: s.Output.NetCDF, GeoPackage: s.Output.GeoPackage}
+}
+
+func checkSites(sites []SiteSpec) error {
+	seen := map[string]bool{}
+	for i, st := range sites {
+		key := fmt.Sprintf("site[%d]", i)
+		if strings.TrimSpace(st.Name) == "" {
+			return fmt.Errorf("spec: %s.name is empty; give every [[site]] a name", key)
+		}
+		if seen[st.Name] {
+			return fmt.Errorf("spec: %s.name = %q appears twice", key, st.Name)
+		}
+		seen[st.Name] = true
+		if !(st.Lat >= -90 && st.Lat <= 90) || math.IsNaN(st.Lon) || math.IsInf(st.Lon, 0) {
+			return fmt.Errorf("spec: %s (%s): lon = %v, lat = %v is not a position (degrees east, degrees north)", key, st.Name, st.Lon, st.Lat)
+		}
+	}
+	return nil
+}
+
+func buildProducts(out string, manifest []byte, p Products) ([]string, []string, error) {
+	r, err := rundir.Open(out, manifest)
+	if err != nil {
+		return nil, nil, err
+	}
+	var files, warns []string
+	if p.NetCDF {
+		if r.Structured() {
+			if err := raster.Write(r); err != nil {
+				return nil, nil, err
+			}
+			files = append(files, raster.FileName)
+		} else {
+			warns = append(warns, "no atlas.nc: the grid is a point set, which is no raster; use atlas.gpkg or cells.parquet")
+		}
+	}
+	if p.GeoPackage {
+		if err := gpkg.Write(r); err != nil {
+			return nil, nil, err
+		}
+		files = append(files, gpkg.FileName)
+	}
+	if p.Report {
+		rf, rw, err := atlasreport.Build(r)
+		if err != nil {
+			return nil, nil, err
+		}
+		files = append(files, rf...)
+		warns = append(warns, rw...)
+	}
+	return files, warns, nil
+}
+
+// Rebuild rebuilds the products of the finished run in dir from its tables
+// and manifest, without recomputing: the report always, atlas.nc and
+// atlas.gpkg when asked. It returns the files written, relative to dir.
+func Rebuild(dir string, p Products) ([]string, []string, error) {
+	if _, err := os.Stat(filepath.Join(dir, "manifest.json")); err != nil {
+		return nil, nil, &InputError{fmt.Errorf("report: %s is not a finished run directory (no manifest.json); run `swellgrid run` first: %w", dir, err)}
+	}
+	unlock, err := lockDir(dir)
+	if err != nil {
+		return nil, nil, err
+	}
+	defer unlock()
+	files, warns, err := buildProducts(dir, nil, p)
+	if err != nil {
+		return nil, nil, &outputErr{err}
+	}
+	return files, warns, nil
+}
+
+// finishManifest writes the manifest m of the run directory out, builds the
+// products (as the spec switches say) from the tables and that manifest,
+// adds their files to written and their warnings to warns and m, and
+// rewrites the manifest listing every output. The manifest is on disk before
+// the products are built, so a run whose report fails still leaves a
+// finished run directory that `swellgrid report` can complete.
+func (e *engine) finishManifest(out string, m *Manifest, written, warns *[]string) error {
+	m.Outputs = append(append([]string{}, *written...), "manifest.json")
+	if err := export.WriteManifest(filepath.Join(out, "manifest.json"), m); err != nil {
+		return err
+	}
+	t0 := time.Now()
+	files, w, err := buildProducts(out, nil, e.spec.products())
+	if err != nil {
+		return err
+	}
+	if m.Timings != nil {
+		m.Timings["products_s"] = time.Since(t0).Seconds()
+	}
+	*written = append(*written, files...)
+	*warns = append(*warns, w...)
+	m.Warnings = append(m.Warnings, w...)
+	m.Outputs = append(append([]string{}, *written...), "manifest.json")
+	return nil
+}
