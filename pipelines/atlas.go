@@ -82,16 +82,19 @@ func buildProducts(out string, manifest []byte, p Products) ([]string, []string,
 // atlas.gpkg when asked. It returns the files written, relative to dir.
 func Rebuild(dir string, p Products) ([]string, []string, error) {
 	if _, err := os.Stat(filepath.Join(dir, "manifest.json")); err != nil {
-		return nil, nil, &InputError{fmt.Errorf("report: %s is not a finished run directory (no manifest.json); run `swellgrid run` first: %w", dir, err)}
+		return nil, nil, inputErr(fmt.Errorf("report: %s is not a finished run directory (no manifest.json); run `swellgrid run` first: %w", dir, err))
 	}
 	unlock, err := lockDir(dir)
 	if err != nil {
 		return nil, nil, err
 	}
 	defer unlock()
+	if _, err := rundir.Open(dir, nil); err != nil {
+		return nil, nil, inputErr(err)
+	}
 	files, warns, err := buildProducts(dir, nil, p)
 	if err != nil {
-		return nil, nil, &outputErr{err}
+		return nil, nil, outputError(err)
 	}
 	return files, warns, nil
 }

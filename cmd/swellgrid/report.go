@@ -33,10 +33,7 @@ and every figure as PNG and SVG. The pages open from disk with no network.
 		RunE: func(cmd *cobra.Command, args []string) error {
 			files, warns, err := pipelines.Rebuild(args[0], pipelines.Products{Report: true, NetCDF: atlas, GeoPackage: atlas})
 			if err != nil {
-				if pipelines.IsOutputError(err) {
-					return &exitErr{4, err}
-				}
-				return &exitErr{2, err}
+				return err
 			}
 			fmt.Fprintf(os.Stdout, "wrote %d files to %s\n", len(files), args[0])
 			printProducts(os.Stdout, args[0], files)
