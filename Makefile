@@ -22,6 +22,8 @@ DUCKDB_NODE_API := @duckdb/node-api@1.5.6-r.1
 SWELLGRID_NODE_CACHE ?= $(HOME)/.cache/swellgrid-test/duckdb-node
 export SWELLGRID_NODE_CACHE
 STATICCHECK_VERSION := v0.8.2
+# the report's browser check (headless chromium) and its colour-map reference
+TEST_DEBS  += chromium python3-matplotlib
 
 .PHONY: all deps test-deps build demo test lint mutants bench fuzz soak clean
 

@@ -34,6 +34,9 @@ type MapInfo struct {
 	Min, Max                  float64 // the colour bar's range: the column's min and max over sea cells
 	Levels                    []float64
 	Valid, Land               int
+	// DataArea is the map's data rectangle on the figure in points (1/72
+	// inch) from the lower left corner, set when the figure is drawn.
+	DataArea vg.Rectangle `json:"-"`
 }
 
 // Range is the min and max of the finite values of f on cells that are not land.
@@ -257,6 +260,9 @@ func Map(name, title string, f *Field) (*figure, *MapInfo, error) {
 	cb.HideX()
 	cb.Y.Tick.Marker = endTicks{}
 	cb.Y.Label.Text = f.Unit
+	if f.Unit == "1" || f.Unit == "" {
+		cb.Y.Label.Text = "dimensionless"
+	}
 	cb.Title.Text = " "
 	fig := &figure{Name: name, Title: title, W: w + barW, H: h}
 	fig.draw = func(dc draw.Canvas) {
@@ -264,6 +270,7 @@ func Map(name, title string, f *Field) (*figure, *MapInfo, error) {
 		dc.Fill(dc.Rectangle.Path())
 		left := draw.Crop(dc, 0, -barW, 0, 0)
 		p.Draw(left)
+		info.DataArea = p.DataCanvas(left).Rectangle
 		right := draw.Crop(dc, w, 0, pb, 0)
 		right = draw.Crop(right, 0.15*vg.Inch, -0.25*vg.Inch, 0, -pt+cb.Title.TextStyle.Height(" "))
 		cb.Draw(right)

@@ -117,7 +117,7 @@ func Build(r *rundir.Run) ([]string, []string, error) {
 		f := &Field{NX: r.NX, NY: r.NY, Points: !r.Structured(), Lon: lon, Lat: lat, Value: c.Float, Land: r.Land, Name: c.Name, Unit: c.Unit}
 		lo, hi, n := f.Range()
 		if n == 0 {
-			notes = append(notes, fmt.Sprintf("no map of %s: no cell has a value (%s)", c.Name, c.Doc))
+			notes = append(notes, fmt.Sprintf("report: no map of %s: no sea cell has a published value", c.Name))
 			continue
 		}
 		if r.Structured() && hi > lo {

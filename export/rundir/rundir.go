@@ -110,6 +110,11 @@ func ReadTable(path string) (*Table, error) {
 	}
 	defer tbl.Release()
 	t := &Table{Path: path, Rows: int(tbl.NumRows()), Meta: map[string]string{}, byName: map[string]*Column{}}
+	if kv := rdr.MetaData().KeyValueMetadata(); kv != nil {
+		for i, k := range kv.Keys() {
+			t.Meta[k] = kv.Values()[i]
+		}
+	}
 	md := tbl.Schema().Metadata()
 	for i, k := range md.Keys() {
 		t.Meta[k] = md.Values()[i]
@@ -139,6 +144,13 @@ func ReadTable(path string) (*Table, error) {
 		c := &Column{Name: ac.Name()}
 		d := docs[c.Name]
 		c.Unit, c.Doc, c.StandardName, c.CellMethods, c.LongName = str(d, "unit"), str(d, "doc"), str(d, "standard_name"), str(d, "cell_methods"), str(d, "long_name")
+		// the Arrow field metadata carries the same keys
+		fm := tbl.Schema().Field(ci).Metadata
+		for key, dst := range map[string]*string{"unit": &c.Unit, "doc": &c.Doc, "standard_name": &c.StandardName, "cell_methods": &c.CellMethods, "long_name": &c.LongName} {
+			if i := fm.FindKey(key); i >= 0 && *dst == "" {
+				*dst = fm.Values()[i]
+			}
+		}
 		switch ac.DataType().ID() {
 		case arrow.FLOAT64:
 			c.Kind, c.Float = Float, make([]float64, 0, t.Rows)
