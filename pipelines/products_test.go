@@ -691,5 +691,3 @@ func TestAtlasNCCurvilinear(t *testing.T) {
 		t.Error("output.report = false still wrote report/")
 	}
 }
-
-
