@@ -23,20 +23,13 @@ import (
 	"github.com/chromedp/chromedp"
 
 	"swellgrid/export/parquetread"
+	"swellgrid/internal/testtool"
 )
 
-// needTool finds an outside program; under CI (CI=true) a missing one is a
-// failure, elsewhere the check is skipped.
+// needTool finds an outside program (testtool.Need: a skip, or a failure under CI).
 func needTool(t *testing.T, name, deb string) string {
 	t.Helper()
-	p, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("CI") == "true" {
-			t.Fatalf("%s not found (Debian package %s); CI needs it", name, deb)
-		}
-		t.Skipf("%s not found (Debian package %s); skipping", name, deb)
-	}
-	return p
+	return testtool.Need(t, name, deb)
 }
 
 var demoOnce struct {
@@ -159,7 +152,7 @@ func TestAtlasNCWithXarray(t *testing.T) {
 }
 
 func checkAtlasNC(t *testing.T, run, kind string) {
-	py := needTool(t, "/usr/bin/python3", "python3-xarray")
+	py := testtool.NeedPython(t, "xarray")
 	out, err := exec.Command(py, "../testdata/report/read_atlas_nc.py", filepath.Join(run, "atlas.nc")).Output()
 	if err != nil {
 		t.Fatalf("xarray: %v", err)
