@@ -120,7 +120,9 @@ func (e *engine) finishManifest(out string, m *Manifest, written, warns *[]strin
 	}
 	*written = append(*written, files...)
 	*warns = append(*warns, w...)
-	m.Warnings = append(m.Warnings, w...)
+	// kept apart from the run's warnings, which the report shows: a report
+	// rebuilt from the final manifest must equal the one the run made
+	m.ProductWarnings = append(m.ProductWarnings, w...)
 	m.Outputs = append(append([]string{}, *written...), "manifest.json")
 	return nil
 }

@@ -124,7 +124,9 @@ type Manifest struct {
 	Columns     map[string][]ColumnSpec         `json:"columns"`
 	Warnings    []string                        `json:"warnings"`
 	Outputs     []string                        `json:"outputs"` // files of the run directory, relative to it
-	Timings     map[string]float64              `json:"timings_s,omitempty"`
+	// ProductWarnings are those of atlas.nc, atlas.gpkg and report/.
+	ProductWarnings []string           `json:"product_warnings,omitempty"`
+	Timings         map[string]float64 `json:"timings_s,omitempty"`
 }
 
 // ManifestInput is one input file.
