@@ -267,9 +267,9 @@ func checkAtlasNC(t *testing.T, run, kind string) {
 }
 
 // gdalinfo (Debian gdal-bin) reads the mean power as a raster with the grid's
-// size, extent and pixel size: the demo grid is 40 x 30 cells of 0.1 degree
-// from -35 E, 44 N (pipelines/synth.Demo), so GDAL's origin is the outer
-// corner (-35.05, 46.95) and the pixel size (0.1, -0.1).
+// size, extent and pixel size: GDAL's origin is the outer corner of the
+// north-west cell (half a cell beyond the first longitude and the last
+// latitude of cells.parquet) and the pixel size the axis steps.
 func TestAtlasNCWithGdalinfo(t *testing.T) {
 	gi := needTool(t, "gdalinfo", "gdal-bin")
 	dir, _ := demoRun(t)
@@ -280,15 +280,24 @@ func TestAtlasNCWithGdalinfo(t *testing.T) {
 	}
 	s := string(out)
 	t.Logf("gdalinfo:\n%s", firstLines(s, 24))
-	if !strings.Contains(s, "Size is 40, 30") {
-		t.Errorf("gdalinfo size: %s", s)
+	cells := cellsOf(t, filepath.Join(dir, "atlas-grid"))
+	lon, lat := cells["lon"], cells["lat"]
+	nx := 1
+	for nx < len(lat) && num(lat[nx]) == num(lat[0]) {
+		nx++
+	}
+	ny := len(lon) / nx
+	if !strings.Contains(s, fmt.Sprintf("Size is %d, %d", nx, ny)) {
+		t.Errorf("gdalinfo size, want %d x %d: %s", nx, ny, s)
 	}
 	re := regexp.MustCompile(`Origin = \(([-0-9.e]+),([-0-9.e]+)\)\s+Pixel Size = \(([-0-9.e]+),([-0-9.e]+)\)`)
 	m := re.FindStringSubmatch(s)
 	if m == nil {
 		t.Fatalf("no origin / pixel size in gdalinfo output")
 	}
-	want := []float64{-35.05, 46.95, 0.1, -0.1}
+	dx, dy := num(lon[1])-num(lon[0]), num(lat[nx])-num(lat[0])
+	top := num(lat[len(lat)-1])
+	want := []float64{num(lon[0]) - dx/2, top + dy/2, dx, -dy}
 	for k, w := range want {
 		v, _ := strconv.ParseFloat(m[k+1], 64)
 		if math.Abs(v-w) > 1e-6 {
@@ -648,8 +657,8 @@ func TestReportRebuild(t *testing.T) {
 			pages++
 		}
 	}
-	if pages != 12 {
-		t.Errorf("%d point pages, the demo has 12 spectral points", pages)
+	if n := len(cellsOf(t, run)["cell_id"]); pages != n {
+		t.Errorf("%d point pages, the demo has %d spectral points", pages, n)
 	}
 	if _, _, err := Rebuild(t.TempDir(), Products{Report: true}); err == nil || KindOf(err) != BadInput {
 		t.Errorf("rebuild of an empty directory: %v", err)
