@@ -200,3 +200,16 @@ func (s *scan) numAttr(v *ncVar, name string, finite bool, counts ...int) ([]flo
 	}
 	return a.nums, nil
 }
+
+// boundAttr reads valid_min or valid_max: one number, which may be infinite
+// (an open bound) but not NaN.
+func (s *scan) boundAttr(v *ncVar, name string) ([]float64, error) {
+	x, err := s.numAttr(v, name, false, 1)
+	if err != nil || x == nil {
+		return x, err
+	}
+	if math.IsNaN(x[0]) {
+		return nil, errf(s.f.path, v.name, "attribute %s is NaN, which bounds nothing; remove it or store the limit (CF 1.8 section 2.5.1)", name)
+	}
+	return x, nil
+}

@@ -209,3 +209,33 @@ func TestSeaBinaryMask(t *testing.T) {
 		t.Errorf("%d cells masked, want 1", n)
 	}
 }
+
+// An infinite valid_min/valid_max, as some writers store for "no limit", is an
+// open bound (CF 1.8 section 2.5.1 defines the valid range; infinities bound
+// nothing), so every finite value stays valid; a NaN bound is refused by name.
+// Files written by Debian's ncgen.
+func TestInfiniteValidBoundsAreOpen(t *testing.T) {
+	dir := t.TempDir()
+	inf := strings.Replace(cdl(), `tp:_FillValue = -999.f ;`, `tp:_FillValue = -999.f ; tp:valid_min = -Infinityf ; tp:valid_max = Infinityf ;`, 1)
+	cat, err := Open([]string{ncgenFile(t, dir, "inf", inf)}, Options{})
+	if err != nil {
+		t.Fatalf("infinite valid bounds refused: %v", err)
+	}
+	out := make(chan *Block, 4)
+	go func() { cat.Read(context.Background(), ReadRange{MaxSteps: 8}, out); close(out) }()
+	b := <-out
+	for range out {
+	}
+	// tp canonical cell 5 at step 0 = file row 1 = 8 s; the -999 fill stays missing.
+	if got := b.Bulk[Tp][5]; got != 8 {
+		t.Errorf("tp with open valid bounds = %v, want 8", got)
+	}
+	if got := b.Bulk[Tp][3]; !math.IsNaN(got) {
+		t.Errorf("tp fill under open bounds = %v, want missing", got)
+	}
+	nan := strings.Replace(cdl(), `tp:_FillValue = -999.f ;`, `tp:_FillValue = -999.f ; tp:valid_max = NaNf ;`, 1)
+	_, err = Open([]string{ncgenFile(t, dir, "nanmax", nan)}, Options{})
+	if err == nil || !strings.Contains(err.Error(), "nanmax.nc") || !strings.Contains(err.Error(), "valid_max is NaN") {
+		t.Errorf("NaN valid_max: got %v, want a refusal naming the file and attribute", err)
+	}
+}

@@ -623,12 +623,14 @@ func (s *scan) packing(v *ncVar, vi *VarInfo) error {
 	if vr != nil {
 		vi.ValidMin, vi.ValidMax = vr[0], vr[1]
 	}
-	if vm, err := s.numAttr(v, "valid_min", true, 1); err != nil {
+	// An infinite valid_min or valid_max (some writers store -Inf/+Inf for
+	// "no limit") is read as an open bound; NaN bounds nothing and is refused.
+	if vm, err := s.boundAttr(v, "valid_min"); err != nil {
 		return err
 	} else if vm != nil {
 		vi.ValidMin = vm[0]
 	}
-	if vm, err := s.numAttr(v, "valid_max", true, 1); err != nil {
+	if vm, err := s.boundAttr(v, "valid_max"); err != nil {
 		return err
 	} else if vm != nil {
 		vi.ValidMax = vm[0]
