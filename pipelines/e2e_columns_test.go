@@ -62,9 +62,12 @@ var e2eCellTolerances = map[string]tol{
 	// the reference: 2 % of the level.
 	"gev_loc_m": {0, 2e-3}, "gev_scale_m": {0, 5e-3}, "gev_shape": {5e-3, 0},
 	"hm0_rl2y_m": {0, 3e-3}, "hm0_rl5y_m": {0, 3e-3}, "hm0_rl10y_m": {0, 3e-3},
-	"hm0_rl2y_lo_m": {0, 2e-2}, "hm0_rl2y_hi_m": {0, 2e-2}, "hm0_rl5y_lo_m": {0, 2e-2}, "hm0_rl5y_hi_m": {0, 2e-2},
-	"hm0_rl10y_lo_m": {0, 2e-2}, "hm0_rl10y_hi_m": {0, 2e-2},
 }
+
+// e2eDeltaTolerance: the delta-method bounds (extremes.parquet
+// hm0_delta_lo_m/hm0_delta_hi_m) against the reference's, whose Hessian is a
+// finite difference of scipy's nnlf: 2 % of the level.
+var e2eDeltaTolerance = tol{0, 2e-2}
 
 // e2eNotCompared: columns of the fixture run that the reference does not
 // compute yet, with what the test checks of them instead.
@@ -73,6 +76,9 @@ var e2eNotCompared = map[string]string{
 	"steps": "the steps of the files", "gev_years": "12 complete years",
 	"dir_max_power_deg": "bulk: the mean direction (README)", "directionality": "null on bulk", "width_mean": "null on bulk",
 	"bad_bins": "0 on bulk", "invalid_values": "0", "rejected_steps": "0", "qc_flags": "no no_data",
+	"hm0_rl2y_lo_m": "profile interval: equals extremes.parquet, brackets the level (values against R evd in the extremes tests)",
+	"hm0_rl5y_lo_m": "profile interval: as above", "hm0_rl10y_lo_m": "profile interval: as above",
+	"hm0_rl2y_hi_m": "profile interval: as above", "hm0_rl5y_hi_m": "profile interval: as above", "hm0_rl10y_hi_m": "profile interval: as above",
 	"te_rl2y_s": "not compared", "te_rl5y_s": "not compared", "te_rl10y_s": "not compared",
 	"hm0_pot_rl2y_m": "not compared", "hm0_pot_rl5y_m": "not compared", "hm0_pot_rl10y_m": "not compared",
 	"hm0_pot_rl2y_lo_m": "not compared", "hm0_pot_rl5y_lo_m": "not compared", "hm0_pot_rl10y_lo_m": "not compared",
@@ -256,7 +262,7 @@ func TestE2EColumnsAgainstNumpy(t *testing.T) {
 
 	// extremes.parquet, the GEV rows: the levels and bounds of cells.parquet.
 	ep := filepath.Join(out, "extremes.parquet")
-	x, err := parquetread.Columns(ep, "cell_id", "method", "return_period_y", "hm0_m", "hm0_lo_m", "hm0_hi_m", "loc_or_threshold_m", "scale_m", "shape", "n")
+	x, err := parquetread.Columns(ep, "cell_id", "method", "return_period_y", "hm0_m", "hm0_lo_m", "hm0_hi_m", "hm0_delta_lo_m", "hm0_delta_hi_m", "loc_or_threshold_m", "scale_m", "shape", "n")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -268,11 +274,27 @@ func TestE2EColumnsAgainstNumpy(t *testing.T) {
 		seen++
 		rc := ref.Cells[x["cell_id"][i].(int64)]
 		tag := periodTag(x["return_period_y"][i].(float64))
-		for c, want := range map[string]string{"hm0_m": "hm0_rl" + tag + "y_m", "hm0_lo_m": "hm0_rl" + tag + "y_lo_m", "hm0_hi_m": "hm0_rl" + tag + "y_hi_m",
+		for c, want := range map[string]string{"hm0_m": "hm0_rl" + tag + "y_m",
 			"loc_or_threshold_m": "gev_loc_m", "scale_m": "gev_scale_m", "shape": "gev_shape"} {
 			if got := asFloat(x[c][i]); !near(got, asFloat(rc[want]), e2eCellTolerances[want]) {
 				t.Errorf("extremes.parquet cell %d T=%s: %s = %.6g, scipy %.6g", x["cell_id"][i], tag, c, got, asFloat(rc[want]))
 			}
+		}
+		// The delta-method pair against the reference's delta-method bounds.
+		for c, want := range map[string]string{"hm0_delta_lo_m": "hm0_rl" + tag + "y_lo_m", "hm0_delta_hi_m": "hm0_rl" + tag + "y_hi_m"} {
+			if got := asFloat(x[c][i]); !near(got, asFloat(rc[want]), e2eDeltaTolerance) {
+				t.Errorf("extremes.parquet cell %d T=%s: %s = %.6g, scipy delta method %.6g", x["cell_id"][i], tag, c, got, asFloat(rc[want]))
+			}
+		}
+		// The default (profile-likelihood) interval: the same numbers in
+		// both tables, and around the level.
+		id := x["cell_id"][i].(int64)
+		lo, hi, rl := asFloat(x["hm0_lo_m"][i]), asFloat(x["hm0_hi_m"][i]), asFloat(x["hm0_m"][i])
+		if clo, chi := num("hm0_rl" + tag + "y_lo_m")[id], num("hm0_rl" + tag + "y_hi_m")[id]; clo != lo || chi != hi {
+			t.Errorf("cell %d T=%s: cells.parquet interval [%g, %g], extremes.parquet [%g, %g]", id, tag, clo, chi, lo, hi)
+		}
+		if !(lo > 0 && lo < rl && rl < hi) {
+			t.Errorf("cell %d T=%s: profile interval [%g, %g] does not bracket the level %g", id, tag, lo, hi, rl)
 		}
 		if n := x["n"][i].(int64); n != 12 {
 			t.Errorf("extremes.parquet cell %d: n = %d annual maxima, want 12", x["cell_id"][i], n)
