@@ -19,7 +19,8 @@
 // The package works on plain numbers; it must not know about NetCDF, files,
 // grids, tables or the pipeline.
 //
-// Contours are screening estimates (see Caution).
+// Contours are screening estimates; the one caution text that goes with
+// them is stats.Caution.
 package design
 
 import (
@@ -30,12 +31,6 @@ import (
 	"gonum.org/v1/gonum/optimize"
 	"gonum.org/v1/gonum/stat/distuv"
 )
-
-// Caution goes with every output carrying design sea states.
-const Caution = "Environmental contours from swellgrid are screening estimates of joint Hm0-Te extremes from a " +
-	"statistical model fitted to a modelled (hindcast) record. They are not design values: survival and mooring " +
-	"design follow the applicable design standards (e.g. DNV-RP-C205, IEC TS 62600-2), site measurements and review " +
-	"by qualified engineers."
 
 // Weibull3 is the 3-parameter Weibull distribution
 //
