@@ -22,7 +22,8 @@ func newDemoCmd() *cobra.Command {
 		Use:   "demo [--out DIR]",
 		Short: "Write the built-in synthetic hindcast and run the whole job on it",
 		Long: `demo writes a small invented hindcast (the Nullport Shelf: a made-up coast with
-shelf depths from 15 to 200 m, 3 years 3-hourly, bulk fields on a 40 x 30 grid and
+shelf depths from 15 to 200 m: 30 years of 3-hourly bulk fields on a 16 x 12 grid,
+so that the extremes and design sea states have a record to rest on, and 3 years of
 directional spectra at 12 offshore points; every file says it is synthetic), then
 runs the whole pipeline on the bulk grid and on the spectral points, and prints what
 it wrote and which files to open in GIS software.
