@@ -212,6 +212,27 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 		}
 		return nil
 	}
+	// floatVar adds a compressed double variable with a NaN fill, its
+	// attributes and its values.
+	floatVar := func(name string, dims []netcdf.Dim, c *rundir.Column, long string, vals []float64) error {
+		v, err := ds.AddVar(name, netcdf.DOUBLE, dims)
+		if err != nil {
+			return err
+		}
+		if err := v.SetCompression(true, true, 4); err != nil {
+			return err
+		}
+		if err := v.Attr("_FillValue").WriteFloat64s([]float64{math.NaN()}); err != nil {
+			return err
+		}
+		if err := attrs(v, c, long); err != nil {
+			return err
+		}
+		if err := v.WriteFloat64s(vals); err != nil {
+			return fmt.Errorf("variable %s: %w", name, err)
+		}
+		return nil
+	}
 	for _, c := range r.Cells.Columns {
 		if !c.Numeric() || c.Name == "lon" || c.Name == "lat" {
 			continue
@@ -222,21 +243,8 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 		}
 		switch c.Kind {
 		case rundir.Float:
-			v, err := ds.AddVar(c.Name, netcdf.DOUBLE, dims2)
-			if err != nil {
+			if err := floatVar(c.Name, dims2, c, long, c.Float); err != nil {
 				return err
-			}
-			if err := v.SetCompression(true, true, 4); err != nil {
-				return err
-			}
-			if err := v.Attr("_FillValue").WriteFloat64s([]float64{math.NaN()}); err != nil {
-				return err
-			}
-			if err := attrs(v, c, long); err != nil {
-				return err
-			}
-			if err := v.WriteFloat64s(c.Float); err != nil {
-				return fmt.Errorf("variable %s: %w", c.Name, err)
 			}
 		case rundir.Int:
 			v, err := ds.AddVar(c.Name, netcdf.INT64, dims2)
@@ -275,22 +283,9 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 		{"power_monthly_mean_kw_m", "power_mean_kw_m", "", "mean wave power J of each calendar month over the included years"},
 		{"hm0_monthly_mean_m", "hm0_mean_m", "sea_surface_wave_significant_height", "mean significant wave height Hm0 of each calendar month over the included years"},
 	} {
-		v, err := ds.AddVar(cv.name, netcdf.DOUBLE, []netcdf.Dim{md, yd, xd})
-		if err != nil {
-			return err
-		}
-		if err := v.SetCompression(true, true, 4); err != nil {
-			return err
-		}
-		if err := v.Attr("_FillValue").WriteFloat64s([]float64{math.NaN()}); err != nil {
-			return err
-		}
 		c := &rundir.Column{Unit: monthly.Col(cv.col).Unit, StandardName: cv.std, CellMethods: "time: mean"}
-		if err := attrs(v, c, cv.long); err != nil {
+		if err := floatVar(cv.name, []netcdf.Dim{md, yd, xd}, c, cv.long, clim[cv.col]); err != nil {
 			return err
-		}
-		if err := v.WriteFloat64s(clim[cv.col]); err != nil {
-			return fmt.Errorf("variable %s: %w", cv.name, err)
 		}
 	}
 	return nil
