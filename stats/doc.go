@@ -8,5 +8,8 @@
 //     (means, histograms, monthly and seasonal means, joint occurrence, weather
 //     windows, device yield);
 //   - stats/extremes: annual maxima and storm peaks, GEV and GPD fits, return
-//     levels with confidence intervals and quality flags.
+//     levels with confidence intervals and quality flags;
+//   - stats/validate: error statistics of a modelled series against a
+//     measured one (bias, RMSE, scatter index, r, slopes, quantiles,
+//     circular statistics), by month, season and storm tail.
 package stats
