@@ -24,6 +24,8 @@ export SWELLGRID_NODE_CACHE
 STATICCHECK_VERSION := v0.8.2
 # the report's browser check (headless chromium) and its colour-map reference
 TEST_DEBS  += chromium python3-matplotlib
+# screening geometry references (GEOS validity, point-in-polygon, geodesics and areas)
+TEST_DEBS  += python3-shapely python3-pyproj
 
 .PHONY: all deps test-deps build demo test lint mutants bench fuzz soak clean
 
