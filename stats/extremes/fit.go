@@ -23,6 +23,7 @@ type GEVFit struct {
 	Converged bool          // the optimiser stopped on a convergence criterion at a finite optimum
 	InfoOK    bool          // the observed information matrix is positive definite
 	N         int           // number of maxima used (finite values)
+	OptErr    error         // the optimiser's error when the search failed with one (Converged is then false)
 }
 
 // GPDFit is a maximum-likelihood GPD fit to storm peaks above a threshold.
@@ -35,7 +36,8 @@ type GPDFit struct {
 	LogLik       float64
 	Converged    bool
 	InfoOK       bool
-	N            int // number of peaks above the threshold
+	N            int   // number of peaks above the threshold
+	OptErr       error // the optimiser's error when the search failed with one (Converged is then false)
 }
 
 // minShapeML is the lower bound on Shape for the likelihood searches: for
@@ -174,40 +176,45 @@ func gpdPWMStart(sortedExcess []float64) GPD {
 	return GPD{Scale: (1 + k) * l1, Shape: -k}
 }
 
-// minimise runs gonum's BFGS from x0 on f (with analytic gradient) and, if that
-// does not end on a convergence criterion, Nelder-Mead from x0 followed by BFGS
-// again. It returns the optimum and whether it converged.
-func minimise(f func(x, grad []float64) float64, x0 []float64, gradTol float64) ([]float64, float64, bool) {
-	p := optimize.Problem{
-		Func: func(x []float64) float64 { return f(x, nil) },
-		Grad: func(grad, x []float64) { f(x, grad) },
-	}
-	settings := &optimize.Settings{
+// minimise runs BFGS (bfgsSync) from x0 on f and, if that does not end on a
+// convergence criterion, gonum's Nelder-Mead from x0 followed by BFGS again.
+// It returns the optimum, whether it converged, and the optimiser's error
+// when the search failed with one (then converged is false): a caller turns
+// that into FlagNoConvergence, never into a published value.
+func minimise(f objective, x0 []float64, gradTol float64) ([]float64, float64, bool, error) {
+	settings := localSettings{
 		GradientThreshold: gradTol,
 		MajorIterations:   200,
 		Converger:         &optimize.FunctionConverge{Absolute: 1e-12, Relative: 1e-12, Iterations: 25},
 	}
-	ok := func(r *optimize.Result, err error) bool {
-		if r == nil || math.IsInf(r.F, 0) || math.IsNaN(r.F) {
+	ok := func(loc optimize.Location, st optimize.Status, err error) bool {
+		if math.IsInf(loc.F, 0) || math.IsNaN(loc.F) {
 			return false
 		}
-		return err == nil && (r.Status == optimize.GradientThreshold || r.Status == optimize.FunctionConvergence)
+		return err == nil && (st == optimize.GradientThreshold || st == optimize.FunctionConvergence)
 	}
-	r, err := optimize.Minimize(p, x0, settings, &optimize.BFGS{})
-	if ok(r, err) {
-		return r.X, r.F, true
+	r, st, err := bfgsSync(f, x0, settings)
+	if ok(r, st, err) {
+		return r.X, r.F, true, nil
 	}
-	nm, err := optimize.Minimize(optimize.Problem{Func: p.Func}, x0, &optimize.Settings{MajorIterations: 2000,
-		Converger: &optimize.FunctionConverge{Absolute: 1e-12, Relative: 1e-12, Iterations: 50}}, &optimize.NelderMead{})
-	if nm == nil || math.IsInf(nm.F, 0) {
-		if r != nil && !math.IsInf(r.F, 0) {
-			return r.X, r.F, false
+	nm, nmErr := optimize.Minimize(optimize.Problem{Func: func(x []float64) float64 { return f(x, nil) }}, x0,
+		&optimize.Settings{MajorIterations: 2000,
+			Converger: &optimize.FunctionConverge{Absolute: 1e-12, Relative: 1e-12, Iterations: 50}}, &optimize.NelderMead{})
+	if nmErr != nil || nm == nil || math.IsInf(nm.F, 0) || math.IsNaN(nm.F) {
+		if nmErr == nil {
+			nmErr = err
 		}
-		return x0, f(x0, nil), false
+		if nmErr == nil {
+			nmErr = fmt.Errorf("extremes: no finite optimum (BFGS stopped with status %v)", st)
+		}
+		if !math.IsInf(r.F, 0) && !math.IsNaN(r.F) {
+			return r.X, r.F, false, fmt.Errorf("extremes: Nelder-Mead fallback: %w", nmErr)
+		}
+		return x0, f(x0, nil), false, fmt.Errorf("extremes: Nelder-Mead fallback: %w", nmErr)
 	}
-	r2, err := optimize.Minimize(p, nm.X, settings, &optimize.BFGS{})
-	if ok(r2, err) {
-		return r2.X, r2.F, true
+	r2, st2, err2 := bfgsSync(f, nm.X, settings)
+	if ok(r2, st2, err2) {
+		return r2.X, r2.F, true, nil
 	}
 	// Nelder-Mead's own convergence still counts if the gradient there is small.
 	g := make([]float64, len(x0))
@@ -218,7 +225,7 @@ func minimise(f func(x, grad []float64) float64, x0 []float64, gradTol float64) 
 			small = false
 		}
 	}
-	return nm.X, fv, small
+	return nm.X, fv, small, nil
 }
 
 // observedInfo returns the Hessian of the negative log-likelihood at x by
@@ -286,9 +293,9 @@ func FitGEV(x []float64) (GEVFit, error) {
 		// The moment estimate can put an observation outside the support; start from Gumbel.
 		x0[2] = 0
 	}
-	xo, nll, conv := minimise(f, x0, 1e-7*float64(len(z)))
+	xo, nll, conv, oerr := minimise(f, x0, 1e-7*float64(len(z)))
 	fit := GEVFit{GEV: GEV{Loc: xo[0], Scale: math.Exp(xo[1]), Shape: xo[2]}, Start: start,
-		LogLik: -nll, Converged: conv && !math.IsInf(nll, 0), N: len(z)}
+		LogLik: -nll, Converged: conv && oerr == nil && !math.IsInf(nll, 0), N: len(z), OptErr: oerr}
 	// Gradient in (Loc, Scale, Shape) for the information matrix.
 	gradNat := func(p, g []float64) {
 		q := []float64{p[0], math.Log(p[1]), p[2]}
@@ -336,9 +343,9 @@ func FitGPD(excessesOrPeaks []float64, threshold float64, peaksPerYear float64) 
 	if math.IsInf(f(x0, nil), 1) {
 		x0[1] = 0
 	}
-	xo, nll, conv := minimise(f, x0, 1e-7*float64(len(y)))
+	xo, nll, conv, oerr := minimise(f, x0, 1e-7*float64(len(y)))
 	fit := GPDFit{GPD: GPD{Threshold: threshold, Scale: math.Exp(xo[0]), Shape: xo[1]}, Start: start,
-		PeaksPerYear: peaksPerYear, LogLik: -nll, Converged: conv && !math.IsInf(nll, 0), N: len(y)}
+		PeaksPerYear: peaksPerYear, LogLik: -nll, Converged: conv && oerr == nil && !math.IsInf(nll, 0), N: len(y), OptErr: oerr}
 	gradNat := func(p, g []float64) {
 		q := []float64{math.Log(p[0]), p[1]}
 		gpdNegLogLik(q, g, y)

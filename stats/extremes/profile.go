@@ -61,8 +61,8 @@ func (f GEVFit) ProfileGEV(T float64, z []float64, limit float64) (lo, hi float6
 		if math.IsInf(nll(x0, nil), 1) {
 			return math.Inf(1), start, false
 		}
-		xo, v, conv := minimise(nll, x0, 1e-7*float64(len(zs)))
-		return v, xo, conv
+		xo, v, conv, err := minimise(nll, x0, 1e-7*float64(len(zs)))
+		return v, xo, conv && err == nil
 	}
 	step := f.StdErr[0]
 	if sd := deltaSD(f, T); sd > 0 && !math.IsNaN(sd) {
@@ -125,8 +125,8 @@ func (f GPDFit) ProfileGPD(T float64, peaks []float64, limit float64) (lo, hi fl
 		if math.IsInf(nll(x0, nil), 1) {
 			return math.Inf(1), start, false
 		}
-		xo, v, conv := minimise(nll, x0, 1e-7*float64(len(y)))
-		return v, xo, conv
+		xo, v, conv, err := minimise(nll, x0, 1e-7*float64(len(y)))
+		return v, xo, conv && err == nil
 	}
 	step := math.NaN()
 	if _, l, h := f.ReturnLevel(T); h > l {
