@@ -16,6 +16,9 @@ const (
 	Curvilinear
 	// Points is an unstructured set of stations or nodes.
 	Points
+	// MeshKind is a 2-D unstructured mesh (UGRID 1.0) whose cells are its
+	// nodes or its faces (Grid.Mesh).
+	MeshKind
 )
 
 func (k Kind) String() string {
@@ -26,6 +29,8 @@ func (k Kind) String() string {
 		return "curvilinear"
 	case Points:
 		return "points"
+	case MeshKind:
+		return "mesh"
 	}
 	return "unknown"
 }
@@ -34,7 +39,8 @@ func (k Kind) String() string {
 // which gives every cell a stable id (its index): for a regular grid, rows of
 // ascending latitude, each of ascending longitude (after normalisation to
 // [-180, 180)); for a curvilinear grid, the file's (y, x) order; for a point
-// set, the file's station order. The canonical order does not depend on how a
+// set, the file's station order; for a mesh, the Hilbert-curve order of its
+// nodes or faces (NewMesh). The canonical order does not depend on how a
 // file stores its axes, so ids agree between files and runs.
 type Grid struct {
 	Kind   Kind
@@ -43,8 +49,12 @@ type Grid struct {
 	Lat    []float64 // per cell, degrees north
 
 	// For Regular grids: the file index along each axis of canonical column
-	// ix (XFromFile) and row iy (YFromFile); for other kinds these are identity.
+	// ix (XFromFile) and row iy (YFromFile); for a mesh, XFile is the file
+	// index (node or face) of each cell; for other kinds these are identity.
 	XFile, YFile []int
+
+	// Mesh is the topology of a MeshKind grid (nil for other kinds).
+	Mesh *Mesh
 }
 
 // NCells is the number of cells.
@@ -188,6 +198,9 @@ func (g *Grid) Same(o *Grid) (bool, string) {
 			return false, fmt.Sprintf("cell %d at (%g, %g) vs (%g, %g)", i, g.Lon[i], g.Lat[i], o.Lon[i], o.Lat[i])
 		}
 	}
+	if g.Kind == MeshKind {
+		return sameMesh(g.Mesh, o.Mesh)
+	}
 	return true, ""
 }
 
@@ -213,5 +226,9 @@ func (g *Grid) Bounds() (minLon, minLat, maxLon, maxLat float64) {
 }
 
 // Structured reports whether the grid has a (y, x) node structure that can be
-// contoured.
-func (g *Grid) Structured() bool { return g.Kind != Points }
+// contoured by marching squares (meshes are contoured on their triangles).
+func (g *Grid) Structured() bool { return g.Kind == Regular || g.Kind == Curvilinear }
+
+// Unstructured reports whether the cells are a list (a point set or a mesh)
+// read along one dimension of the files.
+func (g *Grid) Unstructured() bool { return g.Kind == Points || g.Kind == MeshKind }
