@@ -68,7 +68,7 @@ func radial(x, y float64) float64 { return math.Hypot(x-cx0, y-cy0) }
 // TestTriIsolinesCircles: the isolines of the radial field r (distance from
 // (cx0, cy0)) are circles of radius = level (exact curve, geometry). The
 // linear interpolant of r on a triangle of size h departs from r by at most
-// about h^2/(8 r) (interpolation error bound |f''| h^2 / 8 with f'' = 1/r
+// about h^2/(8 r) (interpolation error bound |f”| h^2 / 8 with f” = 1/r
 // across the circle; common practice), so every isoline point must lie
 // within 2e-3 of the circle on this mesh (h about 0.033 with jitter) and
 // each closed line's length within 0.5% of 2 pi r.

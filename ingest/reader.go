@@ -262,7 +262,16 @@ func (c *Catalog) gather(path string, vi *VarInfo, g *grid.Grid, invX, invY []in
 	count := make([]uint64, rank)
 	// Spatial extent in file indices.
 	var y0, y1 int
-	if g.Kind != grid.Points {
+	p0, p1 := c0, c1 // file range of a point set or mesh
+	if g.Kind == grid.MeshKind {
+		// A mesh's cells (Hilbert order) come from the file range that
+		// holds them; compact when the file's order is spatially coherent.
+		p0, p1 = math.MaxInt, -1
+		for _, fx := range g.XFile[c0:c1] {
+			p0, p1 = min(p0, fx), max(p1, fx+1)
+		}
+	}
+	if g.Structured() {
 		iy0, iy1 := c0/g.NX, (c1-1)/g.NX
 		y0, y1 = math.MaxInt, -1
 		for iy := iy0; iy <= iy1; iy++ {
@@ -278,7 +287,7 @@ func (c *Catalog) gather(path string, vi *VarInfo, g *grid.Grid, invX, invY []in
 		case axX:
 			count[k] = v.shape[k]
 		case axP:
-			start[k], count[k] = uint64(c0), uint64(c1-c0)
+			start[k], count[k] = uint64(p0), uint64(p1-p0)
 		default:
 			count[k] = v.shape[k]
 		}
@@ -330,9 +339,12 @@ func (c *Catalog) gather(path string, vi *VarInfo, g *grid.Grid, invX, invY []in
 			}
 		}
 		var cell int
-		if g.Kind == grid.Points {
+		switch g.Kind {
+		case grid.Points:
 			cell = fx
-		} else {
+		case grid.MeshKind:
+			cell = invX[fx]
+		default:
 			cell = invY[fy]*g.NX + invX[fx]
 		}
 		if cell >= c0 && cell < c1 {

@@ -21,6 +21,7 @@ type scan struct {
 	warnings []string
 	vars     []VarSummary // the file's data variables (for a refusal's listing)
 	names    []string     // station names of a point set, canonical order
+	mesh     *meshInfo    // a UGRID mesh (ugrid.go); nil otherwise
 	invX     []int
 	invY     []int
 }
@@ -322,6 +323,9 @@ func (s *scan) coordVar(stdName, unitsPrefix string) []*ncVar {
 // over (time, station), as spectral point output often does; they must then
 // be constant in time (within 1e-6 degree).
 func (s *scan) findGrid(timeDim string) error {
+	if found, err := s.findMesh(timeDim); found || err != nil {
+		return err
+	}
 	lons := s.coordVar("longitude", "degrees_east")
 	lats := s.coordVar("latitude", "degrees_north")
 	pick := func(vs []*ncVar) *ncVar {
@@ -473,6 +477,9 @@ func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
 		}
 		v = found[0]
 	}
+	if err := s.checkMeshRole(v, r); err != nil {
+		return nil, err
+	}
 	vi := &VarInfo{Role: r, Name: v.name, StandardName: v.str("standard_name"), Dims: v.dims, Type: v.typ.String(), v: v}
 	vi.DirTo = strings.Contains(vi.StandardName, "_to_direction")
 	// Axes and rank.
@@ -489,7 +496,7 @@ func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
 		}
 	}
 	wantSpat := 2
-	if s.grid.Kind == grid.Points {
+	if s.grid.Unstructured() {
 		wantSpat = 1
 	}
 	other := len(v.dims) - nspat
@@ -504,6 +511,9 @@ func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
 	}
 	if nspat != wantSpat || other != wo || (!static(r) && !hasT) {
 		spat := map[bool]string{true: "station", false: "y, x"}[wantSpat == 1]
+		if s.mesh != nil {
+			spat = s.mesh.dim()
+		}
 		expect := "(time, " + spat
 		switch r {
 		case Spectrum2D:

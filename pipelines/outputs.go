@@ -54,9 +54,9 @@ func (e *engine) writeOutputs(out string, res []*cellResult) ([]string, []string
 		}
 		written = append(written, f)
 	}
-	g := e.cat.Grid
-	if !g.Structured() {
-		warns = append(warns, "no contour layers: the grid is a point set, which has no cells to contour between; use cells.parquet as points")
+	contour, why := contourer(e.cat.Grid, e.cat.Masked)
+	if contour == nil {
+		warns = append(warns, why)
 		return written, warns, nil
 	}
 	byName := map[string]*export.Column{}
@@ -70,7 +70,6 @@ func (e *engine) writeOutputs(out string, res []*cellResult) ([]string, []string
 			warns = append(warns, fmt.Sprintf("no contours for %s: not a numeric column", col))
 			continue
 		}
-		f := &grid.Field{NX: g.NX, NY: g.NY, Lon: g.Lon, Lat: g.Lat, Value: vals, Mask: e.cat.Masked}
 		levels := e.spec.Contours.Levels[col]
 		if len(levels) == 0 {
 			lo, hi := math.Inf(1), math.Inf(-1)
@@ -85,14 +84,10 @@ func (e *engine) writeOutputs(out string, res []*cellResult) ([]string, []string
 			warns = append(warns, fmt.Sprintf("no contours for %s: the column has no spread of values", col))
 			continue
 		}
-		lines, err := grid.Isolines(f, levels)
+		edges := append(append([]float64{math.Inf(-1)}, levels...), math.Inf(1))
+		lines, bands, err := contour(vals, levels, edges)
 		if err != nil {
 			return nil, nil, fmt.Errorf("contours of %s: %v", col, err)
-		}
-		edges := append(append([]float64{math.Inf(-1)}, levels...), math.Inf(1))
-		bands, err := grid.Bands(f, edges)
-		if err != nil {
-			return nil, nil, fmt.Errorf("contour bands of %s: %v", col, err)
 		}
 		if err := export.WriteContours(out, col, c.Unit, levels, lines, edges, bands); err != nil {
 			return nil, nil, fmt.Errorf("writing contours of %s: %v", col, err)

@@ -63,6 +63,9 @@ func TestMain(m *testing.M) {
 	if demoOnce.dir != "" {
 		os.RemoveAll(demoOnce.dir)
 	}
+	if pairDir != "" {
+		os.RemoveAll(pairDir) // mesh_test.go
+	}
 	os.Exit(code)
 }
 
