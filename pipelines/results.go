@@ -28,6 +28,7 @@ type cellResult struct {
 	maxima  []extremes.Maximum
 	ladder  []extremes.ThresholdRow // threshold diagnostics
 	design  *cellDesign             // design sea states (nil: not asked or no data)
+	dirs    []climate.DirectionRow  // directional distribution (nil: no step with power and direction)
 }
 
 // finish computes the results of one cell from its state (fits included).
@@ -39,6 +40,7 @@ func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResu
 		r.dirMax = r.sum.DirMeanDeg
 	}
 	r.monthly, r.season, r.scatter, r.exceed, r.windows = c.clim.MonthlyOver(e.recordMonths()), c.clim.Seasonal(), c.clim.Scatter(), c.clim.Exceedance(), c.clim.Windows()
+	r.dirs = c.clim.Directions()
 	if r.sum.Steps > 0 {
 		cfg := acfg
 		if e.spec.Extremes.ThresholdRule == "quantile" {

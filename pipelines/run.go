@@ -133,6 +133,7 @@ func (s *Spec) climateConfig(cat *ingest.Catalog) (*climate.Config, error) {
 	c.WindowLimitsM = append([]float64(nil), s.Statistics.WindowLimitsM...)
 	c.WindowDurationsH = append([]float64(nil), s.Statistics.WindowDurationsH...)
 	c.CoverageMin = s.Statistics.CoverageMin
+	c.DirectionSectors = s.Statistics.DirectionSectors
 	for i, d := range s.Devices {
 		// The bytes Validate read (bounded) and fingerprinted.
 		b, ok := s.namedData(fmt.Sprintf("device[%d].power_matrix", i))

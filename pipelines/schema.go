@@ -494,6 +494,7 @@ var longSchemas = []longTable{
 	longSchema[extremesRow]{"extremes", extremesSchema, extremesRows},
 	longSchema[extremes.ThresholdRow]{"threshold_diagnostics", thresholdSchema, ladderRows},
 	longSchema[designRow]{"design", designSchema, designRows},
+	longSchema[climate.DirectionRow]{"directions", directionsSchema, directionRows},
 }
 
 func specsOf[R any](file string, cols []column[R]) []ColumnSpec {
@@ -767,3 +768,24 @@ func designRows(r *cellResult) []designRow {
 	}
 	return out
 }
+
+type dirRow = longRow[climate.DirectionRow]
+
+// directionsSchema: the directional distribution of power and occurrence,
+// one row per direction sector (statistics.direction_sectors), from the
+// mean direction on bulk input and from the directional spectrum on 2-D
+// spectral input (stats/climate directions.go, seastate.Kernel.SectorPowers).
+var directionsSchema = []column[dirRow]{
+	cellID[climate.DirectionRow](),
+	cellName[climate.DirectionRow](),
+	i64Col("sector", "1", "", "", "direction sector, 0 centred on north, numbered clockwise", func(x dirRow) int64 { return int64(x.v.Sector) }),
+	f64Col("sector_centre_deg", "degree", "", "", "centre of the sector, direction the waves come from (nautical, clockwise from north)", func(x dirRow) float64 { return x.v.CentreDeg }),
+	f64Col("sector_from_deg", "degree", "", "", "clockwise start of the sector (included)", func(x dirRow) float64 { return x.v.FromDeg }),
+	f64Col("sector_to_deg", "degree", "", "", "clockwise end of the sector (excluded)", func(x dirRow) float64 { return x.v.ToDeg }),
+	f64Col("power_share", "1", "", "", "share of the record's wave energy arriving from the sector", func(x dirRow) float64 { return x.v.PowerShare }),
+	f64Col("occurrence_share", "1", "", "", "share of the time whose mean wave direction lies in the sector", func(x dirRow) float64 { return x.v.OccurrenceShare }),
+	f64Col("power_mean_kw_m", "kW/m", "", "time: mean", "time-mean wave power arriving from the sector (the sectors sum to the mean power of the steps with a direction)", func(x dirRow) float64 { return x.v.PowerMeanKWm }),
+	f64Col("occurrence_hours", "h", "", "", "time whose mean wave direction lies in the sector", func(x dirRow) float64 { return x.v.OccurrenceHours }),
+}
+
+func directionRows(r *cellResult) []climate.DirectionRow { return r.dirs }

@@ -16,6 +16,8 @@ import (
 	"strings"
 
 	"github.com/BurntSushi/toml"
+
+	"swellgrid/stats/climate"
 )
 
 // Spec is a run spec: everything a run needs besides its input files' content.
@@ -88,6 +90,7 @@ type StatisticsSpec struct {
 	WindowLimitsM    []float64 `toml:"window_limits_m" json:"window_limits_m"`
 	WindowDurationsH []float64 `toml:"window_durations_h" json:"window_durations_h"`
 	CoverageMin      float64   `toml:"coverage_min" json:"coverage_min"`
+	DirectionSectors int       `toml:"direction_sectors" json:"direction_sectors"`
 }
 
 // ExtremesSpec holds the extreme-value settings.
@@ -169,7 +172,8 @@ func DefaultSpec() *Spec {
 		Depth:   DepthSpec{Source: "file"},
 		Physics: PhysicsSpec{Rho: 1025, G: 9.81, TeOverTp: 0.9},
 		Statistics: StatisticsSpec{Hm0BinM: 0.05, Percentiles: []float64{10, 50, 90, 99}, ScatterHm0BinM: 0.5, ScatterTeBinS: 1,
-			WindowLimitsM: []float64{1.5, 2.0, 2.5}, WindowDurationsH: []float64{6, 12, 24, 48}, CoverageMin: 0.8},
+			WindowLimitsM: []float64{1.5, 2.0, 2.5}, WindowDurationsH: []float64{6, 12, 24, 48}, CoverageMin: 0.8,
+			DirectionSectors: climate.DefaultDirectionSectors},
 		Extremes: ExtremesSpec{ReturnPeriodsY: []float64{1, 5, 10, 25, 50, 100}, YearStartMonth: 1, SeparationH: 48,
 			ThresholdRule: "quantile", ThresholdQuantile: 0.99, PeaksPerYear: 5, MinYears: 10, Seed: 1,
 			MinPeaks: 20, ShapeRange: []float64{-0.5, 0.5}, MaxExtrapolation: 4, BreakingRatio: 0.6},
@@ -290,6 +294,9 @@ func (s *Spec) Validate() error {
 	}
 	if !(st.CoverageMin > 0 && st.CoverageMin <= 1) {
 		return bad("statistics.coverage_min", "must lie in (0, 1]", st.CoverageMin)
+	}
+	if st.DirectionSectors < climate.MinDirectionSectors || st.DirectionSectors > climate.MaxDirectionSectors {
+		return bad("statistics.direction_sectors", fmt.Sprintf("must lie in %d..%d (sectors of the directional distribution)", climate.MinDirectionSectors, climate.MaxDirectionSectors), st.DirectionSectors)
 	}
 	ex := s.Extremes
 	if err := increasing("extremes.return_periods_y", ex.ReturnPeriodsY, 0, 1e5); err != nil {

@@ -29,6 +29,7 @@ type engine struct {
 	ccfg     *climate.Config
 	xcfg     extremes.CollectorConfig
 	layout   *seastate.Layout
+	sectors  *seastate.SectorSplit // 2-D spectra: direction bins over the rose's sectors
 	consts   seastate.Consts
 	dtHours  float64
 	spectral bool
@@ -72,6 +73,11 @@ func newEngine(cat *ingest.Catalog, spec *Spec, ccfg *climate.Config) (*engine, 
 			return nil, fmt.Errorf("spectral layout: %v", err)
 		}
 		e.layout, e.spectral = l, true
+		if l.ND() > 0 {
+			if e.sectors, err = seastate.NewSectorSplit(l, ccfg.DirectionSectors); err != nil {
+				return nil, fmt.Errorf("spectral layout: %v", err)
+			}
+		}
 	}
 	return e, nil
 }
@@ -104,6 +110,10 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 	per := b.NF * b.ND
 	nan := math.NaN()
 	depths := b.Bulk[ingest.Depth] // per step when depth varies in time, else nil
+	var sectorJ []float64
+	if e.sectors != nil {
+		sectorJ = make([]float64, e.sectors.N())
+	}
 	for id := lo; id < hi; id++ {
 		c := cells[id-b.C0]
 		if c == nil {
@@ -129,6 +139,10 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 				}
 			}
 			c.clim.AddAt(&st.ct, j, hm0, te, tp, dir)
+			if sectorJ != nil && j == j { // j is valid only after a valid Params
+				c.kern.SectorPowers(e.sectors, sectorJ)
+				c.clim.AddDirectionalPower(&st.ct, sectorJ, dir)
+			}
 			c.col.Add(st.year, st.month, st.hours, hm0, te, tp)
 		}
 	}
@@ -181,6 +195,7 @@ func (e *engine) feedBulk(b *ingest.Block, times []stepTime, cells []*cell, lo, 
 				j = bd.Power(hm0, te, e.consts) // cg from the table, rel. error < 1e-9
 			}
 			c.clim.AddAt(&st.ct, j, hm0, te, tp, dir)
+			c.clim.AddDirection(&st.ct, j, dir)
 			c.col.Add(st.year, st.month, st.hours, hm0, te, tp)
 		}
 	}

@@ -9,10 +9,12 @@ import (
 
 // Checkpoint layout (little endian, fixed field order, so the same state
 // always gives the same bytes): magic "SGCS", version u16, config
-// fingerprint u64, the scalar fields, then each array with its length.
+// fingerprint u64, the scalar fields, then each array with its length;
+// version 3 added the directional distribution (count, minutes and power
+// sums per sector, then the minutes split over the sectors) at the end.
 const (
 	binMagic   = "SGCS"
-	binVersion = 2
+	binVersion = 3
 )
 
 type enc struct{ b []byte }
@@ -135,6 +137,12 @@ func (s *CellState) MarshalBinary() ([]byte, error) {
 			e.u64(v)
 		}
 	}
+	e.u64(uint64(len(s.rose.w)))
+	for k := range s.rose.w {
+		e.u64(s.rose.w[k])
+		e.u64(s.rose.j[k])
+	}
+	e.u64(s.rose.wJ)
 	return e.b, nil
 }
 
@@ -209,6 +217,11 @@ func (s *CellState) UnmarshalBinary(b []byte) error {
 			*p = d.u64()
 		}
 	}
+	arrLen(len(t.rose.w), "direction sectors")
+	for k := range t.rose.w {
+		t.rose.w[k], t.rose.j[k] = d.u64(), d.u64()
+	}
+	t.rose.wJ = d.u64()
 	if d.err != nil {
 		return d.err
 	}
@@ -222,5 +235,5 @@ func (s *CellState) UnmarshalBinary(b []byte) error {
 // approxBytes is the size of the checkpoint encoding.
 func (s *CellState) approxBytes() int {
 	return 4 + 2 + 8 + 27*16 + 4*(len(s.histH)+len(s.histJ)+len(s.scW)+len(s.winCnt)+len(s.winMin)) +
-		8*len(s.scJ) + 24*len(s.ym) + 64*len(s.runs) + 96*len(s.dev) + 128
+		8*len(s.scJ) + 24*len(s.ym) + 64*len(s.runs) + 96*len(s.dev) + 16*len(s.rose.w) + 144
 }

@@ -51,6 +51,11 @@ type Config struct {
 	// Devices whose yield is computed per cell (may be empty).
 	Devices []*Device
 
+	// DirectionSectors is the number of equal direction sectors of the
+	// directional distribution of power and occurrence (directions.go),
+	// MinDirectionSectors..MaxDirectionSectors.
+	DirectionSectors int
+
 	// set by Validate
 	valid       bool
 	fingerprint uint64
@@ -66,7 +71,8 @@ const MaxWindowHours = 28 * 24
 // histogram 0.05 m up to 20 m; power histogram 32 bins per doubling (relative
 // resolution 3.1 %) up to 16384 kW/m; percentiles 10, 50, 90, 99; scatter
 // 0.5 m x 1 s up to 10 m x 20 s; window limits 1.5, 2.0, 2.5 m and durations
-// 6, 12, 24, 48 h; coverage threshold 0.8; no devices.
+// 6, 12, 24, 48 h; coverage threshold 0.8; no devices; 16 direction
+// sectors.
 func DefaultConfig() *Config {
 	return &Config{
 		Calendar:               "standard",
@@ -82,6 +88,7 @@ func DefaultConfig() *Config {
 		WindowLimitsM:          []float64{1.5, 2.0, 2.5},
 		WindowDurationsH:       []float64{6, 12, 24, 48},
 		CoverageMin:            0.8,
+		DirectionSectors:       DefaultDirectionSectors,
 	}
 }
 
@@ -99,6 +106,7 @@ type layout struct {
 	durMin         []int64
 	maxDurMin      int64
 	nDev           int
+	nRose          int
 }
 
 func positiveFinite(x float64) bool { return x > 0 && !math.IsInf(x, 1) }
@@ -167,6 +175,9 @@ func (c *Config) Validate() error {
 	if !(c.CoverageMin > 0 && c.CoverageMin <= 1) {
 		bad("CoverageMin=%g: must be in (0, 1]", c.CoverageMin)
 	}
+	if c.DirectionSectors < MinDirectionSectors || c.DirectionSectors > MaxDirectionSectors {
+		bad("DirectionSectors=%d: must be %d..%d", c.DirectionSectors, MinDirectionSectors, MaxDirectionSectors)
+	}
 	seen := map[string]bool{}
 	for i, d := range c.Devices {
 		if d == nil {
@@ -201,6 +212,7 @@ func (c *Config) Validate() error {
 		l.maxDurMin = durMin[l.nDur-1]
 	}
 	l.nDev = len(c.Devices)
+	l.nRose = c.DirectionSectors
 	c.lay = l
 	c.fingerprint = c.computeFingerprint()
 	c.valid = true
@@ -216,6 +228,7 @@ func (c *Config) computeFingerprint() uint64 {
 	f := func(x float64) { w(strconv.FormatFloat(x, 'g', -1, 64)) }
 	w("swellgrid climate config v1")
 	w(c.Calendar)
+	w("direction sectors " + strconv.Itoa(c.DirectionSectors))
 	f(c.Hm0HistResM)
 	f(c.Hm0HistMaxM)
 	w(strconv.Itoa(c.PowerHistBitsPerOctave))
@@ -252,5 +265,5 @@ func (c *Config) StateBytes(years int) int {
 		4*(l.nHm0Hist+1) + 4*(l.nPowerHist+1) + 12*l.nScH*l.nScT +
 		8*l.nLim*l.nDur*12 + (2*int(unsafe.Sizeof(run{}))+1)*l.nLim +
 		int(unsafe.Sizeof(devAcc{}))*l.nDev +
-		int(unsafe.Sizeof(ymRec{}))*12*years
+		int(unsafe.Sizeof(ymRec{}))*12*years + 16*l.nRose
 }

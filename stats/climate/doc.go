@@ -5,7 +5,8 @@
 // monthly, seasonal and annual means with the monthly and seasonal
 // variability indices and the inter-annual coefficient of variation, with
 // years and months below a coverage threshold excluded and flagged; the joint
-// occurrence of Hm0 and Te with mean power per bin; exceedance curves; weather
+// occurrence of Hm0 and Te with mean power per bin; the directional
+// distribution of power and occurrence by sector; exceedance curves; weather
 // windows per Hm0 limit, minimum duration and calendar month; and the yield
 // of wave energy devices from their power matrices.
 //
@@ -20,9 +21,9 @@
 // windows are exact across block boundaries and merges: a state carries the
 // calm run open at each end of its record and Merge joins them.
 //
-// Size. A state with the default Config takes 10 663 bytes per cell plus 288
+// Size. A state with the default Config takes 10 975 bytes per cell plus 288
 // bytes per cell per year of record (the year-month sums); each device adds
-// 80 bytes, each window limit x duration 96 bytes and each limit 65 bytes. It
+// 80 bytes, each window limit x duration 96 bytes and each limit 65 bytes and each direction sector 16 bytes. It
 // does not grow with the number of time steps. Config.StateBytes gives the
 // figure for any Config; the histograms (3.5 KB) and the scatter table
 // (5.3 KB) dominate and shrink with coarser settings.

@@ -95,6 +95,7 @@ func (s *CellState) Merge(later *CellState) error {
 		a.eBelow += b.eBelow
 		a.eOut += b.eOut
 	}
+	s.rose.merge(&o.rose)
 	return nil
 }
 
@@ -174,8 +175,10 @@ func (s *CellState) mergeWindows(o *CellState, adjacent bool) {
 // copyFrom makes s a deep copy of o (same Config).
 func (s *CellState) copyFrom(o *CellState) {
 	histH, histJ, scW, scJ, ym := s.histH, s.histJ, s.scW, s.scJ, s.ym
-	winCnt, winMin, runs, leads, leadOpen, dev := s.winCnt, s.winMin, s.runs, s.leads, s.leadOpen, s.dev
+	winCnt, winMin, runs, leads, leadOpen, dev, rose := s.winCnt, s.winMin, s.runs, s.leads, s.leadOpen, s.dev, s.rose
 	*s = *o
+	s.rose = rose
+	s.rose.copyFrom(&o.rose)
 	s.histH, s.histJ, s.scW, s.scJ = histH, histJ, scW, scJ
 	s.winCnt, s.winMin, s.runs, s.leads, s.leadOpen, s.dev = winCnt, winMin, runs, leads, leadOpen, dev
 	copy(s.histH, o.histH)

@@ -105,6 +105,7 @@ type CellState struct {
 	// step (len 0 if that step was not calm).
 	leadOpen []bool
 	dev      []devAcc
+	rose     roseAcc // directional distribution, see directions.go
 }
 
 // NewCellState returns an empty state for cfg, which must have passed
@@ -125,6 +126,7 @@ func NewCellState(cfg *Config) *CellState {
 	s.leads = make([]run, l.nLim)
 	s.leadOpen = make([]bool, l.nLim)
 	s.dev = make([]devAcc, l.nDev)
+	s.rose = newRoseAcc(l.nRose)
 	s.Reset()
 	return s
 }
@@ -132,7 +134,8 @@ func NewCellState(cfg *Config) *CellState {
 // Reset empties the state, keeping its allocations.
 func (s *CellState) Reset() {
 	*s = CellState{cfg: s.cfg, histH: s.histH, histJ: s.histJ, scW: s.scW, scJ: s.scJ, ym: s.ym[:0],
-		winCnt: s.winCnt, winMin: s.winMin, runs: s.runs, leads: s.leads, leadOpen: s.leadOpen, dev: s.dev}
+		winCnt: s.winCnt, winMin: s.winMin, runs: s.runs, leads: s.leads, leadOpen: s.leadOpen, dev: s.dev, rose: s.rose}
+	s.rose.clear()
 	clear(s.histH)
 	clear(s.histJ)
 	clear(s.scW)
