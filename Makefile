@@ -87,7 +87,7 @@ BENCH_OUT   ?= bench-out
 BENCH_CACHE ?= $(HOME)/.cache/swellgrid-bench
 BENCH_BEFORE ?= 60c6ddd
 BENCH_PARTS ?= full,half
-BENCH_MICRO ?= FeedBulk|FeedSpectral|FinishBulk|GroupVelocity|BulkDepthPower|FitGEV|FitGPD|^BenchmarkAdd
+BENCH_MICRO ?= FeedBulk|FeedSpectral|FinishBulk|FitStage|GroupVelocity|BulkDepthPower|FitGEV|FitGPD|^BenchmarkAdd
 BENCHSTAT_VERSION := v0.0.0-20260908200009-22c9c6c9d4da
 bench: deps
 	@mkdir -p $(BENCH_OUT) bin

@@ -29,7 +29,9 @@ import (
 	"math"
 
 	"gonum.org/v1/gonum/optimize"
+
 	"gonum.org/v1/gonum/stat/distuv"
+	"swellgrid/stats/internal/localopt"
 )
 
 // Weibull3 is the 3-parameter Weibull distribution
@@ -187,17 +189,18 @@ func FitWeibull3(h Hist) (Weibull3, error) {
 }
 
 // minimiseNM minimises f by Nelder-Mead and polishes with BFGS on
-// finite-difference gradients (gonum optimize); ok if a finite optimum was found.
+// finite-difference gradients (gonum's methods, driven in the calling
+// goroutine by localopt with the optima of optimize.Minimize); ok if a finite
+// optimum was found.
 func minimiseNM(f func([]float64) float64, x0 []float64) ([]float64, bool) {
-	p := optimize.Problem{Func: f}
-	r, err := optimize.Minimize(p, x0, &optimize.Settings{MajorIterations: 4000,
-		Converger: &optimize.FunctionConverge{Absolute: 1e-11, Relative: 1e-11, Iterations: 40}}, &optimize.NelderMead{})
-	if r == nil || math.IsInf(r.F, 0) || math.IsNaN(r.F) {
+	r, err := localopt.NelderMead(f, x0, localopt.Settings{MajorIterations: 4000,
+		Converger: &optimize.FunctionConverge{Absolute: 1e-11, Relative: 1e-11, Iterations: 40}})
+	if err != nil || math.IsInf(r.F, 0) || math.IsNaN(r.F) {
+		// Nelder-Mead fails only where f is not finite at the start.
 		return nil, false
 	}
-	_ = err // Nelder-Mead reports its iteration limit as an error; the point found is still used
 	best := r.X
-	p.Grad = func(g, x []float64) {
+	grad := func(g, x []float64) {
 		for i := range x {
 			hstep := 1e-6 * math.Max(1, math.Abs(x[i]))
 			xp := append([]float64(nil), x...)
@@ -207,7 +210,7 @@ func minimiseNM(f func([]float64) float64, x0 []float64) ([]float64, bool) {
 			g[i] = (fp - f(xp)) / (2 * hstep)
 		}
 	}
-	if r2, err := optimize.Minimize(p, best, &optimize.Settings{MajorIterations: 200, GradientThreshold: 1e-9}, &optimize.BFGS{}); err == nil && r2 != nil && r2.F <= r.F {
+	if r2, err := localopt.BFGS(localopt.Problem{Func: f, Grad: grad}, best, localopt.Settings{MajorIterations: 200, GradientThreshold: 1e-9}); err == nil && r2.F <= r.F {
 		best = r2.X
 	}
 	return best, true

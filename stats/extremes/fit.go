@@ -8,6 +8,8 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/optimize"
+
+	"swellgrid/stats/internal/localopt"
 )
 
 // z975 is the 0.975 quantile of the standard normal distribution (two-sided 95%).
@@ -176,44 +178,47 @@ func gpdPWMStart(sortedExcess []float64) GPD {
 	return GPD{Scale: (1 + k) * l1, Shape: -k}
 }
 
-// minimise runs BFGS (bfgsSync) from x0 on f and, if that does not end on a
-// convergence criterion, gonum's Nelder-Mead from x0 followed by BFGS again.
+// minimise runs BFGS from x0 on f and, if that does not end on a
+// convergence criterion, Nelder-Mead from x0 followed by BFGS again, both
+// with gonum's methods driven in the calling goroutine (localopt: the same
+// optima as optimize.Minimize, without a channel hand-over per evaluation).
 // It returns the optimum, whether it converged, and the optimiser's error
 // when the search failed with one (then converged is false): a caller turns
 // that into FlagNoConvergence, never into a published value.
 func minimise(f objective, x0 []float64, gradTol float64) ([]float64, float64, bool, error) {
-	settings := localSettings{
+	settings := localopt.Settings{
 		GradientThreshold: gradTol,
 		MajorIterations:   200,
 		Converger:         &optimize.FunctionConverge{Absolute: 1e-12, Relative: 1e-12, Iterations: 25},
 	}
-	ok := func(loc optimize.Location, st optimize.Status, err error) bool {
-		if math.IsInf(loc.F, 0) || math.IsNaN(loc.F) {
+	ok := func(r localopt.Result, err error) bool {
+		if math.IsInf(r.F, 0) || math.IsNaN(r.F) {
 			return false
 		}
-		return err == nil && (st == optimize.GradientThreshold || st == optimize.FunctionConvergence)
+		return err == nil && (r.Status == optimize.GradientThreshold || r.Status == optimize.FunctionConvergence)
 	}
-	r, st, err := bfgsSync(f, x0, settings)
-	if ok(r, st, err) {
+	p := localopt.Problem{FuncGrad: f, Func: func(x []float64) float64 { return f(x, nil) }}
+	r, err := localopt.BFGS(p, x0, settings)
+	if ok(r, err) {
 		return r.X, r.F, true, nil
 	}
-	nm, nmErr := optimize.Minimize(optimize.Problem{Func: func(x []float64) float64 { return f(x, nil) }}, x0,
-		&optimize.Settings{MajorIterations: 2000,
-			Converger: &optimize.FunctionConverge{Absolute: 1e-12, Relative: 1e-12, Iterations: 50}}, &optimize.NelderMead{})
-	if nmErr != nil || nm == nil || math.IsInf(nm.F, 0) || math.IsNaN(nm.F) {
+	nm, nmErr := localopt.NelderMead(p.Func, x0, localopt.Settings{MajorIterations: 2000,
+		Converger: &optimize.FunctionConverge{Absolute: 1e-12, Relative: 1e-12, Iterations: 50}})
+	if nmErr != nil || math.IsInf(nm.F, 0) || math.IsNaN(nm.F) {
 		if nmErr == nil {
 			nmErr = err
 		}
 		if nmErr == nil {
-			nmErr = fmt.Errorf("extremes: no finite optimum (BFGS stopped with status %v)", st)
+			nmErr = fmt.Errorf("no finite optimum (BFGS stopped with status %v)", r.Status)
 		}
+		nmErr = fmt.Errorf("extremes: Nelder-Mead fallback: %w", nmErr)
 		if !math.IsInf(r.F, 0) && !math.IsNaN(r.F) {
-			return r.X, r.F, false, fmt.Errorf("extremes: Nelder-Mead fallback: %w", nmErr)
+			return r.X, r.F, false, nmErr
 		}
-		return x0, f(x0, nil), false, fmt.Errorf("extremes: Nelder-Mead fallback: %w", nmErr)
+		return x0, f(x0, nil), false, nmErr
 	}
-	r2, st2, err2 := bfgsSync(f, nm.X, settings)
-	if ok(r2, st2, err2) {
+	r2, err2 := localopt.BFGS(p, nm.X, settings)
+	if ok(r2, err2) {
 		return r2.X, r2.F, true, nil
 	}
 	// Nelder-Mead's own convergence still counts if the gradient there is small.

@@ -10,7 +10,7 @@ import (
 )
 
 // TestOptimumLogLikAgainstScipy: the optimum that the synchronous optimiser
-// (bfgsSync, through FitGEV and FitGPD) returns is scipy's maximum of the
+// (localopt.BFGS, through FitGEV and FitGPD) returns is scipy's maximum of the
 // likelihood, to both sides: the maximised log-likelihood equals the one
 // scipy.stats.genextreme.fit / genpareto.fit(floc=0) reached on the same
 // samples (testdata/extremes/scipy_refs.json, written by make_scipy_refs.py
@@ -45,59 +45,6 @@ func TestOptimumLogLikAgainstScipy(t *testing.T) {
 			ll += f.GPD.LogPDF(y)
 		}
 		near(t, sprintf("GPD sample %d: loglik of the returned parameters", i), ll, f.LogLik, tol)
-	}
-}
-
-// TestSyncBFGSMatchesMinimize: bfgsSync follows gonum's optimize.Minimize
-// with &optimize.BFGS{} evaluation for evaluation, so on the scipy samples
-// (GEV and GPD likelihoods, from the PWM starts) it returns bit for bit the
-// optimum, value and status that optimize.Minimize returns with the same
-// settings. gonum's own driver is the reference here.
-func TestSyncBFGSMatchesMinimize(t *testing.T) {
-	r := loadScipy(t)
-	type problem struct {
-		name string
-		f    objective
-		x0   []float64
-		tol  float64
-	}
-	var ps []problem
-	for i, ref := range r.GEVFits {
-		z := finiteSorted(ref.X)
-		s := gevPWMStart(z)
-		ps = append(ps, problem{sprintf("GEV %d", i), func(p, g []float64) float64 { return gevNegLogLik(p, g, z) },
-			[]float64{s.Loc, math.Log(s.Scale), s.Shape}, 1e-7 * float64(len(z))})
-		// A poor start (far from the optimum) takes many more iterations.
-		ps = append(ps, problem{sprintf("GEV %d, Gumbel start", i), func(p, g []float64) float64 { return gevNegLogLik(p, g, z) },
-			[]float64{s.Loc + s.Scale, math.Log(2 * s.Scale), 0}, 1e-7 * float64(len(z))})
-	}
-	for i, ref := range r.GPDFits {
-		y := finiteSorted(ref.Y)
-		s := gpdPWMStart(y)
-		ps = append(ps, problem{sprintf("GPD %d", i), func(p, g []float64) float64 { return gpdNegLogLik(p, g, y) },
-			[]float64{math.Log(s.Scale), s.Shape}, 1e-7 * float64(len(y))})
-	}
-	for _, p := range ps {
-		settings := localSettings{GradientThreshold: p.tol, MajorIterations: 200,
-			Converger: &optimize.FunctionConverge{Absolute: 1e-12, Relative: 1e-12, Iterations: 25}}
-		got, st, err := bfgsSync(p.f, p.x0, settings)
-		want, werr := optimize.Minimize(optimize.Problem{
-			Func: func(x []float64) float64 { return p.f(x, nil) },
-			Grad: func(g, x []float64) { p.f(x, g) },
-		}, p.x0, &optimize.Settings{GradientThreshold: p.tol, MajorIterations: 200,
-			Converger: &optimize.FunctionConverge{Absolute: 1e-12, Relative: 1e-12, Iterations: 25}}, &optimize.BFGS{})
-		if (err == nil) != (werr == nil) || st != want.Status {
-			t.Errorf("%s: status %v err %v, Minimize %v err %v", p.name, st, err, want.Status, werr)
-			continue
-		}
-		if got.F != want.F {
-			t.Errorf("%s: f %.17g, Minimize %.17g", p.name, got.F, want.F)
-		}
-		for k := range got.X {
-			if got.X[k] != want.X[k] {
-				t.Errorf("%s: x[%d] %.17g, Minimize %.17g", p.name, k, got.X[k], want.X[k])
-			}
-		}
 	}
 }
 
