@@ -111,6 +111,22 @@ func (e *engine) finishManifest(out string, m *Manifest, written, warns *[]strin
 		return err
 	}
 	t0 := time.Now()
+	if e.spec.Screening != nil {
+		r, err := rundir.Open(out, nil)
+		if err != nil {
+			return err
+		}
+		res, err := screenRun(r, e.spec)
+		if err != nil {
+			return err
+		}
+		sf, err := writeScreening(out, res)
+		if err != nil {
+			return err
+		}
+		*written = append(*written, sf...)
+		m.Screening = res.summary
+	}
 	files, w, err := buildProducts(out, nil, e.spec.products())
 	if err != nil {
 		return err

@@ -34,7 +34,7 @@ func (e *engine) checkContourColumns() error {
 			return fmt.Errorf("spec: contours.levels.%s: not a column of cells.parquet", c)
 		}
 	}
-	return nil
+	return e.spec.Screening.checkColumns(names)
 }
 
 // writeOutputs writes the tables and contour layers; every file is written
@@ -120,8 +120,11 @@ type Manifest struct {
 	Warnings    []string                        `json:"warnings"`
 	Outputs     []string                        `json:"outputs"` // files of the run directory, relative to it
 	// ProductWarnings are those of atlas.nc, atlas.gpkg and report/.
-	ProductWarnings []string           `json:"product_warnings,omitempty"`
-	Timings         map[string]float64 `json:"timings_s,omitempty"`
+	ProductWarnings []string `json:"product_warnings,omitempty"`
+	// Screening: the constraint files and the scenarios' summaries
+	// (also in screening.json).
+	Screening *ScreeningSummary  `json:"screening,omitempty"`
+	Timings   map[string]float64 `json:"timings_s,omitempty"`
 }
 
 // ManifestInput is one input file.

@@ -513,7 +513,7 @@ func Schema() []ColumnSpec {
 	for _, t := range longSchemas {
 		out = append(out, t.specs()...)
 	}
-	return out
+	return append(out, specsOf("screening.parquet", screeningSchema)...)
 }
 
 // fill builds one column from rows; isNull (nil: never) says which rows are
@@ -705,6 +705,9 @@ func (e *engine) outputColumns() map[string][]ColumnSpec {
 	out := map[string][]ColumnSpec{"cells.parquet": append(e.cellsColumns(), geometryColumn)}
 	for _, t := range longSchemas {
 		out[t.file()] = t.specs()
+	}
+	if e.spec.Screening != nil {
+		out["screening.parquet"] = screeningSpecs(e.spec.Screening.distanceLayers())
 	}
 	return out
 }

@@ -36,6 +36,7 @@ type Spec struct {
 	Contours   ContourSpec       `toml:"contours" json:"contours"`
 	Output     OutputSpec        `toml:"output" json:"output"`
 	Sites      []SiteSpec        `toml:"site" json:"sites"`
+	Screening  *ScreeningSpec    `toml:"screening" json:"screening,omitempty"`
 	Run        RunSpec           `toml:"run" json:"run"`
 
 	dir string // directory of the spec file: relative paths are relative to it
@@ -43,6 +44,8 @@ type Spec struct {
 	// their content, read by Validate: their SHA-256 is in the fingerprint
 	// and the power matrices are parsed from these bytes.
 	named []namedFile
+	// layers are the screening layers read by Validate.
+	layers []*screenLayer
 }
 
 // namedFile is a file a spec names, by its key, with its content's SHA-256.
@@ -221,6 +224,11 @@ func ParseSpec(data []byte, path string) (*Spec, error) {
 	if s.Depth.BathymetryFile != "" {
 		s.Depth.BathymetryFile = s.resolve(s.Depth.BathymetryFile)
 	}
+	if s.Screening != nil {
+		for i := range s.Screening.Layers {
+			s.Screening.Layers[i].File = s.resolve(s.Screening.Layers[i].File)
+		}
+	}
 	return s, nil
 }
 
@@ -395,7 +403,10 @@ func (s *Spec) Validate() error {
 	if s.Run.BlockSteps < 0 {
 		return bad("run.block_steps", "must be positive", s.Run.BlockSteps)
 	}
-	return s.readNamedFiles()
+	if err := s.readNamedFiles(); err != nil {
+		return err
+	}
+	return s.validateScreening(names)
 }
 
 // Limits of the spec: lists longer than these are refused (each entry adds
@@ -591,6 +602,16 @@ func (s *Spec) fingerprinted() fingerprinted {
 	}
 	if _, ok := files["depth.bathymetry_file"]; ok {
 		c.Depth.BathymetryFile = ""
+	}
+	if s.Screening != nil { // layers by content
+		sc := *s.Screening
+		sc.Layers = append([]ScreenLayerSpec(nil), sc.Layers...)
+		for i := range sc.Layers {
+			if _, ok := files[fmt.Sprintf("screening.layer[%d].file", i)]; ok {
+				sc.Layers[i].File = ""
+			}
+		}
+		c.Screening = &sc
 	}
 	return fingerprinted{Spec: &c, Files: files}
 }

@@ -159,7 +159,10 @@ func Layers(r *rundir.Run) ([]*Layer, error) {
 		base := strings.TrimSuffix(filepath.Base(f), ".geojson")
 		l := &Layer{}
 		var props []string
-		if col, ok := strings.CutSuffix(base, ".bands"); ok {
+		if sc, ok := strings.CutPrefix(base, "screening_"); ok {
+			l.Name, l.GeomType, props = base, "MULTIPOLYGON", []string{"cells", "area_km2"}
+			l.Description = "passing area of screening scenario " + sc + " (cells taken whole; see screening.json)"
+		} else if col, ok := strings.CutSuffix(base, ".bands"); ok {
 			l.Name, l.GeomType, props = "bands_"+col, "MULTIPOLYGON", []string{"lower", "upper"}
 			l.Description = "filled contour bands [lower, upper) of " + col + " (null bound: open band)"
 		} else {

@@ -1,0 +1,41 @@
+package export
+
+import (
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+
+	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/geojson"
+)
+
+// WriteScreeningOutline writes runDir/contours/screening_<scenario>.geojson:
+// an RFC 7946 FeatureCollection of one MultiPolygon feature (the passing
+// area of a screening scenario, as given: right-hand-rule rings in lon/lat)
+// with the properties given, and the foreign members "name" and "caution",
+// atomically.
+func WriteScreeningOutline(runDir, scenario string, mp orb.MultiPolygon, props map[string]any) error {
+	if !layerName.MatchString(scenario) {
+		return fmt.Errorf("export: screening scenario name %q must be lower-case letters, digits and _ (it names the file)", scenario)
+	}
+	if mp == nil {
+		mp = orb.MultiPolygon{}
+	}
+	fc := newCollection("screening_" + scenario)
+	ft := geojson.NewFeature(mp)
+	ft.Properties = geojson.Properties(props)
+	fc.Append(ft)
+	data, err := encodeCollection(fc)
+	if err != nil {
+		return fmt.Errorf("export: screening outline %s: %w", scenario, err)
+	}
+	dir := filepath.Join(runDir, ContourDir)
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return fmt.Errorf("export: creating %s: %w", dir, err)
+	}
+	return WriteFileAtomic(filepath.Join(dir, "screening_"+scenario+".geojson"), func(w io.Writer) error {
+		_, err := w.Write(data)
+		return err
+	})
+}
