@@ -513,7 +513,8 @@ func Schema() []ColumnSpec {
 	for _, t := range longSchemas {
 		out = append(out, t.specs()...)
 	}
-	return append(out, specsOf("screening.parquet", screeningSchema)...)
+	out = append(out, specsOf("screening.parquet", screeningSchema)...)
+	return append(out, validationSpecs()...) // swellgrid validate (validate_schema.go)
 }
 
 // fill builds one column from rows; isNull (nil: never) says which rows are

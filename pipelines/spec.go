@@ -37,7 +37,10 @@ type Spec struct {
 	Output     OutputSpec        `toml:"output" json:"output"`
 	Sites      []SiteSpec        `toml:"site" json:"sites"`
 	Screening  *ScreeningSpec    `toml:"screening" json:"screening,omitempty"`
-	Run        RunSpec           `toml:"run" json:"run"`
+	// Validation sets `swellgrid validate` (nil: defaults); it changes no
+	// result of the run.
+	Validation *ValidationSpec `toml:"validation" json:"validation,omitempty"`
+	Run        RunSpec         `toml:"run" json:"run"`
 
 	dir string // directory of the spec file: relative paths are relative to it
 	// named are the files the spec names (power matrices, bathymetry) with
@@ -388,6 +391,9 @@ func (s *Spec) Validate() error {
 	if s.Output.Dir == "" {
 		return fmt.Errorf("spec: output.dir is empty; give --out or output.dir")
 	}
+	if err := s.Validation.check(); err != nil {
+		return err
+	}
 	if err := checkSites(s.Sites); err != nil {
 		return err
 	}
@@ -589,7 +595,8 @@ func (s *Spec) fingerprinted() fingerprinted {
 	c.Output = OutputSpec{}
 	c.Input.Paths = nil // inputs are compared file by file (size, checksum)
 	c.Run = RunSpec{}
-	c.Sites = nil // sites choose report pages, not results
+	c.Sites = nil      // sites choose report pages, not results
+	c.Validation = nil // validation reads the run, it changes none of its results
 	c.Devices = append([]DeviceSpec(nil), s.Devices...)
 	files := map[string]string{}
 	for _, n := range s.named {

@@ -419,3 +419,19 @@ func (t *Table) RowsOf(key string, v int64) []int {
 	}
 	return out
 }
+
+// RowsOfStr returns the row indices of t whose string column key equals v,
+// in order.
+func (t *Table) RowsOfStr(key, v string) []int {
+	c := t.Col(key)
+	if c == nil || c.Kind != String {
+		return nil
+	}
+	var out []int
+	for i, x := range c.Str {
+		if x == v {
+			out = append(out, i)
+		}
+	}
+	return out
+}

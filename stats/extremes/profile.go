@@ -155,34 +155,20 @@ func deltaSD(f GEVFit, T float64) float64 {
 	return (z - lo) / z975
 }
 
-// profileEnd returns the end, on the side given by the sign of step, of the
-// 95% profile-likelihood interval: the level x where the profile deviance
-// D(x) = 2 (nll_p(x) - nllMax) reaches chi2Crit95. It walks from the level in
-// steps of step (unit steps up to 8, then growing by 30% a step) until D
-// exceeds the critical value, then refines the bracket by the Illinois method
-// (modified regula falsi) on the signed root r(x) = sqrt(D(x)) - 1.96, which
-// is close to linear in the level (exactly so for a quadratic log-likelihood;
-// Coles 2001, sections 2.6.5-2.6.6), with bisection where r is not finite, to
-// 1e-7 of the level or |D - chi2Crit95| below about 1e-9. The values at the
-// bracket's ends are those of the walk (not evaluated again).
-//
-// bound is the last admissible level on that side (0 or the threshold below,
-// the search limit above): if the deviance stays below the critical value up
-// to it, the lower end is bound and the upper end +Inf. Each inner fit
-// starts from the optimum of the last level inside the interval, so the
-// search follows one branch of the profile.
+// profileEnd walks from the level in steps of step (sign gives the side) until
+// the profile deviance 2 (nll_p - nllMax) exceeds chi2Crit95, then bisects to
+// 1e-7 of the bracket. bound is the last admissible level on that side (0 or
+// the threshold below, the search limit above): if the deviance stays below
+// the critical value up to it, the lower end is bound and the upper end +Inf.
+// Each inner fit starts from the optimum of the nearest level already
+// evaluated, so the search follows one branch of the profile.
 func profileEnd(inner profileFit, level, step, bound, nllMax float64, start []float64) float64 {
-	const rCrit = z975 // sqrt(chi2Crit95)
-	root := func(x float64, st []float64) (float64, []float64) {
+	dev := func(x float64, st []float64) (float64, []float64) {
 		v, at, _ := inner(x, st)
-		d := 2 * (v - nllMax)
-		if math.IsNaN(d) || math.IsInf(d, 1) {
-			return math.Inf(1), at
-		}
-		return math.Sqrt(math.Max(d, 0)), at
+		return 2 * (v - nllMax), at
 	}
-	inside, insideAt, rIn := level, start, 0.0
-	var outside, rOut float64
+	inside, insideAt := level, start
+	var outside float64
 	found := false
 	for k := 1; k <= 200; k++ {
 		// Unit steps up to 8, then growing by 30% a step.
@@ -192,26 +178,26 @@ func profileEnd(inner profileFit, level, step, bound, nllMax float64, start []fl
 		}
 		if (step < 0 && x <= bound) || (step > 0 && x >= bound) {
 			x = bound
-			if step < 0 {
+			if step < 0 && x == bound {
 				// At 0 (GEV) or the threshold (GPD) the deviance is evaluated just inside.
 				x = bound + 1e-9*math.Max(1, math.Abs(level))
 			}
-			r, _ := root(x, insideAt)
-			if r < rCrit {
+			d, _ := dev(x, insideAt)
+			if d < chi2Crit95 {
 				if step > 0 {
 					return math.Inf(1)
 				}
 				return bound
 			}
-			outside, rOut, found = x, r, true
+			outside, found = x, true
 			break
 		}
-		r, at := root(x, insideAt)
-		if r >= rCrit {
-			outside, rOut, found = x, r, true
+		d, at := dev(x, insideAt)
+		if d >= chi2Crit95 {
+			outside, found = x, true
 			break
 		}
-		inside, insideAt, rIn = x, at, r
+		inside, insideAt = x, at
 	}
 	if !found {
 		if step > 0 {
@@ -219,21 +205,30 @@ func profileEnd(inner profileFit, level, step, bound, nllMax float64, start []fl
 		}
 		return bound
 	}
+	// Illinois (modified regula falsi) on g(x) = deviance - chi2Crit95, with
+	// bisection whenever the outer value is not finite; to 1e-7 of the
+	// level (far below the interval's own uncertainty).
 	a, b := inside, outside
-	ga, gb := rIn-rCrit, rOut-rCrit
+	ga := -chi2Crit95 // the deviance is 0 at the level itself
+	if a != level {
+		d, _ := dev(a, insideAt)
+		ga = d - chi2Crit95
+	}
+	db, _ := dev(b, insideAt)
+	gb := db - chi2Crit95
 	tol := 1e-7 * math.Max(1, math.Abs(level))
 	side := 0
 	for i := 0; i < 100 && math.Abs(b-a) > tol; i++ {
 		m := 0.5 * (a + b)
-		if !math.IsInf(gb, 0) && gb != ga {
+		if !math.IsInf(gb, 0) && !math.IsNaN(gb) && gb != ga {
 			m = b - gb*(b-a)/(gb-ga)
 			// Keep the new point well inside the bracket.
 			lo, hi := math.Min(a, b), math.Max(a, b)
 			w := hi - lo
 			m = math.Max(lo+0.01*w, math.Min(hi-0.01*w, m))
 		}
-		r, at := root(m, insideAt)
-		gm := r - rCrit
+		d, at := dev(m, insideAt)
+		gm := d - chi2Crit95
 		if gm < 0 {
 			a, ga, insideAt = m, gm, at
 			if side == -1 {
@@ -247,7 +242,7 @@ func profileEnd(inner profileFit, level, step, bound, nllMax float64, start []fl
 			}
 			side = 1
 		}
-		if math.Abs(gm) < 2.5e-10 { // |D - chi2Crit95| < 1e-9
+		if math.Abs(gm) < 1e-9 {
 			return m
 		}
 	}
