@@ -524,10 +524,15 @@ func TestReportInChromium(t *testing.T) {
 		if err := chromedp.Run(ctx, acts...); err != nil {
 			t.Fatalf("chromium on %s: %v", page, err)
 		}
+		rose := false
 		for _, im := range imgs {
 			if !im.Complete || im.W == 0 {
 				t.Errorf("%s: image %s did not load", filepath.Base(page), im.Src)
 			}
+			rose = rose || strings.HasSuffix(im.Src, "_rose_power_occurrence.png")
+		}
+		if pi > 0 && !rose {
+			t.Errorf("%s: no directional power rose among its images", filepath.Base(page))
 		}
 		nimg += len(imgs)
 	}

@@ -32,6 +32,7 @@ type figure struct {
 	Caption string
 	W, H    vg.Length
 	draw    func(dc draw.Canvas)
+	data    any // the values plotted (tests compare them with the tables)
 }
 
 // save writes f as PNG and SVG into dir and returns the two file names.

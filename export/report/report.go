@@ -1,7 +1,8 @@
 // Package report writes report/ of a finished run: index.html (a summary of
 // the run, maps of the main per-cell results on the grid) and a page per
 // site (monthly climatology with the inter-annual spread, exceedance curves,
-// the joint Hm0 x Te occurrence with power isolines, return levels with their
+// the joint Hm0 x Te occurrence with power isolines, the directional power
+// rose, return levels with their
 // intervals, design contours where the run has them, and the site's numbers).
 // Every figure is written beside the pages as PNG and SVG, named after what
 // it shows; the pages hold their CSS inline and load nothing from the
@@ -21,6 +22,7 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
 
 	"swellgrid/export/rundir"
@@ -267,8 +269,31 @@ func summary(r *rundir.Run) [][2]string {
 		{"Grid", fmt.Sprintf("%s, %d x %d (%d cells, %d masked), lon %s to %s, lat %s to %s", g.Kind, g.Shape[0], g.Shape[1], g.Cells, g.Masked,
 			fmtNum(g.BBox[0]), fmtNum(g.BBox[2]), fmtNum(g.BBox[1]), fmtNum(g.BBox[3]))},
 		{"Depth source", m.DepthSource},
+		{"Run time", runTime(m.Timings)},
 		{"Software", m.Software + " " + m.Version},
 	}
+}
+
+// runStages are the stages of a run's timings the summary adds up, in
+// order. products_s (this report and the atlas files) is left out: it is
+// known only after the report is written, and a rebuilt report must equal
+// the run's.
+var runStages = [][2]string{{"catalog_s", "catalog"}, {"load_s", "shard states"}, {"stream_s", "read and accumulate"}, {"fit_s", "fits"}, {"export_s", "tables"}}
+
+// runTime states the run's wall time by stage from the manifest's timings.
+func runTime(t map[string]float64) string {
+	var total float64
+	var parts []string
+	for _, st := range runStages {
+		if v, ok := t[st[0]]; ok {
+			total += v
+			parts = append(parts, fmt.Sprintf("%s %s s", st[1], strconv.FormatFloat(v, 'f', 1, 64)))
+		}
+	}
+	if len(parts) == 0 {
+		return "not recorded in the manifest"
+	}
+	return fmt.Sprintf("%s s (%s; the report and atlas files not included)", strconv.FormatFloat(total, 'f', 1, 64), strings.Join(parts, ", "))
 }
 
 func stepText(s int64) string {

@@ -105,7 +105,13 @@ func siteFigures(r *rundir.Run, s Site) ([]*figure, []string, error) {
 		}
 		notes = append(notes, note...)
 	}
-	notes = append(notes, "directional power rose: not drawn, the run's tables hold no directional distribution of power (mean direction and direction of maximum power are in the table below)")
+	if f, err := directionsFigure(r, s, base+"rose_power_occurrence"); err != nil {
+		return nil, nil, err
+	} else if f != nil {
+		figs = append(figs, f)
+	} else {
+		notes = append(notes, "directional power rose: not drawn, directions.parquet has no rows for this cell (no step with a direction, or a 1-D spectrum)")
+	}
 	if f, err := returnLevelFigure(r, s, base+"return_levels_hm0"); err != nil {
 		return nil, nil, err
 	} else if f != nil {
@@ -607,7 +613,7 @@ func designFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 	p.Legend.Top = true
 	p.Add(plotter.NewGrid())
 	f := &figure{Name: name, Title: "Environmental design contours", Caption: "Environmental contours of Hm0 and period from design.parquet, one per return period (screening estimates; see the caution).",
-		W: 6 * vg.Inch, H: 4 * vg.Inch}
+		W: 6 * vg.Inch, H: 4 * vg.Inch, data: byT}
 	f.draw = func(dc draw.Canvas) {
 		dc.SetColor(color.White)
 		dc.Fill(dc.Rectangle.Path())
@@ -615,3 +621,22 @@ func designFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 	}
 	return f, nil
 }
+
+// PlottedValues returns, by figure name, what the site figures of s plot
+// (design contours: a DesignSeries; the rose: its []RoseSector), so that a check can compare the figures with the run's tables.
+func PlottedValues(r *rundir.Run, s Site) (map[string]any, error) {
+	figs, _, err := siteFigures(r, s)
+	if err != nil {
+		return nil, err
+	}
+	out := map[string]any{}
+	for _, f := range figs {
+		if f.data != nil {
+			out[f.Name] = f.data
+		}
+	}
+	return out, nil
+}
+
+// DesignSeries is what PlottedValues gives for a design-contour figure.
+type DesignSeries = map[float64]plotter.XYs

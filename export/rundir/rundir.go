@@ -201,22 +201,23 @@ func ReadTable(path string) (*Table, error) {
 // Manifest is the part of manifest.json the products use; Raw keeps the
 // whole document.
 type Manifest struct {
-	Software    string          `json:"software"`
-	Version     string          `json:"version"`
-	Caution     string          `json:"caution"`
-	Inputs      []Input         `json:"inputs"`
-	Calendar    string          `json:"calendar"`
-	Start       string          `json:"time_start"`
-	End         string          `json:"time_end"`
-	Steps       int             `json:"steps"`
-	StepSeconds int64           `json:"step_seconds"`
-	Gaps        []Gap           `json:"gaps"`
-	Grid        Grid            `json:"grid"`
-	DepthSource string          `json:"depth_source"`
-	Assumptions []string        `json:"assumptions"`
-	Warnings    []string        `json:"warnings"`
-	Parameters  Parameters      `json:"parameters"`
-	Raw         json.RawMessage `json:"-"`
+	Software    string             `json:"software"`
+	Version     string             `json:"version"`
+	Caution     string             `json:"caution"`
+	Inputs      []Input            `json:"inputs"`
+	Calendar    string             `json:"calendar"`
+	Start       string             `json:"time_start"`
+	End         string             `json:"time_end"`
+	Steps       int                `json:"steps"`
+	StepSeconds int64              `json:"step_seconds"`
+	Gaps        []Gap              `json:"gaps"`
+	Grid        Grid               `json:"grid"`
+	DepthSource string             `json:"depth_source"`
+	Assumptions []string           `json:"assumptions"`
+	Warnings    []string           `json:"warnings"`
+	Parameters  Parameters         `json:"parameters"`
+	Timings     map[string]float64 `json:"timings_s"` // seconds per stage
+	Raw         json.RawMessage    `json:"-"`
 }
 
 // Input is one input file of the run.
