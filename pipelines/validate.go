@@ -219,6 +219,22 @@ func Validate(ctx context.Context, opt ValidateOptions) (*ValidateResult, error)
 		return nil, outputError(err)
 	}
 	res.Files = append(res.Files, "validation.json")
+	// The run's report gets its station pages now (swellgrid report DIR
+	// rebuilds them later too).
+	if filepath.Clean(out) == filepath.Clean(opt.RunDir) {
+		if _, err := os.Stat(filepath.Join(out, "report", "index.html")); err == nil {
+			files, warns, err := Rebuild(out, Products{Report: true})
+			if err != nil {
+				return nil, err
+			}
+			for _, f := range files {
+				if strings.HasPrefix(filepath.Base(f), "validation_") {
+					res.Files = append(res.Files, f)
+				}
+			}
+			sum.Warnings = append(sum.Warnings, warns...)
+		}
+	}
 	sort.Strings(res.Files)
 	res.Summary = sum
 	res.Warnings = sum.Warnings

@@ -3,9 +3,11 @@ package pipelines
 import (
 	"context"
 	"encoding/json"
+	"image/png"
 	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"sync"
 	"testing"
@@ -256,3 +258,50 @@ func TestValidateRefusals(t *testing.T) {
 		t.Errorf("a refused validation wrote validation.json")
 	}
 }
+
+// TestValidateReportPage: the report gets a page per station whose table
+// holds the numbers of validation.parquet, and its figures decode as PNG.
+func TestValidateReportPage(t *testing.T) {
+	run := validationRun(t)
+	if _, err := Validate(context.Background(), ValidateOptions{RunDir: run, Obs: []string{"../testdata/validate/station_synth.csv"}}); err != nil {
+		t.Fatal(err)
+	}
+	if _, _, err := Rebuild(run, Products{Report: true}); err != nil {
+		t.Fatal(err)
+	}
+	tb, err := rundir.ReadTable(filepath.Join(run, "validation.parquet"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	page, err := os.ReadFile(filepath.Join(run, "report", "validation_syn_a.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	a := valRowOf(t, tb, "SYN-A", "hm0", "all")
+	for _, c := range []string{"bias", "rmse", "scatter_index", "slope_symmetric"} {
+		want := "<td>" + strconvG4(tb.Col(c).Value(a)) + "</td>"
+		if !strings.Contains(string(page), want) {
+			t.Errorf("station page lacks %s %s", c, want)
+		}
+	}
+	if !strings.Contains(string(page), "invented synthetic stations") {
+		t.Errorf("station page does not say the station is invented")
+	}
+	index, _ := os.ReadFile(filepath.Join(run, "report", "index.html"))
+	if !strings.Contains(string(index), `href="validation_syn_b.html"`) {
+		t.Errorf("index has no link to the station pages")
+	}
+	for _, f := range []string{"scatter", "qq", "series"} {
+		fh, err := os.Open(filepath.Join(run, "report", "validation_syn_a_"+f+".png"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		img, err := png.Decode(fh)
+		fh.Close()
+		if err != nil || img.Bounds().Dx() < 300 {
+			t.Errorf("%s figure: %v", f, err)
+		}
+	}
+}
+
+func strconvG4(x float64) string { return strconv.FormatFloat(x, 'g', 4, 64) }

@@ -85,6 +85,7 @@ type indexView struct {
 	Assumptions, Warnings, Notes, Outputs        []string
 	Maps                                         []pageFigure
 	Sites                                        []*siteView
+	Validation                                   []validationLink // validation.go
 	CSS                                          template.CSS
 }
 
@@ -173,6 +174,9 @@ func Build(r *rundir.Run) ([]string, []string, error) {
 			sv.Numbers = append(sv.Numbers, [4]string{c.Name, val, c.Unit, c.Doc})
 		}
 		v.Sites = append(v.Sites, sv)
+	}
+	if v.Validation, err = validationPages(r, tmp, v, add); err != nil {
+		return nil, nil, err
 	}
 	v.Summary = summary(r)
 	v.Inputs = m.Inputs
@@ -357,6 +361,8 @@ aspect of the mean latitude. Each figure is also an SVG file (link below it).</p
 {{if .Sites}}<table><tr><th>site</th><th>cell</th><th>lon</th><th>lat</th><th>mean power (kW/m)</th></tr>
 {{range .Sites}}<tr><td><a href="{{.File}}">{{.Name}}</a></td><td>{{.Cell}}</td><td>{{num .CellLon}}</td><td>{{num .CellLat}}</td><td>{{range .Numbers}}{{if eq (index . 0) "power_mean_kw_m"}}{{index . 1}}{{end}}{{end}}</td></tr>{{end}}</table>
 {{else}}<p>No site pages: the spec has no [[site]] list (a point set gets a page for every point).</p>{{end}}
+{{if .Validation}}<h2 id="validation">Validation against measurements</h2><table><tr><th>station</th><th>cell</th><th>matched times</th><th>Hm0 bias (m)</th><th>Hm0 scatter index</th></tr>
+{{range .Validation}}<tr><td><a href="{{.File}}">{{.Name}}</a></td><td>{{.Cell}}</td><td>{{.Matched}}</td><td>{{.Hm0Bias}}</td><td>{{.Hm0SI}}</td></tr>{{end}}</table>{{end}}
 <h2 id="files">Files of this run</h2><p class="files">{{range .Outputs}}{{.}} {{end}}</p>
 <p class="files">Made by {{.Software}} {{.Version}} from the run's tables and manifest.</p>
 </body></html>
