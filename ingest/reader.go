@@ -3,7 +3,6 @@ package ingest
 import (
 	"context"
 	"fmt"
-	"math"
 	"sort"
 	"time"
 
@@ -19,7 +18,8 @@ type Block struct {
 	Times  []Stamp
 	C0, C1 int
 	// Bulk holds each bulk role present as [t*(C1-C0) + c], SI units, NaN
-	// where missing; directions in degrees "from".
+	// where missing; directions in degrees "from". In a raw block
+	// (ReadRange.Raw) a cell's values are set once Cook has cooked it.
 	Bulk map[Role][]float64
 	// Spec holds the spectra as [((t*(C1-C0) + c)*NF + f)*ND + d] in m2/Hz/rad
 	// (ND = 1 and m2/Hz for 1-D spectra), frequencies and directions in the
@@ -28,6 +28,8 @@ type Block struct {
 	NF, ND int
 	// LastOfFile is true on the last block of a file.
 	LastOfFile bool
+
+	pend []pendingRole // a raw block's slabs, until Cook (raw.go)
 }
 
 // NC is the number of cells of the block.
@@ -43,6 +45,12 @@ type ReadRange struct {
 	Sample int
 	// Stats, if not nil, receives the reader's busy and waiting time.
 	Stats *ReadStats
+	// Raw sends blocks that still hold each role as read (Block.Raw): the
+	// receiver unpacks them with Block.Cook, cell range by cell range, and
+	// tallies and checks what it found (Catalog.Settle, CheckTally).
+	// Otherwise Read cooks every block itself and refuses a role file
+	// without data once a full cell range has read all of it.
+	Raw bool
 }
 
 // ReadStats is where the reader's time went: Wait is the time spent blocked
@@ -72,8 +80,9 @@ func (c *Catalog) Read(ctx context.Context, r ReadRange, out chan<- *Block) erro
 		t0, w0 := time.Now(), r.Stats.Wait
 		defer func() { r.Stats.Busy += time.Since(t0) - (r.Stats.Wait - w0) }()
 	}
+	pending, done := Tally{}, Tally{} // what a cooked read has seen (not Raw)
 	for fi := r.FromFile; fi < len(c.Files); fi++ {
-		if err := c.readFile(ctx, fi, r, out); err != nil {
+		if err := c.readFile(ctx, fi, r, out, pending, done); err != nil {
 			return err
 		}
 	}
@@ -85,7 +94,7 @@ func (c *Catalog) Read(ctx context.Context, r ReadRange, out chan<- *Block) erro
 // them: the file itself when it carries every role, the files of one month
 // when each holds one variable. A role with no file for some steps leaves
 // them NaN (missing).
-func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- *Block) error {
+func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- *Block, pending, done Tally) error {
 	s0, s1 := c.Files[fi].Offset, c.Steps
 	if fi+1 < len(c.Files) {
 		s1 = c.Files[fi+1].Offset
@@ -155,14 +164,11 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 			break
 		}
 	}
-	valid := map[Role]int{}
-	g := c.Grid
 	nc := r.C1 - r.C0
 	var nf, nd int
 	if c.Spectral != nil {
 		nf, nd = len(c.Spectral.FreqHz), max(1, len(c.Spectral.DirDeg))
 	}
-	var scratch, rows []float64 // the raw slab and unaligned rows, reused across blocks and roles
 	if r.Sample > 0 {
 		s1 = min(s1, s0+r.Sample)
 	}
@@ -179,42 +185,46 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 			if spec {
 				per = nf * nd
 			}
-			dst := make([]float64, nt*nc*per)
-			for i := range dst {
-				dst[i] = math.NaN()
-			}
+			p := pendingRole{role: role, dst: make([]float64, nt*nc*per), per: per}
 			if src, ok := sources[role]; ok {
 				// The source's steps within this block, k0..k1-1.
 				u := c.Files[src.fi].uidx
 				k0 := sort.SearchInts(u, b0)
 				k1 := sort.SearchInts(u, b0+nt)
 				if k1 > k0 {
-					row := nc * per
-					var n int
-					var err error
-					if u[k1-1]-u[k0] == k1-1-k0 {
-						// Contiguous in the record (the common case): read in place.
-						n, err = c.gather(c.Files[src.fi].Path, src.vi, src.g, src.invX, src.invY, k0, k1-k0, r.C0, r.C1, dst[(u[k0]-b0)*row:(u[k1-1]-b0+1)*row], per, &scratch)
-					} else {
-						if cap(rows) < (k1-k0)*row {
-							rows = make([]float64, (k1-k0)*row)
-						}
-						tmp := rows[:(k1-k0)*row]
-						n, err = c.gather(c.Files[src.fi].Path, src.vi, src.g, src.invX, src.invY, k0, k1-k0, r.C0, r.C1, tmp, per, &scratch)
-						for k := k0; k < k1; k++ {
-							copy(dst[(u[k]-b0)*row:(u[k]-b0+1)*row], tmp[(k-k0)*row:(k-k0+1)*row])
-						}
-					}
+					sl, err := c.readRaw(c.Files[src.fi].Path, src.vi, src.g, src.invX, src.invY, k0, k1-k0, r.C0, r.C1)
 					if err != nil {
 						return err
 					}
-					valid[role] += n
+					sl.file = src.fi
+					sl.rows = make([]int, k1-k0)
+					for k := k0; k < k1; k++ {
+						sl.rows[k-k0] = u[k] - b0
+					}
+					p.slab = sl
 				}
 			}
 			if spec {
-				b.Spec = dst
+				b.Spec = p.dst
 			} else {
-				b.Bulk[role] = dst
+				b.Bulk[role] = p.dst
+			}
+			b.pend = append(b.pend, p)
+		}
+		if b.pend == nil {
+			b.pend = []pendingRole{}
+		}
+		if !r.Raw {
+			// Cooked here, on the reader's goroutine (tests, inspect, the
+			// benchmark's reader); a full-range read refuses a role file
+			// without data before handing on the segment's last block.
+			b.Cook(r.C0, r.C1, pending)
+			b.pend = nil
+			if b.LastOfFile {
+				c.Settle(pending, done, fi, r.FromFile, r.C0, r.C1)
+				if err := c.CheckTally(done); err != nil {
+					return err
+				}
 			}
 		}
 		if b.LastOfFile {
@@ -241,135 +251,5 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 			r.Stats.Blocks++
 		}
 	}
-	for _, role := range sortedRoles(sources) {
-		src := sources[role]
-		fe := &c.Files[src.fi]
-		whole := fe.uidx[0] >= s0 && fe.uidx[len(fe.uidx)-1] < s1
-		if valid[role] == 0 && whole && r.C0 == 0 && r.C1 == g.NCells() {
-			return errf(fe.Path, src.vi.Name, "every value is a fill value or missing; the variable holds no data")
-		}
-	}
 	return nil
-}
-
-// gather reads one role for steps t0..t0+nt-1 and cells c0..c1-1 and scatters
-// the unpacked values into dst in canonical order; it returns the number of
-// valid values. scratch holds the raw slab between calls.
-func (c *Catalog) gather(path string, vi *VarInfo, g *grid.Grid, invX, invY []int, t0, nt, c0, c1 int, dst []float64, per int, scratch *[]float64) (int, error) {
-	v := vi.v
-	rank := len(v.shape)
-	start := make([]uint64, rank)
-	count := make([]uint64, rank)
-	// Spatial extent in file indices.
-	var y0, y1 int
-	p0, p1 := c0, c1 // file range of a point set or mesh
-	if g.Kind == grid.MeshKind {
-		// A mesh's cells (Hilbert order) come from the file range that
-		// holds them; compact when the file's order is spatially coherent.
-		p0, p1 = math.MaxInt, -1
-		for _, fx := range g.XFile[c0:c1] {
-			p0, p1 = min(p0, fx), max(p1, fx+1)
-		}
-	}
-	if g.Structured() {
-		iy0, iy1 := c0/g.NX, (c1-1)/g.NX
-		y0, y1 = math.MaxInt, -1
-		for iy := iy0; iy <= iy1; iy++ {
-			y0, y1 = min(y0, g.YFile[iy]), max(y1, g.YFile[iy])
-		}
-	}
-	for k, ax := range vi.axes {
-		switch ax {
-		case axT:
-			start[k], count[k] = uint64(t0), uint64(nt)
-		case axY:
-			start[k], count[k] = uint64(y0), uint64(y1-y0+1)
-		case axX:
-			count[k] = v.shape[k]
-		case axP:
-			start[k], count[k] = uint64(p0), uint64(p1-p0)
-		default:
-			count[k] = v.shape[k]
-		}
-	}
-	total := 1
-	for _, n := range count {
-		total *= int(n)
-	}
-	if cap(*scratch) < total {
-		*scratch = make([]float64, total)
-	}
-	buf := (*scratch)[:total]
-	ncMu.Lock()
-	err := v.readSlab(path, start, count, buf)
-	ncMu.Unlock()
-	if err != nil {
-		return 0, err
-	}
-	if valid, ok := scatterFast(vi, g, invX, invY, start, count, c0, c1, buf, dst, per); ok {
-		return valid, nil
-	}
-	nc := c1 - c0
-	nd := 1
-	for k, ax := range vi.axes {
-		if ax == axD {
-			nd = int(count[k])
-		}
-	}
-	// Odometer over the slab in storage order.
-	idx := make([]int, rank)
-	valid := 0
-	dirRole := vi.Role == Dir || vi.Role == DirPeak
-	for i := 0; i < total; i++ {
-		var t, fx, fy, f, d int
-		for k, ax := range vi.axes {
-			switch ax {
-			case axT:
-				t = idx[k]
-			case axY:
-				fy = idx[k] + int(start[k])
-			case axX:
-				fx = idx[k]
-			case axP:
-				fx = idx[k] + int(start[k])
-			case axF:
-				f = idx[k]
-			case axD:
-				d = idx[k]
-			}
-		}
-		var cell int
-		switch g.Kind {
-		case grid.Points:
-			cell = fx
-		case grid.MeshKind:
-			cell = invX[fx]
-		default:
-			cell = invY[fy]*g.NX + invX[fx]
-		}
-		if cell >= c0 && cell < c1 {
-			x := vi.unpack(buf[i])
-			if x == x {
-				if dirRole {
-					if vi.DirTo {
-						x += 180
-					}
-					x = math.Mod(x, 360)
-					if x < 0 {
-						x += 360
-					}
-				}
-				valid++
-			}
-			dst[((t*nc+cell-c0)*(per/nd)+f)*nd+d] = x
-		}
-		for k := rank - 1; k >= 0; k-- {
-			idx[k]++
-			if idx[k] < int(count[k]) {
-				break
-			}
-			idx[k] = 0
-		}
-	}
-	return valid, nil
 }

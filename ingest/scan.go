@@ -99,13 +99,9 @@ func scanFile(path string, opt Options) (*scan, error) {
 		s.info.Static, s.info.Steps, s.info.times = true, 0, nil
 		s.info.From, s.info.To, s.info.First, s.info.Last = "", "", 0, 0
 	}
-	for _, r := range Roles {
-		if vi := s.info.vars[r]; vi != nil && !vi.Static() {
-			if err := s.checkNotAllFill(vi); err != nil {
-				return nil, err
-			}
-		}
-	}
+	// Whether a role variable holds any value (or any possible one) is
+	// found while streaming (Block.Cook, Catalog.CheckTally): the catalog
+	// reads metadata only, so each file is decompressed once.
 	if err := s.findSpectral(opt); err != nil {
 		return nil, err
 	}
@@ -753,65 +749,10 @@ func (s *scan) findSpectral(opt Options) error {
 	return nil
 }
 
-// checkNotAllFill refuses a role variable whose first and last steps are all
-// missing and, on a closer look, every value.
-func (s *scan) checkNotAllFill(vi *VarInfo) error {
-	v := vi.v
-	start := make([]uint64, len(v.shape))
-	count := append([]uint64(nil), v.shape...)
-	count[0] = 1
-	per := v.size() / v.shape[0]
-	buf := make([]float64, per)
-	steps := []uint64{0}
-	if v.shape[0] > 1 {
-		steps = append(steps, v.shape[0]-1)
-	}
-	valid, possible := 0, 0
-	anyValid := func(t uint64) (bool, error) {
-		start[0] = t
-		if err := v.readSlab(s.f.path, start, count, buf); err != nil {
-			return false, err
-		}
-		for _, x := range buf {
-			if u := vi.unpack(x); !math.IsNaN(u) {
-				valid++
-				if physical(vi.Role, u) {
-					possible++
-				}
-			}
-		}
-		return valid > 0, nil
-	}
-	for _, t := range steps {
-		if _, err := anyValid(t); err != nil {
-			return err
-		}
-	}
-	if valid > 0 && possible == 0 {
-		// Every value of the first and last steps is impossible (a negative
-		// height or period): the packing or the sign is wrong, and the whole
-		// computation would end with no results.
-		why := "check the variable or the role mapping"
-		if vi.Packed {
-			why = fmt.Sprintf("check the packing attributes (scale_factor %v, add_offset %v; CF 1.8 section 8.1)", vi.Scale, vi.Offset)
-		}
-		return errf(s.f.path, vi.Name, "every value of the first and last time steps is impossible for role %s (%d values, none %s); %s", vi.Role, valid, physicalRule(vi.Role), why)
-	}
-	if valid > 0 {
-		return nil
-	}
-	for t := uint64(1); t+1 < v.shape[0]; t++ {
-		if ok, err := anyValid(t); err != nil || ok {
-			return err
-		}
-	}
-	return errf(s.f.path, vi.Name, "every value is a fill value or missing; the variable holds no data: check the file or map role %s to another variable", vi.Role)
-}
-
 // physical reports whether an unpacked value (SI units) is possible for a
 // role: heights and spectral densities are >= 0, periods > 0 (common
 // practice: definitions of the quantities). Directions are always possible
-// (they are wrapped).
+// (they are wrapped). counts.possible applies the same rule to a tally.
 func physical(r Role, x float64) bool {
 	switch r {
 	case Hm0, Spectrum1D, Spectrum2D:

@@ -41,6 +41,10 @@ type ckHeader struct {
 	// Spec is what the fingerprint hashes (the settings and the named
 	// files' checksums), so that a refusal can name what changed.
 	Spec json.RawMessage `json:"fingerprinted,omitempty"`
+	// Seen is what the pass's cells have read of each role variable of each
+	// input (ingest.Tally), so that a variable without data is still
+	// refused after a resume or a merge of shards.
+	Seen []ingest.TallyEntry `json:"seen,omitempty"`
 
 	spec *Spec // the spec now (wanted headers only)
 }
@@ -210,56 +214,65 @@ func readCkHeader(path string) (*ckHeader, *bufio.Reader, *os.File, error) {
 // (size and SHA-256, by an update or a merge), so their modification times
 // are not compared.
 func loadCheckpointTrusting(path string, want ckHeader, trusted int, newCell func(id int) *cell) ([]*cell, int, error) {
-	h, r, f, err := readCkHeader(path)
+	cells, h, err := loadState(path, want, trusted, newCell)
 	if err != nil {
 		return nil, 0, err
 	}
+	return cells, h.NextFile, nil
+}
+
+// loadState is loadCheckpointTrusting giving the checkpoint's header.
+func loadState(path string, want ckHeader, trusted int, newCell func(id int) *cell) ([]*cell, *ckHeader, error) {
+	h, r, f, err := readCkHeader(path)
+	if err != nil {
+		return nil, nil, err
+	}
 	defer f.Close()
 	if why := h.mismatch(want, trusted); why != "" {
-		return nil, 0, inputErr(&resumeRefused{path: path, why: why})
+		return nil, nil, inputErr(&resumeRefused{path: path, why: why})
 	}
 	cells := make([]*cell, h.C1-h.C0)
 	for i := range cells {
 		flag, err := r.ReadByte()
 		if err != nil {
-			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 		}
 		if flag == 0 {
 			continue
 		}
 		if flag != 1 {
-			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: flag byte %d", h.C0+i, flag)})
+			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: flag byte %d", h.C0+i, flag)})
 		}
 		c := newCell(h.C0 + i)
 		a, err := readBytes(r)
 		if err != nil {
-			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 		}
 		b, err := readBytes(r)
 		if err != nil {
-			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 		}
 		if err := c.clim.UnmarshalBinary(a); err != nil {
-			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 		}
 		if err := c.col.UnmarshalBinary(b); err != nil {
-			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 		}
 		sp, err := readBytes(r)
 		if err != nil {
-			return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 		}
 		if c.spec != nil {
 			if err := c.spec.UnmarshalBinary(sp); err != nil {
-				return nil, 0, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+				return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
 			}
 		}
 		cells[i] = c
 	}
 	if _, err := r.ReadByte(); err != io.EOF {
-		return nil, 0, inputErr(&damagedState{path, "data beyond the last cell"})
+		return nil, nil, inputErr(&damagedState{path, "data beyond the last cell"})
 	}
-	return cells, h.NextFile, nil
+	return cells, h, nil
 }
 
 // resumeRefused says why a checkpoint cannot be resumed.

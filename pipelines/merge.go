@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"swellgrid/export"
+	"swellgrid/ingest"
 )
 
 // Merge combines the shard directories written by runs with Options.Shard
@@ -37,17 +38,18 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 		ts := time.Now()
 		defer j.mark("load_s", ts)
 		pt := parts[pi]
-		cells, next, err := loadCheckpointTrusting(pt.src, pt.want, len(j.ids), j.eng.newCell)
+		cells, h, err := loadState(pt.src, pt.want, len(j.ids), j.eng.newCell)
 		if err != nil {
 			if IsResumeRefused(err) || errors.Is(err, os.ErrNotExist) {
 				return nil, 0, inputErr(fmt.Errorf("merge: shard %d/%d in %s: %w", pt.m.Shard, pt.m.Shards, pt.dir, err))
 			}
 			return nil, 0, err
 		}
-		if next != len(j.cat.Files) {
-			return nil, 0, inputErr(fmt.Errorf("merge: shard %d/%d in %s has read %d of %d files; rerun it to finish", pt.m.Shard, pt.m.Shards, pt.dir, next, len(j.cat.Files)))
+		j.seen[pi] = ingest.TallyOf(h.Seen) // the shard's counts: CheckTally sees every cell
+		if h.NextFile != len(j.cat.Files) {
+			return nil, 0, inputErr(fmt.Errorf("merge: shard %d/%d in %s has read %d of %d files; rerun it to finish", pt.m.Shard, pt.m.Shards, pt.dir, h.NextFile, len(j.cat.Files)))
 		}
-		return cells, next, nil
+		return cells, h.NextFile, nil
 	}
 	saved := func(pi int, p [2]int) error {
 		pt := parts[pi]

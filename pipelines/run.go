@@ -7,6 +7,8 @@ import (
 	"fmt"
 	"log/slog"
 	"math"
+	"os"
+	"path/filepath"
 	"slices"
 	"sort"
 	"sync"
@@ -172,15 +174,27 @@ func (s *Spec) analysisConfig(years float64) extremes.AnalysisConfig {
 
 // Run runs the whole job through the stages of stages.go: validate, lock,
 // restore, stream, fit, export.
-func Run(ctx context.Context, spec *Spec, opt Options) (*Result, error) {
+func Run(ctx context.Context, spec *Spec, opt Options) (res *Result, err error) {
 	j, err := validateRun(ctx, spec, opt)
 	if err != nil {
 		return nil, err
 	}
+	_, serr := os.Stat(j.out)
+	created := errors.Is(serr, os.ErrNotExist)
 	unlock, err := j.lock()
 	if err != nil {
 		return nil, err
 	}
+	defer func() {
+		// A variable found without data while streaming is refused like
+		// one the catalog refuses: an output directory this run created
+		// is removed again (after the lock; only if empty).
+		var nd *ingest.NoDataError
+		if created && errors.As(err, &nd) {
+			os.Remove(filepath.Join(j.out, stateDir))
+			os.Remove(j.out)
+		}
+	}()
 	defer unlock()
 	sums := startChecksums(ctx, j.cat)
 	defer sums.stop()

@@ -51,6 +51,9 @@ type job struct {
 	// sums are the inputs' checksums (Run; nil in a merge, which trusts
 	// the shards' verified inputs).
 	sums    *checksums
+	// seen is, per pass, what its cells have read of each role variable
+	// (restored with the pass's states, or counted while streaming).
+	seen    map[int]ingest.Tally
 	timings map[string]float64
 	t0      time.Time
 }
@@ -111,7 +114,7 @@ func newJob(spec *Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, e
 	}
 	return &job{spec: spec, opt: opt, log: log, cat: cat, eng: eng, ids: ids, out: spec.Output.Dir,
 		lo: 0, hi: cat.Grid.NCells(), workers: workers, acfg: spec.analysisConfig(0),
-		timings: map[string]float64{}, t0: t0}, nil
+		seen: map[int]ingest.Tally{}, timings: map[string]float64{}, t0: t0}, nil
 }
 
 // validateRun is the validate stage of Run.
@@ -189,17 +192,19 @@ func (j *job) restoreOwn(trusted int) func(pi int, p [2]int) ([]*cell, int, erro
 						return nil, 0, inputErr(err)
 					}
 				}
-				cells, from, err := loadCheckpointTrusting(path, want, trusted, j.eng.newCell)
+				cells, h, err := loadState(path, want, trusted, j.eng.newCell)
 				if err != nil {
 					if IsResumeRefused(err) {
 						return nil, 0, inputErr(err)
 					}
 					return nil, 0, err
 				}
-				j.log.Info("resuming", "pass", pi+1, "from_file", from, "of", len(j.cat.Files))
-				return cells, from, nil
+				j.seen[pi] = ingest.TallyOf(h.Seen)
+				j.log.Info("resuming", "pass", pi+1, "from_file", h.NextFile, "of", len(j.cat.Files))
+				return cells, h.NextFile, nil
 			}
 		}
+		j.seen[pi] = ingest.Tally{}
 		cells := make([]*cell, p[1]-p[0])
 		for i := range cells {
 			if !j.cat.Masked[p[0]+i] {
@@ -229,15 +234,24 @@ func (j *job) stream(ctx context.Context, pi int, p [2]int, cells []*cell, from 
 	}
 	j.streamed = true
 	path, want := ckPath(j.out, p[0], p[1]), j.ckWant(p)
+	_, serr := os.Stat(path)
+	fresh := errors.Is(serr, os.ErrNotExist)
+	if j.seen[pi] == nil {
+		j.seen[pi] = ingest.Tally{}
+	}
 	lastCk := time.Now()
 	every := time.Duration(j.spec.Run.CheckpointEveryS * float64(time.Second))
-	err := j.eng.streamPass(ctx, p[0], p[1], from, j.workers, cells, func(next int) error {
+	err := j.eng.streamPass(ctx, p[0], p[1], from, j.workers, cells, j.seen[pi], func(next int) error {
+		if err := j.checkData(); err != nil {
+			return err // before the states that read it are saved
+		}
 		if next < nf && every > 0 && time.Since(lastCk) < every {
 			return nil
 		}
 		defer func() { lastCk = time.Now() }()
 		h := want
 		h.NextFile = next
+		h.Seen = j.seen[pi].Entries()
 		if j.sums != nil {
 			var err error
 			if h.Inputs, err = j.sums.withSums(j.ids, next); err != nil {
@@ -261,9 +275,26 @@ func (j *job) stream(ctx context.Context, pi int, p [2]int, cells []*cell, from 
 		if isOutput(err) {
 			return err
 		}
+		var nd *ingest.NoDataError
+		if errors.As(err, &nd) && fresh {
+			// A refused input leaves the output directory as it was: no
+			// states of this run (saved before the refused file) stay.
+			os.Remove(path)
+		}
 		return inputErr(err)
 	}
 	return nil
+}
+
+// checkData refuses a role variable of an input that holds no value (or
+// none possible) in any cell, once every pass has counted it (Catalog.CheckTally
+// over the passes' tallies).
+func (j *job) checkData() error {
+	all := ingest.Tally{}
+	for _, t := range j.seen {
+		all.Add(t)
+	}
+	return j.cat.CheckTally(all)
 }
 
 // runPasses runs restore, stream and fit for every pass. restore gives a
@@ -300,6 +331,11 @@ func (j *job) runPasses(ctx context.Context, restore func(pi int, p [2]int) ([]*
 	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
+	}
+	// Passes read in other processes (resumed, shards merged) are counted
+	// from their states' headers: refuse before any table is written.
+	if err := j.checkData(); err != nil {
+		return nil, inputErr(err)
 	}
 	return results, nil
 }

@@ -41,18 +41,22 @@ type engine struct {
 type streamTimes struct {
 	read     ingest.ReadStats
 	feedBusy time.Duration // summed over workers
+	cookBusy time.Duration // unpacking raw blocks (Block.Cook), summed over workers
 	idleWait time.Duration // the dispatcher waiting for the reader
 	fileDone time.Duration // checkpoints after each file (workers idle)
 }
 
 // addStreamTimings adds the stream stage's busy and waiting times (seconds)
 // to a run's timings: read_busy_s, read_wait_s (the reader blocked because
-// the workers were busy), feed_busy_s (summed over workers) and
-// feed_starved_s (the workers waiting for the reader) and checkpoint_s (the
-// per-file callback, during which the workers are idle).
+// the workers were busy), unpack_busy_s (the workers unpacking their cells
+// of the raw blocks, summed over workers), feed_busy_s (the state update,
+// summed over workers), feed_starved_s (the workers waiting for the reader)
+// and checkpoint_s (the per-file callback, during which the workers are
+// idle).
 func (e *engine) addStreamTimings(m map[string]float64) {
 	m["read_busy_s"] += e.times.read.Busy.Seconds()
 	m["read_wait_s"] += e.times.read.Wait.Seconds()
+	m["unpack_busy_s"] += e.times.cookBusy.Seconds()
 	m["feed_busy_s"] += e.times.feedBusy.Seconds()
 	m["feed_starved_s"] += e.times.idleWait.Seconds()
 	m["checkpoint_s"] += e.times.fileDone.Seconds()
@@ -148,9 +152,11 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 	}
 }
 
-// feedBulk is feed for bulk parameters: the finite-depth power from the
-// group-velocity table (seastate.BulkDepth), one cell at a time over the
-// block's steps, with the time fields prepared once per block.
+// feedBulk is feed for bulk parameters, in two column-wise passes over the
+// block: first Te and the finite-depth power of every step of cells lo..hi-1
+// (seastate.BulkStep, group velocity from the G(y) table), row by row in the
+// block's order; then each cell's state over its steps, with the time fields
+// prepared once per block.
 func (e *engine) feedBulk(b *ingest.Block, times []stepTime, cells []*cell, lo, hi int) {
 	nc := b.NC()
 	hm0s, tes, tps, dirs := b.Bulk[ingest.Hm0], b.Bulk[ingest.Te], b.Bulk[ingest.Tp], b.Bulk[ingest.Dir]
@@ -160,46 +166,60 @@ func (e *engine) feedBulk(b *ingest.Block, times []stepTime, cells []*cell, lo, 
 	}
 	alpha := e.spec.Physics.TeOverTp
 	nan := math.NaN()
-	for id := lo; id < hi; id++ {
-		c := cells[id-b.C0]
-		if c == nil {
-			continue
-		}
-		k := id - b.C0
-		bd := seastate.NewBulkDepth(e.cat.Depth[id], e.consts.G) // NaN/+Inf: deep water
-		for t := 0; t < b.NT; t++ {
-			st := &times[t]
-			i := t*nc + k
-			hm0 := hm0s[i]
-			te, tp, dir := nan, nan, nan
+	k0, w := lo-b.C0, hi-lo
+	sc := bulkScratch.Get().(*[]float64)
+	defer bulkScratch.Put(sc)
+	if cap(*sc) < 2*b.NT*w {
+		*sc = make([]float64, 2*b.NT*w)
+	}
+	jv, tev := (*sc)[:b.NT*w], (*sc)[b.NT*w:2*b.NT*w] // [t*w + k-k0]
+	bds := make([]seastate.BulkDepth, w)
+	for k := range bds {
+		bds[k] = seastate.NewBulkDepth(e.cat.Depth[lo+k], e.consts.G) // NaN/+Inf: deep water
+	}
+	for t := 0; t < b.NT; t++ {
+		row := t * nc
+		for k := 0; k < w; k++ {
+			i := row + k0 + k
+			te, tp := nan, nan
+			if tes != nil {
+				te = tes[i]
+			}
 			if tps != nil {
 				tp = tps[i]
 			}
-			if tes != nil {
-				te = tes[i]
-			} else {
-				te = seastate.TeFromTp(tp, alpha)
+			bd := bds[k]
+			if depths != nil {
+				bd = seastate.NewBulkDepthAt(depths[i], e.consts.G) // depth varying in time: this step's
+			}
+			tev[t*w+k], jv[t*w+k] = seastate.BulkStep(bd, hm0s[i], te, tp, tes != nil, alpha, e.consts)
+		}
+	}
+	for k := 0; k < w; k++ {
+		c := cells[k0+k]
+		if c == nil {
+			continue
+		}
+		for t := 0; t < b.NT; t++ {
+			st := &times[t]
+			i := t*nc + k0 + k
+			tp, dir := nan, nan
+			if tps != nil {
+				tp = tps[i]
 			}
 			if dirs != nil {
 				dir = dirs[i]
 			}
-			j := nan
-			dry := false
-			if depths != nil {
-				// Depth varying in time: this step's depth; a step whose depth
-				// is missing or <= 0 (dry) has no power.
-				bd = seastate.NewBulkDepth(depths[i], e.consts.G)
-				dry = !(depths[i] > 0)
-			}
-			if hm0 >= 0 && te > 0 && !dry {
-				j = bd.Power(hm0, te, e.consts) // cg from the table, rel. error < 1e-9
-			}
+			hm0, te, j := hm0s[i], tev[t*w+k], jv[t*w+k]
 			c.clim.AddAt(&st.ct, j, hm0, te, tp, dir)
 			c.clim.AddDirection(&st.ct, j, dir)
 			c.col.Add(st.year, st.month, st.hours, hm0, te, tp)
 		}
 	}
 }
+
+// bulkScratch holds feedBulk's per-call arrays (Te and J of a block's cells).
+var bulkScratch = sync.Pool{New: func() any { return new([]float64) }}
 
 // allMissing reports whether every bin of a spectrum is missing (NaN): the
 // step is then a missing step. A spectrum with some bins missing is used,
@@ -226,9 +246,12 @@ func (e *engine) blockTimes(b *ingest.Block) []stepTime {
 
 // streamPass reads the record for cells c0..c1-1 and feeds their states with
 // workers goroutines, each owning a fixed sub-range of cells (no locks on the
-// hot path). After the last block of each file it calls fileDone with the
-// index of the next file to read, while all workers are idle.
-func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, cells []*cell,
+// hot path). The reader only reads (raw blocks); each worker unpacks its own
+// cells of a block (ingest.Block.Cook) and tallies what it found. After the
+// last block of each file, while all workers are idle, it adds to seen the
+// counts of the role files now read completely (ingest.Catalog.Settle) and
+// calls fileDone with the index of the next file to read.
+func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, cells []*cell, seen ingest.Tally,
 	fileDone func(next int) error, progress func(steps int)) error {
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
@@ -236,7 +259,7 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 	readErr := make(chan error, 1)
 	go func() {
 		readErr <- catchPanic(func() error {
-			return e.cat.Read(ctx, ingest.ReadRange{C0: c0, C1: c1, MaxSteps: e.spec.Run.BlockSteps, FromFile: fromFile, Stats: &e.times.read}, blocks)
+			return e.cat.Read(ctx, ingest.ReadRange{C0: c0, C1: c1, MaxSteps: e.spec.Run.BlockSteps, FromFile: fromFile, Stats: &e.times.read, Raw: true}, blocks)
 		})
 		close(blocks)
 	}()
@@ -255,9 +278,13 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 	var failed failure // a worker's panic, as an internal error
 	chans := make([]chan job, workers)
 	busy := make([]time.Duration, workers)
+	cook := make([]time.Duration, workers)
+	tallies := make([]ingest.Tally, workers) // each worker's counts since the last file
+	pending := ingest.Tally{}                // counts of role files not yet read completely
 	var all sync.WaitGroup
 	for w := 0; w < workers; w++ {
 		chans[w] = make(chan job, 1)
+		tallies[w] = ingest.Tally{}
 		lo, hi := c0+n*w/workers, c0+n*(w+1)/workers
 		all.Add(1)
 		go func(w int, ch chan job) {
@@ -267,6 +294,10 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 				if !failed.set() {
 					failed.record(catchPanic(func() error {
 						panicHook("stream")
+						j.b.Cook(lo, hi, tallies[w])
+						tc := time.Now()
+						cook[w] += tc.Sub(t)
+						t = tc
 						e.feed(j.b, j.times, cells, lo, hi)
 						return nil
 					}))
@@ -281,8 +312,9 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 			close(ch)
 		}
 		all.Wait()
-		for _, d := range busy {
-			e.times.feedBusy += d
+		for w := range busy {
+			e.times.feedBusy += busy[w]
+			e.times.cookBusy += cook[w]
 		}
 	}
 	for {
@@ -307,6 +339,11 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 				stop()
 				return err // no checkpoint of a state a panic left
 			}
+			for w := range tallies {
+				pending.Add(tallies[w])
+				clear(tallies[w])
+			}
+			e.cat.Settle(pending, seen, b.File, fromFile, c0, c1)
 			if progress != nil {
 				progress(0)
 			}

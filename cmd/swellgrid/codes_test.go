@@ -55,8 +55,9 @@ func TestCorpusExitCodes(t *testing.T) {
 				t.Fatalf("exit code %d, want %d: %s", code, c.Exit, stderr)
 			}
 			// What the catalog or the spec check finds is found before the
-			// output directory is created.
-			if c.Stage == "catalog" || c.Stage == "spec" {
+			// output directory is created; what the read finds (a variable
+			// without data) removes the directory the run created.
+			if c.Stage == "catalog" || c.Stage == "spec" || c.Stage == "read" {
 				if _, err := os.Stat(out); err == nil {
 					t.Errorf("the refusal (stage %s) created the output directory %s", c.Stage, out)
 				}

@@ -275,7 +275,7 @@ func Cases() []Case {
 				setAt(jan.v("hm0"), math.Inf(-1), 19*cell+4)
 				setAt(jan.v("te"), math.Inf(1), 29*cell+4)
 			})},
-		{Name: "hm0_all_fill", Breaks: "every Hm0 value is the fill value", Outcome: Refused, Exit: 2, Stage: "catalog",
+		{Name: "hm0_all_fill", Breaks: "every Hm0 value is the fill value", Outcome: Refused, Exit: 2, Stage: "read",
 			Want:  []string{"cx_2001-02.nc", `"hm0"`, "every value is a fill value", "map role hm0"},
 			build: bulkCase(func(_, feb *ncDesc) { setAt(feb.v("hm0"), -999, seq(len(feb.v("hm0").data))...) })},
 		{Name: "spectrum_nan_steps", Breaks: "NaN spectra at isolated steps", Outcome: Flagged, Exit: 0, Stage: "compute",

@@ -192,7 +192,7 @@ func strictCases() []Case {
 		{Name: "attr_scale_1e308", Breaks: "hm0 packed as short with scale_factor 1e308 (unpacks to infinity)", Outcome: Refused, Exit: 2, Stage: "catalog",
 			Want:  []string{"cx_2001-01.nc", `"hm0"`, "scale_factor", "1e+308", "fix the packing attributes"},
 			build: bulkCase(packShort(1e308, 0))},
-		{Name: "attr_scale_negative", Breaks: "hm0 packed as short with scale_factor -0.001: every height negative", Outcome: Refused, Exit: 2, Stage: "catalog",
+		{Name: "attr_scale_negative", Breaks: "hm0 packed as short with scale_factor -0.001: every height negative", Outcome: Refused, Exit: 2, Stage: "read",
 			Want:  []string{"cx_2001-01.nc", `"hm0"`, "impossible for role hm0", "scale_factor -0.001"},
 			build: bulkCase(packShort(-0.001, 0))},
 		{Name: "attr_offset_inf", Breaks: "te add_offset = -Inf", Outcome: Refused, Exit: 2, Stage: "catalog",

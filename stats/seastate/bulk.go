@@ -36,3 +36,27 @@ func BulkPowerFinite(hm0, te, h float64, c Consts) float64 {
 	}
 	return c.Rho * c.G * hm0 * hm0 * GroupVelocity(1/te, h, c.G) / 16
 }
+
+// BulkStep is the power of one step of a run on bulk parameters (the
+// bulk-power choice): the energy period
+//
+//	Te = te               when the record has one (haveTe),
+//	Te = alpha Tp         otherwise (TeFromTp, the IEC TS 62600-101 fallback),
+//
+// and the power per metre of crest (W/m)
+//
+//	J = rho g Hm0^2 cg(1/Te, h) / 16
+//
+// (IEC TS 62600-101 bulk approximation; BulkDepth.Power, cg from the G(y)
+// table, exact deep-water value rho g^2 Hm0^2 Te / (64 pi) in deep water).
+// J is NaN when Hm0 is missing or negative, Te is missing or not positive,
+// or the step is dry (NewBulkDepthAt). It returns the Te used and J.
+func BulkStep(d BulkDepth, hm0, te, tp float64, haveTe bool, alpha float64, c Consts) (teUsed, j float64) {
+	if !haveTe {
+		te = TeFromTp(tp, alpha)
+	}
+	if hm0 >= 0 && te > 0 && !d.dry {
+		return te, d.Power(hm0, te, c)
+	}
+	return te, math.NaN()
+}

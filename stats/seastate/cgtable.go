@@ -125,8 +125,19 @@ func GroupVelocityFast(f, h, g float64) float64 {
 // that y = omega^2 h / g = (4 pi^2 h / g) / Te^2.
 type BulkDepth struct {
 	deep   bool
+	dry    bool // a step whose depth is missing or <= 0 (NewBulkDepthAt)
 	sqrtGH float64
 	yCoef  float64
+}
+
+// NewBulkDepthAt returns the constants of the depth h (m) of one step when
+// the depth varies in time: h missing (NaN) or <= 0 is a dry step, without
+// power (BulkStep); +Inf is deep water.
+func NewBulkDepthAt(h, g float64) BulkDepth {
+	if !(h > 0) {
+		return BulkDepth{deep: true, dry: true}
+	}
+	return NewBulkDepth(h, g)
 }
 
 // NewBulkDepth returns the constants of depth h (m); h NaN, +Inf or <= 0
