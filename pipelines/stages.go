@@ -50,7 +50,7 @@ type job struct {
 	streamed bool
 	// sums are the inputs' checksums (Run; nil in a merge, which trusts
 	// the shards' verified inputs).
-	sums    *checksums
+	sums *checksums
 	// seen is, per pass, what its cells have read of each role variable
 	// (restored with the pass's states, or counted while streaming).
 	seen    map[int]ingest.Tally
