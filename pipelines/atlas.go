@@ -20,10 +20,11 @@ import (
 // (re)build.
 type Products struct {
 	Report, NetCDF, GeoPackage bool
+	Workers                    int // report figures rendered at once (0: one per core)
 }
 
 func (s *Spec) products() Products {
-	return Products{Report: s.Output.Report, NetCDF: s.Output.NetCDF, GeoPackage: s.Output.GeoPackage}
+	return Products{Report: s.Output.Report, NetCDF: s.Output.NetCDF, GeoPackage: s.Output.GeoPackage, Workers: s.Run.Workers}
 }
 
 func checkSites(sites []SiteSpec) error {
@@ -67,7 +68,7 @@ func buildProducts(out string, manifest []byte, p Products) ([]string, []string,
 		files = append(files, gpkg.FileName)
 	}
 	if p.Report {
-		rf, rw, err := atlasreport.Build(r)
+		rf, rw, err := atlasreport.BuildWith(r, p.Workers)
 		if err != nil {
 			return nil, nil, err
 		}

@@ -91,7 +91,12 @@ type indexView struct {
 
 // Build writes r.Dir/report/ (replacing an earlier one once the new one is
 // complete) and returns the files written, relative to r.Dir, and warnings.
-func Build(r *rundir.Run) ([]string, []string, error) {
+// It renders the figures on all cores; BuildWith bounds that.
+func Build(r *rundir.Run) ([]string, []string, error) { return BuildWith(r, 0) }
+
+// BuildWith is Build rendering the figures with at most workers goroutines
+// (0: one per core). The files do not depend on the number.
+func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 	tmp, err := os.MkdirTemp(r.Dir, ".report.partial-")
 	if err != nil {
 		return nil, nil, fmt.Errorf("report: %w", err)
@@ -107,6 +112,11 @@ func Build(r *rundir.Run) ([]string, []string, error) {
 		for _, n := range names {
 			files = append(files, filepath.Join(Dir, n))
 		}
+	}
+	var queue []*figure // rendered after the pages' data is gathered, in parallel
+	save := func(_ string, f *figure) ([]string, error) {
+		queue = append(queue, f)
+		return figureFiles(f), nil
 	}
 	m := r.Manifest
 	v := &indexView{Title: "Wave-energy resource atlas", Caution: m.Caution, Software: m.Software, Version: m.Version, CSS: template.CSS(css)}
@@ -208,6 +218,9 @@ func Build(r *rundir.Run) ([]string, []string, error) {
 		return nil, nil, err
 	}
 	add("index.html")
+	if err := renderAll(tmp, queue, workers); err != nil {
+		return nil, nil, err
+	}
 	final := filepath.Join(r.Dir, Dir)
 	old := final + ".old"
 	os.RemoveAll(old)
