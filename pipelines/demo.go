@@ -26,7 +26,10 @@ type DemoResult struct {
 	Dir      string
 	Hindcast []string
 	Runs     []DemoRun
-	Wall     time.Duration
+	// Validation is the grid atlas against the invented station
+	// (demo_station.go).
+	Validation *ValidateResult
+	Wall       time.Duration
 }
 
 // DemoSpecs returns the specs of the demo's two atlases: bulk fields on the
@@ -84,6 +87,16 @@ func Demo(ctx context.Context, dir string, opt Options) (*DemoResult, error) {
 			return nil, err
 		}
 		res.Runs = append(res.Runs, DemoRun{Name: name, Input: spec.Input.Paths[0], Result: r})
+		if i == 0 {
+			// An invented station at the first site, validated against the grid atlas.
+			st := filepath.Join(hind, "synthetic_station.csv")
+			if err := writeDemoStation(ctx, spec.Output.Dir, st, spec.Sites[0].Lon, spec.Sites[0].Lat); err != nil {
+				return nil, fmt.Errorf("demo: synthetic station: %w", err)
+			}
+			if res.Validation, err = Validate(ctx, ValidateOptions{RunDir: spec.Output.Dir, Obs: []string{st}}); err != nil {
+				return nil, fmt.Errorf("demo: validation: %w", err)
+			}
+		}
 	}
 	res.Wall = time.Since(t0)
 	return res, nil

@@ -57,6 +57,15 @@ it wrote and which files to open in GIS software.
 					fmt.Fprintf(w, "           warning: %s\n", wr)
 				}
 			}
+			if v := res.Validation; v != nil {
+				for _, st := range v.Summary.Stations {
+					line := fmt.Sprintf("validation %s (invented station, %s) against %s: %d matched times", st.Name, st.Source, v.OutDir, st.Matched)
+					if h := st.Record["hm0"]; h != nil && h["bias"] != nil && h["scatter_index"] != nil {
+						line += fmt.Sprintf(", Hm0 bias %+.3f m, scatter index %.3f", *h["bias"], *h["scatter_index"])
+					}
+					fmt.Fprintln(w, line)
+				}
+			}
 			g := res.Runs[0].Result.OutDir
 			fmt.Fprintf(w, "open in GIS: %s (points, GeoParquet), %s and %s (contours, GeoJSON)\n",
 				filepath.Join(g, "cells.parquet"), filepath.Join(g, "contours", "power_mean_kw_m.bands.geojson"), filepath.Join(g, "contours", "power_mean_kw_m.geojson"))
