@@ -124,7 +124,11 @@ func TestScreeningSummaryByHand(t *testing.T) {
 	rel := func(name string, got *float64, want float64) {
 		t.Helper()
 		if got == nil || math.Abs(*got-want) > 1e-9*math.Abs(want) {
-			t.Errorf("%s: got %v, by hand %v", name, got, want)
+			if got == nil {
+				t.Errorf("%s: null, by hand %v", name, want)
+			} else {
+				t.Errorf("%s: got %v, by hand %v", name, *got, want)
+			}
 		}
 	}
 	if s.Cells != 5 || s.CellsWithoutAEP != 1 {
