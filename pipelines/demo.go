@@ -14,6 +14,16 @@ import (
 //go:embed examples/demo_device.csv
 var demoDeviceCSV []byte
 
+// The demo's invented constraint layers: a reserve with an open corridor
+// (a hole) and a shipping lane, and two points (a harbour, a grid
+// connection); every feature says it is invented.
+var (
+	//go:embed examples/demo_reserve.geojson
+	demoReserve []byte
+	//go:embed examples/demo_ports.geojson
+	demoPorts []byte
+)
+
 // DemoRun is one atlas the demo made.
 type DemoRun struct {
 	Name   string
@@ -48,6 +58,14 @@ func DemoSpecs(dir string) []*Spec {
 	grid := mk("nullport_bulk_*.nc", "atlas-grid", []string{"power_mean_kw_m", "hm0_mean_m", "hm0_p90_m", "mvi", "aep_demo_wec_mwh"})
 	// Two invented places of interest get a report page each.
 	grid.Sites = []SiteSpec{{Name: "Outer shelf mooring (invented)", Lon: -32.0, Lat: 45.6}, {Name: "Inner shelf (invented)", Lon: -34.4, Lat: 45.1}}
+	// A screening scenario on invented constraint layers.
+	grid.Screening = &ScreeningSpec{
+		Layers: []ScreenLayerSpec{{Name: "reserve", File: filepath.Join(hind, "demo_reserve.geojson")}, {Name: "ports", File: filepath.Join(hind, "demo_ports.geojson")}},
+		Scenarios: []ScenarioSpec{{Name: "demo_core",
+			Criteria: []string{"power_mean_kw_m >= 15", "depth_m between 30 and 150", "hm0_rl100y_m <= 14", "cf_demo_wec >= 0.1"},
+			Exclude:  []string{"reserve"}, Distance: []DistanceRule{{Layer: "ports", MaxKm: 150}},
+			Device: "demo_wec", DevicesPerKm2: 2}},
+	}
 	return []*Spec{
 		grid,
 		mk("nullport_spec_*.nc", "atlas-spectral-points", nil),
@@ -73,8 +91,10 @@ func Demo(ctx context.Context, dir string, opt Options) (*DemoResult, error) {
 		}
 		files = append(files, f...)
 	}
-	if err := os.WriteFile(filepath.Join(hind, "demo_device.csv"), demoDeviceCSV, 0o644); err != nil {
-		return nil, outputError(fmt.Errorf("demo: %w", err))
+	for name, b := range map[string][]byte{"demo_device.csv": demoDeviceCSV, "demo_reserve.geojson": demoReserve, "demo_ports.geojson": demoPorts} {
+		if err := os.WriteFile(filepath.Join(hind, name), b, 0o644); err != nil {
+			return nil, outputError(fmt.Errorf("demo: %w", err))
+		}
 	}
 	res := &DemoResult{Dir: dir, Hindcast: files}
 	for i, spec := range DemoSpecs(dir) {

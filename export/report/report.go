@@ -151,6 +151,12 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 		}
 		v.Maps = append(v.Maps, pageFigure{Title: fig.Title, Caption: fig.Caption, PNG: names[0], SVG: names[1], Map: info})
 	}
+	sm, smFiles, err := screeningMaps(r, tmp) // screening.go
+	if err != nil {
+		return nil, nil, err
+	}
+	add(smFiles...)
+	v.Maps = append(v.Maps, sm...)
 	sites, sw := Sites(r)
 	warns = append(warns, sw...)
 	for _, s := range sites {

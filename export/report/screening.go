@@ -1,0 +1,108 @@
+package report
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"swellgrid/export/rundir"
+)
+
+// screeningSummary is the part of screening.json the maps' captions use.
+type screeningSummary struct {
+	Note      string `json:"note"`
+	Scenarios []struct {
+		Name            string   `json:"name"`
+		Criteria        []string `json:"criteria"`
+		Exclude         []string `json:"exclude"`
+		Within          []string `json:"within"`
+		Cells           int      `json:"cells_passing"`
+		AreaKm2         *float64 `json:"area_km2"`
+		PowerMeanKWm    *float64 `json:"power_mean_kw_m"`
+		Device          string   `json:"device"`
+		AnnualEnergyGWh *float64 `json:"annual_energy_gwh"`
+	} `json:"scenarios"`
+}
+
+// screeningMaps draws one map per screening scenario of the run (from
+// screening.parquet and screening.json): passing cells in yellow (1),
+// failing sea cells in purple (0), land in sand, into dir. A run without
+// screening has none.
+func screeningMaps(r *rundir.Run, dir string) ([]pageFigure, []string, error) {
+	b, err := os.ReadFile(filepath.Join(r.Dir, "screening.json"))
+	if os.IsNotExist(err) {
+		return nil, nil, nil
+	}
+	if err != nil {
+		return nil, nil, fmt.Errorf("report: %w", err)
+	}
+	var sum screeningSummary
+	if err := json.Unmarshal(b, &sum); err != nil {
+		return nil, nil, fmt.Errorf("report: screening.json: %w", err)
+	}
+	t, err := r.Table("screening")
+	if err != nil {
+		return nil, nil, err
+	}
+	if t == nil {
+		return nil, nil, fmt.Errorf("report: screening.json without screening.parquet in %s; rerun swellgrid screen", r.Dir)
+	}
+	ids, sc, pass := t.Col("cell_id"), t.Col("scenario"), t.Col("pass")
+	if ids == nil || sc == nil || pass == nil {
+		return nil, nil, fmt.Errorf("report: screening.parquet lacks cell_id, scenario or pass")
+	}
+	n := r.Cells.Rows
+	var figs []pageFigure
+	var files []string
+	for _, s := range sum.Scenarios {
+		v := make([]float64, n)
+		for i := range v {
+			v[i] = math.NaN()
+		}
+		for k := 0; k < t.Rows; k++ {
+			if sc.Str[k] == s.Name && int(ids.Int[k]) < n {
+				v[ids.Int[k]] = 0
+				if pass.Bool[k] {
+					v[ids.Int[k]] = 1
+				}
+			}
+		}
+		f := &Field{NX: r.NX, NY: r.NY, Points: !r.Structured(), Lon: r.Lon(), Lat: r.Lat(), Value: v, Land: r.Land, Name: "screening_" + s.Name, Unit: "1"}
+		title := "Screening scenario " + s.Name + ": passing cells (yellow)"
+		fig, info, err := Map("map_screening_"+s.Name, title, f)
+		if err != nil {
+			continue // no sea cell: nothing to draw
+		}
+		names, err := save(dir, fig)
+		if err != nil {
+			return nil, nil, err
+		}
+		files = append(files, names...)
+		var what []string
+		if len(s.Criteria) > 0 {
+			what = append(what, strings.Join(s.Criteria, ", "))
+		}
+		for _, e := range s.Exclude {
+			what = append(what, "not in "+e)
+		}
+		for _, w := range s.Within {
+			what = append(what, "in "+w)
+		}
+		c := fmt.Sprintf("Scenario %s (%s): %d cells pass (yellow, 1); failing sea cells purple (0); sand: land or masked cells.", s.Name, strings.Join(what, "; "), s.Cells)
+		if s.AreaKm2 != nil {
+			c += fmt.Sprintf(" Passing area %s km2.", fmtNum(*s.AreaKm2))
+		}
+		if s.PowerMeanKWm != nil {
+			c += fmt.Sprintf(" Area-weighted mean power %s kW/m.", fmtNum(*s.PowerMeanKWm))
+		}
+		if s.Device != "" && s.AnnualEnergyGWh != nil {
+			c += fmt.Sprintf(" Layout of %s: %s GWh/yr.", s.Device, fmtNum(*s.AnnualEnergyGWh))
+		}
+		c += " Reasons per cell in screening.parquet, outline in contours/screening_" + s.Name + ".geojson. " + sum.Note
+		figs = append(figs, pageFigure{Title: title, Caption: c, PNG: names[0], SVG: names[1], Map: info})
+	}
+	return figs, files, nil
+}
