@@ -571,6 +571,9 @@ func TestReportInChromium(t *testing.T) {
 	if len(want) < 5 {
 		t.Errorf("only %v have values", want)
 	}
+	// then one map per screening scenario (the demo has one, with passing
+	// and failing sea cells: a colour bar from 0 to 1)
+	want = append(want, "screening_demo_core")
 	var got []string
 	for _, m := range maps {
 		got = append(got, m.Column)
@@ -584,6 +587,9 @@ func TestReportInChromium(t *testing.T) {
 			if x := num(v); !land[k] && !math.IsNaN(x) {
 				lo, hi = math.Min(lo, x), math.Max(hi, x)
 			}
+		}
+		if strings.HasPrefix(m.Column, "screening_") {
+			lo, hi = 0, 1
 		}
 		bmin, _ := strconv.ParseFloat(m.Min, 64)
 		bmax, _ := strconv.ParseFloat(m.Max, 64)
