@@ -2,12 +2,14 @@
 """Mutation check of the column wiring (`make mutants`).
 
 Each mutation below is a plausible wiring error in the column-filling code
-(pipelines/schema.go): swapped columns, reversed percentile order, SVI into
-mvi, GEV bounds swapped, off-by-one return periods, ... For each one, the
-script copies the working tree to a temporary directory, applies the mutation
-(the text must occur exactly once), runs the end-to-end column checks and
-requires that they FAIL. It prints each mutation with the test that caught it
-and exits 1 if any mutation survived or could not be applied.
+(pipelines/schema.go, unless an edit names another file): swapped columns,
+reversed percentile order, SVI into mvi, GEV bounds swapped, off-by-one return
+periods, scatter axes transposed, seasons shifted, a window one step too
+long, ... For each one, the script copies the working tree to a temporary
+directory, applies the mutation (the text must occur exactly once), runs the
+end-to-end column checks and requires that they FAIL. It prints each mutation
+with the test that caught it and exits 1 if any mutation survived or could
+not be applied. An edit is (old, new) in FILE or (file, old, new).
 """
 import os
 import re
@@ -30,9 +32,9 @@ MUTATIONS = [
     ("SVI written into mvi",
      [("return c.r.sum.MVI }", "return c.r.sum.SVI }")]),
     ("GEV interval bounds swapped (cells)",
-     [("gevLevel(c, func(l extremes.Level) float64 { return l.Lower })", "gevLevel(c, func(l extremes.Level) float64 { return l.@@ })"),
-      ("gevLevel(c, func(l extremes.Level) float64 { return l.Upper })", "gevLevel(c, func(l extremes.Level) float64 { return l.Lower })"),
-      ("return l.@@ })", "return l.Upper })")]),
+     [("gevLevel(c, func(l extremes.Level) float64 { return l.ProfLower })", "gevLevel(c, func(l extremes.Level) float64 { return l.@@ })"),
+      ("gevLevel(c, func(l extremes.Level) float64 { return l.ProfUpper })", "gevLevel(c, func(l extremes.Level) float64 { return l.ProfLower })"),
+      ("return l.@@ })", "return l.ProfUpper })")]),
     ("GEV return level of the next period (off by one)",
      [("level(&c.r.ext.GEV, c.k)", "level(&c.r.ext.GEV, c.k+1)")]),
     ("devices swapped",
@@ -61,6 +63,53 @@ MUTATIONS = [
      [("return c.r.sum.InterannualCoV }", "return c.r.sum.PowerCoV }")]),
     ("monthly coverage filled with valid hours",
      [("return x.v.m.Coverage", "return x.v.m.ValidHours")]),
+    # the columns compared since the first 16
+    ("GPD interval bounds swapped (cells)",
+     [("gpdLevel(c, func(l extremes.Level) float64 { return l.ProfLower })", "gpdLevel(c, func(l extremes.Level) float64 { return l.@@ })"),
+      ("gpdLevel(c, func(l extremes.Level) float64 { return l.ProfUpper })", "gpdLevel(c, func(l extremes.Level) float64 { return l.ProfLower })"),
+      ("return l.@@ })", "return l.ProfUpper })")]),
+    ("GPD return levels taken from the GEV fit",
+     [("level(&c.r.ext.GPD, c.k)", "level(&c.r.ext.GEV, c.k)")]),
+    ("te_rl<T>y_s filled with the associated Tp",
+     [("return gevLevel(c, func(l extremes.Level) float64 { return l.Te }) }", "return gevLevel(c, func(l extremes.Level) float64 { return l.Tp }) }")]),
+    ("above_rated and below_cutin swapped",
+     [("return device(c).AboveRatedEnergyShare }", "return device(c).@@ }"),
+      ("return device(c).BelowCutInEnergyShare }", "return device(c).AboveRatedEnergyShare }"),
+      ("return device(c).@@ }", "return device(c).BelowCutInEnergyShare }")]),
+    ("energy_outside_matrix from the time share, not the energy share",
+     [("return device(c).OutsideMatrixEnergyShare }", "return device(c).OutsideMatrixTimeShare }")]),
+    ("design periods reversed",
+     [("get(d.largest[c.k])", "get(d.largest[len(d.largest)-1-c.k])")]),
+    ("exceedance rows in reversed order",
+     [("func exceedRows(r *cellResult) []climate.ExceedRow   { return r.exceed }",
+       "func exceedRows(r *cellResult) []climate.ExceedRow   { x := append([]climate.ExceedRow(nil), r.exceed...); "
+       "for i, j := 0, len(x)-1; i < j; i, j = i+1, j-1 { x[i], x[j] = x[j], x[i] }; return x }")]),
+    ("exceedance share filled with the share below the level",
+     [("return x.v.ShareExceeded }", "return 1 - x.v.ShareExceeded }")]),
+    ("scatter axes transposed",
+     [("func(x sRow) float64 { return x.v.Hm0LoM }", "func(x sRow) float64 { return x.v.@@ }"),
+      ("func(x sRow) float64 { return x.v.TeLoS }", "func(x sRow) float64 { return x.v.Hm0LoM }"),
+      ("return x.v.@@ }", "return x.v.TeLoS }"),
+      ("return openEdge(x.v.Hm0HiM) }", "return openEdge(x.v.@@) }"),
+      ("return openEdge(x.v.TeHiS) }", "return openEdge(x.v.Hm0HiM) }"),
+      ("return openEdge(x.v.@@) }", "return openEdge(x.v.TeHiS) }")]),
+    ("weather window one step too long (strictly longer than the duration)",
+     [("stats/climate/state.go", "\t\t\tif r.len < D {\n", "\t\t\tif r.len <= D {\n"),
+      ("stats/climate/state.go", "\t\t\tif prev < D {\n", "\t\t\tif prev <= D {\n")]),
+    ("windows_per_month and fraction_in_windows swapped",
+     [("return x.v.FractionInWindows }", "return x.v.@@ }"),
+      ("return x.v.WindowsPerMonth }", "return x.v.FractionInWindows }"),
+      ("return x.v.@@ }", "return x.v.WindowsPerMonth }")]),
+    ("seasons shifted by one month (DJF = Jan-Mar, ...)",
+     [("stats/climate/summary.go", '{{"DJF", [3]int{12, 1, 2}}, {"MAM", [3]int{3, 4, 5}}, {"JJA", [3]int{6, 7, 8}}, {"SON", [3]int{9, 10, 11}}}',
+       '{{"DJF", [3]int{1, 2, 3}}, {"MAM", [3]int{4, 5, 6}}, {"JJA", [3]int{7, 8, 9}}, {"SON", [3]int{10, 11, 12}}}')]),
+    ("calendar-month climatology off by one (month m shows month m+1)",
+     [("stats/climate/tables.go", "MonthRow{Month: m + 1, PowerMeanKWm: cl.monthJ[m], Hm0MeanM: cl.monthH[m],",
+       "MonthRow{Month: m + 1, PowerMeanKWm: cl.monthJ[(m+1)%12], Hm0MeanM: cl.monthH[(m+1)%12],")]),
+    ("threshold ladder shape interval bounds swapped",
+     [("return x.v.ShapeLo }", "return x.v.@@ }"),
+      ("return x.v.ShapeHi }", "return x.v.ShapeLo }"),
+      ("return x.v.@@ }", "return x.v.ShapeHi }")]),
 ]
 
 
@@ -69,20 +118,27 @@ def main():
     tmp = tempfile.mkdtemp(prefix="swellgrid-mutants-")
     src = os.path.join(tmp, "src")
     shutil.copytree(root, src, ignore=shutil.ignore_patterns(".git", "bin", "test-out", "bench-out", "demo-out", "out"))
-    path = os.path.join(src, FILE)
-    orig = open(path).read()
     survived = 0
+    only = sys.argv[1:]  # optional: run only mutations whose name contains one of these
     try:
         for name, edits in MUTATIONS:
-            text = orig
-            for old, new in edits:
+            if only and not any(o in name for o in only):
+                continue
+            texts = {}
+            for e in edits:
+                f, old, new = e if len(e) == 3 else (FILE, e[0], e[1])
+                if f not in texts:
+                    texts[f] = open(os.path.join(src, f)).read()
+                text = texts[f]
                 if text.count(old) != 1:
-                    print("CANNOT APPLY  %s: %r occurs %d times" % (name, old, text.count(old)))
+                    print("CANNOT APPLY  %s: %r occurs %d times in %s" % (name, old, text.count(old), f))
                     survived += 1
                     break
-                text = text.replace(old, new)
+                texts[f] = text.replace(old, new)
             else:
-                open(path, "w").write(text)
+                origs = {f: open(os.path.join(src, f)).read() for f in texts}
+                for f, text in texts.items():
+                    open(os.path.join(src, f), "w").write(text)
                 r = subprocess.run(["go", "test", "-count=1", "-run", TESTS, "./pipelines/"], cwd=src,
                                    capture_output=True, text=True)
                 failed = sorted(set(re.findall(r"--- FAIL: (\S+)", r.stdout)))
@@ -95,7 +151,8 @@ def main():
                 else:
                     print("SURVIVED  %s" % name)
                     survived += 1
-            open(path, "w").write(orig)
+                for f, text in origs.items():
+                    open(os.path.join(src, f), "w").write(text)
     finally:
         shutil.rmtree(tmp, ignore_errors=True)
     print("%d mutations, %d not caught" % (len(MUTATIONS), survived))

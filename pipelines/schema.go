@@ -372,12 +372,21 @@ var scatterSchema = []column[sRow]{
 	cellID[climate.ScatterRow](),
 	cellName[climate.ScatterRow](),
 	f64Col("hm0_lo_m", "m", "", "", "Hm0 bin lower edge", func(x sRow) float64 { return x.v.Hm0LoM }),
-	f64Col("hm0_hi_m", "m", "", "", "Hm0 bin upper edge (null: open bin)", func(x sRow) float64 { return x.v.Hm0HiM }),
+	f64Col("hm0_hi_m", "m", "", "", "Hm0 bin upper edge (null: open bin)", func(x sRow) float64 { return openEdge(x.v.Hm0HiM) }),
 	f64Col("te_lo_s", "s", "", "", "Te bin lower edge", func(x sRow) float64 { return x.v.TeLoS }),
-	f64Col("te_hi_s", "s", "", "", "Te bin upper edge (null: open bin)", func(x sRow) float64 { return x.v.TeHiS }),
+	f64Col("te_hi_s", "s", "", "", "Te bin upper edge (null: open bin)", func(x sRow) float64 { return openEdge(x.v.TeHiS) }),
 	f64Col("hours", "h", "", "", "time in the bin", func(x sRow) float64 { return x.v.Hours }),
 	f64Col("time_share", "1", "", "", "share of the table's time", func(x sRow) float64 { return x.v.TimeShare }),
 	f64Col("power_mean_kw_m", "kW/m", "", "time: mean", "mean wave power in the bin", func(x sRow) float64 { return x.v.PowerMeanKWm }),
+}
+
+// openEdge writes the +Inf upper edge of an open bin as null, as the
+// descriptions say.
+func openEdge(v float64) float64 {
+	if math.IsInf(v, 1) {
+		return math.NaN()
+	}
+	return v
 }
 
 type xRow = longRow[climate.ExceedRow]

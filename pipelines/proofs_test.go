@@ -1,0 +1,277 @@
+package pipelines
+
+import (
+	"os"
+	"path/filepath"
+	"regexp"
+	"sort"
+	"strings"
+	"testing"
+)
+
+// proof says which test proves a column's values against an outside
+// reference (a published value, or an independent computation with a
+// general-purpose library stored in testdata/ with its script).
+type proof struct {
+	e2e  bool   // compared in TestE2EColumnsAgainstNumpy with testdata/e2e/reference.json
+	test string // otherwise: the test that proves it (a func TestX in some _test.go file)
+	what string // what that test checks, and against what
+}
+
+// byE2E: the column is compared with testdata/e2e/reference.json by
+// TestE2EColumnsAgainstNumpy (cells.parquet: every expansion of the pattern
+// is in e2eCellTolerances; a long table: it is a key or a compared column of
+// one of e2eTables).
+var byE2E = proof{e2e: true}
+
+// by names another test and what it proves about the column.
+func by(test, what string) proof { return proof{test: test, what: what} }
+
+// columnProofs: every column of every table of the schema (Schema()), keyed
+// "file:name" with the name as the schema spells it (patterns unexpanded, e.g.
+// "cells.parquet:hm0_rl<T>y_m"). TestEveryColumnProven fails for a schema
+// column without an entry and for an entry without a column. A new column
+// gets its computation in testdata/e2e/reference.py, a tolerance in
+// e2e_columns_test.go and byE2E here, or, when another test with an outside
+// reference proves it (another input layout, a flag, a spectral-only column),
+// by("TestName", "what it checks against what").
+var columnProofs = map[string]proof{
+	// cells.parquet
+	"cells.parquet:cell_id":                             by("TestE2EColumnsAgainstNumpy", "equals the canonical row index of the fixture grid"),
+	"cells.parquet:name":                                by("TestStationNamesInEveryTable", "station names of a python3-netcdf4 point set, in every table"),
+	"cells.parquet:lon":                                 by("TestE2EColumnsAgainstNumpy", "the fixture's longitudes"),
+	"cells.parquet:lat":                                 by("TestE2EColumnsAgainstNumpy", "the fixture's latitudes"),
+	"cells.parquet:depth_m":                             byE2E,
+	"cells.parquet:steps":                               by("TestE2EColumnsAgainstNumpy", "the number of steps in the fixture's files (reference.py counts them)"),
+	"cells.parquet:coverage":                            byE2E,
+	"cells.parquet:power_mean_kw_m":                     byE2E,
+	"cells.parquet:power_std_kw_m":                      byE2E,
+	"cells.parquet:power_cov":                           byE2E,
+	"cells.parquet:power_max_kw_m":                      byE2E,
+	"cells.parquet:power_p<P>_kw_m":                     byE2E,
+	"cells.parquet:hm0_mean_m":                          byE2E,
+	"cells.parquet:hm0_p<P>_m":                          byE2E,
+	"cells.parquet:hm0_max_m":                           byE2E,
+	"cells.parquet:te_mean_s":                           byE2E,
+	"cells.parquet:tp_mean_s":                           byE2E,
+	"cells.parquet:dir_mean_deg":                        byE2E,
+	"cells.parquet:dir_max_power_deg":                   by("TestSpectralBadBinsAndMeanDirectionAgainstNumpy", "spectra written by python3-netcdf4: numpy's direction of maximum directional power (bulk: the mean direction, TestE2EColumnsAgainstNumpy)"),
+	"cells.parquet:directionality":                      by("TestE2EColumnsAgainstNumpy", "null on bulk input; spectral values: not yet compared end to end (issue 15 remainder)"),
+	"cells.parquet:width_mean":                          by("TestE2EColumnsAgainstNumpy", "null on bulk input; spectral values: not yet compared end to end (issue 15 remainder)"),
+	"cells.parquet:mvi":                                 byE2E,
+	"cells.parquet:svi":                                 byE2E,
+	"cells.parquet:interannual_cov":                     byE2E,
+	"cells.parquet:gev_loc_m":                           byE2E,
+	"cells.parquet:gev_scale_m":                         byE2E,
+	"cells.parquet:gev_shape":                           byE2E,
+	"cells.parquet:gev_years":                           by("TestE2EColumnsAgainstNumpy", "the 12 complete years of the fixture"),
+	"cells.parquet:hm0_rl<T>y_m":                        byE2E,
+	"cells.parquet:hm0_rl<T>y_lo_m":                     byE2E,
+	"cells.parquet:hm0_rl<T>y_hi_m":                     byE2E,
+	"cells.parquet:te_rl<T>y_s":                         byE2E,
+	"cells.parquet:gpd_threshold_m":                     byE2E,
+	"cells.parquet:gpd_scale_m":                         byE2E,
+	"cells.parquet:gpd_shape":                           byE2E,
+	"cells.parquet:gpd_peaks_per_year":                  byE2E,
+	"cells.parquet:hm0_pot_rl<T>y_m":                    byE2E,
+	"cells.parquet:hm0_pot_rl<T>y_lo_m":                 byE2E,
+	"cells.parquet:hm0_pot_rl<T>y_hi_m":                 byE2E,
+	"cells.parquet:hm0_depth_limit_m":                   byE2E,
+	"cells.parquet:design_hm0_<TD>y_m":                  byE2E,
+	"cells.parquet:design_te_<TD>y_s":                   byE2E,
+	"cells.parquet:aep_<device>_mwh":                    byE2E,
+	"cells.parquet:cf_<device>":                         byE2E,
+	"cells.parquet:above_rated_<device>":                byE2E,
+	"cells.parquet:below_cutin_<device>":                byE2E,
+	"cells.parquet:energy_outside_matrix_<device>_frac": byE2E,
+	"cells.parquet:bad_bins":                            by("TestSpectralBadBinsAndMeanDirectionAgainstNumpy", "missing, NaN, +Inf and negative bins counted by numpy in python3-netcdf4 spectra"),
+	"cells.parquet:invalid_values":                      by("TestE2EColumnsAgainstNumpy", "0 on the clean fixture; counted values: not yet compared with an outside count"),
+	"cells.parquet:rejected_steps":                      by("TestE2EColumnsAgainstNumpy", "0 on the clean fixture; counted steps: not yet compared with an outside count"),
+	"cells.parquet:qc_flags":                            by("TestNoReturnLevelsFromDegenerateFits", "gev_no_convergence on a flat record, depth_limited at 0.6 x 8 m (and no no_data in TestE2EColumnsAgainstNumpy)"),
+
+	// monthly.parquet: year-month rows and calendar-month and season rows
+	"monthly.parquet:cell_id":         byE2E,
+	"monthly.parquet:name":            by("TestStationNamesInEveryTable", "station names in every table"),
+	"monthly.parquet:period":          byE2E,
+	"monthly.parquet:year":            byE2E,
+	"monthly.parquet:month":           byE2E,
+	"monthly.parquet:power_mean_kw_m": byE2E,
+	"monthly.parquet:hm0_mean_m":      byE2E,
+	"monthly.parquet:valid_hours":     byE2E,
+	"monthly.parquet:coverage":        byE2E,
+	"monthly.parquet:excluded":        byE2E,
+
+	"scatter.parquet:cell_id":         byE2E,
+	"scatter.parquet:name":            by("TestStationNamesInEveryTable", "station names in every table"),
+	"scatter.parquet:hm0_lo_m":        byE2E,
+	"scatter.parquet:hm0_hi_m":        byE2E,
+	"scatter.parquet:te_lo_s":         byE2E,
+	"scatter.parquet:te_hi_s":         byE2E,
+	"scatter.parquet:hours":           byE2E,
+	"scatter.parquet:time_share":      byE2E,
+	"scatter.parquet:power_mean_kw_m": byE2E,
+
+	"exceedance.parquet:cell_id":        byE2E,
+	"exceedance.parquet:name":           by("TestStationNamesInEveryTable", "station names in every table"),
+	"exceedance.parquet:variable":       byE2E,
+	"exceedance.parquet:value":          byE2E,
+	"exceedance.parquet:share_exceeded": byE2E,
+
+	"windows.parquet:cell_id":             byE2E,
+	"windows.parquet:name":                by("TestStationNamesInEveryTable", "station names in every table"),
+	"windows.parquet:hm0_limit_m":         byE2E,
+	"windows.parquet:min_duration_h":      byE2E,
+	"windows.parquet:month":               byE2E,
+	"windows.parquet:window_hours":        byE2E,
+	"windows.parquet:valid_hours":         byE2E,
+	"windows.parquet:fraction_in_windows": byE2E,
+	"windows.parquet:windows":             byE2E,
+	"windows.parquet:windows_per_month":   byE2E,
+
+	"extremes.parquet:cell_id":            byE2E,
+	"extremes.parquet:name":               by("TestStationNamesInEveryTable", "station names in every table"),
+	"extremes.parquet:method":             byE2E,
+	"extremes.parquet:return_period_y":    byE2E,
+	"extremes.parquet:hm0_m":              byE2E,
+	"extremes.parquet:hm0_lo_m":           byE2E,
+	"extremes.parquet:hm0_hi_m":           byE2E,
+	"extremes.parquet:hm0_delta_lo_m":     byE2E,
+	"extremes.parquet:hm0_delta_hi_m":     byE2E,
+	"extremes.parquet:hm0_boot_lo_m":      by("TestE2EColumnsAgainstNumpy", "null when no bootstrap is asked; the bootstrap values themselves have no outside reference yet (TestAnalyseEndToEnd checks order and seeding only)"),
+	"extremes.parquet:hm0_boot_hi_m":      by("TestE2EColumnsAgainstNumpy", "as hm0_boot_lo_m"),
+	"extremes.parquet:te_s":               byE2E,
+	"extremes.parquet:tp_s":               byE2E,
+	"extremes.parquet:loc_or_threshold_m": byE2E,
+	"extremes.parquet:scale_m":            byE2E,
+	"extremes.parquet:shape":              byE2E,
+	"extremes.parquet:n":                  byE2E,
+	"extremes.parquet:qc_flags":           by("TestNoReturnLevelsFromDegenerateFits", "depth_limited levels of the shallow station of a python3-netcdf4 point set"),
+
+	"threshold_diagnostics.parquet:cell_id":             byE2E,
+	"threshold_diagnostics.parquet:quantile":            byE2E,
+	"threshold_diagnostics.parquet:threshold_m":         byE2E,
+	"threshold_diagnostics.parquet:n_peaks":             byE2E,
+	"threshold_diagnostics.parquet:mean_excess_m":       byE2E,
+	"threshold_diagnostics.parquet:mean_excess_lo_m":    byE2E,
+	"threshold_diagnostics.parquet:mean_excess_hi_m":    byE2E,
+	"threshold_diagnostics.parquet:shape":               byE2E,
+	"threshold_diagnostics.parquet:shape_lo":            byE2E,
+	"threshold_diagnostics.parquet:shape_hi":            byE2E,
+	"threshold_diagnostics.parquet:modified_scale_m":    byE2E,
+	"threshold_diagnostics.parquet:modified_scale_lo_m": byE2E,
+	"threshold_diagnostics.parquet:modified_scale_hi_m": byE2E,
+
+	"design.parquet:cell_id":         byE2E,
+	"design.parquet:return_period_y": byE2E,
+	"design.parquet:point":           byE2E,
+	"design.parquet:hm0_m":           byE2E,
+	"design.parquet:te_s":            byE2E,
+}
+
+// e2eParams are the parameter values of testdata/e2e/spec.toml.
+var e2eParams = map[Param][]string{
+	ParamPercentile: {"10", "50", "90", "99"},
+	ParamPeriod:     {"2", "5", "10"},
+	ParamDevice:     {"wec_a", "wec_b"},
+	ParamDesign:     {"1", "10", "50", "100"},
+}
+
+// TestEveryColumnProven: every column of every table of the schema has an
+// entry in columnProofs, every entry names a schema column, an e2e entry is
+// really compared by TestE2EColumnsAgainstNumpy, and a named test exists.
+func TestEveryColumnProven(t *testing.T) {
+	tests := testFuncs(t)
+	inSchema := map[string]bool{}
+	for _, c := range Schema() {
+		key := c.File + ":" + c.Name
+		inSchema[key] = true
+		p, ok := columnProofs[key]
+		if !ok {
+			t.Errorf("%s has no proof: compare it end to end (testdata/e2e/reference.py and a tolerance in e2e_columns_test.go, "+
+				"then %q: byE2E in columnProofs, pipelines/proofs_test.go) or name the test that proves it against an outside reference "+
+				"(%q: by(\"TestX\", \"what it checks against what\")); see DEVELOPERS.md", key, key, key)
+			continue
+		}
+		switch {
+		case p.e2e && c.File == "cells.parquet":
+			names := []string{c.Name}
+			if c.Param != NoParam {
+				names = nil
+				for _, v := range e2eParams[c.Param] {
+					names = append(names, strings.ReplaceAll(c.Name, "<"+string(c.Param)+">", v))
+				}
+			}
+			for _, n := range names {
+				if _, ok := e2eCellTolerances[n]; !ok {
+					t.Errorf("%s is marked byE2E but cells.parquet column %s has no tolerance in e2eCellTolerances (and so is not compared)", key, n)
+				}
+			}
+		case p.e2e:
+			if !e2eTableCompares(c.File, c.Name) {
+				t.Errorf("%s is marked byE2E but no entry of e2eTables compares or keys %s of %s", key, c.Name, c.File)
+			}
+		case p.test == "" || p.what == "":
+			t.Errorf("%s: a proof names its test and what it checks", key)
+		case !tests[p.test]:
+			t.Errorf("%s: proven by %s, but no test of that name exists", key, p.test)
+		}
+	}
+	var stale []string
+	for k := range columnProofs {
+		if !inSchema[k] {
+			stale = append(stale, k)
+		}
+	}
+	sort.Strings(stale)
+	for _, k := range stale {
+		t.Errorf("columnProofs has %s, which is not a column of the schema: rename or remove the entry", k)
+	}
+}
+
+func e2eTableCompares(file, col string) bool {
+	for _, tb := range e2eTables {
+		if tb.file != file {
+			continue
+		}
+		if _, ok := tb.tols[col]; ok {
+			return true
+		}
+		for _, k := range tb.keys {
+			if k == col {
+				return true
+			}
+		}
+		if col == "period" && file == "monthly.parquet" || col == "method" && file == "extremes.parquet" || col == "variable" && file == "exceedance.parquet" {
+			return true // the rows are selected (where) and matched by it
+		}
+	}
+	return false
+}
+
+// testFuncs lists the Test functions of every _test.go file of the module.
+func testFuncs(t *testing.T) map[string]bool {
+	re := regexp.MustCompile(`(?m)^func (Test\w+)\(`)
+	out := map[string]bool{}
+	err := filepath.WalkDir("..", func(p string, d os.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		if d.IsDir() && (d.Name() == "testdata" || strings.HasPrefix(d.Name(), ".")) && p != ".." {
+			return filepath.SkipDir
+		}
+		if !d.IsDir() && strings.HasSuffix(p, "_test.go") {
+			b, err := os.ReadFile(p)
+			if err != nil {
+				return err
+			}
+			for _, m := range re.FindAllSubmatch(b, -1) {
+				out[string(m[1])] = true
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return out
+}
