@@ -273,9 +273,7 @@ func parseRefDate(s string, c Calendar) (Stamp, error) {
 	s = strings.Replace(s, "T", " ", 1)
 	offset := 0
 	// Trailing zone: Z, UTC, or +hh[:mm] / -hh[:mm].
-	if strings.HasSuffix(s, "Z") {
-		s = strings.TrimSuffix(s, "Z")
-	}
+	s = strings.TrimSuffix(s, "Z")
 	parts := strings.Fields(s)
 	if len(parts) > 0 && strings.EqualFold(parts[len(parts)-1], "UTC") {
 		parts = parts[:len(parts)-1]

@@ -50,9 +50,6 @@ func (s *scan) dataVars() []VarSummary {
 	return out
 }
 
-// dataVarsOf is dataVars as recorded at scan time (the file is closed).
-func (s *scan) dataVarsOf() []VarSummary { return s.vars }
-
 // allDataVars joins the data variables of several files, each name once.
 func allDataVars(scans []*scan) []VarSummary {
 	seen := map[string]bool{}

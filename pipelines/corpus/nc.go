@@ -66,16 +66,6 @@ func (v *ncVarDesc) setNum(name string, x ...float64) {
 	v.attrs = append(v.attrs, ncAttr{name: name, num: x})
 }
 
-func (v *ncVarDesc) delAttr(name string) {
-	out := v.attrs[:0]
-	for _, a := range v.attrs {
-		if a.name != name {
-			out = append(out, a)
-		}
-	}
-	v.attrs = out
-}
-
 // ncDesc describes a whole NetCDF file before it is written.
 type ncDesc struct {
 	netcdf4 bool
@@ -198,21 +188,6 @@ func (d *ncDesc) permute(v *ncVarDesc, newDims []string, rev int) []float64 {
 		}
 	}
 	return out
-}
-
-// clone copies a description deeply, so that a case can change its copy.
-func (d *ncDesc) clone() *ncDesc {
-	c := &ncDesc{netcdf4: d.netcdf4, dims: append([]ncDim(nil), d.dims...), global: append([]ncAttr(nil), d.global...)}
-	for _, v := range d.vars {
-		nv := *v
-		nv.dims = append([]string(nil), v.dims...)
-		nv.attrs = append([]ncAttr(nil), v.attrs...)
-		if v.data != nil {
-			nv.data = append([]float64(nil), v.data...)
-		}
-		c.vars = append(c.vars, &nv)
-	}
-	return c
 }
 
 // write creates the file at path (replacing it).
