@@ -33,8 +33,22 @@ func FuzzSpec(f *testing.F) {
 		if err := s.Validate(); err != nil {
 			return
 		}
-		if a, b := s.Fingerprint(), s.Fingerprint(); a != b || len(a) != 64 {
-			t.Fatalf("fingerprint not stable: %q %q", a, b)
+		// The fingerprint follows the result-changing settings only: the
+		// execution settings and the output place leave it alone, a changed
+		// physical constant changes it (README "Usage": a changed spec refuses to resume).
+		a := s.Fingerprint()
+		if len(a) != 64 {
+			t.Fatalf("fingerprint %q is not a hex SHA-256", a)
+		}
+		moved := *s
+		moved.Output.Dir, moved.Run.Workers, moved.Run.MemoryLimit = "/elsewhere/out", s.Run.Workers+3, "64MiB"
+		if b := moved.Fingerprint(); b != a {
+			t.Fatalf("output dir, workers and memory limit changed the fingerprint: %q -> %q", a, b)
+		}
+		denser := *s
+		denser.Physics.Rho = s.Physics.Rho + 1
+		if b := denser.Fingerprint(); b == a {
+			t.Fatalf("physics.rho %g -> %g left the fingerprint %q", s.Physics.Rho, denser.Physics.Rho, a)
 		}
 	})
 }
