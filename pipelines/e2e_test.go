@@ -163,7 +163,9 @@ func TestSpectralPowerAgainstNumpy(t *testing.T) {
 	}
 }
 
-// A point set gets every table and no contours, and the manifest says why.
+// A point set gets every table and no contours, and the manifest says why;
+// its cells' values equal the python3-netcdf4/numpy/scipy computation of
+// testdata/pipeline/make_layout_ref.py.
 func TestPointSetRun(t *testing.T) {
 	out := t.TempDir()
 	mustRun(t, testSpec(t, "testdata/points_bulk.nc", out))
@@ -175,14 +177,52 @@ func TestPointSetRun(t *testing.T) {
 	if !bytes.Contains(m, []byte("point set")) || !bytes.Contains(m, []byte("screening estimates")) {
 		t.Error("manifest lacks the no-contour reason or the caution")
 	}
+	compareLayoutRef(t, out, "points_bulk")
 }
 
-// A curvilinear grid gets contour layers.
+// A curvilinear grid gets contour layers, and its cells (land cells null)
+// the values of testdata/pipeline/make_layout_ref.py.
 func TestCurvilinearRun(t *testing.T) {
 	out := t.TempDir()
 	mustRun(t, testSpec(t, "testdata/curvilinear_bulk.nc", out))
 	requireFiles(t, out, allTables...)
 	requireFiles(t, out, "contours/power_mean_kw_m.geojson", "contours/hm0_mean_m.bands.geojson")
+	compareLayoutRef(t, out, "curvilinear_bulk")
+}
+
+// compareLayoutRef matches the cells of a run with the reference's by
+// lon/lat and compares mean power, mean and largest Hm0 and mean Te
+// (tolerances: the fixed-point sums of stats/climate, see e2eCellTolerances).
+func compareLayoutRef(t *testing.T, out, fixture string) {
+	t.Helper()
+	var ref map[string]any
+	readRef(t, "../testdata/pipeline/layout_ref.json", &ref)
+	rows, _ := ref[fixture].([]any)
+	cols, err := parquetread.Columns(filepath.Join(out, "cells.parquet"), "lon", "lat", "power_mean_kw_m", "hm0_mean_m", "hm0_max_m", "te_mean_s")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) == 0 || len(rows) != len(cols["lon"]) {
+		t.Fatalf("%s: %d cells, the reference %d", fixture, len(cols["lon"]), len(rows))
+	}
+	at := map[[2]float64]int{}
+	for i := range cols["lon"] {
+		at[[2]float64{math.Round(asFloat(cols["lon"][i]) * 1e9), math.Round(asFloat(cols["lat"][i]) * 1e9)}] = i
+	}
+	tols := map[string]tol{"power_mean_kw_m": tolPower, "hm0_mean_m": tolHm0, "hm0_max_m": tolHm0, "te_mean_s": tolHm0}
+	for _, x := range rows {
+		r := x.(map[string]any)
+		i, ok := at[[2]float64{math.Round(asFloat(r["lon"]) * 1e9), math.Round(asFloat(r["lat"]) * 1e9)}]
+		if !ok {
+			t.Errorf("%s: no cell at (%v, %v)", fixture, r["lon"], r["lat"])
+			continue
+		}
+		for c, tl := range tols {
+			if got, want := asFloat(cols[c][i]), asFloat(r[c]); !near(got, want, tl) {
+				t.Errorf("%s cell at (%v, %v): %s = %.9g, numpy %.9g", fixture, r["lon"], r["lat"], c, got, want)
+			}
+		}
+	}
 }
 
 func TestSpecUnknownKeyAndBadValues(t *testing.T) {
