@@ -647,6 +647,15 @@ func (s *scan) packing(v *ncVar, vi *VarInfo) error {
 	return nil
 }
 
+// typeIsInt reports whether a NetCDF type is an integer type.
+func typeIsInt(t netcdf.Type) bool {
+	switch t {
+	case netcdf.BYTE, netcdf.UBYTE, netcdf.SHORT, netcdf.USHORT, netcdf.INT, netcdf.UINT, netcdf.INT64, netcdf.UINT64:
+		return true
+	}
+	return false
+}
+
 // typeRange is the range of values of an integer NetCDF type of up to 32 bits
 // (0, 0 for other types).
 func typeRange(t netcdf.Type) (float64, float64) {
