@@ -166,6 +166,63 @@ var columnProofs = map[string]proof{
 	"design.parquet:point":           byE2E,
 	"design.parquet:hm0_m":           byE2E,
 	"design.parquet:te_s":            byE2E,
+
+	// directions.parquet (the rose developer's table)
+	"directions.parquet:cell_id":           by("TestDirectionsAgainstNumpy", "every row against testdata/directions/reference.py (numpy) on the e2e bulk fixture and a python3-netcdf4 spectral fixture"),
+	"directions.parquet:name":              by("TestStationNamesInEveryTable", "station names in every table; not yet checked for directions.parquet by that test"),
+	"directions.parquet:sector":            by("TestDirectionsAgainstNumpy", "as cell_id"),
+	"directions.parquet:sector_centre_deg": by("TestDirectionsAgainstNumpy", "as cell_id"),
+	"directions.parquet:sector_from_deg":   by("TestDirectionsAgainstNumpy", "as cell_id"),
+	"directions.parquet:sector_to_deg":     by("TestDirectionsAgainstNumpy", "as cell_id"),
+	"directions.parquet:power_share":       by("TestDirectionsAgainstNumpy", "as cell_id"),
+	"directions.parquet:occurrence_share":  by("TestDirectionsAgainstNumpy", "as cell_id"),
+	"directions.parquet:power_mean_kw_m":   by("TestDirectionsAgainstNumpy", "as cell_id"),
+	"directions.parquet:occurrence_hours":  by("TestDirectionsAgainstNumpy", "not among the compared columns of checkDirections yet (owner: rose)"),
+
+	// screening.parquet (the screen developer's table)
+	"screening.parquet:cell_id":         by("TestScreeningSummaryByHand", "the cells of a small grid worked out by hand"),
+	"screening.parquet:scenario":        by("TestScreeningSummaryByHand", "the scenario of the hand computation"),
+	"screening.parquet:pass":            by("TestScreeningSummaryByHand", "pass per cell, worked out by hand"),
+	"screening.parquet:reasons":         by("TestScreeningSummaryByHand", "reasons per cell, worked out by hand"),
+	"screening.parquet:area_km2":        by("TestScreeningSummaryByHand", "cell areas against pyproj Geod.polygon_area_perimeter"),
+	"screening.parquet:dist_<layer>_km": by("TestScreeningSummaryByHand", "port distances of two cells (0 km, about 142 km); geodesics against pyproj in grid"),
+
+	// validation*.parquet (the validate developer's tables): what
+	// TestValidateSyntheticStation compares with numpy, and what not yet
+	"validation.parquet:station":         by("TestValidateSyntheticStation", "the stations of the python3-netcdf4 observation files"),
+	"validation.parquet:station_lon":     by("TestValidateSyntheticStation", "not compared yet (owner: validate)"),
+	"validation.parquet:station_lat":     by("TestValidateSyntheticStation", "not compared yet (owner: validate)"),
+	"validation.parquet:cell_id":         by("TestValidateSyntheticStation", "the cell the station was made from"),
+	"validation.parquet:distance_km":     by("TestValidateBilinearAndDistance", "refusal beyond max_distance_km; the value itself not compared yet (owner: validate)"),
+	"validation.parquet:location":        by("TestValidateBilinearAndDistance", "nearest or bilinear"),
+	"validation.parquet:variable":        by("TestValidateSyntheticStation", "rows looked up by variable"),
+	"validation.parquet:unit":            by("TestValidateSyntheticStation", "not compared yet (owner: validate)"),
+	"validation.parquet:period":          by("TestValidateSyntheticStation", "rows looked up by period (record, storm tail)"),
+	"validation.parquet:n":               by("TestValidateSyntheticStation", "numpy's count of matched pairs"),
+	"validation.parquet:obs_mean":        by("TestValidateSyntheticStation", "not compared yet (owner: validate)"),
+	"validation.parquet:model_mean":      by("TestValidateSyntheticStation", "not compared yet (owner: validate)"),
+	"validation.parquet:bias":            by("TestValidateSyntheticStation", "numpy's bias and the injected bias within its standard error"),
+	"validation.parquet:rmse":            by("TestValidateSyntheticStation", "numpy's circular RMSE of the direction"),
+	"validation.parquet:scatter_index":   by("TestValidateSyntheticStation", "logged only, not compared yet (owner: validate)"),
+	"validation.parquet:r":               by("TestValidateSyntheticStation", "null for directions"),
+	"validation.parquet:slope_origin":    by("TestValidateSyntheticStation", "numpy's slope through the origin and the injected scale"),
+	"validation.parquet:slope_symmetric": by("TestValidateSyntheticStation", "logged only, not compared yet (owner: validate)"),
+	"validation_qq.parquet:station":      by("TestValidateSyntheticStation", "file written; values not compared yet (owner: validate)"),
+	"validation_qq.parquet:variable":     by("TestValidateSyntheticStation", "file written; values not compared yet (owner: validate)"),
+	"validation_qq.parquet:period":       by("TestValidateSyntheticStation", "file written; values not compared yet (owner: validate)"),
+	"validation_qq.parquet:percentile":   by("TestValidateSyntheticStation", "file written; values not compared yet (owner: validate)"),
+	"validation_qq.parquet:obs":          by("TestValidateSyntheticStation", "file written; values not compared yet (owner: validate)"),
+	"validation_qq.parquet:model":        by("TestValidateSyntheticStation", "file written; values not compared yet (owner: validate)"),
+	"validation_pairs.parquet:station":   by("TestValidateSyntheticStation", "numpy's number of matched pairs per station"),
+}
+
+func init() {
+	// validation_pairs.parquet: the row count per station is compared
+	// (TestValidateSyntheticStation), the values not yet (owner: validate).
+	for _, c := range []string{"time", "time_diff_min", "hm0_obs_m", "hm0_model_m", "te_obs_s", "te_model_s", "tp_obs_s", "tp_model_s",
+		"power_obs_kw_m", "power_model_kw_m", "dir_obs_deg", "dir_model_deg"} {
+		columnProofs["validation_pairs.parquet:"+c] = by("TestValidateSyntheticStation", "row count per station; values not compared yet (owner: validate)")
+	}
 }
 
 // e2eParams are the parameter values of testdata/e2e/spec.toml.
