@@ -144,7 +144,7 @@ func (s *scan) findMesh(timeDim string) (found bool, err error) {
 				case idx == -1 && start == 1:
 					hint = "; the indices seem to count from 0: set start_index = 0"
 				}
-				return true, errf(path, cv.name, "face %d, node %d is %v, outside the %d nodes of %s (start_index %v, valid %v..%v)%s", f, k, x, nn, mi.nodeDim, start, start, start+float64(nn)-1, hint)
+				return true, errf(path, cv.name, "face %d, node %d is %v, outside the %d nodes of dimension %q (start_index %v, valid %v..%v)%s", f, k, x, nn, mi.nodeDim, start, start, start+float64(nn)-1, hint)
 			}
 			m.FaceNode = append(m.FaceNode, int32(idx))
 		}

@@ -52,7 +52,7 @@ func buildProducts(out string, manifest []byte, p Products) ([]string, []string,
 	}
 	var files, warns []string
 	if p.NetCDF {
-		if r.Structured() {
+		if r.Structured() || r.Mesh != nil {
 			if err := raster.Write(r); err != nil {
 				return nil, nil, err
 			}

@@ -54,6 +54,13 @@ func (e *engine) writeOutputs(out string, res []*cellResult) ([]string, []string
 		}
 		written = append(written, f)
 	}
+	if e.cat.Grid.Kind == grid.MeshKind {
+		files, err := writeMeshTables(out, e.cat.Grid)
+		if err != nil {
+			return nil, nil, err
+		}
+		written = append(written, files...)
+	}
 	contour, why := contourer(e.cat.Grid, e.cat.Masked)
 	if contour == nil {
 		warns = append(warns, why)

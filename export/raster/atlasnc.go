@@ -56,7 +56,7 @@ func CFUnits(u string) string {
 // Write writes dir/atlas.nc from the run r, atomically: a temporary file in
 // dir renamed when complete. Point sets have no raster and are refused.
 func Write(r *rundir.Run) error {
-	if !r.Structured() {
+	if !r.Structured() && r.Mesh == nil {
 		return fmt.Errorf("raster: %s: the grid is a point set (%s); there is no raster to write, use cells.parquet or atlas.gpkg", r.Dir, r.Kind)
 	}
 	monthly, err := r.Table("monthly")
@@ -66,7 +66,12 @@ func Write(r *rundir.Run) error {
 	final := filepath.Join(r.Dir, FileName)
 	tmp := filepath.Join(r.Dir, "."+FileName+".partial")
 	os.Remove(tmp)
-	err = ingest.WithNetCDF(func() error { return write(tmp, r, monthly) })
+	err = ingest.WithNetCDF(func() error {
+		if r.Mesh != nil {
+			return writeMesh(tmp, r, monthly) // ugrid.go
+		}
+		return write(tmp, r, monthly)
+	})
 	if err != nil {
 		os.Remove(tmp)
 		return fmt.Errorf("raster: writing %s: %w", final, err)

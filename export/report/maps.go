@@ -25,6 +25,13 @@ type Field struct {
 	Name     string // column name
 	Unit     string
 	Levels   []float64 // isolines (nil: none)
+
+	// A mesh's map (meshmap.go): filled Shapes (triangles or faces) with a
+	// value and a land flag each, and its isolines.
+	Shapes     [][]orb.Point
+	ShapeValue []float64
+	ShapeLand  []bool
+	Isolines   func(levels []float64) ([]orb.MultiLineString, error)
 }
 
 // MapInfo says what a map shows; the HTML carries it so a reader (and the
@@ -109,9 +116,16 @@ type cellsLayer struct {
 }
 
 func (l *cellsLayer) colorOf(i int) color.Color {
-	v := l.f.Value[i]
+	v, land := l.f.Value, l.f.Land
+	if l.f.Shapes != nil {
+		v, land = l.f.ShapeValue, l.f.ShapeLand
+	}
+	return l.colorOfValue(v[i], land[i])
+}
+
+func (l *cellsLayer) colorOfValue(v float64, land bool) color.Color {
 	switch {
-	case l.f.Land[i]:
+	case land:
 		return landColor
 	case math.IsNaN(v) || math.IsInf(v, 0):
 		return noDataColor
@@ -220,13 +234,22 @@ func Map(name, title string, f *Field) (*figure, *MapInfo, error) {
 		pad := math.Max(0.05*math.Max(layer.bounds.Max[0]-layer.bounds.Min[0], layer.bounds.Max[1]-layer.bounds.Min[1]), 0.05)
 		layer.bounds = layer.bounds.Pad(pad)
 	} else {
-		layer.polys = f.cellPolygons()
+		layer.polys = f.Shapes
+		if f.Shapes == nil {
+			layer.polys = f.cellPolygons()
+		}
 		for _, poly := range layer.polys {
 			for _, p := range poly {
 				layer.bounds = layer.bounds.Extend(p)
 			}
 		}
-		if len(f.Levels) > 0 {
+		if len(f.Levels) > 0 && f.Isolines != nil {
+			lines, err := f.Isolines(f.Levels)
+			if err != nil {
+				return nil, nil, fmt.Errorf("isolines of %s: %w", f.Name, err)
+			}
+			layer.lines = lines
+		} else if len(f.Levels) > 0 && f.Shapes == nil {
 			lines, err := grid.Isolines(&grid.Field{NX: f.NX, NY: f.NY, Lon: f.Lon, Lat: f.Lat, Value: f.Value, Mask: f.Land}, f.Levels)
 			if err != nil {
 				return nil, nil, fmt.Errorf("isolines of %s: %w", f.Name, err)

@@ -128,12 +128,13 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 			continue
 		}
 		f := &Field{NX: r.NX, NY: r.NY, Points: !r.Structured(), Lon: lon, Lat: lat, Value: c.Float, Land: r.Land, Name: c.Name, Unit: c.Unit}
+		meshField(r, f) // meshmap.go: a mesh is drawn as filled triangles
 		lo, hi, n := f.Range()
 		if n == 0 {
 			notes = append(notes, fmt.Sprintf("report: no map of %s: no sea cell has a published value", c.Name))
 			continue
 		}
-		if r.Structured() && hi > lo {
+		if (r.Structured() || f.Isolines != nil) && hi > lo {
 			f.Levels = Levels(r, c.Name, lo, hi)
 		}
 		fig, info, err := Map("map_"+c.Name, mc[1]+unitSuffix(c.Unit), f)

@@ -290,8 +290,9 @@ type Run struct {
 	Cells    *Table
 	// NX, NY: the structured shape (points: NX = points, NY = 1).
 	NX, NY int
-	Kind   string // regular, curvilinear or points
+	Kind   string // regular, curvilinear, points or mesh
 	Land   []bool // masked cells (qc flag "masked"): drawn as land, no values
+	Mesh   *Mesh  // the UGRID mesh of a run on one (mesh.go), else nil
 	tables map[string]*Table
 }
 
@@ -327,6 +328,11 @@ func Open(dir string, manifest []byte) (*Run, error) {
 	for i := 0; i < cells.Rows; i++ {
 		if id.Int[i] != int64(i) {
 			return nil, fmt.Errorf("rundir: %s: cells.parquet row %d holds cell %d; rows must be in cell-id order", dir, i, id.Int[i])
+		}
+	}
+	if r.Kind == "mesh" {
+		if r.Mesh, err = readMesh(dir, cells.Rows); err != nil {
+			return nil, err
 		}
 	}
 	r.Land = make([]bool, cells.Rows)
