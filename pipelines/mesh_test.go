@@ -2,12 +2,14 @@ package pipelines
 
 import (
 	"context"
+	"encoding/json"
 	"fmt"
 	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"sort"
+	"strings"
 	"sync"
 	"testing"
 
@@ -146,6 +148,34 @@ func TestMeshMatchesGrid(t *testing.T) {
 	if nonNull < 108*20 {
 		t.Errorf("only %d non-null values compared", nonNull)
 	}
+	// atlas.nc read by xarray (check_atlas.py checks the mesh against the
+	// input itself): every per-node variable equals cells.parquet at the
+	// node's position.
+	at := checkAtlas(t, filepath.Join(mdir, "atlas.nc"), mf)
+	if at.Location != "node" || len(at.Values) < 20 {
+		t.Fatalf("atlas.nc: data on %q, %d variables", at.Location, len(at.Values))
+	}
+	checked := 0
+	for name, vals := range at.Values {
+		for i, x := range vals {
+			pos := [2]float64{at.NodeLon[i], at.NodeLat[i]}
+			want, _ := m[pos][name].(float64)
+			if iv, ok := m[pos][name].(int64); ok {
+				want = float64(iv)
+			}
+			if m[pos][name] == nil {
+				if x != nil {
+					t.Errorf("atlas.nc %s node %d: %v where cells.parquet is null", name, i, *x)
+				}
+				continue
+			}
+			if x == nil || *x != want {
+				t.Errorf("atlas.nc %s node %d: %v, cells.parquet %v", name, i, x, want)
+			}
+			checked++
+		}
+	}
+	t.Logf("atlas.nc (xarray): %d variables on %d nodes, %d values equal to cells.parquet", len(at.Values), len(at.NodeLon), checked)
 	for _, col := range []string{"power_mean_kw_m", "hm0_mean_m"} {
 		gl := isolineLengths(t, filepath.Join(gdir, "contours", col+".geojson"))
 		ml := isolineLengths(t, filepath.Join(mdir, "contours", col+".geojson"))
@@ -186,3 +216,78 @@ var (
 	pairDir  string
 	pairErr  error
 )
+
+// atlasCheck is what check_atlas.py prints.
+type atlasCheck struct {
+	Location         string                `json:"location"`
+	Values           map[string][]*float64 `json:"values"`
+	NodeLon, NodeLat []float64
+	FaceLon, FaceLat []float64
+}
+
+// checkAtlas runs testdata/ugrid/check_atlas.py (Debian python3-xarray and
+// python3-netcdf4) on a UGRID atlas.nc and its input mesh.
+func checkAtlas(t *testing.T, atlas, input string) *atlasCheck {
+	t.Helper()
+	py := testtool.NeedPython(t, "numpy", "netCDF4", "xarray")
+	abs, _ := filepath.Abs(input)
+	cmd := exec.Command(py, "testdata/ugrid/check_atlas.py", atlas, abs)
+	cmd.Dir = ".."
+	out, err := cmd.Output()
+	if err != nil {
+		msg := ""
+		if ee, ok := err.(*exec.ExitError); ok {
+			msg = string(ee.Stderr)
+		}
+		t.Fatalf("check_atlas.py %s: %v\n%s", atlas, err, msg)
+	}
+	var raw struct {
+		atlasCheck
+		NodeLon []float64 `json:"node_lon"`
+		NodeLat []float64 `json:"node_lat"`
+		FaceLon []float64 `json:"face_lon"`
+		FaceLat []float64 `json:"face_lat"`
+	}
+	if err := json.Unmarshal(out, &raw); err != nil {
+		t.Fatalf("check_atlas.py output: %v\n%s", err, out)
+	}
+	c := raw.atlasCheck
+	c.NodeLon, c.NodeLat, c.FaceLon, c.FaceLat = raw.NodeLon, raw.NodeLat, raw.FaceLon, raw.FaceLat
+	return &c
+}
+
+// TestMeshFacesEndToEnd: data on faces (faces1.nc: connectivity transposed,
+// start_index 1, fill 999999) run end to end: the mean Hm0 of face f is the
+// mean of its series 2 + 0.01 f + 0.001 k, k = 0..47 (make_ugrid.py), i.e.
+// 2.0235 + 0.01 f, in cells.parquet (at the face's position), and atlas.nc
+// (read by xarray, in the file's face order) holds the same value; no
+// contours.
+func TestMeshFacesEndToEnd(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "faces")
+	in, _ := filepath.Abs("../testdata/ugrid/faces1.nc")
+	res := clRun(t, clSpec([]string{in}, dir), Options{})
+	cells, _ := cellsByPosition(t, filepath.Join(dir, "cells.parquet"))
+	at := checkAtlas(t, filepath.Join(dir, "atlas.nc"), in)
+	if at.Location != "face" || len(at.FaceLon) != 4 || len(cells) != 4 {
+		t.Fatalf("atlas.nc: data on %q, %d faces; cells.parquet %d cells", at.Location, len(at.FaceLon), len(cells))
+	}
+	for f := 0; f < 4; f++ {
+		want := 2.0235 + 0.01*float64(f)
+		got := cells[[2]float64{at.FaceLon[f], at.FaceLat[f]}]["hm0_mean_m"]
+		// within 1e-6 m: the mean is summed from values quantised at the
+		// histogram resolution (manifest histogram_resolution).
+		if g, ok := got.(float64); !ok || math.Abs(g-want) > 1e-6 {
+			t.Errorf("face %d: cells.parquet hm0_mean_m %v, want %v", f, got, want)
+		}
+		if x := at.Values["hm0_mean_m"][f]; x == nil || *x != got {
+			t.Errorf("face %d: atlas.nc hm0_mean_m %v, cells.parquet %v", f, x, got)
+		}
+	}
+	warned := false
+	for _, w := range res.Warnings {
+		warned = warned || strings.Contains(w, "data are on the mesh's faces")
+	}
+	if _, err := os.Stat(filepath.Join(dir, "contours")); err == nil || !warned {
+		t.Errorf("face data: contours written or no warning (warnings %v)", res.Warnings)
+	}
+}

@@ -149,7 +149,7 @@ type ContourSpec struct {
 type OutputSpec struct {
 	Dir        string `toml:"dir" json:"dir"`
 	Report     bool   `toml:"report" json:"report"`         // report/index.html with maps and site pages
-	NetCDF     bool   `toml:"netcdf" json:"netcdf"`         // atlas.nc, CF raster (structured grids)
+	NetCDF     bool   `toml:"netcdf" json:"netcdf"`         // atlas.nc, CF raster (structured grids) or UGRID (meshes)
 	GeoPackage bool   `toml:"geopackage" json:"geopackage"` // atlas.gpkg, OGC GeoPackage
 }
 
