@@ -42,9 +42,10 @@ type DemoResult struct {
 	Wall       time.Duration
 }
 
-// DemoSpecs returns the specs of the demo's two atlases: bulk fields on the
-// grid and directional spectra at the offshore points of the invented
-// Nullport Shelf hindcast written into dir/hindcast.
+// DemoSpecs returns the specs of the demo's three atlases: bulk fields on the
+// grid, directional spectra at the offshore points, and bulk fields on an
+// unstructured mesh of the invented Nullport Shelf hindcast written into
+// dir/hindcast.
 func DemoSpecs(dir string) []*Spec {
 	hind := filepath.Join(dir, "hindcast")
 	mk := func(glob, out string, contours []string) *Spec {
@@ -69,11 +70,12 @@ func DemoSpecs(dir string) []*Spec {
 	return []*Spec{
 		grid,
 		mk("nullport_spec_*.nc", "atlas-spectral-points", nil),
+		mk("nullport_mesh_*.nc", "atlas-mesh", []string{"power_mean_kw_m", "hm0_mean_m"}),
 	}
 }
 
-// Demo writes the synthetic scenario and runs the whole job on it twice:
-// once on the bulk grid, once on the spectral points.
+// Demo writes the synthetic scenario and runs the whole job on it three
+// times: on the bulk grid, on the spectral points and on the mesh.
 func Demo(ctx context.Context, dir string, opt Options) (*DemoResult, error) {
 	t0 := time.Now()
 	hind := filepath.Join(dir, "hindcast")
@@ -81,7 +83,7 @@ func Demo(ctx context.Context, dir string, opt Options) (*DemoResult, error) {
 		return nil, outputError(fmt.Errorf("demo: %w", err))
 	}
 	var files []string
-	for _, sc := range []synth.Scenario{synth.Demo(), synth.DemoSpectra()} {
+	for _, sc := range []synth.Scenario{synth.Demo(), synth.DemoSpectra(), synth.DemoMesh()} {
 		if opt.Log != nil {
 			opt.Log.Info("demo: writing the synthetic hindcast", "dir", hind, "place", sc.Place, "files", sc.Name, "months", sc.Months)
 		}
@@ -98,7 +100,7 @@ func Demo(ctx context.Context, dir string, opt Options) (*DemoResult, error) {
 	}
 	res := &DemoResult{Dir: dir, Hindcast: files}
 	for i, spec := range DemoSpecs(dir) {
-		name := []string{"bulk fields on the grid", "directional spectra at offshore points"}[i]
+		name := []string{"bulk fields on the grid", "directional spectra at offshore points", "bulk fields on an unstructured mesh"}[i]
 		if opt.Log != nil {
 			opt.Log.Info("demo: atlas", "of", name, "out", spec.Output.Dir)
 		}

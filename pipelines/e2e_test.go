@@ -271,9 +271,10 @@ func TestDemo(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(res.Runs) != 2 {
+	if len(res.Runs) != 3 {
 		t.Fatalf("%d atlases", len(res.Runs))
 	}
+	checkDemoMesh(t, res.Runs[2].Result.OutDir) // mesh_test.go
 	requireFiles(t, res.Runs[0].Result.OutDir, allTables...)
 	requireFiles(t, res.Runs[0].Result.OutDir, "contours/power_mean_kw_m.bands.geojson", "contours/aep_demo_wec_mwh.geojson")
 	requireFiles(t, res.Runs[1].Result.OutDir, allTables...)

@@ -291,3 +291,37 @@ func TestMeshFacesEndToEnd(t *testing.T) {
 		t.Errorf("face data: contours written or no warning (warnings %v)", res.Warnings)
 	}
 }
+
+// checkDemoMesh: the demo's mesh atlas is a mesh run (manifest grid kind
+// "mesh"), labelled synthetic, with contours, a UGRID atlas.nc and maps;
+// its per-node mean power is finite and positive on every node.
+func checkDemoMesh(t *testing.T, dir string) {
+	t.Helper()
+	requireFiles(t, dir, allTables...)
+	requireFiles(t, dir, "contours/power_mean_kw_m.geojson", "contours/power_mean_kw_m.bands.geojson", "atlas.nc", "mesh_nodes.parquet", "mesh_faces.parquet", "report/map_power_mean_kw_m.png")
+	b, err := os.ReadFile(filepath.Join(dir, "manifest.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m struct {
+		Grid struct {
+			Kind  string `json:"kind"`
+			Cells int    `json:"cells"`
+		} `json:"grid"`
+	}
+	if err := json.Unmarshal(b, &m); err != nil {
+		t.Fatal(err)
+	}
+	if m.Grid.Kind != "mesh" || m.Grid.Cells < 50 {
+		t.Errorf("demo mesh atlas: grid %+v", m.Grid)
+	}
+	cols, err := parquetread.Columns(filepath.Join(dir, "cells.parquet"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, v := range cols["power_mean_kw_m"] {
+		if x, ok := v.(float64); !ok || !(x > 0) {
+			t.Errorf("demo mesh node %d: power_mean_kw_m %v", i, v)
+		}
+	}
+}

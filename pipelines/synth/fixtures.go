@@ -184,3 +184,24 @@ func DemoSpectra() Scenario {
 		Seed:      2018,
 	}
 }
+
+// DemoMesh is the demo's hindcast on an unstructured mesh: bulk fields on
+// the nodes of an invented triangular mesh (UGRID 1.0) of the same invented
+// coast, 10 years 3-hourly, one file per month; a separate synthetic draw.
+func DemoMesh() Scenario {
+	return Scenario{
+		Name:      "nullport_mesh",
+		Title:     "swellgrid demo: synthetic wave hindcast of the Nullport Shelf (an invented coast), bulk fields on an invented unstructured mesh",
+		Place:     "the Nullport Shelf, an invented stretch of coast",
+		Grid:      Grid{Kind: Mesh, NX: 12, NY: 9, LonMin: -35, LonMax: -31.7, LatMin: 44, LatMax: 46.4},
+		Bulk:      true,
+		KeepBits:  12,
+		Start:     Date{Year: 2011, Month: 1},
+		Months:    120,
+		StepHours: 3,
+		Calendar:  Standard,
+		Deflate:   1,
+		PerMonth:  true,
+		Seed:      2011,
+	}
+}

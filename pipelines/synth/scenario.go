@@ -15,6 +15,9 @@ const (
 	Curvilinear
 	// Points is a set of stations: dimension station, lon(station), lat(station).
 	Points
+	// Mesh is a UGRID 1.0 triangular mesh of the box's sea (mesh.go):
+	// dimension node, lon(node), lat(node), face_nodes(face, 3).
+	Mesh
 )
 
 func (k GridKind) String() string {
@@ -25,6 +28,8 @@ func (k GridKind) String() string {
 		return "curvilinear"
 	case Points:
 		return "points"
+	case Mesh:
+		return "mesh"
 	}
 	return fmt.Sprintf("GridKind(%d)", int(k))
 }

@@ -73,7 +73,7 @@ func (s *Scenario) sites() []site {
 		for iy := 0; iy < g.NY; iy++ {
 			for ix := 0; ix < g.NX; ix++ {
 				u, v := axisFrac(ix, g.NX), axisFrac(iy, g.NY)
-				lon, lat := lerp(g.LonMin, g.LonMax, u), lerp(g.LatMin, g.LatMax, v)
+				lon, lat := g.jitterSite(ix, iy, lerp(g.LonMin, g.LonMax, u), lerp(g.LatMin, g.LatMax, v))
 				if g.Kind == Curvilinear {
 					dx, dy := lon-lon0, lat-lat0
 					lon = lon0 + dx*math.Cos(a) - dy*math.Sin(a)

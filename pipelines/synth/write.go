@@ -97,6 +97,9 @@ func (s *Scenario) Write(dir string) ([]string, error) {
 	var perm []int
 	if c.Bulk {
 		perm = c.filePerm(len(sites))
+		if c.Grid.Kind == Mesh {
+			perm = meshPerm(sites) // land is where the mesh is not
+		}
 		nBulk = len(perm)
 	}
 	nSpec := 0
@@ -441,6 +444,7 @@ func (c *Scenario) createBulk(path string, nt int, sites []site, perm []int) (*n
 	var lonV, latV netcdf.Var
 	var lonVals, latVals []float64
 	auxCoords := true
+	var writeMesh func() error
 	switch g.Kind {
 	case Regular:
 		latD, lonD := d.dim("lat", g.NY), d.dim("lon", g.NX)
@@ -473,6 +477,15 @@ func (c *Scenario) createBulk(path string, nt int, sites []site, perm []int) (*n
 		for _, st := range sites {
 			lonVals, latVals = append(lonVals, st.lon), append(latVals, st.lat)
 		}
+	case Mesh:
+		nD := d.dim("node", len(perm))
+		sdims = []netcdf.Dim{nD}
+		lonV, latV = d.v("lon", netcdf.DOUBLE, nD), d.v("lat", netcdf.DOUBLE, nD)
+		d.coordAttrs(lonV, latV, false)
+		for _, si := range perm {
+			lonVals, latVals = append(lonVals, sites[si].lon), append(latVals, sites[si].lat)
+		}
+		writeMesh = c.defineMesh(d, nD, sites, perm)
 	}
 	f.perm = perm
 	f.nsp = len(f.perm)
@@ -493,6 +506,10 @@ func (c *Scenario) createBulk(path string, nt int, sites []site, perm []int) (*n
 		}
 		if auxCoords {
 			d.text(v.Attr("coordinates"), "lon lat")
+		}
+		if g.Kind == Mesh {
+			d.text(v.Attr("mesh"), "mesh")
+			d.text(v.Attr("location"), "node")
 		}
 		if k := c.KeepBits; k >= 1 && k <= 22 && c.Packing == Float32 && bv.name != depthVar.name {
 			d.text(v.Attr("synthetic_precision"), fmt.Sprintf("values rounded to %d float32 mantissa bits (relative error below %.1e) to help compression", k, math.Ldexp(1, -(k+1))))
@@ -548,6 +565,9 @@ func (c *Scenario) createBulk(path string, nt int, sites []site, perm []int) (*n
 	}
 	if err == nil && c.Mask {
 		err = maskV.WriteInt8s(mask)
+	}
+	if err == nil && writeMesh != nil {
+		err = writeMesh()
 	}
 	if err != nil {
 		abort(f)
