@@ -24,9 +24,10 @@ func newDemoCmd() *cobra.Command {
 		Long: `demo writes a small invented hindcast (the Nullport Shelf: a made-up coast with
 shelf depths from 15 to 200 m: 30 years of 3-hourly bulk fields on a 16 x 12 grid,
 so that the extremes and design sea states have a record to rest on, and 3 years of
-directional spectra at 12 offshore points; every file says it is synthetic), then
-runs the whole pipeline on the bulk grid and on the spectral points, and prints what
-it wrote and which files to open in GIS software.
+directional spectra at 12 offshore points, and 10 years of bulk fields on the nodes
+of a small invented triangular UGRID mesh; every file says it is synthetic), then
+runs the whole pipeline on the bulk grid, on the spectral points and on the mesh,
+and prints what it wrote and which files to open in GIS software.
 
 ` + caution,
 		Example: `  swellgrid demo --out demo-out`,
