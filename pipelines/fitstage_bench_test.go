@@ -64,7 +64,7 @@ func BenchmarkFitStage(b *testing.B) {
 	} {
 		b.Run(c.name, func(b *testing.B) {
 			e, cells, ids := fitStageCells(b, c.input)
-			acfg := e.spec.analysisConfig(0)
+			acfg := e.spec.analysisConfig()
 			b.ReportAllocs()
 			cpu0 := processCPU()
 			b.ResetTimer()

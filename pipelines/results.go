@@ -43,10 +43,7 @@ func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResu
 	r.dirs = c.clim.Directions()
 	if r.sum.Steps > 0 {
 		cfg := acfg
-		if e.spec.Extremes.ThresholdRule == "quantile" {
-			cfg.Threshold = extremes.ThresholdHm0
-			cfg.ThresholdValue = percentileOf(r.sum, 100*e.spec.Extremes.ThresholdQuantile)
-		}
+		cfg.Hm0Quantile = func(q float64) float64 { return percentileOf(r.sum, 100*q) }
 		cfg.DepthM = e.cat.Depth[id]
 		r.ext = extremes.Analyse(c.col, cfg)
 		r.hasExt = true

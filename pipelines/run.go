@@ -115,11 +115,12 @@ func (s *Spec) climateConfig(cat *ingest.Catalog) (*climate.Config, error) {
 	c.Calendar = string(cal)
 	c.Hm0HistResM = s.Statistics.Hm0BinM
 	c.Percentiles = append([]float64(nil), s.Statistics.Percentiles...)
-	// The POT threshold quantile and the threshold-diagnostics ladder need
-	// those percentiles of Hm0 (not written as columns unless asked).
+	// The POT threshold rule (extremes.POTThreshold) and the
+	// threshold-diagnostics ladder need those percentiles of Hm0 (not
+	// written as columns unless asked).
 	var need []float64
-	if s.Extremes.ThresholdRule == "quantile" {
-		need = append(need, 100*s.Extremes.ThresholdQuantile)
+	for _, q := range s.analysisConfig().Hm0Quantiles() {
+		need = append(need, 100*q)
 	}
 	for _, q := range extremes.LadderQuantiles {
 		need = append(need, 100*q)
@@ -161,9 +162,16 @@ func (s *Spec) climateConfig(cat *ingest.Catalog) (*climate.Config, error) {
 	return c, nil
 }
 
-func (s *Spec) analysisConfig(years float64) extremes.AnalysisConfig {
+// analysisConfig maps the spec's extremes section to extremes.AnalysisConfig;
+// the threshold rule itself is extremes.POTThreshold (a cell's Hm0 quantile
+// is supplied per cell in engine.finish).
+func (s *Spec) analysisConfig() extremes.AnalysisConfig {
+	rule := extremes.ThresholdPeaksPerYear
+	if s.Extremes.ThresholdRule == "quantile" {
+		rule = extremes.ThresholdQuantile
+	}
 	a := extremes.AnalysisConfig{ReturnPeriods: s.Extremes.ReturnPeriodsY, MinYears: s.Extremes.MinYears,
-		Threshold: extremes.ThresholdPeaksPerYear, TargetPeaksPerYear: s.Extremes.PeaksPerYear,
+		Threshold: rule, TargetPeaksPerYear: s.Extremes.PeaksPerYear, ThresholdQuantile: s.Extremes.ThresholdQuantile,
 		MinPeaks: s.Extremes.MinPeaks, ShapeMin: s.Extremes.ShapeRange[0], ShapeMax: s.Extremes.ShapeRange[1],
 		MaxExtrapolation: s.Extremes.MaxExtrapolation, BreakingRatio: s.Extremes.BreakingRatio}
 	if s.Extremes.Bootstrap > 0 {

@@ -118,7 +118,7 @@ func BenchmarkFinishBulk(b *testing.B) {
 	for blk := range out {
 		e.feed(blk, e.blockTimes(blk), cells, 0, n)
 	}
-	acfg := spec.analysisConfig(0)
+	acfg := spec.analysisConfig()
 	b.ReportAllocs()
 	cpu0 := processCPU()
 	b.ResetTimer()

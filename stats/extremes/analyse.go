@@ -16,9 +16,13 @@ const (
 	// ThresholdPeaksPerYear chooses the threshold so that about
 	// TargetPeaksPerYear storm peaks per year exceed it.
 	ThresholdPeaksPerYear ThresholdRule = iota
-	// ThresholdHm0 uses ThresholdValue (m) as given, e.g. a quantile of the
-	// cell's Hm0 distribution that the caller read from its histogram.
+	// ThresholdHm0 uses ThresholdValue (m) as given.
 	ThresholdHm0
+	// ThresholdQuantile uses the ThresholdQuantile quantile of the cell's
+	// Hm0 over all its valid time steps, which the caller supplies through
+	// AnalysisConfig.Hm0Quantile (the record's Hm0 distribution is not
+	// part of a Collector); see POTThreshold.
+	ThresholdQuantile
 )
 
 // Bootstrap asks for seeded parametric-bootstrap intervals (N = 0: none).
@@ -33,6 +37,11 @@ type AnalysisConfig struct {
 	Threshold          ThresholdRule
 	ThresholdValue     float64 // m, for ThresholdHm0
 	TargetPeaksPerYear float64 // for ThresholdPeaksPerYear; default 3
+	ThresholdQuantile  float64 // for ThresholdQuantile, in (0.5, 1); default 0.99
+	// Hm0Quantile returns the q-quantile of the cell's Hm0 over all valid
+	// time steps (NaN if unknown), for ThresholdQuantile; the caller sets it
+	// per cell, for every q of Hm0Quantiles.
+	Hm0Quantile        func(q float64) float64
 	MinYears           int     // GEV: fewer analysed years publish no level; default 10
 	MinPeaks           int     // GPD: fewer exceedances publish no level; default 20
 	ShapeMin, ShapeMax float64 // shape range of a publishable fit; default -0.5, 0.5 (common practice for wave heights)
@@ -56,6 +65,9 @@ func (c AnalysisConfig) withDefaults() AnalysisConfig {
 	}
 	if !(c.TargetPeaksPerYear > 0) {
 		c.TargetPeaksPerYear = 3
+	}
+	if !(c.ThresholdQuantile > 0) {
+		c.ThresholdQuantile = 0.99
 	}
 	if c.MinYears <= 0 {
 		c.MinYears = 10
@@ -298,7 +310,7 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 	}
 
 	peaks := c.Peaks()
-	res.Threshold = chooseThreshold(peaks, cfg, res.RecordYears)
+	res.Threshold = POTThreshold(peaks, cfg, res.RecordYears)
 	var px []float64
 	var exc []Maximum
 	for _, p := range peaks {
@@ -400,6 +412,21 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 				lv.ProfUpper = math.NaN()
 				lv.Flags |= FlagOpenInterval
 			}
+			// The bootstrap interval passes the same common-sense bounds as
+			// the published level's other intervals: its upper end at most
+			// PlausibleFactor x the record maximum (else open, null), its
+			// lower end not below 0 (GEV) or the threshold (GPD). The
+			// resamples themselves are not filtered by the shape policy (see
+			// bootstrapGEV).
+			if lv.BootUpper > upLimit {
+				lv.BootUpper = math.NaN()
+				lv.Flags |= FlagOpenInterval
+			}
+			if m == &g {
+				lv.BootLower = math.Max(lv.BootLower, 0)
+			} else {
+				lv.BootLower = math.Max(lv.BootLower, res.Threshold)
+			}
 			if lim := res.DepthLimit; lv.Hm0 > lim || lv.ProfUpper > lim {
 				lv.Flags |= FlagDepthLimited
 			}
@@ -422,13 +449,45 @@ func anyPublished(levels []Level) bool {
 	return false
 }
 
-// chooseThreshold applies the threshold rule. For ThresholdPeaksPerYear with
-// k = round(TargetPeaksPerYear * years) it returns the (k+1)-th largest storm
-// peak, so that (without ties) exactly k peaks exceed it; with k+1 or fewer
-// peaks it returns the smallest peak.
-func chooseThreshold(peaks []Maximum, cfg AnalysisConfig, years float64) float64 {
-	if cfg.Threshold == ThresholdHm0 {
+// Hm0Quantiles returns the quantiles of a cell's Hm0 distribution (over all
+// valid time steps) that the threshold rule needs from the caller through
+// Hm0Quantile: the ThresholdQuantile for that rule, none for the others.
+func (c AnalysisConfig) Hm0Quantiles() []float64 {
+	c = c.withDefaults()
+	if c.Threshold == ThresholdQuantile {
+		return []float64{c.ThresholdQuantile}
+	}
+	return nil
+}
+
+// POTThreshold is the one threshold rule of the peaks-over-threshold (GPD)
+// analysis of a cell, given its declustered storm peaks and the record
+// length in years:
+//
+//   - ThresholdQuantile: u = Q(q), the q-quantile of the cell's Hm0 over all
+//     valid time steps (cfg.Hm0Quantile(cfg.ThresholdQuantile); default
+//     q = 0.99). A high quantile of the full record is common practice for
+//     wave heights (threshold choice: Coles 2001, section 4.3.1; the 0.99
+//     quantile is a customary metocean starting point, to be checked on the
+//     threshold diagnostics).
+//   - ThresholdPeaksPerYear: with k = round(TargetPeaksPerYear x years),
+//     clamped to [1, n-1] for n peaks, u is the (k+1)-th largest storm peak,
+//     so that (without ties) exactly k peaks exceed it, about
+//     TargetPeaksPerYear a year; with one peak, u is that peak (common
+//     practice: a target exceedance rate of a few storms a year).
+//   - ThresholdHm0: u = cfg.ThresholdValue as given.
+//
+// NaN when the rule has no value (no peaks; no quantile supplied).
+func POTThreshold(peaks []Maximum, cfg AnalysisConfig, years float64) float64 {
+	cfg = cfg.withDefaults()
+	switch cfg.Threshold {
+	case ThresholdHm0:
 		return cfg.ThresholdValue
+	case ThresholdQuantile:
+		if cfg.Hm0Quantile == nil {
+			return math.NaN()
+		}
+		return cfg.Hm0Quantile(cfg.ThresholdQuantile)
 	}
 	if len(peaks) == 0 {
 		return math.NaN()
@@ -500,7 +559,17 @@ func percentile95(samples [][]float64, levels []Level) {
 
 // bootstrapGEV draws cfg.Bootstrap.N samples of size N from the fitted GEV
 // (inverse-CDF sampling with a PCG source seeded by Seed), refits each and
-// takes percentile intervals of the return levels. Returns the failed refits.
+// takes percentile intervals of the return levels. Returns the failed refits
+// (no converged optimum), which are left out. Resamples are deliberately not
+// passed through the publication policy (Publication): a parametric
+// bootstrap replicates the estimator, and the estimator here is the plain
+// maximum-likelihood fit, whose shape is not restricted to [ShapeMin,
+// ShapeMax]; the policy decides whether the original fit's level is
+// published at all. Dropping resamples with a shape outside the range would
+// cut the tail of the bootstrap distribution and narrow the interval below
+// the estimator's real uncertainty (Davison and Hinkley 1997, Bootstrap
+// Methods and their Application, section 2.2, on the parametric bootstrap).
+// The interval's ends pass Analyse's common-sense bounds instead.
 func bootstrapGEV(f GEVFit, cfg AnalysisConfig, levels []Level) int {
 	r := rand.New(rand.NewPCG(cfg.Bootstrap.Seed, 0x9e3779b97f4a7c15))
 	samples := make([][]float64, len(levels))

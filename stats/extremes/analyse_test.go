@@ -125,8 +125,53 @@ func TestAnalyseFlags(t *testing.T) {
 // A record with a single storm peak must not panic when the threshold is chosen
 // by a target number of peaks per year (regression: index out of range).
 func TestChooseThresholdOnePeak(t *testing.T) {
-	got := chooseThreshold([]Maximum{{Hm0: 3.2}}, AnalysisConfig{Threshold: ThresholdPeaksPerYear, TargetPeaksPerYear: 5}, 0.2)
+	got := POTThreshold([]Maximum{{Hm0: 3.2}}, AnalysisConfig{Threshold: ThresholdPeaksPerYear, TargetPeaksPerYear: 5}, 0.2)
 	if got != 3.2 {
 		t.Errorf("threshold %v, want the only peak 3.2", got)
+	}
+}
+
+// TestPOTThresholdRules: the one threshold rule (POTThreshold). The quantile
+// rule asks the caller for exactly the quantile it uses and returns it; the
+// peaks-per-year rule leaves round(rate x years) peaks above the threshold
+// (its definition). The pipeline's threshold column is proven end to end
+// against numpy.percentile(hm0, 99) in testdata/e2e/reference.py.
+func TestPOTThresholdRules(t *testing.T) {
+	var asked []float64
+	cfg := AnalysisConfig{Threshold: ThresholdQuantile, Hm0Quantile: func(q float64) float64 { asked = append(asked, q); return 10 * q }}
+	if q := cfg.Hm0Quantiles(); len(q) != 1 || q[0] != 0.99 {
+		t.Errorf("Hm0Quantiles of the default quantile rule %v, want [0.99]", q)
+	}
+	if u := POTThreshold(nil, cfg, 10); u != 9.9 || len(asked) != 1 || asked[0] != 0.99 {
+		t.Errorf("quantile rule: threshold %v after asking %v, want 9.9 from the 0.99 quantile", u, asked)
+	}
+	cfg.ThresholdQuantile = 0.95
+	if u := POTThreshold(nil, cfg, 10); u != 9.5 {
+		t.Errorf("quantile rule with q = 0.95: threshold %v, want 9.5", u)
+	}
+	cfg.Hm0Quantile = nil
+	if u := POTThreshold(nil, cfg, 10); !math.IsNaN(u) {
+		t.Errorf("quantile rule without the cell's quantiles: %v, want NaN", u)
+	}
+	var peaks []Maximum
+	for i := 0; i < 40; i++ {
+		peaks = append(peaks, Maximum{Hm0: 1 + 0.37*float64((i*7)%40)})
+	}
+	ppy := AnalysisConfig{Threshold: ThresholdPeaksPerYear, TargetPeaksPerYear: 3}
+	if q := ppy.Hm0Quantiles(); q != nil {
+		t.Errorf("peaks-per-year rule asks for quantiles %v", q)
+	}
+	u := POTThreshold(peaks, ppy, 4)
+	n := 0
+	for _, p := range peaks {
+		if p.Hm0 > u {
+			n++
+		}
+	}
+	if n != 12 {
+		t.Errorf("peaks-per-year rule: %d peaks above %v, want round(3 x 4) = 12", n, u)
+	}
+	if u := POTThreshold(peaks, AnalysisConfig{Threshold: ThresholdHm0, ThresholdValue: 4.25}, 4); u != 4.25 {
+		t.Errorf("fixed threshold %v, want 4.25", u)
 	}
 }

@@ -247,3 +247,48 @@ func TestDeltaIntervalTruncatedAtThreshold(t *testing.T) {
 	}
 	t.Logf("20 exceedances, T=%g: level %.2f, delta [%.2f (raw %.2f), %.2f], profile [%.2f, open (%.2f unlimited)], flags %v", T, l.Hm0, l.Lower, rawLo, l.Upper, l.ProfLower, rawHi, l.Flags.Names())
 }
+
+// TestBootstrapIntervalBounds: the bootstrap interval of a published level
+// passes the same common-sense bounds as its profile interval. Ten annual
+// maxima drawn from a heavy-tailed GEV (Shape 0.3) are fitted with a shape
+// inside the policy's range, so the 40-year level (4 x the record) is
+// published; many resamples of ten then fit shapes far above 0.5 (they are
+// kept: the bootstrap replicates the unrestricted ML estimator) and the
+// 97.5% point of their 40-year levels lies beyond PlausibleFactor x the
+// record's largest Hm0: the upper end is reported open (NaN with
+// FlagOpenInterval), never as an absurd height, and the lower end is not
+// below zero.
+func TestBootstrapIntervalBounds(t *testing.T) {
+	g := GEV{Loc: 3, Scale: 0.8, Shape: 0.3}
+	var found bool
+	for seed := uint64(1); seed < 400 && !found; seed++ {
+		r := rand.New(rand.NewPCG(seed, 3))
+		am := make([]float64, 10)
+		for i := range am {
+			am[i] = math.Max(g.Quantile(openUnit(r)), 3.3)
+		}
+		c := streamMaxima(am)
+		cfg := AnalysisConfig{ReturnPeriods: []float64{40}, Bootstrap: Bootstrap{N: 200, Seed: 5}}
+		res := Analyse(c, cfg)
+		lv := res.GEV.Levels[0]
+		if math.IsNaN(lv.Hm0) {
+			continue // withheld (shape outside the range): no interval at all
+		}
+		if !(lv.BootLower >= 0) {
+			t.Fatalf("seed %d: bootstrap lower end %v below zero", seed, lv.BootLower)
+		}
+		if math.IsNaN(lv.BootUpper) {
+			if lv.Flags&FlagOpenInterval == 0 {
+				t.Fatalf("seed %d: bootstrap upper end null without FlagOpenInterval (flags %v)", seed, lv.Flags.Names())
+			}
+			found = true
+			continue
+		}
+		if lv.BootUpper > PlausibleFactor*res.MaxAnnual {
+			t.Fatalf("seed %d: bootstrap upper end %.1f m published above %g x the record maximum %.2f m", seed, lv.BootUpper, float64(PlausibleFactor), res.MaxAnnual)
+		}
+	}
+	if !found {
+		t.Fatal("no sample gave an open bootstrap upper end: the test does not exercise the bound")
+	}
+}
