@@ -54,7 +54,9 @@ func fitStageCells(b *testing.B, input string) (*engine, []*cell, []int) {
 // the GPD publishes) and on long ones (the 30-year, 3-station point set of
 // testdata/extremes_points and the 12-year, 6-cell e2e fixture: both methods
 // publish every level with its profile interval). Target (issue 16): at
-// least 2 000 cells/s per core; cpu-us/cell is the process CPU time per cell
+// least 2 000 cells/s per core. The -nodesign cases leave the design sea
+// states out (design.enabled = false), to show the cost of the extremes
+// alone; cpu-us/cell is the process CPU time per cell
 // (not counting the time waited for a core on a shared machine).
 func BenchmarkFitStage(b *testing.B) {
 	for _, c := range []struct{ name, input string }{
@@ -62,21 +64,28 @@ func BenchmarkFitStage(b *testing.B) {
 		{"long-30y", filepath.Join("..", "testdata", "extremes_points", "extremes_points.nc")},
 		{"long-12y", filepath.Join("..", "testdata", "e2e", "bulk")},
 	} {
-		b.Run(c.name, func(b *testing.B) {
-			e, cells, ids := fitStageCells(b, c.input)
-			acfg := e.spec.analysisConfig()
-			b.ReportAllocs()
-			cpu0 := processCPU()
-			b.ResetTimer()
-			for i := 0; i < b.N; i++ {
-				id := ids[i%len(ids)]
-				if r := e.finish(id, cells[id], acfg); r == nil {
-					b.Fatal("no result")
-				}
+		for _, design := range []bool{true, false} {
+			name := c.name
+			if !design {
+				name += "-nodesign"
 			}
-			b.StopTimer()
-			b.ReportMetric(float64(b.N)/b.Elapsed().Seconds(), "cells/s")
-			b.ReportMetric(float64((processCPU()-cpu0).Nanoseconds())/float64(b.N)/1e3, "cpu-us/cell")
-		})
+			b.Run(name, func(b *testing.B) {
+				e, cells, ids := fitStageCells(b, c.input)
+				e.spec.Design.Enabled = design
+				acfg := e.spec.analysisConfig()
+				b.ReportAllocs()
+				cpu0 := processCPU()
+				b.ResetTimer()
+				for i := 0; i < b.N; i++ {
+					id := ids[i%len(ids)]
+					if r := e.finish(id, cells[id], acfg); r == nil {
+						b.Fatal("no result")
+					}
+				}
+				b.StopTimer()
+				b.ReportMetric(float64(b.N)/b.Elapsed().Seconds(), "cells/s")
+				b.ReportMetric(float64((processCPU()-cpu0).Nanoseconds())/float64(b.N)/1e3, "cpu-us/cell")
+			})
+		}
 	}
 }
