@@ -2,6 +2,7 @@ package pipelines
 
 import (
 	"math"
+	"slices"
 
 	"swellgrid/stats"
 	"swellgrid/stats/climate"
@@ -39,7 +40,7 @@ func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResu
 	} else {
 		r.dirMax = r.sum.DirMeanDeg
 	}
-	r.monthly, r.season, r.scatter, r.exceed, r.windows = c.clim.MonthlyOver(e.recordMonths()), c.clim.Seasonal(), c.clim.Scatter(), c.clim.Exceedance(), c.clim.Windows()
+	r.monthly, r.season, r.scatter, r.exceed, r.windows = c.clim.MonthlyIn(e.recordSpans()), c.clim.Seasonal(), c.clim.Scatter(), c.clim.Exceedance(), c.clim.Windows()
 	r.dirs = c.clim.Directions()
 	if r.sum.Steps > 0 {
 		cfg := acfg
@@ -54,16 +55,38 @@ func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResu
 	return r
 }
 
-// recordMonths returns the first and last year-month of the record (its
-// first and last time step): monthly.parquet has a row for every year-month
-// between them, those without data included (coverage 0, excluded).
-func (e *engine) recordMonths() (y0, m0, y1, m1 int) {
-	ts := e.cat.Times()
-	if len(ts) == 0 {
-		return 0, 1, -1, 1
-	}
-	a, b := e.cat.Date(ts[0]), e.cat.Date(ts[len(ts)-1])
-	return a.Year, a.Month, b.Year, b.Month
+// recordSpans returns the year-months of the record as spans (first and
+// last k = 12 year + month-1, inclusive): monthly.parquet has a row for every
+// year-month from the record's first step to its last, those without data
+// included (coverage 0, excluded), except in whole years without any step:
+// a run of years with steps is one span, so that a gap of centuries (a
+// reference year mistyped in one file, accepted with input.allow_long_gaps)
+// does not give a row per month of it. Computed once per run.
+func (e *engine) recordSpans() [][2]int {
+	e.spansOnce.Do(func() {
+		ts := e.cat.Times()
+		if len(ts) == 0 {
+			return
+		}
+		first, last := e.cat.Date(ts[0]), e.cat.Date(ts[len(ts)-1])
+		var years []int
+		for _, s := range ts {
+			if y := e.cat.Date(s).Year; len(years) == 0 || years[len(years)-1] != y {
+				years = append(years, y)
+			}
+		}
+		slices.Sort(years)
+		years = slices.Compact(years)
+		for i := 0; i < len(years); {
+			j := i
+			for j+1 < len(years) && years[j+1] == years[j]+1 {
+				j++
+			}
+			e.spans = append(e.spans, [2]int{max(years[i]*12, first.Year*12+first.Month-1), min(years[j]*12+11, last.Year*12+last.Month-1)})
+			i = j + 1
+		}
+	})
+	return e.spans
 }
 
 func percentileOf(s climate.Summary, p float64) float64 {

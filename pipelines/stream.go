@@ -35,6 +35,9 @@ type engine struct {
 	spectral bool
 	// times is where the stream stage's time went, summed over passes.
 	times streamTimes
+	// spans are the record's year-month spans (recordSpans).
+	spansOnce sync.Once
+	spans     [][2]int
 }
 
 // streamTimes are the busy and waiting times of the stream stage's parts.

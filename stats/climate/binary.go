@@ -11,10 +11,12 @@ import (
 // always gives the same bytes): magic "SGCS", version u16, config
 // fingerprint u64, the scalar fields, then each array with its length;
 // version 3 added the directional distribution (count, minutes and power
-// sums per sector, then the minutes split over the sectors) at the end.
+// sums per sector, then the minutes split over the sectors) at the end;
+// version 4 writes the month table as the years with data, each with its
+// twelve months (3: a first year and every year of the span).
 const (
 	binMagic   = "SGCS"
-	binVersion = 3
+	binVersion = 4
 )
 
 type enc struct{ b []byte }
@@ -115,13 +117,15 @@ func (s *CellState) MarshalBinary() ([]byte, error) {
 	for _, v := range s.scJ {
 		e.u64(v)
 	}
-	e.i64(int64(s.y0))
-	e.u64(uint64(len(s.ym)))
-	for _, r := range s.ym {
-		e.u32(r.wJ)
-		e.u32(r.wH)
-		e.u64(r.sJ)
-		e.u64(r.sH)
+	e.u64(uint64(len(s.ys)))
+	for yi, y := range s.ys {
+		e.i64(int64(y))
+		for _, r := range s.ym[yi*12 : yi*12+12] {
+			e.u32(r.wJ)
+			e.u32(r.wH)
+			e.u64(r.sJ)
+			e.u64(r.sH)
+		}
 	}
 	e.u64(uint64(len(s.runs)))
 	for l := range s.runs {
@@ -193,16 +197,21 @@ func (s *CellState) UnmarshalBinary(b []byte) error {
 	for k := range t.scJ {
 		t.scJ[k] = d.u64()
 	}
-	t.y0 = int(d.i64())
 	n := d.u64()
-	if d.err == nil && (n%12 != 0 || n > 12*maxYears) {
-		d.err = fmt.Errorf("climate: checkpoint month table has %d entries", n)
+	if d.err == nil && n > maxYears {
+		d.err = fmt.Errorf("climate: checkpoint month table has %d years (at most %d)", n, maxYears)
 	}
 	if d.err == nil {
-		t.ym = make([]ymRec, n)
-		for k := range t.ym {
-			r := &t.ym[k]
-			r.wJ, r.wH, r.sJ, r.sH = d.u32(), d.u32(), d.u64(), d.u64()
+		t.ys, t.ym = make([]int, n), make([]ymRec, 12*n)
+		for yi := range t.ys {
+			t.ys[yi] = int(d.i64())
+			if d.err == nil && yi > 0 && t.ys[yi] <= t.ys[yi-1] {
+				d.err = fmt.Errorf("climate: checkpoint month table lists year %d after %d", t.ys[yi], t.ys[yi-1])
+			}
+			for k := yi * 12; k < yi*12+12; k++ {
+				r := &t.ym[k]
+				r.wJ, r.wH, r.sJ, r.sH = d.u32(), d.u32(), d.u64(), d.u64()
+			}
 		}
 	}
 	arrLen(len(t.runs), "window limits")
@@ -235,5 +244,5 @@ func (s *CellState) UnmarshalBinary(b []byte) error {
 // approxBytes is the size of the checkpoint encoding.
 func (s *CellState) approxBytes() int {
 	return 4 + 2 + 8 + 27*16 + 4*(len(s.histH)+len(s.histJ)+len(s.scW)+len(s.winCnt)+len(s.winMin)) +
-		8*len(s.scJ) + 24*len(s.ym) + 64*len(s.runs) + 96*len(s.dev) + 16*len(s.rose.w) + 144
+		8*len(s.scJ) + 24*len(s.ym) + 8*len(s.ys) + 64*len(s.runs) + 96*len(s.dev) + 16*len(s.rose.w) + 144
 }

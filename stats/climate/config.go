@@ -257,13 +257,60 @@ func (c *Config) computeFingerprint() uint64 {
 }
 
 // StateBytes returns the memory (bytes) one CellState with this validated
-// Config takes for a record of the given number of years (arrays and fixed
-// fields; Go's allocation rounding aside).
+// Config takes for a record with data in the given number of years (arrays
+// and fixed fields; Go's allocation rounding aside). A year without data
+// takes no room. CellMemory is the model a run plans its memory with.
 func (c *Config) StateBytes(years int) int {
 	l := &c.lay
 	return int(unsafe.Sizeof(CellState{})) +
 		4*(l.nHm0Hist+1) + 4*(l.nPowerHist+1) + 12*l.nScH*l.nScT +
 		8*l.nLim*l.nDur*12 + (2*int(unsafe.Sizeof(run{}))+1)*l.nLim +
 		int(unsafe.Sizeof(devAcc{}))*l.nDev +
-		int(unsafe.Sizeof(ymRec{}))*12*years + 16*l.nRose
+		(int(unsafe.Sizeof(ymRec{}))*12+8)*years + 16*l.nRose
+}
+
+// CellMemory is the memory model of one cell of a run, in bytes: what a
+// pass holds per cell while it reads (State) and what the results of one
+// cell take between its fit and their export (Result).
+type CellMemory struct {
+	State  int
+	Result int
+}
+
+// CellMemory returns the memory model of one cell for a record of the given
+// number of years with data, beside an extremes collector that keeps at most
+// maxPeaksPerYear storm peaks a year (stats/extremes; 0 means its default,
+// 50). The figures are sizes of the Go structures on a 64-bit platform
+// (unsafe.Sizeof of this package's types; the extremes types by their
+// fields), rounded up, with Go's allocation rounding:
+//
+//	State  = 1.125 StateBytes(years) + 16 per slice of the state (10)
+//	         + collector: 72 a year (its yearStats) + 40 per peak
+//	           (extremes.Maximum, 5 words) x maxPeaksPerYear a year
+//	           + 2 KiB (the separation window of the last steps)
+//	         + 2 KiB (the cell's other parts: pointers, spectral means)
+//	Result = 2 x (rows of the cell's long tables, each by its Go size:
+//	         monthly (12 + 12 years) x 72, scatter bins (all of them) x 56,
+//	         exceedance edges x 40, windows (limits x durations x 12) x 80,
+//	         seasons 4 x 64) + 16 KiB (summary, fits, return levels,
+//	         threshold ladder, design contour)
+//
+// The factor 1.125 is the worst rounding of Go's size classes above 1 KiB
+// (runtime/sizeclasses.go: classes at most 12.5 % apart); the factor 2 of
+// Result counts the rows once as Go values and once as the table columns
+// built from them before they are written. BenchmarkCellMemory in
+// pipelines reports the heap measured per cell beside this model.
+func (c *Config) CellMemory(years, maxPeaksPerYear int) CellMemory {
+	if maxPeaksPerYear <= 0 {
+		maxPeaksPerYear = 50
+	}
+	years = max(years, 1)
+	l := &c.lay
+	state := c.StateBytes(years)*9/8 + 16*10 +
+		years*(72+40*maxPeaksPerYear) + 2048 + 2048
+	rows := (12+12*years)*int(unsafe.Sizeof(MonthRow{})) +
+		l.nScH*l.nScT*int(unsafe.Sizeof(ScatterRow{})) +
+		(l.nHm0Hist+l.nPowerHist+2)*int(unsafe.Sizeof(ExceedRow{})) +
+		l.nLim*l.nDur*12*int(unsafe.Sizeof(WindowRow{})) + 4*int(unsafe.Sizeof(SeasonRow{}))
+	return CellMemory{State: state, Result: 2*rows + 16<<10}
 }

@@ -21,11 +21,12 @@
 // windows are exact across block boundaries and merges: a state carries the
 // calm run open at each end of its record and Merge joins them.
 //
-// Size. A state with the default Config takes 10 975 bytes per cell plus 288
-// bytes per cell per year of record (the year-month sums); each device adds
+// Size. A state with the default Config takes about 11 KB per cell plus 296
+// bytes per cell per year with data (the year-month sums and the year; a
+// year without data takes nothing, so a long gap costs no room); each device adds
 // 80 bytes, each window limit x duration 96 bytes and each limit 65 bytes and each direction sector 16 bytes. It
 // does not grow with the number of time steps. Config.StateBytes gives the
-// figure for any Config; the histograms (3.5 KB) and the scatter table
+// figure for any Config, Config.CellMemory the model a run plans with; the histograms (3.5 KB) and the scatter table
 // (5.3 KB) dominate and shrink with coarser settings.
 //
 // Results for design. The figures are screening estimates from a model

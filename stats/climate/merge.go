@@ -71,11 +71,13 @@ func (s *CellState) Merge(later *CellState) error {
 	for i, v := range o.scJ {
 		s.scJ[i] += v
 	}
-	if n := len(o.ym) / 12; n > 0 {
-		s.growYears(o.y0, o.y0+n-1, 0)
-		off := (o.y0 - s.y0) * 12
-		for i, r := range o.ym {
-			t := &s.ym[off+i]
+	for yi, y := range o.ys {
+		off := s.yearSlot(y) * 12
+		if off < 0 {
+			return errors.New("climate: Merge: the merged state would hold more than 10000 years")
+		}
+		for m, r := range o.ym[yi*12 : yi*12+12] {
+			t := &s.ym[off+m]
 			t.wJ += r.wJ
 			t.wH += r.wH
 			t.sJ += r.sJ
@@ -174,7 +176,7 @@ func (s *CellState) mergeWindows(o *CellState, adjacent bool) {
 
 // copyFrom makes s a deep copy of o (same Config).
 func (s *CellState) copyFrom(o *CellState) {
-	histH, histJ, scW, scJ, ym := s.histH, s.histJ, s.scW, s.scJ, s.ym
+	histH, histJ, scW, scJ, ys, ym := s.histH, s.histJ, s.scW, s.scJ, s.ys, s.ym
 	winCnt, winMin, runs, leads, leadOpen, dev, rose := s.winCnt, s.winMin, s.runs, s.leads, s.leadOpen, s.dev, s.rose
 	*s = *o
 	s.rose = rose
@@ -191,5 +193,6 @@ func (s *CellState) copyFrom(o *CellState) {
 	copy(s.leads, o.leads)
 	copy(s.leadOpen, o.leadOpen)
 	copy(s.dev, o.dev)
+	s.ys = append(ys[:0], o.ys...)
 	s.ym = append(ym[:0], o.ym...)
 }

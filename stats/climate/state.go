@@ -2,6 +2,7 @@ package climate
 
 import (
 	"math"
+	"slices"
 )
 
 // Step is one sea state at one cell. Times are in the file's own calendar
@@ -94,8 +95,12 @@ type CellState struct {
 	histJ  []uint32
 	scW    []uint32
 	scJ    []uint64
-	y0     int
-	ym     []ymRec // 12 per year from y0
+	// ys lists the years with at least one step, ascending; ym holds 12
+	// records per entry of ys, in the same order. Only years with data
+	// take room, so a record with a long gap (a reference year mistyped
+	// as 9000 in one file) costs two years, not seven thousand.
+	ys     []int
+	ym     []ymRec
 	winCnt []uint32
 	winMin []uint32
 	runs   []run
@@ -133,7 +138,7 @@ func NewCellState(cfg *Config) *CellState {
 
 // Reset empties the state, keeping its allocations.
 func (s *CellState) Reset() {
-	*s = CellState{cfg: s.cfg, histH: s.histH, histJ: s.histJ, scW: s.scW, scJ: s.scJ, ym: s.ym[:0],
+	*s = CellState{cfg: s.cfg, histH: s.histH, histJ: s.histJ, scW: s.scW, scJ: s.scJ, ys: s.ys[:0], ym: s.ym[:0],
 		winCnt: s.winCnt, winMin: s.winMin, runs: s.runs, leads: s.leads, leadOpen: s.leadOpen, dev: s.dev, rose: s.rose}
 	s.rose.clear()
 	clear(s.histH)
@@ -153,41 +158,44 @@ func (s *CellState) Reset() {
 	s.minH, s.maxH = math.Inf(1), math.Inf(-1)
 }
 
-// maxYears bounds the span of years one state covers.
+// maxYears bounds the number of distinct years one state holds.
 const maxYears = 10000
 
-// ymIndex returns the index of (year, month 0..11) in s.ym, growing the table
-// when the year is new; -1 when the span would exceed maxYears.
+// ymIndex returns the index of (year, month 0..11) in s.ym, adding the year
+// when it is new; -1 when the state already holds maxYears years.
 func (s *CellState) ymIndex(year, cm int) int {
-	n := len(s.ym) / 12
-	if n > 0 && year >= s.y0 && year < s.y0+n {
-		return (year-s.y0)*12 + cm
+	if n := len(s.ys); n > 0 && s.ys[n-1] == year {
+		return (n-1)*12 + cm // steps come in time order: nearly always the last year
 	}
-	return s.growYears(year, year, cm)
-}
-
-func (s *CellState) growYears(ya, yb, cm int) int {
-	n := len(s.ym) / 12
-	lo, hi := ya, yb
-	if n > 0 {
-		lo, hi = min(lo, s.y0), max(hi, s.y0+n-1)
-	}
-	if hi-lo+1 > maxYears {
+	i := s.yearSlot(year)
+	if i < 0 {
 		return -1
 	}
-	nn := hi - lo + 1
-	if n == 0 || lo != s.y0 || nn*12 > cap(s.ym) {
-		ym := make([]ymRec, nn*12, nn*12+12*4)
-		if n > 0 {
-			copy(ym[(s.y0-lo)*12:], s.ym)
-		}
-		s.ym, s.y0 = ym, lo
-	} else {
-		old := len(s.ym)
-		s.ym = s.ym[:nn*12]
-		clear(s.ym[old:])
+	return i*12 + cm
+}
+
+// yearSlot returns the position of year in s.ys, inserting it (with twelve
+// empty months) when it is new; -1 when the state holds maxYears years.
+func (s *CellState) yearSlot(year int) int {
+	i, found := slices.BinarySearch(s.ys, year)
+	if found {
+		return i
 	}
-	return (ya-s.y0)*12 + cm
+	if len(s.ys) >= maxYears {
+		return -1
+	}
+	s.ys = slices.Insert(s.ys, i, year)
+	var empty [12]ymRec
+	s.ym = slices.Insert(s.ym, i*12, empty[:]...)
+	return i
+}
+
+// findYear returns the position of year in s.ys, or -1.
+func (s *CellState) findYear(year int) int {
+	if i, found := slices.BinarySearch(s.ys, year); found {
+		return i
+	}
+	return -1
 }
 
 // reject records a step that cannot be placed (bad month, step length or

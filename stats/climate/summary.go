@@ -227,7 +227,7 @@ type climate struct {
 // ymCoverage returns the coverage of year-month index i: valid-J minutes over
 // the nominal minutes of that month in the calendar (at most 1).
 func (s *CellState) ymCoverage(i int) float64 {
-	y, m := s.y0+i/12, i%12+1
+	y, m := s.ys[i/12], i%12+1
 	nom := float64(s.cfg.lay.cal.daysInMonth(y, m) * 1440)
 	return math.Min(1, float64(s.ym[i].wJ)/nom)
 }
@@ -272,8 +272,7 @@ func (s *CellState) climatology() climate {
 		cl.seasonW[k] = w
 	}
 	cl.annual = weightedMean(aJ, aW, qJ*1000)
-	for yi := 0; yi < len(s.ym)/12; yi++ {
-		y := s.y0 + yi
+	for yi, y := range s.ys {
 		var sj, w uint64
 		nom := 0
 		for m := 0; m < 12; m++ {

@@ -1,6 +1,9 @@
 package climate
 
-import "math"
+import (
+	"math"
+	"slices"
+)
 
 // MonthRow is one row of the monthly table. Year 0 marks a calendar-month
 // climatology row (pooled over the included year-months of that month);
@@ -21,7 +24,7 @@ type MonthRow struct {
 // Monthly returns twelve climatology rows (Year 0) followed by one row per
 // year-month with data, in time order. MonthlyOver also gives the months
 // of a record that have no data.
-func (s *CellState) Monthly() []MonthRow { return s.monthly(0, -1, false) }
+func (s *CellState) Monthly() []MonthRow { return s.monthly(nil, false) }
 
 // MonthlyOver returns twelve climatology rows (Year 0) followed by one row
 // per year-month from (y0, m0) to (y1, m1) inclusive (months 1..12: the
@@ -30,27 +33,38 @@ func (s *CellState) Monthly() []MonthRow { return s.monthly(0, -1, false) }
 // climatology, seasons and indices, as before). Year-months with data outside
 // the span are listed too, in their place.
 func (s *CellState) MonthlyOver(y0, m0, y1, m1 int) []MonthRow {
-	return s.monthly(y0*12+m0-1, y1*12+m1-1, true)
+	return s.MonthlyIn([][2]int{{y0*12 + m0 - 1, y1*12 + m1 - 1}})
 }
 
+// MonthlyIn is MonthlyOver for a record in several spans: spans[i] are the
+// first and last year-month k = 12 year + month-1 of a span (inclusive). A
+// record with a gap of whole years gives one span per run of years with
+// data, so that the table is sized by the years that have data.
+func (s *CellState) MonthlyIn(spans [][2]int) []MonthRow { return s.monthly(spans, true) }
+
 // monthly lists the climatology and the year-months k = 12 year + month-1
-// from lo to hi, widened to every year-month with data; with all false only
+// of the spans, with every year-month with data added; with all false only
 // those with data.
-func (s *CellState) monthly(lo, hi int, all bool) []MonthRow {
+func (s *CellState) monthly(spans [][2]int, all bool) []MonthRow {
 	cl := s.climatology()
 	var withData [12]int
-	for i, r := range s.ym {
-		if r.wJ > 0 || r.wH > 0 {
-			withData[i%12]++
-			k := s.y0*12 + i
-			if hi < lo {
-				lo, hi = k, k
-			} else {
-				lo, hi = min(lo, k), max(hi, k)
+	var ks []int
+	if all {
+		for _, sp := range spans {
+			for k := sp[0]; k <= sp[1]; k++ {
+				ks = append(ks, k)
 			}
 		}
 	}
-	rows := make([]MonthRow, 0, 12+max(0, hi-lo+1))
+	for i, r := range s.ym {
+		if r.wJ > 0 || r.wH > 0 {
+			withData[i%12]++
+			ks = append(ks, s.ys[i/12]*12+i%12)
+		}
+	}
+	slices.Sort(ks)
+	ks = slices.Compact(ks)
+	rows := make([]MonthRow, 0, 12+len(ks))
 	for m := 0; m < 12; m++ {
 		cov := math.NaN()
 		if withData[m] > 0 {
@@ -59,13 +73,14 @@ func (s *CellState) monthly(lo, hi int, all bool) []MonthRow {
 		rows = append(rows, MonthRow{Month: m + 1, PowerMeanKWm: cl.monthJ[m], Hm0MeanM: cl.monthH[m],
 			ValidHours: float64(cl.monthW[m]) / 60, Coverage: cov, YearsUsed: cl.monthYears[m]})
 	}
-	for k := lo; k <= hi; k++ {
+	for _, k := range ks {
 		y, cm := floorDiv(k, 12), k-12*floorDiv(k, 12)
-		i := k - s.y0*12
-		if i < 0 || i >= len(s.ym) || (s.ym[i].wJ == 0 && s.ym[i].wH == 0) {
-			if all {
-				rows = append(rows, MonthRow{Year: y, Month: cm + 1, PowerMeanKWm: math.NaN(), Hm0MeanM: math.NaN(), Excluded: true})
-			}
+		i := -1
+		if yi := s.findYear(y); yi >= 0 {
+			i = yi*12 + cm
+		}
+		if i < 0 || (s.ym[i].wJ == 0 && s.ym[i].wH == 0) {
+			rows = append(rows, MonthRow{Year: y, Month: cm + 1, PowerMeanKWm: math.NaN(), Hm0MeanM: math.NaN(), Excluded: true})
 			continue
 		}
 		r := s.ym[i]
@@ -210,7 +225,7 @@ func (s *CellState) Windows() []WindowRow {
 		if r.wH == 0 {
 			continue
 		}
-		y, m := s.y0+i/12, i%12
+		y, m := s.ys[i/12], i%12
 		valid[m] += uint64(r.wH)
 		monthsEq[m] += math.Min(1, float64(r.wH)/float64(lay.cal.daysInMonth(y, m+1)*1440))
 	}
