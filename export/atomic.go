@@ -16,52 +16,90 @@ import (
 // write) the temporary file is removed, and no file named path is created or
 // replaced. The file gets mode 0644.
 func WriteFileAtomic(path string, write func(w io.Writer) error) (err error) {
+	f, err := CreateAtomic(path)
+	if err != nil {
+		return err
+	}
+	defer f.Abort()
+	if err := write(f); err != nil {
+		return fmt.Errorf("export: writing %s: %w", path, err)
+	}
+	return f.Commit()
+}
+
+// AtomicFile is a file written under a temporary name (".<name>.partial-*"
+// in the directory of its path) that appears under its path only on Commit:
+// WriteFileAtomic for a file written over a longer time (a table written
+// as its rows come).
+type AtomicFile struct {
+	path, tmp string
+	f         *os.File
+	bw        *bufio.Writer
+	done      bool
+}
+
+// CreateAtomic creates the temporary file of path.
+func CreateAtomic(path string) (*AtomicFile, error) {
 	dir, base := filepath.Split(path)
 	if dir == "" {
 		dir = "."
 	}
 	if base == "" {
-		return fmt.Errorf("export: %q names a directory, not a file", path)
+		return nil, fmt.Errorf("export: %q names a directory, not a file", path)
 	}
 	f, err := os.CreateTemp(dir, "."+base+".partial-*")
 	if err != nil {
-		return fmt.Errorf("export: cannot create a temporary file for %s (does the output directory exist and is it writable?): %w", path, err)
+		return nil, fmt.Errorf("export: cannot create a temporary file for %s (does the output directory exist and is it writable?): %w", path, err)
 	}
-	tmp := f.Name()
-	done := false
-	defer func() {
-		if !done {
-			f.Close()
-			os.Remove(tmp)
-		}
-	}()
-	bw := bufio.NewWriterSize(f, 1<<20)
-	if err := write(bw); err != nil {
+	return &AtomicFile{path: path, tmp: f.Name(), f: f, bw: bufio.NewWriterSize(f, 1<<20)}, nil
+}
+
+// Write writes to the temporary file.
+func (a *AtomicFile) Write(p []byte) (int, error) { return a.bw.Write(p) }
+
+// Commit flushes the file to disk (fsync) and renames it to its path.
+func (a *AtomicFile) Commit() error {
+	path := a.path
+	if a.done {
+		return fmt.Errorf("export: %s: committed or aborted already", path)
+	}
+	if err := a.bw.Flush(); err != nil {
 		return fmt.Errorf("export: writing %s: %w", path, err)
 	}
-	if err := bw.Flush(); err != nil {
-		return fmt.Errorf("export: writing %s: %w", path, err)
-	}
-	if err := f.Chmod(0o644); err != nil {
+	if err := a.f.Chmod(0o644); err != nil {
 		return fmt.Errorf("export: setting the mode of %s: %w", path, err)
 	}
-	if err := f.Sync(); err != nil {
+	if err := a.f.Sync(); err != nil {
 		return fmt.Errorf("export: flushing %s to disk: %w", path, err)
 	}
-	if err := f.Close(); err != nil {
+	if err := a.f.Close(); err != nil {
 		return fmt.Errorf("export: closing %s: %w", path, err)
 	}
-	if err := os.Rename(tmp, path); err != nil {
+	if err := os.Rename(a.tmp, path); err != nil {
+		os.Remove(a.tmp)
+		a.done = true
 		return fmt.Errorf("export: renaming the finished %s into place: %w", path, err)
 	}
-	done = true
+	a.done = true
 	// Make the rename itself durable; not every file system supports a
 	// directory fsync, so a failure here is not an error.
+	dir := filepath.Dir(path)
 	if d, err := os.Open(dir); err == nil {
 		d.Sync()
 		d.Close()
 	}
 	return nil
+}
+
+// Abort removes the temporary file unless the file was committed; it may be
+// called after Commit (a deferred Abort).
+func (a *AtomicFile) Abort() {
+	if a.done {
+		return
+	}
+	a.done = true
+	a.f.Close()
+	os.Remove(a.tmp)
 }
 
 // SHA256File returns the SHA-256 digest of the file at path as lower-case hex.

@@ -223,56 +223,106 @@ func loadCheckpointTrusting(path string, want ckHeader, trusted int, newCell fun
 
 // loadState is loadCheckpointTrusting giving the checkpoint's header.
 func loadState(path string, want ckHeader, trusted int, newCell func(id int) *cell) ([]*cell, *ckHeader, error) {
-	h, r, f, err := readCkHeader(path)
+	r, err := openStates(path, want, trusted, newCell)
 	if err != nil {
 		return nil, nil, err
 	}
-	defer f.Close()
-	if why := h.mismatch(want, trusted); why != "" {
-		return nil, nil, inputErr(&resumeRefused{path: path, why: why})
+	defer r.close()
+	cells, err := r.next(r.h.C1 - r.h.C0)
+	if err != nil {
+		return nil, nil, err
 	}
-	cells := make([]*cell, h.C1-h.C0)
+	if err := r.end(); err != nil {
+		return nil, nil, err
+	}
+	return cells, r.h, nil
+}
+
+// stateReader reads the cells of a sealed state file a few at a time (a
+// merge holds one chunk of a shard's states, not the whole file).
+type stateReader struct {
+	path    string
+	h       *ckHeader
+	r       *bufio.Reader
+	f       *os.File
+	at      int // cells read
+	newCell func(id int) *cell
+}
+
+// openStates checks a state file's seal and header against want (see
+// loadCheckpointTrusting) and returns a reader at its first cell.
+func openStates(path string, want ckHeader, trusted int, newCell func(id int) *cell) (*stateReader, error) {
+	h, r, f, err := readCkHeader(path)
+	if err != nil {
+		return nil, err
+	}
+	if why := h.mismatch(want, trusted); why != "" {
+		f.Close()
+		return nil, inputErr(&resumeRefused{path: path, why: why})
+	}
+	return &stateReader{path: path, h: h, r: r, f: f, newCell: newCell}, nil
+}
+
+func (s *stateReader) close() { s.f.Close() }
+
+// next reads the next n cells (nil for a cell without a state).
+func (s *stateReader) next(n int) ([]*cell, error) {
+	path, h, r := s.path, s.h, s.r
+	if s.at+n > h.C1-h.C0 {
+		return nil, fmt.Errorf("internal error: %s holds %d cells, asked for %d..%d", path, h.C1-h.C0, s.at, s.at+n-1)
+	}
+	cells := make([]*cell, n)
 	for i := range cells {
+		id := h.C0 + s.at + i
 		flag, err := r.ReadByte()
 		if err != nil {
-			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 		}
 		if flag == 0 {
 			continue
 		}
 		if flag != 1 {
-			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: flag byte %d", h.C0+i, flag)})
+			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: flag byte %d", id, flag)})
 		}
-		c := newCell(h.C0 + i)
+		c := s.newCell(id)
 		a, err := readBytes(r)
 		if err != nil {
-			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 		}
 		b, err := readBytes(r)
 		if err != nil {
-			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 		}
 		if err := c.clim.UnmarshalBinary(a); err != nil {
-			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 		}
 		if err := c.col.UnmarshalBinary(b); err != nil {
-			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 		}
 		sp, err := readBytes(r)
 		if err != nil {
-			return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 		}
 		if c.spec != nil {
 			if err := c.spec.UnmarshalBinary(sp); err != nil {
-				return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", h.C0+i, err)})
+				return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 			}
 		}
 		cells[i] = c
 	}
-	if _, err := r.ReadByte(); err != io.EOF {
-		return nil, nil, inputErr(&damagedState{path, "data beyond the last cell"})
+	s.at += n
+	return cells, nil
+}
+
+// end checks that the file holds nothing after its last cell.
+func (s *stateReader) end() error {
+	if s.at != s.h.C1-s.h.C0 {
+		return fmt.Errorf("internal error: %s: %d of %d cells read", s.path, s.at, s.h.C1-s.h.C0)
 	}
-	return cells, h, nil
+	if _, err := s.r.ReadByte(); err != io.EOF {
+		return inputErr(&damagedState{s.path, "data beyond the last cell"})
+	}
+	return nil
 }
 
 // resumeRefused says why a checkpoint cannot be resumed.

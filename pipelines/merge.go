@@ -32,38 +32,53 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 		return nil, err
 	}
 	defer unlock()
-	// Where the states come from: the shards' final states; where they go:
-	// copied into out/.swellgrid.
-	restore := func(pi int, p [2]int) ([]*cell, int, error) {
+	if opt.LimitProcess {
+		j.mem.applyToProcess()
+	}
+	defer j.abortSink()
+	// Each pass of each shard: its states read a chunk at a time (within
+	// the merge's memory_limit, however large the shard's passes were),
+	// fitted and written, then the state file copied into out/.swellgrid
+	// so that the merged run can be updated.
+	for pi, pt := range parts {
+		p := j.passes[pi]
 		ts := time.Now()
-		defer j.mark("load_s", ts)
-		pt := parts[pi]
-		cells, h, err := loadState(pt.src, pt.want, len(j.ids), j.eng.newCell)
+		r, err := openStates(pt.src, pt.want, len(j.ids), j.eng.newCell)
 		if err != nil {
 			if IsResumeRefused(err) || errors.Is(err, os.ErrNotExist) {
-				return nil, 0, inputErr(fmt.Errorf("merge: shard %d/%d in %s: %w", pt.m.Shard, pt.m.Shards, pt.dir, err))
+				return nil, inputErr(fmt.Errorf("merge: shard %d/%d in %s: %w", pt.m.Shard, pt.m.Shards, pt.dir, err))
 			}
-			return nil, 0, err
+			return nil, err
 		}
-		j.seen[pi] = ingest.TallyOf(h.Seen) // the shard's counts: CheckTally sees every cell
-		if h.NextFile != len(j.cat.Files) {
-			return nil, 0, inputErr(fmt.Errorf("merge: shard %d/%d in %s has read %d of %d files; rerun it to finish", pt.m.Shard, pt.m.Shards, pt.dir, h.NextFile, len(j.cat.Files)))
+		j.seen[pi] = ingest.TallyOf(r.h.Seen) // the shard's counts: CheckTally sees every cell
+		if next := r.h.NextFile; next != len(j.cat.Files) {
+			r.close()
+			return nil, inputErr(fmt.Errorf("merge: shard %d/%d in %s has read %d of %d files; rerun it to finish", pt.m.Shard, pt.m.Shards, pt.dir, next, len(j.cat.Files)))
 		}
-		return cells, h.NextFile, nil
-	}
-	saved := func(pi int, p [2]int) error {
-		pt := parts[pi]
+		j.mark("load_s", ts)
+		err = j.fitPass(ctx, p[0], p[1]-p[0], func(off, k int) ([]*cell, error) {
+			ts := time.Now()
+			defer j.mark("load_s", ts)
+			return r.next(k)
+		})
+		if err == nil {
+			err = r.end()
+		}
+		r.close()
+		if err != nil {
+			return nil, err
+		}
 		if err := copyFile(pt.src, ckPath(j.out, p[0], p[1])); err != nil {
-			return outputError(fmt.Errorf("merge: saving the states in %s: %w", j.out, err))
+			return nil, outputError(fmt.Errorf("merge: saving the states in %s: %w", j.out, err))
 		}
 		if pt.lastOfShard {
 			j.log.Info("merged", "dir", pt.dir, "shard", fmt.Sprintf("%d/%d", pt.m.Shard, pt.m.Shards), "cells", pt.m.C1-pt.m.C0)
 		}
-		return nil
 	}
-	results, err := j.runPasses(ctx, restore, saved)
-	if err != nil {
-		return nil, err
+	// Every shard's counts are in: a role variable without data in any
+	// cell is refused before a table is put in place.
+	if err := j.checkData(); err != nil {
+		return nil, inputErr(err)
 	}
 	if err := removeStaleCheckpoints(j.out, j.passes); err != nil {
 		return nil, outputError(err)
@@ -75,7 +90,7 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 	for i, in := range parts[0].m.Inputs {
 		sums[i] = in.SHA256
 	}
-	return j.export(ctx, results, sums)
+	return j.export(ctx, sums)
 }
 
 // mergePart is one pass of one shard: the state file a merge loads.
@@ -125,6 +140,9 @@ func validateMerge(ctx context.Context, out string, shardDirs []string, opt Opti
 	if spec.Run.MemoryLimit == "" {
 		spec.Run.MemoryLimit = DefaultSpec().Run.MemoryLimit
 	}
+	if opt.MemoryLimit != "" {
+		spec.Run.MemoryLimit = opt.MemoryLimit
+	}
 	if err := spec.Validate(); err != nil {
 		return nil, nil, inputErr(fmt.Errorf("merge: the shards' spec: %w", err))
 	}
@@ -163,6 +181,10 @@ func validateMerge(ctx context.Context, out string, shardDirs []string, opt Opti
 		return nil, nil, err
 	}
 	j.mark("catalog_s", ts)
+	if j.mem, err = j.eng.planMergeBudget(); err != nil {
+		return nil, nil, inputErr(err)
+	}
+	j.fitChunk = j.mem.fitChunk
 	var parts []mergePart
 	for _, k := range order {
 		dir, m := shardDirs[k], ms[k]

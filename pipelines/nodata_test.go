@@ -69,7 +69,8 @@ func TestNoDataRefusedInPassesAndMerge(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	_, err = j.runPasses(context.Background(), j.restoreOwn(0), nil)
+	err = j.runPasses(context.Background(), j.restoreOwn(0), nil)
+	j.abortSink()
 	unlock()
 	wantNoData(t, "two passes", err)
 	if len(j.seen[0]) == 0 || len(j.seen[1]) == 0 {

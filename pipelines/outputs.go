@@ -37,42 +37,20 @@ func (e *engine) checkContourColumns() error {
 	return e.spec.Screening.checkColumns(names)
 }
 
-// writeOutputs writes the tables and contour layers; every file is written
-// atomically by export. It returns the files written (relative to out).
-func (e *engine) writeOutputs(out string, res []*cellResult) ([]string, []string, error) {
+// writeContours writes the contour layers of the contour columns, whose
+// values over the grid (in cell order) are in vals (nil: not numeric); every
+// file is written atomically by export. It returns the files written
+// (relative to out) and the warnings.
+func (e *engine) writeContours(out string, vals map[string][]float64) ([]string, []string, error) {
 	var written, warns []string
-	cells := e.cellsTable(res)
-	if err := export.WriteGeoParquet(filepath.Join(out, "cells.parquet"), cells, e.cat.Grid.Lon, e.cat.Grid.Lat); err != nil {
-		return nil, nil, fmt.Errorf("writing cells.parquet: %v", err)
-	}
-	written = append(written, "cells.parquet")
-	long := e.longTables(res)
-	for _, name := range keys(long) {
-		f := name + ".parquet"
-		if err := export.WriteParquet(filepath.Join(out, f), long[name]); err != nil {
-			return nil, nil, fmt.Errorf("writing %s: %v", f, err)
-		}
-		written = append(written, f)
-	}
-	if e.cat.Grid.Kind == grid.MeshKind {
-		files, err := writeMeshTables(out, e.cat.Grid)
-		if err != nil {
-			return nil, nil, err
-		}
-		written = append(written, files...)
-	}
 	contour, why := contourer(e.cat.Grid, e.cat.Masked)
 	if contour == nil {
 		warns = append(warns, why)
 		return written, warns, nil
 	}
-	byName := map[string]*export.Column{}
-	for i := range cells.Columns {
-		byName[cells.Columns[i].Name] = &cells.Columns[i]
-	}
+	units := e.columnNames()
 	for _, col := range e.spec.Contours.Columns {
-		c := byName[col]
-		vals := c.Float64
+		vals := vals[col]
 		if vals == nil {
 			warns = append(warns, fmt.Sprintf("no contours for %s: not a numeric column", col))
 			continue
@@ -96,7 +74,7 @@ func (e *engine) writeOutputs(out string, res []*cellResult) ([]string, []string
 		if err != nil {
 			return nil, nil, fmt.Errorf("contours of %s: %v", col, err)
 		}
-		if err := export.WriteContours(out, col, c.Unit, levels, lines, edges, bands); err != nil {
+		if err := export.WriteContours(out, col, units[col], levels, lines, edges, bands); err != nil {
 			return nil, nil, fmt.Errorf("writing contours of %s: %v", col, err)
 		}
 		written = append(written, "contours/"+col+".geojson", "contours/"+col+".bands.geojson")

@@ -14,7 +14,6 @@ import (
 	"sync"
 	"time"
 
-	"swellgrid/grid"
 	"swellgrid/ingest"
 	"swellgrid/stats/climate"
 	"swellgrid/stats/extremes"
@@ -36,6 +35,15 @@ type Options struct {
 	// Workers, if > 0, is the number of fit workers of Merge (a run takes
 	// run.workers from the spec).
 	Workers int
+	// MemoryLimit, if set, is the memory budget of Merge (a size such as
+	// "512MiB"; a run takes run.memory_limit from the spec, a merge
+	// otherwise the default, as the shards do not record theirs).
+	MemoryLimit string
+	// LimitProcess applies the memory plan to this process: Go's soft
+	// memory limit (runtime/debug.SetMemoryLimit) is set to the budget less
+	// the chunk cache. The CLI sets it; a library caller that runs other
+	// work in the same process may leave it off.
+	LimitProcess bool
 }
 
 // Result says what a run wrote.
@@ -204,6 +212,9 @@ func Run(ctx context.Context, spec *Spec, opt Options) (res *Result, err error) 
 		}
 	}()
 	defer unlock()
+	if opt.LimitProcess {
+		j.mem.applyToProcess()
+	}
 	sums := startChecksums(ctx, j.cat)
 	defer sums.stop()
 	j.sums = sums
@@ -225,8 +236,8 @@ func Run(ctx context.Context, spec *Spec, opt Options) (res *Result, err error) 
 		j.log.Info("update", "earlier_files", j.update.earlier, "new_files", len(j.cat.Files)-j.update.earlier)
 	}
 	j.log.Info("run", "files", len(j.cat.Files), "steps", j.cat.Steps, "cells", j.cat.Grid.NCells(), "passes", len(j.passes), "workers", j.workers, "out", j.out)
-	results, err := j.runPasses(ctx, j.restoreOwn(trusted), nil)
-	if err != nil {
+	defer j.abortSink()
+	if err := j.runPasses(ctx, j.restoreOwn(trusted), nil); err != nil {
 		return nil, err
 	}
 	s, err := sums.wait()
@@ -242,51 +253,34 @@ func Run(ctx context.Context, spec *Spec, opt Options) (res *Result, err error) 
 	if j.opt.Shard != nil {
 		return writeShard(j.out, spec, j.cat, *j.opt.Shard, j.lo, j.hi, j.passes, s, opt.Version, j.t0)
 	}
-	return j.export(ctx, results, s)
+	return j.export(ctx, s)
 }
 
 type devNull struct{}
 
 func (devNull) Write(p []byte) (int, error) { return len(p), nil }
 
-// plan splits the cells lo..hi-1 into passes that fit the memory budget. The estimate
-// per cell is the encoded size of a state after the record's years plus the
-// read buffers of a block.
-func (e *engine) plan(lo, hi int) ([][2]int, error) {
-	limit, _ := ParseSize(e.spec.Run.MemoryLimit)
-	years := math.Max(1, float64(e.cat.Steps)*e.dtHours/8766)
-	probe := climate.NewCellState(e.ccfg)
-	b, _ := probe.MarshalBinary()
-	perCell := float64(len(b))*2 + years*(12*64+50*48+256) + 512
-	if e.spectral {
-		perCell += float64(e.layout.Len()) * 8 * float64(e.spec.Run.BlockSteps) * 2
-	} else {
-		perCell += 6 * 8 * float64(e.spec.Run.BlockSteps) * 2
+// plan splits the cells lo..hi-1 into passes that fit the memory budget
+// (planBudget, budget.go) and sets the fit chunk.
+func (j *job) plan(lo, hi int) ([][2]int, error) {
+	p, err := j.eng.planBudget(lo, hi)
+	if err != nil {
+		return nil, err
 	}
-	budget := float64(limit) * 0.6
-	per := int(budget / perCell)
-	if per < 1 {
-		return nil, fmt.Errorf("run.memory_limit %s is too small for one cell (about %.0f bytes per cell)", e.spec.Run.MemoryLimit, perCell)
-	}
-	if e.cat.Grid.Kind != grid.Points && per >= e.cat.Grid.NX {
-		per = per / e.cat.Grid.NX * e.cat.Grid.NX // whole rows read best
-	}
+	j.mem, j.fitChunk = p, p.fitChunk
 	var out [][2]int
-	for c := lo; c < hi; c += per {
-		out = append(out, [2]int{c, min(hi, c+per)})
+	for c := lo; c < hi; c += p.passCells {
+		out = append(out, [2]int{c, min(hi, c+p.passCells)})
 	}
 	return out, nil
 }
 
-// finishAll computes the results of a pass's cells with a pool of workers.
+// finishAll computes the results of cells c0.. with a pool of workers,
+// counting them on pr (started by the caller).
 func (e *engine) finishAll(ctx context.Context, c0 int, cells []*cell, acfg extremes.AnalysisConfig, workers int, pr Progress) ([]*cellResult, error) {
 	res := make([]*cellResult, len(cells))
 	next := make(chan int, 64)
 	var wg sync.WaitGroup
-	if pr != nil {
-		pr.Start("fit extremes", int64(len(cells)), 0)
-		defer pr.Done()
-	}
 	var failed failure
 	for w := 0; w < workers; w++ {
 		wg.Add(1)

@@ -491,7 +491,7 @@ func (s longSchema[T]) build(res []*cellResult) *export.Table {
 	for k := range s.cols {
 		cols[k] = fill(&s.cols[k], s.cols[k].Name, s.cols[k].Doc, rows, nil)
 	}
-	return &export.Table{Columns: cols, Meta: map[string]string{export.MetaCaution: Caution}, RowGroupRows: 1 << 17}
+	return &export.Table{Columns: cols, Meta: map[string]string{export.MetaCaution: Caution}, RowGroupRows: rowGroupRows(len(cols))}
 }
 
 // longTables is the list of long tables, in the order of the README.
@@ -639,16 +639,16 @@ func (e *engine) expand(c *ColumnSpec, v paramValue) (name, doc string) {
 	return name, doc
 }
 
-// cellsTable builds cells.parquet from cellsSchema: one row per cell of the
-// grid, in cell-id order; cells without data have null results.
-func (e *engine) cellsTable(res []*cellResult) *export.Table {
-	n := e.cat.Grid.NCells()
-	rows := make([]*cellRow, n)
+// cellsTable builds the rows lo..hi-1 of cells.parquet from cellsSchema:
+// one row per cell of the grid, in cell-id order; cells without data have
+// null results. res holds results of cells in that range.
+func (e *engine) cellsTable(lo, hi int, res []*cellResult) *export.Table {
+	rows := make([]*cellRow, hi-lo)
 	for i := range rows {
-		rows[i] = &cellRow{e: e, id: i}
+		rows[i] = &cellRow{e: e, id: lo + i}
 	}
 	for _, r := range res {
-		rows[r.id].r = r
+		rows[r.id-lo].r = r
 	}
 	var cols []export.Column
 	forEachCellColumn(e, func(c *column[*cellRow], v paramValue) {
@@ -658,7 +658,7 @@ func (e *engine) cellsTable(res []*cellResult) *export.Table {
 		name, doc := e.expand(&c.ColumnSpec, v)
 		cols = append(cols, fill(c, name, doc, rows, c.null.test()))
 	})
-	return &export.Table{Columns: cols, Meta: map[string]string{export.MetaCaution: Caution}, RowGroupRows: 65536}
+	return &export.Table{Columns: cols, Meta: map[string]string{export.MetaCaution: Caution}, RowGroupRows: rowGroupRows(len(cols))}
 }
 
 // longTables builds the long tables, keyed by name, rows in cell order.

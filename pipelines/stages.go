@@ -56,6 +56,11 @@ type job struct {
 	seen    map[int]ingest.Tally
 	timings map[string]float64
 	t0      time.Time
+	// fitChunk is the number of cells fitted and written at a time (the
+	// memory plan's); sink writes the tables as the chunks come.
+	fitChunk int
+	sink     *tableSink
+	mem      *memPlan
 }
 
 func (j *job) mark(stage string, since time.Time) { j.timings[stage] += time.Since(since).Seconds() }
@@ -67,7 +72,7 @@ func openCatalog(ctx context.Context, spec *Spec) (*ingest.Catalog, error) {
 	// (clamped to 16 MiB .. 512 MiB): enough for a month of a variable on a
 	// large grid, so each chunk is decompressed once.
 	limit, _ := ParseSize(spec.Run.MemoryLimit)
-	if err := ingest.SetChunkCache(min(max(limit/16, 16<<20), 512<<20)); err != nil {
+	if err := ingest.SetChunkCache(chunkCachePerVar(limit)); err != nil {
 		return nil, err
 	}
 	hold(ctx, "catalog")
@@ -144,7 +149,7 @@ func validateRun(ctx context.Context, spec *Spec, opt Options) (*job, error) {
 			return nil, inputErr(err)
 		}
 	}
-	if j.passes, err = j.eng.plan(j.lo, j.hi); err != nil {
+	if j.passes, err = j.plan(j.lo, j.hi); err != nil {
 		return nil, inputErr(err)
 	}
 	if opt.Update {
@@ -300,55 +305,99 @@ func (j *job) checkData() error {
 // runPasses runs restore, stream and fit for every pass. restore gives a
 // pass's states and the first file they lack; saved, if set, is called once
 // a pass is done (a merge copies the states it loaded). A shard fits
-// nothing: its states are its result.
-func (j *job) runPasses(ctx context.Context, restore func(pi int, p [2]int) ([]*cell, int, error), saved func(pi int, p [2]int) error) ([]*cellResult, error) {
-	var results []*cellResult
+// nothing: its states are its result. Otherwise each pass's results go to
+// the tables as they are fitted (fitPass), so that the run holds the
+// results of one chunk of cells, never those of every pass.
+func (j *job) runPasses(ctx context.Context, restore func(pi int, p [2]int) ([]*cell, int, error), saved func(pi int, p [2]int) error) error {
 	for pi, p := range j.passes {
 		ts := time.Now()
 		cells, from, err := restore(pi, p)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		if err := j.stream(ctx, pi, p, cells, from); err != nil {
-			return nil, err
+			return err
 		}
 		j.mark("stream_s", ts)
 		if j.opt.Shard == nil {
-			hold(ctx, "fit")
-			ts = time.Now()
-			res, err := j.eng.finishAll(ctx, p[0], cells, j.acfg, j.workers, j.opt.Progress)
-			if err != nil {
-				return nil, err
+			if err := j.fitPass(ctx, p[0], len(cells), func(off, n int) ([]*cell, error) { return cells[off : off+n], nil }); err != nil {
+				return err
 			}
-			results = append(results, res...)
-			j.mark("fit_s", ts)
 		}
+		cells = nil
 		if saved != nil {
 			if err := saved(pi, p); err != nil {
-				return nil, err
+				return err
 			}
 		}
 	}
 	if err := ctx.Err(); err != nil {
-		return nil, err
+		return err
 	}
 	// Passes read in other processes (resumed, shards merged) are counted
-	// from their states' headers: refuse before any table is written.
+	// from their states' headers: refuse before any table is put in place.
 	if err := j.checkData(); err != nil {
-		return nil, inputErr(err)
+		return inputErr(err)
 	}
-	return results, nil
+	return nil
 }
 
-// export is the export stage: tables, contours and the manifest, each file
-// written atomically.
-func (j *job) export(ctx context.Context, results []*cellResult, sums []string) (*Result, error) {
+// fitPass is the fit stage of the n cells from c0: it fits them in chunks
+// of at most j.fitChunk cells, which next gives (off, count), and writes
+// each chunk's results to the tables before the next chunk, forgetting the
+// chunk's states.
+func (j *job) fitPass(ctx context.Context, c0, n int, next func(off, k int) ([]*cell, error)) error {
+	hold(ctx, "fit")
+	ts := time.Now()
+	defer j.mark("fit_s", ts)
+	if j.sink == nil {
+		s, err := j.eng.openSink(j.out)
+		if err != nil {
+			return outputError(err)
+		}
+		j.sink = s
+	}
+	if pr := j.opt.Progress; pr != nil {
+		pr.Start("fit extremes", int64(n), 0)
+		defer pr.Done()
+	}
+	chunk := max(1, j.fitChunk)
+	for off := 0; off < n; off += chunk {
+		k := min(chunk, n-off)
+		cells, err := next(off, k)
+		if err != nil {
+			return err
+		}
+		res, err := j.eng.finishAll(ctx, c0+off, cells, j.acfg, j.workers, j.opt.Progress)
+		if err != nil {
+			return err
+		}
+		clear(cells) // the states of the chunk are done with
+		te := time.Now()
+		if err := j.sink.add(c0+off, c0+off+k, res); err != nil {
+			return outputError(err)
+		}
+		j.mark("export_s", te)
+	}
+	return nil
+}
+
+// export is the export stage: it puts the tables in place, writes the
+// contours and then the manifest, each file atomically.
+func (j *job) export(ctx context.Context, sums []string) (*Result, error) {
 	ts := time.Now()
 	hold(ctx, "export")
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
-	written, warns, err := j.eng.writeOutputs(j.out, results)
+	if j.sink == nil { // no cells at all
+		s, err := j.eng.openSink(j.out)
+		if err != nil {
+			return nil, outputError(err)
+		}
+		j.sink = s
+	}
+	written, warns, err := j.sink.close()
 	if err != nil {
 		return nil, outputError(err)
 	}

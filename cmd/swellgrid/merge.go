@@ -18,6 +18,7 @@ import (
 func newMergeCmd() *cobra.Command {
 	var out string
 	var workers int
+	var memory string
 	cmd := &cobra.Command{
 		Use:   "merge --out DIR SHARD_DIR...",
 		Short: "Combine the shard directories of a sharded run into the outputs of a whole run",
@@ -25,7 +26,9 @@ func newMergeCmd() *cobra.Command {
 that they are shards 1..N of one run (same spec fingerprint, same input files by
 path, size and SHA-256, every cell exactly once), fits every cell and writes the
 tables, contour layers and manifest exactly as a single run would: the tables are
-byte-identical to a single-process run. The shards' final states are kept in
+byte-identical to a single-process run. It reads the shards' states a chunk at a
+time within --memory-limit (default 2GiB; refused at the start, naming the limit
+it needs, when not even one cell fits). The shards' final states are kept in
 DIR/.swellgrid, so the merged run can later be extended with 'run --update DIR'.
 Exit codes as for run.
 
@@ -40,7 +43,7 @@ Exit codes as for run.
 			defer stop()
 			log := slog.New(slog.NewTextHandler(os.Stderr, nil))
 			crashDir = out
-			res, err := pipelines.Merge(ctx, out, args, pipelines.Options{Log: log, Version: Version, Workers: workers})
+			res, err := pipelines.Merge(ctx, out, args, pipelines.Options{Log: log, Version: Version, Workers: workers, MemoryLimit: memory, LimitProcess: true})
 			if err != nil {
 				return interrupted(ctx, err, "interrupted; nothing is lost: rerun the same merge")
 			}
@@ -54,5 +57,6 @@ Exit codes as for run.
 	}
 	cmd.Flags().StringVar(&out, "out", "", "run directory of the merged outputs")
 	cmd.Flags().IntVar(&workers, "workers", 0, "fit workers (0: all cores)")
+	cmd.Flags().StringVar(&memory, "memory-limit", "", "memory budget of the merge, e.g. 512MiB (default 2GiB; the process takes about 100 MB more)")
 	return cmd
 }

@@ -197,7 +197,7 @@ func runSpecWith(spec *pipelines.Spec, opt pipelines.Options) (*pipelines.Result
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
 	log := slog.New(slog.NewTextHandler(os.Stderr, nil))
-	opt.Log, opt.Version = log, Version
+	opt.Log, opt.Version, opt.LimitProcess = log, Version, true
 	opt.Progress = stderrProgress(log)
 	crashDir = spec.Output.Dir
 	res, err := pipelines.Run(ctx, spec, opt)

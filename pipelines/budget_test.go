@@ -1,0 +1,120 @@
+package pipelines
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// The memory budget decides how the cells are split (passes) and how many
+// are fitted and written at a time (fit chunks); the tables must not depend
+// on either. The reference is the run at the default budget (one pass, one
+// chunk); the fixture is testdata/bulk_monthly (6 x 5 cells, 24 months).
+func TestBudgetSplitsSameBytes(t *testing.T) {
+	in := []string{fixtureDir(t)}
+	tmp := t.TempDir()
+	ref := filepath.Join(tmp, "ref")
+	s := clSpec(in, ref)
+	if j := mustPlan(t, s); len(j.passes) != 1 || j.fitChunk < 30 {
+		t.Fatalf("default budget: %d passes, fit chunk %d; want 1 pass of the 30 cells", len(j.passes), j.fitChunk)
+	}
+	clRun(t, s, Options{})
+	want := clOutputs(t, ref)
+	for _, limit := range []string{"40MiB", "34MiB", "32MiB"} {
+		out := filepath.Join(tmp, limit)
+		s := clSpec(in, out)
+		s.Run.MemoryLimit = limit
+		j := mustPlan(t, s)
+		if j.fitChunk >= 30 {
+			t.Errorf("%s: fit chunk %d cells: the test needs chunks smaller than the grid", limit, j.fitChunk)
+		}
+		clRun(t, s, Options{})
+		clSame(t, fmt.Sprintf("%s (%d passes, fit chunks of %d)", limit, len(j.passes), j.fitChunk), want, clOutputs(t, out))
+		if limit == "32MiB" && len(j.passes) < 2 {
+			t.Errorf("32MiB: %d pass; the test needs several", len(j.passes))
+		}
+	}
+}
+
+// mustPlan validates s as Run does and returns the job (passes and chunks).
+func mustPlan(t *testing.T, s *Spec) *job {
+	t.Helper()
+	j, err := validateRun(context.Background(), s, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return j
+}
+
+// A merge follows its own budget: under a small --memory-limit it reads the
+// shards' states a few cells at a time (the shards ran at the default
+// budget, one pass each), and the tables equal the single run's.
+func TestMergeUnderBudgetSameBytes(t *testing.T) {
+	in := []string{fixtureDir(t)}
+	tmp := t.TempDir()
+	single := filepath.Join(tmp, "single")
+	clRun(t, clSpec(in, single), Options{})
+	dirs := runShards(t, in, tmp, 2)
+	merged := filepath.Join(tmp, "merged")
+	_, parts, err := validateMerge(context.Background(), merged, dirs, Options{MemoryLimit: "32MiB"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	j, _, _ := validateMerge(context.Background(), merged, dirs, Options{MemoryLimit: "32MiB"})
+	if p := parts[0].p; j.fitChunk >= p[1]-p[0] {
+		t.Fatalf("merge at 32MiB reads %d cells at a time, the first shard has %d: the test needs smaller chunks", j.fitChunk, p[1]-p[0])
+	}
+	if _, err := Merge(context.Background(), merged, dirs, Options{Version: "test", Workers: 2, MemoryLimit: "32MiB"}); err != nil {
+		t.Fatal(err)
+	}
+	clSame(t, fmt.Sprintf("merge at 32MiB (chunks of %d cells)", j.fitChunk), clOutputs(t, single), clOutputs(t, merged))
+	// And a merge budget too small for one cell is refused before the
+	// output directory is made.
+	tiny := filepath.Join(tmp, "tiny")
+	_, err = Merge(context.Background(), tiny, dirs, Options{Version: "test", MemoryLimit: "16MiB"})
+	if err == nil || KindOf(err).ExitCode() != 2 || !strings.Contains(err.Error(), "--memory-limit") {
+		t.Errorf("merge at 16MiB: %v; want a refusal naming --memory-limit", err)
+	}
+	if _, err := os.Stat(tiny); !errors.Is(err, os.ErrNotExist) {
+		t.Errorf("the refused merge created %s", tiny)
+	}
+}
+
+// When not even one pass of one cell fits, the run is refused before
+// anything is written, naming the limit it needs; at that limit it runs.
+func TestBudgetRefusedAtStart(t *testing.T) {
+	in := []string{fixtureDir(t)}
+	tmp := t.TempDir()
+	out := filepath.Join(tmp, "out")
+	s := clSpec(in, out)
+	s.Run.MemoryLimit = "16MiB"
+	_, err := Run(context.Background(), s, Options{Version: "test"})
+	if err == nil || KindOf(err).ExitCode() != 2 {
+		t.Fatalf("16MiB: %v; want an input error (exit 2)", err)
+	}
+	msg := err.Error()
+	const key = "needs at least "
+	i := strings.Index(msg, key)
+	if i < 0 || !strings.Contains(msg, "run.memory_limit 16MiB is too small") || !strings.Contains(msg, "--memory-limit") {
+		t.Fatalf("message %q does not name the limit it needs", msg)
+	}
+	var need int
+	if _, err := fmt.Sscanf(msg[i+len(key):], "%d MiB", &need); err != nil || need <= 16 {
+		t.Fatalf("message %q: needed limit %d MiB not read (%v)", msg, need, err)
+	}
+	if _, err := os.Stat(out); !errors.Is(err, os.ErrNotExist) {
+		t.Errorf("the refused run created %s", out)
+	}
+	// The limit named is enough (and 1 MiB less is not).
+	s.Run.MemoryLimit = fmt.Sprintf("%dMiB", need)
+	clRun(t, s, Options{})
+	s.Run.MemoryLimit = fmt.Sprintf("%dMiB", need-1)
+	s.Output.Dir = filepath.Join(tmp, "less")
+	if _, err := validateRun(context.Background(), s, Options{}); err == nil {
+		t.Errorf("%d MiB is accepted too, so the message does not name the least limit", need-1)
+	}
+}

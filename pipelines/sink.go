@@ -1,0 +1,154 @@
+package pipelines
+
+import (
+	"fmt"
+	"math/bits"
+	"path/filepath"
+
+	"swellgrid/export"
+	"swellgrid/grid"
+)
+
+// rowGroupRows is the row group length of a table of ncols columns: a power
+// of two near 2 MiB of 8-byte values per group (1 Ki to 64 Ki rows). It
+// depends on the schema only, never on the memory budget or the passes, so
+// that the files are byte-identical however the run was split; and the
+// writer holds one group per table, so the export's memory is bounded by
+// the number of tables, not by the number of cells.
+func rowGroupRows(ncols int) int {
+	r := (2 << 20) / (8 * max(ncols, 1))
+	r = 1 << (bits.Len(uint(r)) - 1)
+	return min(max(r, 1<<10), 1<<16)
+}
+
+// exportGroupBytes bounds what the table writers hold: a row group of 2 MiB
+// of values per table, the record built from it and its encoded pages
+// while it is written (3 x, see rowGroupRows).
+const exportGroupBytes = 3 * (2 << 20)
+
+// tableSink writes the run's tables as the results come, pass by pass, in
+// cell order: cells.parquet and every long table is a Parquet stream, put
+// in place at close (each atomically), and only the values of the contour
+// columns are kept over the whole grid for the contour layers. What a run
+// holds for its results is thus one chunk of cells, whatever the number of
+// passes.
+type tableSink struct {
+	e       *engine
+	out     string
+	cells   *export.TableStream
+	long    []*export.TableStream // by longSchemas
+	names   []string              // file names of long
+	next    int                   // the next cell id to write
+	contour map[string][]float64  // the contour columns over the grid
+}
+
+func (e *engine) openSink(out string) (*tableSink, error) {
+	s := &tableSink{e: e, out: out, contour: map[string][]float64{}}
+	g := e.cat.Grid
+	var err error
+	if s.cells, err = export.NewGeoParquetStream(filepath.Join(out, "cells.parquet"), e.cellsTable(0, 0, nil), g.Lon, g.Lat); err != nil {
+		return nil, fmt.Errorf("writing cells.parquet: %v", err)
+	}
+	// in the order of the file names (the order of Result.Files)
+	byName := map[string]longTable{}
+	for _, t := range longSchemas {
+		byName[t.file()] = t
+	}
+	for _, name := range keys(byName) {
+		st, err := export.NewParquetStream(filepath.Join(out, name), byName[name].build(nil))
+		if err != nil {
+			s.abort()
+			return nil, fmt.Errorf("writing %s: %v", name, err)
+		}
+		s.long, s.names = append(s.long, st), append(s.names, name)
+	}
+	for _, col := range e.spec.Contours.Columns {
+		s.contour[col] = nil // contourer says whether the grid has contours
+	}
+	return s, nil
+}
+
+// add writes the rows of cells lo..hi-1, which must follow the cells
+// written before; res are the results of cells in that range (masked cells
+// have none), in any order.
+func (s *tableSink) add(lo, hi int, res []*cellResult) error {
+	if lo != s.next {
+		return fmt.Errorf("internal error: the tables have cells up to %d, the next part starts at %d", s.next-1, lo)
+	}
+	sortByID(res)
+	t := s.e.cellsTable(lo, hi, res)
+	if err := s.cells.Append(t); err != nil {
+		return fmt.Errorf("writing cells.parquet: %v", err)
+	}
+	for _, c := range t.Columns {
+		if v, ok := s.contour[c.Name]; ok {
+			if c.Float64 == nil {
+				s.contour[c.Name] = nil // not numeric: writeContours says so
+				continue
+			}
+			s.contour[c.Name] = append(v, c.Float64...)
+		}
+	}
+	for k, name := range s.names {
+		for _, lt := range longSchemas {
+			if lt.file() == name {
+				if err := s.long[k].Append(lt.build(res)); err != nil {
+					return fmt.Errorf("writing %s: %v", name, err)
+				}
+			}
+		}
+	}
+	s.next = hi
+	return nil
+}
+
+// close puts the tables in place and writes the contour layers; it returns
+// the files written (relative to the run directory) and the warnings.
+func (s *tableSink) close() ([]string, []string, error) {
+	if n := s.e.cat.Grid.NCells(); s.next != n {
+		s.abort()
+		return nil, nil, fmt.Errorf("internal error: the tables have %d of %d cells", s.next, n)
+	}
+	written := []string{"cells.parquet"}
+	if err := s.cells.Close(); err != nil {
+		s.abort()
+		return nil, nil, fmt.Errorf("writing cells.parquet: %v", err)
+	}
+	for k, st := range s.long {
+		if err := st.Close(); err != nil {
+			s.abort()
+			return nil, nil, fmt.Errorf("writing %s: %v", s.names[k], err)
+		}
+		written = append(written, s.names[k])
+	}
+	if s.e.cat.Grid.Kind == grid.MeshKind {
+		files, err := writeMeshTables(s.out, s.e.cat.Grid)
+		if err != nil {
+			return nil, nil, err
+		}
+		written = append(written, files...)
+	}
+	files, warns, err := s.e.writeContours(s.out, s.contour)
+	if err != nil {
+		return nil, nil, err
+	}
+	return append(written, files...), warns, nil
+}
+
+// abort removes the unfinished tables.
+func (s *tableSink) abort() {
+	if s.cells != nil {
+		s.cells.Abort()
+	}
+	for _, st := range s.long {
+		st.Abort()
+	}
+}
+
+// abortSink removes the unfinished tables of a run that did not reach its
+// export (a no-op once they are in place).
+func (j *job) abortSink() {
+	if j.sink != nil {
+		j.sink.abort()
+	}
+}
