@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"time"
 
 	"swellgrid/ingest"
 )
@@ -17,11 +18,11 @@ import (
 // job that starts only when every task has succeeded (afterok on the array).
 type SlurmJobs struct {
 	SpecFile  string // run spec (TOML); must be readable on the compute nodes
-	Shards    int    // number of shards (array tasks)
+	Shards    int    // number of shards (array tasks); 0: as many as --mem needs
 	Out       string // run directory of the merged outputs ("" = the spec's output.dir)
 	Partition string // sbatch --partition ("" = the cluster's default)
 	Time      string // sbatch --time per task, e.g. 02:00:00 ("" = the partition's default)
-	Mem       string // sbatch --mem per task, e.g. 8G; also the run's memory budget
+	Mem       string // sbatch --mem per task, e.g. 8G ("": as much as a shard needs); the run's budget is this less ProcessOverhead
 	CPUs      int    // sbatch --cpus-per-task (0 = 1); the run's workers
 	Binary    string // swellgrid executable on the compute nodes ("" = this executable)
 	ScriptDir string // where the job scripts and job logs go ("" = <Out>/.swellgrid/slurm)
@@ -32,46 +33,68 @@ type SlurmScripts struct {
 	ArrayScript, MergeScript string   // paths of the two job scripts
 	ShardDirs                []string // the shard directories the tasks write
 	Out                      string   // the merged run directory
+	Plan                     *SlurmPlan
 }
 
-// WriteSlurmScripts checks the spec and the shard count against the grid and
-// writes the two job scripts. Every path in them is absolute.
-func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
+// PlanSlurm sizes a sharded run (see SlurmPlan) from the spec's catalog:
+// the number of shards for j.Mem, the memory per task for j.Shards, or, with
+// both, checks that they fit. It writes nothing.
+func PlanSlurm(j SlurmJobs) (*SlurmPlan, *Spec, error) {
 	if j.SpecFile == "" {
-		return nil, inputErr(fmt.Errorf("cluster slurm: give --spec FILE: the array tasks and the merge job all read the same spec"))
+		return nil, nil, inputErr(fmt.Errorf("cluster slurm: give --spec FILE: the array tasks and the merge job all read the same spec"))
 	}
-	specFile := absPath(j.SpecFile)
-	spec, err := LoadSpec(specFile)
+	spec, err := LoadSpec(absPath(j.SpecFile))
 	if err != nil {
-		return nil, inputErr(err)
+		return nil, nil, inputErr(err)
 	}
 	if j.Out != "" {
 		spec.Output.Dir = j.Out
 	}
 	if err := spec.Validate(); err != nil {
-		return nil, inputErr(err)
+		return nil, nil, inputErr(err)
 	}
-	if j.Shards < 1 {
-		return nil, inputErr(fmt.Errorf("cluster slurm: --shards %d: give at least 1 shard", j.Shards))
+	if j.Shards < 0 {
+		return nil, nil, inputErr(fmt.Errorf("cluster slurm: --shards %d: give at least 1 shard", j.Shards))
+	}
+	var mem int64
+	if j.Mem != "" {
+		// Slurm reads a bare number as megabytes; ParseSize as bytes.
+		m := strings.TrimSpace(j.Mem)
+		if _, err := strconv.ParseFloat(m, 64); err == nil {
+			m += "M"
+		}
+		if mem, err = ParseSize(m); err != nil {
+			return nil, nil, inputErr(fmt.Errorf("cluster slurm: --mem %q: %w", j.Mem, err))
+		}
 	}
 	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
 	if err != nil {
-		return nil, inputErr(err)
+		return nil, nil, inputErr(err)
 	}
-	if _, _, err := (Shard{Index: 1, Count: j.Shards}).Cells(cat.Grid); err != nil {
-		return nil, inputErr(fmt.Errorf("cluster slurm: --shards %d: %w", j.Shards, err))
+	job, err := newJob(spec, Options{}, cat, time.Now())
+	if err != nil {
+		return nil, nil, err
 	}
-	mem := ""
-	if j.Mem != "" {
-		// Slurm reads a bare number as megabytes; ParseSize as bytes.
-		mem = strings.TrimSpace(j.Mem)
-		if _, err := strconv.ParseFloat(mem, 64); err == nil {
-			mem += "M"
-		}
-		if _, err := ParseSize(mem); err != nil {
-			return nil, inputErr(fmt.Errorf("cluster slurm: --mem %q: %w", j.Mem, err))
-		}
+	p, err := planSlurm(job.slurmModel(), mem, j.Shards)
+	if err != nil {
+		return nil, nil, inputErr(err)
 	}
+	if _, _, err := (Shard{Index: 1, Count: p.Shards}).Cells(cat.Grid); err != nil {
+		return nil, nil, inputErr(fmt.Errorf("cluster slurm: %d shards: %w", p.Shards, err))
+	}
+	return p, spec, nil
+}
+
+// WriteSlurmScripts plans the shards (PlanSlurm) and writes the two job
+// scripts. Every path in them is absolute.
+func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
+	plan, spec, err := PlanSlurm(j)
+	if err != nil {
+		return nil, err
+	}
+	specFile := absPath(j.SpecFile)
+	j.Shards = plan.Shards
+	mem, budget := sizeText(plan.MemBytes), sizeText(plan.BudgetBytes)
 	cpus := j.CPUs
 	if cpus < 1 {
 		cpus = 1
@@ -97,7 +120,7 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 		return nil, outputError(fmt.Errorf("cluster slurm: shard directory %s: %w", shardRoot, err))
 	}
 	cwd, _ := os.Getwd()
-	res := &SlurmScripts{ArrayScript: filepath.Join(sdir, "shards.sbatch"), MergeScript: filepath.Join(sdir, "merge.sbatch"), Out: out}
+	res := &SlurmScripts{ArrayScript: filepath.Join(sdir, "shards.sbatch"), MergeScript: filepath.Join(sdir, "merge.sbatch"), Out: out, Plan: plan}
 	for i := 1; i <= j.Shards; i++ {
 		res.ShardDirs = append(res.ShardDirs, filepath.Join(shardRoot, strconv.Itoa(i)))
 	}
@@ -114,9 +137,7 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 		if j.Time != "" {
 			fmt.Fprintf(&b, "#SBATCH --time=%s\n", j.Time)
 		}
-		if mem != "" {
-			fmt.Fprintf(&b, "#SBATCH --mem=%s\n", slurmMem(mem))
-		}
+		fmt.Fprintf(&b, "#SBATCH --mem=%s\n", mem)
 		for _, e := range extra {
 			fmt.Fprintf(&b, "#SBATCH %s\n", e)
 		}
@@ -124,10 +145,9 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 		b.WriteString("set -euo pipefail\n")
 		return b.String()
 	}
-	memFlag := ""
-	if mem != "" {
-		memFlag = " --memory-limit " + shQuote(mem)
-	}
+	// The run's budget is the request less what the process takes beyond
+	// it, so that the scheduler does not kill a task sized by the plan.
+	memFlag := " --memory-limit " + shQuote(budget)
 	array := header("swellgrid-shards", "shard-%a.log", fmt.Sprintf("--array=1-%d", j.Shards)) +
 		fmt.Sprintf("exec %s run --spec %s --shard \"${SLURM_ARRAY_TASK_ID}/%d\" --out %s/\"${SLURM_ARRAY_TASK_ID}\" --workers \"${SLURM_CPUS_PER_TASK:-%d}\"%s\n",
 			shQuote(bin), shQuote(specFile), j.Shards, shQuote(shardRoot), cpus, memFlag)
@@ -136,7 +156,7 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 		dirs[i] = shQuote(d)
 	}
 	merge := header("swellgrid-merge", "merge.log", "--kill-on-invalid-dep=yes") +
-		fmt.Sprintf("exec %s merge --out %s --workers \"${SLURM_CPUS_PER_TASK:-%d}\" %s\n", shQuote(bin), shQuote(out), cpus, strings.Join(dirs, " "))
+		fmt.Sprintf("exec %s merge --out %s --workers \"${SLURM_CPUS_PER_TASK:-%d}\"%s %s\n", shQuote(bin), shQuote(out), cpus, memFlag, strings.Join(dirs, " "))
 	for _, f := range [][2]string{{res.ArrayScript, array}, {res.MergeScript, merge}} {
 		if err := os.WriteFile(f[0], []byte(f[1]), 0o755); err != nil {
 			return nil, outputError(fmt.Errorf("cluster slurm: %w", err))
@@ -185,11 +205,4 @@ func shQuote(s string) string {
 		return s
 	}
 	return "'" + strings.ReplaceAll(s, "'", `'\''`) + "'"
-}
-
-// slurmMem writes a memory size as sbatch --mem reads it (4GiB -> 4G).
-func slurmMem(m string) string {
-	u := strings.ToUpper(strings.TrimSpace(m))
-	u = strings.TrimSuffix(u, "IB")
-	return strings.TrimSuffix(u, "B")
 }

@@ -91,10 +91,10 @@ type CellState struct {
 	wDir       uint64
 	sSin, sCos int64
 
-	histH  []uint32
-	histJ  []uint32
-	scW    []uint32
-	scJ    []uint64
+	histH []uint32
+	histJ []uint32
+	scW   []uint32
+	scJ   []uint64
 	// ys lists the years with at least one step, ascending; ym holds 12
 	// records per entry of ys, in the same order. Only years with data
 	// take room, so a record with a long gap (a reference year mistyped
