@@ -28,7 +28,7 @@ func TestSlurmScripts(t *testing.T) {
 	m, _ := os.ReadFile(s.MergeScript)
 	// sbatch options as the Slurm sbatch manual names them (common practice).
 	for _, want := range []string{"#SBATCH --array=1-3", "#SBATCH --partition=p1", "#SBATCH --time=01:00:00", "#SBATCH --mem=4G",
-		"#SBATCH --cpus-per-task=2", `--shard "${SLURM_ARRAY_TASK_ID}/3"`, "--memory-limit 4GiB", "/opt/sg/swellgrid run --spec " + spec} {
+		"#SBATCH --cpus-per-task=2", `--shard "${SLURM_ARRAY_TASK_ID}/3"`, "--memory-limit 3968M", "/opt/sg/swellgrid run --spec " + spec} {
 		if !bytes.Contains(a, []byte(want)) {
 			t.Errorf("array script lacks %q:\n%s", want, a)
 		}
