@@ -143,4 +143,3 @@ func (p *SlurmPlan) Text() string {
 	fmt.Fprintf(&b, "memory:   --mem %s per task = --memory-limit %s + %s for the process\n", sizeText(p.MemBytes), sizeText(p.BudgetBytes), mib(ProcessOverhead))
 	return b.String()
 }
-

@@ -42,7 +42,7 @@ plan is printed; --plan prints it and writes nothing.
 ` + caution,
 		Example: `  swellgrid cluster slurm --spec atlas.toml --mem 8G --plan
   swellgrid cluster slurm --spec atlas.toml --shards 16 --partition compute --time 04:00:00 --submit`,
-		Args:    cobra.NoArgs,
+		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if planOnly {
 				p, _, err := pipelines.PlanSlurm(j)
