@@ -27,7 +27,7 @@ TEST_DEBS  += chromium python3-matplotlib
 # screening geometry references (GEOS validity, point-in-polygon, geodesics and areas)
 TEST_DEBS  += python3-shapely python3-pyproj
 
-.PHONY: all deps test-deps build demo test lint mutants bench fuzz soak clean
+.PHONY: all deps test-deps build demo test lint mutants bench bench-memory fuzz soak clean
 
 all: build
 
@@ -106,6 +106,20 @@ bench: deps
 	$(GO) install golang.org/x/perf/cmd/benchstat@$(BENCHSTAT_VERSION)
 	"$$($(GO) env GOPATH)/bin/benchstat" before=$(BENCH_OUT)/micro-before.txt after=$(BENCH_OUT)/micro.txt | tee $(BENCH_OUT)/micro-benchstat.txt
 	./pipelines/bench/compare_outputs.sh bin/swellgrid-before $(BIN) bin/sgdiff > $(BENCH_OUT)/tables.txt; cat $(BENCH_OUT)/tables.txt
+	$(MAKE) bench-memory
+
+# bench-memory: peak RSS (each case's child rusage, ru_maxrss) of the bulk
+# benchmark under --memory-limit 256MiB (target 360 MB) and the default 2GiB
+# (target 2 GiB + the stated overhead), of a 200 x 200 grid, its 2 shards and
+# their merge under 256MiB (target the limit + overhead), and the heap per
+# cell against the memory model (BenchmarkCellMemory). Figures go to
+# $(BENCH_OUT)/memory.md; BENCHMARKS.md (memory section) reads them.
+bench-memory: deps
+	@mkdir -p $(BENCH_OUT) bin
+	$(GO) build -o $(BIN) ./cmd/swellgrid
+	$(GO) build -o bin/sgmem ./pipelines/bench/cmd/sgmem
+	./bin/sgmem -cache $(BENCH_CACHE) -bin $(BIN) -md $(BENCH_OUT)/memory.md
+	$(GO) test -run '^$$' -bench CellMemory -benchtime 3x ./pipelines/ | tee -a $(BENCH_OUT)/memory.md
 
 # Fuzz targets, each for FUZZTIME (go test -fuzz runs one target at a time).
 # A crasher is saved under the package's testdata/fuzz/ and must become a

@@ -1,0 +1,70 @@
+// Command sgmem is the memory part of `make bench` (target bench-memory): it
+// runs the swellgrid executable on the benchmark hindcasts under several
+// memory limits, each case a child process, and reports each child's peak
+// RSS (ru_maxrss) against its target (the limit plus the stated overhead,
+// pipelines.ProcessOverhead, or the issue's 360 MB for the bulk benchmark at
+// 256 MiB). It asserts nothing: the figures go to BENCHMARKS.md.
+package main
+
+import (
+	"flag"
+	"fmt"
+	"os"
+	"path/filepath"
+	"runtime"
+	"strings"
+
+	"swellgrid/pipelines"
+	"swellgrid/pipelines/bench"
+)
+
+func main() {
+	home, _ := os.UserCacheDir()
+	cache := flag.String("cache", filepath.Join(home, "swellgrid-bench"), "directory of the generated benchmark hindcasts")
+	bin := flag.String("bin", "bin/swellgrid", "swellgrid executable")
+	md := flag.String("md", "", "write the table as Markdown here (and the figures as JSON beside it)")
+	work := flag.String("work", "", "scratch directory for the run directories (default: a temporary one)")
+	only := flag.String("only", "", "run only the cases whose name contains this")
+	months := flag.Int("grid200-months", 12, "record length of the 200 x 200 grid")
+	flag.Parse()
+	logf := func(f string, a ...any) { fmt.Fprintf(os.Stderr, f+"\n", a...) }
+	bulk, err := bench.Ensure(*cache, "bulk", bench.BulkScenario(10), logf)
+	if err != nil {
+		fail(err)
+	}
+	g200, err := bench.Ensure(*cache, "grid200", bench.Grid200Scenario(*months), logf)
+	if err != nil {
+		fail(err)
+	}
+	root := *work
+	if root == "" {
+		if root, err = os.MkdirTemp("", "sgmem-"); err != nil {
+			fail(err)
+		}
+		defer os.RemoveAll(root)
+	}
+	var done []*bench.MemCase
+	for _, c := range bench.MemCases(bulk.Files, g200.Files, root, pipelines.ProcessOverhead) {
+		if *only != "" && !strings.Contains(c.Name, *only) {
+			continue
+		}
+		bench.RunMemCase(*bin, c, os.Stderr)
+		done = append(done, c)
+	}
+	host := fmt.Sprintf("%d logical CPUs, %s/%s, %s", runtime.NumCPU(), runtime.GOOS, runtime.GOARCH, runtime.Version())
+	table := bench.MemMarkdown(done, host)
+	fmt.Print(table)
+	if *md != "" {
+		if err := os.WriteFile(*md, []byte(table), 0o644); err != nil {
+			fail(err)
+		}
+		if err := bench.WriteMemJSON(strings.TrimSuffix(*md, filepath.Ext(*md))+".json", done); err != nil {
+			fail(err)
+		}
+	}
+}
+
+func fail(err error) {
+	fmt.Fprintln(os.Stderr, "sgmem:", err)
+	os.Exit(1)
+}
