@@ -4,6 +4,8 @@ import (
 	"context"
 	"runtime"
 	"testing"
+
+	"swellgrid/ingest"
 )
 
 // BenchmarkCellMemory measures the heap a pass holds per cell (the states
@@ -34,7 +36,7 @@ func BenchmarkCellMemory(b *testing.B) {
 				cells[k] = j.eng.newCell(k)
 			}
 		}
-		if err := j.eng.streamPass(context.Background(), 0, n, 0, 2, cells, nil, nil); err != nil {
+		if err := j.eng.streamPass(context.Background(), 0, n, 0, 2, cells, ingest.Tally{}, nil, nil); err != nil {
 			b.Fatal(err)
 		}
 		h1 := heap()
