@@ -220,23 +220,7 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 	// floatVar adds a compressed double variable with a NaN fill, its
 	// attributes and its values.
 	floatVar := func(name string, dims []netcdf.Dim, c *rundir.Column, long string, vals []float64) error {
-		v, err := ds.AddVar(name, netcdf.DOUBLE, dims)
-		if err != nil {
-			return err
-		}
-		if err := v.SetCompression(true, true, 4); err != nil {
-			return err
-		}
-		if err := v.Attr("_FillValue").WriteFloat64s([]float64{math.NaN()}); err != nil {
-			return err
-		}
-		if err := attrs(v, c, long); err != nil {
-			return err
-		}
-		if err := v.WriteFloat64s(vals); err != nil {
-			return fmt.Errorf("variable %s: %w", name, err)
-		}
-		return nil
+		return addFloatVar(ds, name, dims, vals, func(v netcdf.Var) error { return attrs(v, c, long) })
 	}
 	for _, c := range r.Cells.Columns {
 		if !c.Numeric() || c.Name == "lon" || c.Name == "lat" {
@@ -298,6 +282,29 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 
 // column extracts a regular grid's 1-D axis from the per-cell coordinates in
 // canonical order (rows of ascending latitude, each of ascending longitude).
+// addFloatVar adds a compressed double variable with a NaN fill, the
+// attributes set writes, and its values; atlas.nc on grids and on meshes both
+// use it.
+func addFloatVar(ds netcdf.Dataset, name string, dims []netcdf.Dim, vals []float64, set func(netcdf.Var) error) error {
+	v, err := ds.AddVar(name, netcdf.DOUBLE, dims)
+	if err != nil {
+		return err
+	}
+	if err := v.SetCompression(true, true, 4); err != nil {
+		return err
+	}
+	if err := v.Attr("_FillValue").WriteFloat64s([]float64{math.NaN()}); err != nil {
+		return err
+	}
+	if err := set(v); err != nil {
+		return err
+	}
+	if err := v.WriteFloat64s(vals); err != nil {
+		return fmt.Errorf("variable %s: %w", name, err)
+	}
+	return nil
+}
+
 func column(v []float64, nx, ny int, isLon bool) []float64 {
 	if isLon {
 		return append([]float64(nil), v[:nx]...)

@@ -7,7 +7,6 @@ package raster
 
 import (
 	"fmt"
-	"math"
 
 	"github.com/fhs/go-netcdf/netcdf"
 
@@ -173,23 +172,7 @@ func writeMesh(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 			[2]string{"coordinates", coords}, [2]string{"grid_mapping", "crs"})
 	}
 	floatVar := func(name string, dims []netcdf.Dim, c *rundir.Column, long string, vals []float64) error {
-		v, err := ds.AddVar(name, netcdf.DOUBLE, dims)
-		if err != nil {
-			return err
-		}
-		if err := v.SetCompression(true, true, 4); err != nil {
-			return err
-		}
-		if err := v.Attr("_FillValue").WriteFloat64s([]float64{math.NaN()}); err != nil {
-			return err
-		}
-		if err := attrs(v, c, long); err != nil {
-			return err
-		}
-		if err := v.WriteFloat64s(vals); err != nil {
-			return fmt.Errorf("variable %s: %w", name, err)
-		}
-		return nil
+		return addFloatVar(ds, name, dims, vals, func(v netcdf.Var) error { return attrs(v, c, long) })
 	}
 	for _, c := range r.Cells.Columns {
 		if !c.Numeric() || c.Name == "lon" || c.Name == "lat" {
