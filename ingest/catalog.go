@@ -220,12 +220,22 @@ func (c *Catalog) Date(s Stamp) Date { return DateOf(c.Calendar, s) }
 // Expand turns a file, directory or glob (or several) into a sorted list of
 // files. A directory contributes its *.nc, *.nc4 and *.cdf files.
 func Expand(inputs []string) ([]string, error) {
+	return expand(inputs, []string{"*.nc", "*.nc4", "*.cdf"}, "input",
+		"no NetCDF files found in %v (a directory contributes its .nc, .nc4 and .cdf files)")
+}
+
+// expand is Expand and ExpandObservations: an existing path is taken
+// literally before it is tried as a glob, a directory contributes the files
+// matching pats, and the result is sorted without duplicates. what names the
+// kind of input in errors; none is the message (with %v for the inputs) when
+// nothing is found.
+func expand(inputs, pats []string, what, none string) ([]string, error) {
 	var out []string
 	for _, in := range inputs {
 		st, err := os.Stat(in)
 		switch {
 		case err == nil && st.IsDir():
-			for _, pat := range []string{"*.nc", "*.nc4", "*.cdf"} {
+			for _, pat := range pats {
 				m, _ := filepath.Glob(filepath.Join(globEscape(in), pat)) // the directory's name literally
 				out = append(out, m...)
 			}
@@ -234,11 +244,11 @@ func Expand(inputs []string) ([]string, error) {
 		case strings.ContainsAny(in, "*?["):
 			m, gerr := filepath.Glob(in)
 			if gerr != nil {
-				return nil, fmt.Errorf("ingest: input pattern %q: %v", in, gerr)
+				return nil, fmt.Errorf("ingest: %s pattern %q: %w", what, in, gerr)
 			}
 			out = append(out, m...)
 		default:
-			return nil, fmt.Errorf("ingest: input %q: %v", in, err)
+			return nil, fmt.Errorf("ingest: %s %q: %w", what, in, err)
 		}
 	}
 	sort.Strings(out)
@@ -249,7 +259,7 @@ func Expand(inputs []string) ([]string, error) {
 		}
 	}
 	if len(uniq) == 0 {
-		return nil, fmt.Errorf("ingest: no NetCDF files found in %v (a directory contributes its .nc, .nc4 and .cdf files)", inputs)
+		return nil, fmt.Errorf("ingest: "+none, inputs)
 	}
 	return uniq, nil
 }

@@ -7,9 +7,7 @@ import "C"
 import (
 	"fmt"
 	"math"
-	"os"
 	"path/filepath"
-	"sort"
 	"strings"
 
 	"github.com/fhs/go-netcdf/netcdf"
@@ -43,38 +41,8 @@ var ObsRoles = []Role{Hm0, Te, Tp, Dir}
 // observation files: a directory contributes its *.nc, *.nc4, *.cdf and
 // *.csv files.
 func ExpandObservations(inputs []string) ([]string, error) {
-	var out []string
-	for _, in := range inputs {
-		st, err := os.Stat(in)
-		switch {
-		case err == nil && st.IsDir():
-			for _, pat := range []string{"*.nc", "*.nc4", "*.cdf", "*.csv"} {
-				m, _ := filepath.Glob(filepath.Join(globEscape(in), pat))
-				out = append(out, m...)
-			}
-		case err == nil:
-			out = append(out, in)
-		case strings.ContainsAny(in, "*?["):
-			m, gerr := filepath.Glob(in)
-			if gerr != nil {
-				return nil, fmt.Errorf("ingest: observation pattern %q: %v", in, gerr)
-			}
-			out = append(out, m...)
-		default:
-			return nil, fmt.Errorf("ingest: observations %q: %w", in, err)
-		}
-	}
-	sort.Strings(out)
-	uniq := out[:0]
-	for i, p := range out {
-		if i == 0 || p != out[i-1] {
-			uniq = append(uniq, p)
-		}
-	}
-	if len(uniq) == 0 {
-		return nil, fmt.Errorf("ingest: no observation files found in %v (give CF NetCDF station files, .nc, or CSV files, .csv)", inputs)
-	}
-	return uniq, nil
+	return expand(inputs, []string{"*.nc", "*.nc4", "*.cdf", "*.csv"}, "observations",
+		"no observation files found in %v (give CF NetCDF station files, .nc, or CSV files, .csv)")
 }
 
 // ReadObservations reads every station of the observation files (see
