@@ -57,12 +57,21 @@ func CreateAtomic(path string) (*AtomicFile, error) {
 // Write writes to the temporary file.
 func (a *AtomicFile) Write(p []byte) (int, error) { return a.bw.Write(p) }
 
-// Commit flushes the file to disk (fsync) and renames it to its path.
+// Commit flushes the file to disk (fsync) and renames it to its path. When
+// it fails, the temporary file is removed: nothing is left behind.
 func (a *AtomicFile) Commit() error {
 	path := a.path
 	if a.done {
 		return fmt.Errorf("export: %s: committed or aborted already", path)
 	}
+	if err := a.commit(path); err != nil {
+		a.Abort()
+		return err
+	}
+	return nil
+}
+
+func (a *AtomicFile) commit(path string) error {
 	if err := a.bw.Flush(); err != nil {
 		return fmt.Errorf("export: writing %s: %w", path, err)
 	}

@@ -14,7 +14,7 @@ import (
 )
 
 // The output schema: every column of every table, declared once. The Parquet
-// schemas and their column metadata (cellsTable, longTables), the manifest's
+// schemas and their column metadata (cellsTable and the long-table schemas), the manifest's
 // column list (Manifest.Columns) and the README's column tables
 // (TestREADMEColumns) all come from the lists below; adding a statistic is one
 // entry here with the function that fills it (see DEVELOPERS.md).
@@ -659,16 +659,6 @@ func (e *engine) cellsTable(lo, hi int, res []*cellResult) *export.Table {
 		cols = append(cols, fill(c, name, doc, rows, c.null.test()))
 	})
 	return &export.Table{Columns: cols, Meta: map[string]string{export.MetaCaution: Caution}, RowGroupRows: rowGroupRows(len(cols))}
-}
-
-// longTables builds the long tables, keyed by name, rows in cell order.
-func (e *engine) longTables(res []*cellResult) map[string]*export.Table {
-	sortByID(res)
-	out := map[string]*export.Table{}
-	for _, t := range longSchemas {
-		out[strings.TrimSuffix(t.file(), ".parquet")] = t.build(res)
-	}
-	return out
 }
 
 func sortByID(res []*cellResult) {

@@ -21,11 +21,6 @@ func rowGroupRows(ncols int) int {
 	return min(max(r, 1<<10), 1<<16)
 }
 
-// exportGroupBytes bounds what the table writers hold: a row group of 2 MiB
-// of values per table, the record built from it and its encoded pages
-// while it is written (3 x, see rowGroupRows).
-const exportGroupBytes = 3 * (2 << 20)
-
 // tableSink writes the run's tables as the results come, pass by pass, in
 // cell order: cells.parquet and every long table is a Parquet stream, put
 // in place at close (each atomically), and only the values of the contour
@@ -47,7 +42,7 @@ func (e *engine) openSink(out string) (*tableSink, error) {
 	g := e.cat.Grid
 	var err error
 	if s.cells, err = export.NewGeoParquetStream(filepath.Join(out, "cells.parquet"), e.cellsTable(0, 0, nil), g.Lon, g.Lat); err != nil {
-		return nil, fmt.Errorf("writing cells.parquet: %v", err)
+		return nil, fmt.Errorf("writing cells.parquet: %w", err)
 	}
 	// in the order of the file names (the order of Result.Files)
 	byName := map[string]longTable{}
@@ -58,7 +53,7 @@ func (e *engine) openSink(out string) (*tableSink, error) {
 		st, err := export.NewParquetStream(filepath.Join(out, name), byName[name].build(nil))
 		if err != nil {
 			s.abort()
-			return nil, fmt.Errorf("writing %s: %v", name, err)
+			return nil, fmt.Errorf("writing %s: %w", name, err)
 		}
 		s.long, s.names = append(s.long, st), append(s.names, name)
 	}
@@ -78,7 +73,7 @@ func (s *tableSink) add(lo, hi int, res []*cellResult) error {
 	sortByID(res)
 	t := s.e.cellsTable(lo, hi, res)
 	if err := s.cells.Append(t); err != nil {
-		return fmt.Errorf("writing cells.parquet: %v", err)
+		return fmt.Errorf("writing cells.parquet: %w", err)
 	}
 	for _, c := range t.Columns {
 		if v, ok := s.contour[c.Name]; ok {
@@ -93,7 +88,7 @@ func (s *tableSink) add(lo, hi int, res []*cellResult) error {
 		for _, lt := range longSchemas {
 			if lt.file() == name {
 				if err := s.long[k].Append(lt.build(res)); err != nil {
-					return fmt.Errorf("writing %s: %v", name, err)
+					return fmt.Errorf("writing %s: %w", name, err)
 				}
 			}
 		}
@@ -112,12 +107,12 @@ func (s *tableSink) close() ([]string, []string, error) {
 	written := []string{"cells.parquet"}
 	if err := s.cells.Close(); err != nil {
 		s.abort()
-		return nil, nil, fmt.Errorf("writing cells.parquet: %v", err)
+		return nil, nil, fmt.Errorf("writing cells.parquet: %w", err)
 	}
 	for k, st := range s.long {
 		if err := st.Close(); err != nil {
 			s.abort()
-			return nil, nil, fmt.Errorf("writing %s: %v", s.names[k], err)
+			return nil, nil, fmt.Errorf("writing %s: %w", s.names[k], err)
 		}
 		written = append(written, s.names[k])
 	}
