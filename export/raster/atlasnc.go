@@ -85,6 +85,33 @@ func Write(r *rundir.Run) error {
 
 func text(a netcdf.Attr, s string) error { return a.WriteBytes([]byte(s)) }
 
+// globalAttrs writes the global attributes of atlas.nc, on grids and on
+// meshes alike: conventions, title, source (what the file holds), the record,
+// the depth source, the caution and the synthetic label of demo data.
+func globalAttrs(ds netcdf.Dataset, r *rundir.Run, conventions, holds string) error {
+	m := r.Manifest
+	for _, kv := range [][2]string{
+		{"Conventions", conventions},
+		{"title", "swellgrid wave-energy resource atlas"},
+		{"source", fmt.Sprintf("%s %s: %s", m.Software, m.Version, holds)},
+		{"time_coverage_start", m.Start},
+		{"time_coverage_end", m.End},
+		{"calendar_of_record", m.Calendar},
+		{"depth_source", m.DepthSource},
+		{"caution", m.Caution},
+	} {
+		if err := text(ds.Attr(kv[0]), kv[1]); err != nil {
+			return err
+		}
+	}
+	if s := r.Cells.Meta["swellgrid:synthetic"]; s != "" {
+		if err := text(ds.Attr("comment"), s); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
 func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 	ds, err := netcdf.CreateFile(path, netcdf.CLOBBER|netcdf.NETCDF4)
 	if err != nil {
@@ -112,25 +139,8 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 	if err != nil {
 		return err
 	}
-	m := r.Manifest
-	for _, kv := range [][2]string{
-		{"Conventions", "CF-1.8"},
-		{"title", "swellgrid wave-energy resource atlas"},
-		{"source", fmt.Sprintf("%s %s: per-cell results of a wave hindcast (cells.parquet, monthly.parquet of this run directory)", m.Software, m.Version)},
-		{"time_coverage_start", m.Start},
-		{"time_coverage_end", m.End},
-		{"calendar_of_record", m.Calendar},
-		{"depth_source", m.DepthSource},
-		{"caution", m.Caution},
-	} {
-		if err := text(ds.Attr(kv[0]), kv[1]); err != nil {
-			return err
-		}
-	}
-	if s := r.Cells.Meta["swellgrid:synthetic"]; s != "" {
-		if err := text(ds.Attr("comment"), s); err != nil {
-			return err
-		}
+	if err := globalAttrs(ds, r, "CF-1.8", "per-cell results of a wave hindcast (cells.parquet, monthly.parquet of this run directory)"); err != nil {
+		return err
 	}
 	crs, err := ds.AddVar("crs", netcdf.INT, nil)
 	if err != nil {

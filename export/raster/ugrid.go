@@ -45,25 +45,8 @@ func writeMesh(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 	if err != nil {
 		return err
 	}
-	man := r.Manifest
-	for _, kv := range [][2]string{
-		{"Conventions", "CF-1.8 UGRID-1.0"},
-		{"title", "swellgrid wave-energy resource atlas"},
-		{"source", fmt.Sprintf("%s %s: per-cell results of a wave hindcast on an unstructured mesh (cells.parquet, monthly.parquet, mesh_nodes.parquet, mesh_faces.parquet of this run directory)", man.Software, man.Version)},
-		{"time_coverage_start", man.Start},
-		{"time_coverage_end", man.End},
-		{"calendar_of_record", man.Calendar},
-		{"depth_source", man.DepthSource},
-		{"caution", man.Caution},
-	} {
-		if err := text(ds.Attr(kv[0]), kv[1]); err != nil {
-			return err
-		}
-	}
-	if s := r.Cells.Meta["swellgrid:synthetic"]; s != "" {
-		if err := text(ds.Attr("comment"), s); err != nil {
-			return err
-		}
+	if err := globalAttrs(ds, r, "CF-1.8 UGRID-1.0", "per-cell results of a wave hindcast on an unstructured mesh (cells.parquet, monthly.parquet, mesh_nodes.parquet, mesh_faces.parquet of this run directory)"); err != nil {
+		return err
 	}
 	texts := func(v netcdf.Var, kvs ...[2]string) error {
 		for _, kv := range kvs {
