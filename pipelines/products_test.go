@@ -453,6 +453,31 @@ func TestAtlasGpkgWithOGR(t *testing.T) {
 // colour bar range (the figure's data-min / data-max, also the end labels of
 // the bar in the SVG) is the column's min and max over sea cells of
 // cells.parquet. A full-page screenshot is kept with the test output.
+//
+// browserProfile makes Chromium's profile directory. It is not t.TempDir:
+// Chromium's helper processes can still write to the profile for a moment
+// after the browser has exited, and t.TempDir's cleanup then fails the test
+// ("directory not empty", seen once under CI). The cleanup retries for up to
+// 10 s and only logs a profile it could not remove.
+func browserProfile(t *testing.T) string {
+	t.Helper()
+	dir, err := os.MkdirTemp("", "swellgrid-chromium-")
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() {
+		var err error
+		for i := 0; i < 50; i++ {
+			if err = os.RemoveAll(dir); err == nil {
+				return
+			}
+			time.Sleep(200 * time.Millisecond)
+		}
+		t.Logf("chromium profile %s not removed: %v", dir, err)
+	})
+	return dir
+}
+
 func TestReportInChromium(t *testing.T) {
 	chrome := needTool(t, "chromium", "chromium")
 	dir, _ := demoRun(t)
@@ -467,7 +492,7 @@ func TestReportInChromium(t *testing.T) {
 		chromedp.NoFirstRun, chromedp.NoDefaultBrowserCheck,
 		chromedp.Flag("disable-quic", true), chromedp.Flag("disable-background-networking", true),
 		chromedp.Flag("disable-component-update", true), chromedp.Flag("disable-sync", true),
-		chromedp.UserDataDir(t.TempDir()), chromedp.WindowSize(1280, 1000))
+		chromedp.UserDataDir(browserProfile(t)), chromedp.WindowSize(1280, 1000))
 	actx, cancel := chromedp.NewExecAllocator(context.Background(), opts...)
 	defer cancel()
 	ctx, cancel2 := chromedp.NewContext(actx)
