@@ -32,6 +32,7 @@ var dirTolerances = map[string]tol{
 	"sector_centre_deg": {0, 0},
 	"power_share":       {1e-5, 0},
 	"occurrence_share":  {1e-12, 0},
+	"occurrence_hours":  {1e-9, 0},
 	"power_mean_kw_m":   {4e-5, 1e-9},
 }
 
@@ -39,7 +40,7 @@ var dirTolerances = map[string]tol{
 func checkDirections(t *testing.T, what, out string, rows []map[string]any, sectors int) {
 	t.Helper()
 	d, err := parquetread.Columns(filepath.Join(out, "directions.parquet"), "cell_id", "sector", "sector_centre_deg",
-		"sector_from_deg", "sector_to_deg", "power_share", "occurrence_share", "power_mean_kw_m")
+		"sector_from_deg", "sector_to_deg", "power_share", "occurrence_share", "occurrence_hours", "power_mean_kw_m")
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -25,7 +25,8 @@ atan2(sum sin(theta_j) E_j, sum cos(theta_j) E_j), E_j = sum_i S_ij df_i dtheta_
 
 Columns: power_share = sum_t P_kt / sum_kt P_kt; occurrence_share = steps with
 the direction in k / steps with a direction; power_mean_kw_m = sum_t P_kt /
-steps counted / 1000 (equal 1-hour or 6-hour weights).
+steps counted / 1000 (equal 1-hour or 6-hour weights); occurrence_hours =
+steps with the direction in k x the step length in hours.
 Run: /usr/bin/python3 testdata/directions/reference.py [OUT.json]
 """
 import glob
@@ -54,8 +55,17 @@ def sector_of(d):
     return int(math.floor(((d % 360.0) + w / 2) / w)) % N
 
 
-def rows(cid, P, occ, counted):
-    """P: (steps, N) sector powers W/m; occ: sector index per step or -1."""
+def step_hours(times):
+    """The record's step length in hours of a time axis in "hours since"
+    units: the most common spacing (the bulk fixture has a month-long gap,
+    which counts as no time; common practice for a regular hindcast)."""
+    d, n = np.unique(np.diff(np.asarray(times, dtype=float)), return_counts=True)
+    return float(d[np.argmax(n)])
+
+
+def rows(cid, P, occ, counted, dt_h):
+    """P: (steps, N) sector powers W/m; occ: sector index per step or -1;
+    dt_h: step length in hours."""
     tot = P.sum()
     occ = np.asarray(occ)
     nocc = (occ >= 0).sum()
@@ -64,15 +74,18 @@ def rows(cid, P, occ, counted):
         out.append({"cell_id": cid, "sector": k, "sector_centre_deg": k * 360.0 / N,
                     "power_share": float(P[:, k].sum() / tot) if tot > 0 else None,
                     "occurrence_share": float((occ == k).sum() / nocc) if nocc > 0 else None,
+                    "occurrence_hours": float((occ == k).sum() * dt_h),
                     "power_mean_kw_m": float(P[:, k].sum() / counted / 1000)})
     return out
 
 
 def bulk():
     files = sorted(glob.glob(os.path.join(HERE, "..", "e2e", "bulk", "*.nc")))
-    hs, te, dr = [], [], []
+    hs, te, dr, tm = [], [], [], []
     for p in files:
         with netCDF4.Dataset(p) as ds:
+            assert ds["time"].units.startswith("hours since"), p
+            tm.append(ds["time"][:].astype(float))
             for lst, name in [(hs, "hs"), (te, "te"), (dr, "mwd")]:
                 lst.append(np.ma.filled(ds[name][:].astype(float), np.nan))
             depth = np.ma.filled(ds["depth"][:].astype(float), np.nan)
@@ -88,7 +101,7 @@ def bulk():
         P = np.zeros((v.sum(), N))
         occ = [sector_of(x) for x in d[v]]
         P[np.arange(v.sum()), occ] = J[v]
-        out += rows(cid, P, occ, v.sum())
+        out += rows(cid, P, occ, v.sum(), step_hours(np.concatenate(tm)))
     return out
 
 
@@ -118,6 +131,8 @@ def spectral():
         dirs = ds["direction"][:].astype(float) % 360
         S = np.ma.filled(ds["efth"][:].astype(float), np.nan)
         depth = np.ma.filled(ds["depth"][:].astype(float), np.nan)
+        assert ds["time"].units.startswith("hours since")
+        dt_h = step_hours(ds["time"][:])
     order = np.argsort(f)
     df = np.empty_like(f)
     df[order] = np.gradient(f[order])
@@ -134,7 +149,7 @@ def spectral():
         E = np.einsum("tij,i,j->tj", S[:, s], df, dth)
         rad = np.radians(dirs)
         md = np.degrees(np.arctan2(E @ np.sin(rad), E @ np.cos(rad))) % 360
-        out += rows(s, P, [sector_of(x) for x in md], S.shape[0])
+        out += rows(s, P, [sector_of(x) for x in md], S.shape[0], dt_h)
     return out
 
 
