@@ -447,13 +447,6 @@ func TestAtlasGpkgWithOGR(t *testing.T) {
 	t.Logf("compared %d values of the cells layer with cells.parquet", compared)
 }
 
-// Headless chromium (Debian chromium) opens the demo's report from disk:
-// no console error, no request to the network, every image loads; each map
-// is not blank (luminance variance of its data area above a floor) and its
-// colour bar range (the figure's data-min / data-max, also the end labels of
-// the bar in the SVG) is the column's min and max over sea cells of
-// cells.parquet. A full-page screenshot is kept with the test output.
-//
 // browserProfile makes Chromium's profile directory. It is not t.TempDir:
 // Chromium's helper processes can still write to the profile for a moment
 // after the browser has exited, and t.TempDir's cleanup then fails the test
@@ -478,6 +471,12 @@ func browserProfile(t *testing.T) string {
 	return dir
 }
 
+// Headless chromium (Debian chromium) opens the demo's report from disk:
+// no console error, no request to the network, every image loads; each map
+// is not blank (luminance variance of its data area above a floor) and its
+// colour bar range (the figure's data-min / data-max, also the end labels of
+// the bar in the SVG) is the column's min and max over sea cells of
+// cells.parquet. A full-page screenshot is kept with the test output.
 func TestReportInChromium(t *testing.T) {
 	chrome := needTool(t, "chromium", "chromium")
 	dir, _ := demoRun(t)
