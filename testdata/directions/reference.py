@@ -90,6 +90,7 @@ def bulk():
                 lst.append(np.ma.filled(ds[name][:].astype(float), np.nan))
             depth = np.ma.filled(ds["depth"][:].astype(float), np.nan)
     hs, te, dr = np.concatenate(hs), np.concatenate(te), np.concatenate(dr)
+    dt_h = step_hours(np.concatenate(tm))
     ny, nx = depth.shape
     out = []
     for cid in range(ny * nx):
@@ -101,7 +102,7 @@ def bulk():
         P = np.zeros((v.sum(), N))
         occ = [sector_of(x) for x in d[v]]
         P[np.arange(v.sum()), occ] = J[v]
-        out += rows(cid, P, occ, v.sum(), step_hours(np.concatenate(tm)))
+        out += rows(cid, P, occ, v.sum(), dt_h)
     return out
 
 
