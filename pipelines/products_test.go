@@ -542,8 +542,10 @@ func TestReportInChromium(t *testing.T) {
 			chromedp.Evaluate(`Array.from(document.images).map(i => ({src: i.src, complete: i.complete, w: i.naturalWidth}))`, &imgs)}
 		if pi == 0 {
 			var buf []byte
+			// quality 100 is chromedp's PNG; any other quality gives a
+			// JPEG, which the .png name would mislabel
 			acts = append(acts, chromedp.Evaluate(`Array.from(document.querySelectorAll('figure.map')).map(f => ({column: f.dataset.column, min: f.dataset.min, max: f.dataset.max, img: f.querySelector('img').getAttribute('src')}))`, &maps),
-				chromedp.FullScreenshot(&buf, 90), chromedp.ActionFunc(func(context.Context) error { return os.WriteFile(shot, buf, 0o644) }))
+				chromedp.FullScreenshot(&buf, 100), chromedp.ActionFunc(func(context.Context) error { return os.WriteFile(shot, buf, 0o644) }))
 		}
 		if err := chromedp.Run(ctx, acts...); err != nil {
 			t.Fatalf("chromium on %s: %v", page, err)
@@ -571,8 +573,10 @@ func TestReportInChromium(t *testing.T) {
 	}
 	mu.Unlock()
 	t.Logf("screenshot of the demo's report/index.html: %s (%d pages, %d images loaded, %d requests, all file://)", shot, len(pages), nimg, len(requests))
-	if st, err := os.Stat(shot); err != nil || st.Size() < 20000 {
+	if b, err := os.ReadFile(shot); err != nil || len(b) < 20000 {
 		t.Errorf("screenshot %s missing or tiny", shot)
+	} else if !bytes.HasPrefix(b, []byte("\x89PNG\r\n\x1a\n")) {
+		t.Errorf("screenshot %s is not a PNG (first bytes % x)", shot, b[:8])
 	}
 
 	// maps: every mapped column, colour bar = column range, not blank
