@@ -169,7 +169,7 @@ var columnProofs = map[string]proof{
 
 	// directions.parquet (the rose developer's table)
 	"directions.parquet:cell_id":           by("TestDirectionsAgainstNumpy", "every row against testdata/directions/reference.py (numpy) on the e2e bulk fixture and a python3-netcdf4 spectral fixture"),
-	"directions.parquet:name":              by("TestStationNamesInEveryTable", "station names in every table; not yet checked for directions.parquet by that test"),
+	"directions.parquet:name":              by("TestStationNamesInEveryTable", "station names in every table"),
 	"directions.parquet:sector":            by("TestDirectionsAgainstNumpy", "as cell_id"),
 	"directions.parquet:sector_centre_deg": by("TestDirectionsAgainstNumpy", "as cell_id"),
 	"directions.parquet:sector_from_deg":   by("TestDirectionsAgainstNumpy", "as cell_id"),
