@@ -626,9 +626,12 @@ func (v *validator) compare(p *stationPlace) (*stationResult, error) {
 	r.mod["te"] = get(func(s *cellSeries) []float64 { return s.te }, false)
 	r.mod["tp"] = get(func(s *cellSeries) []float64 { return s.tp }, false)
 	r.mod["dir"] = get(func(s *cellSeries) []float64 { return s.dir }, true)
+	// A variable the station has no value of anywhere in its record (an
+	// empty column of a CSV shared with other stations) is not measured
+	// there: no rows, no Q-Q quantiles and no power for it.
 	pick := func(role ingest.Role) []float64 {
 		x := st.Values[role]
-		if x == nil {
+		if x == nil || allNaN(x) {
 			return nil
 		}
 		out := make([]float64, n)
