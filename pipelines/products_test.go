@@ -66,6 +66,9 @@ func TestMain(m *testing.M) {
 	if pairDir != "" {
 		os.RemoveAll(pairDir) // mesh_test.go
 	}
+	if valRunDir != "" {
+		os.RemoveAll(valRunDir) // validate_test.go
+	}
 	os.Exit(code)
 }
 

@@ -187,41 +187,46 @@ var columnProofs = map[string]proof{
 	"screening.parquet:area_km2":        by("TestScreeningSummaryByHand", "cell areas against pyproj Geod.polygon_area_perimeter"),
 	"screening.parquet:dist_<layer>_km": by("TestScreeningSummaryByHand", "port distances of two cells (0 km, about 142 km); geodesics against pyproj in grid"),
 
-	// validation*.parquet (the validate developer's tables): what
-	// TestValidateSyntheticStation compares with numpy, and what not yet
+	// validation*.parquet (the validate developer's tables): every row and
+	// column compared (compareValidationColumns) with
+	// testdata/validate/make_columns.py (python3-netcdf4, numpy, scipy,
+	// pyproj) by TestValidateSyntheticStation (nearest cell, SYN-A and SYN-B)
+	// and TestValidateBilinearAndDistance (bilinear, SYN-MID); the script is
+	// rerun by TestValidateColumnsReproduced.
 	"validation.parquet:station":         by("TestValidateSyntheticStation", "the stations of the python3-netcdf4 observation files"),
-	"validation.parquet:station_lon":     by("TestValidateSyntheticStation", "not compared yet (owner: validate)"),
-	"validation.parquet:station_lat":     by("TestValidateSyntheticStation", "not compared yet (owner: validate)"),
-	"validation.parquet:cell_id":         by("TestValidateSyntheticStation", "the cell the station was made from"),
-	"validation.parquet:distance_km":     by("TestValidateBilinearAndDistance", "refusal beyond max_distance_km; the value itself not compared yet (owner: validate)"),
+	"validation.parquet:station_lon":     by("TestValidateSyntheticStation", "the CSV's longitude read by make_columns.py, within 1e-9 deg"),
+	"validation.parquet:station_lat":     by("TestValidateSyntheticStation", "the CSV's latitude read by make_columns.py, within 1e-9 deg"),
+	"validation.parquet:cell_id":         by("TestValidateSyntheticStation", "the cell the station was made from; make_columns.py's nearest sea cell by the WGS 84 geodesic"),
+	"validation.parquet:distance_km":     by("TestValidateBilinearAndDistance", "pyproj Geod.inv on WGS 84 (make_columns.py), 0.5 % (sphere against ellipsoid), at 0.8, 1.4 and 34 km; refusal beyond max_distance_km"),
 	"validation.parquet:location":        by("TestValidateBilinearAndDistance", "nearest or bilinear"),
-	"validation.parquet:variable":        by("TestValidateSyntheticStation", "rows looked up by variable"),
-	"validation.parquet:unit":            by("TestValidateSyntheticStation", "not compared yet (owner: validate)"),
-	"validation.parquet:period":          by("TestValidateSyntheticStation", "rows looked up by period (record, storm tail)"),
-	"validation.parquet:n":               by("TestValidateSyntheticStation", "numpy's count of matched pairs"),
-	"validation.parquet:obs_mean":        by("TestValidateSyntheticStation", "not compared yet (owner: validate)"),
-	"validation.parquet:model_mean":      by("TestValidateSyntheticStation", "not compared yet (owner: validate)"),
-	"validation.parquet:bias":            by("TestValidateSyntheticStation", "numpy's bias and the injected bias within its standard error"),
-	"validation.parquet:rmse":            by("TestValidateSyntheticStation", "numpy's circular RMSE of the direction"),
-	"validation.parquet:scatter_index":   by("TestValidateSyntheticStation", "logged only, not compared yet (owner: validate)"),
-	"validation.parquet:r":               by("TestValidateSyntheticStation", "null for directions"),
-	"validation.parquet:slope_origin":    by("TestValidateSyntheticStation", "numpy's slope through the origin and the injected scale"),
-	"validation.parquet:slope_symmetric": by("TestValidateSyntheticStation", "logged only, not compared yet (owner: validate)"),
-	"validation_qq.parquet:station":      by("TestValidateSyntheticStation", "file written; values not compared yet (owner: validate)"),
-	"validation_qq.parquet:variable":     by("TestValidateSyntheticStation", "file written; values not compared yet (owner: validate)"),
-	"validation_qq.parquet:period":       by("TestValidateSyntheticStation", "file written; values not compared yet (owner: validate)"),
-	"validation_qq.parquet:percentile":   by("TestValidateSyntheticStation", "file written; values not compared yet (owner: validate)"),
-	"validation_qq.parquet:obs":          by("TestValidateSyntheticStation", "file written; values not compared yet (owner: validate)"),
-	"validation_qq.parquet:model":        by("TestValidateSyntheticStation", "file written; values not compared yet (owner: validate)"),
+	"validation.parquet:variable":        by("TestValidateSyntheticStation", "rows looked up by variable; the same rows as make_columns.py"),
+	"validation.parquet:unit":            by("TestValidateSyntheticStation", "make_columns.py's unit of each variable (m, s, kW/m, deg)"),
+	"validation.parquet:period":          by("TestValidateSyntheticStation", "rows looked up by period; the same rows as make_columns.py (months, seasons, storm tail)"),
+	"validation.parquet:n":               by("TestValidateSyntheticStation", "numpy's count of matched pairs, every row"),
+	"validation.parquet:obs_mean":        by("TestValidateSyntheticStation", "numpy's mean (directions: circular mean) of make_columns.py's pairs, every row, 1e-10 relative"),
+	"validation.parquet:model_mean":      by("TestValidateSyntheticStation", "as obs_mean, the hindcast side"),
+	"validation.parquet:bias":            by("TestValidateSyntheticStation", "numpy's bias, every row, and the injected bias within its standard error"),
+	"validation.parquet:rmse":            by("TestValidateSyntheticStation", "numpy's RMSE (directions: circular), every row"),
+	"validation.parquet:scatter_index":   by("TestValidateSyntheticStation", "numpy's RMSE / mean(o), every row; null for directions"),
+	"validation.parquet:r":               by("TestValidateSyntheticStation", "numpy.corrcoef, every row; null for directions"),
+	"validation.parquet:slope_origin":    by("TestValidateSyntheticStation", "numpy's slope through the origin, every row, and the injected scale"),
+	"validation.parquet:slope_symmetric": by("TestValidateSyntheticStation", "numpy's sqrt(sum m^2 / sum o^2), every row"),
+	"validation_qq.parquet:station":      by("TestValidateSyntheticStation", "the same rows as make_columns.py (stations, variables, periods, percentiles)"),
+	"validation_qq.parquet:variable":     by("TestValidateSyntheticStation", "as station"),
+	"validation_qq.parquet:period":       by("TestValidateSyntheticStation", "as station: all and storm_p95"),
+	"validation_qq.parquet:percentile":   by("TestValidateSyntheticStation", "as station: 1 .. 99"),
+	"validation_qq.parquet:obs":          by("TestValidateSyntheticStation", "numpy.percentile(method=\"linear\") of the measured side, every row, 1e-10 relative"),
+	"validation_qq.parquet:model":        by("TestValidateSyntheticStation", "as obs, the hindcast side"),
 	"validation_pairs.parquet:station":   by("TestValidateSyntheticStation", "numpy's number of matched pairs per station"),
 }
 
 func init() {
-	// validation_pairs.parquet: the row count per station is compared
-	// (TestValidateSyntheticStation), the values not yet (owner: validate).
+	// validation_pairs.parquet: every value of every pair, in order, against
+	// make_columns.py (nearest: SYN-A, SYN-B; bilinear: SYN-MID; power by
+	// scipy's dispersion root; nulls where a side has no value).
 	for _, c := range []string{"time", "time_diff_min", "hm0_obs_m", "hm0_model_m", "te_obs_s", "te_model_s", "tp_obs_s", "tp_model_s",
 		"power_obs_kw_m", "power_model_kw_m", "dir_obs_deg", "dir_model_deg"} {
-		columnProofs["validation_pairs.parquet:"+c] = by("TestValidateSyntheticStation", "row count per station; values not compared yet (owner: validate)")
+		columnProofs["validation_pairs.parquet:"+c] = by("TestValidateSyntheticStation", "every pair against make_columns.py (python3-netcdf4, numpy, scipy); bilinear pairs by TestValidateBilinearAndDistance")
 	}
 }
 

@@ -34,7 +34,8 @@ var (
 	valRunErr  error
 )
 
-// validationRun is a finished run of the bulk fixture's first four months.
+// validationRun is a finished run of the bulk fixture's first four months,
+// shared by the validation tests and removed by TestMain.
 func validationRun(t *testing.T) string {
 	t.Helper()
 	valRunOnce.Do(func() {
@@ -43,10 +44,10 @@ func validationRun(t *testing.T) string {
 			valRunErr = err
 			return
 		}
+		valRunDir = dir
 		s := testSpec(t, "testdata/bulk_monthly/sgfx_bulk_2001-0[1-4].nc", dir)
 		s.Output.Report, s.Output.NetCDF, s.Output.GeoPackage = false, false, false
 		_, valRunErr = Run(context.Background(), s, Options{Version: "test"})
-		valRunDir = dir
 	})
 	if valRunErr != nil {
 		t.Fatal(valRunErr)
@@ -95,7 +96,9 @@ func readSummary(t *testing.T, dir string) *ValidationSummary {
 // at a cell with an injected bias, scale, noise and time offsets
 // (make_station.py) give back the injected bias and scale within their
 // sampling error, the exact statistics numpy computes from the same files,
-// and the right numbers of matched, unmatched and outside times.
+// and the right numbers of matched, unmatched and outside times; and every
+// column of the three tables equals make_columns.py's independent
+// computation (numpy, scipy, pyproj; compareValidationColumns).
 func TestValidateSyntheticStation(t *testing.T) {
 	run := validationRun(t)
 	exp := loadStationExpected(t)
@@ -108,6 +111,7 @@ func TestValidateSyntheticStation(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	compareValidationColumns(t, out, loadValColumnsRef(t, "../testdata/validate/columns_expected.json").Runs["nearest"])
 	num := func(i int, c string) float64 { return tb.Col(c).Value(i) }
 	a := valRowOf(t, tb, "SYN-A", "hm0", "all")
 	if int(num(a, "n")) != int(exp.A["n_hm0"]) || int(num(a, "cell_id")) != exp.Cell {
@@ -197,7 +201,9 @@ func TestValidateSyntheticStation(t *testing.T) {
 
 // TestValidateBilinearAndDistance: a station midway between four cells is
 // refused beyond max_distance_km (naming it, exit code 2) and, allowed,
-// matches the mean of the four cells exactly with bilinear location.
+// matches the mean of the four cells exactly with bilinear location; its
+// distance (about 34 km) and every column of the three tables equal
+// make_columns.py's (pyproj's WGS 84 geodesic, numpy).
 func TestValidateBilinearAndDistance(t *testing.T) {
 	run := validationRun(t)
 	exp := loadStationExpected(t)
@@ -216,6 +222,7 @@ func TestValidateBilinearAndDistance(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	compareValidationColumns(t, out, loadValColumnsRef(t, "../testdata/validate/columns_expected.json").Runs["bilinear"])
 	r := valRowOf(t, tb, "SYN-MID", "hm0", "all")
 	if b := tb.Col("bias").Value(r); math.Abs(b-exp.Mid["bilinear_bias"]) > 1e-6 || tb.Col("location").Str[r] != "bilinear" || int(tb.Col("n").Value(r)) != int(exp.Mid["matched"]) {
 		t.Errorf("bilinear: bias %g (numpy %g), location %s, n %v", b, exp.Mid["bilinear_bias"], tb.Col("location").Str[r], tb.Col("n").Value(r))
