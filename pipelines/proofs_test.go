@@ -197,7 +197,7 @@ var columnProofs = map[string]proof{
 	"validation.parquet:station_lon":     by("TestValidateSyntheticStation", "the CSV's longitude read by make_columns.py, within 1e-9 deg"),
 	"validation.parquet:station_lat":     by("TestValidateSyntheticStation", "the CSV's latitude read by make_columns.py, within 1e-9 deg"),
 	"validation.parquet:cell_id":         by("TestValidateSyntheticStation", "the cell the station was made from; make_columns.py's nearest sea cell by the WGS 84 geodesic"),
-	"validation.parquet:distance_km":     by("TestValidateBilinearAndDistance", "pyproj Geod.inv on WGS 84 (make_columns.py), 0.5 % (sphere against ellipsoid), at 0.8, 1.4 and 34 km; refusal beyond max_distance_km"),
+	"validation.parquet:distance_km":     by("TestValidateBilinearAndDistance", "pyproj Geod.inv (make_columns.py) on the 6371.0088 km sphere (1e-9) and on WGS 84 (0.3 %), at 0.8, 1.4 and 34 km; refusal beyond max_distance_km"),
 	"validation.parquet:location":        by("TestValidateBilinearAndDistance", "nearest or bilinear"),
 	"validation.parquet:variable":        by("TestValidateSyntheticStation", "rows looked up by variable; the same rows as make_columns.py"),
 	"validation.parquet:unit":            by("TestValidateSyntheticStation", "make_columns.py's unit of each variable (m, s, kW/m, deg)"),

@@ -18,7 +18,8 @@ Definitions (those stats/validate documents):
   variables    those the station has a value of somewhere in its record (an
                empty CSV column is not a measurement)
   location     nearest: the nearest sea cell (sea_mask = 1) by the geodesic
-               distance; bilinear: the four cells around the station, weights
+               distance (distance_km: also pyproj's geodesic on the sphere of
+               radius 6371.0088 km, the great circle swellgrid documents); bilinear: the four cells around the station, weights
                (1-a)(1-b), a(1-b), (1-a)b, ab of its fractional position
                (directions: the atan2 of the weighted sines and cosines)
   statistics   over the pairs with both sides finite: bias = mean(m - o),
@@ -54,6 +55,9 @@ RHO, G = 1025.0, 9.81
 TOL_S = 30 * 60
 STORM_PCT = 95.0
 GEOD = pyproj.Geod(ellps="WGS84")
+# the sphere of the IUGG mean radius R1 = 6371.0088 km (Moritz 2000, GRS 80),
+# whose great circle swellgrid documents (export/rundir.Haversine)
+SPHERE = pyproj.Geod(a=6371008.8, b=6371008.8)
 
 # The hindcast fixture, as swellgrid's run of it reads it.
 files = sorted(glob.glob("../bulk_monthly/sgfx_bulk_2001-0[1-4].nc"))
@@ -236,7 +240,7 @@ def station(name, recs, location):
         pairs[col % "obs"] = list(obs.get(v, nan))
         pairs[col % "model"] = list(mod.get(v, nan)) if (v != "power" or "power" in obs) else list(nan)
     place = {"lon": slon, "lat": slat, "cell_id": cell_of(jn, inn), "cell_lon": float(LONS[inn]), "cell_lat": float(LATS[jn]),
-             "distance_km_wgs84": dist, "location": location, "weights": [w for _, _, w in cells],
+             "distance_km_wgs84": dist, "distance_km_sphere": SPHERE.inv(slon, slat, LONS[inn], LATS[jn])[2] / 1000, "location": location, "weights": [w for _, _, w in cells],
              "matched": len(match), "outside": outside, "unpaired": unpaired, "depth_m": h}
     return place, rows, qq, pairs
 
