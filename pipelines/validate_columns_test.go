@@ -132,6 +132,22 @@ func (m maxDiff) log(t *testing.T, what string) {
 // percentile; the same rows on both sides) and every pair.
 func compareValidationColumns(t *testing.T, out string, run valRefRun) {
 	t.Helper()
+	// the first three differences of each table column, then a count
+	bad := map[string]int{}
+	differ := func(key, format string, args ...any) {
+		t.Helper()
+		if bad[key]++; bad[key] <= 3 {
+			t.Errorf(format, args...)
+		}
+	}
+	defer func() {
+		t.Helper()
+		for k, n := range bad {
+			if n > 3 {
+				t.Errorf("%s: %d differences in all", k, n)
+			}
+		}
+	}()
 	read := func(name string) *rundir.Table {
 		tb, err := rundir.ReadTable(filepath.Join(out, name))
 		if err != nil {
@@ -149,7 +165,7 @@ func compareValidationColumns(t *testing.T, out string, run valRefRun) {
 		st, va := ref["station"].(string), ref["variable"].(string)
 		i := valRowOf(t, tb, st, va, ref["period"].(string))
 		if got := tb.Col("unit").Str[i]; got != ref["unit"] {
-			t.Errorf("validation.parquet %s %s: unit %q, want %q", st, va, got, ref["unit"])
+			differ("validation.parquet unit", "validation.parquet %s %s: unit %q, want %q", st, va, got, ref["unit"])
 		}
 		for _, c := range []string{"n", "obs_mean", "model_mean", "bias", "rmse", "scatter_index", "r", "slope_origin", "slope_symmetric"} {
 			got, want := tb.Col(c).Value(i), refNum(ref[c])
@@ -159,7 +175,7 @@ func compareValidationColumns(t *testing.T, out string, run valRefRun) {
 			}
 			md.see(va+" "+c, got, want)
 			if !near(got, want, tl) {
-				t.Errorf("validation.parquet %s %s %s: %s = %.15g, make_columns.py %.15g", st, va, ref["period"], c, got, want)
+				differ("validation.parquet "+c, "validation.parquet %s %s %s: %s = %.15g, make_columns.py %.15g", st, va, ref["period"], c, got, want)
 			}
 		}
 		p := run.Stations[st]
@@ -170,17 +186,17 @@ func compareValidationColumns(t *testing.T, out string, run valRefRun) {
 			}
 			md.see(c, tb.Col(c).Value(i), want)
 			if got := tb.Col(c).Value(i); !near(got, want, tl) {
-				t.Errorf("validation.parquet %s: %s = %.15g, want %.15g", st, c, got, want)
+				differ("validation.parquet "+c, "validation.parquet %s: %s = %.15g, want %.15g", st, c, got, want)
 			}
 		}
 		got := tb.Col("distance_km").Value(i)
 		md.see("distance_km (relative to the sphere's)", got/p.SphereKm-1, 0)
 		md.see("distance_km (relative to WGS 84's)", got/p.DistanceKm-1, 0)
 		if !near(got, p.SphereKm, valTolSphere) || !near(got, p.DistanceKm, valTolWGS84) {
-			t.Errorf("validation.parquet %s: distance_km = %.9f; pyproj's geodesic on the 6371.0088 km sphere %.9f km, on WGS 84 %.9f km", st, got, p.SphereKm, p.DistanceKm)
+			differ("validation.parquet distance_km", "validation.parquet %s: distance_km = %.9f; pyproj's geodesic on the 6371.0088 km sphere %.9f km, on WGS 84 %.9f km", st, got, p.SphereKm, p.DistanceKm)
 		}
 		if got := tb.Col("location").Str[i]; got != p.Location {
-			t.Errorf("validation.parquet %s: location %q, want %q", st, got, p.Location)
+			differ("validation.parquet location", "validation.parquet %s: location %q, want %q", st, got, p.Location)
 		}
 	}
 	md.log(t, "validation.parquet")
@@ -203,7 +219,7 @@ func compareValidationColumns(t *testing.T, out string, run valRefRun) {
 		k := qqKey{ref["station"].(string), ref["variable"].(string), ref["period"].(string), refNum(ref["percentile"])}
 		i, ok := rowOf[k]
 		if !ok {
-			t.Errorf("validation_qq.parquet has no row %v", k)
+			differ("validation_qq.parquet rows", "validation_qq.parquet has no row %v", k)
 			continue
 		}
 		tl := valTolStat
@@ -214,7 +230,7 @@ func compareValidationColumns(t *testing.T, out string, run valRefRun) {
 			got, want := qq.Col(c).Value(i), refNum(ref[c])
 			md.see(k.va+" "+c, got, want)
 			if !near(got, want, tl) {
-				t.Errorf("validation_qq.parquet %v: %s = %.15g, numpy.percentile %.15g", k, c, got, want)
+				differ("validation_qq.parquet "+c, "validation_qq.parquet %v: %s = %.15g, numpy.percentile %.15g", k, c, got, want)
 			}
 		}
 	}
@@ -234,7 +250,7 @@ func compareValidationColumns(t *testing.T, out string, run valRefRun) {
 		}
 		for k, i := range rows {
 			if got := pairs.Col("time").Str[i]; got != want[k] {
-				t.Errorf("validation_pairs.parquet %s pair %d: time %q, want %q", st, k, got, want[k])
+				differ("validation_pairs.parquet time", "validation_pairs.parquet %s pair %d: time %q, want %q", st, k, got, want[k])
 			}
 		}
 		for c, vals := range cols {
@@ -255,14 +271,11 @@ func compareValidationColumns(t *testing.T, out string, run valRefRun) {
 				t.Errorf("validation_pairs.parquet has no column %s", c)
 				continue
 			}
-			bad := 0
 			for k, i := range rows {
 				got, w := col.Value(i), refNum(vals[k])
 				md.see(c, got, w)
 				if !near(got, w, tl) {
-					if bad++; bad <= 3 {
-						t.Errorf("validation_pairs.parquet %s pair %d (%s): %s = %.15g, make_columns.py %.15g", st, k, want[k], c, got, w)
-					}
+					differ("validation_pairs.parquet "+c, "validation_pairs.parquet %s pair %d (%s): %s = %.15g, make_columns.py %.15g", st, k, want[k], c, got, w)
 				}
 			}
 		}
