@@ -36,7 +36,9 @@ func by(test, what string) proof { return proof{test: test, what: what} }
 // reference proves it (another input layout, a flag, a spectral-only column),
 // by("TestName", "what it checks against what").
 var columnProofs = map[string]proof{
-	// cells.parquet
+	// cells.parquet (byE2E: bulk input; te_mean_s, tp_mean_s, hm0_mean_m and
+	// power_mean_kw_m from spectra, 2-D and 1-D, are also compared with numpy
+	// by TestSpectralColumnsAgainstNumpy)
 	"cells.parquet:cell_id":                             by("TestE2EColumnsAgainstNumpy", "equals the canonical row index of the fixture grid"),
 	"cells.parquet:name":                                by("TestStationNamesInEveryTable", "station names of a python3-netcdf4 point set, in every table"),
 	"cells.parquet:lon":                                 by("TestE2EColumnsAgainstNumpy", "the fixture's longitudes"),
@@ -55,9 +57,9 @@ var columnProofs = map[string]proof{
 	"cells.parquet:te_mean_s":                           byE2E,
 	"cells.parquet:tp_mean_s":                           byE2E,
 	"cells.parquet:dir_mean_deg":                        byE2E,
-	"cells.parquet:dir_max_power_deg":                   by("TestSpectralBadBinsAndMeanDirectionAgainstNumpy", "spectra written by python3-netcdf4: numpy's direction of maximum directional power (bulk: the mean direction, TestE2EColumnsAgainstNumpy)"),
-	"cells.parquet:directionality":                      by("TestE2EColumnsAgainstNumpy", "null on bulk input; spectral values: not yet compared end to end (issue 15 remainder)"),
-	"cells.parquet:width_mean":                          by("TestE2EColumnsAgainstNumpy", "null on bulk input; spectral values: not yet compared end to end (issue 15 remainder)"),
+	"cells.parquet:dir_max_power_deg":                   by("TestSpectralColumnsAgainstNumpy", "three python3-netcdf4 spectral files: power-weighted circular mean of numpy's maximum of J(theta) (grid search refined by scipy), within 1e-4 deg; 97.5 deg for a single-direction sea; null on 1-D (bulk: the mean direction, TestE2EColumnsAgainstNumpy)"),
+	"cells.parquet:directionality":                      by("TestSpectralColumnsAgainstNumpy", "three python3-netcdf4 spectral files: power-weighted mean of numpy's J_theta,max / J within 1e-9; 1 for a single-direction sea; null on 1-D (and on bulk, TestE2EColumnsAgainstNumpy)"),
+	"cells.parquet:width_mean":                          by("TestSpectralColumnsAgainstNumpy", "three python3-netcdf4 spectral files (2-D and 1-D, bad bins): mean of numpy's eps0 = sqrt(m0 m_-2 / m_-1^2 - 1) within 1e-10 (null on bulk, TestE2EColumnsAgainstNumpy)"),
 	"cells.parquet:mvi":                                 byE2E,
 	"cells.parquet:svi":                                 byE2E,
 	"cells.parquet:interannual_cov":                     byE2E,
