@@ -19,7 +19,7 @@ import sys
 import tempfile
 
 FILE = "pipelines/schema.go"
-TESTS = "TestE2EColumnsAgainstNumpy"
+TESTS = "TestE2EColumnsAgainstNumpy|TestSpectralColumnsAgainstNumpy"
 
 # (name, [(old, new), ...])
 MUTATIONS = [
@@ -110,6 +110,14 @@ MUTATIONS = [
      [("return x.v.ShapeLo }", "return x.v.@@ }"),
       ("return x.v.ShapeHi }", "return x.v.ShapeLo }"),
       ("return x.v.@@ }", "return x.v.ShapeHi }")]),
+    # the spectral-only columns (TestSpectralColumnsAgainstNumpy)
+    ("width_mean and directionality swapped (spectra)",
+     [("pipelines/results.go", "= c.spec.WidthMean(), c.spec.DirMaxPowerDeg(), c.spec.Directionality(),",
+       "= c.spec.Directionality(), c.spec.DirMaxPowerDeg(), c.spec.WidthMean(),")]),
+    ("tp_mean_s from the discrete peak, not the parabolic one (spectra)",
+     [("pipelines/stream.go", "p.J, p.Hm0, p.Te, p.Tp, p.MeanDirDeg", "p.J, p.Hm0, p.Te, p.TpDiscrete, p.MeanDirDeg")]),
+    ("directional maximum only at the arc ends (spectra)",
+     [("stats/seastate/kernel.go", "if cs*d-ss*c > 0 && c*se-d*ce > 0 {", "if false && cs*d-ss*c > 0 && c*se-d*ce > 0 {")]),
 ]
 
 
