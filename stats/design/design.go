@@ -28,6 +28,7 @@ import (
 	"fmt"
 	"math"
 
+	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/optimize"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -114,7 +115,7 @@ const (
 // Loc is kept below the upper edge of the lowest occupied bin. Binning a
 // continuous sample at 0.05 m changes the estimates by far less than their
 // sampling error for records of 10^4 or more sea states (TestWeibullAgainstScipy).
-// Gonum's Nelder-Mead, then BFGS with finite-difference gradients.
+// Minimised by minimiseGrad with the analytic gradient of weibullBinnedNLL.
 func FitWeibull3(h Hist) (Weibull3, error) {
 	first, last := -1, -1
 	var tot, m1, m2 float64
@@ -145,33 +146,16 @@ func FitWeibull3(h Hist) (Weibull3, error) {
 		}
 	}
 	edges := h.Edges[first : last+2]
-	z := make([]float64, len(edges)) // cumulative hazard ((x - Loc)/Scale)^Shape at each edge
-	nll := func(p []float64) float64 {
-		loc, scale, shape := top-math.Exp(p[0]), math.Exp(p[1]), math.Exp(p[2])
-		for k, e := range edges {
-			switch {
-			case math.IsInf(e, 1):
-				z[k] = math.Inf(1)
-			case e <= loc:
-				z[k] = 0
-			default:
-				z[k] = math.Pow((e-loc)/scale, shape)
-			}
-		}
-		var l float64
-		for _, i := range occ {
-			a, b := z[i-first], z[i+1-first]
-			// log Pr = log(S(a) - S(b)) = -za + log(1 - exp(za - zb)), finite far in the tail.
-			lp := -a
-			if !math.IsInf(b, 1) {
-				lp += math.Log(-math.Expm1(a - b))
-			}
-			if math.IsNaN(lp) || math.IsInf(lp, 0) {
-				return math.Inf(1)
-			}
-			l -= h.Weights[i] * lp
-		}
-		return l / tot
+	// Only the edges of occupied bins enter the likelihood.
+	need := make([]bool, len(edges))
+	for _, i := range occ {
+		need[i-first], need[i+1-first] = true, true
+	}
+	z := make([]float64, len(edges))  // cumulative hazard ((x - Loc)/Scale)^Shape at each edge
+	lz := make([]float64, len(edges)) // ln((x - Loc)/Scale) where x > Loc
+	cz := make([]float64, len(edges)) // d nll / d z at each edge
+	nll := func(p, grad []float64) float64 {
+		return weibullBinnedNLL(p, grad, top, edges, need, occ, first, h.Weights, tot, z, lz, cz)
 	}
 	// Start: Loc a little below the lowest sea state, Scale and Shape from the
 	// mean and variance of h - Loc (Shape 1.5 and the matching scale as a guess).
@@ -181,11 +165,103 @@ func FitWeibull3(h Hist) (Weibull3, error) {
 	shape0 := math.Max(0.8, math.Min(3, 1.2*(mean-loc0)/sd))
 	scale0 := (mean - loc0) / math.Gamma(1+1/shape0)
 	x0 := []float64{math.Log(top - loc0), math.Log(scale0), math.Log(shape0)}
-	x, ok := minimiseNM(nll, x0)
+	x, ok := minimiseGrad(nll, x0)
 	if !ok {
 		return Weibull3{}, fmt.Errorf("design: the Weibull fit of Hm0 did not converge")
 	}
 	return Weibull3{Loc: top - math.Exp(x[0]), Scale: math.Exp(x[1]), Shape: math.Exp(x[2])}, nil
+}
+
+// weibullBinnedNLL is the objective of FitWeibull3 in the parameters
+// p = (log(top - Loc), log Scale, log Shape): the negative grouped-data
+// log-likelihood per unit weight,
+//
+//	nll = -(1/W) sum_i w_i log[S(e_i) - S(e_i+1)],  S(x) = exp(-z(x)),
+//	z(x) = ((x - Loc)/Scale)^Shape (0 for x <= Loc, +Inf for x = +Inf),
+//	log[S(a) - S(b)] = -z_a + log(1 - exp(z_a - z_b)),
+//
+// over the occupied bins i (edges e_i, e_i+1; W the total weight), and, when
+// grad is non-nil, its gradient by the chain rule (derived here):
+//
+//	d log Pr / d z_a = -1/(1 - exp(z_a - z_b)),  d log Pr / d z_b = exp(z_a - z_b)/(1 - exp(z_a - z_b)),
+//	dz/dp0 = Shape z (top - Loc)/(x - Loc),  dz/dp1 = -Shape z,  dz/dp2 = Shape z ln((x - Loc)/Scale).
+//
+// edges are the histogram edges from the first occupied bin (index first) to
+// the last; need marks those of occupied bins; z, lz and cz are scratch of
+// len(edges). +Inf where a bin has no probability.
+func weibullBinnedNLL(p, grad []float64, top float64, edges []float64, need []bool, occ []int, first int, weights []float64, tot float64, z, lz, cz []float64) float64 {
+	loc, scale, shape := top-math.Exp(p[0]), math.Exp(p[1]), math.Exp(p[2])
+	for k, e := range edges {
+		cz[k] = 0
+		switch {
+		case !need[k]:
+		case math.IsInf(e, 1):
+			z[k] = math.Inf(1)
+		case e <= loc:
+			z[k], lz[k] = 0, math.Inf(-1)
+		default:
+			lz[k] = math.Log((e - loc) / scale)
+			z[k] = math.Exp(shape * lz[k])
+		}
+	}
+	var l float64
+	for _, i := range occ {
+		ka, kb := i-first, i+1-first
+		a, b := z[ka], z[kb]
+		w := weights[i]
+		// log Pr = log(S(a) - S(b)) = -za + log(1 - exp(za - zb)), finite far in the tail.
+		lp := -a
+		if !math.IsInf(b, 1) {
+			om := -math.Expm1(a - b) // 1 - exp(a - b)
+			lp += math.Log(om)
+			cz[ka] -= w / om
+			cz[kb] += w * (1 - om) / om
+		} else {
+			cz[ka] -= w
+		}
+		if math.IsNaN(lp) || math.IsInf(lp, 0) {
+			return math.Inf(1)
+		}
+		l -= w * lp
+	}
+	if grad != nil {
+		var g0, g1, g2 float64
+		for k, e := range edges {
+			if !need[k] || z[k] == 0 || math.IsInf(z[k], 1) {
+				continue
+			}
+			c := -cz[k] / tot * shape * z[k] // d nll / d z times Shape z
+			g0 += c * (top - loc) / (e - loc)
+			g1 -= c
+			g2 += c * lz[k]
+		}
+		grad[0], grad[1], grad[2] = g0, g1, g2
+	}
+	return l / tot
+}
+
+// minimiseGrad minimises f, which returns f(x) and writes its analytic
+// gradient into grad when grad is non-nil, by gonum's BFGS (driven by
+// localopt in the calling goroutine) from x0 to a gradient below 1e-9. A
+// search that stops short of that (the line search finds no decrease within
+// rounding: the objectives here are of order 1, so a gradient of 1e-9 moves
+// them by about 1e-18) counts if the gradient where it stopped is below
+// 1e-6; otherwise it falls back to minimiseNM (Nelder-Mead, then BFGS) from
+// x0. ok if a finite optimum was found.
+func minimiseGrad(f func(x, grad []float64) float64, x0 []float64) ([]float64, bool) {
+	fv := func(x []float64) float64 { return f(x, nil) }
+	p := localopt.Problem{Func: fv, FuncGrad: f}
+	r, err := localopt.BFGS(p, x0, localopt.Settings{MajorIterations: 200, GradientThreshold: 1e-9})
+	if !math.IsInf(r.F, 0) && !math.IsNaN(r.F) {
+		if err == nil && r.Status == optimize.GradientThreshold {
+			return r.X, true
+		}
+		g := make([]float64, len(x0))
+		if v := f(r.X, g); v == r.F && floats.Norm(g, math.Inf(1)) < 1e-6 {
+			return r.X, true
+		}
+	}
+	return minimiseNM(fv, x0)
 }
 
 // minimiseNM minimises f by Nelder-Mead and polishes with BFGS on
@@ -229,7 +305,6 @@ func minimiseNM(f func([]float64) float64, x0 []float64) ([]float64, bool) {
 // mean Hm0 comes from the finer Hm0 histogram (mid-points of its bins inside
 // the row), or the row's middle if the histogram does not cover it.
 func ConditionalRows(cells []Cell, h Hist) []Row {
-	type bin struct{ lo, hi, w float64 }
 	type acc struct {
 		lo, hi, w, s1, s2, sh float64
 		bins                  []bin
@@ -274,24 +349,68 @@ func ConditionalRows(cells []Cell, h Hist) []Row {
 		}
 		m := a.s1 / wf
 		v := math.Max(a.s2/wf-m*m-a.sh/wf, 1e-6)
-		nll := func(p []float64) float64 {
-			s := math.Exp(p[1])
-			var l float64
-			for _, b := range a.bins {
-				pr := distuv.UnitNormal.CDF((b.hi-p[0])/s) - distuv.UnitNormal.CDF((b.lo-p[0])/s)
-				if !(pr > 0) {
-					return math.Inf(1)
-				}
-				l -= b.w * math.Log(pr)
+		nll := func(p, grad []float64) float64 { return normalBinnedNLL(p, grad, a.bins, a.w) }
+		min := minimiseGrad
+		if len(a.bins) < 3 {
+			// With its time in one or two Te bins the grouped likelihood
+			// has no interior maximum (it still grows as s -> 0): the
+			// estimate is where the search stops, so such rows keep the
+			// Nelder-Mead search they have always had.
+			min = func(f func(x, grad []float64) float64, x0 []float64) ([]float64, bool) {
+				return minimiseNM(func(x []float64) float64 { return f(x, nil) }, x0)
 			}
-			return l / a.w
 		}
-		if x, ok := minimiseNM(nll, []float64{m, 0.5 * math.Log(v)}); ok {
+		if x, ok := min(nll, []float64{m, 0.5 * math.Log(v)}); ok {
 			m, v = x[0], math.Exp(2*x[1])
 		}
 		out = append(out, Row{Hm0Mean: rowMeanHm0(h, a.lo, a.hi), Weight: a.w, Mean: m, Std: math.Sqrt(v)})
 	}
 	return out
+}
+
+// bin is one class of grouped data: [lo, hi) (either end may be infinite) with weight w.
+type bin struct{ lo, hi, w float64 }
+
+// normalBinnedNLL is the objective of ConditionalRows' grouped fit of a
+// normal law in p = (m, log s): the negative grouped-data log-likelihood per
+// unit weight,
+//
+//	nll = -(1/W) sum_j w_j log P_j,  P_j = Phi(z_hi) - Phi(z_lo),  z = (t - m)/s,
+//
+// and, when grad is non-nil, its gradient (derived here; phi the standard
+// normal density, phi = z phi = 0 at an infinite end):
+//
+//	dP/dm = -(phi(z_hi) - phi(z_lo))/s,  dP/dlog s = -(z_hi phi(z_hi) - z_lo phi(z_lo)).
+//
+// +Inf where a bin has no probability.
+func normalBinnedNLL(p, grad []float64, bins []bin, W float64) float64 {
+	s := math.Exp(p[1])
+	var l, gm, gs float64
+	dens := func(t float64) (phi, zphi float64) {
+		if math.IsInf(t, 0) {
+			return 0, 0
+		}
+		z := (t - p[0]) / s
+		phi = math.Exp(-0.5*z*z) / math.Sqrt(2*math.Pi)
+		return phi, z * phi
+	}
+	for _, b := range bins {
+		pr := distuv.UnitNormal.CDF((b.hi-p[0])/s) - distuv.UnitNormal.CDF((b.lo-p[0])/s)
+		if !(pr > 0) {
+			return math.Inf(1)
+		}
+		l -= b.w * math.Log(pr)
+		if grad != nil {
+			ph, zph := dens(b.hi)
+			pl, zpl := dens(b.lo)
+			gm += b.w * (ph - pl) / s / pr
+			gs += b.w * (zph - zpl) / pr
+		}
+	}
+	if grad != nil {
+		grad[0], grad[1] = gm/W, gs/W
+	}
+	return l / W
 }
 
 func rowMeanHm0(h Hist, lo, hi float64) float64 {
@@ -323,27 +442,73 @@ func FitConditional(rows []Row) (Conditional, error) {
 	for _, r := range rows {
 		wt += r.Weight
 	}
-	ssq := func(f func(r Row) float64) float64 {
-		var s float64
-		for _, r := range rows {
-			d := f(r)
-			s += r.Weight / wt * d * d
-		}
-		return s
-	}
-	mu, ok := minimiseNM(func(p []float64) float64 {
-		return ssq(func(r Row) float64 { return r.Mean - (p[0] + p[1]*math.Pow(r.Hm0Mean, math.Exp(p[2]))) })
-	}, []float64{rows[0].Mean, 0.5, math.Log(0.5)})
+	mu, ok := minimiseGrad(func(p, g []float64) float64 { return meanLSQ(p, g, rows, wt) },
+		[]float64{rows[0].Mean, 0.5, math.Log(0.5)})
 	if !ok {
 		return Conditional{}, fmt.Errorf("design: the fit of the mean of ln Te did not converge")
 	}
-	sg, ok := minimiseNM(func(p []float64) float64 {
-		return ssq(func(r Row) float64 { return r.Std - (math.Exp(p[0]) + p[1]*math.Exp(-math.Exp(p[2])*r.Hm0Mean)) })
-	}, []float64{math.Log(0.05), 0.1, math.Log(0.3)})
+	sg, ok := minimiseGrad(func(p, g []float64) float64 { return spreadLSQ(p, g, rows, wt) },
+		[]float64{math.Log(0.05), 0.1, math.Log(0.3)})
 	if !ok {
 		return Conditional{}, fmt.Errorf("design: the fit of the spread of ln Te did not converge")
 	}
 	return Conditional{A0: mu[0], A1: mu[1], A2: math.Exp(mu[2]), B0: math.Exp(sg[0]), B1: sg[1], B2: math.Exp(sg[2])}, nil
+}
+
+// meanLSQ is the weighted least-squares objective of the mean of ln Te in
+// p = (A0, A1, log A2), with r_k = Mean_k - (A0 + A1 h_k^A2), h_k the row's
+// mean Hm0 and v_k its weight over the total wt,
+//
+//	f = sum_k v_k r_k^2,
+//	df/dA0 = -2 sum v_k r_k,  df/dA1 = -2 sum v_k r_k h_k^A2,
+//	df/dlog A2 = -2 sum v_k r_k A1 A2 h_k^A2 ln h_k
+//
+// (gradient derived here), which it writes into grad when grad is non-nil.
+func meanLSQ(p, grad []float64, rows []Row, wt float64) float64 {
+	a2 := math.Exp(p[2])
+	var f, g0, g1, g2 float64
+	for _, r := range rows {
+		v := r.Weight / wt
+		ha := math.Pow(r.Hm0Mean, a2)
+		d := r.Mean - (p[0] + p[1]*ha)
+		f += v * d * d
+		g0 -= 2 * v * d
+		g1 -= 2 * v * d * ha
+		if ha != 0 {
+			g2 -= 2 * v * d * p[1] * a2 * ha * math.Log(r.Hm0Mean)
+		}
+	}
+	if grad != nil {
+		grad[0], grad[1], grad[2] = g0, g1, g2
+	}
+	return f
+}
+
+// spreadLSQ is the weighted least-squares objective of the standard
+// deviation of ln Te in p = (log B0, B1, log B2), with
+// r_k = Std_k - (B0 + B1 exp(-B2 h_k)) and v_k as in meanLSQ,
+//
+//	f = sum_k v_k r_k^2,
+//	df/dlog B0 = -2 sum v_k r_k B0,  df/dB1 = -2 sum v_k r_k exp(-B2 h_k),
+//	df/dlog B2 = 2 sum v_k r_k B1 B2 h_k exp(-B2 h_k)
+//
+// (gradient derived here), which it writes into grad when grad is non-nil.
+func spreadLSQ(p, grad []float64, rows []Row, wt float64) float64 {
+	b0, b2 := math.Exp(p[0]), math.Exp(p[2])
+	var f, g0, g1, g2 float64
+	for _, r := range rows {
+		v := r.Weight / wt
+		e := math.Exp(-b2 * r.Hm0Mean)
+		d := r.Std - (b0 + p[1]*e)
+		f += v * d * d
+		g0 -= 2 * v * d * b0
+		g1 -= 2 * v * d * e
+		g2 += 2 * v * d * p[1] * b2 * r.Hm0Mean * e
+	}
+	if grad != nil {
+		grad[0], grad[1], grad[2] = g0, g1, g2
+	}
+	return f
 }
 
 // FitJoint fits the joint model to a cell's Hm0 histogram and occurrence
