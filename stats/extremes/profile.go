@@ -9,8 +9,12 @@ const chi2Crit95 = z975 * z975
 
 // profileFit is the inner maximisation of a profile likelihood at one fixed
 // return level: it returns the smallest negative log-likelihood over the other
-// parameters and where it was reached (start of the next search).
-type profileFit func(level float64, start []float64) (nll float64, at []float64, ok bool)
+// parameters, where it was reached (start of the next search), and the slope
+// d nll_p / d level there. By the envelope theorem the slope of the profile
+// is the partial derivative of nll with respect to the level at the inner
+// optimum, the other parameters held fixed (e.g. Nocedal and Wright 2006 on
+// sensitivity of optimal values; common practice).
+type profileFit func(level float64, start []float64) (nll, slope float64, at []float64, ok bool)
 
 // ProfileGEV returns the 95% profile-likelihood interval of the T-year return
 // level of a GEV fit. The likelihood is re-parameterised by the return level,
@@ -35,7 +39,7 @@ func (f GEVFit) ProfileGEV(T float64, z []float64, limit float64) (lo, hi float6
 	zs := finiteSorted(z)
 	s := -math.Log(-math.Log1p(-1 / T))
 	nllMax := -f.LogLik
-	inner := func(level float64, start []float64) (float64, []float64, bool) {
+	inner := func(level float64, start []float64) (float64, float64, []float64, bool) {
 		// Parameters (log Scale, Shape); Loc follows from the level.
 		x0 := []float64{start[0], start[1]}
 		nll := func(p, g []float64) float64 {
@@ -59,10 +63,14 @@ func (f GEVFit) ProfileGEV(T float64, z []float64, limit float64) (lo, hi float6
 			x0[0] += 0.25
 		}
 		if math.IsInf(nll(x0, nil), 1) {
-			return math.Inf(1), start, false
+			return math.Inf(1), math.NaN(), start, false
 		}
 		xo, v, conv, err := minimise(nll, x0, 1e-7*float64(len(zs)))
-		return v, xo, conv && err == nil
+		// dnll/dlevel = dnll/dLoc at fixed (log Scale, Shape).
+		a, _ := expShapeTerm(xo[1], s)
+		var gg [3]float64
+		gevNegLogLik([]float64{level - math.Exp(xo[0])*a, xo[0], xo[1]}, gg[:], zs)
+		return v, gg[0], xo, conv && err == nil
 	}
 	step := f.StdErr[0]
 	if sd := deltaSD(f, T); sd > 0 && !math.IsNaN(sd) {
@@ -101,9 +109,9 @@ func (f GPDFit) ProfileGPD(T float64, peaks []float64, limit float64) (lo, hi fl
 	}
 	s := math.Log(f.PeaksPerYear * T)
 	u := f.Threshold
-	inner := func(level float64, start []float64) (float64, []float64, bool) {
+	inner := func(level float64, start []float64) (float64, float64, []float64, bool) {
 		if !(level > u) {
-			return math.Inf(1), start, false
+			return math.Inf(1), math.NaN(), start, false
 		}
 		x0 := []float64{start[0]}
 		nll := func(p, g []float64) float64 {
@@ -123,10 +131,14 @@ func (f GPDFit) ProfileGPD(T float64, peaks []float64, limit float64) (lo, hi fl
 			x0[0] += 0.05
 		}
 		if math.IsInf(nll(x0, nil), 1) {
-			return math.Inf(1), start, false
+			return math.Inf(1), math.NaN(), start, false
 		}
 		xo, v, conv, err := minimise(nll, x0, 1e-7*float64(len(y)))
-		return v, xo, conv && err == nil
+		// dnll/dlevel = dnll/dlog Scale / (x_T - u) at fixed Shape.
+		a, _ := expShapeTerm(xo[0], s)
+		var gg [2]float64
+		gpdNegLogLik([]float64{math.Log(level-u) - math.Log(a), xo[0]}, gg[:], y)
+		return v, gg[0] / (level - u), xo, conv && err == nil
 	}
 	step := math.NaN()
 	if _, l, h := f.ReturnLevel(T); h > l {
@@ -155,96 +167,109 @@ func deltaSD(f GEVFit, T float64) float64 {
 	return (z - lo) / z975
 }
 
-// profileEnd walks from the level in steps of step (sign gives the side) until
-// the profile deviance 2 (nll_p - nllMax) exceeds chi2Crit95, then bisects to
-// 1e-7 of the bracket. bound is the last admissible level on that side (0 or
-// the threshold below, the search limit above): if the deviance stays below
-// the critical value up to it, the lower end is bound and the upper end +Inf.
-// Each inner fit starts from the optimum of the nearest level already
-// evaluated, so the search follows one branch of the profile.
+// profileEnd finds where the profile deviance D(x) = 2 (nll_p(x) - nllMax)
+// reaches chi2Crit95 on one side of the level (the sign of step gives the
+// side; step is about one standard error of the level). It solves
+// g(x) = D(x) - chi2Crit95 = 0 by Newton's method with the slope of the
+// profile, g'(x) = 2 dnll_p/dx (see profileFit), started from the
+// delta-method end level + z975 step (where a quadratic profile would cross)
+// and safeguarded by a bracket: once a point with g >= 0 is known, a Newton
+// step that leaves the bracket [last point with g < 0, first with g >= 0] is
+// replaced by a regula-falsi step (Illinois: the retained end's value halved
+// when it is kept twice; bisection when an end is not finite), and before
+// that a step that does not move outward, or a slope that does not rise,
+// is replaced by a step growing the distance from the level by 1.6. It stops
+// when a step or the bracket is below 1e-7 of the level (far below the
+// interval's own uncertainty) or |g| < 1e-9. bound is the last admissible
+// level on that side (0 or the threshold below, the search limit above):
+// if the deviance stays below the critical value up to it, the lower end is
+// bound and the upper end +Inf. Each inner fit starts from the optimum of
+// the last point evaluated inside the bracket, so the search follows one
+// branch of the profile.
 func profileEnd(inner profileFit, level, step, bound, nllMax float64, start []float64) float64 {
-	dev := func(x float64, st []float64) (float64, []float64) {
-		v, at, _ := inner(x, st)
-		return 2 * (v - nllMax), at
+	sgn := 1.0
+	if step < 0 {
+		sgn = -1
 	}
-	inside, insideAt := level, start
-	var outside float64
-	found := false
-	for k := 1; k <= 200; k++ {
-		// Unit steps up to 8, then growing by 30% a step.
-		x := level + step*float64(k)
-		if k > 8 {
-			x = level + step*(8+(math.Pow(1.3, float64(k-8))-1)/0.3)
-		}
-		if (step < 0 && x <= bound) || (step > 0 && x >= bound) {
-			x = bound
-			if step < 0 && x == bound {
-				// At 0 (GEV) or the threshold (GPD) the deviance is evaluated just inside.
-				x = bound + 1e-9*math.Max(1, math.Abs(level))
+	lowEnd := bound + 1e-9*math.Max(1, math.Abs(level)) // at 0 (GEV) or the threshold (GPD) the deviance is evaluated just inside
+	atBound := func(x float64) (float64, bool) {
+		if (sgn < 0 && x <= bound) || (sgn > 0 && x >= bound) {
+			if sgn < 0 {
+				return lowEnd, true
 			}
-			d, _ := dev(x, insideAt)
-			if d < chi2Crit95 {
-				if step > 0 {
+			return bound, true
+		}
+		return x, false
+	}
+	tol := 1e-7 * math.Max(1, math.Abs(level))
+	a, ga, aAt := level, -chi2Crit95, start // inside: the deviance is 0 at the level itself
+	b, gb := math.NaN(), math.NaN()         // outside, once known
+	haveB := false
+	side := 0
+	x, _ := atBound(level + z975*step)
+	for i := 0; i < 100; i++ {
+		v, slope, at, _ := inner(x, aAt)
+		g := 2*(v-nllMax) - chi2Crit95
+		if math.IsNaN(g) {
+			g = math.Inf(1) // no finite fit there: treated as outside
+		}
+		dg := 2 * slope
+		if math.Abs(g) < 1e-9 {
+			return x
+		}
+		if g < 0 {
+			a, ga, aAt = x, g, at
+			if side == -1 && haveB {
+				gb /= 2
+			}
+			side = -1
+			if _, hit := atBound(x); hit {
+				// The deviance stays below the critical value up to the bound.
+				if sgn > 0 {
 					return math.Inf(1)
 				}
 				return bound
 			}
-			outside, found = x, true
-			break
-		}
-		d, at := dev(x, insideAt)
-		if d >= chi2Crit95 {
-			outside, found = x, true
-			break
-		}
-		inside, insideAt = x, at
-	}
-	if !found {
-		if step > 0 {
-			return math.Inf(1)
-		}
-		return bound
-	}
-	// Illinois (modified regula falsi) on g(x) = deviance - chi2Crit95, with
-	// bisection whenever the outer value is not finite; to 1e-7 of the
-	// level (far below the interval's own uncertainty).
-	a, b := inside, outside
-	ga := -chi2Crit95 // the deviance is 0 at the level itself
-	if a != level {
-		d, _ := dev(a, insideAt)
-		ga = d - chi2Crit95
-	}
-	db, _ := dev(b, insideAt)
-	gb := db - chi2Crit95
-	tol := 1e-7 * math.Max(1, math.Abs(level))
-	side := 0
-	for i := 0; i < 100 && math.Abs(b-a) > tol; i++ {
-		m := 0.5 * (a + b)
-		if !math.IsInf(gb, 0) && !math.IsNaN(gb) && gb != ga {
-			m = b - gb*(b-a)/(gb-ga)
-			// Keep the new point well inside the bracket.
-			lo, hi := math.Min(a, b), math.Max(a, b)
-			w := hi - lo
-			m = math.Max(lo+0.01*w, math.Min(hi-0.01*w, m))
-		}
-		d, at := dev(m, insideAt)
-		gm := d - chi2Crit95
-		if gm < 0 {
-			a, ga, insideAt = m, gm, at
-			if side == -1 {
-				gb /= 2
-			}
-			side = -1
 		} else {
-			b, gb = m, gm
+			b, gb, haveB = x, g, true
 			if side == 1 {
 				ga /= 2
 			}
 			side = 1
 		}
-		if math.Abs(gm) < 1e-9 {
-			return m
+		if haveB && math.Abs(b-a) <= tol {
+			return 0.5 * (a + b)
 		}
+		// Newton's step from x.
+		next := math.NaN()
+		if !math.IsInf(g, 0) && sgn*dg > 0 {
+			next = x - g/dg
+		}
+		if haveB {
+			lo, hi := math.Min(a, b), math.Max(a, b)
+			if !(next > lo && next < hi) {
+				// Illinois within the bracket, bisection when an end is not finite.
+				next = 0.5 * (a + b)
+				if !math.IsInf(gb, 0) && gb != ga {
+					next = b - gb*(b-a)/(gb-ga)
+					w := hi - lo
+					next = math.Max(lo+0.01*w, math.Min(hi-0.01*w, next))
+				}
+			}
+		} else if !(sgn*(next-x) > 0) {
+			next = level + 1.6*(x-level)
+		}
+		next, _ = atBound(next)
+		if math.Abs(next-x) <= tol && !math.IsInf(g, 0) {
+			return next
+		}
+		x = next
 	}
-	return 0.5 * (a + b)
+	if haveB {
+		return 0.5 * (a + b)
+	}
+	if sgn > 0 {
+		return math.Inf(1)
+	}
+	return bound
 }
