@@ -285,11 +285,14 @@ var ErrTooFew = errors.New("extremes: too few values to fit")
 // (Loc, log Scale, Shape), started from the probability-weighted-moment estimate.
 // The covariance is the inverse observed information in (Loc, Scale, Shape).
 // It needs at least 3 finite values; a fit that did not converge is still returned
-// with Converged = false.
+// with Converged = false. Equal values are not searched (see ErrNoSpread).
 func FitGEV(x []float64) (GEVFit, error) {
 	z := finiteSorted(x)
 	if len(z) < 3 {
 		return GEVFit{N: len(z)}, fmt.Errorf("%w: GEV needs at least 3 block maxima, got %d", ErrTooFew, len(z))
+	}
+	if z[0] == z[len(z)-1] {
+		return noSpreadGEV(z), nil
 	}
 	start := gevPWMStart(z)
 	x0 := []float64{start.Loc, math.Log(start.Scale), start.Shape}
@@ -329,7 +332,8 @@ func covariance3(grad func(p, g []float64), p []float64) (cov [3][3]float64, se 
 // threshold (values <= threshold and NaN are ignored; pass excesses with
 // threshold 0 to fit excesses directly). peaksPerYear is the rate lambda of
 // exceedances per year, used for return levels; its variance is taken as
-// lambda^2/N (Poisson count). It needs at least 2 exceedances.
+// lambda^2/N (Poisson count). It needs at least 2 exceedances; equal
+// excesses are not searched (see ErrNoSpread).
 func FitGPD(excessesOrPeaks []float64, threshold float64, peaksPerYear float64) (GPDFit, error) {
 	var y []float64
 	for _, v := range excessesOrPeaks {
@@ -340,6 +344,9 @@ func FitGPD(excessesOrPeaks []float64, threshold float64, peaksPerYear float64) 
 	sort.Float64s(y)
 	if len(y) < 2 {
 		return GPDFit{N: len(y), PeaksPerYear: peaksPerYear}, fmt.Errorf("%w: GPD needs at least 2 exceedances of %g, got %d", ErrTooFew, threshold, len(y))
+	}
+	if y[0] == y[len(y)-1] {
+		return noSpreadGPD(y, threshold, peaksPerYear), nil
 	}
 	start := gpdPWMStart(y)
 	start.Threshold = threshold
@@ -368,6 +375,39 @@ func FitGPD(excessesOrPeaks []float64, threshold float64, peaksPerYear float64) 
 		fit.StdErr[i] = math.Sqrt(fit.Cov[i][i])
 	}
 	return fit, nil
+}
+
+// ErrNoSpread is the optimiser error of a fit to values that are all equal:
+// the likelihood then has no maximum (it grows without bound as Scale -> 0),
+// so no search is made.
+var ErrNoSpread = errors.New("extremes: all values are equal, the likelihood has no maximum")
+
+// noSpreadGEV is the GEV fit of n equal maxima: not converged (ErrNoSpread),
+// parameters, log-likelihood and covariance NaN, information not regular.
+func noSpreadGEV(z []float64) GEVFit {
+	n := math.NaN()
+	f := GEVFit{GEV: GEV{Loc: n, Scale: n, Shape: n}, Start: GEV{Loc: z[0], Scale: n, Shape: n}, LogLik: n, N: len(z), OptErr: ErrNoSpread}
+	for i := range f.Cov {
+		for j := range f.Cov[i] {
+			f.Cov[i][j] = n
+		}
+		f.StdErr[i] = n
+	}
+	return f
+}
+
+// noSpreadGPD is the GPD fit of equal excesses (see noSpreadGEV).
+func noSpreadGPD(y []float64, threshold, peaksPerYear float64) GPDFit {
+	n := math.NaN()
+	f := GPDFit{GPD: GPD{Threshold: threshold, Scale: n, Shape: n}, Start: GPD{Threshold: threshold, Scale: n, Shape: n},
+		PeaksPerYear: peaksPerYear, LogLik: n, N: len(y), OptErr: ErrNoSpread}
+	for i := range f.Cov {
+		for j := range f.Cov[i] {
+			f.Cov[i][j] = n
+		}
+		f.StdErr[i] = n
+	}
+	return f
 }
 
 func finiteSorted(x []float64) []float64 {

@@ -1,6 +1,7 @@
 package extremes
 
 import (
+	"errors"
 	"math"
 	"testing"
 )
@@ -98,5 +99,23 @@ func TestDegenerateInputs(t *testing.T) {
 	var c Collector
 	if got := Analyse(&c, AnalysisConfig{}); got.Flags&FlagNoFit == 0 {
 		t.Error("zero Collector not flagged")
+	}
+}
+
+// Equal values have no maximum-likelihood GEV or GPD (the likelihood grows
+// without bound as Scale -> 0; elementary, e.g. Coles 2001, section 3.3.2 on
+// the regularity of the likelihood): the fits return at once, not converged,
+// with ErrNoSpread, and no level is published.
+func TestNoSpread(t *testing.T) {
+	g, err := FitGEV([]float64{2, 2, 2, 2, 2})
+	if err != nil || g.Converged || !errors.Is(g.OptErr, ErrNoSpread) || g.InfoOK || !math.IsNaN(g.Shape) || g.N != 5 {
+		t.Errorf("GEV of equal maxima: %+v, %v", g, err)
+	}
+	p, err := FitGPD([]float64{3, 3, 3}, 1, 2)
+	if err != nil || p.Converged || !errors.Is(p.OptErr, ErrNoSpread) || p.InfoOK || !math.IsNaN(p.Scale) || p.N != 3 {
+		t.Errorf("GPD of equal peaks: %+v, %v", p, err)
+	}
+	if f := Publication(FitQuality{Fitted: true, Converged: g.Converged, InfoOK: g.InfoOK, Shape: g.Shape, N: 30, Record: 30}, 10, AnalysisConfig{}); f&Withheld == 0 {
+		t.Errorf("level of equal maxima published (flags %v)", f.Names())
 	}
 }
