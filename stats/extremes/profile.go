@@ -42,6 +42,10 @@ func (f GEVFit) ProfileGEV(T float64, z []float64, limit float64) (lo, hi float6
 	inner := func(level float64, start []float64) (float64, float64, []float64, bool) {
 		// Parameters (log Scale, Shape); Loc follows from the level.
 		x0 := []float64{start[0], start[1]}
+		// dnll/dLoc at fixed (log Scale, Shape) is dnll/dlevel; kept from
+		// the last finite evaluation with a gradient (the optimum, as a rule).
+		var lastAt [2]float64
+		lastSlope, haveLast := math.NaN(), false
 		nll := func(p, g []float64) float64 {
 			a, da := expShapeTerm(p[1], s)
 			sig := math.Exp(p[0])
@@ -53,24 +57,29 @@ func (f GEVFit) ProfileGEV(T float64, z []float64, limit float64) (lo, hi float6
 				// dLoc/dlogScale = -sig a, dLoc/dShape = -sig da.
 				g[0] = gg[1] - gg[0]*sig*a
 				g[1] = gg[2] - gg[0]*sig*da
+				if haveLast = !math.IsInf(v, 1); haveLast {
+					lastAt, lastSlope = [2]float64{p[0], p[1]}, gg[0]
+				}
 			} else {
 				v = gevNegLogLik(q, nil, zs)
 			}
 			return v
 		}
 		// A larger scale always reaches the support (1 + Shape y > 0 for all data).
-		for k := 0; k < 60 && math.IsInf(nll(x0, nil), 1); k++ {
+		v0 := nll(x0, nil)
+		for k := 0; k < 60 && math.IsInf(v0, 1); k++ {
 			x0[0] += 0.25
+			v0 = nll(x0, nil)
 		}
-		if math.IsInf(nll(x0, nil), 1) {
+		if math.IsInf(v0, 1) {
 			return math.Inf(1), math.NaN(), start, false
 		}
 		xo, v, conv, err := minimise(nll, x0, 1e-7*float64(len(zs)))
-		// dnll/dlevel = dnll/dLoc at fixed (log Scale, Shape).
-		a, _ := expShapeTerm(xo[1], s)
-		var gg [3]float64
-		gevNegLogLik([]float64{level - math.Exp(xo[0])*a, xo[0], xo[1]}, gg[:], zs)
-		return v, gg[0], xo, conv && err == nil
+		if !haveLast || lastAt != [2]float64{xo[0], xo[1]} {
+			var g [2]float64
+			nll(xo, g[:])
+		}
+		return v, lastSlope, xo, conv && err == nil
 	}
 	step := f.StdErr[0]
 	if sd := deltaSD(f, T); sd > 0 && !math.IsNaN(sd) {
@@ -114,6 +123,9 @@ func (f GPDFit) ProfileGPD(T float64, peaks []float64, limit float64) (lo, hi fl
 			return math.Inf(1), math.NaN(), start, false
 		}
 		x0 := []float64{start[0]}
+		// dnll/dlevel = dnll/dlog Scale / (x_T - u) at fixed Shape, kept
+		// from the last finite evaluation with a gradient (see ProfileGEV).
+		lastAt, lastSlope, haveLast := math.NaN(), math.NaN(), false
 		nll := func(p, g []float64) float64 {
 			a, da := expShapeTerm(p[0], s)
 			phi := math.Log(level-u) - math.Log(a)
@@ -124,21 +136,26 @@ func (f GPDFit) ProfileGPD(T float64, peaks []float64, limit float64) (lo, hi fl
 			var gg [2]float64
 			v := gpdNegLogLik(q, gg[:], y)
 			g[0] = gg[1] - gg[0]*da/a
+			if haveLast = !math.IsInf(v, 1); haveLast {
+				lastAt, lastSlope = p[0], gg[0]/(level-u)
+			}
 			return v
 		}
 		// Too negative a shape puts data outside the bounded support; move it up.
-		for k := 0; k < 40 && math.IsInf(nll(x0, nil), 1); k++ {
+		v0 := nll(x0, nil)
+		for k := 0; k < 40 && math.IsInf(v0, 1); k++ {
 			x0[0] += 0.05
+			v0 = nll(x0, nil)
 		}
-		if math.IsInf(nll(x0, nil), 1) {
+		if math.IsInf(v0, 1) {
 			return math.Inf(1), math.NaN(), start, false
 		}
 		xo, v, conv, err := minimise(nll, x0, 1e-7*float64(len(y)))
-		// dnll/dlevel = dnll/dlog Scale / (x_T - u) at fixed Shape.
-		a, _ := expShapeTerm(xo[0], s)
-		var gg [2]float64
-		gpdNegLogLik([]float64{math.Log(level-u) - math.Log(a), xo[0]}, gg[:], y)
-		return v, gg[0] / (level - u), xo, conv && err == nil
+		if !haveLast || lastAt != xo[0] {
+			var g [1]float64
+			nll(xo, g[:])
+		}
+		return v, lastSlope, xo, conv && err == nil
 	}
 	step := math.NaN()
 	if _, l, h := f.ReturnLevel(T); h > l {
