@@ -111,5 +111,5 @@ func ladderFor(r *cellResult, c *cell) []extremes.ThresholdRow {
 	for i, q := range extremes.LadderQuantiles {
 		us[i] = percentileOf(r.sum, 100*q)
 	}
-	return extremes.ThresholdDiagnostics(c.col, extremes.LadderQuantiles, us)
+	return extremes.ThresholdDiagnostics(c.col, extremes.LadderQuantiles, us, r.ext.GPDFit)
 }

@@ -32,8 +32,11 @@ type ThresholdRow struct {
 // ThresholdDiagnostics evaluates each threshold (with its quantile label) on
 // the declustered storm peaks of c. Fields are NaN where there are too few
 // peaks (mean excess: fewer than 2; fit: fewer than 3, or a fit that did not
-// converge or has no covariance).
-func ThresholdDiagnostics(c *Collector, quantiles, thresholds []float64) []ThresholdRow {
+// converge or has no covariance). A known fit (Analyse's GPDFit of the same
+// collector) is used for the rung whose threshold it has and whose peak count
+// it matches instead of fitting the same excesses again: a GPD fit does not
+// depend on the rate it is given.
+func ThresholdDiagnostics(c *Collector, quantiles, thresholds []float64, known ...GPDFit) []ThresholdRow {
 	peaks := c.Peaks()
 	out := make([]ThresholdRow, 0, len(thresholds))
 	nan := math.NaN()
@@ -59,7 +62,8 @@ func ThresholdDiagnostics(c *Collector, quantiles, thresholds []float64) []Thres
 			r.MeanExcess, r.MeanExcessLo, r.MeanExcessHi = m, m-half, m+half
 		}
 		if r.N >= 3 {
-			if f, err := FitGPD(x, u, 1); err == nil && f.Converged && f.InfoOK {
+			f, err := reuseOrFitGPD(x, u, known)
+			if err == nil && f.Converged && f.InfoOK {
 				hs := z975 * f.StdErr[1]
 				r.Shape, r.ShapeLo, r.ShapeHi = f.Shape, f.Shape-hs, f.Shape+hs
 				ms := f.Scale - f.Shape*u
@@ -71,4 +75,15 @@ func ThresholdDiagnostics(c *Collector, quantiles, thresholds []float64) []Thres
 		out = append(out, r)
 	}
 	return out
+}
+
+// reuseOrFitGPD returns the known fit with threshold u and len(x) peaks, else
+// FitGPD(x, u, 1).
+func reuseOrFitGPD(x []float64, u float64, known []GPDFit) (GPDFit, error) {
+	for _, k := range known {
+		if k.Threshold == u && k.N == len(x) {
+			return k, nil
+		}
+	}
+	return FitGPD(x, u, 1)
 }

@@ -2,6 +2,7 @@ package extremes
 
 import (
 	"bufio"
+	"fmt"
 	"os"
 	"strconv"
 	"strings"
@@ -14,19 +15,7 @@ import (
 // in mrlplot, fpot fits at each threshold as in tcplot) on the rainfall
 // exceedances of Coles (2001), section 4.4.1, fed as storm peaks five days apart.
 func TestThresholdDiagnosticsAgainstEvd(t *testing.T) {
-	x := readColumn(t, "rain_exceedances.csv", 0)
-	c := NewCollector(CollectorConfig{})
-	h := 0.0
-	for i, v := range x {
-		for d := 0; d < 5; d++ {
-			s := 1.0
-			if d == 2 {
-				s = v
-			}
-			c.Add(2000+i/40, (i%40)/4+1, h, s, 8, 10) // 40 peaks a year: below MaxPeaksPerYear
-			h += 24
-		}
-	}
+	c := rainCollector(t)
 	fh, err := os.Open("../../testdata/extremes/evd_threshold_refs.csv")
 	if err != nil {
 		t.Fatal(err)
@@ -75,4 +64,52 @@ func TestThresholdDiagnosticsAgainstEvd(t *testing.T) {
 		}
 	}
 	t.Logf("u=50: shape %.4f [%.4f, %.4f] modified scale %.3f [%.3f, %.3f]", got[4].Shape, got[4].ShapeLo, got[4].ShapeHi, got[4].ModScale, got[4].ModScaleLo, got[4].ModScaleHi)
+}
+
+// rainCollector holds the rainfall exceedances of Coles (2001, section
+// 4.4.1) as storm peaks: each value the middle of five daily steps.
+func rainCollector(t *testing.T) *Collector {
+	x := readColumn(t, "rain_exceedances.csv", 0)
+	c := NewCollector(CollectorConfig{})
+	h := 0.0
+	for i, v := range x {
+		for d := 0; d < 5; d++ {
+			s := 1.0
+			if d == 2 {
+				s = v
+			}
+			c.Add(2000+i/40, (i%40)/4+1, h, s, 8, 10) // 40 peaks a year: below MaxPeaksPerYear
+			h += 24
+		}
+	}
+	return c
+}
+
+// A known fit of the same excesses (at another rate, as Analyse's) gives the
+// rung at its threshold exactly the row of a fresh fit, and it is the one
+// used there: a known fit with another shape changes that rung only.
+func TestThresholdDiagnosticsKnownFit(t *testing.T) {
+	c := rainCollector(t)
+	us, qs := []float64{30, 35, 40, 45}, []float64{0, 0, 0, 0}
+	var px []float64
+	for _, p := range c.Peaks() {
+		if p.Hm0 > 40 {
+			px = append(px, p.Hm0)
+		}
+	}
+	known, err := FitGPD(px, 40, 3.7)
+	if err != nil {
+		t.Fatal(err)
+	}
+	plain := ThresholdDiagnostics(c, qs, us)
+	with := ThresholdDiagnostics(c, qs, us, known)
+	if a, b := fmt.Sprintf("%v", plain), fmt.Sprintf("%v", with); a != b {
+		t.Errorf("with the known fit\n%s\nwithout\n%s", b, a)
+	}
+	known.Shape += 0.1
+	for i, r := range ThresholdDiagnostics(c, qs, us, known) {
+		if same := fmt.Sprintf("%v", r) == fmt.Sprintf("%v", plain[i]); same == (us[i] == 40) {
+			t.Errorf("u=%g: row with an altered known fit %v, fresh %v", us[i], r, plain[i])
+		}
+	}
 }
