@@ -349,7 +349,8 @@ func ConditionalRows(cells []Cell, h Hist) []Row {
 		}
 		m := a.s1 / wf
 		v := math.Max(a.s2/wf-m*m-a.sh/wf, 1e-6)
-		nll := func(p, grad []float64) float64 { return normalBinnedNLL(p, grad, a.bins, a.w) }
+		gd := newGrouped(a.bins)
+		nll := func(p, grad []float64) float64 { return normalBinnedNLL(p, grad, gd, a.w) }
 		min := minimiseGrad
 		if len(a.bins) < 3 {
 			// With its time in one or two Te bins the grouped likelihood
@@ -371,6 +372,35 @@ func ConditionalRows(cells []Cell, h Hist) []Row {
 // bin is one class of grouped data: [lo, hi) (either end may be infinite) with weight w.
 type bin struct{ lo, hi, w float64 }
 
+// grouped is one row's classes with their edges listed once: class k is
+// [edges[lo[k]], edges[hi[k]]) with weight w[k]. cdf, phi and zphi are
+// scratch per edge (adjacent classes share an edge, whose normal CDF and
+// density are then computed once per evaluation).
+type grouped struct {
+	edges, w, cdf, phi, zphi []float64
+	lo, hi                   []int
+}
+
+func newGrouped(bins []bin) *grouped {
+	g := &grouped{}
+	idx := map[float64]int{}
+	edge := func(t float64) int {
+		k, ok := idx[t]
+		if !ok {
+			k = len(g.edges)
+			idx[t] = k
+			g.edges = append(g.edges, t)
+		}
+		return k
+	}
+	for _, b := range bins {
+		g.lo, g.hi, g.w = append(g.lo, edge(b.lo)), append(g.hi, edge(b.hi)), append(g.w, b.w)
+	}
+	n := len(g.edges)
+	g.cdf, g.phi, g.zphi = make([]float64, n), make([]float64, n), make([]float64, n)
+	return g
+}
+
 // normalBinnedNLL is the objective of ConditionalRows' grouped fit of a
 // normal law in p = (m, log s): the negative grouped-data log-likelihood per
 // unit weight,
@@ -383,28 +413,28 @@ type bin struct{ lo, hi, w float64 }
 //	dP/dm = -(phi(z_hi) - phi(z_lo))/s,  dP/dlog s = -(z_hi phi(z_hi) - z_lo phi(z_lo)).
 //
 // +Inf where a bin has no probability.
-func normalBinnedNLL(p, grad []float64, bins []bin, W float64) float64 {
+func normalBinnedNLL(p, grad []float64, g *grouped, W float64) float64 {
 	s := math.Exp(p[1])
-	var l, gm, gs float64
-	dens := func(t float64) (phi, zphi float64) {
-		if math.IsInf(t, 0) {
-			return 0, 0
+	for k, t := range g.edges {
+		g.cdf[k] = distuv.UnitNormal.CDF((t - p[0]) / s)
+		g.phi[k], g.zphi[k] = 0, 0
+		if grad != nil && !math.IsInf(t, 0) {
+			z := (t - p[0]) / s
+			g.phi[k] = math.Exp(-0.5*z*z) / math.Sqrt(2*math.Pi)
+			g.zphi[k] = z * g.phi[k]
 		}
-		z := (t - p[0]) / s
-		phi = math.Exp(-0.5*z*z) / math.Sqrt(2*math.Pi)
-		return phi, z * phi
 	}
-	for _, b := range bins {
-		pr := distuv.UnitNormal.CDF((b.hi-p[0])/s) - distuv.UnitNormal.CDF((b.lo-p[0])/s)
+	var l, gm, gs float64
+	for k, w := range g.w {
+		a, b := g.lo[k], g.hi[k]
+		pr := g.cdf[b] - g.cdf[a]
 		if !(pr > 0) {
 			return math.Inf(1)
 		}
-		l -= b.w * math.Log(pr)
+		l -= w * math.Log(pr)
 		if grad != nil {
-			ph, zph := dens(b.hi)
-			pl, zpl := dens(b.lo)
-			gm += b.w * (ph - pl) / s / pr
-			gs += b.w * (zph - zpl) / pr
+			gm += w * (g.phi[b] - g.phi[a]) / s / pr
+			gs += w * (g.zphi[b] - g.zphi[a]) / pr
 		}
 	}
 	if grad != nil {

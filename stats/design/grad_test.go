@@ -62,8 +62,9 @@ func TestObjectiveGradients(t *testing.T) {
 		checkGrad(t, "weibullBinnedNLL", wb, x)
 	}
 	bins := []bin{{math.Inf(-1), math.Log(4), 3}, {math.Log(4), math.Log(5), 20}, {math.Log(5), math.Log(6), 41}, {math.Log(6), math.Inf(1), 9}}
+	gd := newGrouped(bins)
 	for _, x := range [][]float64{{1.6, math.Log(0.15)}, {1.7, math.Log(0.3)}} {
-		checkGrad(t, "normalBinnedNLL", func(p, g []float64) float64 { return normalBinnedNLL(p, g, bins, 73) }, x)
+		checkGrad(t, "normalBinnedNLL", func(p, g []float64) float64 { return normalBinnedNLL(p, g, gd, 73) }, x)
 	}
 	rows := ConditionalRows(cells, h)
 	var wt float64
