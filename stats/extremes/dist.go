@@ -43,6 +43,19 @@ func boxLog(xi, y float64) (L, dL float64, ok bool) {
 	return L, dL, true
 }
 
+// boxL is the L of boxLog alone (the same operations, without dL/dxi), for
+// the likelihoods evaluated without a gradient.
+func boxL(xi, y float64) (L float64, ok bool) {
+	u := xi * y
+	if !(u > -1) {
+		return math.NaN(), false
+	}
+	if math.Abs(u) < smallShape {
+		return y * (1 + u*(-0.5+u*(1.0/3-u*0.25))), true
+	}
+	return math.Log1p(u) / xi, true
+}
+
 // CDF returns G(z) (Coles 2001, eq. 3.2).
 func (g GEV) CDF(z float64) float64 {
 	L, _, ok := boxLog(g.Shape, (z-g.Loc)/g.Scale)

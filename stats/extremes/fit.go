@@ -64,6 +64,18 @@ func gevNegLogLik(x, grad, z []float64) float64 {
 		return math.Inf(1)
 	}
 	sigma := math.Exp(phi)
+	if grad == nil {
+		// The value alone, by the same operations (no derivatives).
+		var l float64
+		for _, zi := range z {
+			L, ok := boxL(xi, (zi-mu)/sigma)
+			if !ok {
+				return math.Inf(1)
+			}
+			l += -phi - (1+xi)*L - math.Exp(-L)
+		}
+		return -l
+	}
 	var l, gmu, gphi, gxi float64
 	for _, zi := range z {
 		y := (zi - mu) / sigma
@@ -97,6 +109,18 @@ func gpdNegLogLik(x, grad, y []float64) float64 {
 		return math.Inf(1)
 	}
 	sigma := math.Exp(phi)
+	if grad == nil {
+		// The value alone, by the same operations (no derivatives).
+		var l float64
+		for _, yi := range y {
+			L, ok := boxL(xi, yi/sigma)
+			if !ok {
+				return math.Inf(1)
+			}
+			l += -phi - (1+xi)*L
+		}
+		return -l
+	}
 	var l, gphi, gxi float64
 	for _, yi := range y {
 		v := yi / sigma

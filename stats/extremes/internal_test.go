@@ -119,3 +119,24 @@ func TestNoSpread(t *testing.T) {
 		t.Errorf("level of equal maxima published (flags %v)", f.Names())
 	}
 }
+
+// The likelihoods evaluated without a gradient (the Nelder-Mead path) give
+// bit for bit the value of the evaluation with one, near the Gumbel limit,
+// away from it and outside the support (Port Pirie maxima, Coles 2001).
+func TestNegLogLikWithoutGradient(t *testing.T) {
+	z := readColumn(t, "portpirie.csv", 1)
+	for _, x := range [][]float64{{3.87, math.Log(0.2), -0.05}, {3.9, math.Log(0.25), 1e-6}, {3.8, math.Log(0.1), 0.4}, {4.5, math.Log(0.05), -0.8}} {
+		g := make([]float64, 3)
+		if a, b := gevNegLogLik(x, nil, z), gevNegLogLik(x, g, z); a != b && !(math.IsInf(a, 1) && math.IsInf(b, 1)) {
+			t.Errorf("GEV nll at %v: %v without the gradient, %v with it", x, a, b)
+		}
+		y := make([]float64, len(z))
+		for i, v := range z {
+			y[i] = v - 3.5
+		}
+		p := []float64{x[1] + 1, x[2]}
+		if a, b := gpdNegLogLik(p, nil, y), gpdNegLogLik(p, g[:2], y); a != b && !(math.IsInf(a, 1) && math.IsInf(b, 1)) {
+			t.Errorf("GPD nll at %v: %v without the gradient, %v with it", p, a, b)
+		}
+	}
+}
