@@ -124,10 +124,12 @@ func (vi *VarInfo) unpack(raw float64) float64 {
 		}
 	}
 	x := (raw*vi.Scale + vi.Offset) * vi.Factor
-	if (vi.Role == Dir || vi.Role == DirPeak) && !(x >= -360 && x <= 720) {
-		// A direction more than a turn outside 0-360 degrees is not a
-		// direction that was merely stored unwrapped; treat it as missing.
-		return math.NaN()
+	if (vi.Role == Dir || vi.Role == DirPeak) && !(x >= -360 && x <= 720) && x == x {
+		// A direction more than a turn outside 0-360 degrees (or infinite)
+		// is not a direction that was merely stored unwrapped: a value
+		// present but unusable, passed on as +Inf so that the state counts
+		// it (climate.ScreenStep) instead of taking it for a missing one.
+		return math.Inf(1)
 	}
 	return x
 }

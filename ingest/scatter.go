@@ -4,13 +4,15 @@ import "math"
 
 // cook unpacks one raw stored value (VarInfo.unpack) and, for direction
 // roles, converts "to" to "from" and wraps into [0, 360); ok is false for a
-// missing value. It is the per-value work of Block.Cook.
+// missing value. An infinite direction is passed on as it is (wrapping
+// would make it NaN, a missing value), so that the state counts it as
+// present but unusable. It is the per-value work of Block.Cook.
 func (vi *VarInfo) cook(raw float64, dirRole bool) (x float64, ok bool) {
 	x = vi.unpack(raw)
 	if x != x {
 		return x, false
 	}
-	if dirRole {
+	if dirRole && x-x == 0 {
 		if vi.DirTo {
 			x += 180
 		}

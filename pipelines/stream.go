@@ -145,7 +145,8 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 					j = nan // a step whose depth is missing or <= 0 (dry) has no power
 				}
 			}
-			c.clim.AddAt(&st.ct, j, hm0, te, tp, dir)
+			// screened: unusable values counted and left out, here as in the state
+			j, hm0, te, tp, dir = c.clim.AddAt(&st.ct, j, hm0, te, tp, dir)
 			if sectorJ != nil && j == j { // j is valid only after a valid Params
 				c.kern.SectorPowers(e.sectors, sectorJ)
 				c.clim.AddDirectionalPower(&st.ct, sectorJ, dir)
@@ -213,8 +214,8 @@ func (e *engine) feedBulk(b *ingest.Block, times []stepTime, cells []*cell, lo, 
 			if dirs != nil {
 				dir = dirs[i]
 			}
-			hm0, te, j := hm0s[i], tev[t*w+k], jv[t*w+k]
-			c.clim.AddAt(&st.ct, j, hm0, te, tp, dir)
+			// screened: unusable values counted and left out, here as in the state
+			j, hm0, te, tp, dir := c.clim.AddAt(&st.ct, jv[t*w+k], hm0s[i], tev[t*w+k], tp, dir)
 			c.clim.AddDirection(&st.ct, j, dir)
 			c.col.Add(st.year, st.month, st.hours, hm0, te, tp)
 		}

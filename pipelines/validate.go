@@ -15,6 +15,7 @@ import (
 	"swellgrid/export"
 	"swellgrid/export/rundir"
 	"swellgrid/ingest"
+	"swellgrid/stats/climate"
 	"swellgrid/stats/seastate"
 	"swellgrid/stats/validate"
 )
@@ -309,6 +310,12 @@ type validator struct {
 // cellSeries are a cell's Hm0, Te, Tp and direction at every step.
 type cellSeries struct{ hm0, te, tp, dir []float64 }
 
+// screen leaves out the unusable values of step as the run's state does
+// (climate.ScreenStep), so that the hindcast compared is the atlas's.
+func (s *cellSeries) screen(step int) {
+	_, s.hm0[step], s.te[step], s.tp[step], s.dir[step], _ = climate.ScreenStep(math.NaN(), s.hm0[step], s.te[step], s.tp[step], s.dir[step])
+}
+
 // stationPlace is a station on the grid: the cells its values come from.
 type stationPlace struct {
 	st      *ingest.Station
@@ -459,6 +466,7 @@ func (v *validator) readCells(ctx context.Context, places []*stationPlace) error
 						if p.Valid {
 							s.hm0[step], s.te[step], s.tp[step], s.dir[step] = p.Hm0, p.Te, p.Tp, p.MeanDirDeg
 						}
+						s.screen(step)
 						continue
 					}
 					if x := b.Bulk[ingest.Hm0]; x != nil {
@@ -477,6 +485,7 @@ func (v *validator) readCells(ctx context.Context, places []*stationPlace) error
 					} else if x := b.Bulk[ingest.DirPeak]; x != nil {
 						s.dir[step] = x[i]
 					}
+					s.screen(step)
 				}
 			}
 		}

@@ -245,16 +245,53 @@ func TestCalendarsMonthLengths(t *testing.T) {
 	}
 }
 
-// TestRejectedAndInvalid: bad steps are counted, not silently used.
+// TestRejectedAndInvalid: bad steps are counted, not silently used. The
+// power of a step with an unusable Hm0 is left out with it, not counted
+// again (ScreenStep); an unusable J with a usable Hm0 and Te is counted.
 func TestRejectedAndInvalid(t *testing.T) {
 	cfg := validated(t, DefaultConfig())
 	s := NewCellState(cfg)
 	s.Add(&Step{Year: 2000, Month: 0, Hours: 0, DtHours: 1, J: 1, Hm0: 1, Te: 5, Tp: 6, DirDeg: 0})
 	s.Add(&Step{Year: 2000, Month: 1, Hours: 1, DtHours: 0, J: 1, Hm0: 1, Te: 5, Tp: 6, DirDeg: 0})
 	s.Add(&Step{Year: 2000, Month: 1, Hours: 2, DtHours: 1, J: -5, Hm0: math.Inf(1), Te: 5, Tp: math.NaN(), DirDeg: 0})
+	s.Add(&Step{Year: 2000, Month: 1, Hours: 3, DtHours: 1, J: -5, Hm0: 1, Te: 5, Tp: math.NaN(), DirDeg: 0})
+	s.Add(&Step{Year: 2000, Month: 1, Hours: 4, DtHours: 1, J: 3e4, Hm0: 70, Te: 5, Tp: math.NaN(), DirDeg: 0})
 	sum := s.Summary()
-	if sum.RejectedSteps != 2 || sum.InvalidValues != 2 || sum.Steps != 3 || !math.IsNaN(sum.PowerMeanKWm) {
-		t.Errorf("rejected %d invalid %d steps %d mean %g; want 2, 2, 3, NaN", sum.RejectedSteps, sum.InvalidValues, sum.Steps, sum.PowerMeanKWm)
+	if sum.RejectedSteps != 2 || sum.InvalidValues != 3 || sum.Steps != 5 || !math.IsNaN(sum.PowerMeanKWm) {
+		t.Errorf("rejected %d invalid %d steps %d mean %g; want 2, 3, 5, NaN", sum.RejectedSteps, sum.InvalidValues, sum.Steps, sum.PowerMeanKWm)
+	}
+}
+
+// TestScreenStep: each value's rule, and J left out with an unusable Hm0 or
+// Te (the bounds of fixed.go).
+func TestScreenStep(t *testing.T) {
+	inf, nan := math.Inf(1), math.NaN()
+	for _, c := range []struct {
+		in   [5]float64 // J, Hm0, Te, Tp, direction
+		keep [5]bool    // which come back unchanged (the others NaN)
+		bad  int
+	}{
+		{[5]float64{1e4, 2, 8, 9, 270}, [5]bool{true, true, true, true, true}, 0},
+		{[5]float64{nan, nan, nan, nan, nan}, [5]bool{}, 0},
+		{[5]float64{1e4, -0.1, 8, 9, 270}, [5]bool{false, false, true, true, true}, 1},
+		{[5]float64{1e4, 64, 8, 9, 270}, [5]bool{false, false, true, true, true}, 1},
+		{[5]float64{1e4, 2, inf, 9, 270}, [5]bool{false, true, false, true, true}, 1},
+		{[5]float64{1e4, 2, 8, -1, -inf}, [5]bool{true, true, true, false, false}, 2},
+		{[5]float64{1 << 26, 2, 8, 9, 1e9}, [5]bool{false, true, true, true, false}, 2},
+		{[5]float64{0, 0, 0, 0, -359}, [5]bool{true, true, true, true, true}, 0},
+	} {
+		var out [5]float64
+		var bad int
+		out[0], out[1], out[2], out[3], out[4], bad = ScreenStep(c.in[0], c.in[1], c.in[2], c.in[3], c.in[4])
+		if bad != c.bad {
+			t.Errorf("%v: %d unusable, want %d", c.in, bad, c.bad)
+		}
+		for k := range out {
+			same := out[k] == c.in[k]
+			if same != c.keep[k] || (!c.keep[k] && !math.IsNaN(out[k])) {
+				t.Errorf("%v: value %d -> %v, want kept %v (else NaN)", c.in, k, out[k], c.keep[k])
+			}
+		}
 	}
 }
 

@@ -269,22 +269,70 @@ func (s *CellState) Add(st *Step) {
 	s.AddAt(&t, st.J, st.Hm0, st.Te, st.Tp, st.DirDeg)
 }
 
+// ScreenStep applies the rule for values present but unusable to one
+// step's J (W/m), Hm0 (m), Te, Tp (s) and direction (degrees), before any
+// statistic sees them. A present (not NaN) value is unusable when
+//
+//	Hm0, Te, Tp:  v < 0, v >= 64 or infinite (64 m and 64 s: beyond any sea
+//	              state, and the bounds of the state's fixed point, fixed.go);
+//	direction:    infinite or |d| >= 1e9;
+//	J:            J < 0 or J >= 2^26 W/m (fixed.go),
+//
+// and it is returned as NaN and counted in invalid. J is also NaN, but not
+// counted, when Hm0 or Te is present and unusable: the power of a step is
+// left out with the height or period it comes from. Missing values (NaN)
+// stay missing and are not counted. The bounds are limits of what a value
+// can be, not quality-control thresholds (common practice: the physical
+// definitions of the quantities).
+func ScreenStep(j, h, te, tp, d float64) (j2, h2, te2, tp2, d2 float64, invalid int) {
+	nan := math.NaN()
+	bad := false
+	if !(h >= 0 && h < maxH) && h == h {
+		h, bad = nan, true
+		invalid++
+	}
+	if !(te >= 0 && te < maxT) && te == te {
+		te, bad = nan, true
+		invalid++
+	}
+	if !(tp >= 0 && tp < maxT) && tp == tp {
+		tp = nan
+		invalid++
+	}
+	if !(d-d == 0 && math.Abs(d) < 1e9) && d == d {
+		d = nan
+		invalid++
+	}
+	if bad {
+		j = nan
+	} else if !(j >= 0 && j < maxJ) && j == j {
+		j = nan
+		invalid++
+	}
+	return j, h, te, tp, d, invalid
+}
+
 // AddAt feeds one step whose time fields were prepared by PrepareTime (shared
 // by all cells of a time step), with J (W/m), Hm0 (m), Te, Tp (s) and the
-// direction (degrees); exactly as Add.
-func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) {
+// direction (degrees); exactly as Add. The values are screened first
+// (ScreenStep: unusable values counted and left out), and AddAt returns
+// them as screened, for the step's other statistics (directions, storm
+// peaks), which must leave out what the state left out.
+func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) (j2, h2, te2, tp2, d2 float64) {
+	j, h, te, tp, d, bad := ScreenStep(j, h, te, tp, d)
 	s.nSteps++
 	if t.bad {
 		s.reject()
-		return
+		return j, h, te, tp, d
 	}
 	cm := int(t.cm)
 	wi := t.w
 	yi := s.ymIndex(t.Year, cm)
 	if yi < 0 {
 		s.reject()
-		return
+		return j, h, te, tp, d
 	}
+	s.nInvalid += uint64(bad)
 	start := t.start
 	contiguous := s.hasAcc && !s.endBroken && s.lastEnd == start
 	if s.hasAcc {
@@ -324,8 +372,6 @@ func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) {
 		rec.wJ += w32
 		rec.sJ += wi * qj
 		s.histJ[powerBin(j/1000, lay.powerBits, lay.nPowerHist)] += w32
-	} else if j == j {
-		s.nInvalid++
 	}
 
 	// Hm0
@@ -349,8 +395,6 @@ func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) {
 			b = lay.nHm0Hist
 		}
 		s.histH[b] += w32
-	} else if h == h {
-		s.nInvalid++
 	}
 
 	// Te, Tp
@@ -359,14 +403,10 @@ func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) {
 		teOK = true
 		s.wTe += wi
 		s.sTe += wi * uint64(int64(te*qT+0.5))
-	} else if te == te {
-		s.nInvalid++
 	}
 	if tp >= 0 && tp < maxT {
 		s.wTp += wi
 		s.sTp += wi * uint64(int64(tp*qT+0.5))
-	} else if tp == tp {
-		s.nInvalid++
 	}
 
 	// direction
@@ -375,8 +415,6 @@ func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) {
 		s.wDir += wi
 		s.sSin += int64(wi) * int64(dirTable[k].sin)
 		s.sCos += int64(wi) * int64(dirTable[k].cos)
-	} else if d == d {
-		s.nInvalid++
 	}
 
 	// joint occurrence
@@ -433,6 +471,7 @@ func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) {
 			}
 		}
 	}
+	return j, h, te, tp, d
 }
 
 // powerBin returns the power histogram bin of v (kW/m, >= 0); see
