@@ -19,7 +19,7 @@ import sys
 import tempfile
 
 FILE = "pipelines/schema.go"
-TESTS = "TestE2EColumnsAgainstNumpy|TestSpectralColumnsAgainstNumpy"
+TESTS = "TestE2EColumnsAgainstNumpy|TestSpectralColumnsAgainstNumpy|TestInvalidValuesAgainstNumpy"
 
 # (name, [(old, new), ...])
 MUTATIONS = [
@@ -118,6 +118,12 @@ MUTATIONS = [
      [("pipelines/stream.go", "p.J, p.Hm0, p.Te, p.Tp, p.MeanDirDeg", "p.J, p.Hm0, p.Te, p.TpDiscrete, p.MeanDirDeg")]),
     ("directional maximum only at the arc ends (spectra)",
      [("stats/seastate/kernel.go", "if cs*d-ss*c > 0 && c*se-d*ce > 0 {", "if false && cs*d-ss*c > 0 && c*se-d*ce > 0 {")]),
+    # unusable values (TestInvalidValuesAgainstNumpy)
+    ("storm peaks fed the unscreened Hm0 (a 70 m height as an annual maximum)",
+     [("pipelines/stream.go", "j, hm0, te, tp, dir := c.clim.AddAt(&st.ct, jv[t*w+k], hm0s[i], tev[t*w+k], tp, dir)",
+       "j, _, te, tp, dir := c.clim.AddAt(&st.ct, jv[t*w+k], hm0s[i], tev[t*w+k], tp, dir)\n\t\t\thm0 := hm0s[i]")]),
+    ("power kept when Te is unusable",
+     [("stats/climate/state.go", "\tif bad {\n\t\tj = nan\n\t} else if", "\tif bad && false {\n\t\tj = nan\n\t} else if")]),
 ]
 
 
