@@ -122,7 +122,7 @@ MUTATIONS = [
     ("storm peaks fed the unscreened Hm0 (a 70 m height as an annual maximum)",
      [("pipelines/stream.go", "j, hm0, te, tp, dir := c.clim.AddAt(&st.ct, jv[t*w+k], hm0s[i], tev[t*w+k], tp, dir)",
        "j, _, te, tp, dir := c.clim.AddAt(&st.ct, jv[t*w+k], hm0s[i], tev[t*w+k], tp, dir)\n\t\t\thm0 := hm0s[i]")]),
-    ("power kept when Te is unusable",
+    ("power kept when Hm0 or Te is unusable",
      [("stats/climate/state.go", "\tif bad {\n\t\tj = nan\n\t} else if", "\tif bad && false {\n\t\tj = nan\n\t} else if")]),
 ]
 
