@@ -139,7 +139,7 @@ var columnProofs = map[string]proof{
 	"extremes.parquet:hm0_hi_m":           byE2E,
 	"extremes.parquet:hm0_delta_lo_m":     byE2E,
 	"extremes.parquet:hm0_delta_hi_m":     byE2E,
-	"extremes.parquet:hm0_boot_lo_m":      by("TestE2EColumnsAgainstNumpy", "null when no bootstrap is asked; the bootstrap itself against scipy's parametric bootstrap of the Port Pirie GEV and the rainfall GPD (stats/extremes TestBootstrapAgainstScipy, within the Monte Carlo band); the wiring of asked values into this column is not compared end to end"),
+	"extremes.parquet:hm0_boot_lo_m":      by("TestE2EColumnsAgainstNumpy", "null when no bootstrap is asked; the bootstrap itself against scipy's parametric bootstrap of the Port Pirie GEV and the rainfall GPD (stats/extremes TestBootstrapAgainstScipy, within the Monte Carlo band); asked in a run, against scipy's bootstrap of a cell's GEV by TestBootstrapColumnsAgainstScipy (testdata/qc)"),
 	"extremes.parquet:hm0_boot_hi_m":      by("TestE2EColumnsAgainstNumpy", "as hm0_boot_lo_m"),
 	"extremes.parquet:te_s":               byE2E,
 	"extremes.parquet:tp_s":               byE2E,

@@ -2,9 +2,11 @@ package pipelines
 
 import (
 	"encoding/json"
+	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"reflect"
 	"testing"
 
 	"swellgrid/export/parquetread"
@@ -16,7 +18,18 @@ import (
 // testdata/qc/qc_bulk.nc, which testdata/qc/make_fixture.py writes with
 // python3-netcdf4 (invented, synthetic data with invalid values injected).
 type qcRef struct {
-	Cells []map[string]any `json:"cells"`
+	Cells     []map[string]any `json:"cells"`
+	Bootstrap struct {
+		B      int `json:"B"`
+		Levels []struct {
+			Cell   int64   `json:"cell_id"`
+			Period float64 `json:"return_period_y"`
+			Ends   []struct {
+				Value float64    `json:"value"`
+				Band  [2]float64 `json:"band"`
+			} `json:"ends"`
+		} `json:"levels"`
+	} `json:"bootstrap"`
 }
 
 // qcTolerances: the reference's columns; the state's fixed-point quanta and
@@ -65,6 +78,45 @@ func TestInvalidValuesAgainstNumpy(t *testing.T) {
 	}
 }
 
+// TestBootstrapColumnsAgainstScipy runs the fixture with extremes.bootstrap
+// and compares extremes.parquet's hm0_boot_lo_m and hm0_boot_hi_m of cell
+// 0's GEV levels with scipy's parametric bootstrap of the same size (two
+// Monte Carlo estimates: each end within sqrt 2 x the reference's 99.9 %
+// band half-width, as stats/extremes TestBootstrapAgainstScipy), so that
+// the asked interval reaches its columns, lower in lo and upper in hi.
+func TestBootstrapColumnsAgainstScipy(t *testing.T) {
+	var ref qcRef
+	readRef(t, "../testdata/qc/reference.json", &ref)
+	out := t.TempDir()
+	s := testSpec(t, "testdata/qc/qc_bulk.nc", out)
+	s.Extremes.Bootstrap, s.Extremes.Seed = ref.Bootstrap.B, 7
+	mustRun(t, s)
+	e, err := parquetread.Columns(filepath.Join(out, "extremes.parquet"), "cell_id", "method", "return_period_y", "hm0_boot_lo_m", "hm0_boot_hi_m")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, w := range ref.Bootstrap.Levels {
+		found := false
+		for i := range e["cell_id"] {
+			if e["cell_id"][i].(int64) != w.Cell || e["method"][i].(string) != "gev_annual_maxima" || asFloat(e["return_period_y"][i]) != w.Period {
+				continue
+			}
+			found = true
+			for k, c := range []string{"hm0_boot_lo_m", "hm0_boot_hi_m"} {
+				got, end := asFloat(e[c][i]), w.Ends[k]
+				half := math.Sqrt2 * math.Max(end.Value-end.Band[0], end.Band[1]-end.Value)
+				t.Logf("cell %d T=%g %s = %.4f, scipy %.4f +- %.4f", w.Cell, w.Period, c, got, end.Value, half)
+				if !(math.Abs(got-end.Value) <= half) {
+					t.Errorf("cell %d T=%g: %s = %.5f, scipy's bootstrap %.5f +- %.5f", w.Cell, w.Period, c, got, end.Value, half)
+				}
+			}
+		}
+		if !found {
+			t.Errorf("extremes.parquet has no GEV row for cell %d, T = %g", w.Cell, w.Period)
+		}
+	}
+}
+
 // TestInvalidValuesReferenceReproduced reruns testdata/qc/reference.py
 // (Debian's python3 with numpy, scipy and netCDF4; required under CI) and
 // checks that it gives the committed reference.json.
@@ -83,6 +135,9 @@ func TestInvalidValuesReferenceReproduced(t *testing.T) {
 		if err := json.Unmarshal(data, v); err != nil {
 			t.Fatal(err)
 		}
+	}
+	if !reflect.DeepEqual(a.Bootstrap, b.Bootstrap) {
+		t.Errorf("bootstrap reference: committed %+v, recomputed %+v", a.Bootstrap, b.Bootstrap)
 	}
 	if len(a.Cells) != len(b.Cells) {
 		t.Fatalf("%d cells committed, %d recomputed", len(a.Cells), len(b.Cells))

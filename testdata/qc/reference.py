@@ -16,7 +16,12 @@ Hm0 or Te is unusable has no wave power either. Then per cell:
     scipy.optimize.brentq; rho 1025 kg/m3, g 9.81 m/s2), coverage the share
     of the steps with such a J;
   gev_loc_m, gev_scale_m, gev_shape: scipy.stats.genextreme.fit of the
-    calendar-year maxima of the usable Hm0 (shape with the Coles sign, -c).
+    calendar-year maxima of the usable Hm0 (shape with the Coles sign, -c);
+and for cell 0 the 95 % parametric-bootstrap interval of the 5-, 10- and
+25-year levels (extremes.bootstrap): B samples of the fitted GEV drawn with
+numpy's default_rng, refitted with genextreme.fit, ends by numpy.percentile
+("inverted_cdf"), each with the 99.9 % Monte Carlo band of its order
+statistics (as testdata/extremes/make_bootstrap_refs.py).
 Run: /usr/bin/python3 testdata/qc/reference.py [OUT]  (default
 testdata/qc/reference.json)
 """
@@ -33,6 +38,7 @@ from scipy import optimize, stats
 HERE = os.path.dirname(os.path.abspath(__file__))
 RHO, G = 1025.0, 9.81
 LIMIT = 64.0
+BOOT_B, BOOT_PERIODS = 1000, [5.0, 10.0, 25.0]
 
 
 def group_velocity(f, h):
@@ -42,6 +48,27 @@ def group_velocity(f, h):
     k = kh / h
     n = 0.5 * (1 + 2 * kh / math.sinh(2 * kh)) if kh < 300 else 0.5
     return n * w / k
+
+
+def bootstrap(mx, c, loc, scale):
+    rng = np.random.default_rng(20261202)
+    samples = [[] for _ in BOOT_PERIODS]
+    for _ in range(BOOT_B):
+        y = stats.genextreme.rvs(c, loc=loc, scale=scale, size=len(mx), random_state=rng)
+        bc, bl, bs = stats.genextreme.fit(y, c, loc=loc, scale=scale)
+        for i, T in enumerate(BOOT_PERIODS):
+            samples[i].append(stats.genextreme.ppf(1 - 1 / T, bc, loc=bl, scale=bs))
+    rows = []
+    for i, T in enumerate(BOOT_PERIODS):
+        s = np.sort(samples[i])
+        n = len(s)
+        ends = []
+        for p in (0.025, 0.975):
+            half = 3.29 * math.sqrt(n * p * (1 - p))
+            lo, hi = int(max(0, math.floor(n * p - half))), int(min(n - 1, math.ceil(n * p + half)))
+            ends.append({"value": float(np.percentile(s, 100 * p, method="inverted_cdf")), "band": [float(s[lo]), float(s[hi])]})
+        rows.append({"cell_id": 0, "return_period_y": T, "ends": ends})
+    return {"B": BOOT_B, "seed_note": "numpy default_rng(20261202); swellgrid's own seed differs", "levels": rows}
 
 
 def main():
@@ -66,6 +93,8 @@ def main():
         J = RHO * G * h[pw] ** 2 * cg / 16 / 1000  # kW/m
         mx = np.array([h[(years == y) & usable["hs"]].max() for y in range(2001, 2013)])
         cc, loc, scale = stats.genextreme.fit(mx)
+        if cid == 0:
+            boot = bootstrap(mx, cc, loc, scale)
         cells.append({
             "cell_id": cid, "invalid_values": invalid,
             "hm0_mean_m": float(h[usable["hs"]].mean()), "hm0_max_m": float(h[usable["hs"]].max()),
@@ -74,7 +103,7 @@ def main():
             "gev_loc_m": float(loc), "gev_scale_m": float(scale), "gev_shape": float(-cc),
         })
     ref = {"source": "testdata/qc/reference.py", "numpy": np.__version__, "scipy": scipy.__version__,
-           "netCDF4": netCDF4.__version__, "cells": cells}
+           "netCDF4": netCDF4.__version__, "cells": cells, "bootstrap": boot}
     with open(out, "w") as f:
         json.dump(ref, f, indent=1, sort_keys=True)
         f.write("\n")
