@@ -19,7 +19,7 @@ import sys
 import tempfile
 
 FILE = "pipelines/schema.go"
-TESTS = "TestE2EColumnsAgainstNumpy|TestSpectralColumnsAgainstNumpy|TestInvalidValuesAgainstNumpy"
+TESTS = "TestE2EColumnsAgainstNumpy|TestSpectralColumnsAgainstNumpy|TestInvalidValuesAgainstNumpy|TestBootstrapColumnsAgainstScipy"
 
 # (name, [(old, new), ...])
 MUTATIONS = [
@@ -118,6 +118,10 @@ MUTATIONS = [
      [("pipelines/stream.go", "p.J, p.Hm0, p.Te, p.Tp, p.MeanDirDeg", "p.J, p.Hm0, p.Te, p.TpDiscrete, p.MeanDirDeg")]),
     ("directional maximum only at the arc ends (spectra)",
      [("stats/seastate/kernel.go", "if cs*d-ss*c > 0 && c*se-d*ce > 0 {", "if false && cs*d-ss*c > 0 && c*se-d*ce > 0 {")]),
+    ("bootstrap interval bounds swapped (extremes.parquet)",
+     [("func(x eRow) float64 { return x.v.l.BootLower }", "func(x eRow) float64 { return x.v.l.@@ }"),
+      ("func(x eRow) float64 { return x.v.l.BootUpper }", "func(x eRow) float64 { return x.v.l.BootLower }"),
+      ("return x.v.l.@@ }", "return x.v.l.BootUpper }")]),
     # unusable values (TestInvalidValuesAgainstNumpy)
     ("storm peaks fed the unscreened Hm0 (a 70 m height as an annual maximum)",
      [("pipelines/stream.go", "j, hm0, te, tp, dir := c.clim.AddAt(&st.ct, jv[t*w+k], hm0s[i], tev[t*w+k], tp, dir)",
