@@ -189,8 +189,10 @@ func deltaSD(f GEVFit, T float64) float64 {
 // side; step is about one standard error of the level). It solves
 // g(x) = D(x) - chi2Crit95 = 0 by Newton's method with the slope of the
 // profile, g'(x) = 2 dnll_p/dx (see profileFit), started from the
-// delta-method end level + z975 step (where a quadratic profile would cross)
-// and safeguarded by a bracket: once a point with g >= 0 is known, a Newton
+// delta-method end level + z975 step (where a quadratic profile would cross;
+// the step from there goes to the crossing of the cubic through the level
+// that matches the deviance and slope found there, see cubicCrossing) and
+// safeguarded by a bracket: once a point with g >= 0 is known, a Newton
 // step that leaves the bracket [last point with g < 0, first with g >= 0] is
 // replaced by a regula-falsi step (Illinois: the retained end's value halved
 // when it is kept twice; bisection when an end is not finite), and before
@@ -257,10 +259,17 @@ func profileEnd(inner profileFit, level, step, bound, nllMax float64, start []fl
 		if haveB && math.Abs(b-a) <= tol {
 			return 0.5 * (a + b)
 		}
-		// Newton's step from x.
+		// Newton's step from x; from the first point, the root of the
+		// cubic through the level (zero deviance and slope there) that
+		// matches this point's deviance and slope, when that model rises.
 		next := math.NaN()
 		if !math.IsInf(g, 0) && sgn*dg > 0 {
 			next = x - g/dg
+			if i == 0 {
+				if t, ok := cubicCrossing(x-level, g+chi2Crit95, dg); ok {
+					next = level + t
+				}
+			}
 		}
 		if haveB {
 			lo, hi := math.Min(a, b), math.Max(a, b)
@@ -289,4 +298,30 @@ func profileEnd(inner profileFit, level, step, bound, nllMax float64, start []fl
 		return math.Inf(1)
 	}
 	return bound
+}
+
+// cubicCrossing returns t with a t^2 + b t^3 = chi2Crit95 for the cubic
+// D(t) = a t^2 + b t^3 through D(h) = d, D'(h) = dd (a = (3d - dd h)/h^2,
+// b = (dd h - 2d)/h^3), on the side of h and within 4|h|, by Newton's method
+// on the cubic from h; ok = false when the cubic does not rise there.
+func cubicCrossing(h, d, dd float64) (float64, bool) {
+	a := (3*d - dd*h) / (h * h)
+	b := (dd*h - 2*d) / (h * h * h)
+	t := h
+	for k := 0; k < 30; k++ {
+		f := a*t*t + b*t*t*t - chi2Crit95
+		df := 2*a*t + 3*b*t*t
+		if !(df*h > 0) {
+			return 0, false
+		}
+		dt := f / df
+		t -= dt
+		if !(t*h > 0) || math.Abs(t) > 4*math.Abs(h) {
+			return 0, false
+		}
+		if math.Abs(dt) <= 1e-12*math.Abs(t) {
+			return t, true
+		}
+	}
+	return 0, false
 }

@@ -2,6 +2,7 @@ package extremes
 
 import (
 	"bufio"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -80,5 +81,30 @@ func TestProfileIntervalsAgainstEvd(t *testing.T) {
 		near(t, r.cas+" level", lv, r.level, tol)
 		near(t, r.cas+" profile lower", lo, r.lower, tol)
 		near(t, r.cas+" profile upper", hi, r.upp, tol)
+	}
+}
+
+// cubicCrossing recovers the crossing of chi2Crit95 by a known cubic from
+// its value and slope at one point; the roots are numpy.roots (Debian's
+// python3-numpy) of 0.3 t^3 + t^2 - 3.841458820694124 and of
+// -0.05 t^3 + 0.8 t^2 - 3.841458820694124 (the root on the side of h);
+// a quadratic gives z975 standard errors.
+func TestCubicCrossing(t *testing.T) {
+	for _, c := range []struct{ a, b, h, want float64 }{
+		{1, 0.3, 1, 1.6095270882401682},
+		{1, 0.3, 2.5, 1.6095270882401682},
+		{0.8, -0.05, 1.5, 2.374587991024917},
+		{0.8, -0.05, -1.5, -2.0624110557466233},
+		{1 / (0.7 * 0.7), 0, z975 * 0.7, z975 * 0.7},
+	} {
+		d, dd := c.a*c.h*c.h+c.b*c.h*c.h*c.h, 2*c.a*c.h+3*c.b*c.h*c.h
+		got, ok := cubicCrossing(c.h, d, dd)
+		if !ok || math.Abs(got-c.want) > 1e-10*math.Abs(c.want) {
+			t.Errorf("cubic %g t^2 + %g t^3 from h = %g: crossing %v (ok %v), want %v", c.a, c.b, c.h, got, ok, c.want)
+		}
+	}
+	// A profile that falls on that side has no crossing there.
+	if _, ok := cubicCrossing(1, 0.5, -0.2); ok {
+		t.Error("crossing found on a falling cubic")
 	}
 }
