@@ -118,6 +118,7 @@ func (f GPDFit) ProfileGPD(T float64, peaks []float64, limit float64) (lo, hi fl
 	}
 	s := math.Log(f.PeaksPerYear * T)
 	u := f.Threshold
+	curv := math.NaN() // curvature of the last inner fit, the first step of the next
 	inner := func(level float64, start []float64) (float64, float64, []float64, bool) {
 		if !(level > u) {
 			return math.Inf(1), math.NaN(), start, false
@@ -150,7 +151,13 @@ func (f GPDFit) ProfileGPD(T float64, peaks []float64, limit float64) (lo, hi fl
 		if math.IsInf(v0, 1) {
 			return math.Inf(1), math.NaN(), start, false
 		}
-		xo, v, conv, err := minimise(nll, x0, 1e-7*float64(len(y)))
+		tol := 1e-7 * float64(len(y))
+		xo, v, conv, err := []float64{0}, 0.0, false, error(nil)
+		if x1, v1, h1, ok := minimise1D(nll, x0[0], v0, tol, curv); ok {
+			xo[0], v, conv, curv = x1, v1, true, h1
+		} else {
+			xo, v, conv, err = minimise(nll, x0, tol)
+		}
 		if !haveLast || lastAt != xo[0] {
 			var g [1]float64
 			nll(xo, g[:])
@@ -324,4 +331,55 @@ func cubicCrossing(h, d, dd float64) (float64, bool) {
 		}
 	}
 	return 0, false
+}
+
+// minimise1D minimises f of one variable from x0 (where f is f0) to
+// |f'| < gradTol by safeguarded Newton steps with the secant curvature of
+// the last two points (Nocedal and Wright 2006, section 6.1 and 3.1: the
+// one-dimensional secant, i.e. BFGS, update with backtracking to the
+// Armijo condition, c1 = 1e-4); the first step uses curv, the curvature
+// found by the previous inner fit of a profile (NaN: a step of 0.01). It
+// returns the minimiser, f there and the last curvature; ok = false when it
+// does not converge within 50 steps, or meets a non-finite value it cannot
+// back away from (the caller then runs minimise).
+func minimise1D(f objective, x0, f0, gradTol, curv float64) (x, fx, h float64, ok bool) {
+	var g [1]float64
+	x, h = x0, curv
+	p := []float64{x0}
+	fx = f(p, g[:])
+	if fx != f0 || math.IsInf(fx, 0) || math.IsNaN(fx) {
+		return x0, f0, curv, false
+	}
+	gx := g[0]
+	for k := 0; k < 50; k++ {
+		if math.Abs(gx) < gradTol {
+			return x, fx, h, true
+		}
+		step := -math.Copysign(0.01, gx)
+		if h > 0 {
+			step = -gx / h
+		}
+		var xn, fn, gn float64
+		accepted := false
+		for b := 0; b < 40; b++ {
+			xn = x + step
+			p[0] = xn
+			g[0] = math.NaN()
+			fn = f(p, g[:])
+			gn = g[0]
+			if !math.IsInf(fn, 0) && !math.IsNaN(fn) && !math.IsNaN(gn) && fn <= fx+1e-4*gx*step {
+				accepted = true
+				break
+			}
+			step /= 2
+		}
+		if !accepted {
+			return x0, f0, curv, false
+		}
+		if dx := xn - x; dx != 0 && (gn-gx)/dx > 0 {
+			h = (gn - gx) / dx
+		}
+		x, fx, gx = xn, fn, gn
+	}
+	return x0, f0, curv, false
 }

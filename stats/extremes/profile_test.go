@@ -108,3 +108,25 @@ func TestCubicCrossing(t *testing.T) {
 		t.Error("crossing found on a falling cubic")
 	}
 }
+
+// minimise1D finds the minimum of exp(x) - 2x at ln 2 (elementary), from
+// either side and with or without a curvature to start from, also when f is
+// +Inf beyond x = 1.5 (the search backs away from it).
+func TestMinimise1D(t *testing.T) {
+	f := func(p, g []float64) float64 {
+		x := p[0]
+		if x > 1.5 {
+			return math.Inf(1)
+		}
+		if g != nil {
+			g[0] = math.Exp(x) - 2
+		}
+		return math.Exp(x) - 2*x
+	}
+	for _, c := range []struct{ x0, curv float64 }{{0, math.NaN()}, {1.4, math.NaN()}, {-3, 2}, {1.2, 0.01}} {
+		x, fx, h, ok := minimise1D(f, c.x0, f([]float64{c.x0}, nil), 1e-10, c.curv)
+		if !ok || math.Abs(x-math.Ln2) > 1e-9 || fx != f([]float64{x}, nil) || math.Abs(h-2) > 1e-3 {
+			t.Errorf("from %g (curvature %g): x %v f %v curvature %v ok %v; want ln 2, curvature 2", c.x0, c.curv, x, fx, h, ok)
+		}
+	}
+}
