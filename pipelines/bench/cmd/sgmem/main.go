@@ -24,7 +24,7 @@ func main() {
 	bin := flag.String("bin", "bin/swellgrid", "swellgrid executable")
 	md := flag.String("md", "", "write the table as Markdown here (and the figures as JSON beside it)")
 	work := flag.String("work", "", "scratch directory for the run directories (default: a temporary one)")
-	only := flag.String("only", "", "run only the cases whose name contains this")
+	only := flag.String("only", "", "run only the cases whose name contains one of these (comma-separated)")
 	months := flag.Int("grid200-months", 12, "record length of the 200 x 200 grid")
 	flag.Parse()
 	logf := func(f string, a ...any) { fmt.Fprintf(os.Stderr, f+"\n", a...) }
@@ -45,7 +45,7 @@ func main() {
 	}
 	var done []*bench.MemCase
 	for _, c := range bench.MemCases(bulk.Files, g200.Files, root, pipelines.ProcessOverhead) {
-		if *only != "" && !strings.Contains(c.Name, *only) {
+		if !selected(c.Name, *only) {
 			continue
 		}
 		bench.RunMemCase(*bin, c, os.Stderr)
@@ -62,6 +62,20 @@ func main() {
 			fail(err)
 		}
 	}
+}
+
+// selected reports whether the case name contains one of the comma-separated
+// parts of only (every case when only is empty).
+func selected(name, only string) bool {
+	if only == "" {
+		return true
+	}
+	for _, p := range strings.Split(only, ",") {
+		if p != "" && strings.Contains(name, p) {
+			return true
+		}
+	}
+	return false
 }
 
 func fail(err error) {
