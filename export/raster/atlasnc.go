@@ -59,7 +59,9 @@ func Write(r *rundir.Run) error {
 	if !r.Structured() && r.Mesh == nil {
 		return fmt.Errorf("raster: %s: the grid is a point set (%s); there is no raster to write, use cells.parquet or atlas.gpkg", r.Dir, r.Kind)
 	}
-	monthly, err := r.Table("monthly")
+	// the columns Climatology reads, not the whole table (a large grid's
+	// monthly.parquet has a row per cell and month)
+	monthly, err := r.Columns("monthly", "period", "cell_id", "month", "power_mean_kw_m", "hm0_mean_m")
 	if err != nil {
 		return err
 	}

@@ -37,7 +37,7 @@ func bearingPoint(c vg.Point, r vg.Length, deg float64) vg.Point {
 // directionsFigure draws the site's directional power rose from
 // directions.parquet (nil when the run has no rows for the cell).
 func directionsFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.Table("directions")
+	t, err := r.CellTable("directions", int64(s.Cell))
 	if err != nil || t == nil {
 		return nil, err
 	}

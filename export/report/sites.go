@@ -128,7 +128,7 @@ func siteFigures(r *rundir.Run, s Site) ([]*figure, []string, error) {
 }
 
 func monthlyFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.Table("monthly")
+	t, err := r.CellTable("monthly", int64(s.Cell))
 	if err != nil || t == nil {
 		return nil, err
 	}
@@ -215,7 +215,7 @@ func monthlyFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 }
 
 func exceedanceFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.Table("exceedance")
+	t, err := r.CellTable("exceedance", int64(s.Cell))
 	if err != nil || t == nil {
 		return nil, err
 	}
@@ -331,7 +331,7 @@ func (l *binsLayer) DataRange() (xmin, xmax, ymin, ymax float64) {
 }
 
 func occurrenceFigure(r *rundir.Run, s Site, name string) (*figure, []string, error) {
-	t, err := r.Table("scatter")
+	t, err := r.CellTable("scatter", int64(s.Cell))
 	if err != nil || t == nil {
 		return nil, nil, err
 	}
@@ -508,7 +508,7 @@ func (e *errBars) Plot(c draw.Canvas, p *plot.Plot) {
 }
 
 func returnLevelFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.Table("extremes")
+	t, err := r.CellTable("extremes", int64(s.Cell))
 	if err != nil || t == nil {
 		return nil, err
 	}
@@ -563,7 +563,7 @@ func returnLevelFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 // designFigure draws the environmental design contours of design.parquet
 // (when the run has them): Hm0 against the period column per return period.
 func designFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.Table("design")
+	t, err := r.CellTable("design", int64(s.Cell))
 	if err != nil || t == nil {
 		return nil, err
 	}

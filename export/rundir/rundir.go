@@ -16,6 +16,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 
@@ -23,6 +24,7 @@ import (
 	"github.com/apache/arrow/go/v17/arrow/array"
 	"github.com/apache/arrow/go/v17/arrow/memory"
 	"github.com/apache/arrow/go/v17/parquet/file"
+	"github.com/apache/arrow/go/v17/parquet/metadata"
 	"github.com/apache/arrow/go/v17/parquet/pqarrow"
 )
 
@@ -89,7 +91,55 @@ func (t *Table) Col(name string) *Column {
 
 // ReadTable reads every column of the Parquet file at path except the WKB
 // geometry.
-func ReadTable(path string) (*Table, error) {
+func ReadTable(path string) (*Table, error) { return readTable(path, nil, nil) }
+
+// ReadColumns reads the named columns of the Parquet file at path (every
+// row), so that a table of a large grid is not decoded whole for a few of
+// its columns; a name the file lacks is left out (Col gives nil).
+func ReadColumns(path string, names ...string) (*Table, error) { return readTable(path, nil, names) }
+
+// ReadCellRows reads the rows of the Parquet file at path whose cell_id is
+// cell, every column but the geometry: only the row groups whose cell_id
+// statistics (min .. max) include cell are decoded, so that a long table of
+// a large grid (written in cell-id order) is not held whole to draw one
+// site. A file whose row groups lack cell_id statistics is read whole and
+// filtered; one without a cell_id column gives no rows.
+func ReadCellRows(path string, cell int64) (*Table, error) { return readTable(path, &cell, nil) }
+
+// rowGroupsOf lists the row groups of rdr whose cell_id statistics include
+// cell (nil, false when a row group lacks them: read all).
+func rowGroupsOf(rdr *file.Reader, cell int64) ([]int, bool) {
+	ci := rdr.MetaData().Schema.ColumnIndexByName("cell_id")
+	if ci < 0 {
+		return nil, false
+	}
+	var rgs []int
+	for i := 0; i < rdr.NumRowGroups(); i++ {
+		cc, err := rdr.MetaData().RowGroup(i).ColumnChunk(ci)
+		if err != nil {
+			return nil, false
+		}
+		if ok, err := cc.StatsSet(); err != nil || !ok {
+			return nil, false
+		}
+		st, err := cc.Statistics()
+		if err != nil {
+			return nil, false
+		}
+		is, ok := st.(*metadata.Int64Statistics)
+		if !ok || !is.HasMinMax() {
+			return nil, false
+		}
+		if is.Min() <= cell && cell <= is.Max() {
+			rgs = append(rgs, i)
+		}
+	}
+	return rgs, true
+}
+
+// readTable reads the table at path: every row (cell nil) or those of one
+// cell (ReadCellRows), every column (names nil) or the named ones.
+func readTable(path string, cell *int64, names []string) (*Table, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, fmt.Errorf("rundir: %w", err)
@@ -104,7 +154,29 @@ func ReadTable(path string) (*Table, error) {
 	if err != nil {
 		return nil, fmt.Errorf("rundir: %s: %w", path, err)
 	}
-	tbl, err := fr.ReadTable(context.Background())
+	cols := make([]int, rdr.MetaData().Schema.NumColumns())
+	for i := range cols {
+		cols[i] = i
+	}
+	if names != nil {
+		cols = cols[:0]
+		for _, n := range names {
+			if i := rdr.MetaData().Schema.ColumnIndexByName(n); i >= 0 {
+				cols = append(cols, i)
+			}
+		}
+		slices.Sort(cols) // file order, as ReadTable gives them
+	}
+	rgs := make([]int, rdr.NumRowGroups())
+	for i := range rgs {
+		rgs[i] = i
+	}
+	if cell != nil {
+		if sel, ok := rowGroupsOf(rdr, *cell); ok {
+			rgs = sel
+		}
+	}
+	tbl, err := fr.ReadRowGroups(context.Background(), cols, rgs)
 	if err != nil {
 		return nil, fmt.Errorf("rundir: %s: %w", path, err)
 	}
@@ -195,7 +267,38 @@ func ReadTable(path string) (*Table, error) {
 		t.Columns = append(t.Columns, c)
 		t.byName[c.Name] = c
 	}
+	if cell != nil {
+		t.keep(t.RowsOf("cell_id", *cell))
+	}
 	return t, nil
+}
+
+// keep reduces t to the rows rows, in that order.
+func (t *Table) keep(rows []int) {
+	for _, c := range t.Columns {
+		switch c.Kind {
+		case Float:
+			c.Float = pick(c.Float, rows)
+		case Int:
+			c.Int = pick(c.Int, rows)
+		case Bool:
+			c.Bool = pick(c.Bool, rows)
+		default:
+			c.Str = pick(c.Str, rows)
+		}
+		if c.Valid != nil {
+			c.Valid = pick(c.Valid, rows)
+		}
+	}
+	t.Rows = len(rows)
+}
+
+func pick[T any](v []T, rows []int) []T {
+	out := make([]T, len(rows))
+	for k, i := range rows {
+		out[k] = v[i]
+	}
+	return out
 }
 
 // Manifest is the part of manifest.json the products use; Raw keeps the
@@ -365,6 +468,41 @@ func (r *Run) Table(name string) (*Table, error) {
 	}
 	r.tables[name] = t
 	return t, nil
+}
+
+// Columns reads the named columns of the long table name (ReadColumns), not
+// cached; nil, nil when the run has no such file.
+func (r *Run) Columns(name string, cols ...string) (*Table, error) {
+	p := filepath.Join(r.Dir, name+".parquet")
+	if _, err := os.Stat(p); errors.Is(err, os.ErrNotExist) {
+		return nil, nil
+	}
+	return ReadColumns(p, cols...)
+}
+
+// CellTable reads the rows of cell from the long table name (ReadCellRows):
+// what a site's figures need, without holding the whole table. Not cached;
+// nil, nil when the run has no such file.
+func (r *Run) CellTable(name string, cell int64) (*Table, error) {
+	if t, ok := r.tables[name]; ok { // already read whole
+		if t == nil {
+			return nil, nil
+		}
+		sub := &Table{Path: t.Path, Meta: t.Meta, byName: map[string]*Column{}}
+		for _, c := range t.Columns {
+			cp := *c
+			sub.Columns = append(sub.Columns, &cp)
+			sub.byName[cp.Name] = &cp
+		}
+		sub.Rows = t.Rows
+		sub.keep(t.RowsOf("cell_id", cell))
+		return sub, nil
+	}
+	p := filepath.Join(r.Dir, name+".parquet")
+	if _, err := os.Stat(p); errors.Is(err, os.ErrNotExist) {
+		return nil, nil
+	}
+	return ReadCellRows(p, cell)
 }
 
 // Lon and Lat of every cell.
