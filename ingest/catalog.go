@@ -81,8 +81,12 @@ type VarInfo struct {
 	DirTo        bool      `json:"direction_to,omitempty"`
 	PositiveUp   bool      `json:"positive_up,omitempty"` // depth stored as a height (positive = "up")
 	Dims         []string  `json:"dims"`
-	axes         []axis
-	v            *ncVar
+	// ChunkBytes is the size of one chunk decompressed (0: not chunked)
+	// and Filtered says the chunks are compressed or shuffled (chunkBytes).
+	ChunkBytes int64 `json:"-"`
+	Filtered   bool  `json:"-"`
+	axes       []axis
+	v          *ncVar
 }
 
 // Static reports whether the variable has no time dimension.
@@ -211,6 +215,22 @@ type Catalog struct {
 	times     []Stamp
 	gridDim   map[string]axis // dimension name -> spatial axis
 	roleFiles map[Role][]int  // role varying in time -> indices of the files holding it, in time order
+}
+
+// FilteredChunks gives, per role varying in time, the largest filtered
+// (compressed or shuffled) chunk of its variable over all files, in bytes
+// decompressed; a role whose chunks are unfiltered, or that is not chunked,
+// is absent. HDF5 decompresses such a chunk whole to read any part of it.
+func (c *Catalog) FilteredChunks() map[Role]int64 {
+	out := map[Role]int64{}
+	for _, f := range c.Files {
+		for r, vi := range f.vars {
+			if vi.Filtered && !vi.Static() && vi.ChunkBytes > out[r] {
+				out[r] = vi.ChunkBytes
+			}
+		}
+	}
+	return out
 }
 
 // Times returns the time of every step of the record, in order.

@@ -17,7 +17,12 @@ import (
 // Counted against the limit:
 //
 //	cache    the NetCDF-4 chunk cache, per role variable (a sixteenth of the
-//	         limit each, 1 MiB .. 512 MiB; C memory, outside Go's heap)
+//	         limit each, 1 MiB .. 512 MiB; C memory, outside Go's heap),
+//	         not counted for a variable whose chunks are larger (HDF5
+//	         caches no chunk larger than the cache)
+//	decode   HDF5's buffers while it decompresses a chunk: decodeCopies
+//	         times the largest filtered chunk of a role variable (C
+//	         memory; the one reader decodes one chunk at a time)
 //	fixed    the catalog's per-cell and per-step arrays, the contour
 //	         columns over the grid, and the table writers (one row group
 //	         of each table held, one being encoded)
@@ -30,6 +35,10 @@ import (
 // less the cache), and Options.LimitProcess sets Go's soft memory limit
 // (runtime/debug.SetMemoryLimit) to that, so that the collector runs before
 // the limit is passed.
+//
+// Chunks matter because HDF5 decompresses a chunk whole to read any part of
+// it: a month of a variable on a 200 x 200 grid in one chunk is 40 MB of
+// float32 however few steps and cells a block asks for.
 
 // ProcessOverhead is the memory a process takes beyond run.memory_limit:
 // the stated fixed overhead (BENCHMARKS.md, memory section) rounded up.
@@ -43,10 +52,66 @@ const goShare = 0.7
 // reader's raw slab.
 const blocksInFlight = 5
 
+// decodeCopies is the number of chunk-sized buffers HDF5 holds at once
+// while it reads a filtered chunk: with shuffle and deflate (the common
+// NetCDF-4 pair) the deflate filter inflates the compressed bytes into one
+// buffer, and the shuffle filter unshuffles that into another before the
+// first is freed (H5Z filter pipeline; the compressed input, smaller than
+// the chunk, is freed before the shuffle). BENCHMARKS.md (memory) gives
+// the figures measured.
+const decodeCopies = 2
+
+// chunkModel is what reading the role variables costs in C memory under a
+// limit: a chunk cache for each variable, and the buffers of a chunk being
+// decompressed.
+type chunkModel struct {
+	// chunks holds, per role variable, its largest filtered chunk
+	// decompressed (bytes; 0 when its chunks are unfiltered, or it has none).
+	chunks []int64
+}
+
+// chunkModelOf is the chunk model of the catalog's role variables.
+func chunkModelOf(cat *ingest.Catalog) chunkModel {
+	filtered := cat.FilteredChunks()
+	var m chunkModel
+	for r := range cat.Vars { // order does not matter: the model sums and takes the largest
+		m.chunks = append(m.chunks, filtered[r])
+	}
+	return m
+}
+
+// cacheBytes is the chunk cache counted under limit: chunkCachePerVar for
+// each role variable whose chunks the cache can hold (HDF5 does not cache a
+// chunk larger than the cache; such a variable's cache stays empty).
+func (m chunkModel) cacheBytes(limit int64) int64 {
+	per := chunkCachePerVar(limit)
+	var n int64
+	for _, c := range m.chunks {
+		if c <= per {
+			n += per
+		}
+	}
+	return n
+}
+
+// decodeBytes is the memory HDF5 takes while it decompresses the largest
+// filtered chunk: decodeCopies chunk-sized buffers.
+func (m chunkModel) decodeBytes() int64 {
+	var big int64
+	for _, c := range m.chunks {
+		big = max(big, c)
+	}
+	return decodeCopies * big
+}
+
+// cMemory is the C memory of reading under limit: the chunk caches and the
+// decompression buffers.
+func (m chunkModel) cMemory(limit int64) int64 { return m.cacheBytes(limit) + m.decodeBytes() }
+
 // memPlan is how a run spends run.memory_limit.
 type memPlan struct {
 	limit     int64
-	cache     int64   // chunk cache, all variables
+	cache     int64   // C memory of reading: chunk caches and decompression (chunkModel.cMemory)
 	fixed     int64   // catalog arrays, contour columns, table writers
 	perCell   float64 // a cell of a pass
 	perResult float64 // a cell of a fit chunk
@@ -102,8 +167,8 @@ func (e *engine) recordYears() int {
 
 // planMemory splits the budget limit for cells cells (rows of nx cells read
 // best whole; nx 0 for a point set).
-func planMemory(limit int64, nvars int, perCell, perResult float64, fixed int64, cells, nx int) (*memPlan, error) {
-	p := &memPlan{limit: limit, cache: int64(nvars) * chunkCachePerVar(limit), fixed: fixed, perCell: perCell, perResult: perResult}
+func planMemory(limit int64, cm chunkModel, perCell, perResult float64, fixed int64, cells, nx int) (*memPlan, error) {
+	p := &memPlan{limit: limit, cache: cm.cMemory(limit), fixed: fixed, perCell: perCell, perResult: perResult}
 	live := goShare*float64(limit-p.cache) - float64(fixed)
 	if live <= 0 {
 		return p, errTooSmall
@@ -126,9 +191,9 @@ var errTooSmall = fmt.Errorf("too small")
 
 // neededLimit is the smallest limit (to the MiB) at which planMemory finds
 // room for minCells cells in one pass.
-func neededLimit(nvars int, perCell, perResult float64, fixed int64, cells, nx, minCells int) int64 {
+func neededLimit(cm chunkModel, perCell, perResult float64, fixed int64, cells, nx, minCells int) int64 {
 	ok := func(l int64) bool {
-		p, err := planMemory(l, nvars, perCell, perResult, fixed, cells, 0)
+		p, err := planMemory(l, cm, perCell, perResult, fixed, cells, 0)
 		return err == nil && p.passCells >= minCells
 	}
 	hi := int64(64 << 20)
@@ -165,18 +230,18 @@ func (e *engine) planBudget(lo, hi int) (*memPlan, error) {
 	if e.cat.Grid.Kind != grid.Points {
 		nx = e.cat.Grid.NX
 	}
-	nvars := len(e.cat.Vars)
-	p, err := planMemory(limit, nvars, perCell, perResult, fixed, hi-lo, nx)
+	cm := chunkModelOf(e.cat)
+	p, err := planMemory(limit, cm, perCell, perResult, fixed, hi-lo, nx)
 	if err != nil {
-		need := neededLimit(nvars, perCell, perResult, fixed, hi-lo, nx, 1)
-		return nil, fmt.Errorf("run.memory_limit %s is too small for even one pass of one cell: this record (%d cells, %d steps, %d years) needs at least %s (chunk cache %s, tables and catalog %s, %s per cell); set run.memory_limit or --memory-limit to %s or more",
-			e.spec.Run.MemoryLimit, e.cat.Grid.NCells(), e.cat.Steps, e.recordYears(), mib(need), mib(p.cache), mib(fixed), kib(perCell), mib(need))
+		need := neededLimit(cm, perCell, perResult, fixed, hi-lo, nx, 1)
+		return nil, fmt.Errorf("run.memory_limit %s is too small for even one pass of one cell: this record (%d cells, %d steps, %d years) needs at least %s (chunk cache %s, decompressing a chunk %s, tables and catalog %s, %s per cell); set run.memory_limit or --memory-limit to %s or more",
+			e.spec.Run.MemoryLimit, e.cat.Grid.NCells(), e.cat.Steps, e.recordYears(), mib(need), mib(cm.cacheBytes(limit)), mib(cm.decodeBytes()), mib(fixed), kib(perCell), mib(need))
 	}
 	return p, nil
 }
 
 // applyToProcess sets Go's soft memory limit to what the plan lets Go use
-// (the limit less the chunk cache), so that the collector runs before the
+// (the limit less the C memory of reading), so that the collector runs before the
 // process passes the budget.
 func (p *memPlan) applyToProcess() {
 	debug.SetMemoryLimit(p.limit - p.cache)
@@ -197,10 +262,12 @@ func (e *engine) planMergeBudget() (*memPlan, error) {
 	_, perResult, fixed := e.memoryModel()
 	state := float64(e.ccfg.CellMemory(e.recordYears(), 0).State)
 	per := state + perResult
-	// a merge reads no blocks, but opens the catalog (chunk cache set)
-	p, err := planMemory(limit, len(e.cat.Vars), per, 1, fixed, e.cat.Grid.NCells(), 0)
+	// a merge reads no blocks (no chunk is decompressed), but opens the
+	// catalog (chunk cache set)
+	cm := chunkModel{chunks: make([]int64, len(e.cat.Vars))}
+	p, err := planMemory(limit, cm, per, 1, fixed, e.cat.Grid.NCells(), 0)
 	if err != nil || p.passCells < 1 {
-		need := neededLimit(len(e.cat.Vars), per, 1, fixed, e.cat.Grid.NCells(), 0, 2)
+		need := neededLimit(cm, per, 1, fixed, e.cat.Grid.NCells(), 0, 2)
 		return nil, fmt.Errorf("merge: run.memory_limit %s is too small to merge even one cell at a time (%s per cell, tables and catalog %s); give --memory-limit %s or more",
 			e.spec.Run.MemoryLimit, kib(per), mib(fixed), mib(need))
 	}

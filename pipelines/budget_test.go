@@ -118,3 +118,37 @@ func TestBudgetRefusedAtStart(t *testing.T) {
 		t.Errorf("%d MiB is accepted too, so the message does not name the least limit", need-1)
 	}
 }
+
+// The C memory of reading (budget.go, chunkModel), by hand: under 256 MiB
+// the cache is 16 MiB a variable (a sixteenth); of four role variables with
+// filtered chunks of 4.96 MB (124 x 100 x 100 float32: the 200 x 200
+// benchmark grid's), 40 MB (a month of it in one chunk), none (unfiltered)
+// and 2 MB, the 40 MB variable's cache is not counted (HDF5 caches no chunk
+// larger than its cache), the others' are: 3 x 16 MiB; the decompression
+// buffers are decodeCopies (2) x the largest chunk, 80 MB. Under 2 GiB
+// (128 MiB a variable) every chunk fits: 4 x 128 MiB + 80 MB.
+func TestChunkModelArithmetic(t *testing.T) {
+	m := chunkModel{chunks: []int64{124 * 100 * 100 * 4, 248 * 200 * 200 * 4, 0, 2e6}}
+	if got, want := m.cacheBytes(256<<20), int64(3*16<<20); got != want {
+		t.Errorf("cache under 256 MiB: %d, want %d", got, want)
+	}
+	if got, want := m.decodeBytes(), int64(2*248*200*200*4); got != want {
+		t.Errorf("decompression: %d, want %d", got, want)
+	}
+	if got, want := m.cMemory(256<<20), int64(3*16<<20+2*248*200*200*4); got != want {
+		t.Errorf("C memory under 256 MiB: %d, want %d", got, want)
+	}
+	if got, want := m.cMemory(2<<30), int64(4*128<<20+2*248*200*200*4); got != want {
+		t.Errorf("C memory under 2 GiB: %d, want %d", got, want)
+	}
+	// The plan leaves Go the limit less the C memory: a live share of
+	// 0.7 x (256 MiB - 48 MiB - 79.36 MB) - fixed.
+	p, err := planMemory(256<<20, m, 1000, 1000, 1<<20, 1e6, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	live := goShare*float64(256<<20-3*16<<20-2*248*200*200*4) - (1 << 20)
+	if want := int((live - float64(p.fitChunk)*1000) / 1000); p.passCells != want {
+		t.Errorf("cells a pass: %d, want %d", p.passCells, want)
+	}
+}

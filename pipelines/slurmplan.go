@@ -31,16 +31,17 @@ type SlurmPlan struct {
 // slurmModel is what the planner needs of a run: the grid and the memory
 // model of budget.go.
 type slurmModel struct {
-	cells, nx, ny, steps, years, nvars int
-	structured                         bool
-	perCell, perResult                 float64
-	fixed                              int64
+	cells, nx, ny, steps, years int
+	chunks                      chunkModel
+	structured                  bool
+	perCell, perResult          float64
+	fixed                       int64
 }
 
 func (j *job) slurmModel() slurmModel {
 	g := j.cat.Grid
 	perCell, perResult, fixed := j.eng.memoryModel()
-	m := slurmModel{cells: g.NCells(), nx: g.NX, ny: g.NY, steps: j.cat.Steps, years: j.eng.recordYears(), nvars: len(j.cat.Vars),
+	m := slurmModel{cells: g.NCells(), nx: g.NX, ny: g.NY, steps: j.cat.Steps, years: j.eng.recordYears(), chunks: chunkModelOf(j.cat),
 		structured: g.Kind != grid.Points && g.Structured(), perCell: perCell, perResult: perResult, fixed: fixed}
 	if !m.structured {
 		m.nx, m.ny = 1, g.NCells()
@@ -64,7 +65,7 @@ func planSlurm(m slurmModel, mem int64, shards int) (*SlurmPlan, error) {
 	// cells of the largest shard of n (Shard.Cells: ceil(NY/n) rows)
 	shardCells := func(n int) int { return (m.ny + n - 1) / n * m.nx }
 	passCells := func(budget int64) int {
-		pl, err := planMemory(budget, m.nvars, m.perCell, m.perResult, m.fixed, shardCells(1), 0)
+		pl, err := planMemory(budget, m.chunks, m.perCell, m.perResult, m.fixed, shardCells(1), 0)
 		if err != nil {
 			return 0
 		}
@@ -84,9 +85,9 @@ func planSlurm(m slurmModel, mem int64, shards int) (*SlurmPlan, error) {
 		}
 		rows := per / m.nx
 		if rows < 1 {
-			need := neededLimit(m.nvars, m.perCell, m.perResult, m.fixed, shardCells(1), 0, m.nx) + ProcessOverhead
-			return nil, fmt.Errorf("cluster slurm: --mem %s cannot hold one %s of the grid (%d cells of %s each, plus %s fixed and %s of chunk cache, plus %s for the process): give --mem %s or more",
-				sizeText(mem), strings.TrimSuffix(unit, "s"), m.nx, kib(m.perCell), mib(m.fixed), mib(int64(m.nvars)*chunkCachePerVar(max(budget, 16<<20))), mib(ProcessOverhead), sizeText(roundUp(need, 1<<20)))
+			need := neededLimit(m.chunks, m.perCell, m.perResult, m.fixed, shardCells(1), 0, m.nx) + ProcessOverhead
+			return nil, fmt.Errorf("cluster slurm: --mem %s cannot hold one %s of the grid (%d cells of %s each, plus %s fixed and %s of chunk cache and decompression, plus %s for the process): give --mem %s or more",
+				sizeText(mem), strings.TrimSuffix(unit, "s"), m.nx, kib(m.perCell), mib(m.fixed), mib(m.chunks.cMemory(max(budget, 16<<20))), mib(ProcessOverhead), sizeText(roundUp(need, 1<<20)))
 		}
 		need := (m.ny + rows - 1) / rows
 		if shards == 0 {
@@ -104,14 +105,14 @@ func planSlurm(m slurmModel, mem int64, shards int) (*SlurmPlan, error) {
 	}
 	p.UnitsPerShard = (m.ny + p.Shards - 1) / p.Shards
 	p.CellsPerShard = p.UnitsPerShard * m.nx
-	p.CacheBytes = int64(m.nvars) * chunkCachePerVar(p.BudgetBytes)
+	p.CacheBytes = m.chunks.cMemory(p.BudgetBytes)
 	return p, nil
 }
 
 // memFor is the Slurm request (rounded up to 64 MiB) whose budget holds
 // cells in one pass.
 func memFor(m slurmModel, cells int) int64 {
-	return roundUp(neededLimit(m.nvars, m.perCell, m.perResult, m.fixed, cells, 0, cells)+ProcessOverhead, 64<<20)
+	return roundUp(neededLimit(m.chunks, m.perCell, m.perResult, m.fixed, cells, 0, cells)+ProcessOverhead, 64<<20)
 }
 
 func roundUp(b, to int64) int64 { return (b + to - 1) / to * to }

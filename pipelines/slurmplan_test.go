@@ -24,7 +24,7 @@ import (
 // cells); the request 927 + 128 = 1055 MiB rounded up to 64 MiB: 1088 MiB,
 // budget 960 MiB.
 func TestSlurmPlanArithmetic(t *testing.T) {
-	m := slurmModel{cells: 1000 * 1000, nx: 1000, ny: 1000, steps: 87660, years: 30, nvars: 4, structured: true,
+	m := slurmModel{cells: 1000 * 1000, nx: 1000, ny: 1000, steps: 87660, years: 30, chunks: chunkModel{chunks: make([]int64, 4)}, structured: true,
 		perCell: 100000, perResult: 200000, fixed: 10 << 20}
 	p, err := planSlurm(m, 1152<<20, 0)
 	if err != nil {
@@ -43,7 +43,7 @@ func TestSlurmPlanArithmetic(t *testing.T) {
 	if q.MemBytes != 1088<<20 || q.BudgetBytes != 960<<20 || q.CellsPerShard != 4000 || q.CellsPerPass < 4000 {
 		t.Errorf("--shards 250: --mem %s, budget %s, %d cells a shard, %d a pass; want 1088M, 960M, 4000, >= 4000", sizeText(q.MemBytes), sizeText(q.BudgetBytes), q.CellsPerShard, q.CellsPerPass)
 	}
-	if n := neededLimit(4, 100000, 200000, 10<<20, 4000, 0, 4000); n != 927<<20 {
+	if n := neededLimit(chunkModel{chunks: make([]int64, 4)}, 100000, 200000, 10<<20, 4000, 0, 4000); n != 927<<20 {
 		t.Errorf("least limit for 4000 cells in one pass: %d MiB, want 927", n>>20)
 	}
 	// Both given: 100 shards of 10 rows (10 000 cells) do not fit one pass
