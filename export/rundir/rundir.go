@@ -140,16 +140,52 @@ func rowGroupsOf(rdr *file.Reader, cell int64) ([]int, bool) {
 // readTable reads the table at path: every row (cell nil) or those of one
 // cell (ReadCellRows), every column (names nil) or the named ones.
 func readTable(path string, cell *int64, names []string) (*Table, error) {
+	var t *Table
+	err := withParquet(path, func(rdr *file.Reader) error {
+		rgs := allGroups(rdr)
+		if cell != nil {
+			if sel, ok := rowGroupsOf(rdr, *cell); ok {
+				rgs = sel
+			}
+		}
+		var err error
+		if t, err = decodeGroups(path, rdr, names, rgs); err != nil {
+			return err
+		}
+		if cell != nil {
+			t.keep(t.RowsOf("cell_id", *cell))
+		}
+		return nil
+	})
+	return t, err
+}
+
+// withParquet opens the Parquet file at path for fn.
+func withParquet(path string, fn func(rdr *file.Reader) error) error {
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, fmt.Errorf("rundir: %w", err)
+		return fmt.Errorf("rundir: %w", err)
 	}
 	defer f.Close()
 	rdr, err := file.NewParquetReader(f)
 	if err != nil {
-		return nil, fmt.Errorf("rundir: %s: not a readable Parquet file (rerun the run or its export): %w", path, err)
+		return fmt.Errorf("rundir: %s: not a readable Parquet file (rerun the run or its export): %w", path, err)
 	}
 	defer rdr.Close()
+	return fn(rdr)
+}
+
+func allGroups(rdr *file.Reader) []int {
+	rgs := make([]int, rdr.NumRowGroups())
+	for i := range rgs {
+		rgs[i] = i
+	}
+	return rgs
+}
+
+// decodeGroups decodes the row groups rgs of rdr, the named columns (nil:
+// all but the geometry).
+func decodeGroups(path string, rdr *file.Reader, names []string, rgs []int) (*Table, error) {
 	fr, err := pqarrow.NewFileReader(rdr, pqarrow.ArrowReadProperties{}, memory.DefaultAllocator)
 	if err != nil {
 		return nil, fmt.Errorf("rundir: %s: %w", path, err)
@@ -166,15 +202,6 @@ func readTable(path string, cell *int64, names []string) (*Table, error) {
 			}
 		}
 		slices.Sort(cols) // file order, as ReadTable gives them
-	}
-	rgs := make([]int, rdr.NumRowGroups())
-	for i := range rgs {
-		rgs[i] = i
-	}
-	if cell != nil {
-		if sel, ok := rowGroupsOf(rdr, *cell); ok {
-			rgs = sel
-		}
 	}
 	tbl, err := fr.ReadRowGroups(context.Background(), cols, rgs)
 	if err != nil {
@@ -267,10 +294,19 @@ func readTable(path string, cell *int64, names []string) (*Table, error) {
 		t.Columns = append(t.Columns, c)
 		t.byName[c.Name] = c
 	}
-	if cell != nil {
-		t.keep(t.RowsOf("cell_id", *cell))
-	}
 	return t, nil
+}
+
+// subset is a copy of t's header with the rows rows (t is not changed).
+func (t *Table) subset(rows []int) *Table {
+	sub := &Table{Path: t.Path, Meta: t.Meta, Rows: t.Rows, byName: map[string]*Column{}}
+	for _, c := range t.Columns {
+		cp := *c
+		sub.Columns = append(sub.Columns, &cp)
+		sub.byName[cp.Name] = &cp
+	}
+	sub.keep(rows)
+	return sub
 }
 
 // keep reduces t to the rows rows, in that order.
@@ -397,6 +433,7 @@ type Run struct {
 	Land   []bool // masked cells (qc flag "masked"): drawn as land, no values
 	Mesh   *Mesh  // the UGRID mesh of a run on one (mesh.go), else nil
 	tables map[string]*Table
+	groups map[string]*groupRead // CellTable's last row groups of each table
 }
 
 // Open reads the manifest and cells.parquet of the run directory dir. The
@@ -418,7 +455,7 @@ func Open(dir string, manifest []byte) (*Run, error) {
 	if err != nil {
 		return nil, err
 	}
-	r := &Run{Dir: dir, Manifest: m, Cells: cells, Kind: m.Grid.Kind, NY: m.Grid.Shape[0], NX: m.Grid.Shape[1], tables: map[string]*Table{}}
+	r := &Run{Dir: dir, Manifest: m, Cells: cells, Kind: m.Grid.Kind, NY: m.Grid.Shape[0], NX: m.Grid.Shape[1], tables: map[string]*Table{}, groups: map[string]*groupRead{}}
 	if r.NX*r.NY != cells.Rows {
 		return nil, fmt.Errorf("rundir: %s: the manifest's grid is %d x %d but cells.parquet has %d rows; the directory mixes two runs, rerun it", dir, r.NY, r.NX, cells.Rows)
 	}
@@ -480,29 +517,47 @@ func (r *Run) Columns(name string, cols ...string) (*Table, error) {
 	return ReadColumns(p, cols...)
 }
 
-// CellTable reads the rows of cell from the long table name (ReadCellRows):
-// what a site's figures need, without holding the whole table. Not cached;
-// nil, nil when the run has no such file.
+// CellTable reads the rows of cell from the long table name: only the row
+// groups that hold it (ReadCellRows), what a site's figures need, without
+// holding the whole table. The row groups last decoded of each table are
+// kept, so that sites in cell-id order (every point of a point set) decode
+// each row group once. nil, nil when the run has no such file.
 func (r *Run) CellTable(name string, cell int64) (*Table, error) {
 	if t, ok := r.tables[name]; ok { // already read whole
 		if t == nil {
 			return nil, nil
 		}
-		sub := &Table{Path: t.Path, Meta: t.Meta, byName: map[string]*Column{}}
-		for _, c := range t.Columns {
-			cp := *c
-			sub.Columns = append(sub.Columns, &cp)
-			sub.byName[cp.Name] = &cp
-		}
-		sub.Rows = t.Rows
-		sub.keep(t.RowsOf("cell_id", cell))
-		return sub, nil
+		return t.subset(t.RowsOf("cell_id", cell)), nil
 	}
 	p := filepath.Join(r.Dir, name+".parquet")
 	if _, err := os.Stat(p); errors.Is(err, os.ErrNotExist) {
 		return nil, nil
 	}
-	return ReadCellRows(p, cell)
+	var out *Table
+	err := withParquet(p, func(rdr *file.Reader) error {
+		rgs, ok := rowGroupsOf(rdr, cell)
+		if !ok {
+			rgs = allGroups(rdr)
+		}
+		g := r.groups[name]
+		if g == nil || !slices.Equal(g.rgs, rgs) {
+			t, err := decodeGroups(p, rdr, nil, rgs)
+			if err != nil {
+				return err
+			}
+			g = &groupRead{rgs: rgs, t: t}
+			r.groups[name] = g
+		}
+		out = g.t.subset(g.t.RowsOf("cell_id", cell))
+		return nil
+	})
+	return out, err
+}
+
+// groupRead is the row groups of a long table last decoded by CellTable.
+type groupRead struct {
+	rgs []int
+	t   *Table
 }
 
 // Lon and Lat of every cell.

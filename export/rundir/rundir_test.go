@@ -60,8 +60,23 @@ func TestReadCellRowsAndColumns(t *testing.T) {
 	}
 	f.Close()
 
+	// ReadCellRows, then a run's CellTable (which keeps the row groups last
+	// decoded) with the cells in order, in reverse and in order again.
+	run := &Run{Dir: filepath.Dir(path), tables: map[string]*Table{}, groups: map[string]*groupRead{}}
+	var order []int64
 	for c := int64(-1); c <= 9; c++ {
-		got, err := ReadCellRows(path, c)
+		order = append(order, c)
+	}
+	for c := int64(9); c >= -1; c-- {
+		order = append(order, c)
+	}
+	order = append(order, order[:11]...)
+	for k, c := range order {
+		read := func() (*Table, error) { return ReadCellRows(path, c) }
+		if k >= 11 {
+			read = func() (*Table, error) { return run.CellTable("long", c) }
+		}
+		got, err := read()
 		if err != nil {
 			t.Fatal(err)
 		}
