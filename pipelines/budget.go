@@ -12,7 +12,7 @@ import (
 // The memory budget. run.memory_limit is what a run or a merge may hold, in
 // every stage; the process takes a fixed overhead beyond it (the Go
 // runtime, the NetCDF-C and HDF5 libraries and their file metadata, the
-// executable; BENCHMARKS.md gives the figure measured, about 100 MB), and
+// executable; BENCHMARKS.md gives the figure measured, 100-112 MiB), and
 // ProcessOverhead is the allowance `cluster slurm` adds to a job's request.
 // Counted against the limit:
 //
@@ -32,13 +32,16 @@ import (
 //
 // Go's heap may grow beyond its live data before the collector runs; the
 // plan keeps the live data within goShare of what Go may use (the limit
-// less the cache), and Options.LimitProcess sets Go's soft memory limit
+// less the cache and decode), and Options.LimitProcess sets Go's soft memory limit
 // (runtime/debug.SetMemoryLimit) to that, so that the collector runs before
 // the limit is passed.
 //
 // Chunks matter because HDF5 decompresses a chunk whole to read any part of
-// it: a month of a variable on a 200 x 200 grid in one chunk is 40 MB of
-// float32 however few steps and cells a block asks for.
+// it: a month of a variable on a 200 x 200 grid in one chunk would be 40 MB
+// of float32 however few steps and cells a block asks for. C memory freed
+// by HDF5 is given back to the system (ingest.SetChunkCache sets glibc's
+// allocator so), or the per-thread malloc arenas would keep what the model
+// no longer counts.
 
 // ProcessOverhead is the memory a process takes beyond run.memory_limit:
 // the stated fixed overhead (BENCHMARKS.md, memory section) rounded up.

@@ -57,6 +57,6 @@ Exit codes as for run.
 	}
 	cmd.Flags().StringVar(&out, "out", "", "run directory of the merged outputs")
 	cmd.Flags().IntVar(&workers, "workers", 0, "fit workers (0: all cores)")
-	cmd.Flags().StringVar(&memory, "memory-limit", "", "memory budget of the merge, e.g. 512MiB (default 2GiB; the process takes about 100 MB more)")
+	cmd.Flags().StringVar(&memory, "memory-limit", "", "memory budget of the merge, e.g. 512MiB (default 2GiB; the process takes about 110 MB more)")
 	return cmd
 }
