@@ -6,11 +6,13 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	"swellgrid/export/parquetread"
+	"swellgrid/internal/testtool"
 )
 
 // readRef decodes a reference JSON file into v.
@@ -23,6 +25,23 @@ func readRef(t *testing.T, path string, v any) {
 	if err := json.Unmarshal(b, v); err != nil {
 		t.Fatalf("%s: %v", path, err)
 	}
+}
+
+// rerunReference reruns a reference script of testdata (Debian's python3
+// with modules; under CI a missing one fails the test) in its own directory
+// with a temporary output path as its argument, and decodes the committed
+// reference into committed and the script's new output into again.
+func rerunReference(t *testing.T, script, committedPath string, committed, again any, modules ...string) {
+	t.Helper()
+	py := testtool.NeedPython(t, modules...)
+	tmp := filepath.Join(t.TempDir(), "reference.json")
+	cmd := exec.Command(py, filepath.Base(script), tmp)
+	cmd.Dir = filepath.Dir(script)
+	if out, err := cmd.CombinedOutput(); err != nil {
+		t.Fatalf("%s: %v\n%s", script, err, out)
+	}
+	readRef(t, committedPath, committed)
+	readRef(t, tmp, again)
 }
 
 // readInts reads one integer column of a Parquet file with the Arrow reader.

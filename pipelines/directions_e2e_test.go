@@ -1,15 +1,11 @@
 package pipelines
 
 import (
-	"encoding/json"
 	"math"
-	"os"
-	"os/exec"
 	"path/filepath"
 	"testing"
 
 	"swellgrid/export/parquetread"
-	"swellgrid/internal/testtool"
 )
 
 // dirRef is testdata/directions/reference.json, computed independently of
@@ -114,21 +110,8 @@ func TestDirectionsAgainstNumpy(t *testing.T) {
 // (Debian's python3 with numpy, scipy and netCDF4; required under CI) and
 // checks that it gives the committed reference.json.
 func TestDirectionsReferenceReproduced(t *testing.T) {
-	py := testtool.NeedPython(t, "numpy", "scipy", "netCDF4")
-	tmp := filepath.Join(t.TempDir(), "reference.json")
-	if out, err := exec.Command(py, "../testdata/directions/reference.py", tmp).CombinedOutput(); err != nil {
-		t.Fatalf("reference.py: %v\n%s", err, out)
-	}
 	var a, b dirRef
-	for p, v := range map[string]*dirRef{"../testdata/directions/reference.json": &a, tmp: &b} {
-		data, err := os.ReadFile(p)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if err := json.Unmarshal(data, v); err != nil {
-			t.Fatal(err)
-		}
-	}
+	rerunReference(t, "../testdata/directions/reference.py", "../testdata/directions/reference.json", &a, &b, "numpy", "scipy", "netCDF4")
 	for name, pair := range map[string][2][]map[string]any{"bulk": {a.Bulk, b.Bulk}, "spectral": {a.Spectral, b.Spectral}} {
 		if len(pair[0]) != len(pair[1]) {
 			t.Fatalf("%s: %d rows committed, %d recomputed", name, len(pair[0]), len(pair[1]))

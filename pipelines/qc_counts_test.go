@@ -1,16 +1,12 @@
 package pipelines
 
 import (
-	"encoding/json"
 	"math"
-	"os"
-	"os/exec"
 	"path/filepath"
 	"reflect"
 	"testing"
 
 	"swellgrid/export/parquetread"
-	"swellgrid/internal/testtool"
 )
 
 // qcRef is testdata/qc/reference.json, computed independently of swellgrid
@@ -121,21 +117,8 @@ func TestBootstrapColumnsAgainstScipy(t *testing.T) {
 // (Debian's python3 with numpy, scipy and netCDF4; required under CI) and
 // checks that it gives the committed reference.json.
 func TestInvalidValuesReferenceReproduced(t *testing.T) {
-	py := testtool.NeedPython(t, "numpy", "scipy", "netCDF4")
-	tmp := filepath.Join(t.TempDir(), "reference.json")
-	if out, err := exec.Command(py, "../testdata/qc/reference.py", tmp).CombinedOutput(); err != nil {
-		t.Fatalf("reference.py: %v\n%s", err, out)
-	}
 	var a, b qcRef
-	for p, v := range map[string]*qcRef{"../testdata/qc/reference.json": &a, tmp: &b} {
-		data, err := os.ReadFile(p)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if err := json.Unmarshal(data, v); err != nil {
-			t.Fatal(err)
-		}
-	}
+	rerunReference(t, "../testdata/qc/reference.py", "../testdata/qc/reference.json", &a, &b, "numpy", "scipy", "netCDF4")
 	if !reflect.DeepEqual(a.Bootstrap, b.Bootstrap) {
 		t.Errorf("bootstrap reference: committed %+v, recomputed %+v", a.Bootstrap, b.Bootstrap)
 	}

@@ -1,15 +1,11 @@
 package pipelines
 
 import (
-	"encoding/json"
 	"math"
-	"os"
-	"os/exec"
 	"path/filepath"
 	"testing"
 
 	"swellgrid/export/parquetread"
-	"swellgrid/internal/testtool"
 )
 
 // spectralRef is testdata/spectral_cols/reference.json, computed
@@ -131,21 +127,8 @@ func TestSpectralColumnsAgainstNumpy(t *testing.T) {
 // and netCDF4; required under CI) and checks that it gives the committed
 // reference.json.
 func TestSpectralColumnsReferenceReproduced(t *testing.T) {
-	py := testtool.NeedPython(t, "numpy", "scipy", "netCDF4")
-	tmp := filepath.Join(t.TempDir(), "reference.json")
-	if out, err := exec.Command(py, "../testdata/spectral_cols/reference.py", tmp).CombinedOutput(); err != nil {
-		t.Fatalf("reference.py: %v\n%s", err, out)
-	}
 	var a, b spectralRef
-	for p, v := range map[string]*spectralRef{"../testdata/spectral_cols/reference.json": &a, tmp: &b} {
-		data, err := os.ReadFile(p)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if err := json.Unmarshal(data, v); err != nil {
-			t.Fatal(err)
-		}
-	}
+	rerunReference(t, "../testdata/spectral_cols/reference.py", "../testdata/spectral_cols/reference.json", &a, &b, "numpy", "scipy", "netCDF4")
 	if len(a.Fixtures) != len(b.Fixtures) {
 		t.Fatalf("%d fixtures committed, %d recomputed", len(a.Fixtures), len(b.Fixtures))
 	}

@@ -4,14 +4,12 @@ import (
 	"encoding/json"
 	"math"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"sort"
 	"strconv"
 	"testing"
 
 	"swellgrid/export/rundir"
-	"swellgrid/internal/testtool"
 )
 
 // valColumnsRef is testdata/validate/columns_expected.json, made by
@@ -291,23 +289,8 @@ func compareValidationColumns(t *testing.T, out string, run valRefRun) {
 // CI) and checks that it gives the committed columns_expected.json, so the
 // reference the validation tests compare with is the script's.
 func TestValidateColumnsReproduced(t *testing.T) {
-	py := testtool.NeedPython(t, "numpy", "scipy", "netCDF4", "pyproj")
-	tmp := filepath.Join(t.TempDir(), "columns.json")
-	cmd := exec.Command(py, "make_columns.py", tmp)
-	cmd.Dir = "../testdata/validate"
-	if out, err := cmd.CombinedOutput(); err != nil {
-		t.Fatalf("make_columns.py: %v\n%s", err, out)
-	}
 	var a, b any
-	for p, v := range map[string]*any{"../testdata/validate/columns_expected.json": &a, tmp: &b} {
-		data, err := os.ReadFile(p)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if err := json.Unmarshal(data, v); err != nil {
-			t.Fatalf("%s: %v", p, err)
-		}
-	}
+	rerunReference(t, "../testdata/validate/make_columns.py", "../testdata/validate/columns_expected.json", &a, &b, "numpy", "scipy", "netCDF4", "pyproj")
 	ra, rb := a.(map[string]any)["runs"], b.(map[string]any)["runs"]
 	bad := 0
 	sameJSON("runs", ra, rb, func(where string, x, y any) {
