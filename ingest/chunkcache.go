@@ -14,9 +14,8 @@ import "fmt"
 // decompresses the whole chunk again. A cache that holds a chunk makes each
 // file's chunks decompress once. bytes is per variable; call it before Open.
 //
-// It also makes the C allocator give chunk-sized memory back when HDF5
-// frees it (boundCHeap), so that the memory of reading stays what the
-// budget counts.
+// It also keeps the C allocator to one arena (boundCHeap), so that the
+// memory of reading stays what the budget counts.
 func SetChunkCache(bytes int64) error {
 	ncMu.Lock()
 	defer ncMu.Unlock()
@@ -31,19 +30,24 @@ func SetChunkCache(bytes int64) error {
 }
 
 // boundCHeap sets glibc's allocator so that HDF5's chunk buffers (chunk
-// cache entries, decompression buffers: megabytes each) do not stay with
-// the process once freed. By default glibc serves such a buffer from a
-// per-thread arena as soon as its "dynamic mmap threshold" has risen past
-// the buffer's size (it rises to the size of each mmapped block freed, up
-// to 32 MiB), and keeps it in that arena when freed; the NetCDF goroutine
-// runs on whichever thread it is locked to for a file, so each thread's
-// arena came to hold its own tens of MB (three arenas of about 60 MB each
-// on the 200 x 200 benchmark grid). A fixed threshold of 1 MiB (which also
-// turns the dynamic one off) maps every larger block afresh and unmaps it
-// on free; one arena serves every thread (all NetCDF calls are serialised
-// by ncMu, so they do not contend). mallopt(3), glibc manual "Memory
-// Allocation Tunables".
+// cache entries, decompression buffers: megabytes each) are not kept once
+// per thread. By default glibc gives each thread that allocates under
+// contention an arena of its own, and an arena keeps what is freed in it;
+// the NetCDF goroutine runs on whichever thread it is locked to for a file,
+// so several arenas came to hold a copy of the reader's high-water mark
+// (three of about 60 MB each on the 200 x 200 benchmark grid, outside the
+// budget). One arena serves every thread (all NetCDF calls are serialised
+// by ncMu, so they do not contend), and trimCHeap gives its free memory
+// back after each file. A fixed 1 MiB mmap threshold was tried as well:
+// it bounds the memory the same way but maps and faults in every chunk
+// buffer afresh, which made reading about 3 x slower in CPU time
+// (BENCHMARKS.md, memory). mallopt(3), malloc_trim(3).
 func boundCHeap() {
-	C.mallopt(C.M_MMAP_THRESHOLD, 1<<20)
 	C.mallopt(C.M_ARENA_MAX, 1)
+}
+
+// trimCHeap returns the allocator's free memory to the system (call it
+// with ncMu held, once a file is closed).
+func trimCHeap() {
+	C.malloc_trim(0)
 }

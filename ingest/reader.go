@@ -117,6 +117,7 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 		for _, f := range opened {
 			f.close()
 		}
+		trimCHeap() // the file's chunk buffers, freed by the close
 		ncMu.Unlock()
 	}()
 	t0 := c.times[s0]
