@@ -19,6 +19,7 @@ import (
 	"slices"
 	"sort"
 	"strings"
+	"syscall"
 
 	"github.com/apache/arrow/go/v17/arrow"
 	"github.com/apache/arrow/go/v17/arrow/array"
@@ -634,4 +635,16 @@ func (t *Table) RowsOfStr(key, v string) []int {
 		}
 	}
 	return out
+}
+
+// DiskFull says whether the file system of the run directory dir has less
+// than 1 MiB left for an unprivileged writer: what a write error of a
+// library that gives no errno (NetCDF-C's "HDF error", SQLite's "disk is
+// full") most likely means there, so that the message can say so.
+func DiskFull(dir string) bool {
+	var st syscall.Statfs_t
+	if err := syscall.Statfs(dir, &st); err != nil {
+		return false
+	}
+	return int64(st.Bavail)*st.Bsize < 1<<20
 }
