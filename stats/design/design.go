@@ -117,46 +117,23 @@ const (
 // sampling error for records of 10^4 or more sea states (TestWeibullAgainstScipy).
 // Minimised by minimiseGrad with the analytic gradient of weibullBinnedNLL.
 func FitWeibull3(h Hist) (Weibull3, error) {
-	first, last := -1, -1
-	var tot, m1, m2 float64
-	for i, w := range h.Weights {
-		if w > 0 {
-			if first < 0 {
-				first = i
-			}
-			last = i
+	first, last, tot := occupiedRange(h)
+	if first < 0 || last-first < 3 {
+		return Weibull3{}, fmt.Errorf("%w: the Hm0 histogram has %d occupied bins", ErrFewData, max(0, last-first+1))
+	}
+	var m1, m2 float64
+	for i := first; i <= last; i++ {
+		if w := h.Weights[i]; w > 0 {
 			x := h.Edges[i]
 			if !math.IsInf(h.Edges[i+1], 1) {
 				x = 0.5 * (h.Edges[i] + h.Edges[i+1])
 			}
-			tot += w
 			m1 += w * x
 			m2 += w * x * x
 		}
 	}
-	if first < 0 || last-first < 3 {
-		return Weibull3{}, fmt.Errorf("%w: the Hm0 histogram has %d occupied bins", ErrFewData, max(0, last-first+1))
-	}
 	top := h.Edges[first+1]
-	// Occupied bins and the edges they need (each CDF evaluated once per call).
-	var occ []int
-	for i := first; i <= last; i++ {
-		if h.Weights[i] > 0 {
-			occ = append(occ, i)
-		}
-	}
-	edges := h.Edges[first : last+2]
-	// Only the edges of occupied bins enter the likelihood.
-	need := make([]bool, len(edges))
-	for _, i := range occ {
-		need[i-first], need[i+1-first] = true, true
-	}
-	z := make([]float64, len(edges))  // cumulative hazard ((x - Loc)/Scale)^Shape at each edge
-	lz := make([]float64, len(edges)) // ln((x - Loc)/Scale) where x > Loc
-	cz := make([]float64, len(edges)) // d nll / d z at each edge
-	nll := func(p, grad []float64) float64 {
-		return weibullBinnedNLL(p, grad, top, edges, need, occ, first, h.Weights, tot, z, lz, cz)
-	}
+	nll := weibullObjective(h, first, last, tot)
 	// Start: Loc a little below the lowest sea state, Scale and Shape from the
 	// mean and variance of h - Loc (Shape 1.5 and the matching scale as a guess).
 	mean := m1 / tot
@@ -170,6 +147,46 @@ func FitWeibull3(h Hist) (Weibull3, error) {
 		return Weibull3{}, fmt.Errorf("design: the Weibull fit of Hm0 did not converge")
 	}
 	return Weibull3{Loc: top - math.Exp(x[0]), Scale: math.Exp(x[1]), Shape: math.Exp(x[2])}, nil
+}
+
+// occupiedRange returns the first and last bins of h with weight (-1, -1
+// when none) and the total weight.
+func occupiedRange(h Hist) (first, last int, tot float64) {
+	first, last = -1, -1
+	for i, w := range h.Weights {
+		if w > 0 {
+			if first < 0 {
+				first = i
+			}
+			last = i
+			tot += w
+		}
+	}
+	return first, last, tot
+}
+
+// weibullObjective is FitWeibull3's objective (weibullBinnedNLL) on the
+// occupied bins first..last of h, total weight tot: each CDF is evaluated
+// once per call, and only at the edges of occupied bins.
+func weibullObjective(h Hist, first, last int, tot float64) func(p, grad []float64) float64 {
+	var occ []int
+	for i := first; i <= last; i++ {
+		if h.Weights[i] > 0 {
+			occ = append(occ, i)
+		}
+	}
+	edges := h.Edges[first : last+2]
+	need := make([]bool, len(edges))
+	for _, i := range occ {
+		need[i-first], need[i+1-first] = true, true
+	}
+	top := h.Edges[first+1]
+	z := make([]float64, len(edges))  // cumulative hazard ((x - Loc)/Scale)^Shape at each edge
+	lz := make([]float64, len(edges)) // ln((x - Loc)/Scale) where x > Loc
+	cz := make([]float64, len(edges)) // d nll / d z at each edge
+	return func(p, grad []float64) float64 {
+		return weibullBinnedNLL(p, grad, top, edges, need, occ, first, h.Weights, tot, z, lz, cz)
+	}
 }
 
 // weibullBinnedNLL is the objective of FitWeibull3 in the parameters

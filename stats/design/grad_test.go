@@ -30,34 +30,8 @@ func checkGrad(t *testing.T, what string, f func(x, g []float64) float64, x []fl
 // reference sample's histogram and occurrence table (scipy_design_refs.json).
 func TestObjectiveGradients(t *testing.T) {
 	_, h, cells := loadRefs(t)
-	first, last := -1, -1
-	var tot float64
-	for i, w := range h.Weights {
-		if w > 0 {
-			if first < 0 {
-				first = i
-			}
-			last = i
-			tot += w
-		}
-	}
-	var occ []int
-	for i := first; i <= last; i++ {
-		if h.Weights[i] > 0 {
-			occ = append(occ, i)
-		}
-	}
-	edges := h.Edges[first : last+2]
-	need := make([]bool, len(edges))
-	for _, i := range occ {
-		need[i-first], need[i+1-first] = true, true
-	}
-	n := len(edges)
-	z, lz, cz := make([]float64, n), make([]float64, n), make([]float64, n)
-	top := h.Edges[first+1]
-	wb := func(p, g []float64) float64 {
-		return weibullBinnedNLL(p, g, top, edges, need, occ, first, h.Weights, tot, z, lz, cz)
-	}
+	first, last, tot := occupiedRange(h)
+	wb := weibullObjective(h, first, last, tot)
 	for _, x := range [][]float64{{math.Log(0.1), 0.5, 0.4}, {math.Log(0.02), 0.1, 0.2}, {math.Log(0.5), 1, 0.6}} {
 		checkGrad(t, "weibullBinnedNLL", wb, x)
 	}
