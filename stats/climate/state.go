@@ -353,11 +353,14 @@ func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) (j2, h2, te2, tp
 	rec := &s.ym[yi]
 	w32 := uint32(wi)
 
+	// Every value is screened (ScreenStep above): one that is not NaN lies
+	// within the fixed-point bounds.
+
 	// J (values are below 2^63 here, so the float-to-int64 conversion,
 	// cheaper than to uint64, gives the same integer)
 	jOK := false
 	var qj uint64
-	if j >= 0 && j < maxJ {
+	if j == j {
 		jOK = true
 		qj = uint64(int64(j*qJ + 0.5))
 		s.wJ += wi
@@ -376,7 +379,7 @@ func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) (j2, h2, te2, tp
 
 	// Hm0
 	hOK := false
-	if h >= 0 && h < maxH {
+	if h == h {
 		hOK = true
 		qh := uint64(int64(h*qH + 0.5))
 		s.wH += wi
@@ -399,18 +402,18 @@ func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) (j2, h2, te2, tp
 
 	// Te, Tp
 	teOK := false
-	if te >= 0 && te < maxT {
+	if te == te {
 		teOK = true
 		s.wTe += wi
 		s.sTe += wi * uint64(int64(te*qT+0.5))
 	}
-	if tp >= 0 && tp < maxT {
+	if tp == tp {
 		s.wTp += wi
 		s.sTp += wi * uint64(int64(tp*qT+0.5))
 	}
 
 	// direction
-	if d-d == 0 && math.Abs(d) < 1e9 { // finite
+	if d == d {
 		k := dirIndex(d)
 		s.wDir += wi
 		s.sSin += int64(wi) * int64(dirTable[k].sin)
