@@ -21,7 +21,6 @@ import (
 	"path/filepath"
 	"sort"
 	"strings"
-	"syscall"
 	"time"
 
 	"github.com/paulmach/orb"
@@ -115,12 +114,8 @@ func Write(r *rundir.Run) error {
 	tmp := filepath.Join(r.Dir, "."+FileName+".partial")
 	os.Remove(tmp)
 	if err := write(tmp, stamp(r.Manifest.End), layers); err != nil {
-		full := rundir.DiskFull(r.Dir) // before the partial file's space is freed
+		err = rundir.NoSpace(r.Dir, err) // SQLite says "database or disk is full"; before the partial file's space is freed
 		os.Remove(tmp)
-		if full && !errors.Is(err, syscall.ENOSPC) {
-			// SQLite reports a full file system as "database or disk is full"
-			return fmt.Errorf("gpkg: writing %s: %w: %w; free space on the output's file system and run again", final, err, syscall.ENOSPC)
-		}
 		return fmt.Errorf("gpkg: writing %s: %w", final, err)
 	}
 	if err := os.Rename(tmp, final); err != nil {

@@ -18,7 +18,6 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"syscall"
 
 	"github.com/fhs/go-netcdf/netcdf"
 
@@ -76,12 +75,8 @@ func Write(r *rundir.Run) error {
 		return write(tmp, r, monthly)
 	})
 	if err != nil {
-		full := rundir.DiskFull(r.Dir) // before the partial file's space is freed
+		err = rundir.NoSpace(r.Dir, err) // NetCDF-C says only "HDF error"; before the partial file's space is freed
 		os.Remove(tmp)
-		if full {
-			// NetCDF-C reports a write to a full file system as "HDF error"
-			return fmt.Errorf("raster: writing %s: %w: %w; free space on the output's file system and run again", final, err, syscall.ENOSPC)
-		}
 		return fmt.Errorf("raster: writing %s: %w", final, err)
 	}
 	if err := os.Rename(tmp, final); err != nil {

@@ -637,14 +637,16 @@ func (t *Table) RowsOfStr(key, v string) []int {
 	return out
 }
 
-// DiskFull says whether the file system of the run directory dir has less
-// than 1 MiB left for an unprivileged writer: what a write error of a
-// library that gives no errno (NetCDF-C's "HDF error", SQLite's "disk is
-// full") most likely means there, so that the message can say so.
-func DiskFull(dir string) bool {
+// NoSpace adds "no space left on device" (syscall.ENOSPC) and what to do to
+// err, a write error in the run directory dir, when the file system of dir
+// has less than 1 MiB left for an unprivileged writer: what a write error of
+// a library that gives no errno (NetCDF-C's "HDF error", SQLite's "disk is
+// full") most likely means there. Otherwise, or when err already says so,
+// err is returned as it is.
+func NoSpace(dir string, err error) error {
 	var st syscall.Statfs_t
-	if err := syscall.Statfs(dir, &st); err != nil {
-		return false
+	if errors.Is(err, syscall.ENOSPC) || syscall.Statfs(dir, &st) != nil || int64(st.Bavail)*st.Bsize >= 1<<20 {
+		return err
 	}
-	return int64(st.Bavail)*st.Bsize < 1<<20
+	return fmt.Errorf("%w: %w; free space on the output's file system and run again", err, syscall.ENOSPC)
 }
