@@ -38,9 +38,9 @@ var qcTolerances = map[string]tol{
 	"te_mean_s":       tolHm0,
 	"tp_mean_s":       tolHm0,
 	"power_mean_kw_m": tolPower,
-	"gev_loc_m":       {0, 2e-3},
-	"gev_scale_m":     {0, 5e-3},
-	"gev_shape":       {5e-3, 0},
+	"gev_loc_m":       e2eCellTolerances["gev_loc_m"],
+	"gev_scale_m":     e2eCellTolerances["gev_scale_m"],
+	"gev_shape":       e2eCellTolerances["gev_shape"],
 }
 
 // TestInvalidValuesAgainstNumpy runs the fixture with injected unusable
