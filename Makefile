@@ -106,7 +106,7 @@ bench: deps
 	$(GO) install golang.org/x/perf/cmd/benchstat@$(BENCHSTAT_VERSION)
 	"$$($(GO) env GOPATH)/bin/benchstat" before=$(BENCH_OUT)/micro-before.txt after=$(BENCH_OUT)/micro.txt | tee $(BENCH_OUT)/micro-benchstat.txt
 	./pipelines/bench/compare_outputs.sh bin/swellgrid-before $(BIN) bin/sgdiff > $(BENCH_OUT)/tables.txt; cat $(BENCH_OUT)/tables.txt
-	$(MAKE) bench-memory
+	$(MAKE) bench-memory BENCH_MEM_ONLY=grid BENCH_GRID200_MONTHS=1
 
 # bench-memory: peak RSS (each case's child rusage, ru_maxrss) of the bulk
 # benchmark under --memory-limit 256MiB (target 360 MB) and the default 2GiB
@@ -114,11 +114,19 @@ bench: deps
 # their merge under 256MiB (target the limit + overhead), and the heap per
 # cell against the memory model (BenchmarkCellMemory). Figures go to
 # $(BENCH_OUT)/memory.md; BENCHMARKS.md (memory section) reads them.
+#
+# Inside `make bench` only the 200 x 200 cases run, on a 1-month record: the
+# bulk benchmark's peaks at 256MiB and at the default limit are already in
+# sgbench's table (the same child ru_maxrss), and the 12-month grid takes
+# about 23 passes of minutes each. `make bench-memory` alone runs every case.
+BENCH_MEM_ONLY ?=
+BENCH_GRID200_MONTHS ?= 12
 bench-memory: deps
 	@mkdir -p $(BENCH_OUT) bin
 	$(GO) build -o $(BIN) ./cmd/swellgrid
 	$(GO) build -o bin/sgmem ./pipelines/bench/cmd/sgmem
-	./bin/sgmem -cache $(BENCH_CACHE) -bin $(BIN) -md $(BENCH_OUT)/memory.md
+	./bin/sgmem -cache $(BENCH_CACHE) -bin $(BIN) -md $(BENCH_OUT)/memory.md \
+	  -only '$(BENCH_MEM_ONLY)' -grid200-months $(BENCH_GRID200_MONTHS)
 	$(GO) test -run '^$$' -bench CellMemory -benchtime 3x ./pipelines/ | tee -a $(BENCH_OUT)/memory.md
 
 # Fuzz targets, each for FUZZTIME (go test -fuzz runs one target at a time).
