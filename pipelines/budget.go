@@ -151,9 +151,10 @@ func (e *engine) memoryModel() (perCell, perResult float64, fixed int64) {
 	perResult = float64(m.Result) + float64(2*ncols*8+64)
 	g := e.cat.Grid
 	n := int64(g.NCells())
-	// The table writers hold a row group of every table and encode one
-	// (rowGroupRows: 2 MiB of values each), or the whole tables if smaller.
-	writers := min(int64(len(longSchemas)+1+2)*(2<<20), int64(3*float64(n)*perResult))
+	// The table writers hold a row group of every table and encode
+	// sinkEncoders at a time, 2 row groups' worth each (rowGroupRows: 2 MiB
+	// of values), or the whole tables if smaller.
+	writers := min(int64(len(longSchemas)+1+2*sinkEncoders)*(2<<20), int64(3*float64(n)*perResult))
 	fixed = n*48 + int64(e.cat.Steps)*48 + // lon, lat, depth, mask, ids; times
 		int64(len(e.spec.Contours.Columns))*n*8 + writers
 	return perCell, perResult, fixed

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math/bits"
 	"path/filepath"
+	"sync"
 
 	"swellgrid/export"
 	"swellgrid/grid"
@@ -31,14 +32,16 @@ type tableSink struct {
 	e       *engine
 	out     string
 	cells   *export.TableStream
-	long    []*export.TableStream // by longSchemas
+	long    []*export.TableStream // in the order of their file names
+	schemas []longTable           // the schema of each of long
 	names   []string              // file names of long
+	workers int                   // the run's workers (sinkEncoders caps the goroutines)
 	next    int                   // the next cell id to write
 	contour map[string][]float64  // the contour columns over the grid
 }
 
-func (e *engine) openSink(out string) (*tableSink, error) {
-	s := &tableSink{e: e, out: out, contour: map[string][]float64{}}
+func (e *engine) openSink(out string, workers int) (*tableSink, error) {
+	s := &tableSink{e: e, out: out, workers: workers, contour: map[string][]float64{}}
 	g := e.cat.Grid
 	var err error
 	if s.cells, err = export.NewGeoParquetStream(filepath.Join(out, "cells.parquet"), e.cellsTable(0, 0, nil), g.Lon, g.Lat); err != nil {
@@ -55,7 +58,7 @@ func (e *engine) openSink(out string) (*tableSink, error) {
 			s.abort()
 			return nil, fmt.Errorf("writing %s: %w", name, err)
 		}
-		s.long, s.names = append(s.long, st), append(s.names, name)
+		s.long, s.schemas, s.names = append(s.long, st), append(s.schemas, byName[name]), append(s.names, name)
 	}
 	for _, col := range e.spec.Contours.Columns {
 		s.contour[col] = nil // contourer says whether the grid has contours
@@ -84,16 +87,58 @@ func (s *tableSink) add(lo, hi int, res []*cellResult) error {
 			s.contour[c.Name] = append(v, c.Float64...)
 		}
 	}
-	for k, name := range s.names {
-		for _, lt := range longSchemas {
-			if lt.file() == name {
-				if err := s.long[k].Append(lt.build(res)); err != nil {
-					return fmt.Errorf("writing %s: %w", name, err)
-				}
-			}
+	// Each long table is its own stream: they are built and encoded
+	// side by side, each by one goroutine in cell order, so the bytes are
+	// those of one table after the other.
+	if err := s.eachLong(func(k int) error {
+		if err := s.long[k].Append(s.schemas[k].build(res)); err != nil {
+			return fmt.Errorf("writing %s: %w", s.names[k], err)
 		}
+		return nil
+	}); err != nil {
+		return err
 	}
 	s.next = hi
+	return nil
+}
+
+// sinkEncoders is the number of long tables built and encoded at a time
+// (at most; never more than the run's workers). Two take the stage off one
+// core; each more would hold one more table's columns and encoder
+// (memoryModel counts this many) for less gain, the tables being unequal.
+const sinkEncoders = 2
+
+// eachLong calls f for every long table k, on up to sinkEncoders
+// goroutines, and returns the error of the first table (in file order)
+// that failed.
+func (s *tableSink) eachLong(f func(k int) error) error {
+	errs := make([]error, len(s.long))
+	next := make(chan int, len(s.long))
+	for k := range s.long {
+		next <- k
+	}
+	close(next)
+	var wg sync.WaitGroup
+	for w := 0; w < min(max(s.workers, 1), sinkEncoders, len(s.long)); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for k := range next {
+				errs[k] = f(k)
+			}
+		}()
+	}
+	wg.Wait()
+	return firstErr(errs)
+}
+
+// firstErr is the first non-nil error of errs, or nil.
+func firstErr(errs []error) error {
+	for _, err := range errs {
+		if err != nil {
+			return err
+		}
+	}
 	return nil
 }
 
@@ -109,13 +154,16 @@ func (s *tableSink) close() ([]string, []string, error) {
 		s.abort()
 		return nil, nil, fmt.Errorf("writing cells.parquet: %w", err)
 	}
-	for k, st := range s.long {
-		if err := st.Close(); err != nil {
-			s.abort()
-			return nil, nil, fmt.Errorf("writing %s: %w", s.names[k], err)
+	if err := s.eachLong(func(k int) error {
+		if err := s.long[k].Close(); err != nil {
+			return fmt.Errorf("writing %s: %w", s.names[k], err)
 		}
-		written = append(written, s.names[k])
+		return nil
+	}); err != nil {
+		s.abort()
+		return nil, nil, err
 	}
+	written = append(written, s.names...)
 	if s.e.cat.Grid.Kind == grid.MeshKind {
 		files, err := writeMeshTables(s.out, s.e.cat.Grid)
 		if err != nil {

@@ -351,7 +351,7 @@ func (j *job) fitPass(ctx context.Context, c0, n int, next func(off, k int) ([]*
 	ts := time.Now()
 	defer j.mark("fit_s", ts)
 	if j.sink == nil {
-		s, err := j.eng.openSink(j.out)
+		s, err := j.eng.openSink(j.out, j.workers)
 		if err != nil {
 			return outputError(err)
 		}
@@ -391,7 +391,7 @@ func (j *job) export(ctx context.Context, sums []string) (*Result, error) {
 		return nil, err
 	}
 	if j.sink == nil { // no cells at all
-		s, err := j.eng.openSink(j.out)
+		s, err := j.eng.openSink(j.out, j.workers)
 		if err != nil {
 			return nil, outputError(err)
 		}
