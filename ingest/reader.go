@@ -186,7 +186,7 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 			if spec {
 				per = nf * nd
 			}
-			p := pendingRole{role: role, dst: make([]float64, nt*nc*per), per: per}
+			p := pendingRole{role: role, dst: newValues(nt * nc * per), per: per}
 			if src, ok := sources[role]; ok {
 				// The source's steps within this block, k0..k1-1.
 				u := c.Files[src.fi].uidx
@@ -220,6 +220,9 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 			// benchmark's reader); a full-range read refuses a role file
 			// without data before handing on the segment's last block.
 			b.Cook(r.C0, r.C1, pending)
+			for i := range b.pend {
+				b.pend[i].slab.release()
+			}
 			b.pend = nil
 			if b.LastOfFile {
 				c.Settle(pending, done, fi, r.FromFile, r.C0, r.C1)

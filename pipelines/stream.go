@@ -334,6 +334,12 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 		for _, ch := range chans {
 			ch <- job{b, times, wg}
 		}
+		go func() { // once every worker has fed it, its arrays serve later blocks
+			wg.Wait()
+			if !failed.set() {
+				b.Release()
+			}
+		}()
 		if b.LastOfFile {
 			wg.Wait()
 			if err := failed.get(); err != nil {
