@@ -52,3 +52,24 @@ func TestPeakRSS(t *testing.T) {
 		t.Fatalf("VmHWM %d bytes after touching 64 MiB", rss)
 	}
 }
+
+// The cache directory of a scenario is named by its values: two copies of
+// the spectral scenario (their Spectra at different addresses) share it, and
+// a changed value does not (the cache would otherwise be regenerated on
+// every run, or reused when stale).
+func TestCacheKeyByValue(t *testing.T) {
+	a, b := SpectralScenario(2), SpectralScenario(2)
+	if a.Spectra == b.Spectra {
+		t.Fatal("the two scenarios share their Spectra; the test needs two copies")
+	}
+	if key(a) != key(b) {
+		t.Errorf("equal scenarios, keys %s and %s", key(a), key(b))
+	}
+	b.Spectra.NDir++
+	if key(a) == key(b) {
+		t.Errorf("NDir changed, key still %s", key(a))
+	}
+	if c := SpectralScenario(1); key(c) == key(a) {
+		t.Errorf("record length changed, key still %s", key(a))
+	}
+}

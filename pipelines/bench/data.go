@@ -74,11 +74,15 @@ func SpectralScenario(years int) synth.Scenario {
 // key names a scenario's cache directory: a hash of every field, so a changed
 // scenario never reuses stale files. (A changed generator with the same
 // scenario does; delete the cache directory then.)
+// The spectra are hashed by value and their pointer left out: "%+v" of the
+// scenario would print the pointer's address, different in every run, and
+// so regenerate the spectral hindcast (2 minutes) every time.
 func key(s synth.Scenario) string {
 	sp := ""
 	if s.Spectra != nil {
 		sp = fmt.Sprintf("%+v", *s.Spectra)
 	}
+	s.Spectra = nil
 	h := sha256.Sum256([]byte(fmt.Sprintf("%+v|%s", s, sp)))
 	return s.Name + "-" + hex.EncodeToString(h[:6])
 }

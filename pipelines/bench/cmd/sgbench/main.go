@@ -36,8 +36,10 @@ func main() {
 	only := flag.String("only", "", `measure only this data set ("bulk" or "spectral")`)
 	before := flag.String("before", "", "also run every pipeline case with this benchmark program (built on an earlier commit)")
 	parts := flag.String("parts", "full,half", "record lengths to measure (full, half)")
+	mem256 := flag.Bool("mem256", true, "also run the bulk benchmark under --memory-limit 256MiB (about 9 minutes a program)")
 	flag.Parse()
-	cfg := bench.Config{Cache: *cache, Markdown: *md, Only: *only, Before: *before, Parts: strings.Split(*parts, ","), Log: os.Stderr, Out: os.Stdout}
+	cfg := bench.Config{Cache: *cache, Markdown: *md, Only: *only, Before: *before, Parts: strings.Split(*parts, ","),
+		SkipMem256: !*mem256, Log: os.Stderr, Out: os.Stdout}
 	if err := bench.Main(cfg); err != nil {
 		fmt.Fprintln(os.Stderr, "sgbench:", err)
 		os.Exit(1)
