@@ -106,7 +106,7 @@ bench: deps
 	$(GO) install golang.org/x/perf/cmd/benchstat@$(BENCHSTAT_VERSION)
 	"$$($(GO) env GOPATH)/bin/benchstat" before=$(BENCH_OUT)/micro-before.txt after=$(BENCH_OUT)/micro.txt | tee $(BENCH_OUT)/micro-benchstat.txt
 	./pipelines/bench/compare_outputs.sh bin/swellgrid-before $(BIN) bin/sgdiff > $(BENCH_OUT)/tables.txt; cat $(BENCH_OUT)/tables.txt
-	$(MAKE) bench-memory BENCH_MEM_ONLY=grid BENCH_GRID200_MONTHS=1
+	$(MAKE) bench-memory BENCH_MEM_ONLY=grid,merge BENCH_GRID200_MONTHS=1
 
 # bench-memory: peak RSS (each case's child rusage, ru_maxrss) of the bulk
 # benchmark under --memory-limit 256MiB (target 360 MB) and the default 2GiB
