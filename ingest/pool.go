@@ -9,50 +9,59 @@ import (
 // workers unpack are large (a 64-step block of 200 spectra of 29 x 24 holds
 // 71 MB of values) and were made afresh for every block: the runtime then
 // faults in and zeroes that much new memory per block, on the reader's
-// goroutine, and collects it again (in the spectral benchmark a fifth of
-// the reader's time). A consumer that calls Block.Release once it is done
-// with a block lets the reader reuse its arrays. The pools are sync.Pools,
-// one per length, so what is not reused is collected like any garbage:
-// they hold at most the blocks that were alive at the same time.
-type slicePool[T any] struct {
-	mu    sync.Mutex
-	byLen map[int]*sync.Pool
+// goroutine, and collects it again. A consumer that calls Block.Release
+// once it is done with a block lets the reader reuse its arrays: a free
+// list of at most maxFree arrays of each type, any one long enough serving
+// (resliced). Read empties the lists when it returns, so nothing is kept
+// past the stream, and the arrays in existence are at most those of the
+// blocks in flight (which the memory plan counts) and maxFree more.
+type freeList[T any] struct {
+	mu   sync.Mutex
+	free [][]T
 }
 
-func (p *slicePool[T]) pool(n int) *sync.Pool {
-	p.mu.Lock()
-	defer p.mu.Unlock()
-	if p.byLen == nil {
-		p.byLen = map[int]*sync.Pool{}
-	}
-	q := p.byLen[n]
-	if q == nil {
-		q = &sync.Pool{}
-		p.byLen[n] = q
-	}
-	return q
-}
+// maxFree bounds each free list: the blocks in flight of a read (the
+// reader's, two queued, the workers') times a few roles.
+const maxFree = 16
 
 // get returns a slice of length n: a released one (its old values still
-// in it) or, if none, a new one (zeroed).
-func (p *slicePool[T]) get(n int) (s []T, reused bool) {
-	if v, _ := p.pool(n).Get().(*[]T); v != nil {
-		return *v, true
+// in it) or, if none is long enough, a new one (zeroed).
+func (l *freeList[T]) get(n int) []T {
+	l.mu.Lock()
+	for i := len(l.free) - 1; i >= 0; i-- {
+		if s := l.free[i]; cap(s) >= n {
+			l.free = append(l.free[:i], l.free[i+1:]...)
+			l.mu.Unlock()
+			return s[:n]
+		}
 	}
-	return make([]T, n), false
+	l.mu.Unlock()
+	return make([]T, n)
 }
 
-// put hands s back for reuse by a get of the same length.
-func (p *slicePool[T]) put(s []T) {
-	if len(s) > 0 {
-		p.pool(len(s)).Put(&s)
+// put hands s back for reuse (dropped when the list is full).
+func (l *freeList[T]) put(s []T) {
+	if cap(s) == 0 {
+		return
 	}
+	l.mu.Lock()
+	if len(l.free) < maxFree {
+		l.free = append(l.free, s)
+	}
+	l.mu.Unlock()
+}
+
+// reset drops every array of the list.
+func (l *freeList[T]) reset() {
+	l.mu.Lock()
+	l.free = nil
+	l.mu.Unlock()
 }
 
 var (
-	valuePool slicePool[float64] // Block.Bulk and Block.Spec
-	f32Pool   slicePool[float32] // raw slabs of float variables
-	i16Pool   slicePool[int16]   // raw slabs of short variables
+	valuePool freeList[float64] // Block.Bulk and Block.Spec
+	f32Pool   freeList[float32] // raw slabs of float variables
+	i16Pool   freeList[int16]   // raw slabs of short variables
 )
 
 // newValues is a block's value array of n values, every one NaN (missing)
@@ -61,12 +70,22 @@ var (
 // write (every layout's cook writes each value of its cells; this is the
 // guard, and cheaper than the page faults of new memory).
 func newValues(n int) []float64 {
-	s, _ := valuePool.get(n)
+	s := valuePool.get(n)
 	nan := math.NaN()
 	for i := range s {
 		s[i] = nan
 	}
 	return s
+}
+
+// DropBlockBuffers drops the arrays released for reuse. Read calls it when
+// it returns; a consumer whose workers release blocks after that (the
+// stream stage's) calls it once they are done, so that no block array is
+// kept into the work that follows.
+func DropBlockBuffers() {
+	valuePool.reset()
+	f32Pool.reset()
+	i16Pool.reset()
 }
 
 // Release hands the block's arrays back for reuse by the blocks read

@@ -73,6 +73,7 @@ func (c *Catalog) Read(ctx context.Context, r ReadRange, out chan<- *Block) erro
 	if r.MaxSteps <= 0 {
 		r.MaxSteps = 64
 	}
+	defer DropBlockBuffers()
 	if r.Sample > 0 {
 		r.MaxSteps = r.Sample
 	}

@@ -316,6 +316,7 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 			close(ch)
 		}
 		all.Wait()
+		ingest.DropBlockBuffers() // the released blocks' arrays (a release may still be pending: it is then collected)
 		for w := range busy {
 			e.times.feedBusy += busy[w]
 			e.times.cookBusy += cook[w]
