@@ -25,18 +25,18 @@ type freeList[T any] struct {
 const maxFree = 16
 
 // get returns a slice of length n: a released one (its old values still
-// in it) or, if none is long enough, a new one (zeroed).
-func (l *freeList[T]) get(n int) []T {
+// in it, reused true) or, if none is long enough, a new one (zeroed).
+func (l *freeList[T]) get(n int) (s []T, reused bool) {
 	l.mu.Lock()
 	for i := len(l.free) - 1; i >= 0; i-- {
 		if s := l.free[i]; cap(s) >= n {
 			l.free = append(l.free[:i], l.free[i+1:]...)
 			l.mu.Unlock()
-			return s[:n]
+			return s[:n], true
 		}
 	}
 	l.mu.Unlock()
-	return make([]T, n)
+	return make([]T, n), false
 }
 
 // put hands s back for reuse (dropped when the list is full).
@@ -64,16 +64,18 @@ var (
 	i16Pool   freeList[int16]   // raw slabs of short variables
 )
 
-// newValues is a block's value array of n values, every one NaN (missing)
-// until cooked. A reused array is set to NaN, as a new one would be 0: so
-// no value of an earlier block can stay in it even where a cook did not
-// write (every layout's cook writes each value of its cells; this is the
-// guard, and cheaper than the page faults of new memory).
+// newValues is a block's value array of n values. A reused array is set
+// to NaN (missing) first, so no value of an earlier block can stay in it
+// even where a cook did not write (every layout's cook writes each value of
+// its cells; this is the guard, and cheaper than the page faults of new
+// memory); a new one is zero, as it always was.
 func newValues(n int) []float64 {
-	s := valuePool.get(n)
-	nan := math.NaN()
-	for i := range s {
-		s[i] = nan
+	s, reused := valuePool.get(n)
+	if reused {
+		nan := math.NaN()
+		for i := range s {
+			s[i] = nan
+		}
 	}
 	return s
 }

@@ -271,10 +271,10 @@ func (c *Catalog) readRaw(path string, vi *VarInfo, g *grid.Grid, invX, invY []i
 	ncMu.Lock()
 	switch v.typ {
 	case netcdf.FLOAT:
-		s.f32 = f32Pool.get(total) // every value is read over
+		s.f32, _ = f32Pool.get(total) // every value is read over
 		err = v.readTyped(s.f32, start, count)
 	case netcdf.SHORT:
-		s.i16 = i16Pool.get(total)
+		s.i16, _ = i16Pool.get(total)
 		err = v.readTyped(s.i16, start, count)
 	default:
 		s.f64 = make([]float64, total)
