@@ -117,7 +117,7 @@ bench: deps
 #
 # Inside `make bench` only the 200 x 200 cases run, on a 1-month record: the
 # bulk benchmark's peaks at 256MiB and at the default limit are already in
-# sgbench's table (the same child ru_maxrss), and the 12-month grid takes
+# sgbench's table (each child's own VmHWM), and the 12-month grid takes
 # about 23 passes of minutes each. `make bench-memory` alone runs every case.
 BENCH_MEM_ONLY ?=
 BENCH_GRID200_MONTHS ?= 12

@@ -94,14 +94,21 @@ func DropBlockBuffers() {
 // after it. Call it once, when nothing reads b.Bulk or b.Spec (or a slice
 // of them) any more; the block holds no values afterwards.
 func (b *Block) Release() {
-	for i := range b.pend {
-		b.pend[i].slab.release()
-	}
+	b.releaseSlabs()
 	for _, v := range b.Bulk {
 		valuePool.put(v)
 	}
 	valuePool.put(b.Spec)
-	b.Bulk, b.Spec, b.pend = nil, nil, nil
+	b.Bulk, b.Spec = nil, nil
+}
+
+// releaseSlabs hands back the raw arrays of the block's slabs, once every
+// cell is cooked, and forgets the slabs.
+func (b *Block) releaseSlabs() {
+	for i := range b.pend {
+		b.pend[i].slab.release()
+	}
+	b.pend = nil
 }
 
 // release hands the slab's raw array back (nil: nothing).

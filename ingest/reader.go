@@ -221,10 +221,7 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 			// benchmark's reader); a full-range read refuses a role file
 			// without data before handing on the segment's last block.
 			b.Cook(r.C0, r.C1, pending)
-			for i := range b.pend {
-				b.pend[i].slab.release()
-			}
-			b.pend = nil
+			b.releaseSlabs()
 			if b.LastOfFile {
 				c.Settle(pending, done, fi, r.FromFile, r.C0, r.C1)
 				if err := c.CheckTally(done); err != nil {
