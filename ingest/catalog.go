@@ -60,6 +60,9 @@ type Options struct {
 	BathymetryFile string          // a separate file holding the depth role
 	DirectionTo    *bool           // spectral direction convention when the coordinate does not say
 	AllowLongGaps  bool            // accept time gaps longer than the rest of the record
+	// Duplicates says which file's values a time held by two files of a
+	// role takes (spec key input.duplicate_steps).
+	Duplicates DuplicatePolicy
 	// Ctx, if set, stops Open between files when it is cancelled (a signal).
 	Ctx context.Context
 }
@@ -160,26 +163,34 @@ type FileInfo struct {
 	// next has none of its own.
 	Offset int `json:"-"`
 
-	vars      map[Role]*VarInfo
-	times     []Stamp
-	uidx      []int     // index in the record of each of the file's steps
-	timeUnits string    // the time variable's units attribute
-	stamp     fileStamp // the file as the catalog saw it (identity.go)
+	vars  map[Role]*VarInfo
+	times []Stamp
+	uidx  []int // index in the record of each of the file's steps read (file steps lead..keep-1)
+	// lead and keep bound the file's steps that are read, lead..keep-1: the
+	// steps before lead and from keep on are shared with the neighbouring
+	// file of a role, which gives their values (Catalog.Duplicates).
+	lead, keep int
+	timeUnits  string    // the time variable's units attribute
+	stamp      fileStamp // the file as the catalog saw it (identity.go)
 	// xFile, yFile are this file's own orientation: the file index of each
 	// canonical column and row (grid.Grid.XFile/YFile of the file's axes).
 	xFile, yFile []int
 }
 
-// Gap is a stretch of missing time steps: steps absent from the record
-// between two of its times, or (with Role) steps of the record that no file
-// of one role holds.
+// Gap is time that no step of the record covers (between two of its times:
+// First is where the uncovered time begins, Hours its length; see
+// timeaxis.go for the rule that tells a gap from a longer step), or (with
+// Role) steps of the record that no file of one role holds (First and Last
+// are the first and last of them, Missing their number, Hours the time they
+// stand for).
 type Gap struct {
-	Role    string `json:"role,omitempty"`
-	After   string `json:"after,omitempty"`  // the last time before the gap ("" at the start)
-	Before  string `json:"before,omitempty"` // the first time after it ("" at the end)
-	First   string `json:"first_missing,omitempty"`
-	Last    string `json:"last_missing,omitempty"`
-	Missing int    `json:"missing_steps"`
+	Role    string  `json:"role,omitempty"`
+	After   string  `json:"after,omitempty"`  // the last time before the gap ("" at the start)
+	Before  string  `json:"before,omitempty"` // the first time after it ("" at the end)
+	First   string  `json:"first_missing,omitempty"`
+	Last    string  `json:"last_missing,omitempty"`
+	Missing int     `json:"missing_steps,omitempty"`
+	Hours   float64 `json:"missing_hours"`
 }
 
 // Spectral is the frequency/direction layout of the spectra, in file order.
@@ -191,12 +202,16 @@ type Spectral struct {
 
 // Catalog is everything known about a hindcast before its values are read.
 type Catalog struct {
-	Files       []FileInfo        `json:"files"`
-	Calendar    Calendar          `json:"calendar"`
-	Steps       int               `json:"steps"`
+	Files    []FileInfo `json:"files"`
+	Calendar Calendar   `json:"calendar"`
+	Steps    int        `json:"steps"`
+	// StepSeconds is the most common step (ties: the shortest); each step's
+	// own duration is StepHours(i), and Segments lists where it changes.
 	StepSeconds int64             `json:"step_seconds"`
+	Segments    []Segment         `json:"time_segments"`
 	Start, End  string            `json:"-"`
 	Gaps        []Gap             `json:"gaps"`
+	Duplicates  []Duplicate       `json:"duplicate_steps,omitempty"`
 	Grid        *grid.Grid        `json:"-"`
 	Vars        map[Role]*VarInfo `json:"roles"`
 	Spectral    *Spectral         `json:"spectral,omitempty"`
@@ -213,6 +228,8 @@ type Catalog struct {
 	Names []string `json:"-"`
 
 	times     []Stamp
+	dur       []int64         // seconds each step stands for (timeaxis.go)
+	gapAfter  []bool          // time no step covers follows the step
 	gridDim   map[string]axis // dimension name -> spatial axis
 	roleFiles map[Role][]int  // role varying in time -> indices of the files holding it, in time order
 }
@@ -295,6 +312,19 @@ func expand(inputs, pats []string, what, none string) ([]string, error) {
 // record's time axis is the union of every file's times, and a step where a
 // role has no file is missing for that role (a per-role gap).
 func Open(inputs []string, opt Options) (*Catalog, error) {
+	c, err := openLocked(inputs, opt)
+	if err != nil {
+		return nil, err
+	}
+	if err := c.checkDuplicates(opt.Duplicates); err != nil {
+		return nil, err
+	}
+	return c, nil
+}
+
+// openLocked is Open but for the comparison of duplicate steps, with ncMu
+// held throughout.
+func openLocked(inputs []string, opt Options) (*Catalog, error) {
 	paths, err := Expand(inputs)
 	if err != nil {
 		return nil, err
@@ -362,7 +392,7 @@ func Open(inputs []string, opt Options) (*Catalog, error) {
 	if err := c.checkRoles(scans); err != nil {
 		return nil, err
 	}
-	if err := c.buildTimeAxis(); err != nil {
+	if err := c.buildTimeAxis(opt.Duplicates); err != nil {
 		return nil, err
 	}
 	if err := c.checkLongGaps(opt.AllowLongGaps); err != nil {
@@ -468,19 +498,42 @@ func filesWord(fs []FileInfo) string {
 }
 
 // buildTimeAxis builds the record's time axis, the union of every file's
-// times, checks that each role's files follow each other without overlap,
-// and records gaps of the whole record and of each role.
-func (c *Catalog) buildTimeAxis() error {
+// times, checks that each role's files follow each other without overlap
+// (but for shared boundary steps, held by two files: each is read from one
+// file, per policy, and compared by checkDuplicates), finds each step's
+// duration, the segments of constant step and the gaps (timeaxis.go), and
+// records the gaps of each role.
+func (c *Catalog) buildTimeAxis(policy DuplicatePolicy) error {
+	for i := range c.Files {
+		c.Files[i].lead, c.Files[i].keep = 0, len(c.Files[i].times)
+	}
 	for _, r := range sortedRoles(c.roleFiles) {
 		fs := c.roleFiles[r]
 		for k := 1; k < len(fs); k++ {
 			p, f := &c.Files[fs[k-1]], &c.Files[fs[k]]
-			if f.First <= p.Last {
+			if f.First > p.Last {
+				continue
+			}
+			n := sharedSteps(p.times, f.times)
+			if n == 0 || n >= len(f.times) || n >= len(p.times) {
 				what := "overlap in time"
 				if f.First == p.First {
 					what = "start at the same time"
 				}
-				return fmt.Errorf("ingest: %s and %s %s (%s .. %s vs %s .. %s), both holding role %s (variable %q); remove the duplicate or overlapping file from the input", p.Path, f.Path, what, p.From, p.To, f.From, f.To, r, f.vars[r].Name)
+				return fmt.Errorf("ingest: %s and %s %s (%s .. %s vs %s .. %s), both holding role %s (variable %q); remove the duplicate or overlapping file from the input (only steps shared at a boundary, the last steps of one file being the first of the next, are read once)", p.Path, f.Path, what, p.From, p.To, f.From, f.To, r, f.vars[r].Name)
+			}
+			// The shared steps are read from one of the two files.
+			if policy == DuplicatesLast {
+				p.keep = min(p.keep, len(p.times)-n)
+			} else {
+				f.lead = max(f.lead, n)
+			}
+			used := p
+			if policy == DuplicatesLast {
+				used = f
+			}
+			for _, t := range f.times[:n] {
+				c.Duplicates = append(c.Duplicates, Duplicate{Role: string(r), Time: c.Date(t).String(), Files: []string{p.Path, f.Path}, Identical: true, Used: used.Path, stamp: t, a: fs[k-1], b: fs[k]})
 			}
 		}
 	}
@@ -500,8 +553,9 @@ func (c *Catalog) buildTimeAxis() error {
 	}
 	for i := range c.Files {
 		f := &c.Files[i]
-		f.uidx = make([]int, len(f.times))
-		for k, t := range f.times {
+		kept := f.times[f.lead:f.keep]
+		f.uidx = make([]int, len(kept))
+		for k, t := range kept {
 			f.uidx[k] = sort.Search(len(c.times), func(j int) bool { return c.times[j] >= t })
 		}
 		if len(f.uidx) > 0 {
@@ -509,7 +563,7 @@ func (c *Catalog) buildTimeAxis() error {
 		}
 	}
 	c.Start, c.End = c.Date(c.times[0]).String(), c.Date(c.times[c.Steps-1]).String()
-	// Nominal step: the most common difference (ties: the smallest).
+	// Most common step: the most common difference (ties: the smallest).
 	count := map[int64]int{}
 	for i := 1; i < len(c.times); i++ {
 		count[int64(c.times[i]-c.times[i-1])]++
@@ -524,25 +578,9 @@ func (c *Catalog) buildTimeAxis() error {
 	if best == 0 && c.Steps > 1 {
 		return fmt.Errorf("ingest: cannot determine the time step")
 	}
-	irregular := 0
-	for i := 1; i < len(c.times) && best > 0; i++ {
-		d := int64(c.times[i] - c.times[i-1])
-		if d > best {
-			c.Gaps = append(c.Gaps, c.gap(c.times[i-1], c.times[i], int((d+best/2)/best)-1))
-		}
-		if d%best != 0 {
-			irregular++
-		}
-	}
-	if irregular > 0 {
-		c.Warnings = append(c.Warnings, fmt.Sprintf("%d time steps are not a whole multiple of the nominal step of %d s", irregular, best))
-	}
-	if len(c.Gaps) > 0 {
-		miss := 0
-		for _, g := range c.Gaps {
-			miss += g.Missing
-		}
-		c.Warnings = append(c.Warnings, fmt.Sprintf("%d gaps in the time axis, %d missing steps in all", len(c.Gaps), miss))
+	c.timeDurations()
+	if len(c.Duplicates) > 0 {
+		c.Warnings = append(c.Warnings, fmt.Sprintf("%d time steps are held by two files of a role (first %s, in %s and %s); each is read once, from %s", len(c.Duplicates), c.Duplicates[0].Time, c.Duplicates[0].Files[0], c.Duplicates[0].Files[1], policyText(policy)))
 	}
 	// Per-role gaps: steps of the record that no file of the role holds.
 	for _, r := range sortedRoles(c.roleFiles) {
@@ -560,10 +598,12 @@ func (c *Catalog) buildTimeAxis() error {
 				continue
 			}
 			j := i
+			var secs int64
 			for j < c.Steps && !have[j] {
+				secs += c.dur[j]
 				j++
 			}
-			g := Gap{Role: string(r), Missing: j - i, First: c.Date(c.times[i]).String(), Last: c.Date(c.times[j-1]).String()}
+			g := Gap{Role: string(r), Missing: j - i, Hours: float64(secs) / 3600, First: c.Date(c.times[i]).String(), Last: c.Date(c.times[j-1]).String()}
 			if i > 0 {
 				g.After = c.Date(c.times[i-1]).String()
 			}
@@ -582,14 +622,31 @@ func (c *Catalog) buildTimeAxis() error {
 	return nil
 }
 
-// gap describes the missing steps between two consecutive times a and b.
-func (c *Catalog) gap(a, b Stamp, missing int) Gap {
-	g := Gap{After: c.Date(a).String(), Before: c.Date(b).String(), Missing: missing}
-	if missing > 0 && c.StepSeconds > 0 {
-		g.First = c.Date(a + Stamp(c.StepSeconds)).String()
-		g.Last = c.Date(b - Stamp(c.StepSeconds)).String()
+// sharedSteps is the number n of steps that end a and begin b (a's last n
+// times are b's first n), or 0 when the overlap of the two is not such a
+// boundary.
+func sharedSteps(a, b []Stamp) int {
+	i := sort.Search(len(a), func(k int) bool { return a[k] >= b[0] })
+	n := len(a) - i
+	if n == 0 || n > len(b) {
+		return 0
 	}
-	return g
+	for k := 0; k < n; k++ {
+		if a[i+k] != b[k] {
+			return 0
+		}
+	}
+	return n
+}
+
+func policyText(p DuplicatePolicy) string {
+	switch p {
+	case DuplicatesLast:
+		return "the later file (input.duplicate_steps = \"last\")"
+	case DuplicatesFirst:
+		return "the earlier file (input.duplicate_steps = \"first\")"
+	}
+	return "the earlier file (their values are compared: different values are refused)"
 }
 
 func (c *Catalog) resolveDepth(scans []*scan, opt Options) error {

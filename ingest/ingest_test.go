@@ -75,7 +75,7 @@ func TestReadBackPlacementAndUnpacking(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if cat.Steps != 3 || cat.StepSeconds != 3*3600 || len(cat.Gaps) != 1 || cat.Gaps[0].Missing != 1 {
+	if cat.Steps != 3 || cat.StepSeconds != 3*3600 || len(cat.Gaps) != 1 || cat.Gaps[0].Hours != 3 || cat.Gaps[0].First != "2001-01-01 06:00:00" {
 		t.Fatalf("time axis: steps %d step %d gaps %+v", cat.Steps, cat.StepSeconds, cat.Gaps)
 	}
 	// Depth, canonical cell 0 = lat 50 (file row 2), lon -10 (file column 0).

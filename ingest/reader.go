@@ -121,11 +121,12 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 		trimCHeap() // the file's chunk buffers, freed by the close
 		ncMu.Unlock()
 	}()
-	t0 := c.times[s0]
 	for _, role := range sortedRoles(c.roleFiles) {
 		for _, j := range c.roleFiles[role] {
 			fe := &c.Files[j]
-			if fe.First > t0 || fe.Last < t0 {
+			// the file of the role whose steps read (a step shared with the
+			// neighbouring file is read from one of them) span step s0
+			if len(fe.uidx) == 0 || fe.uidx[0] > s0 || fe.uidx[len(fe.uidx)-1] < s0 {
 				continue
 			}
 			f := opened[j]
@@ -194,7 +195,8 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 				k0 := sort.SearchInts(u, b0)
 				k1 := sort.SearchInts(u, b0+nt)
 				if k1 > k0 {
-					sl, err := c.readRaw(c.Files[src.fi].Path, src.vi, src.g, src.invX, src.invY, k0, k1-k0, r.C0, r.C1)
+					// uidx[k] is the file's step lead+k
+					sl, err := c.readRaw(c.Files[src.fi].Path, src.vi, src.g, src.invX, src.invY, c.Files[src.fi].lead+k0, k1-k0, r.C0, r.C1)
 					if err != nil {
 						return err
 					}

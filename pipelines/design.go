@@ -1,8 +1,10 @@
 package pipelines
 
 import (
+	"fmt"
 	"math"
 
+	"swellgrid/ingest"
 	"swellgrid/stats/climate"
 	"swellgrid/stats/design"
 	"swellgrid/stats/extremes"
@@ -20,15 +22,46 @@ type cellDesign struct {
 }
 
 // seaStateHours is the duration of one sea state for the contours: the
-// spec's design.sea_state_h, else the data's time step.
+// spec's design.sea_state_h, else the data's time step; when the step
+// changes, the step of the segment that covers the most time (seaStateNote
+// says so in the manifest).
 func (e *engine) seaStateHours() float64 {
 	if h := e.spec.Design.SeaStateH; h > 0 {
 		return h
+	}
+	if sg := e.longestSegment(); sg != nil {
+		return sg.StepHours
 	}
 	if e.cat.StepSeconds > 0 {
 		return float64(e.cat.StepSeconds) / 3600
 	}
 	return 3 // no step known (a single step): the common 3-hour sea state
+}
+
+// longestSegment is the segment of constant step covering the most time
+// (the earliest of equals), nil when none has a constant step or the record
+// has one step.
+func (e *engine) longestSegment() *ingest.Segment {
+	var best *ingest.Segment
+	for i := range e.cat.Segments {
+		sg := &e.cat.Segments[i]
+		if sg.StepHours > 0 && (best == nil || sg.Hours > best.Hours) {
+			best = sg
+		}
+	}
+	if e.cat.Steps < 2 {
+		return nil
+	}
+	return best
+}
+
+// seaStateNote says which sea-state duration the design contours use when
+// the record's step changes ("" when it does not, or the spec sets it).
+func (e *engine) seaStateNote() string {
+	if len(e.cat.Segments) < 2 && (len(e.cat.Segments) == 0 || e.cat.Segments[0].StepHours > 0) || e.spec.Design.SeaStateH > 0 {
+		return ""
+	}
+	return fmt.Sprintf("the time step changes (%d segments): the design contours take a sea state of %g h, the step of the segment covering the most time; set design.sea_state_h to choose another", len(e.cat.Segments), e.seaStateHours())
 }
 
 // designInputs turns a cell's Hm0 exceedance curve and joint Hm0 x Te

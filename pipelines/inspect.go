@@ -8,6 +8,7 @@ import (
 	"io"
 	"math"
 	"sort"
+	"strconv"
 	"strings"
 	"text/tabwriter"
 
@@ -22,12 +23,17 @@ type InspectReport struct {
 	End         string            `json:"end"`
 	Steps       int               `json:"steps"`
 	StepSeconds int64             `json:"step_seconds"`
-	Gaps        []ingest.Gap      `json:"gaps"`
-	RoleGaps    []ingest.Gap      `json:"role_gaps,omitempty"`
-	GridKind    string            `json:"grid_kind"`
-	GridShape   [2]int            `json:"grid_shape_ny_nx"`
-	Cells       int               `json:"cells"`
-	MaskedCells int               `json:"masked_cells"`
+	// Segments are the stretches of one step duration (or irregular),
+	// CoveredHours the time the steps stand for.
+	Segments     []ingest.Segment   `json:"time_segments"`
+	CoveredHours float64            `json:"covered_hours"`
+	Gaps         []ingest.Gap       `json:"gaps"`
+	Duplicates   []ingest.Duplicate `json:"duplicate_steps,omitempty"`
+	RoleGaps     []ingest.Gap       `json:"role_gaps,omitempty"`
+	GridKind     string             `json:"grid_kind"`
+	GridShape    [2]int             `json:"grid_shape_ny_nx"`
+	Cells        int                `json:"cells"`
+	MaskedCells  int                `json:"masked_cells"`
 	// EmptyCells of MaskedCells have no depth or mask against them but no
 	// value at any sampled step (the first steps of every file): land in a
 	// set without depth. A run flags every cell without a value masked.
@@ -216,7 +222,8 @@ func dash(s string) string {
 func report(cat *ingest.Catalog) *InspectReport {
 	r := &InspectReport{Files: cat.Files, Calendar: cat.Calendar, Start: cat.Start, End: cat.End, Steps: cat.Steps,
 		StepSeconds: cat.StepSeconds, Gaps: cat.Gaps, RoleGaps: cat.RoleGaps, GridKind: cat.Grid.Kind.String(), GridShape: [2]int{cat.Grid.NY, cat.Grid.NX},
-		Cells: cat.Grid.NCells(), Roles: cat.Vars, Spectral: cat.Spectral, DepthSource: cat.DepthSource, Warnings: cat.Warnings}
+		Cells: cat.Grid.NCells(), Roles: cat.Vars, Spectral: cat.Spectral, DepthSource: cat.DepthSource, Warnings: cat.Warnings,
+		Segments: cat.Segments, CoveredHours: cat.CoveredHours(), Duplicates: cat.Duplicates}
 	if r.Gaps == nil {
 		r.Gaps = []ingest.Gap{}
 	}
@@ -291,8 +298,34 @@ func (r *InspectReport) WriteText(w io.Writer) error {
 		}
 	}
 	fmt.Fprintf(&sb, "time         %s .. %s (%s calendar)\n", r.Start, r.End, r.Calendar)
-	fmt.Fprintf(&sb, "steps        %d, step %s\n", r.Steps, hms(r.StepSeconds))
+	switch {
+	case len(r.Segments) == 1 && r.Segments[0].StepHours > 0:
+		fmt.Fprintf(&sb, "steps        %d, every %s (%s hours)\n", r.Steps, hms(int64(math.Round(r.Segments[0].StepHours*3600))), hoursText(r.CoveredHours))
+	default:
+		fmt.Fprintf(&sb, "steps        %d, the step changes (%d segments, %s hours)\n", r.Steps, len(r.Segments), hoursText(r.CoveredHours))
+		for i, sg := range r.Segments {
+			if i == 12 {
+				fmt.Fprintf(&sb, "  ... and %d more segments\n", len(r.Segments)-12)
+				break
+			}
+			fmt.Fprintf(&sb, "  %s\n", sg)
+		}
+	}
 	writeGaps(&sb, "gaps        ", r.Gaps)
+	if len(r.Duplicates) > 0 {
+		fmt.Fprintf(&sb, "duplicates   %d time steps held by two files, each read once\n", len(r.Duplicates))
+		for i, d := range r.Duplicates {
+			if i == 5 {
+				fmt.Fprintf(&sb, "  ... and %d more\n", len(r.Duplicates)-5)
+				break
+			}
+			same := "identical values"
+			if !d.Identical {
+				same = "different values"
+			}
+			fmt.Fprintf(&sb, "  %s %s in %s and %s (%s; read from %s)\n", d.Role, d.Time, ingest.PathText(d.Files[0]), ingest.PathText(d.Files[1]), same, ingest.PathText(d.Used))
+		}
+	}
 	if len(r.RoleGaps) > 0 {
 		byRole := map[string][]ingest.Gap{}
 		var order []string
@@ -356,23 +389,33 @@ func writeGaps(sb *strings.Builder, label string, gaps []ingest.Gap) {
 		fmt.Fprintf(sb, "%s none\n", label)
 		return
 	}
-	miss := 0
+	miss, hours := 0, 0.0
 	for _, g := range gaps {
 		miss += g.Missing
+		hours += g.Hours
 	}
-	fmt.Fprintf(sb, "%s %d (%d missing steps)\n", label, len(gaps), miss)
+	if miss > 0 { // a role's gaps: steps of the record in no file of the role
+		fmt.Fprintf(sb, "%s %d (%d missing steps, %s hours)\n", label, len(gaps), miss, hoursText(hours))
+	} else {
+		fmt.Fprintf(sb, "%s %d (%s hours not covered)\n", label, len(gaps), hoursText(hours))
+	}
 	for i, g := range gaps {
 		if i == 5 {
 			fmt.Fprintf(sb, "  ... and %d more gaps\n", len(gaps)-5)
 			break
 		}
 		switch {
-		case g.First != "":
+		case g.Missing > 0:
 			fmt.Fprintf(sb, "  %s .. %s missing (%d steps)\n", g.First, g.Last, g.Missing)
 		default:
-			fmt.Fprintf(sb, "  after %s, before %s: %d missing\n", g.After, g.Before, g.Missing)
+			fmt.Fprintf(sb, "  after %s, before %s: %s hours not covered, from %s\n", g.After, g.Before, hoursText(g.Hours), g.First)
 		}
 	}
+}
+
+// hoursText writes hours briefly (to a thousandth): 744, 1.5.
+func hoursText(h float64) string {
+	return strconv.FormatFloat(math.Round(h*1000)/1000, 'f', -1, 64)
 }
 
 func hms(s int64) string {

@@ -84,16 +84,25 @@ func (e *engine) writeContours(out string, vals map[string][]float64) ([]string,
 
 // Manifest is manifest.json: what went in, what settings, what came out.
 type Manifest struct {
-	Software    string                          `json:"software"`
-	Version     string                          `json:"version"`
-	Caution     string                          `json:"caution"`
-	Inputs      []ManifestInput                 `json:"inputs"`
-	Calendar    string                          `json:"calendar"`
-	Start       string                          `json:"time_start"`
-	End         string                          `json:"time_end"`
-	Steps       int                             `json:"steps"`
-	StepSeconds int64                           `json:"step_seconds"`
-	Gaps        []ingest.Gap                    `json:"gaps"`
+	Software    string          `json:"software"`
+	Version     string          `json:"version"`
+	Caution     string          `json:"caution"`
+	Inputs      []ManifestInput `json:"inputs"`
+	Calendar    string          `json:"calendar"`
+	Start       string          `json:"time_start"`
+	End         string          `json:"time_end"`
+	Steps       int             `json:"steps"`
+	StepSeconds int64           `json:"step_seconds"`
+	// Segments are the stretches of one step duration (or irregular), and
+	// CoveredHours the time the steps stand for (ingest/timeaxis.go).
+	Segments     []ingest.Segment `json:"time_segments"`
+	CoveredHours float64          `json:"covered_hours"`
+	// StepDurations identifies the durations the steps were weighted by
+	// (an update checks that the earlier steps keep them).
+	StepDurations ingest.Durations `json:"step_durations"`
+	Gaps          []ingest.Gap     `json:"gaps"`
+	// Duplicates are the times held by two files of a role, each read once.
+	Duplicates  []ingest.Duplicate              `json:"duplicate_steps,omitempty"`
 	RoleGaps    []ingest.Gap                    `json:"role_gaps,omitempty"` // steps with no file for one role (one variable per file)
 	Grid        ManifestGrid                    `json:"grid"`
 	Roles       map[ingest.Role]*ingest.VarInfo `json:"roles"`
@@ -140,6 +149,12 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 	if m.Gaps == nil {
 		m.Gaps = []ingest.Gap{}
 	}
+	m.Segments, m.CoveredHours, m.StepDurations = c.Segments, c.CoveredHours(), c.DurationsOf(c.Steps)
+	for _, d := range c.Duplicates {
+		d.Files = []string{ingest.PathText(d.Files[0]), ingest.PathText(d.Files[1])}
+		d.Used = ingest.PathText(d.Used)
+		m.Duplicates = append(m.Duplicates, d)
+	}
 	for i, f := range c.Files {
 		m.Inputs = append(m.Inputs, ManifestInput{Path: ingest.PathText(f.Path), Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
 	}
@@ -159,6 +174,10 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 		}
 	} else {
 		m.Assumptions = append(m.Assumptions, "wave power from the spectra with finite-depth group velocity of linear theory")
+	}
+	m.Assumptions = append(m.Assumptions, "each time step stands for the time until the next step (the last step, and a step before a gap, for the step before it); every statistic is weighted by that duration; a difference between steps longer than 1.5 times the upper quartile of the 24 differences around it is a gap, time that no step covers")
+	if n := e.seaStateNote(); n != "" {
+		m.Assumptions = append(m.Assumptions, n)
 	}
 	m.Assumptions = append(m.Assumptions, e.deviceAssumptions()...)
 	if strings.HasPrefix(c.DepthSource, "deep-water") {

@@ -64,7 +64,8 @@ func IsResumeRefused(err error) bool {
 
 // ingestOptions maps the spec to the reader's options.
 func (s *Spec) ingestOptions() ingest.Options {
-	opt := ingest.Options{Vars: map[ingest.Role]string{}, Units: map[ingest.Role]string{}, AllowLongGaps: s.Input.AllowLongGaps}
+	opt := ingest.Options{Vars: map[ingest.Role]string{}, Units: map[ingest.Role]string{}, AllowLongGaps: s.Input.AllowLongGaps,
+		Duplicates: ingest.DuplicatePolicy(s.Input.DuplicateSteps)}
 	for k, v := range s.Roles {
 		opt.Vars[ingest.Role(k)] = v
 	}

@@ -73,9 +73,11 @@ type ShardManifest struct {
 	Passes      [][2]int        `json:"passes"`
 	Fingerprint string          `json:"spec_fingerprint"`
 	Inputs      []ManifestInput `json:"inputs"`
-	Spec        *Spec           `json:"spec"`
-	WallS       float64         `json:"wall_s"`
-	Note        string          `json:"note"`
+	// StepDurations identifies the durations the steps were weighted by.
+	StepDurations ingest.Durations `json:"step_durations"`
+	Spec          *Spec            `json:"spec"`
+	WallS         float64          `json:"wall_s"`
+	Note          string           `json:"note"`
 }
 
 // writeShard finishes a shard run: it writes shard.json beside the final
@@ -84,7 +86,7 @@ func writeShard(out string, spec *Spec, cat *ingest.Catalog, sh Shard, c0, c1 in
 	st := *spec
 	st.Input.Paths = absPaths(spec.Input.Paths)
 	m := &ShardManifest{Software: "swellgrid", Version: version, Shard: sh.Index, Shards: sh.Count, C0: c0, C1: c1,
-		GridCells: cat.Grid.NCells(), Passes: passes, Fingerprint: spec.Fingerprint(), Spec: &st,
+		GridCells: cat.Grid.NCells(), Passes: passes, Fingerprint: spec.Fingerprint(), Spec: &st, StepDurations: cat.DurationsOf(cat.Steps),
 		WallS: time.Since(t0).Seconds(),
 		Note:  "a shard of a swellgrid run: its per-cell states are in .swellgrid/; combine all shards with `swellgrid merge --out DIR SHARD_DIR...`"}
 	for i, f := range cat.Files {

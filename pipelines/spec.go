@@ -68,6 +68,10 @@ type InputSpec struct {
 	// AllowLongGaps accepts a time gap longer than the rest of the record
 	// (refused by default: usually a mistyped reference date).
 	AllowLongGaps bool `toml:"allow_long_gaps" json:"allow_long_gaps,omitempty"`
+	// DuplicateSteps says which file's values a time held by two files of a
+	// role takes: "" (identical values used once, different values refused),
+	// "first" (the earlier file's) or "last" (the later file's).
+	DuplicateSteps string `toml:"duplicate_steps" json:"duplicate_steps,omitempty"`
 }
 
 // DepthSpec says where the water depth comes from.
@@ -249,6 +253,11 @@ func (s *Spec) Validate() error {
 	}
 	if len(s.Input.Paths) == 0 {
 		return fmt.Errorf("spec: no input: give input.paths in the spec or --input")
+	}
+	switch s.Input.DuplicateSteps {
+	case "", "first", "last":
+	default:
+		return bad("input.duplicate_steps", `must be "first" (the earlier file's values) or "last" (the later file's), or absent (different values refused)`, strconv.Quote(s.Input.DuplicateSteps))
 	}
 	switch s.Depth.Source {
 	case "file", "deep-water":

@@ -102,6 +102,7 @@ func (e *engine) newCell(id int) *cell {
 type stepTime struct {
 	year, month int
 	hours       float64
+	weightH     float64          // the time the step stands for, hours
 	ct          climate.StepTime // the same, checked and in minutes, for climate.CellState.AddAt
 }
 
@@ -237,13 +238,15 @@ func allMissing(s []float64) bool {
 	return true
 }
 
-// blockTimes converts a block's stamps to calendar fields once per block.
+// blockTimes converts a block's stamps to calendar fields and durations once
+// per block.
 func (e *engine) blockTimes(b *ingest.Block) []stepTime {
 	out := make([]stepTime, b.NT)
 	for t, s := range b.Times {
 		d := e.cat.Date(s)
-		out[t] = stepTime{year: d.Year, month: d.Month, hours: s.Hours(),
-			ct: climate.PrepareTime(d.Year, d.Month, s.Hours(), e.dtHours)}
+		w := e.cat.StepHours(b.Step0 + t) // the step's own duration (ingest/timeaxis.go)
+		out[t] = stepTime{year: d.Year, month: d.Month, hours: s.Hours(), weightH: w,
+			ct: climate.PrepareTime(d.Year, d.Month, s.Hours(), w)}
 	}
 	return out
 }

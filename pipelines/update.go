@@ -44,9 +44,12 @@ func IsUpdateRefused(err error) bool {
 
 // priorRun is what a finished run directory says about its inputs and spec.
 type priorRun struct {
-	inputs []ManifestInput
-	spec   json.RawMessage
-	shard  *ShardManifest
+	inputs    []ManifestInput
+	spec      json.RawMessage
+	shard     *ShardManifest
+	durations ingest.Durations // empty in a run made before durations were recorded
+	steps     int
+	stepSecs  int64
 }
 
 func readPriorRun(dir string) (*priorRun, error) {
@@ -56,7 +59,7 @@ func readPriorRun(dir string) (*priorRun, error) {
 			return nil, err
 		}
 		b, _ := json.Marshal(m.Spec)
-		return &priorRun{inputs: m.Inputs, spec: b, shard: m}, nil
+		return &priorRun{inputs: m.Inputs, spec: b, shard: m, durations: m.StepDurations}, nil
 	}
 	path := filepath.Join(dir, "manifest.json")
 	b, err := os.ReadFile(path)
@@ -67,13 +70,16 @@ func readPriorRun(dir string) (*priorRun, error) {
 		return nil, err
 	}
 	var m struct {
-		Inputs     []ManifestInput `json:"inputs"`
-		Parameters json.RawMessage `json:"parameters"`
+		Inputs        []ManifestInput  `json:"inputs"`
+		Parameters    json.RawMessage  `json:"parameters"`
+		Steps         int              `json:"steps"`
+		StepSeconds   int64            `json:"step_seconds"`
+		StepDurations ingest.Durations `json:"step_durations"`
 	}
 	if err := json.Unmarshal(b, &m); err != nil {
 		return nil, fmt.Errorf("%s: %w", path, err)
 	}
-	return &priorRun{inputs: m.Inputs, spec: m.Parameters}, nil
+	return &priorRun{inputs: m.Inputs, spec: m.Parameters, durations: m.StepDurations, steps: m.Steps, stepSecs: m.StepSeconds}, nil
 }
 
 // checkUpdate checks that the run in dir can be continued with the catalog
@@ -123,7 +129,29 @@ func checkUpdate(dir string, spec *Spec, cat *ingest.Catalog, sh *Shard) (*updat
 	if why := inputChanges(prior.inputs, cat, nil); why != "" {
 		return nil, &updateRefused{dir, why}
 	}
+	if why := durationChanges(prior, cat); why != "" {
+		return nil, &updateRefused{dir, why + "; run over all files into a new directory"}
+	}
 	return up, nil
+}
+
+// durationChanges says why the steps the saved states were fed would not
+// keep their durations with the new files ("" when they do): the states
+// hold each step weighted by its duration, and a step's duration is the
+// time until the next step, so the new files must begin after the earlier
+// record's last step and leave the earlier durations as they were.
+func durationChanges(prior *priorRun, cat *ingest.Catalog) string {
+	old := prior.durations
+	if old.SHA256 == "" {
+		if prior.stepSecs <= 0 || prior.steps <= 0 {
+			return "" // nothing recorded to compare (a shard of an earlier version): the states' checksums still guard them
+		}
+		old.Steps = prior.steps
+	}
+	if e := len(prior.inputs); e < len(cat.Files) && cat.Files[e].Offset != old.Steps {
+		return fmt.Sprintf("the new file %s begins at step %d of the record, but the earlier run read %d steps (a time held by two files is read from the later one: input.duplicate_steps = \"last\"?)", cat.Files[e].Path, cat.Files[e].Offset, old.Steps)
+	}
+	return cat.DurationsChange(old, prior.stepSecs)
 }
 
 // inputContentChanges is inputChanges with the checksums sums of the

@@ -559,7 +559,7 @@ func (v *validator) compare(p *stationPlace) (*stationResult, error) {
 		case v.vs.Time == "interpolate" && i < len(times) && times[i] == t:
 			m.s0, m.s1 = i, i
 		case v.vs.Time == "interpolate":
-			if i == 0 || i == len(times) || int64(times[i]-times[i-1]) > v.cat.StepSeconds*3/2 {
+			if i == 0 || i == len(times) || v.cat.GapAfter(i-1) {
 				r.unpaired++ // at the record's ends or across a gap
 				continue
 			}

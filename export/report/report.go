@@ -266,13 +266,16 @@ func summary(r *rundir.Run) [][2]string {
 	for _, in := range m.Inputs {
 		size += in.Size
 	}
-	missing := 0
+	missing := 0.0
 	for _, g := range m.Gaps {
-		missing += g.Missing
+		missing += g.Hours
 	}
 	cov := "no gaps in the time axis"
 	if len(m.Gaps) > 0 {
-		cov = fmt.Sprintf("%d gaps, %d missing time steps (%.2f%% of the record)", len(m.Gaps), missing, 100*float64(missing)/math.Max(1, float64(m.Steps+missing)))
+		cov = fmt.Sprintf("%d gaps, %s hours not covered (%.2f%% of the record)", len(m.Gaps), fmtNum(missing), 100*missing/math.Max(1, m.CovHours+missing))
+	}
+	if len(m.Duplicates) > 0 {
+		cov += fmt.Sprintf("; %d time steps held by two files, each read once (see manifest.json duplicate_steps)", len(m.Duplicates))
 	}
 	if c := r.Cells.Col("coverage"); c != nil {
 		lo, hi := math.Inf(1), math.Inf(-1)
@@ -288,7 +291,7 @@ func summary(r *rundir.Run) [][2]string {
 	g := m.Grid
 	return [][2]string{
 		{"Inputs", fmt.Sprintf("%d files, %.1f MB", len(m.Inputs), float64(size)/1e6)},
-		{"Record", fmt.Sprintf("%s to %s, %d time steps of %s, calendar %s", m.Start, m.End, m.Steps, stepText(m.StepSeconds), m.Calendar)},
+		{"Record", fmt.Sprintf("%s to %s, %d time steps, %s, calendar %s", m.Start, m.End, m.Steps, segmentsText(m), m.Calendar)},
 		{"Coverage and gaps", cov},
 		{"Grid", fmt.Sprintf("%s, %d x %d (%d cells, %d masked), lon %s to %s, lat %s to %s", g.Kind, g.Shape[0], g.Shape[1], g.Cells, g.Masked,
 			fmtNum(g.BBox[0]), fmtNum(g.BBox[2]), fmtNum(g.BBox[1]), fmtNum(g.BBox[3]))},
@@ -318,6 +321,32 @@ func runTime(t map[string]float64) string {
 		return "not recorded in the manifest"
 	}
 	return fmt.Sprintf("%s s (%s; the report and atlas files not included)", strconv.FormatFloat(total, 'f', 1, 64), strings.Join(parts, ", "))
+}
+
+// segmentsText says how the record's step runs: "every 3 h", or its
+// segments when the step changes ("2001-01-01 00:00:00 to 2002-12-31
+// 21:00:00 every 3 h; ..."); a manifest without segments gives its step.
+func segmentsText(m *rundir.Manifest) string {
+	if len(m.Segments) == 0 {
+		return "step " + stepText(m.StepSeconds)
+	}
+	if len(m.Segments) == 1 && m.Segments[0].StepHours > 0 {
+		return "every " + stepText(int64(math.Round(m.Segments[0].StepHours*3600)))
+	}
+	var parts []string
+	for i, sg := range m.Segments {
+		if i == 8 {
+			parts = append(parts, fmt.Sprintf("and %d more segments (see manifest.json time_segments)", len(m.Segments)-8))
+			break
+		}
+		if sg.StepHours > 0 {
+			parts = append(parts, fmt.Sprintf("%s to %s every %s", sg.First, sg.Last, stepText(int64(math.Round(sg.StepHours*3600)))))
+		} else {
+			parts = append(parts, fmt.Sprintf("%s to %s irregular, steps of %s to %s", sg.First, sg.Last,
+				stepText(int64(math.Round(sg.MinStepHours*3600))), stepText(int64(math.Round(sg.MaxStepHours*3600)))))
+		}
+	}
+	return "the step changes: " + strings.Join(parts, "; ")
 }
 
 func stepText(s int64) string {
@@ -364,8 +393,8 @@ var indexPage = template.Must(template.New("index").Funcs(funcs).Parse(`<!DOCTYP
 <table><tr><th>file</th><th>first time</th><th>last time</th><th>steps</th></tr>
 {{range .Inputs}}<tr><td>{{.Path}}</td><td>{{.First}}</td><td>{{.Last}}</td><td>{{.Steps}}</td></tr>{{end}}</table>
 {{if .InputsMore}}<p>and {{.InputsMore}} more files (see manifest.json).</p>{{end}}
-{{if .Gaps}}<h3>Gaps in the record</h3><table><tr><th>after</th><th>before</th><th>missing steps</th></tr>
-{{range .Gaps}}<tr><td>{{.After}}</td><td>{{.Before}}</td><td>{{.Missing}}</td></tr>{{end}}</table>
+{{if .Gaps}}<h3>Gaps in the record</h3><table><tr><th>after</th><th>before</th><th>hours not covered</th></tr>
+{{range .Gaps}}<tr><td>{{.After}}</td><td>{{.Before}}</td><td>{{.Hours}}</td></tr>{{end}}</table>
 {{if .GapsMore}}<p>and {{.GapsMore}} more gaps (see manifest.json).</p>{{end}}{{end}}
 <h3>Assumptions</h3><ul>{{range .Assumptions}}<li>{{.}}</li>{{end}}</ul>
 <h3>Warnings</h3>{{if .Warnings}}<ul>{{range .Warnings}}<li>{{.}}</li>{{end}}</ul>{{else}}<p>none</p>{{end}}

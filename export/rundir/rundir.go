@@ -350,7 +350,10 @@ type Manifest struct {
 	End         string             `json:"time_end"`
 	Steps       int                `json:"steps"`
 	StepSeconds int64              `json:"step_seconds"`
+	Segments    []Segment          `json:"time_segments"`
+	CovHours    float64            `json:"covered_hours"`
 	Gaps        []Gap              `json:"gaps"`
+	Duplicates  []Duplicate        `json:"duplicate_steps"`
 	Grid        Grid               `json:"grid"`
 	DepthSource string             `json:"depth_source"`
 	Assumptions []string           `json:"assumptions"`
@@ -369,11 +372,31 @@ type Input struct {
 	Steps int    `json:"steps"`
 }
 
-// Gap is a hole in the time axis.
+// Gap is time in the record that no step covers.
 type Gap struct {
-	After   string `json:"after"`
-	Before  string `json:"before"`
-	Missing int    `json:"missing_steps"`
+	After  string  `json:"after"`
+	Before string  `json:"before"`
+	Hours  float64 `json:"missing_hours"`
+}
+
+// Segment is a stretch of the record with one step duration (StepHours;
+// 0: irregular, its steps from MinStepHours to MaxStepHours).
+type Segment struct {
+	First        string  `json:"first"`
+	Last         string  `json:"last"`
+	Steps        int     `json:"steps"`
+	StepHours    float64 `json:"step_hours"`
+	MinStepHours float64 `json:"min_step_hours"`
+	MaxStepHours float64 `json:"max_step_hours"`
+}
+
+// Duplicate is a time held by two input files, read once.
+type Duplicate struct {
+	Role      string   `json:"role"`
+	Time      string   `json:"time"`
+	Files     []string `json:"files"`
+	Identical bool     `json:"identical"`
+	Used      string   `json:"used"`
 }
 
 // Grid is the grid of the run.
