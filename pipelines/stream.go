@@ -152,7 +152,7 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 				c.kern.SectorPowers(e.sectors, sectorJ)
 				c.clim.AddDirectionalPower(&st.ct, sectorJ, dir)
 			}
-			c.col.Add(st.year, st.month, st.hours, hm0, te, tp)
+			c.col.Add(st.year, st.month, st.hours, e.dtHours, hm0, te, tp)
 		}
 	}
 }
@@ -218,7 +218,7 @@ func (e *engine) feedBulk(b *ingest.Block, times []stepTime, cells []*cell, lo, 
 			// screened: unusable values counted and left out, here as in the state
 			j, hm0, te, tp, dir := c.clim.AddAt(&st.ct, jv[t*w+k], hm0s[i], tev[t*w+k], tp, dir)
 			c.clim.AddDirection(&st.ct, j, dir)
-			c.col.Add(st.year, st.month, st.hours, hm0, te, tp)
+			c.col.Add(st.year, st.month, st.hours, e.dtHours, hm0, te, tp)
 		}
 	}
 }

@@ -49,8 +49,13 @@ type AnalysisConfig struct {
 	// this many times the analysed record (GEV: analysed years; GPD: record
 	// years); default 4 (common practice).
 	MaxExtrapolation float64
-	MinYearCoverage  float64 // fraction of a full year's steps for its maximum to count; default 0.8
-	RecordYears      float64 // record length in years for the peak rate; default from the step counts
+	// MinYearCoverage is the share of a full year's time (the largest covered
+	// time of any year) that a year's valid time must reach for its maximum to
+	// count; default 0.8 (see Analyse).
+	MinYearCoverage float64
+	// RecordYears is the record length in years for the peak rate; default
+	// the record's years of covered time (see Analyse).
+	RecordYears float64
 	// DepthM is the water depth of the cell (m; 0, NaN or +Inf: deep or
 	// unknown, no limit). BreakingRatio (default 0.6) times DepthM is the
 	// depth-limited Hm0 (see DepthLimit).
@@ -192,11 +197,11 @@ type Association struct {
 
 // Result is everything Analyse reports for one cell.
 type Result struct {
-	RecordYears  float64 // record length used for the peak rate
-	Years        int     // complete years whose maxima entered the GEV fit
+	RecordYears  float64 // record length used for the peak rate, years of covered time
+	Years        int     // complete years (by covered time) whose maxima entered the GEV fit
 	MaxAnnual    float64 // largest analysed annual maximum, m (NaN if none)
 	Threshold    float64 // m
-	PeaksPerYear float64 // exceedances of the threshold per year
+	PeaksPerYear float64 // exceedances of the threshold per year of record (RecordYears)
 	DepthLimit   float64 // BreakingRatio x depth, m (NaN: deep or unknown)
 	GEV          MethodResult
 	GPD          MethodResult
@@ -265,6 +270,21 @@ func nanLevel(T float64) Level {
 // return levels with intervals, associated periods and flags. It never fails:
 // problems are flags. Levels follow Publication; parameters are reported
 // wherever the fit converged.
+//
+// Years are measured in time, not in steps (issue 27: a record whose step
+// changes has years of equal length but unequal step counts). With F the
+// largest covered time of any year (the time a full year holds in this
+// record's calendar and layout), V_y the valid time of year y and sum V the
+// valid time of the record (Collector.Years, whole minutes):
+//
+//	year y is complete, and its maximum enters the GEV, when V_y / F >= MinYearCoverage;
+//	RecordYears = sum V / F (years of covered time), unless cfg.RecordYears > 0;
+//	PeaksPerYear = exceedances / RecordYears.
+//
+// Both ratios are of integers, so a record of one constant step gives the
+// same figures as counting steps (the step cancels exactly). The fullest year
+// stands for a complete year, so the rule needs no calendar (360-day, leap
+// or not); the 0.8 default share is common practice, not a standard.
 func Analyse(c *Collector, cfg AnalysisConfig) Result {
 	cfg = cfg.withDefaults()
 	res := Result{Caution: Caution, MaxAnnual: math.NaN(), DepthLimit: DepthLimit(cfg.DepthM, cfg.BreakingRatio)}
@@ -273,21 +293,21 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 	// a record are usually partial: leaving them out is normal and not flagged;
 	// a year left out inside the record is.
 	years := c.Years()
-	var full int64
-	var valid int64
+	var full int64  // F, minutes
+	var valid int64 // sum V, minutes
 	for _, y := range years {
-		full = max(full, y.Steps)
-		valid += y.Valid
+		full = max(full, y.Minutes)
+		valid += y.ValidMinutes
 	}
 	am := c.AnnualMaxima()
 	var amx []float64
 	var incomplete bool
 	cov := map[int]int64{}
 	for _, y := range years {
-		cov[y.Year] = y.Valid
+		cov[y.Year] = y.ValidMinutes
 	}
 	for i, m := range am {
-		if float64(cov[m.Year]) >= cfg.MinYearCoverage*float64(full) {
+		if float64(cov[m.Year])/float64(full) >= cfg.MinYearCoverage {
 			amx = append(amx, m.Hm0)
 			if !(m.Hm0 <= res.MaxAnnual) {
 				res.MaxAnnual = m.Hm0

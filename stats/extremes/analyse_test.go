@@ -29,7 +29,7 @@ func streamKnown(years int, seed uint64) (*Collector, []float64) {
 			if d == peakDay {
 				v = am
 			}
-			c.Add(2000+y, d/30+1, h, v, 4.5*math.Sqrt(v), 5.2*math.Sqrt(v))
+			c.Add(2000+y, d/30+1, h, 24, v, 4.5*math.Sqrt(v), 5.2*math.Sqrt(v))
 			h += 24
 		}
 	}
@@ -109,7 +109,7 @@ func TestAnalyseFlags(t *testing.T) {
 	r := rand.New(rand.NewPCG(1, 1))
 	for y := 0; y < 12; y++ {
 		for d := 0; d < 360; d++ {
-			small.Add(2000+y, d/30+1, h, 1+3*r.Float64(), 8, 10)
+			small.Add(2000+y, d/30+1, h, 24, 1+3*r.Float64(), 8, 10)
 			h += 24
 		}
 	}

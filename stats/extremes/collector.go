@@ -52,11 +52,12 @@ type Maximum struct {
 	Tp    float64 // s (NaN if missing)
 }
 
-// yearStats is the per-year part of the state.
+// yearStats is the per-year part of the state. Times are whole minutes (see
+// StepMinutes), so that sums of parts are exact and merges are byte-identical.
 type yearStats struct {
 	Max        Maximum // largest Hm0 of the year (earliest on ties)
-	Steps      int64   // time steps seen (valid or missing)
-	Valid      int64   // steps with finite Hm0
+	Minutes    int64   // covered time: durations of the steps seen (valid or missing), minutes
+	ValidMin   int64   // valid time: durations of the steps with finite Hm0, minutes
 	Dropped    int64   // storm peaks dropped by MaxPeaksPerYear
 	DroppedMax float64 // largest dropped peak Hm0 (NaN if none)
 }
@@ -103,8 +104,8 @@ func NewCollector(cfg CollectorConfig) *Collector {
 // Config returns the configuration in use (with defaults filled in).
 func (c *Collector) Config() CollectorConfig { return c.cfg }
 
-// Err returns the first input error (a step out of time order); such steps are
-// ignored.
+// Err returns the first input error (a step out of time order, or a step
+// without a usable duration); such steps are ignored.
 func (c *Collector) Err() error { return c.err }
 
 // analysisYear maps a calendar (year, month) to the analysis year.
@@ -115,11 +116,42 @@ func (c *Collector) analysisYear(year, month int) int {
 	return year
 }
 
+// maxStepMinutes is the longest step duration Add accepts, 2^20 minutes
+// (about 728 days), the bound of stats/climate's time weights.
+const maxStepMinutes = 1 << 20
+
+// StepMinutes is the duration of a step in whole minutes, the unit in which a
+// Collector counts time:
+//
+//	m = round(weightH x 60), accepted when 1 <= m <= 2^20 (30 s to about 728 days);
+//
+// it returns 0 for any other weightH (not finite, not positive, too short or
+// too long). Whole minutes make the per-year sums integers, exact under merging
+// in any split; stats/climate weights its sums by the same whole minutes.
+func StepMinutes(weightH float64) int64 {
+	m := math.Round(weightH * 60)
+	if !(m >= 1 && m <= maxStepMinutes) {
+		return 0
+	}
+	return int64(m)
+}
+
 // Add feeds one time step: calendar year and month of the step, its time in
-// hours on a continuous axis (the data calendar's), and Hm0 (m), Te, Tp (s).
-// A NaN (or infinite) Hm0 marks a missing step. Steps must come in strictly
-// increasing time; an out-of-order step is ignored and recorded in Err.
-func (c *Collector) Add(year, month int, hours, hm0, te, tp float64) {
+// hours on a continuous axis (the data calendar's), its duration weightH in
+// hours (the time the step stands for, from the time axis's duration rule;
+// counted in whole minutes, see StepMinutes), and Hm0 (m), Te, Tp (s). A NaN
+// (or infinite) Hm0 marks a missing step: its duration counts as covered time
+// but not as valid time. Steps must come in strictly increasing time; an
+// out-of-order step, or one whose duration is not usable (StepMinutes 0), is
+// ignored and recorded in Err.
+func (c *Collector) Add(year, month int, hours, weightH, hm0, te, tp float64) {
+	w := StepMinutes(weightH)
+	if w == 0 {
+		if c.err == nil {
+			c.err = fmt.Errorf("extremes: step at %g h has duration %g h, outside 30 s .. 728 days; give every step its duration in hours from the time axis", hours, weightH)
+		}
+		return
+	}
 	if c.started && !(hours > c.last) {
 		if c.err == nil {
 			c.err = fmt.Errorf("extremes: step at %g h is not after the previous step at %g h; feed each cell in time order", hours, c.last)
@@ -132,13 +164,14 @@ func (c *Collector) Add(year, month int, hours, hm0, te, tp float64) {
 	c.last = hours
 	y := c.analysisYear(year, month)
 	ys := c.yearFor(y)
-	ys.Steps++
+	ys.Minutes += w
 	if math.IsNaN(hm0) || math.IsInf(hm0, 0) {
 		return
 	}
-	ys.Valid++
+	first := ys.ValidMin == 0
+	ys.ValidMin += w
 	s := Maximum{Year: y, Hours: hours, Hm0: hm0, Te: te, Tp: tp}
-	if ys.Valid == 1 || hm0 > ys.Max.Hm0 {
+	if first || hm0 > ys.Max.Hm0 {
 		ys.Max = s
 	}
 	c.feedPeak(s)
@@ -243,28 +276,31 @@ func (c *Collector) confirm(p Maximum) {
 func (c *Collector) AnnualMaxima() []Maximum {
 	out := make([]Maximum, 0, len(c.years))
 	for _, y := range c.years {
-		if y.Valid > 0 {
+		if y.ValidMin > 0 {
 			out = append(out, y.Max)
 		}
 	}
 	return out
 }
 
-// YearCoverage describes the data of one analysis year.
+// YearCoverage describes the data of one analysis year. Times are whole
+// minutes (hours = Minutes / 60), the sums of the steps' durations (see Add).
 type YearCoverage struct {
-	Year         int
-	Steps, Valid int64
+	Year int
+	// Minutes is the covered time (steps valid or missing), ValidMinutes the
+	// time of the steps with a finite Hm0.
+	Minutes, ValidMinutes int64
 	// DroppedPeaks is the number of storm peaks dropped by MaxPeaksPerYear and
 	// DroppedMaxHm0 the largest of them (NaN if none).
 	DroppedPeaks  int64
 	DroppedMaxHm0 float64
 }
 
-// Years returns the per-year step counts, in year order.
+// Years returns the per-year covered and valid time, in year order.
 func (c *Collector) Years() []YearCoverage {
 	out := make([]YearCoverage, len(c.years))
 	for i, y := range c.years {
-		out[i] = YearCoverage{Year: y.Max.Year, Steps: y.Steps, Valid: y.Valid, DroppedPeaks: y.Dropped, DroppedMaxHm0: y.DroppedMax}
+		out[i] = YearCoverage{Year: y.Max.Year, Minutes: y.Minutes, ValidMinutes: y.ValidMin, DroppedPeaks: y.Dropped, DroppedMaxHm0: y.DroppedMax}
 	}
 	return out
 }
@@ -331,11 +367,11 @@ func (c *Collector) Merge(later *Collector) error {
 	lb := later.years
 	if n := len(c.years); n > 0 && len(lb) > 0 && c.years[n-1].Max.Year == lb[0].Max.Year {
 		a, b := &c.years[n-1], lb[0]
-		if b.Valid > 0 && (a.Valid == 0 || b.Max.Hm0 > a.Max.Hm0) {
+		if b.ValidMin > 0 && (a.ValidMin == 0 || b.Max.Hm0 > a.Max.Hm0) {
 			a.Max = b.Max
 		}
-		a.Steps += b.Steps
-		a.Valid += b.Valid
+		a.Minutes += b.Minutes
+		a.ValidMin += b.ValidMin
 		a.Dropped += b.Dropped
 		if !math.IsNaN(b.DroppedMax) && (math.IsNaN(a.DroppedMax) || b.DroppedMax > a.DroppedMax) {
 			a.DroppedMax = b.DroppedMax
@@ -402,10 +438,12 @@ func (c *Collector) clone() *Collector {
 	return &d
 }
 
-// Binary layout: magic "SGXC", version 1, then little-endian fields in a fixed order.
+// Binary layout: magic "SGXC", version 2, then little-endian fields in a
+// fixed order. Version 2 (issue 27) stores each year's covered and valid time
+// in minutes where version 1 stored step counts; a version-1 state is refused.
 var collectorMagic = [4]byte{'S', 'G', 'X', 'C'}
 
-const collectorVersion = 1
+const collectorVersion = 2
 
 // MarshalBinary encodes the complete state; equal states give equal bytes.
 // Input errors (Err) are not stored.
@@ -425,8 +463,8 @@ func (c *Collector) MarshalBinary() ([]byte, error) {
 	w(uint32(len(c.years)))
 	for _, y := range c.years {
 		writeMax(w, y.Max)
-		w(y.Steps)
-		w(y.Valid)
+		w(y.Minutes)
+		w(y.ValidMin)
 		w(y.Dropped)
 		w(y.DroppedMax)
 	}
@@ -466,6 +504,9 @@ func (c *Collector) UnmarshalBinary(data []byte) error {
 	rd(&magic)
 	var ver uint16
 	rd(&ver)
+	if err == nil && magic == collectorMagic && ver == 1 {
+		return fmt.Errorf("extremes: collector state of version 1 (years counted in steps), but this swellgrid reads version %d (years counted in hours of covered time); the checkpoint or shard comes from an older swellgrid: rerun from the start", collectorVersion)
+	}
 	if err != nil || magic != collectorMagic || ver != collectorVersion {
 		return fmt.Errorf("extremes: not a collector state of version %d (bad header); the checkpoint may come from another swellgrid version: rerun from the start", collectorVersion)
 	}
@@ -500,8 +541,8 @@ func (c *Collector) UnmarshalBinary(data []byte) error {
 	for k := uint32(0); k < n && err == nil; k++ {
 		var y yearStats
 		y.Max = readMax()
-		rd(&y.Steps)
-		rd(&y.Valid)
+		rd(&y.Minutes)
+		rd(&y.ValidMin)
 		rd(&y.Dropped)
 		rd(&y.DroppedMax)
 		d.years = append(d.years, y)

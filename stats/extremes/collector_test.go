@@ -35,6 +35,24 @@ func synthSeries(seed uint64, n int) (hours, hm0, te, tp []float64, year, month 
 	return
 }
 
+// durations gives each step of a record without gaps its duration in hours:
+// the time to the next step, and for the last step the time since the one
+// before (the duration rule of the time axis when no difference is a gap).
+func durations(hours []float64) []float64 {
+	w := make([]float64, len(hours))
+	for i := range hours {
+		switch {
+		case i+1 < len(hours):
+			w[i] = hours[i+1] - hours[i]
+		case i > 0:
+			w[i] = hours[i] - hours[i-1]
+		default:
+			w[i] = 1
+		}
+	}
+	return w
+}
+
 // bruteForcePeaks evaluates the storm-peak definition of Collector directly.
 func bruteForcePeaks(hours, hm0 []float64, sep, floor float64) []float64 {
 	var out []float64
@@ -64,10 +82,11 @@ func bruteForcePeaks(hours, hm0 []float64, sep, floor float64) []float64 {
 
 func TestPeaksMatchDefinition(t *testing.T) {
 	hours, hm0, te, tp, yr, mo := synthSeries(1, 3000)
+	w := durations(hours)
 	cfg := CollectorConfig{SeparationHours: 48, MaxPeaksPerYear: 1000, PeakFloor: 1.0}
 	c := NewCollector(cfg)
 	for i := range hours {
-		c.Add(yr[i], mo[i], hours[i], hm0[i], te[i], tp[i])
+		c.Add(yr[i], mo[i], hours[i], w[i], hm0[i], te[i], tp[i])
 	}
 	want := bruteForcePeaks(hours, hm0, 48, 1.0)
 	got := c.Peaks()
@@ -86,10 +105,11 @@ func TestPeaksMatchDefinition(t *testing.T) {
 
 func TestAnnualMaximaAndYearStart(t *testing.T) {
 	hours, hm0, te, tp, yr, mo := synthSeries(2, 20000)
+	w := durations(hours)
 	for _, start := range []int{1, 7} {
 		c := NewCollector(CollectorConfig{YearStartMonth: start})
 		for i := range hours {
-			c.Add(yr[i], mo[i], hours[i], hm0[i], te[i], tp[i])
+			c.Add(yr[i], mo[i], hours[i], w[i], hm0[i], te[i], tp[i])
 		}
 		want := map[int]float64{}
 		for i := range hours {
@@ -119,10 +139,11 @@ func TestAnnualMaximaAndYearStart(t *testing.T) {
 func TestMergeExact(t *testing.T) {
 	for seed := uint64(0); seed < 6; seed++ {
 		hours, hm0, te, tp, yr, mo := synthSeries(seed+10, 4000)
+		w := durations(hours)
 		cfg := CollectorConfig{SeparationHours: 48, MaxPeaksPerYear: 3, YearStartMonth: 4}
 		whole := NewCollector(cfg)
 		for i := range hours {
-			whole.Add(yr[i], mo[i], hours[i], hm0[i], te[i], tp[i])
+			whole.Add(yr[i], mo[i], hours[i], w[i], hm0[i], te[i], tp[i])
 		}
 		wantB, _ := whole.MarshalBinary()
 		r := rand.New(rand.NewPCG(seed, 99))
@@ -144,7 +165,7 @@ func TestMergeExact(t *testing.T) {
 			for k := 0; k+1 < len(cuts); k++ {
 				p := NewCollector(cfg)
 				for i := cuts[k]; i < cuts[k+1]; i++ {
-					p.Add(yr[i], mo[i], hours[i], hm0[i], te[i], tp[i])
+					p.Add(yr[i], mo[i], hours[i], w[i], hm0[i], te[i], tp[i])
 				}
 				// Round-trip each part through its checkpoint encoding.
 				b, _ := p.MarshalBinary()
@@ -176,9 +197,10 @@ func sortInts(a []int) {
 
 func TestCollectorBoundedAndErrors(t *testing.T) {
 	hours, hm0, te, tp, yr, mo := synthSeries(3, 30000)
+	w := durations(hours)
 	c := NewCollector(CollectorConfig{MaxPeaksPerYear: 5})
 	for i := range hours {
-		c.Add(yr[i], mo[i], hours[i], hm0[i], te[i], tp[i])
+		c.Add(yr[i], mo[i], hours[i], w[i], hm0[i], te[i], tp[i])
 	}
 	perYear := map[int]int{}
 	for _, p := range c.Peaks() {
@@ -192,7 +214,7 @@ func TestCollectorBoundedAndErrors(t *testing.T) {
 	if len(c.window) > 48 || len(c.head) > 48 {
 		t.Errorf("window %d / head %d exceed the steps in one separation", len(c.window), len(c.head))
 	}
-	c.Add(2000, 1, 1, 2, 3, 4)
+	c.Add(2000, 1, 1, 1, 2, 3, 4)
 	if c.Err() == nil {
 		t.Error("out-of-order step not reported")
 	}
@@ -200,7 +222,7 @@ func TestCollectorBoundedAndErrors(t *testing.T) {
 		t.Error("merging an empty collector must be a no-op")
 	}
 	d := NewCollector(CollectorConfig{MaxPeaksPerYear: 6})
-	d.Add(2100, 1, 1e9, 1, 1, 1)
+	d.Add(2100, 1, 1e9, 1, 1, 1, 1)
 	if err := c.Merge(d); err == nil {
 		t.Error("merging different configurations must fail")
 	}

@@ -14,6 +14,12 @@ import (
 // lists years (indices) of which only the first 30 days are fed. Invented data:
 // these fixtures check the policy's logic, not a value.
 func streamMaxima(maxima []float64, skip ...int) *Collector {
+	return streamMaximaW(24, maxima, skip...)
+}
+
+// streamMaximaW is streamMaxima with each daily step given the duration w
+// hours (24 for a true daily record).
+func streamMaximaW(w float64, maxima []float64, skip ...int) *Collector {
 	c := NewCollector(CollectorConfig{})
 	r := rand.New(rand.NewPCG(99, 1))
 	h := 0.0
@@ -30,7 +36,7 @@ func streamMaxima(maxima []float64, skip ...int) *Collector {
 			if d == 200 {
 				v = am
 			}
-			c.Add(2000+y, d/30+1, h, v, 4.5*math.Sqrt(v), 5.2*math.Sqrt(v))
+			c.Add(2000+y, d/30+1, h, w, v, 4.5*math.Sqrt(v), 5.2*math.Sqrt(v))
 			h += 24
 		}
 	}
@@ -219,7 +225,7 @@ func TestDeltaIntervalTruncatedAtThreshold(t *testing.T) {
 		if i%18 == 9 && i/18 < len(x) {
 			v = x[i/18]
 		}
-		c.Add(2000+i/360, (i%360)/30+1, h, v, 8, 10)
+		c.Add(2000+i/360, (i%360)/30+1, h, 24, v, 8, 10)
 		h += 24
 	}
 	T := 60.0

@@ -78,7 +78,7 @@ func rainCollector(t *testing.T) *Collector {
 			if d == 2 {
 				s = v
 			}
-			c.Add(2000+i/40, (i%40)/4+1, h, s, 8, 10) // 40 peaks a year: below MaxPeaksPerYear
+			c.Add(2000+i/40, (i%40)/4+1, h, 24, s, 8, 10) // 40 peaks a year: below MaxPeaksPerYear
 			h += 24
 		}
 	}
