@@ -31,7 +31,6 @@ type engine struct {
 	layout   *seastate.Layout
 	sectors  *seastate.SectorSplit // 2-D spectra: direction bins over the rose's sectors
 	consts   seastate.Consts
-	dtHours  float64
 	spectral bool
 	// times is where the stream stage's time went, summed over passes.
 	times streamTimes
@@ -67,12 +66,8 @@ func (e *engine) addStreamTimings(m map[string]float64) {
 
 func newEngine(cat *ingest.Catalog, spec *Spec, ccfg *climate.Config) (*engine, error) {
 	e := &engine{cat: cat, spec: spec, ccfg: ccfg,
-		consts:  seastate.Consts{Rho: spec.Physics.Rho, G: spec.Physics.G},
-		dtHours: float64(cat.StepSeconds) / 3600,
-		xcfg:    extremes.CollectorConfig{YearStartMonth: spec.Extremes.YearStartMonth, SeparationHours: spec.Extremes.SeparationH},
-	}
-	if e.dtHours <= 0 {
-		e.dtHours = 1
+		consts: seastate.Consts{Rho: spec.Physics.Rho, G: spec.Physics.G},
+		xcfg:   extremes.CollectorConfig{YearStartMonth: spec.Extremes.YearStartMonth, SeparationHours: spec.Extremes.SeparationH},
 	}
 	if cat.Spectral != nil && (cat.Vars[ingest.Spectrum2D] != nil || cat.Vars[ingest.Spectrum1D] != nil) {
 		l, err := seastate.NewLayout(cat.Spectral.FreqHz, cat.Spectral.DirDeg)
@@ -152,7 +147,7 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 				c.kern.SectorPowers(e.sectors, sectorJ)
 				c.clim.AddDirectionalPower(&st.ct, sectorJ, dir)
 			}
-			c.col.Add(st.year, st.month, st.hours, e.dtHours, hm0, te, tp)
+			c.col.Add(st.year, st.month, st.hours, st.weightH, hm0, te, tp)
 		}
 	}
 }
@@ -218,7 +213,7 @@ func (e *engine) feedBulk(b *ingest.Block, times []stepTime, cells []*cell, lo, 
 			// screened: unusable values counted and left out, here as in the state
 			j, hm0, te, tp, dir := c.clim.AddAt(&st.ct, jv[t*w+k], hm0s[i], tev[t*w+k], tp, dir)
 			c.clim.AddDirection(&st.ct, j, dir)
-			c.col.Add(st.year, st.month, st.hours, e.dtHours, hm0, te, tp)
+			c.col.Add(st.year, st.month, st.hours, st.weightH, hm0, te, tp)
 		}
 	}
 }
