@@ -19,10 +19,12 @@ import (
 // The rule (README, "Time steps, durations and gaps"), for record times
 // t_0 < ... < t_{n-1} and differences d_i = t_{i+1} - t_i:
 //
-//   - local step q_i: the upper quartile (nearest rank, ceil(0.75 m)-th
-//     smallest) of the m differences d_j, j != i, |j - i| <= gapWindow;
+//   - local step q_i: the larger of the upper quartiles (nearest rank, the
+//     ceil(0.75 m)-th smallest of m values) of the gapWindow differences
+//     before d_i and of the gapWindow differences after it (a side with no
+//     difference is left out);
 //   - d_i is a gap when d_i > gapFactor * q_i (a difference longer than one
-//     and a half times the record's longer steps around it);
+//     and a half times the longer steps on either side of it);
 //   - step i stands for w_i = d_i when d_i is not a gap; before a gap and at
 //     the end of the record for its previous difference d_{i-1} (when that is
 //     not a gap itself), else for q_i; a record of one step for one hour;
@@ -36,7 +38,10 @@ import (
 // upper quartile, not the median, sets the local step so that steps of mixed
 // length interleaved (1.5 h, 3 h, 1.5 h, ...) are an irregular record, not a
 // series of gaps; a step missing from a regular record (one difference of
-// twice the step among equal ones) is a gap.
+// twice the step among equal ones) is a gap. Each side is taken on its own,
+// and the larger kept, so that a difference next to a change of step (hourly
+// then 1.5/3 h interleaved, 3-hourly then hourly) is judged by the steps of
+// its own side, not by a mixture that the change dominates.
 const (
 	gapWindow = 12
 	gapFactor = 1.5
@@ -111,20 +116,23 @@ func stepDurations(ts []Stamp) (dur []int64, gapAfter []bool) {
 		d[i] = int64(ts[i+1] - ts[i])
 	}
 	q := make([]int64, n-1)
-	win := make([]int64, 0, 2*gapWindow)
-	for i := range d {
-		win = win[:0]
-		for j := max(0, i-gapWindow); j <= min(len(d)-1, i+gapWindow); j++ {
-			if j != i {
-				win = append(win, d[j])
-			}
+	win := make([]int64, 0, gapWindow)
+	// upper is the upper quartile (nearest rank) of d[a:b], 0 when empty.
+	upper := func(a, b int) int64 {
+		a, b = max(a, 0), min(b, len(d))
+		if a >= b {
+			return 0
 		}
-		if len(win) == 0 {
+		win = append(win[:0], d[a:b]...)
+		slices.Sort(win)
+		return win[int(math.Ceil(0.75*float64(len(win))))-1]
+	}
+	for i := range d {
+		q[i] = max(upper(i-gapWindow, i), upper(i+1, i+1+gapWindow))
+		if q[i] == 0 { // a record of two steps
 			q[i] = d[i]
 			continue
 		}
-		slices.Sort(win)
-		q[i] = win[int(math.Ceil(0.75*float64(len(win))))-1]
 		gapAfter[i] = float64(d[i]) > gapFactor*float64(q[i])
 	}
 	for i := 0; i < n; i++ {
