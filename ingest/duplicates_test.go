@@ -12,7 +12,10 @@ func readSteps(t *testing.T, cat *Catalog) (hs, tp [][]float64) {
 	t.Helper()
 	out := make(chan *Block, 64)
 	errc := make(chan error, 1)
-	go func() { errc <- cat.Read(context.Background(), ReadRange{C0: 0, C1: cat.Grid.NCells(), MaxSteps: 2}, out); close(out) }()
+	go func() {
+		errc <- cat.Read(context.Background(), ReadRange{C0: 0, C1: cat.Grid.NCells(), MaxSteps: 2}, out)
+		close(out)
+	}()
 	for b := range out {
 		nc := b.NC()
 		for k := 0; k < b.NT; k++ {
