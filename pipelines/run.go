@@ -189,6 +189,28 @@ func (s *Spec) analysisConfig() extremes.AnalysisConfig {
 	return a
 }
 
+// analysisConfigFor is analysisConfig with the lengths of the analysis
+// years in the catalog's calendar (a full year for the GEV's complete years
+// and the peak rate's record length).
+func (s *Spec) analysisConfigFor(cat *ingest.Catalog) extremes.AnalysisConfig {
+	a := s.analysisConfig()
+	a.YearHours = yearHours(cat.Calendar, s.Extremes.YearStartMonth)
+	return a
+}
+
+// yearHours gives the hours of the analysis year y, from the first of month
+// m0 of y to the first of month m0 of y+1, in calendar cal.
+func yearHours(cal ingest.Calendar, m0 int) func(int) float64 {
+	if m0 < 1 || m0 > 12 {
+		m0 = 1
+	}
+	return func(y int) float64 {
+		a := ingest.StampOf(cal, ingest.Date{Year: y, Month: m0, Day: 1})
+		b := ingest.StampOf(cal, ingest.Date{Year: y + 1, Month: m0, Day: 1})
+		return float64(b-a) / 3600
+	}
+}
+
 // Run runs the whole job through the stages of stages.go: validate, lock,
 // restore, stream, fit, export.
 func Run(ctx context.Context, spec *Spec, opt Options) (res *Result, err error) {

@@ -118,7 +118,7 @@ func newJob(spec *Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, e
 		workers = runtime.NumCPU()
 	}
 	return &job{spec: spec, opt: opt, log: log, cat: cat, eng: eng, ids: ids, out: spec.Output.Dir,
-		lo: 0, hi: cat.Grid.NCells(), workers: workers, acfg: spec.analysisConfig(),
+		lo: 0, hi: cat.Grid.NCells(), workers: workers, acfg: spec.analysisConfigFor(cat),
 		seen: map[int]ingest.Tally{}, timings: map[string]float64{}, t0: t0}, nil
 }
 

@@ -53,6 +53,10 @@ type AnalysisConfig struct {
 	// time of any year) that a year's valid time must reach for its maximum to
 	// count; default 0.8 (see Analyse).
 	MinYearCoverage float64
+	// YearHours, if set, gives the hours of analysis year y in the data's
+	// calendar (8760, 8784, 8640 ...): the length of a full year (see
+	// Analyse). Without it the fullest year of the record stands for one.
+	YearHours func(year int) float64
 	// RecordYears is the record length in years for the peak rate; default
 	// the record's years of covered time (see Analyse).
 	RecordYears float64
@@ -271,20 +275,23 @@ func nanLevel(T float64) Level {
 // problems are flags. Levels follow Publication; parameters are reported
 // wherever the fit converged.
 //
-// Years are measured in time, not in steps (issue 27: a record whose step
-// changes has years of equal length but unequal step counts). With F the
-// largest covered time of any year (the time a full year holds in this
-// record's calendar and layout), V_y the valid time of year y and sum V the
-// valid time of the record (Collector.Years, whole minutes):
+// Years are measured in time, not in steps (a record whose step changes has
+// years of equal length but unequal step counts). With F the length of a
+// full year — the longest calendar length (cfg.YearHours) of the record's
+// years, or, without a calendar, the largest covered time of any year —,
+// V_y the valid time of year y and sum V the valid time of the record
+// (Collector.Years, whole minutes):
 //
 //	year y is complete, and its maximum enters the GEV, when V_y / F >= MinYearCoverage;
 //	RecordYears = sum V / F (years of covered time), unless cfg.RecordYears > 0;
 //	PeaksPerYear = exceedances / RecordYears.
 //
-// Both ratios are of integers, so a record of one constant step gives the
-// same figures as counting steps (the step cancels exactly). The fullest year
-// stands for a complete year, so the rule needs no calendar (360-day, leap
-// or not); the 0.8 default share is common practice, not a standard.
+// Both ratios are of integers, so a record of one constant step with a
+// complete year of the longest length gives the same figures as counting
+// steps (the step cancels exactly). With the calendar, a record of a few
+// months has no complete year and the few months' length in years (a rate
+// per year of its covered time); a gap in the fullest year counts as missing.
+// The 0.8 default share is common practice, not a standard.
 func Analyse(c *Collector, cfg AnalysisConfig) Result {
 	cfg = cfg.withDefaults()
 	res := Result{Caution: Caution, MaxAnnual: math.NaN(), DepthLimit: DepthLimit(cfg.DepthM, cfg.BreakingRatio)}
@@ -297,6 +304,9 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 	var valid int64 // sum V, minutes
 	for _, y := range years {
 		full = max(full, y.Minutes)
+		if cfg.YearHours != nil {
+			full = max(full, int64(math.Round(cfg.YearHours(y.Year)*60)))
+		}
 		valid += y.ValidMinutes
 	}
 	am := c.AnnualMaxima()
