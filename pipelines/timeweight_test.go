@@ -29,8 +29,10 @@ import (
 // its docstring and the README), and the manifest's time segments,
 // duplicates and gaps with the same reference.
 //
-// Tolerances: means and energies 1e-6 relative (the state sums fixed-point
-// quanta far below that), percentiles within one histogram bin, hours,
+// Tolerances: means and energies 1e-6 relative, and half the quantum in
+// which the state sums each value (stats/climate/fixed.go: J in 1/16 W/m,
+// Hm0, Te, Tp in 2^-20 m or s): a mean over one or a few steps (a scatter bin)
+// is that value rounded; percentiles within one histogram bin; hours,
 // windows, counts and flags exact; fitted parameters as in the e2e test
 // (e2e_columns_test.go, two optimisers). Fits are compared where the
 // reference makes them (at least extremes.min_peaks peaks); the GEV of these
@@ -48,9 +50,12 @@ type twTol struct {
 }
 
 var (
-	twMean   = twTol{tol: tol{0, 1e-6}}
+	twPower  = twTol{tol: tol{1.0 / 32 / 1000 * 1.02, 1e-6}} // kW/m: 1e-6, or half of 1/16 W/m (and 2 % of it for the two group-velocity solvers)
+	twMean   = twTol{tol: tol{0x1p-21, 1e-6}}                // Hm0, Te, Tp: 1e-6, or half of 2^-20 m or s
+	twEnergy = twTol{tol: tol{0, 1e-6}}                      // device power (quantum 2^-16 kW, far below 1e-6 of the means here)
 	twExact  = twTol{tol: exact}
 	twShare  = twTol{tol: tolShare}
+	twShareJ = twTol{tol: tol{1e-7, 1e-6}}
 	twHm0Bin = twTol{tol: tol{0.05 + 1e-9, 0}}         // one Hm0 bin (statistics.hm0_bin_m)
 	twJBin   = twTol{tol: tol{1.0 / 32, 0.022}}        // one power bin: 1/32 kW/m, or 2^(1/32) - 1 of the value
 	twIndex  = twTol{tol: tol{0, 1e-5}}                // ratios of differences of means (as in the e2e test)
@@ -62,16 +67,18 @@ var (
 // twCellCols are the cells.parquet columns compared with the reference.
 var twCellCols = map[string]twTol{
 	"steps": twExact, "depth_m": twExact, "coverage": twShare,
-	"power_mean_kw_m": twMean, "power_std_kw_m": twMean, "power_cov": twMean, "power_max_kw_m": twMean,
+	"power_mean_kw_m": twPower, "power_std_kw_m": twPower, "power_cov": twEnergy, "power_max_kw_m": twPower,
 	"hm0_mean_m": twMean, "hm0_max_m": twMean, "te_mean_s": twMean, "tp_mean_s": twMean,
 	"dir_mean_deg": {tol: tol{0.06, 0}}, // directions are summed at 0.1 deg (climate.DirResDeg)
 	"hm0_p10_m":    twHm0Bin, "hm0_p50_m": twHm0Bin, "hm0_p90_m": twHm0Bin, "hm0_p99_m": twHm0Bin,
 	"power_p10_kw_m": twJBin, "power_p50_kw_m": twJBin, "power_p90_kw_m": twJBin, "power_p99_kw_m": twJBin,
 	"mvi": twIndex, "svi": twIndex, "interannual_cov": twIndex,
-	"aep_wec_a_mwh": twMean, "aep_wec_b_mwh": twMean, "cf_wec_a": twMean, "cf_wec_b": twMean,
-	"above_rated_wec_a": {tol: tol{1e-8, 1e-6}}, "above_rated_wec_b": {tol: tol{1e-8, 1e-6}},
-	"below_cutin_wec_a": {tol: tol{1e-8, 1e-6}}, "below_cutin_wec_b": {tol: tol{1e-8, 1e-6}},
-	"energy_outside_matrix_wec_a_frac": {tol: tol{1e-8, 1e-6}}, "energy_outside_matrix_wec_b_frac": {tol: tol{1e-8, 1e-6}},
+	"aep_wec_a_mwh": twEnergy, "aep_wec_b_mwh": twEnergy, "cf_wec_a": twEnergy, "cf_wec_b": twEnergy,
+	// shares of energy: sums of J in 1/16 W/m, whose rounding moves a share
+	// by at most (1/16 W/m) / mean J (6e-6 here) and in practice far less
+	"above_rated_wec_a": twShareJ, "above_rated_wec_b": twShareJ,
+	"below_cutin_wec_a": twShareJ, "below_cutin_wec_b": twShareJ,
+	"energy_outside_matrix_wec_a_frac": twShareJ, "energy_outside_matrix_wec_b_frac": twShareJ,
 	"hm0_depth_limit_m": {tol: tol{1e-12, 0}},
 	"gev_years":         twExact,
 	// GEV levels: never published on these records (null)
@@ -115,11 +122,11 @@ func withCols(base map[string]twTol, more map[string]twTol) map[string]twTol {
 
 var twTables = []twTable{
 	{"monthly.parquet", "monthly", []string{"cell_id", "year", "month"}, periodIs(func(p string) bool { return p == "year_month" }),
-		map[string]twTol{"power_mean_kw_m": twMean, "hm0_mean_m": twMean, "valid_hours": twExact, "coverage": twShare, "excluded": twExact}},
+		map[string]twTol{"power_mean_kw_m": twPower, "hm0_mean_m": twMean, "valid_hours": twExact, "coverage": twShare, "excluded": twExact}},
 	{"monthly.parquet", "climatology", []string{"cell_id", "period", "month"}, periodIs(func(p string) bool { return p != "year_month" }),
-		map[string]twTol{"year": twExact, "power_mean_kw_m": twMean, "hm0_mean_m": twMean, "valid_hours": twExact, "coverage": twShare, "excluded": twExact}},
+		map[string]twTol{"year": twExact, "power_mean_kw_m": twPower, "hm0_mean_m": twMean, "valid_hours": twExact, "coverage": twShare, "excluded": twExact}},
 	{"scatter.parquet", "scatter", []string{"cell_id", "hm0_lo_m", "te_lo_s"}, nil,
-		map[string]twTol{"hm0_hi_m": twExact, "te_hi_s": twExact, "hours": twExact, "time_share": twShare, "power_mean_kw_m": twMean}},
+		map[string]twTol{"hm0_hi_m": twExact, "te_hi_s": twExact, "hours": twExact, "time_share": twShare, "power_mean_kw_m": twPower}},
 	{"exceedance.parquet", "exceedance", []string{"cell_id", "variable", "value"}, func(c map[string][]any, i int) bool { return c["variable"][i] == "hm0_m" },
 		map[string]twTol{"share_exceeded": twShare}},
 	// J may cross a power-histogram edge between the two computations (as in the e2e test)
@@ -141,16 +148,17 @@ var twTables = []twTable{
 
 // twRef is one reference_<variant>.json.
 type twRef struct {
-	Steps      int                         `json:"steps"`
-	Start      string                      `json:"time_start"`
-	End        string                      `json:"time_end"`
-	Segments   []twSegment                 `json:"time_segments"`
-	Duplicates []twDuplicate               `json:"duplicate_steps"`
-	Gaps       []map[string]any            `json:"gaps"`
-	Refused    *twDuplicate                `json:"refused"`
-	Policy     *string                     `json:"duplicate_policy"`
-	Cells      []map[string]any            `json:"cells"`
-	Tables     map[string][]map[string]any `json:"-"`
+	Steps        int                         `json:"steps"`
+	CoveredHours float64                     `json:"covered_hours"`
+	Start        string                      `json:"time_start"`
+	End          string                      `json:"time_end"`
+	Segments     []twSegment                 `json:"time_segments"`
+	Duplicates   []twDuplicate               `json:"duplicate_steps"`
+	Gaps         []map[string]any            `json:"gaps"`
+	Refused      *twDuplicate                `json:"refused"`
+	Policy       *string                     `json:"duplicate_policy"`
+	Cells        []map[string]any            `json:"cells"`
+	Tables       map[string][]map[string]any `json:"-"`
 }
 
 // twSegment and twDuplicate are the manifest's entries (issue 27's names).
@@ -158,15 +166,18 @@ type twSegment struct {
 	First    string  `json:"first"`
 	Last     string  `json:"last"`
 	Steps    int     `json:"steps"`
+	Hours    float64 `json:"hours"` // the sum of the steps' durations
 	StepH    float64 `json:"step_hours"`
 	MinStepH float64 `json:"min_step_hours"`
 	MaxStepH float64 `json:"max_step_hours"`
 }
 
 type twDuplicate struct {
+	Role      string   `json:"role"`
 	Time      string   `json:"time"`
 	Files     []string `json:"files"`
 	Identical bool     `json:"identical"`
+	Used      string   `json:"used"` // the file whose values are used
 }
 
 func readTWRef(t *testing.T, variant string) *twRef {
@@ -293,7 +304,11 @@ func twCompareCells(t *testing.T, out string, ref *twRef) {
 			t.Fatalf("reference cell %d has no flags: rerun testdata/timeweight/reference.py", id)
 		}
 		for f, v := range flags {
-			if want := v.(bool); have[f] != want {
+			want, ok := v.(bool)
+			if !ok {
+				t.Fatalf("reference cell %d flag %s = %v, not a boolean: rerun testdata/timeweight/reference.py", id, f, v)
+			}
+			if have[f] != want {
 				t.Errorf("cell %d: qc_flags %q: %s is %v, the data say %v", id, cols["qc_flags"][id], f, have[f], want)
 			}
 		}
@@ -395,6 +410,7 @@ func twCompareManifest(t *testing.T, out string, ref *twRef) {
 	}
 	var m struct {
 		Steps      int                        `json:"steps"`
+		Covered    float64                    `json:"covered_hours"`
 		Start      string                     `json:"time_start"`
 		End        string                     `json:"time_end"`
 		Gaps       []json.RawMessage          `json:"gaps"`
@@ -408,11 +424,14 @@ func twCompareManifest(t *testing.T, out string, ref *twRef) {
 	if m.Steps != ref.Steps || twTimeText(m.Start) != ref.Start || twTimeText(m.End) != ref.End {
 		t.Errorf("manifest: %d steps from %s to %s; the files hold %d distinct times from %s to %s", m.Steps, m.Start, m.End, ref.Steps, ref.Start, ref.End)
 	}
+	if m.Covered != ref.CoveredHours {
+		t.Errorf("manifest: covered_hours %g, the steps' durations sum to %g h", m.Covered, ref.CoveredHours)
+	}
 	if len(m.Gaps) != len(ref.Gaps) {
 		t.Errorf("manifest: %d gaps, the reference %d (no time goes uncovered in these fixtures); first: %s", len(m.Gaps), len(ref.Gaps), firstRaw(m.Gaps))
 	}
 	seg := func(s twSegment) string {
-		return fmt.Sprintf("%s .. %s, %d steps, step %g h (%g..%g h)", twTimeText(s.First), twTimeText(s.Last), s.Steps, s.StepH, s.MinStepH, s.MaxStepH)
+		return fmt.Sprintf("%s .. %s, %d steps, %g h, step %g h (%g..%g h)", twTimeText(s.First), twTimeText(s.Last), s.Steps, s.Hours, s.StepH, s.MinStepH, s.MaxStepH)
 	}
 	if len(m.Segments) != len(ref.Segments) {
 		t.Errorf("manifest: %d time segments, the reference %d:", len(m.Segments), len(ref.Segments))
@@ -429,26 +448,33 @@ func twCompareManifest(t *testing.T, out string, ref *twRef) {
 			t.Errorf("manifest time_segments[%d] = %q, want %q", i, got, want)
 		}
 	}
-	dup := func(d twDuplicate) string {
-		files := make([]string, len(d.Files))
-		for i, f := range d.Files {
-			files[i] = filepath.Base(f)
+	// duplicates: one entry per role and shared time, in any order
+	dups := func(ds []twDuplicate) []string {
+		out := make([]string, len(ds))
+		for k, d := range ds {
+			files := make([]string, len(d.Files))
+			for i, f := range d.Files {
+				files[i] = filepath.Base(f)
+			}
+			out[k] = fmt.Sprintf("%s at %s in %s: identical=%v, used %s", d.Role, twTimeText(d.Time), strings.Join(files, ", "), d.Identical, filepath.Base(d.Used))
 		}
-		return fmt.Sprintf("%s in %s identical=%v", twTimeText(d.Time), strings.Join(files, ", "), d.Identical)
+		sort.Strings(out)
+		return out
 	}
-	if len(m.Duplicates) != len(ref.Duplicates) {
-		t.Errorf("manifest: %d duplicate steps, the reference %d", len(m.Duplicates), len(ref.Duplicates))
+	got, want := dups(m.Duplicates), dups(ref.Duplicates)
+	if len(got) != len(want) {
+		t.Errorf("manifest: %d duplicate steps, the reference %d", len(got), len(want))
 	}
-	for i := 0; i < max(len(m.Duplicates), len(ref.Duplicates)); i++ {
-		var got, want string
-		if i < len(m.Duplicates) {
-			got = dup(m.Duplicates[i])
+	for i := 0; i < max(len(got), len(want)); i++ {
+		var g, w string
+		if i < len(got) {
+			g = got[i]
 		}
-		if i < len(ref.Duplicates) {
-			want = dup(ref.Duplicates[i])
+		if i < len(want) {
+			w = want[i]
 		}
-		if got != want {
-			t.Errorf("manifest duplicate_steps[%d] = %q, want %q", i, got, want)
+		if g != w {
+			t.Errorf("manifest duplicate_steps (sorted) [%d] = %q, want %q", i, g, w)
 		}
 	}
 	// the rule chosen for differing duplicates is recorded (the spec's key)

@@ -8,10 +8,10 @@ pipelines/timeweight_test.go compares with the tables and manifest of a run.
 The duration rule (issue 27; the README's time axis section):
 - the record's times t_0 < ... < t_{n-1} are the union of every file's times
   (read with netCDF4.num2date in each file's own units); a time held by two
-  files is one step: identical values (NaN == NaN) are used once and
-  listed; different values refuse the run naming both files and the time,
-  unless input.duplicate_steps says "first" (the earlier file's values) or
-  "last" (the later file's);
+  files is one step: per role (variable), identical values (NaN == NaN) are
+  used once and listed; different values refuse the run naming both files and
+  the time, unless input.duplicate_steps says "first" (the earlier file's
+  values) or "last" (the later file's);
 - d_i = t_{i+1} - t_i; the local step q_i is the upper quartile (nearest rank,
   ceil(0.75 m) - 1 of the m sorted values) of the other differences within 12
   of d_i; d_i is a gap when d_i > 1.5 q_i;
@@ -81,6 +81,7 @@ WIN_LIMITS, WIN_DURS = E2E.WIN_LIMITS, E2E.WIN_DURS
 Z975 = E2E.Z975
 MIN_YEARS, MIN_PEAKS, MAX_EXTRAPOLATION, SHAPE_RANGE = 10, 20, 4.0, (-0.5, 0.5)  # the README's defaults
 NEIGHBOURS, GAP_FACTOR = 12, 1.5  # the duration rule
+ROLES = {"hs": "hm0", "te": "te", "tp": "tp", "mwd": "dir"}  # the fixtures' variables and their roles
 EPOCH = np.datetime64("2001-01-01T00:00:00", "s")
 CHECK_E2E = False  # --check-e2e: the e2e fixture's 12 years (its GEV is not recomputed here)
 
@@ -124,17 +125,20 @@ def read(directory, policy):
     dups, refused = [], None
     for n, s in enumerate(times):
         src = held[int(s)]
-        vals = [np.concatenate([files[k][name][i].ravel() for name in ("hs", "te", "tp", "mwd")]) for k, i in src]
-        pick = src[0]
-        if len(src) > 1:
-            same = all(np.array_equal(vals[0], v, equal_nan=True) for v in vals[1:])
-            dups.append({"time": text(s), "files": [os.path.basename(files[k]["path"]) for k, _ in src], "identical": bool(same)})
-            if not same:
-                if policy is None and refused is None:
-                    refused = dups[-1]
+        for name, role in ROLES.items():
+            pick = src[0]
+            if len(src) > 1:
+                vals = [files[k][name][i] for k, i in src]
+                same = all(np.array_equal(vals[0], v, equal_nan=True) for v in vals[1:])
+                if not same and policy is None and refused is None:
+                    refused = {"time": text(s), "files": [os.path.basename(files[k]["path"]) for k, _ in src]}
+                # the file used: the later one under "last", else the earlier
+                # (identical values: the same either way)
                 pick = src[-1] if policy == "last" else src[0]
-        for name in out:
+                dups.append({"role": role, "time": text(s), "files": [os.path.basename(files[k]["path"]) for k, _ in src],
+                             "identical": bool(same), "used": os.path.basename(files[pick[0]]["path"])})
             out[name][n] = files[pick[0]][name][pick[1]]
+    dups.sort(key=lambda d: (d["role"], d["time"]))
     return times, out, depth, dups, refused
 
 
@@ -176,7 +180,7 @@ def segments(tsec, w):
 
     def seg(a, b, const):
         ww = w[a:b + 1]
-        return {"first": text(tsec[a]), "last": text(tsec[b]), "steps": int(b - a + 1),
+        return {"first": text(tsec[a]), "last": text(tsec[b]), "steps": int(b - a + 1), "hours": float(ww.sum()),
                 "step_hours": float(ww[0]) if const else 0.0, "min_step_hours": float(ww.min()), "max_step_hours": float(ww.max())}
     for a, b in runs:
         if b - a + 1 >= 3:
@@ -518,7 +522,7 @@ def cell(cid, t, w, years, months, h, e, p, d, depth, devs, tables):
         tables["exceedance"].append(dict(r, cell_id=cid))
     for r in windows(t, w, h, years, months):
         tables["windows"].append(dict(r, cell_id=cid))
-    c["flags"] = flags
+    c["flags"] = {k: bool(x) for k, x in flags.items()}
     return c
 
 
@@ -537,7 +541,7 @@ def compute(directory, policy, devs, source):
     ref.update({"time_segments": segments(tsec, w), "steps": int(len(t)), "time_start": text(tsec[0]), "time_end": text(tsec[-1]),
                 "gaps": [{"after": text(tsec[i]), "before": text(tsec[i + 1]), "uncovered_hours": float(t[i + 1] - t[i] - w[i])}
                          for i in np.nonzero(gap)[0]],
-                "weight_hours": float(w.sum())})
+                "covered_hours": float(w.sum())})
     ny, nx = depth.shape
     cells = []
     tables = {k: [] for k in ["monthly", "climatology", "scatter", "exceedance", "windows", "extremes", "threshold_diagnostics"]}
