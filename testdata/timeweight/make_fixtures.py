@@ -15,6 +15,8 @@ kind of sea and calm spells last hours to days.
                   seas 25 % higher (a stormier year: the mean over steps and the
                   mean over time differ by about 12 % in power);
   b_coarse_months 2001 every 1 h, but April, May and September every 3 h;
+                  three gaps: 31 March (just before the change of step), one
+                  3-hourly step on 15 September, two hourly steps on 10 July;
   c_mixed_steps   January 2001 every 3 h, then February to April steps of
                   1.5 h and 3 h alternating (minutes since 2001-01-01): steps
                   straddle the month ends;
@@ -47,7 +49,7 @@ TAU_DIR_H = 40.0
 
 FIXTURES = {
     "a_step_change": "two years 3-hourly, then one year hourly (a newer run, 25 % higher seas)",
-    "b_coarse_months": "a year hourly with three 3-hourly months inside (April, May, September)",
+    "b_coarse_months": "a year hourly with three 3-hourly months inside (April, May, September) and three gaps (31 March, 15 September 12:00, 10 July 05:00-06:00)",
     "c_mixed_steps": "a month 3-hourly, then three months of 1.5 h and 3 h steps alternating",
     "d_dup_equal": "four months hourly; each file repeats the next month's first step with identical values",
     "e_dup_differ": "as d_dup_equal, but the February file's copy of 2001-03-01 00:00 differs from the March file's",
@@ -181,9 +183,15 @@ def main():
     monthly_files(os.path.join(HERE, "a_step_change"), "tw_a", FIXTURES["a_step_change"], t,
                   lambda y, m: "hours since 2001-01-01 00:00:00" if y < 2003 else "seconds since 2003-01-01 00:00:00", f)
 
-    # b: hourly 2001 with April, May and September 3-hourly
+    # b: hourly 2001 with April, May and September 3-hourly, and three gaps:
+    # 31 March (24 h, just before the change to 3-hourly), 15 September 12:00
+    # (one 3-hourly step) and 10 July 05:00-06:00 (two hourly steps)
     rng = np.random.default_rng(27002)
     t = np.concatenate([regular(2001, m, 2001, m, 3.0 if m in (4, 5, 9) else 1.0) for m in range(1, 13)])
+    drop = ((t >= hours(month_start(2001, 3)) + 30 * 24) & (t < hours(month_start(2001, 4)))) | \
+        (t == hours(month_start(2001, 9)) + 14 * 24 + 12) | \
+        ((t >= hours(month_start(2001, 7)) + 9 * 24 + 5) & (t <= hours(month_start(2001, 7)) + 9 * 24 + 6))
+    t = t[~drop]
     f = sea(rng, t, lambda x: np.ones_like(x))
     monthly_files(os.path.join(HERE, "b_coarse_months"), "tw_b", FIXTURES["b_coarse_months"], t,
                   lambda y, m: "hours since 2001-01-01 00:00:00", f)

@@ -12,9 +12,10 @@ The duration rule (issue 27; the README's time axis section):
   used once and listed; different values refuse the run naming both files and
   the time, unless input.duplicate_steps says "first" (the earlier file's
   values) or "last" (the later file's);
-- d_i = t_{i+1} - t_i; the local step q_i is the upper quartile (nearest rank,
-  ceil(0.75 m) - 1 of the m sorted values) of the other differences within 12
-  of d_i; d_i is a gap when d_i > 1.5 q_i;
+- d_i = t_{i+1} - t_i; the local step q_i is the larger of the upper quartiles
+  (nearest rank: sorted value ceil(0.75 m) - 1 of m) of the up to 12
+  differences before d_i and of the up to 12 after it (each side on its own);
+  d_i is a gap when d_i > 1.5 q_i;
 - the weight of step i is d_i when no gap follows it, else d_{i-1} (when that
   is not a gap), else q_i (the last step: d_{n-2} or q_{n-2}); a record of one
   step weighs 1 h;
@@ -150,11 +151,14 @@ def durations(t):
         return np.array([1.0]), np.zeros(0, bool), np.zeros(0)
     d = np.diff(t)
     q, gap = d.copy(), np.zeros(n - 1, bool)
+
+    def uq(x):  # upper quartile, nearest rank; 0 of nothing
+        return np.sort(x)[math.ceil(0.75 * len(x)) - 1] if len(x) else 0.0
     for i in range(n - 1):
-        W = np.sort(np.concatenate([d[max(0, i - NEIGHBOURS):i], d[i + 1:min(n - 1, i + NEIGHBOURS + 1)]]))
-        if len(W):
-            q[i] = W[math.ceil(0.75 * len(W)) - 1]
-            gap[i] = d[i] > GAP_FACTOR * q[i]
+        qi = max(uq(d[max(0, i - NEIGHBOURS):i]), uq(d[i + 1:i + NEIGHBOURS + 1]))
+        if qi > 0:
+            q[i] = qi
+            gap[i] = d[i] > GAP_FACTOR * qi
     w = np.empty(n)
     for i in range(n):
         if i < n - 1 and not gap[i]:
@@ -539,7 +543,7 @@ def compute(directory, policy, devs, source):
     years = dates.astype("datetime64[Y]").astype(int) + 1970
     months = dates.astype("datetime64[M]").astype(int) % 12 + 1
     ref.update({"time_segments": segments(tsec, w), "steps": int(len(t)), "time_start": text(tsec[0]), "time_end": text(tsec[-1]),
-                "gaps": [{"after": text(tsec[i]), "before": text(tsec[i + 1]), "uncovered_hours": float(t[i + 1] - t[i] - w[i])}
+                "gaps": [{"after": text(tsec[i]), "before": text(tsec[i + 1]), "missing_hours": float(t[i + 1] - t[i] - w[i])}
                          for i in np.nonzero(gap)[0]],
                 "covered_hours": float(w.sum())})
     ny, nx = depth.shape
