@@ -507,6 +507,11 @@ func (c *Catalog) buildTimeAxis(policy DuplicatePolicy) error {
 	for i := range c.Files {
 		c.Files[i].lead, c.Files[i].keep = 0, len(c.Files[i].times)
 	}
+	type dupKey struct {
+		t    Stamp
+		a, b int
+	}
+	dupAt := map[dupKey]int{}
 	for _, r := range sortedRoles(c.roleFiles) {
 		fs := c.roleFiles[r]
 		for k := 1; k < len(fs); k++ {
@@ -533,7 +538,13 @@ func (c *Catalog) buildTimeAxis(policy DuplicatePolicy) error {
 				used = f
 			}
 			for _, t := range f.times[:n] {
-				c.Duplicates = append(c.Duplicates, Duplicate{Role: string(r), Time: c.Date(t).String(), Files: []string{p.Path, f.Path}, Identical: true, Used: used.Path, stamp: t, a: fs[k-1], b: fs[k]})
+				key := dupKey{t, fs[k-1], fs[k]}
+				if i, ok := dupAt[key]; ok {
+					c.Duplicates[i].Roles = append(c.Duplicates[i].Roles, string(r))
+					continue
+				}
+				dupAt[key] = len(c.Duplicates)
+				c.Duplicates = append(c.Duplicates, Duplicate{Roles: []string{string(r)}, Time: c.Date(t).String(), Files: []string{p.Path, f.Path}, Identical: true, Used: used.Path, stamp: t, a: fs[k-1], b: fs[k]})
 			}
 		}
 	}
@@ -579,8 +590,9 @@ func (c *Catalog) buildTimeAxis(policy DuplicatePolicy) error {
 		return fmt.Errorf("ingest: cannot determine the time step")
 	}
 	c.timeDurations()
+	sort.SliceStable(c.Duplicates, func(i, j int) bool { return c.Duplicates[i].stamp < c.Duplicates[j].stamp })
 	if len(c.Duplicates) > 0 {
-		c.Warnings = append(c.Warnings, fmt.Sprintf("%d time steps are held by two files of a role (first %s, in %s and %s); each is read once, from %s", len(c.Duplicates), c.Duplicates[0].Time, c.Duplicates[0].Files[0], c.Duplicates[0].Files[1], policyText(policy)))
+		c.Warnings = append(c.Warnings, fmt.Sprintf("%d time steps are held by two files (first %s, in %s and %s); each is read once, from %s", len(c.Duplicates), c.Duplicates[0].Time, c.Duplicates[0].Files[0], c.Duplicates[0].Files[1], policyText(policy)))
 	}
 	// Per-role gaps: steps of the record that no file of the role holds.
 	for _, r := range sortedRoles(c.roleFiles) {

@@ -20,18 +20,20 @@ func (c *Catalog) checkDuplicates(policy DuplicatePolicy) error {
 	defer ncThread()()
 	for i := range c.Duplicates {
 		d := &c.Duplicates[i]
-		r := Role(d.Role)
-		same, cell, va, vb, err := c.sameStep(r, d.a, d.b, d.stamp)
-		if err != nil {
-			return err
+		for _, role := range d.Roles {
+			r := Role(role)
+			same, cell, va, vb, err := c.sameStep(r, d.a, d.b, d.stamp)
+			if err != nil {
+				return err
+			}
+			d.Identical = d.Identical && same
+			if same || policy != DuplicatesRefuse {
+				continue
+			}
+			fa, fb := &c.Files[d.a], &c.Files[d.b]
+			return fmt.Errorf("ingest: %s and %s both hold time %s for role %s (variable %q) with different values (cell %d: %v vs %v); remove the step from one file, or set input.duplicate_steps = \"first\" (use %s) or \"last\" (use %s) in the spec",
+				PathText(fa.Path), PathText(fb.Path), d.Time, r, fa.vars[r].Name, cell, va, vb, PathText(fa.Path), PathText(fb.Path))
 		}
-		d.Identical = same
-		if same || policy != DuplicatesRefuse {
-			continue
-		}
-		fa, fb := &c.Files[d.a], &c.Files[d.b]
-		return fmt.Errorf("ingest: %s and %s both hold time %s for role %s (variable %q) with different values (cell %d: %v vs %v); remove the step from one file, or set input.duplicate_steps = \"first\" (use %s) or \"last\" (use %s) in the spec",
-			PathText(fa.Path), PathText(fb.Path), d.Time, r, fa.vars[r].Name, cell, va, vb, PathText(fa.Path), PathText(fb.Path))
 	}
 	return nil
 }

@@ -76,9 +76,10 @@ func (s Segment) String() string {
 // hoursText writes hours briefly: 3, 1.5, 0.25.
 func hoursText(h float64) string { return strconv.FormatFloat(h, 'f', -1, 64) }
 
-// Duplicate is a time held by two files of one role: used once.
+// Duplicate is a time held by two files (for the roles both hold): used
+// once. Identical is true when every role's values are the same in both.
 type Duplicate struct {
-	Role      string   `json:"role"`
+	Roles     []string `json:"roles"`
 	Time      string   `json:"time"`
 	Files     []string `json:"files"`
 	Identical bool     `json:"identical"`

@@ -323,7 +323,7 @@ func (r *InspectReport) WriteText(w io.Writer) error {
 			if !d.Identical {
 				same = "different values"
 			}
-			fmt.Fprintf(&sb, "  %s %s in %s and %s (%s; read from %s)\n", d.Role, d.Time, ingest.PathText(d.Files[0]), ingest.PathText(d.Files[1]), same, ingest.PathText(d.Used))
+			fmt.Fprintf(&sb, "  %s (%s) in %s and %s (%s; read from %s)\n", d.Time, strings.Join(d.Roles, ", "), ingest.PathText(d.Files[0]), ingest.PathText(d.Files[1]), same, ingest.PathText(d.Used))
 		}
 	}
 	if len(r.RoleGaps) > 0 {

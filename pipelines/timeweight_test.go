@@ -180,7 +180,8 @@ type twGap struct {
 }
 
 type twDuplicate struct {
-	Role      string   `json:"role"`
+	Role      string   `json:"role"`  // the reference: one entry per role
+	Roles     []string `json:"roles"` // the manifest: one entry per time and pair of files
 	Time      string   `json:"time"`
 	Files     []string `json:"files"`
 	Identical bool     `json:"identical"`
@@ -472,13 +473,19 @@ func twCompareManifest(t *testing.T, out string, ref *twRef) {
 	}
 	// duplicates: one entry per role and shared time, in any order
 	dups := func(ds []twDuplicate) []string {
-		out := make([]string, len(ds))
-		for k, d := range ds {
+		var out []string
+		for _, d := range ds {
 			files := make([]string, len(d.Files))
 			for i, f := range d.Files {
 				files[i] = filepath.Base(f)
 			}
-			out[k] = fmt.Sprintf("%s at %s in %s: identical=%v, used %s", d.Role, twTimeText(d.Time), strings.Join(files, ", "), d.Identical, filepath.Base(d.Used))
+			roles := d.Roles
+			if len(roles) == 0 {
+				roles = []string{d.Role}
+			}
+			for _, r := range roles {
+				out = append(out, fmt.Sprintf("%s at %s in %s: identical=%v, used %s", r, twTimeText(d.Time), strings.Join(files, ", "), d.Identical, filepath.Base(d.Used)))
+			}
 		}
 		sort.Strings(out)
 		return out

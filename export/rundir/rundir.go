@@ -392,7 +392,7 @@ type Segment struct {
 
 // Duplicate is a time held by two input files, read once.
 type Duplicate struct {
-	Role      string   `json:"role"`
+	Roles     []string `json:"roles"`
 	Time      string   `json:"time"`
 	Files     []string `json:"files"`
 	Identical bool     `json:"identical"`
