@@ -19,6 +19,8 @@ type contourFunc func(vals, levels, edges []float64) ([]orb.MultiLineString, []o
 // It returns nil and the reason when the grid has no contours.
 func contourer(g *grid.Grid, masked []bool) (contourFunc, string) {
 	switch {
+	case g.Structured() && (g.NX < 2 || g.NY < 2):
+		return nil, fmt.Sprintf("no contours: the grid is %d x %d cells, and isolines need at least 2 x 2", g.NY, g.NX)
 	case g.Structured():
 		return func(vals, levels, edges []float64) ([]orb.MultiLineString, []orb.MultiPolygon, error) {
 			f := &grid.Field{NX: g.NX, NY: g.NY, Lon: g.Lon, Lat: g.Lat, Value: vals, Mask: masked}

@@ -1,6 +1,7 @@
 package pipelines
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"fmt"
@@ -584,4 +585,89 @@ func twShort(v any) string {
 		s = s[:80] + "..."
 	}
 	return s
+}
+
+// An update whose new files have a finer step than the earlier ones (two
+// years 3-hourly, then a year hourly: fixture a) gives the tables of a full
+// run, byte for byte: the saved states continue across the change of step.
+// (Shards split rows of cells, and fixture a has one row; the cluster tests
+// cover shards.)
+// The reference is the single run over the whole record (common practice
+// for mergeable accumulators: A+B equals the state of the concatenated
+// record); its numbers are checked against numpy by TestTimeWeight.
+func TestTimeWeightUpdate(t *testing.T) {
+	src, err := filepath.Abs("../testdata/timeweight/a_step_change")
+	if err != nil {
+		t.Fatal(err)
+	}
+	files, _ := filepath.Glob(filepath.Join(src, "*.nc"))
+	sort.Strings(files)
+	if len(files) != 36 {
+		t.Fatalf("fixture a: %d files, want 36", len(files))
+	}
+	tmp := t.TempDir()
+	spec := func(in []string, out string) *Spec {
+		s := clSpec(in, out)
+		return s
+	}
+	full := filepath.Join(tmp, "full")
+	clRun(t, spec([]string{src}, full), Options{})
+	want := clOutputs(t, full)
+
+	grow := filepath.Join(tmp, "grow")
+	os.MkdirAll(grow, 0o755)
+	copyInto(t, grow, files[:24]) // the 3-hourly years
+	run := filepath.Join(tmp, "run")
+	clRun(t, spec([]string{grow}, run), Options{})
+	if bytes.Equal(clOutputs(t, run)["cells.parquet"], want["cells.parquet"]) {
+		t.Fatal("the 3-hourly years alone gave the whole record's tables: the comparison would prove nothing")
+	}
+	copyInto(t, grow, files[24:]) // the hourly year
+	clRun(t, spec([]string{grow}, run), Options{Update: true})
+	clSame(t, "3-hourly years + update with the hourly year", want, clOutputs(t, run))
+
+}
+
+// Monthly files that repeat the next month's first step (fixture d): an
+// update adding later months reads the shared step once, from the earlier
+// file, and gives the full run's tables; with input.duplicate_steps =
+// "last" the shared step would move to the new file, changing what the
+// saved states hold, and the update is refused saying so (exit 2).
+func TestTimeWeightUpdateSharedStep(t *testing.T) {
+	src, err := filepath.Abs("../testdata/timeweight/d_dup_equal")
+	if err != nil {
+		t.Fatal(err)
+	}
+	files, _ := filepath.Glob(filepath.Join(src, "*.nc"))
+	sort.Strings(files)
+	if len(files) != 4 {
+		t.Fatalf("fixture d: %d files, want 4", len(files))
+	}
+	for _, policy := range []string{"", "last"} {
+		tmp := t.TempDir()
+		spec := func(in []string, out string) *Spec {
+			s := clSpec(in, out)
+			s.Input.DuplicateSteps = policy
+			return s
+		}
+		full := filepath.Join(tmp, "full")
+		clRun(t, spec([]string{src}, full), Options{})
+		grow := filepath.Join(tmp, "grow")
+		os.MkdirAll(grow, 0o755)
+		copyInto(t, grow, files[:2])
+		run := filepath.Join(tmp, "run")
+		clRun(t, spec([]string{grow}, run), Options{})
+		copyInto(t, grow, files[2:])
+		_, err := Run(context.Background(), spec([]string{grow}, run), Options{Update: true, Version: "test"})
+		if policy == "" {
+			if err != nil {
+				t.Fatalf("update over a shared step: %v", err)
+			}
+			clSame(t, "2 months + update with 2 more (shared steps)", clOutputs(t, full), clOutputs(t, run))
+			continue
+		}
+		if err == nil || !IsUpdateRefused(err) || !strings.Contains(err.Error(), "begins at step") {
+			t.Errorf("duplicate_steps = \"last\": update gave %v, want a refusal saying where the new file begins", err)
+		}
+	}
 }

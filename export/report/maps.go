@@ -249,7 +249,7 @@ func Map(name, title string, f *Field) (*figure, *MapInfo, error) {
 				return nil, nil, fmt.Errorf("isolines of %s: %w", f.Name, err)
 			}
 			layer.lines = lines
-		} else if len(f.Levels) > 0 && f.Shapes == nil {
+		} else if len(f.Levels) > 0 && f.Shapes == nil && f.NX >= 2 && f.NY >= 2 { // a single row or column has no isolines
 			lines, err := grid.Isolines(&grid.Field{NX: f.NX, NY: f.NY, Lon: f.Lon, Lat: f.Lat, Value: f.Value, Mask: f.Land}, f.Levels)
 			if err != nil {
 				return nil, nil, fmt.Errorf("isolines of %s: %w", f.Name, err)
