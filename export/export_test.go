@@ -9,7 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 	"testing"
 
 	"github.com/apache/arrow/go/v17/parquet/file"

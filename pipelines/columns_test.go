@@ -11,7 +11,7 @@ import (
 	"strings"
 	"testing"
 
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
 )
 

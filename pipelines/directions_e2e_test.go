@@ -5,7 +5,7 @@ import (
 	"path/filepath"
 	"testing"
 
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 )
 
 // dirRef is testdata/directions/reference.json, computed independently of

@@ -13,7 +13,7 @@ import (
 	"strings"
 	"testing"
 
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
 )
 

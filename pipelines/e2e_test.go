@@ -9,7 +9,7 @@ import (
 	"path/filepath"
 	"sort"
 	"strings"
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 	"testing"
 )
 

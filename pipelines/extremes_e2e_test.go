@@ -9,7 +9,7 @@ import (
 	"strings"
 	"testing"
 
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 )
 
 // readStrings reads one string column of a Parquet file with the Arrow reader.

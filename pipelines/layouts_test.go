@@ -11,7 +11,7 @@ import (
 	"strings"
 	"testing"
 
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 )
 
 // layoutsRef is testdata/layouts/layouts_ref.json, made by

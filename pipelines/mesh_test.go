@@ -16,7 +16,7 @@ import (
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/geojson"
 
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
 )
 

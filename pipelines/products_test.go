@@ -22,7 +22,7 @@ import (
 	"github.com/chromedp/cdproto/runtime"
 	"github.com/chromedp/chromedp"
 
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
 )
 

@@ -6,7 +6,7 @@ import (
 	"reflect"
 	"testing"
 
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 )
 
 // qcRef is testdata/qc/reference.json, computed independently of swellgrid

@@ -8,9 +8,9 @@ import (
 	"strings"
 	"testing"
 
-	"swellgrid/export/parquetread"
 	sgreport "swellgrid/export/report"
 	"swellgrid/export/rundir"
+	"swellgrid/internal/parquetread"
 )
 
 // The site figures of the demo's report plot the values of the tables, read

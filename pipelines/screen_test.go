@@ -9,7 +9,7 @@ import (
 	"testing"
 
 	"swellgrid/export"
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 )
 
 // smallScreenRun writes a finished run directory by hand: the 5 x 3 regular

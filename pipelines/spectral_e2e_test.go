@@ -5,7 +5,7 @@ import (
 	"path/filepath"
 	"testing"
 
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 )
 
 // spectralRef is testdata/spectral_cols/reference.json, computed

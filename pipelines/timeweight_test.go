@@ -12,7 +12,7 @@ import (
 	"strings"
 	"testing"
 
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
 )
 

@@ -34,7 +34,7 @@ import (
 	"testing"
 	"time"
 
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 	"swellgrid/pipelines/corpus"
 )
 

@@ -17,7 +17,7 @@ import (
 	"sort"
 	"strings"
 
-	"swellgrid/export/parquetread"
+	"swellgrid/internal/parquetread"
 )
 
 func main() {

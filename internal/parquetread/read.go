@@ -1,7 +1,10 @@
 // Package parquetread reads the columns of a Parquet file back into Go values
 // with the Apache Arrow project's reader (pqarrow), independently of
-// swellgrid's writer. It serves the tests of every package that checks what a
-// run wrote; it must not import any other swellgrid package.
+// swellgrid's writer. It is test tooling: it serves the tests of every
+// package that checks what a run wrote, and sgdiff (cmd/sgdiff, `make bench`).
+// It must not import any other swellgrid package, and no product package
+// (ingest, grid, stats, export, pipelines, cmd/swellgrid) imports it outside
+// its _test.go files.
 package parquetread
 
 import (
