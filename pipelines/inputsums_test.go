@@ -9,7 +9,7 @@ import (
 	"strings"
 	"testing"
 
-	"swellgrid/pipelines/corpus"
+	"swellgrid/internal/corpus"
 )
 
 // rewriteLastFloat overwrites the last 4 bytes of a classic NetCDF file (the

@@ -9,11 +9,11 @@ import (
 	"testing"
 
 	"swellgrid/ingest"
-	"swellgrid/pipelines/corpus"
+	"swellgrid/internal/corpus"
 )
 
 // noDataInput builds the corpus case whose February file holds only fill
-// values for Hm0 (pipelines/corpus, hm0_all_fill).
+// values for Hm0 (internal/corpus, hm0_all_fill).
 func noDataInput(t *testing.T) string {
 	t.Helper()
 	for _, c := range corpus.Cases() {

@@ -13,8 +13,8 @@ import (
 	"testing"
 	"time"
 
+	"swellgrid/internal/corpus"
 	"swellgrid/pipelines"
-	"swellgrid/pipelines/corpus"
 )
 
 // codeOf runs the command line in this process through the one exit-code

@@ -7,7 +7,7 @@ import (
 	"sync"
 	"testing"
 
-	"swellgrid/pipelines/corpus"
+	"swellgrid/internal/corpus"
 )
 
 var (

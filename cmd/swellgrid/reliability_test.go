@@ -1,7 +1,7 @@
 package main
 
 // Reliability tests: the built binary against the bad-input corpus
-// (pipelines/corpus) and against faults (SIGKILL and resume, a full disk, a
+// (internal/corpus) and against faults (SIGKILL and resume, a full disk, a
 // read-only output directory, an input deleted during the run).
 //
 // Every check here is against a definition outside the code under test: the
@@ -34,8 +34,8 @@ import (
 	"testing"
 	"time"
 
+	"swellgrid/internal/corpus"
 	"swellgrid/internal/parquetread"
-	"swellgrid/pipelines/corpus"
 )
 
 var (

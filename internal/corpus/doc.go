@@ -7,8 +7,11 @@
 //
 // Every file is written by code here from invented, synthetic values (global
 // attribute synthetic = "yes"); nothing is a hand-edited binary or real data.
-// The reliability tests (cmd/swellgrid) run the built binary over the corpus.
+// The reliability tests (cmd/swellgrid) run the built binary over the corpus;
+// cmd/mkcorpus writes it into a directory.
 //
-// corpus writes files only; it knows nothing of the run, the statistics or the
-// outputs (it imports no other swellgrid package).
+// It is test tooling: corpus writes files only; it knows nothing of the run,
+// the statistics or the outputs (it imports no other swellgrid package), and
+// no product package (ingest, grid, stats, export, pipelines, cmd/swellgrid)
+// imports it outside its _test.go files.
 package corpus

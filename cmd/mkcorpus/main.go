@@ -2,7 +2,7 @@
 // directory, one sub-directory per case, and prints each case with the
 // outcome swellgrid must give it.
 //
-//	go run ./pipelines/corpus/cmd/mkcorpus -out /tmp/corpus
+//	go run ./cmd/mkcorpus -out /tmp/corpus
 package main
 
 import (
@@ -11,7 +11,7 @@ import (
 	"os"
 	"path/filepath"
 
-	"swellgrid/pipelines/corpus"
+	"swellgrid/internal/corpus"
 )
 
 func main() {
