@@ -77,27 +77,44 @@ mutants: test-deps
 # bench: the pipeline against the read floor (generated data cached in
 # $(BENCH_CACHE); about 10 minutes on 2 cores, plus 2-3 minutes the first time
 # for the data), before and after in one run: the same benchmark driver is also
-# built on the library of commit $(BENCH_BEFORE) (git archive, this tree's
-# pipelines/bench laid over it) and every pipeline case
+# built on the library of commit $(BENCH_BEFORE) (git archive, then this tree's
+# driver, $(BENCH_DRIVER), copied to the same paths over it, replacing what
+# the old tree has there) and every pipeline case
 # runs with both, the before case first. Then the key micro-benchmarks on both
 # trees (benchstat before vs after) and the tables of every fixture compared
-# (compare_outputs.sh). Figures go to $(BENCH_OUT)/; BENCHMARKS.md says how to
+# (internal/bench/compare_outputs.sh). Figures go to $(BENCH_OUT)/; BENCHMARKS.md says how to
 # read them. BENCH_PARTS=full measures the full record only.
+#
+# The driver is copied whole, so it builds on any older commit whose product
+# packages it imports (pipelines, pipelines/synth, ingest) are at the same
+# import paths with the names it uses; the driver's own move (from
+# pipelines/bench to internal/bench and cmd/) does not matter. When a product
+# package it imports has moved since BENCH_BEFORE, BENCH_BEFORE_IMPORTS maps
+# it back: a list of NEW=OLD import paths rewritten in the copy only, e.g.
+# BENCH_BEFORE_IMPORTS=swellgrid/pipelines/engine=swellgrid/pipelines (the
+# driver then imports the moved package under a name of its own). When the
+# names it calls changed too, move BENCH_BEFORE past the change.
 BENCH_OUT   ?= bench-out
 BENCH_CACHE ?= $(HOME)/.cache/swellgrid-bench
 BENCH_BEFORE ?= 60c6ddd
 BENCH_PARTS ?= full,half
 BENCH_MICRO ?= FeedBulk|FeedSpectral|FinishBulk|FitStage|GroupVelocity|BulkDepthPower|FitGEV|FitGPD|^BenchmarkAdd
 BENCHSTAT_VERSION := v0.0.0-20260908200009-22c9c6c9d4da
+BENCH_DRIVER := internal/bench cmd/sgbench
+BENCH_BEFORE_IMPORTS ?=
 bench: deps
 	@mkdir -p $(BENCH_OUT) bin
-	$(GO) build -o bin/sgbench ./pipelines/bench/cmd/sgbench
-	$(GO) build -o bin/sgdiff ./pipelines/bench/cmd/sgdiff
+	$(GO) build -o bin/sgbench ./cmd/sgbench
+	$(GO) build -o bin/sgdiff ./cmd/sgdiff
 	$(GO) build -o $(BIN) ./cmd/swellgrid
 	rm -rf $(BENCH_OUT)/before-src && mkdir -p $(BENCH_OUT)/before-src
 	git archive $(BENCH_BEFORE) | tar -x -C $(BENCH_OUT)/before-src
-	rm -rf $(BENCH_OUT)/before-src/pipelines/bench && cp -r pipelines/bench $(BENCH_OUT)/before-src/pipelines/
-	cd $(BENCH_OUT)/before-src && $(GO) build -o $(CURDIR)/bin/sgbench-before ./pipelines/bench/cmd/sgbench \
+	for d in $(BENCH_DRIVER); do rm -rf $(BENCH_OUT)/before-src/$$d && mkdir -p $(BENCH_OUT)/before-src/$$d \
+	  && cp -r $$d/. $(BENCH_OUT)/before-src/$$d/ || exit 1; done
+	for m in $(BENCH_BEFORE_IMPORTS); do new=$${m%%=*}; old=$${m#*=}; \
+	  find $(addprefix $(BENCH_OUT)/before-src/,$(BENCH_DRIVER)) -name '*.go' \
+	    -exec sed -i "s#\"$$new\"#\"$$old\"#" {} + || exit 1; done
+	cd $(BENCH_OUT)/before-src && $(GO) build -o $(CURDIR)/bin/sgbench-before ./cmd/sgbench \
 	  && $(GO) build -o $(CURDIR)/bin/swellgrid-before ./cmd/swellgrid
 	./bin/sgbench -cache $(BENCH_CACHE) -before bin/sgbench-before -parts $(BENCH_PARTS) -md $(BENCH_OUT)/pipeline.md
 	cd $(BENCH_OUT)/before-src && $(GO) test -run '^$$' -bench '$(BENCH_MICRO)' -benchmem -count 5 -benchtime 0.2s \
@@ -105,7 +122,7 @@ bench: deps
 	$(GO) test -run '^$$' -bench '$(BENCH_MICRO)' -benchmem -count 5 -benchtime 0.2s ./pipelines/ ./stats/... > $(BENCH_OUT)/micro.txt
 	$(GO) install golang.org/x/perf/cmd/benchstat@$(BENCHSTAT_VERSION)
 	"$$($(GO) env GOPATH)/bin/benchstat" before=$(BENCH_OUT)/micro-before.txt after=$(BENCH_OUT)/micro.txt | tee $(BENCH_OUT)/micro-benchstat.txt
-	./pipelines/bench/compare_outputs.sh bin/swellgrid-before $(BIN) bin/sgdiff > $(BENCH_OUT)/tables.txt; cat $(BENCH_OUT)/tables.txt
+	./internal/bench/compare_outputs.sh bin/swellgrid-before $(BIN) bin/sgdiff > $(BENCH_OUT)/tables.txt; cat $(BENCH_OUT)/tables.txt
 	$(MAKE) bench-memory BENCH_MEM_ONLY=grid,merge BENCH_GRID200_MONTHS=1
 
 # bench-memory: peak RSS (each case's child rusage, ru_maxrss) of the bulk
@@ -124,7 +141,7 @@ BENCH_GRID200_MONTHS ?= 12
 bench-memory: deps
 	@mkdir -p $(BENCH_OUT) bin
 	$(GO) build -o $(BIN) ./cmd/swellgrid
-	$(GO) build -o bin/sgmem ./pipelines/bench/cmd/sgmem
+	$(GO) build -o bin/sgmem ./cmd/sgmem
 	./bin/sgmem -cache $(BENCH_CACHE) -bin $(BIN) -md $(BENCH_OUT)/memory.md \
 	  -only '$(BENCH_MEM_ONLY)' -grid200-months $(BENCH_GRID200_MONTHS)
 	$(GO) test -run '^$$' -bench CellMemory -benchtime 3x ./pipelines/ | tee -a $(BENCH_OUT)/memory.md

@@ -117,8 +117,9 @@ func RunChild(c Case) (*Measure, error) {
 // the plan, as the CLI sets it). Without it Go's collector lets the heap
 // grow to twice what is live, and a case under --memory-limit 256MiB
 // peaked at 349 MiB where the CLI peaks at 260 MiB. The field is set by
-// name because the before tree (BENCH_BEFORE, built with this package laid
-// over it) may predate it; there the run has no plan to apply.
+// name because the before tree (BENCH_BEFORE, built with this package and
+// cmd/sgbench copied over it) may predate it; there the run has no plan to
+// apply.
 func processOptions() pipelines.Options {
 	opt := pipelines.Options{Restart: true, Version: "bench"}
 	if f := reflect.ValueOf(&opt).Elem().FieldByName("LimitProcess"); f.IsValid() && f.Kind() == reflect.Bool {

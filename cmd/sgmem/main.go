@@ -15,8 +15,8 @@ import (
 	"strings"
 	"syscall"
 
+	"swellgrid/internal/bench"
 	"swellgrid/pipelines"
-	"swellgrid/pipelines/bench"
 )
 
 func main() {

@@ -4,9 +4,15 @@
 // process so that its peak memory is its own, and reports wall times, the
 // ratio of the pipeline to the read floor, throughput and peak memory.
 //
-// It drives pipelines.Run and the ingest catalog as a user would; it must not
-// know about the per-cell statistics or the output formats, and nothing in
-// swellgrid imports it.
+// It is benchmark tooling; its programs are cmd/sgbench (`make bench`) and
+// cmd/sgmem (`make bench-memory`), and compare_outputs.sh here compares two
+// builds' tables with cmd/sgdiff. It drives pipelines.Run and the ingest
+// catalog as a user would; it must not know about the per-cell statistics or
+// the output formats, and no product package (ingest, grid, stats, export,
+// pipelines, cmd/swellgrid) imports it outside its _test.go files. `make
+// bench` copies it and cmd/sgbench over an older commit and builds them
+// there, so it imports only product packages and names that the before tree
+// (BENCH_BEFORE) has too.
 package bench
 
 import (

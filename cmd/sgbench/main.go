@@ -12,7 +12,7 @@ import (
 	"path/filepath"
 	"strings"
 
-	"swellgrid/pipelines/bench"
+	"swellgrid/internal/bench"
 )
 
 func main() {
