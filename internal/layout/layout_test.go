@@ -1,0 +1,131 @@
+package layout
+
+import (
+	"go/parser"
+	"go/token"
+	"io/fs"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// productRoots are the directories (relative to the module root) of the
+// product: every package under them ships in the swellgrid binary.
+var productRoots = []string{"ingest", "grid", "stats", "export", "pipelines", "cmd/swellgrid"}
+
+// tooling are the import paths a product package's non-test files must not
+// import: the test and benchmark helpers, and every program under cmd/ other
+// than swellgrid itself.
+var tooling = []string{
+	"swellgrid/internal/testtool",
+	"swellgrid/internal/bench",
+	"swellgrid/internal/corpus",
+	"swellgrid/internal/parquetread",
+	"swellgrid/internal/layout",
+}
+
+// isTooling reports whether the import path is tooling (a package in
+// tooling, or one below it, or a program under cmd/ other than swellgrid).
+func isTooling(path string) bool {
+	for _, t := range tooling {
+		if path == t || strings.HasPrefix(path, t+"/") {
+			return true
+		}
+	}
+	if rest, ok := strings.CutPrefix(path, "swellgrid/cmd/"); ok {
+		return rest != "swellgrid" && !strings.HasPrefix(rest, "swellgrid/")
+	}
+	return false
+}
+
+// productImports returns, for every non-test Go file under the product roots
+// of the module at root (testdata directories skipped), its import paths.
+func productImports(t *testing.T, root string) map[string][]string {
+	t.Helper()
+	out := map[string][]string{}
+	fset := token.NewFileSet()
+	for _, r := range productRoots {
+		err := filepath.WalkDir(filepath.Join(root, r), func(p string, d fs.DirEntry, err error) error {
+			if err != nil {
+				return err
+			}
+			if d.IsDir() {
+				if d.Name() == "testdata" {
+					return filepath.SkipDir
+				}
+				return nil
+			}
+			if !strings.HasSuffix(p, ".go") || strings.HasSuffix(p, "_test.go") {
+				return nil
+			}
+			f, err := parser.ParseFile(fset, p, nil, parser.ImportsOnly)
+			if err != nil {
+				return err
+			}
+			rel, _ := filepath.Rel(root, p)
+			out[rel] = []string{}
+			for _, im := range f.Imports {
+				path, err := strconv.Unquote(im.Path.Value)
+				if err != nil {
+					return err
+				}
+				out[rel] = append(out[rel], path)
+			}
+			return nil
+		})
+		if err != nil {
+			t.Fatalf("reading the product package %s: %v", r, err)
+		}
+	}
+	return out
+}
+
+// No product package imports tooling outside its tests (DEVELOPERS.md,
+// "Layout and import direction"; issue 28: no benchmark or corpus tooling
+// in product packages).
+func TestProductImportsNoTooling(t *testing.T) {
+	files := productImports(t, filepath.Join("..", ".."))
+	// The walk must have seen the product, or the check proves nothing.
+	for _, f := range []string{"pipelines/run.go", "ingest/reader.go", "cmd/swellgrid/main.go", "export/parquet.go"} {
+		if _, ok := files[filepath.FromSlash(f)]; !ok {
+			t.Fatalf("the walk did not see %s (%d files seen): is the module root ../..?", f, len(files))
+		}
+	}
+	var bad []string
+	for f, imps := range files {
+		for _, im := range imps {
+			if isTooling(im) {
+				bad = append(bad, f+" imports "+im)
+			}
+		}
+	}
+	sort.Strings(bad)
+	for _, b := range bad {
+		t.Errorf("%s: tooling is imported only from _test.go files; move the use into a test, or the code out of the product", b)
+	}
+}
+
+// The classification itself: tooling paths, and product paths that share a
+// prefix with them.
+func TestIsTooling(t *testing.T) {
+	for path, want := range map[string]bool{
+		"swellgrid/internal/bench":         true,
+		"swellgrid/internal/corpus":        true,
+		"swellgrid/internal/parquetread":   true,
+		"swellgrid/internal/testtool":      true,
+		"swellgrid/cmd/sgdiff":             true,
+		"swellgrid/cmd/mkcorpus":           true,
+		"swellgrid/cmd/swellgrid":          false,
+		"swellgrid/internal/benchmarkless": false,
+		"swellgrid/pipelines":              false,
+		"swellgrid/pipelines/synth":        false,
+		"swellgrid/export/rundir":          false,
+		"github.com/fhs/go-netcdf/netcdf":  false,
+	} {
+		if got := isTooling(path); got != want {
+			t.Errorf("isTooling(%q) = %v, want %v", path, got, want)
+		}
+	}
+}
