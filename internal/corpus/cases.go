@@ -218,11 +218,18 @@ func Cases() []Case {
 		{Name: "time_repeated_in_file", Breaks: "a time step repeated inside one file", Outcome: Refused, Exit: 2, Stage: "catalog",
 			Want:  []string{"cx_2001-02.nc", `"time"`, "repeats", "remove the duplicated"},
 			build: bulkCase(func(_, feb *ncDesc) { t := feb.v("time").data; t[5] = t[4] })},
-		{Name: "time_overlap_across_files", Breaks: "the second file starts before the first ends", Outcome: Refused, Exit: 2, Stage: "catalog",
-			Want: []string{"cx_2001-01.nc", "cx_2001-02.nc", "overlap in time", "remove the duplicate or overlapping file"},
+		{Name: "time_overlap_across_files", Breaks: "the second file starts before the first ends (16 steps held by both, with different values)", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want: []string{"cx_2001-01.nc", "cx_2001-02.nc", "both hold time", "different values", "duplicate_steps"},
 			build: bulkCase(func(_, feb *ncDesc) {
 				for i := range feb.v("time").data {
 					feb.v("time").data[i] -= 48
+				}
+			})},
+		{Name: "time_overlap_not_aligned", Breaks: "the second file starts 49.5 h before the first ends, its times between the first's", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want: []string{"cx_2001-01.nc", "cx_2001-02.nc", "overlap in time", "remove the duplicate or overlapping file"},
+			build: bulkCase(func(_, feb *ncDesc) {
+				for i := range feb.v("time").data {
+					feb.v("time").data[i] -= 49.5
 				}
 			})},
 		{Name: "time_duplicate_file", Breaks: "the same month given twice under two names", Outcome: Refused, Exit: 2, Stage: "catalog",
