@@ -374,12 +374,45 @@ func TestE2EColumnsAgainstNumpy(t *testing.T) {
 // of tb.tols within its tolerance.
 func compareTable(t *testing.T, out string, tb e2eTable, ref []map[string]any) {
 	t.Helper()
+	cols := map[string]colTol{}
+	for c, tl := range tb.tols {
+		cols[c] = colTol{tol: tl}
+	}
+	compareRows(t, out, rowCheck{file: tb.file, ref: tb.ref, keys: tb.keys, where: tb.where, cols: cols,
+		script: "testdata/e2e/reference.py", source: "numpy/scipy"}, ref)
+}
+
+// colTol is a column's tolerance; an optional column is compared only where
+// the reference has a value (the fits it makes), elsewhere not at all.
+type colTol struct {
+	tol
+	optional bool
+}
+
+// rowCheck is one long table (or a part of one) compared with a reference
+// list row by row, matched by keys.
+type rowCheck struct {
+	file, ref string                                  // the run's table and its list in the reference
+	keys      []string                                // columns that identify a row (equal as text)
+	where     func(cols map[string][]any, i int) bool // the file's rows the list covers (nil: all)
+	cols      map[string]colTol                       // compared columns
+	script    string                                  // the reference's script (for the messages)
+	source    string                                  // what computed the reference
+}
+
+// compareRows compares the rows of a run's long table with a reference's
+// list: the same rows (by key), in the reference's order (cells, then the
+// table's own order: ascending bins and levels, months, periods), each
+// compared column within its tolerance.
+func compareRows(t *testing.T, out string, tb rowCheck, ref []map[string]any) {
+	t.Helper()
+	label := tb.file + " (" + tb.ref + ")"
 	if len(ref) == 0 {
-		t.Fatalf("reference.json has no %s rows: rerun testdata/e2e/reference.py", tb.ref)
+		t.Fatalf("the reference has no %s rows: rerun %s", tb.ref, tb.script)
 	}
 	need := append([]string{}, tb.keys...)
 	need = append(need, "cell_id")
-	for c := range tb.tols {
+	for c := range tb.cols {
 		need = append(need, c)
 	}
 	if tb.ref == "monthly" || tb.ref == "climatology" {
@@ -423,42 +456,49 @@ func compareTable(t *testing.T, out string, tb e2eTable, ref []map[string]any) {
 		}
 	}
 	if len(rows) != len(mine) {
-		t.Errorf("%s (%s rows): %d rows, the reference %d", tb.file, tb.ref, len(rows), len(mine))
+		t.Errorf("%s: %d rows, the reference %d", label, len(rows), len(mine))
 	}
 	w := worst{}
 	bad, last := 0, -1
+	report := func(format string, args ...any) {
+		if bad++; bad <= 25 {
+			t.Errorf(format, args...)
+		}
+	}
 	for _, r := range mine {
 		k := key(func(c string) any { return r[c] })
 		i, ok := rows[k]
 		if !ok {
-			if bad++; bad <= 20 {
-				t.Errorf("%s: no row %s = %s", tb.file, strings.Join(tb.keys, "|"), k)
-			}
+			report("%s: no row %s = %s", label, strings.Join(tb.keys, "|"), k)
 			continue
 		}
-		// the rows come in the reference's order (cells, then the table's
-		// own order: ascending bins and levels, months, periods)
 		if i < last {
-			if bad++; bad <= 20 {
-				t.Errorf("%s: row %s = %s comes before the row the reference lists ahead of it", tb.file, strings.Join(tb.keys, "|"), k)
-			}
+			report("%s: row %s = %s comes before the row the reference lists ahead of it", label, strings.Join(tb.keys, "|"), k)
 		}
 		last = i
-		for c, tl := range tb.tols {
+		for c, tl := range tb.cols {
 			want, ok := r[c]
-			if !ok {
-				t.Fatalf("reference.json %s rows have no %s: rerun testdata/e2e/reference.py", tb.ref, c)
+			if !ok && !tl.optional {
+				t.Fatalf("reference %s rows have no %s: rerun %s", tb.ref, c, tb.script)
 			}
-			got := asFloat(cols[c][i])
-			w.see(c, got, asFloat(want), tl)
-			if !near(got, asFloat(want), tl) {
-				if bad++; bad <= 20 {
-					t.Errorf("%s row %s: %s = %.9g, numpy/scipy %.9g", tb.file, k, c, got, asFloat(want))
-				}
+			if tl.optional && (!ok || want == nil) {
+				continue
+			}
+			col, ok := cols[c]
+			if !ok {
+				t.Fatalf("%s has no column %s", tb.file, c)
+			}
+			got := asFloat(col[i])
+			w.see(c, got, asFloat(want), tl.tol)
+			if !near(got, asFloat(want), tl.tol) {
+				report("%s row %s: %s = %.9g, %s %.9g", label, k, c, got, tb.source, asFloat(want))
 			}
 		}
 	}
-	w.log(t, tb.file+" ("+tb.ref+")")
+	if bad > 25 {
+		t.Errorf("%s: %d differences in all", label, bad)
+	}
+	w.log(t, label)
 }
 
 // TestE2EReferenceReproduced reruns testdata/e2e/reference.py (needs Debian's

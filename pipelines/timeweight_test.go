@@ -43,12 +43,8 @@ import (
 // twVariants are the fixtures run to completion (spec_<variant>.toml).
 var twVariants = []string{"a", "b", "c", "d", "e_first", "e_last"}
 
-// twTol is a column tolerance; optional columns are compared only where the
-// reference has a value (the fits it makes), elsewhere not at all.
-type twTol struct {
-	tol
-	optional bool
-}
+// twTol is a column tolerance (colTol, e2e_columns_test.go).
+type twTol = colTol
 
 var (
 	twPower  = twTol{tol: tol{1.0 / 32 / 1000 * 1.02, 1e-6}} // kW/m: 1e-6, or half of 1/16 W/m (and 2 % of it for the two group-velocity solvers)
@@ -329,77 +325,8 @@ func twCompareCells(t *testing.T, out string, ref *twRef) {
 // tolerance.
 func twCompareTable(t *testing.T, out string, tb twTable, ref []map[string]any) {
 	t.Helper()
-	if len(ref) == 0 {
-		t.Fatalf("the reference has no %s rows: rerun testdata/timeweight/reference.py", tb.ref)
-	}
-	cols, err := parquetread.Columns(filepath.Join(out, tb.file))
-	if err != nil {
-		t.Fatal(err)
-	}
-	key := func(get func(string) any) string {
-		parts := make([]string, len(tb.keys))
-		for i, k := range tb.keys {
-			parts[i] = keyText(get(k))
-		}
-		return strings.Join(parts, "|")
-	}
-	rows := map[string]int{}
-	for i := range cols["cell_id"] {
-		if tb.where == nil || tb.where(cols, i) {
-			rows[key(func(c string) any { return cols[c][i] })] = i
-		}
-	}
-	var mine []map[string]any
-	for _, r := range ref {
-		if tb.where == nil || tb.where(map[string][]any{"period": {r["period"]}, "method": {r["method"]}, "variable": {r["variable"]}}, 0) {
-			mine = append(mine, r)
-		}
-	}
-	label := tb.file + " (" + tb.ref + ")"
-	if len(rows) != len(mine) {
-		t.Errorf("%s: %d rows, the reference %d", label, len(rows), len(mine))
-	}
-	w := worst{}
-	bad, last := 0, -1
-	report := func(format string, args ...any) {
-		if bad++; bad <= 25 {
-			t.Errorf(format, args...)
-		}
-	}
-	for _, r := range mine {
-		k := key(func(c string) any { return r[c] })
-		i, ok := rows[k]
-		if !ok {
-			report("%s: no row %s = %s", label, strings.Join(tb.keys, "|"), k)
-			continue
-		}
-		if i < last {
-			report("%s: row %s = %s comes before the row the reference lists ahead of it", label, strings.Join(tb.keys, "|"), k)
-		}
-		last = i
-		for c, tl := range tb.cols {
-			want, ok := r[c]
-			if !ok && !tl.optional {
-				t.Fatalf("reference %s rows have no %s: rerun testdata/timeweight/reference.py", tb.ref, c)
-			}
-			if tl.optional && (!ok || want == nil) {
-				continue
-			}
-			col, ok := cols[c]
-			if !ok {
-				t.Fatalf("%s has no column %s", tb.file, c)
-			}
-			got := asFloat(col[i])
-			w.see(c, got, asFloat(want), tl.tol)
-			if !near(got, asFloat(want), tl.tol) {
-				report("%s row %s: %s = %.9g, numpy (duration-weighted) %.9g", label, k, c, got, asFloat(want))
-			}
-		}
-	}
-	if bad > 25 {
-		t.Errorf("%s: %d differences in all", label, bad)
-	}
-	w.log(t, label)
+	compareRows(t, out, rowCheck{file: tb.file, ref: tb.ref, keys: tb.keys, where: tb.where, cols: tb.cols,
+		script: "testdata/timeweight/reference.py", source: "numpy (duration-weighted)"}, ref)
 }
 
 // twTimeText normalises a time of the manifest (YYYY-MM-DD HH:MM:SS, maybe
