@@ -159,7 +159,7 @@ func dirOfText(text string) (c DirConvention, speaks, unclear bool) {
 	to := has("towards") || has("toward") || has("propagation") || has("oceanographic") ||
 		pair("to", "direction") || pair("direction", "to") || pair("going", "to") || pair("propagating", "to") ||
 		pair("travelling", "to") || pair("traveling", "to") || pair("heading", "to") || pair("moving", "to")
-	from := has("meteorological") || pair("coming", "from") || pair("comes", "from") || pair("arriving", "from") ||
+	from := has("meteorological") || pair("coming", "from") || pair("comes", "from") || pair("come", "from") || pair("arriving", "from") ||
 		pair("from", "direction") || pair("direction", "from") || pair("from", "which")
 	switch {
 	case cart && from:
@@ -268,15 +268,15 @@ func resolveDirection(path, name string, attrs []attr, sp dirSpec) (DirConventio
 	if sp.conv != "" {
 		return sp.conv, specSays + " (the file's " + found + " say nothing of it)", nil
 	}
-	why := "say"
+	why := "say nothing of its convention"
 	if len(unclear) > 0 {
 		var q []string
 		for _, a := range unclear {
 			q = append(q, a.String())
 		}
-		why = "are unclear (" + strings.Join(q, ", ") + " name both or a Cartesian \"from\") and"
+		why = "leave its convention unclear (" + strings.Join(q, ", ") + " name both \"from\" and \"to\", or a Cartesian \"from\")"
 	}
-	return "", "", errf(path, name, "the direction coordinate's %s %s nothing of its convention (no standard_name sea_surface_wave_from_direction or sea_surface_wave_to_direction, no long_name or comment saying \"coming from\", \"going to\" or \"Cartesian\"): set input.direction_convention in the spec (%s)",
+	return "", "", errf(path, name, "the direction coordinate's attributes (%s) %s: no standard_name sea_surface_wave_from_direction or sea_surface_wave_to_direction, no long_name or comment saying \"coming from\", \"going to\" or \"Cartesian\"; set input.direction_convention in the spec (%s)",
 		found, why, choices)
 }
 

@@ -96,7 +96,6 @@ func (r *InspectReport) countEmpty(cat *ingest.Catalog) error {
 	}
 	n := cat.Grid.NCells()
 	seen := make([]bool, n)
-	var valid, neg int64 // sampled spectral densities, and the negative ones
 	chunk := max(1, (1<<21)/(per*inspectSample))
 	for c0 := 0; c0 < n; c0 += chunk {
 		c1 := min(n, c0+chunk)
@@ -119,10 +118,7 @@ func (r *InspectReport) countEmpty(cat *ingest.Catalog) error {
 						for _, v := range b.Spec[i*per : (i+1)*per] {
 							if !math.IsNaN(v) {
 								x = v
-								valid++
-								if v < 0 {
-									neg++
-								}
+								break
 							}
 						}
 					}
@@ -137,14 +133,6 @@ func (r *InspectReport) countEmpty(cat *ingest.Catalog) error {
 		}
 	}
 	r.SampleSteps = inspectSample
-	if valid > 0 && 2*neg > valid {
-		role := ingest.Spectrum2D
-		if cat.Vars[role] == nil {
-			role = ingest.Spectrum1D
-		}
-		r.Warnings = append(r.Warnings, fmt.Sprintf("%.1f%% of the spectral densities sampled (%d of %d, first %d steps of every file) are negative: a variance density is never negative, so a run refuses them; they are most likely logarithms (set units.%s_encoding = \"log10\" or \"ln\")",
-			100*float64(neg)/float64(valid), neg, valid, inspectSample, role))
-	}
 	for i, ok := range seen {
 		if !ok && !cat.Masked[i] {
 			r.EmptyCells++
