@@ -453,7 +453,7 @@ func resolveEncoding(path, name string, sp encSpec, longName, comment string) (E
 		}
 		return "", "", "", errf(path, name, "the density is stored as a logarithm of unstated base (%s%s): %s", strings.Join(q, ", "), also, keyHelp)
 	}
-	return Linear, fmt.Sprintf("no attribute says the values are logarithms (%s)", quoteAttrs([]attr{ua, {"long_name", longName}, {"comment", comment}})), inner, nil
+	return Linear, fmt.Sprintf("no attribute saying the values are logarithms (%s)", quoteAttrs([]attr{ua, {"long_name", longName}, {"comment", comment}})), inner, nil
 }
 
 // Reading records how one convention of a spectral variable was read: what

@@ -122,7 +122,7 @@ func TestResolveEncoding(t *testing.T) {
 		refused   []string
 		fromHolds string
 	}{
-		{sp("", "", "m2 s rad-1"), "", "", Linear, "m2 s rad-1", nil, "no attribute says"},
+		{sp("", "", "m2 s rad-1"), "", "", Linear, "m2 s rad-1", nil, "no attribute saying"},
 		{sp("", "", "log10(m2 s rad-1)"), "", "", Log10, "m2 s rad-1", nil, `units "log10(m2 s rad-1)"`},
 		{sp("", "", "lg(re 1 m2 s rad-1)"), "", "", Log10, "m2 s rad-1", nil, ""},
 		{sp("", "", "ln(m2 s)"), "", "", Ln, "m2 s", nil, ""},
