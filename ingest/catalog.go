@@ -104,6 +104,7 @@ type VarInfo struct {
 	// longName and comment are the variable's attributes, for messages.
 	longName, comment string
 	unitsFromSpec     bool // Units come from the spec's [units]
+	logStored         bool // Encoding is Log10 or Ln (unpack's test, per value)
 }
 
 // Static reports whether the variable has no time dimension.
@@ -146,7 +147,7 @@ func (vi *VarInfo) unpack(raw float64) float64 {
 		}
 	}
 	x := raw*vi.Scale + vi.Offset
-	if vi.Encoding == Log10 || vi.Encoding == Ln {
+	if vi.logStored {
 		x = vi.Encoding.decode(x) // a logarithm stored: the density is 10^x or e^x
 	}
 	x *= vi.Factor

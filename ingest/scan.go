@@ -795,7 +795,7 @@ func (s *scan) findSpectral(opt Options) error {
 	if err != nil {
 		return errf(s.f.path, vi.Name, "%v", err)
 	}
-	vi.Encoding, vi.Factor = enc, du.factor
+	vi.Encoding, vi.Factor, vi.logStored = enc, du.factor, enc == Log10 || enc == Ln
 	rd := func(what, reading, from string) Reading {
 		return Reading{Role: vi.Role, Variable: vi.Name, What: what, Reading: reading, From: from}
 	}
