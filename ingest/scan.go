@@ -738,7 +738,7 @@ func (s *scan) findSpectral(opt Options) error {
 			for i, f := range vals {
 				f *= ffac
 				if !(f > 0) || math.IsInf(f, 0) {
-					return errf(s.f.path, cv.name, "frequency %d is %v; frequencies must be positive", i, vals[i])
+					return errf(s.f.path, cv.name, "frequency %d is %v (units %q); frequencies must be positive", i, vals[i], u)
 				}
 				sp.FreqHz = append(sp.FreqHz, f)
 			}
@@ -761,7 +761,7 @@ func (s *scan) findSpectral(opt Options) error {
 			for i, d := range vals {
 				d *= fac
 				if math.IsNaN(d) || math.IsInf(d, 0) || d < -360 || d > 720 {
-					return errf(s.f.path, cv.name, "direction %d is %v; directions must lie in 0-360 degrees", i, vals[i])
+					return errf(s.f.path, cv.name, "direction %d is %v (units %q: %v degrees); directions must lie in 0-360 degrees: check the values or the units", i, vals[i], u, d)
 				}
 				sp.DirDeg = append(sp.DirDeg, conv.ToNauticalFrom(d))
 			}
