@@ -390,7 +390,7 @@ func openLocked(inputs []string, opt Options) (*Catalog, error) {
 			if spec == nil {
 				spec, c.Spectral = s, s.spectral
 			} else if !sameFloats(spec.spectral.FreqHz, s.spectral.FreqHz) || !sameFloats(spec.spectral.DirDeg, s.spectral.DirDeg) {
-				return nil, fmt.Errorf("ingest: %s and %s have different frequency or direction coordinates; all files need one spectral layout", spec.info.Path, s.info.Path)
+				return nil, fmt.Errorf("ingest: %s and %s have different %s coordinates (converted to Hz and nautical-from degrees); all files need one spectral layout", spec.info.Path, s.info.Path, map[bool]string{true: "frequency", false: "direction"}[!sameFloats(spec.spectral.FreqHz, s.spectral.FreqHz)])
 			}
 		}
 		for _, r := range s.info.Roles {
