@@ -58,11 +58,19 @@ type Options struct {
 	DepthConstant  float64         // > 0: the same depth everywhere, m
 	DeepWater      bool            // assume deep water (no depth needed)
 	BathymetryFile string          // a separate file holding the depth role
-	DirectionTo    *bool           // spectral direction convention when the coordinate does not say
 	AllowLongGaps  bool            // accept time gaps longer than the rest of the record
 	// Duplicates says which file's values a time held by two files of a
 	// role takes (spec key input.duplicate_steps).
 	Duplicates DuplicatePolicy
+	// DirConvention is the spec's convention of spectral direction
+	// coordinates ("" none): it settles attributes that say nothing or
+	// disagree, and must agree with those that agree unless DirForce.
+	DirConvention DirConvention
+	DirForce      bool
+	// Encoding and Basis are the spec's statements of a spectral density's
+	// encoding (linear, log10, ln) and frequency basis (per Hz, per rad/s).
+	Encoding map[Role]Encoding
+	Basis    map[Role]DensityBasis
 	// Ctx, if set, stops Open between files when it is cancelled (a signal).
 	Ctx context.Context
 }
@@ -90,6 +98,13 @@ type VarInfo struct {
 	Filtered   bool  `json:"-"`
 	axes       []axis
 	v          *ncVar
+	// Encoding is how a spectral density's values are stored (linear,
+	// log10, ln); unpack decodes them before the unit factor.
+	Encoding Encoding `json:"encoding,omitempty"`
+	// longName and comment are the variable's attributes, for messages.
+	longName, comment string
+	unitsFromSpec     bool // Units come from the spec's [units]
+	logStored         bool // Encoding is Log10 or Ln (unpack's test, per value)
 }
 
 // Static reports whether the variable has no time dimension.
@@ -117,7 +132,8 @@ const (
 // unpack turns one raw stored value into SI units, NaN when missing
 // (CF Conventions 1.8, section 8.1 packing and 2.5.1 missing data: values equal
 // to _FillValue or missing_value, or outside valid_min/valid_max, are missing;
-// unpacked = raw * scale_factor + add_offset). A direction (roles dir and
+// unpacked = raw * scale_factor + add_offset), decoded when the values are
+// logarithms (Encoding.decode) and converted by Factor. A direction (roles dir and
 // dir_peak) more than a turn outside 0-360 degrees, i.e. outside -360..720,
 // is missing too (common practice: such a value is an error, not an unwrapped
 // angle); directions within it are wrapped to 0-360 by the reader.
@@ -130,7 +146,11 @@ func (vi *VarInfo) unpack(raw float64) float64 {
 			return math.NaN()
 		}
 	}
-	x := (raw*vi.Scale + vi.Offset) * vi.Factor
+	x := raw*vi.Scale + vi.Offset
+	if vi.logStored {
+		x = vi.Encoding.decode(x) // a logarithm stored: the density is 10^x or e^x
+	}
+	x *= vi.Factor
 	if (vi.Role == Dir || vi.Role == DirPeak) && !(x >= -360 && x <= 720) && x == x {
 		// A direction more than a turn outside 0-360 degrees (or infinite)
 		// is not a direction that was merely stored unwrapped: a value
@@ -198,6 +218,9 @@ type Spectral struct {
 	FreqHz []float64 `json:"frequency_hz"`
 	DirDeg []float64 `json:"direction_from_deg,omitempty"` // nautical "from", degrees
 	DirTo  bool      `json:"stored_as_to"`
+	// DirConvention is the convention the direction coordinate was stored
+	// in (converted to nautical from in DirDeg).
+	DirConvention DirConvention `json:"stored_convention,omitempty"`
 }
 
 // Catalog is everything known about a hindcast before its values are read.
@@ -218,6 +241,8 @@ type Catalog struct {
 	RoleGaps    []Gap             `json:"role_gaps,omitempty"`
 	Depth       []float64         `json:"-"` // per cell, m; NaN unknown; +Inf deep water
 	DepthSource string            `json:"depth_source"`
+	// Readings say how each file's spectral conventions were read.
+	Readings []Reading `json:"spectral_readings,omitempty"`
 	// DepthVaries is true when depth varies in time: the reader then gives
 	// each step's depth as Block.Bulk[Depth], and Depth holds the first step.
 	DepthVaries bool     `json:"depth_varies,omitempty"`
@@ -360,11 +385,12 @@ func openLocked(inputs []string, opt Options) (*Catalog, error) {
 		if err := c.compatible(first, s); err != nil {
 			return nil, err
 		}
+		c.Readings = addReadings(c.Readings, s.info.Path, s.readings)
 		if s.spectral != nil {
 			if spec == nil {
 				spec, c.Spectral = s, s.spectral
 			} else if !sameFloats(spec.spectral.FreqHz, s.spectral.FreqHz) || !sameFloats(spec.spectral.DirDeg, s.spectral.DirDeg) {
-				return nil, fmt.Errorf("ingest: %s and %s have different frequency or direction coordinates; all files need one spectral layout", spec.info.Path, s.info.Path)
+				return nil, fmt.Errorf("ingest: %s and %s have different %s coordinates (converted to Hz and nautical-from degrees); all files need one spectral layout", spec.info.Path, s.info.Path, map[bool]string{true: "frequency", false: "direction"}[!sameFloats(spec.spectral.FreqHz, s.spectral.FreqHz)])
 			}
 		}
 		for _, r := range s.info.Roles {

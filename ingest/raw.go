@@ -402,7 +402,8 @@ func (e *NoDataError) Error() string { return e.msg }
 // CheckTally refuses the first role variable (in file and role order) whose
 // counts cover every cell of the grid and that holds no valid value, or
 // valid values none of which is physically possible (a wrong sign or
-// packing). Variables not yet counted over every cell pass.
+// packing), or, for a spectral density, mostly negative values (notDensity).
+// Variables not yet counted over every cell pass.
 func (c *Catalog) CheckTally(t Tally) error {
 	for _, e := range t.Entries() {
 		if e.Cells < c.Grid.NCells() || e.File < 0 || e.File >= len(c.Files) {
@@ -416,6 +417,9 @@ func (c *Catalog) CheckTally(t Tally) error {
 		if e.Valid == 0 {
 			return &NoDataError{errf(fe.Path, vi.Name, "every value is a fill value or missing; the variable holds no data: check the file or map role %s to another variable", e.Role).Error()}
 		}
+		if (e.Role == Spectrum2D || e.Role == Spectrum1D) && e.Possible > 0 && 2*e.Possible < e.Valid {
+			return &NoDataError{vi.notDensity(fe.Path, e.Valid-e.Possible, e.Valid).Error()}
+		}
 		if e.Possible == 0 {
 			why := "check the variable or the role mapping"
 			if vi.Packed {
@@ -425,4 +429,28 @@ func (c *Catalog) CheckTally(t Tally) error {
 		}
 	}
 	return nil
+}
+
+// notDensity refuses a spectral density most of whose values are negative
+// (neg of valid): a variance density is never negative (common practice:
+// the definition of the quantity), so the values are not densities as
+// read, not bad bins to clip one by one. The likely cause is a logarithm
+// stored under the plain standard_name and units (log10 of densities below
+// 1 is negative), else the packing.
+func (vi *VarInfo) notDensity(path string, neg, valid int64) error {
+	enc := vi.Encoding
+	if enc == "" {
+		enc = Linear
+	}
+	key := "units." + string(vi.Role) + "_encoding"
+	found := quoteAttrs([]attr{{"standard_name", vi.StandardName}, {"long_name", vi.longName}, {"comment", vi.comment}, {"units", vi.Units}})
+	why := fmt.Sprintf("the values are most likely logarithms of the density (log10 or ln) under a plain standard_name and units: if so, set %s = \"log10\" (or \"ln\") in the spec", key)
+	if enc != Linear {
+		why = fmt.Sprintf("they were decoded as %s (%s), which gives no negative value: check the encoding", enc, key)
+	}
+	if vi.Packed {
+		why += fmt.Sprintf("; else check the packing attributes (scale_factor %v, add_offset %v; CF 1.8 section 8.1)", vi.Scale, vi.Offset)
+	}
+	return errf(path, vi.Name, "%d of %d values (%.1f%%) of the spectral density are negative, read as %s (%s); a variance density is never negative, so these are not densities and are not clipped bin by bin: %s",
+		neg, valid, 100*float64(neg)/float64(valid), enc, found, why)
 }

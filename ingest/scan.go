@@ -3,6 +3,7 @@ package ingest
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"github.com/fhs/go-netcdf/netcdf"
@@ -22,6 +23,7 @@ type scan struct {
 	vars     []VarSummary // the file's data variables (for a refusal's listing)
 	names    []string     // station names of a point set, canonical order
 	mesh     *meshInfo    // a UGRID mesh (ugrid.go); nil otherwise
+	readings []Reading    // how the spectral conventions were read (findSpectral)
 	invX     []int
 	invY     []int
 }
@@ -544,17 +546,31 @@ func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
 	}
 	// Units.
 	vi.Units = v.str("units")
+	vi.longName, vi.comment = v.str("long_name"), v.str("comment")
 	if u := opt.Units[r]; u != "" {
-		vi.Units = u
+		vi.Units, vi.unitsFromSpec = u, true
 	}
 	if vi.Units == "" {
 		return nil, errf(s.f.path, v.name, "no units attribute; add one or set units for role %s in the spec", r)
 	}
-	fac, err := ConversionFactor(vi.Units, roleQuantity[r])
-	if err != nil {
-		return nil, errf(s.f.path, v.name, "%v; set units for role %s in the spec if the attribute is wrong", err, r)
+	if r == Spectrum2D || r == Spectrum1D {
+		// Checked here as far as the units alone allow; the factor
+		// depends on the axes' units and the encoding too (findSpectral).
+		_, inner, _ := splitLogUnits(vi.Units)
+		if _, err := ConversionFactor(inner, roleQuantity[r]); err != nil {
+			eg := map[Role]string{Spectrum2D: `"m2 s rad-1" (per Hz per radian), "m2 s degree-1", "m2 s rad-2" (per rad/s per radian)`,
+				Spectrum1D: `"m2 s" (per Hz) or "m2 s rad-1" (per rad/s)`}[r]
+			return nil, errf(s.f.path, v.name, "%v (%s, %s); set units.%s in the spec to the units the values are in, e.g. %s, wrapped as \"log10(...)\" or \"ln(...)\" for logarithms",
+				err, quoteAttrs([]attr{{"standard_name", vi.StandardName}, {"long_name", vi.longName}}), attr{"units", v.str("units")}, r, eg)
+		}
+	} else {
+		fac, err := ConversionFactor(vi.Units, roleQuantity[r])
+		if err != nil {
+			return nil, errf(s.f.path, v.name, "%v; set units for role %s in the spec if the attribute is wrong", err, r)
+		}
+		vi.Factor = fac
 	}
-	vi.Factor = fac
+	fac := vi.Factor
 	if r == Depth && strings.EqualFold(strings.TrimSpace(v.str("positive")), "up") {
 		// A height (CF 1.8 section 4.3: positive = "up"), negative below the
 		// surface: depth = -height.
@@ -680,7 +696,15 @@ func typeRange(t netcdf.Type) (float64, float64) {
 	return 0, 0
 }
 
-// findSpectral resolves the frequency and direction dimensions of a spectrum.
+// FrequencyNames are the CF standard names of a spectral frequency
+// coordinate (CF standard name table: sea_surface_wave_frequency and
+// wave_frequency, canonical units s-1; quoted from memory).
+var FrequencyNames = []string{"sea_surface_wave_frequency", "wave_frequency"}
+
+// findSpectral resolves the frequency and direction dimensions of a
+// spectrum, the convention of its directions (resolveDirection), the
+// encoding of its densities (resolveEncoding) and the basis of their units
+// against the axes' units (readDensityUnits), and records each reading.
 func (s *scan) findSpectral(opt Options) error {
 	vi := s.info.vars[Spectrum2D]
 	if vi == nil {
@@ -690,6 +714,8 @@ func (s *scan) findSpectral(opt Options) error {
 		return nil
 	}
 	sp := &Spectral{}
+	var freqUnits, dirUnits string
+	var dirFrom string
 	for k, d := range vi.Dims {
 		if vi.axes[k] != 0 {
 			continue
@@ -700,55 +726,100 @@ func (s *scan) findSpectral(opt Options) error {
 		}
 		sn := cv.str("standard_name")
 		u := cv.str("units")
+		found := quoteAttrs([]attr{{"standard_name", sn}, {"long_name", cv.str("long_name")}})
 		vals, err := cv.readAll(s.f.path)
 		if err != nil {
 			return err
 		}
-		if fac, err := ConversionFactor(u, Frequency); err == nil && (sn == "" || sn == "sea_surface_wave_frequency") {
+		ffac, ferr := ConversionFactor(u, Frequency)
+		if ferr == nil && (sn == "" || slices.Contains(FrequencyNames, sn)) {
 			vi.axes[k] = axF
+			freqUnits = u
 			for i, f := range vals {
-				f *= fac
+				f *= ffac
 				if !(f > 0) || math.IsInf(f, 0) {
-					return errf(s.f.path, cv.name, "frequency %d is %v; frequencies must be positive", i, vals[i])
+					return errf(s.f.path, cv.name, "frequency %d is %v (units %q); frequencies must be positive", i, vals[i], u)
 				}
 				sp.FreqHz = append(sp.FreqHz, f)
 			}
 			continue
 		}
+		if ferr == nil {
+			return errf(s.f.path, cv.name, "coordinate of spectral dimension %q has units %q, a frequency, but %s, which is not the standard_name of a frequency (%s); no spec key overrides a coordinate's attributes: correct or remove its standard_name",
+				d, u, found, strings.Join(FrequencyNames, ", "))
+		}
 		if fac, err := ConversionFactor(u, Angle); err == nil {
 			vi.axes[k] = axD
-			to := false
-			switch {
-			case strings.Contains(sn, "to_direction"):
-				to = true
-			case strings.Contains(sn, "from_direction"):
-			case opt.DirectionTo != nil:
-				to = *opt.DirectionTo
-			default:
-				return errf(s.f.path, cv.name, "direction coordinate has no standard_name saying \"from\" or \"to\" (sea_surface_wave_from_direction / sea_surface_wave_to_direction); add it or set direction_convention in the spec")
+			dirUnits = u
+			conv, from, err := resolveDirection(s.f.path, cv.name,
+				[]attr{{"standard_name", sn}, {"long_name", cv.str("long_name")}, {"comment", cv.str("comment")}},
+				dirSpec{opt.DirConvention, opt.DirForce})
+			if err != nil {
+				return err
 			}
-			sp.DirTo = to
+			sp.DirConvention, sp.DirTo, dirFrom = conv, conv != NauticalFrom, from
 			for i, d := range vals {
 				d *= fac
 				if math.IsNaN(d) || math.IsInf(d, 0) || d < -360 || d > 720 {
-					return errf(s.f.path, cv.name, "direction %d is %v; directions must lie in 0-360 degrees", i, vals[i])
+					return errf(s.f.path, cv.name, "direction %d is %v (units %q: %v degrees); directions must lie in 0-360 degrees: check the values or the units", i, vals[i], u, d)
 				}
-				if to {
-					d += 180
-				}
-				d = math.Mod(d, 360)
-				if d < 0 {
-					d += 360
-				}
-				sp.DirDeg = append(sp.DirDeg, d)
+				sp.DirDeg = append(sp.DirDeg, conv.ToNauticalFrom(d))
 			}
 			continue
 		}
-		return errf(s.f.path, cv.name, "coordinate of spectral dimension %q has units %q, neither a frequency (Hz, rad s-1) nor a direction (degree, rad)", d, u)
+		return errf(s.f.path, cv.name, "coordinate of spectral dimension %q has units %q (%s), which are neither a frequency (Hz, s-1, rad s-1) nor a direction (degree, rad); no spec key overrides a coordinate's attributes: correct its units",
+			d, u, found)
 	}
 	if len(sp.FreqHz) == 0 || (vi.Role == Spectrum2D && len(sp.DirDeg) == 0) {
 		return errf(s.f.path, vi.Name, "spectral dimensions %v: found %d frequencies and %d directions; the spectrum needs a frequency and (2-D) a direction coordinate", vi.Dims, len(sp.FreqHz), len(sp.DirDeg))
 	}
+	// The density: its encoding, then its units against the axes'.
+	encKey, basisKey, unitsKey := "units."+string(vi.Role)+"_encoding", "units."+string(vi.Role)+"_basis", "units."+string(vi.Role)
+	es := encSpec{enc: opt.Encoding[vi.Role], encKey: encKey, unitsKey: unitsKey, fileUnits: vi.v.str("units")}
+	if vi.unitsFromSpec {
+		es.units = vi.Units
+	}
+	enc, encFrom, inner, err := resolveEncoding(s.f.path, vi.Name, es, vi.longName, vi.comment)
+	if err != nil {
+		return err
+	}
+	axisRadS := false
+	if d, err := parseUnits(freqUnits); err == nil && d.rd == 1 {
+		axisRadS = true
+	}
+	dirRad := false
+	if d, err := parseUnits(dirUnits); err == nil && dirUnits != "" && d.deg == 0 {
+		dirRad = true
+	}
+	du, err := readDensityUnits(inner, roleQuantity[vi.Role], axisRadS, dirRad, opt.Basis[vi.Role], basisKey)
+	if err != nil {
+		return errf(s.f.path, vi.Name, "%v", err)
+	}
+	vi.Encoding, vi.Factor, vi.logStored = enc, du.factor, enc == Log10 || enc == Ln
+	rd := func(what, reading, from string) Reading {
+		return Reading{Role: vi.Role, Variable: vi.Name, What: what, Reading: reading, From: from}
+	}
+	if vi.Role == Spectrum2D {
+		s.readings = append(s.readings, rd("direction convention", string(sp.DirConvention)+": "+sp.DirConvention.Describe(), dirFrom))
+	}
+	encReading := string(enc)
+	if enc != Linear {
+		encReading += map[Encoding]string{Log10: ": stored as log10 of the density, decoded as 10^x", Ln: ": stored as the natural logarithm of the density, decoded as e^x"}[enc]
+	}
+	s.readings = append(s.readings, rd("density encoding", encReading, encFrom))
+	unitsFrom := fmt.Sprintf("units %q", vi.v.str("units"))
+	if vi.unitsFromSpec {
+		unitsFrom = fmt.Sprintf("spec %s = %q", unitsKey, vi.Units)
+	}
+	ur := rd("density units", du.text, unitsFrom)
+	if du.stated {
+		ur.From += fmt.Sprintf(" and spec %s", basisKey)
+	}
+	ur.Ambiguous, ur.Other, ur.Stated = du.ambiguous, du.other, du.stated
+	if du.ambiguous {
+		ur.Key = basisKey
+	}
+	s.readings = append(s.readings, ur)
 	s.spectral = sp
 	return nil
 }

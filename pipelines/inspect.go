@@ -42,9 +42,12 @@ type InspectReport struct {
 	Bounds      [4]float64                      `json:"bbox_lon_lat"`
 	Roles       map[ingest.Role]*ingest.VarInfo `json:"roles"`
 	Spectral    *ingest.Spectral                `json:"spectral,omitempty"`
-	DepthSource string                          `json:"depth_source"`
-	DepthRange  [2]float64                      `json:"depth_range_m"`
-	Warnings    []string                        `json:"warnings"`
+	// Readings say how the spectral conventions were read; an ambiguous
+	// one not stated by the spec stops a run.
+	Readings    []ingest.Reading `json:"spectral_readings,omitempty"`
+	DepthSource string           `json:"depth_source"`
+	DepthRange  [2]float64       `json:"depth_range_m"`
+	Warnings    []string         `json:"warnings"`
 }
 
 // Inspect builds the catalog of a hindcast and summarises it.
@@ -222,7 +225,7 @@ func dash(s string) string {
 func report(cat *ingest.Catalog) *InspectReport {
 	r := &InspectReport{Files: cat.Files, Calendar: cat.Calendar, Start: cat.Start, End: cat.End, Steps: cat.Steps,
 		StepSeconds: cat.StepSeconds, Gaps: cat.Gaps, RoleGaps: cat.RoleGaps, GridKind: cat.Grid.Kind.String(), GridShape: [2]int{cat.Grid.NY, cat.Grid.NX},
-		Cells: cat.Grid.NCells(), Roles: cat.Vars, Spectral: cat.Spectral, DepthSource: cat.DepthSource, Warnings: cat.Warnings,
+		Cells: cat.Grid.NCells(), Roles: cat.Vars, Spectral: cat.Spectral, Readings: cat.Readings, DepthSource: cat.DepthSource, Warnings: cat.Warnings,
 		Segments: cat.Segments, CoveredHours: cat.CoveredHours(), Duplicates: cat.Duplicates}
 	if r.Gaps == nil {
 		r.Gaps = []ingest.Gap{}
@@ -364,13 +367,17 @@ func (r *InspectReport) WriteText(w io.Writer) error {
 		fmt.Fprintf(&sb, "spectra      %d frequencies %.4f .. %.4f Hz", len(sp.FreqHz), sp.FreqHz[0], sp.FreqHz[len(sp.FreqHz)-1])
 		if len(sp.DirDeg) > 0 {
 			conv := "from"
-			if sp.DirTo {
+			switch sp.DirConvention {
+			case ingest.NauticalTo:
 				conv = "to (converted to from)"
+			case ingest.Cartesian:
+				conv = "Cartesian (converted to nautical from)"
 			}
 			fmt.Fprintf(&sb, ", %d directions (%s)", len(sp.DirDeg), conv)
 		}
 		sb.WriteString("\n")
 	}
+	writeReadings(&sb, r.Readings)
 	fmt.Fprintf(&sb, "depth        %s", r.DepthSource)
 	if r.DepthRange[1] > 0 {
 		fmt.Fprintf(&sb, ", %.1f .. %.1f m", r.DepthRange[0], r.DepthRange[1])
@@ -381,6 +388,26 @@ func (r *InspectReport) WriteText(w io.Writer) error {
 	}
 	_, err := io.WriteString(w, sb.String())
 	return err
+}
+
+// writeReadings lists how the spectral conventions were read (what was
+// chosen and what decided it, per variable and group of files), the
+// ambiguous ones first with the key that settles them.
+func writeReadings(sb *strings.Builder, rs []ingest.Reading) {
+	label := "conventions "
+	for i := range rs {
+		if r := &rs[i]; r.Unsettled() {
+			fmt.Fprintf(sb, "AMBIGUOUS    %s; a run stops until the spec says which\n", r.Refusal())
+		}
+	}
+	for _, r := range rs {
+		files := ""
+		if r.Files > 1 {
+			files = fmt.Sprintf(" [%d files]", r.Files)
+		}
+		fmt.Fprintf(sb, "%s %s %q %s: %s (decided by %s)%s\n", label, r.Role, r.Variable, r.What, r.Reading, r.From, files)
+		label = "            "
+	}
 }
 
 // writeGaps lists gaps with their dates: the first five, then a count.

@@ -113,6 +113,9 @@ type Manifest struct {
 	Columns     map[string][]ColumnSpec         `json:"columns"`
 	Warnings    []string                        `json:"warnings"`
 	Outputs     []string                        `json:"outputs"` // files of the run directory, relative to it
+	// SpectralReadings say how the spectra's direction convention, density
+	// encoding and density units were read, file by file, and why.
+	SpectralReadings []ingest.Reading `json:"spectral_readings,omitempty"`
 	// ProductWarnings are those of atlas.nc, atlas.gpkg and report/.
 	ProductWarnings []string `json:"product_warnings,omitempty"`
 	// Screening: the constraint files and the scenarios' summaries
@@ -145,7 +148,7 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 	c := e.cat
 	m := &Manifest{Software: "swellgrid", Version: version, Caution: Caution, Calendar: string(c.Calendar),
 		Start: c.Start, End: c.End, Steps: c.Steps, StepSeconds: c.StepSeconds, Gaps: c.Gaps, RoleGaps: c.RoleGaps, Roles: c.Vars,
-		DepthSource: c.DepthSource, Parameters: e.spec, Timings: timings}
+		DepthSource: c.DepthSource, Parameters: e.spec, Timings: timings, SpectralReadings: c.Readings}
 	if m.Gaps == nil {
 		m.Gaps = []ingest.Gap{}
 	}

@@ -11,6 +11,7 @@ import (
 	"path/filepath"
 	"slices"
 	"sort"
+	"strings"
 	"sync"
 	"time"
 
@@ -69,8 +70,16 @@ func (s *Spec) ingestOptions() ingest.Options {
 	for k, v := range s.Roles {
 		opt.Vars[ingest.Role(k)] = v
 	}
+	opt.Encoding, opt.Basis = map[ingest.Role]ingest.Encoding{}, map[ingest.Role]ingest.DensityBasis{}
 	for k, v := range s.Units {
-		opt.Units[ingest.Role(k)] = v
+		switch role, kind := unitsKey(k); kind {
+		case "encoding":
+			opt.Encoding[role], _ = ingest.ParseEncoding(v) // checked by checkRoles
+		case "basis":
+			opt.Basis[role], _ = ingest.ParseDensityBasis(v)
+		default:
+			opt.Units[role] = v
+		}
 	}
 	switch s.Depth.Source {
 	case "deep-water":
@@ -80,15 +89,22 @@ func (s *Spec) ingestOptions() ingest.Options {
 	case "bathymetry":
 		opt.BathymetryFile = s.Depth.BathymetryFile
 	}
-	switch s.Input.DirectionConvention {
-	case "to":
-		t := true
-		opt.DirectionTo = &t
-	case "from":
-		f := false
-		opt.DirectionTo = &f
-	}
+	opt.DirConvention, _ = ingest.ParseDirConvention(s.Input.DirectionConvention) // checked by Validate
+	opt.DirForce = s.Input.DirectionConventionForce
 	return opt
+}
+
+// unitsKey splits a key of the spec's [units] table into its role and
+// kind: "" for the units of a role ("spectrum2d"), "encoding" or "basis"
+// for a spectral density's statements ("spectrum2d_encoding",
+// "spectrum2d_basis").
+func unitsKey(k string) (ingest.Role, string) {
+	for _, kind := range []string{"encoding", "basis"} {
+		if r, ok := strings.CutSuffix(k, "_"+kind); ok && (ingest.Role(r) == ingest.Spectrum2D || ingest.Role(r) == ingest.Spectrum1D) {
+			return ingest.Role(r), kind
+		}
+	}
+	return ingest.Role(k), ""
 }
 
 func (s *Spec) checkRoles() error {
@@ -103,14 +119,27 @@ func (s *Spec) checkRoles() error {
 			return fmt.Errorf("spec: roles.%s: unknown role; roles are %v", k, ingest.Roles)
 		}
 	}
-	for k := range s.Units {
+	for _, k := range keys(s.Units) {
+		role, kind := unitsKey(k)
+		switch kind {
+		case "encoding":
+			if _, err := ingest.ParseEncoding(s.Units[k]); err != nil {
+				return fmt.Errorf("spec: units.%s: %v", k, err)
+			}
+			continue
+		case "basis":
+			if _, err := ingest.ParseDensityBasis(s.Units[k]); err != nil {
+				return fmt.Errorf("spec: units.%s: %v", k, err)
+			}
+			continue
+		}
 		if _, ok := s.Roles[k]; !ok {
 			found := false
 			for _, r := range ingest.Roles {
-				found = found || string(r) == k
+				found = found || r == role
 			}
 			if !found {
-				return fmt.Errorf("spec: units.%s: unknown role; roles are %v", k, ingest.Roles)
+				return fmt.Errorf("spec: units.%s: unknown role; roles are %v, and spectrum2d_encoding, spectrum2d_basis (spectrum1d_...) state how a spectral density is stored", k, ingest.Roles)
 			}
 		}
 	}

@@ -17,6 +17,7 @@ import (
 
 	"github.com/BurntSushi/toml"
 
+	"swellgrid/ingest"
 	"swellgrid/stats/climate"
 )
 
@@ -62,9 +63,15 @@ type namedFile struct {
 // InputSpec names the hindcast.
 type InputSpec struct {
 	Paths []string `toml:"paths" json:"paths"` // files, directories or globs
-	// DirectionConvention of spectral direction coordinates without a
-	// standard_name: "from" or "to" ("" = refuse such files).
+	// DirectionConvention of spectral direction coordinates:
+	// "nautical_from" (or "from"), "nautical_to" (or "to") or "cartesian";
+	// it settles coordinates whose attributes say nothing or disagree, and
+	// must agree with attributes that agree ("" = the files decide, and a
+	// file whose attributes say nothing or disagree is refused).
 	DirectionConvention string `toml:"direction_convention" json:"direction_convention"`
+	// DirectionConventionForce makes DirectionConvention win over the
+	// files' attributes (for files whose attributes are wrong).
+	DirectionConventionForce bool `toml:"direction_convention_force" json:"direction_convention_force,omitempty"`
 	// AllowLongGaps accepts a time gap longer than the rest of the record
 	// (refused by default: usually a mistyped reference date).
 	AllowLongGaps bool `toml:"allow_long_gaps" json:"allow_long_gaps,omitempty"`
@@ -258,6 +265,11 @@ func (s *Spec) Validate() error {
 	case "", "first", "last":
 	default:
 		return bad("input.duplicate_steps", `must be "first" (the earlier file's values) or "last" (the later file's), or absent (different values refused)`, strconv.Quote(s.Input.DuplicateSteps))
+	}
+	if dc, err := ingest.ParseDirConvention(s.Input.DirectionConvention); err != nil {
+		return bad("input.direction_convention", err.Error(), strconv.Quote(s.Input.DirectionConvention))
+	} else if dc == "" && s.Input.DirectionConventionForce {
+		return bad("input.direction_convention_force", "needs input.direction_convention: say which convention wins over the files' attributes", true)
 	}
 	switch s.Depth.Source {
 	case "file", "deep-water":

@@ -98,6 +98,13 @@ func newJob(spec *Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, e
 	if cat.DepthSource == "none" {
 		return nil, inputErr(fmt.Errorf("no water depth: the files hold no variable with standard_name sea_floor_depth_below_sea_surface; set depth.source in the spec (\"constant\", \"bathymetry\" or \"deep-water\"), or give --depth METRES or --deep-water"))
 	}
+	// A spectral density whose units admit two readings (per Hz or per
+	// rad/s) is read only once the spec says which (inspect shows it).
+	for i := range cat.Readings {
+		if r := &cat.Readings[i]; r.Unsettled() {
+			return nil, inputErr(errors.New(r.Refusal()))
+		}
+	}
 	ccfg, err := spec.climateConfig(cat)
 	if err != nil {
 		return nil, inputErr(err)
@@ -247,6 +254,9 @@ func (j *job) stream(ctx context.Context, pi int, p [2]int, cells []*cell, from 
 	lastCk := time.Now()
 	every := time.Duration(j.spec.Run.CheckpointEveryS * float64(time.Second))
 	err := j.eng.streamPass(ctx, p[0], p[1], from, j.workers, cells, j.seen[pi], func(next int) error {
+		if err := j.eng.checkSea(); err != nil {
+			return err // a density read other than it is stored: before its states are saved
+		}
 		if err := j.checkData(); err != nil {
 			return err // before the states that read it are saved
 		}

@@ -37,6 +37,8 @@ type engine struct {
 	// spans are the record's year-month spans (recordSpans).
 	spansOnce sync.Once
 	spans     [][2]int
+	// beyond is the first spectrum read whose Hm0 is beyond any sea.
+	beyond notSea
 }
 
 // streamTimes are the busy and waiting times of the stream stage's parts.
@@ -133,6 +135,9 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 			if s := b.Spec[i*per : (i+1)*per]; !allMissing(s) {
 				// missing (NaN) and non-finite bins are set to 0 and counted by the kernel
 				c.kern.Params(s, &p)
+				if p.Hm0 > maxSeaHm0M {
+					e.beyond.note(b.Step0+t, id, p.Hm0) // refused at the end of the file (checkSea)
+				}
 				c.spec.Add(&p)
 				if p.Valid {
 					j, hm0, te, tp, dir = p.J, p.Hm0, p.Te, p.Tp, p.MeanDirDeg

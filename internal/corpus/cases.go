@@ -303,7 +303,7 @@ func Cases() []Case {
 				setAt(d.v("efth"), math.Inf(1), 12*specNP*per+40)
 			})},
 		{Name: "density_wrong_units", Breaks: `spectral density with units "m2" (no per-frequency)`, Outcome: Refused, Exit: 2, Stage: "catalog",
-			Want:  []string{"cx_spec_2001-01.nc", `"efth"`, "not convertible", "set units for role spectrum2d"},
+			Want:  []string{"cx_spec_2001-01.nc", `"efth"`, "not convertible", "set units.spectrum2d in the spec"},
 			build: specCase(func(d *ncDesc) { d.v("efth").setText("units", "m2") })},
 		{Name: "direction_coord_out_of_range", Breaks: "spectral direction coordinate reaching 900 degrees", Outcome: Refused, Exit: 2, Stage: "catalog",
 			Want:  []string{"cx_spec_2001-01.nc", `"direction"`, "0-360"},
