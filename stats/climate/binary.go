@@ -13,10 +13,12 @@ import (
 // version 3 added the directional distribution (count, minutes and power
 // sums per sector, then the minutes split over the sectors) at the end;
 // version 4 writes the month table as the years with data, each with its
-// twelve months (3: a first year and every year of the span).
+// twelve months (3: a first year and every year of the span); version 5
+// adds, after each year's months, its device sums per month and device
+// (minutes u32, power sum u128), for the year-by-year device energy.
 const (
 	binMagic   = "SGCS"
-	binVersion = 4
+	binVersion = 5
 )
 
 type enc struct{ b []byte }
@@ -126,6 +128,11 @@ func (s *CellState) MarshalBinary() ([]byte, error) {
 			e.u64(r.sJ)
 			e.u64(r.sH)
 		}
+		nd := s.cfg.lay.nDev
+		for _, r := range s.yd[yi*12*nd : (yi+1)*12*nd] {
+			e.u32(r.w)
+			e.u128(r.sP)
+		}
 	}
 	e.u64(uint64(len(s.runs)))
 	for l := range s.runs {
@@ -202,7 +209,8 @@ func (s *CellState) UnmarshalBinary(b []byte) error {
 		d.err = fmt.Errorf("climate: checkpoint month table has %d years (at most %d)", n, maxYears)
 	}
 	if d.err == nil {
-		t.ys, t.ym = make([]int, n), make([]ymRec, 12*n)
+		nd := t.cfg.lay.nDev
+		t.ys, t.ym, t.yd = make([]int, n), make([]ymRec, 12*n), make([]ydRec, 12*nd*int(n))
 		for yi := range t.ys {
 			t.ys[yi] = int(d.i64())
 			if d.err == nil && yi > 0 && t.ys[yi] <= t.ys[yi-1] {
@@ -211,6 +219,9 @@ func (s *CellState) UnmarshalBinary(b []byte) error {
 			for k := yi * 12; k < yi*12+12; k++ {
 				r := &t.ym[k]
 				r.wJ, r.wH, r.sJ, r.sH = d.u32(), d.u32(), d.u64(), d.u64()
+			}
+			for k := yi * 12 * nd; k < (yi+1)*12*nd; k++ {
+				t.yd[k].w, t.yd[k].sP = d.u32(), d.u128()
 			}
 		}
 	}
@@ -244,5 +255,5 @@ func (s *CellState) UnmarshalBinary(b []byte) error {
 // approxBytes is the size of the checkpoint encoding.
 func (s *CellState) approxBytes() int {
 	return 4 + 2 + 8 + 27*16 + 4*(len(s.histH)+len(s.histJ)+len(s.scW)+len(s.winCnt)+len(s.winMin)) +
-		8*len(s.scJ) + 24*len(s.ym) + 8*len(s.ys) + 64*len(s.runs) + 96*len(s.dev) + 16*len(s.rose.w) + 144
+		8*len(s.scJ) + 24*len(s.ym) + 20*len(s.yd) + 8*len(s.ys) + 64*len(s.runs) + 96*len(s.dev) + 16*len(s.rose.w) + 144
 }

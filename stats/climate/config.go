@@ -266,7 +266,7 @@ func (c *Config) StateBytes(years int) int {
 		4*(l.nHm0Hist+1) + 4*(l.nPowerHist+1) + 12*l.nScH*l.nScT +
 		8*l.nLim*l.nDur*12 + (2*int(unsafe.Sizeof(run{}))+1)*l.nLim +
 		int(unsafe.Sizeof(devAcc{}))*l.nDev +
-		(int(unsafe.Sizeof(ymRec{}))*12+8)*years + 16*l.nRose
+		(int(unsafe.Sizeof(ymRec{}))*12+int(unsafe.Sizeof(ydRec{}))*12*l.nDev+8)*years + 16*l.nRose
 }
 
 // CellMemory is the memory model of one cell of a run, in bytes: what a

@@ -24,7 +24,8 @@
 // Size. A state with the default Config takes about 11 KB per cell plus 296
 // bytes per cell per year with data (the year-month sums and the year; a
 // year without data takes nothing, so a long gap costs no room); each device adds
-// 80 bytes, each window limit x duration 96 bytes and each limit 65 bytes and each direction sector 16 bytes. It
+// 80 bytes and 288 bytes per year with data (its month sums for the
+// year-by-year energy), each window limit x duration 96 bytes and each limit 65 bytes and each direction sector 16 bytes. It
 // does not grow with the number of time steps. Config.StateBytes gives the
 // figure for any Config, Config.CellMemory the model a run plans with; the histograms (3.5 KB) and the scatter table
 // (5.3 KB) dominate and shrink with coarser settings.

@@ -3,6 +3,8 @@ package climate
 import (
 	"math"
 	"math/big"
+
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // This file holds every formula of the package, each in one function whose
@@ -167,4 +169,79 @@ func powerBinEdges(i int, bits uint, n int) (float64, float64) {
 	k := i % sub
 	base := math.Ldexp(1, e)
 	return base * (1 + float64(k)/float64(sub)), base * (1 + float64(k+1)/float64(sub))
+}
+
+// yearEnergyMWh returns the energy of one device in one analysis year
+//
+//	E_year = P_year * H_year / 1000   (MWh, P_year in kW, H_year in h)
+//
+// where P_year is the duration-weighted mean device power over the year's
+// steps with a valid Hm0 and matrix period and H_year the hours of the year
+// in the data's calendar: time the record does not cover is taken at the
+// year's mean (its share is the row's coverage). The same definition as
+// annualEnergyMWh, over one year's own length (common practice).
+func yearEnergyMWh(meanKW, hours float64) float64 { return meanKW * hours / 1000 }
+
+// sampleStd returns the mean and the sample standard deviation (ddof 1, as
+// numpy.std(x, ddof=1)) of x, sqrt(sum((x - mean)^2) / (n - 1)): the
+// estimate of the year-to-year spread that the standard error of a mean
+// uses (common practice). NaN below two values.
+func sampleStd(x []float64) (float64, float64) {
+	if len(x) < 2 {
+		return math.NaN(), math.NaN()
+	}
+	m, sd := meanStd(x)
+	n := float64(len(x))
+	return m, sd * math.Sqrt(n/(n-1))
+}
+
+// meanUncertainty returns the relative standard uncertainty of a mean of
+// n independent years whose relative year-to-year standard deviation is
+// rel:
+//
+//	u = rel / sqrt(n)
+//
+// the standard error of the mean (common practice). With n the complete
+// years of the record it is the uncertainty of the long-term mean from the
+// record's length; with n the years of a future period, the variability
+// of that period's mean about the long-term mean. Both treat years as
+// independent (no trend, no autocorrelation between years).
+func meanUncertainty(rel float64, n float64) float64 {
+	if !(n > 0) {
+		return math.NaN()
+	}
+	return rel / math.Sqrt(n)
+}
+
+// combinedUncertainty returns the root-sum-square
+//
+//	u = sqrt(sum u_i^2)
+//
+// of independent relative standard uncertainties (the law of propagation
+// of uncertainty for uncorrelated inputs, JCGM 100:2008 "GUM" 5.1.2;
+// quoted from memory). NaN when any component is NaN.
+func combinedUncertainty(u ...float64) float64 {
+	var s float64
+	for _, v := range u {
+		s += v * v
+	}
+	return math.Sqrt(s)
+}
+
+// exceedanceEnergy returns the energy exceeded with probability prob
+// (0.9 for P90) for a normal error of relative standard deviation u about
+// the central estimate p50:
+//
+//	P_x = P50 * (1 - z_x * u),   z_x = Phi^-1(prob)
+//
+// (z_90 = 1.2816, z_99 = 2.3263; Phi^-1 from gonum's distuv.UnitNormal).
+// Common practice in energy-yield assessment (quoted from memory). NaN when
+// z u >= 1: the normal model then gives no positive energy and the figure
+// is not published.
+func exceedanceEnergy(p50, u, prob float64) float64 {
+	f := 1 - distuv.UnitNormal.Quantile(prob)*u
+	if !(f > 0) {
+		return math.NaN()
+	}
+	return p50 * f
 }

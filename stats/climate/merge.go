@@ -83,6 +83,12 @@ func (s *CellState) Merge(later *CellState) error {
 			t.sJ += r.sJ
 			t.sH += r.sH
 		}
+		nd := s.cfg.lay.nDev
+		for k, r := range o.yd[yi*12*nd : (yi+1)*12*nd] {
+			t := &s.yd[off*nd+k]
+			t.w += r.w
+			t.sP.add(r.sP)
+		}
 	}
 	for k := range s.dev {
 		a, b := &s.dev[k], &o.dev[k]
@@ -176,7 +182,7 @@ func (s *CellState) mergeWindows(o *CellState, adjacent bool) {
 
 // copyFrom makes s a deep copy of o (same Config).
 func (s *CellState) copyFrom(o *CellState) {
-	histH, histJ, scW, scJ, ys, ym := s.histH, s.histJ, s.scW, s.scJ, s.ys, s.ym
+	histH, histJ, scW, scJ, ys, ym, yd := s.histH, s.histJ, s.scW, s.scJ, s.ys, s.ym, s.yd
 	winCnt, winMin, runs, leads, leadOpen, dev, rose := s.winCnt, s.winMin, s.runs, s.leads, s.leadOpen, s.dev, s.rose
 	*s = *o
 	s.rose = rose
@@ -195,4 +201,5 @@ func (s *CellState) copyFrom(o *CellState) {
 	copy(s.dev, o.dev)
 	s.ys = append(ys[:0], o.ys...)
 	s.ym = append(ym[:0], o.ym...)
+	s.yd = append(yd[:0], o.yd...)
 }

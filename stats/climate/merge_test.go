@@ -217,7 +217,9 @@ func TestMergeOutOfOrder(t *testing.T) {
 
 // TestStateSizeBounded: the state does not grow with the number of steps
 // (one year at 1 h and at 6 min give the same size), only with years
-// (296 bytes per year of month sums and the year, as documented).
+// (296 bytes per year of month sums and the year, and per device 12 month
+// records of its minutes and power sum: 20 bytes each in a checkpoint, 24
+// in memory, as documented).
 func TestStateSizeBounded(t *testing.T) {
 	cfg := mergeConfig(t)
 	year := func(dtH float64, years int) int {
@@ -234,10 +236,11 @@ func TestStateSizeBounded(t *testing.T) {
 	if h1 != m6 {
 		t.Errorf("one year: %d bytes at 1 h steps, %d bytes at 6 min steps: state grows with steps", h1, m6)
 	}
-	if d := year(1, 2) - h1; d != 12*24+8 {
-		t.Errorf("a second year adds %d checkpoint bytes, want 296 (12 month records of 24 bytes and the year)", d)
+	nd := len(cfg.Devices)
+	if d, want := year(1, 2)-h1, 12*24+8+12*20*nd; d != want {
+		t.Errorf("a second year adds %d checkpoint bytes, want %d (12 month records of 24 bytes, the year, 12 x %d device records of 20 bytes)", d, want, nd)
 	}
-	if got, want := cfg.StateBytes(2)-cfg.StateBytes(1), 296; got != want {
+	if got, want := cfg.StateBytes(2)-cfg.StateBytes(1), 296+12*24*nd; got != want {
 		t.Errorf("StateBytes grows by %d per year, want %d", got, want)
 	}
 	d := DefaultConfig()

@@ -23,6 +23,14 @@ type ymRec struct {
 	sJ, sH uint64 // sum of w*q
 }
 
+// ydRec holds the sums of one device in one year-month: the minutes with
+// a valid Hm0 and matrix period, and the sum of w * power quantum (128 bits:
+// a step's whole weight goes to its month, so no month bound is assumed).
+type ydRec struct {
+	w  uint32
+	sP u128
+}
+
 // run is a calm spell (consecutive contiguous steps with Hm0 below a limit).
 // While it is shorter than the longest window duration its time is also kept
 // split by calendar month (at most two months, see MaxWindowHours), so that
@@ -99,8 +107,11 @@ type CellState struct {
 	// records per entry of ys, in the same order. Only years with data
 	// take room, so a record with a long gap (a reference year mistyped
 	// as 9000 in one file) costs two years, not seven thousand.
-	ys     []int
-	ym     []ymRec
+	ys []int
+	ym []ymRec
+	// yd holds 12 x len(Config.Devices) records per entry of ys (year,
+	// month, device), for the year-by-year device energy.
+	yd     []ydRec
 	winCnt []uint32
 	winMin []uint32
 	runs   []run
@@ -138,7 +149,7 @@ func NewCellState(cfg *Config) *CellState {
 
 // Reset empties the state, keeping its allocations.
 func (s *CellState) Reset() {
-	*s = CellState{cfg: s.cfg, histH: s.histH, histJ: s.histJ, scW: s.scW, scJ: s.scJ, ys: s.ys[:0], ym: s.ym[:0],
+	*s = CellState{cfg: s.cfg, histH: s.histH, histJ: s.histJ, scW: s.scW, scJ: s.scJ, ys: s.ys[:0], ym: s.ym[:0], yd: s.yd[:0],
 		winCnt: s.winCnt, winMin: s.winMin, runs: s.runs, leads: s.leads, leadOpen: s.leadOpen, dev: s.dev, rose: s.rose}
 	s.rose.clear()
 	clear(s.histH)
@@ -187,6 +198,9 @@ func (s *CellState) yearSlot(year int) int {
 	s.ys = slices.Insert(s.ys, i, year)
 	var empty [12]ymRec
 	s.ym = slices.Insert(s.ym, i*12, empty[:]...)
+	if nd := s.cfg.lay.nDev; nd > 0 {
+		s.yd = slices.Insert(s.yd, i*12*nd, make([]ydRec, 12*nd)...)
+	}
 	return i
 }
 
@@ -449,8 +463,12 @@ func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) (j2, h2, te2, tp
 			}
 			a := &s.dev[k]
 			p, class := d.power(h, x)
+			qp := uint64(p*qP + 0.5)
 			a.w += wi
-			a.sP.addMul(wi, uint64(p*qP+0.5))
+			a.sP.addMul(wi, qp)
+			ydr := &s.yd[yi*lay.nDev+k]
+			ydr.w += w32
+			ydr.sP.addMul(wi, qp)
 			above := class == devInside && p >= d.ratedKW*(1-1e-12)
 			switch {
 			case above:

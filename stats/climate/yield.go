@@ -1,0 +1,75 @@
+package climate
+
+import "math"
+
+// AEPBand is the uncertainty of one device's annual energy at one cell over
+// one horizon: the central estimate, each component as a relative standard
+// uncertainty (a fraction of P50), their combination and the energies
+// exceeded with 90 % and 99 % probability. Components are kept apart so
+// that a user can recombine them.
+type AEPBand struct {
+	Device   string
+	HorizonY float64
+	// YearsUsed: complete analysis years (coverage at least
+	// Config.CoverageMin) whose energies give the inter-annual spread.
+	YearsUsed int
+	// P50MWh is the long-term mean annual energy (DeviceSummary.AEPMWh).
+	P50MWh float64
+	// InterannualFrac: sample standard deviation (ddof 1) of the complete
+	// years' mean device power over their mean. RecordFrac = InterannualFrac
+	// / sqrt(YearsUsed): uncertainty of the long-term mean from the record
+	// length. FutureFrac = InterannualFrac / sqrt(HorizonY): variability of
+	// the mean of HorizonY future years. ModelFrac: the model uncertainty
+	// given in the spec. TotalFrac: their root-sum-square (RecordFrac,
+	// FutureFrac, ModelFrac).
+	InterannualFrac, RecordFrac, FutureFrac, ModelFrac, TotalFrac float64
+	// P90MWh, P99MWh: P50 (1 - z u) with z the normal quantile (NaN when
+	// z u >= 1).
+	P90MWh, P99MWh float64
+}
+
+// InterannualPower returns the number of complete analysis years of rows
+// (not Excluded, with a mean power) and the sample standard deviation
+// (ddof 1) of their mean power in kW/m (NaN below two years).
+func InterannualPower(rows []YearRow) (years int, stdKWm float64) {
+	var x []float64
+	for _, r := range rows {
+		if !r.Excluded && !math.IsNaN(r.PowerMeanKWm) {
+			x = append(x, r.PowerMeanKWm)
+		}
+	}
+	_, sd := sampleStd(x)
+	return len(x), sd
+}
+
+// AEPBands returns, for every device of devs (in order) and every horizon
+// (years), the band of its annual energy, from the analysis years of rows
+// (Annual) and the model uncertainty modelFrac. A year enters when it is
+// complete (not Excluded) and the device has a valid step in it.
+func AEPBands(rows []YearRow, devs []DeviceSummary, horizons []float64, modelFrac float64) []AEPBand {
+	var out []AEPBand
+	for k, d := range devs {
+		var x []float64
+		for _, r := range rows {
+			if r.Excluded || k >= len(r.DeviceEnergyMWh) || math.IsNaN(r.DeviceEnergyMWh[k]) {
+				continue
+			}
+			x = append(x, r.DeviceEnergyMWh[k]/r.Hours) // the year's mean power (MW): leap days do not count as variability
+		}
+		m, sd := sampleStd(x)
+		iav := coefficientOfVariation(sd, m)
+		if m == 0 && sd == 0 {
+			iav = 0 // a device that never yields varies by nothing
+		}
+		rec := meanUncertainty(iav, float64(len(x)))
+		for _, h := range horizons {
+			b := AEPBand{Device: d.Name, HorizonY: h, YearsUsed: len(x), P50MWh: d.AEPMWh,
+				InterannualFrac: iav, RecordFrac: rec, FutureFrac: meanUncertainty(iav, h), ModelFrac: modelFrac}
+			b.TotalFrac = combinedUncertainty(b.RecordFrac, b.FutureFrac, b.ModelFrac)
+			b.P90MWh = exceedanceEnergy(b.P50MWh, b.TotalFrac, 0.90)
+			b.P99MWh = exceedanceEnergy(b.P50MWh, b.TotalFrac, 0.99)
+			out = append(out, b)
+		}
+	}
+	return out
+}
