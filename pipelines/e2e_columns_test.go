@@ -65,6 +65,8 @@ var e2eCellTolerances = map[string]tol{
 	"hm0_mean_m": tolHm0, "hm0_max_m": tolHm0, "te_mean_s": tolHm0, "tp_mean_s": tolHm0,
 	"dir_mean_deg": {0.06, 0}, // directions are summed at 0.1 deg (climate.DirResDeg)
 	"mvi":          {0, 1e-5}, "svi": {0, 1e-5}, "interannual_cov": {0, 1e-5},
+	// year means of J from fixed-point sums (1/16 W/m a step), their ddof-1 std
+	"interannual_std_kw_m": {1e-6, 1e-6}, "annual_years": exact,
 	"aep_wec_a_mwh": {1e-3, 1e-9}, "aep_wec_b_mwh": {1e-3, 1e-9},
 	"cf_wec_a": {1e-6, 1e-9}, "cf_wec_b": {1e-6, 1e-9},
 	// shares of energy: J sums in fixed point; the device classes of a sea
@@ -151,6 +153,18 @@ var e2eTables = []e2eTable{
 		map[string]tol{"threshold_m": {1e-9, 0}, "n_peaks": exact, "mean_excess_m": {1e-9, 1e-9}, "mean_excess_lo_m": {1e-9, 1e-9}, "mean_excess_hi_m": {1e-9, 1e-9},
 			"shape": {5e-3, 0}, "shape_lo": {1e-2, 0}, "shape_hi": {1e-2, 0},
 			"modified_scale_m": {0, 5e-3}, "modified_scale_lo_m": {0, 2e-2}, "modified_scale_hi_m": {0, 2e-2}}},
+	// year by year: the resource rows (J in 1/16 W/m fixed point) and the
+	// device rows (device power in 2^-16 kW fixed point, as aep_<device>_mwh)
+	{"annual.parquet", "annual", []string{"cell_id", "year", "device"}, nil,
+		map[string]tol{"power_mean_kw_m": tolPower, "energy_mwh": {1e-3, 1e-9}, "valid_hours": exact, "hours": exact,
+			"coverage_frac": tolShare, "excluded": exact}},
+	// AEP bands: fractions are ratios of the fixed-point year means (a
+	// relative error near 1e-8); energies as aep_<device>_mwh. The reference
+	// takes z from scipy.stats.norm.ppf, swellgrid from gonum's UnitNormal.
+	{"aep_bands.parquet", "aep_bands", []string{"cell_id", "device", "horizon_y"}, nil,
+		map[string]tol{"years_used": exact, "aep_p50_mwh": {1e-3, 1e-9}, "interannual_frac": {1e-9, 1e-6},
+			"u_record_frac": {1e-9, 1e-6}, "u_future_frac": {1e-9, 1e-6}, "u_model_frac": {1e-15, 0},
+			"u_total_frac": {1e-9, 1e-6}, "aep_p90_mwh": {1e-3, 1e-8}, "aep_p99_mwh": {1e-3, 1e-8}}},
 	// IFORM contours of the joint model (see the design_* cells columns)
 	{"design.parquet", "design", []string{"cell_id", "return_period_y", "point"}, nil,
 		map[string]tol{"hm0_m": tolDesignHm0, "te_s": tolDesignTe}},

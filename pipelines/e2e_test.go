@@ -13,7 +13,7 @@ import (
 	"testing"
 )
 
-var allTables = []string{"cells.parquet", "monthly.parquet", "scatter.parquet", "exceedance.parquet", "windows.parquet", "extremes.parquet", "manifest.json", "threshold_diagnostics.parquet", "design.parquet", "directions.parquet"}
+var allTables = []string{"cells.parquet", "monthly.parquet", "scatter.parquet", "exceedance.parquet", "windows.parquet", "extremes.parquet", "manifest.json", "threshold_diagnostics.parquet", "design.parquet", "directions.parquet", "annual.parquet", "aep_bands.parquet"}
 
 func testSpec(t *testing.T, input string, out string) *Spec {
 	t.Helper()

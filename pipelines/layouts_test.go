@@ -236,8 +236,16 @@ func TestStationNamesInEveryTable(t *testing.T) {
 		{"testdata/layouts/tidal_pts", []string{"SYN-T1", "SYN-T2", "SYN-T3", "SYN-T4"}, false},
 	} {
 		out := t.TempDir()
-		runLayout(t, c.input, out, nil)
-		for _, table := range append(allTables[:6:6], "directions.parquet") {
+		// a device, so that aep_bands.parquet and the device rows of
+		// annual.parquet have rows too
+		dev, err := filepath.Abs("../testdata/e2e/device_a.csv")
+		if err != nil {
+			t.Fatal(err)
+		}
+		runLayout(t, c.input, out, func(s *Spec) {
+			s.Devices = []DeviceSpec{{Name: "wec_a", PowerMatrix: dev, Lookup: "bin"}}
+		})
+		for _, table := range append(allTables[:6:6], "directions.parquet", "annual.parquet", "aep_bands.parquet") {
 			cols, err := parquetread.Columns(filepath.Join(out, table), "cell_id", "name")
 			if err != nil {
 				t.Fatalf("%s %s: %v", c.input, table, err)

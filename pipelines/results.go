@@ -30,6 +30,10 @@ type cellResult struct {
 	ladder  []extremes.ThresholdRow // threshold diagnostics
 	design  *cellDesign             // design sea states (nil: not asked or no data)
 	dirs    []climate.DirectionRow  // directional distribution (nil: no step with power and direction)
+	annual  []climate.YearRow       // analysis years with data
+	bands   []climate.AEPBand       // AEP bands per device and horizon
+	iaYears int                     // complete analysis years
+	iaStd   float64                 // inter-annual sample std of annual mean J, kW/m
 }
 
 // finish computes the results of one cell from its state (fits included).
@@ -42,6 +46,11 @@ func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResu
 	}
 	r.monthly, r.season, r.scatter, r.exceed, r.windows = c.clim.MonthlyIn(e.recordSpans()), c.clim.Seasonal(), c.clim.Scatter(), c.clim.Exceedance(), c.clim.Windows()
 	r.dirs = c.clim.Directions()
+	r.annual = c.clim.Annual(e.spec.Extremes.YearStartMonth)
+	r.iaYears, r.iaStd = climate.InterannualPower(r.annual)
+	if r.sum.Steps > 0 {
+		r.bands = climate.AEPBands(r.annual, r.sum.Devices, e.spec.Uncertainty.HorizonsY, e.spec.Uncertainty.ModelFrac)
+	}
 	if r.sum.Steps > 0 {
 		cfg := acfg
 		cfg.Hm0Quantile = func(q float64) float64 { return percentileOf(r.sum, 100*q) }

@@ -217,6 +217,10 @@ var cellsSchema = []column[*cellRow]{
 		func(c *cellRow) float64 { return c.r.sum.SVI }).when(nullNoData),
 	f64Col("interannual_cov", "1", "", "", "coefficient of variation of the annual mean J over included years",
 		func(c *cellRow) float64 { return c.r.sum.InterannualCoV }).when(nullNoData),
+	f64Col("interannual_std_kw_m", "kW/m", "", "", "sample standard deviation (ddof 1) of the annual mean J over the complete analysis years (annual.parquet; interannual_cov uses ddof 0 over calendar years)",
+		func(c *cellRow) float64 { return c.r.iaStd }).when(nullNoData),
+	i64Col("annual_years", "1", "", "", "complete analysis years (wave-power coverage at least statistics.coverage_min) behind interannual_std_kw_m and the AEP bands",
+		func(c *cellRow) int64 { return int64(c.r.iaYears) }).when(nullNoData),
 	f64Col("gev_loc_m", "m", "", "", "GEV location of annual maxima of Hm0 (maximum likelihood)",
 		func(c *cellRow) float64 { return c.r.ext.GEV.Loc }).when(nullNoFit),
 	f64Col("gev_scale_m", "m", "", "", "GEV scale",
@@ -504,6 +508,8 @@ var longSchemas = []longTable{
 	longSchema[extremes.ThresholdRow]{"threshold_diagnostics", thresholdSchema, ladderRows},
 	longSchema[designRow]{"design", designSchema, designRows},
 	longSchema[climate.DirectionRow]{"directions", directionsSchema, directionRows},
+	longSchema[annualRow]{"annual", annualSchema, annualRows},
+	longSchema[climate.AEPBand]{"aep_bands", bandsSchema, bandRows},
 }
 
 func specsOf[R any](file string, cols []column[R]) []ColumnSpec {
@@ -792,3 +798,94 @@ var directionsSchema = []column[dirRow]{
 }
 
 func directionRows(r *cellResult) []climate.DirectionRow { return r.dirs }
+
+// annualRow is one analysis year of a cell: the wave resource (dev < 0) or
+// one device's energy (dev its index).
+type annualRow struct {
+	y   *climate.YearRow
+	dev int
+	sum *climate.Summary
+}
+
+type aRow = longRow[annualRow]
+
+// annualSchema: year by year (climate.CellState.Annual), one row for the
+// wave resource and one per device for every analysis year with data.
+var annualSchema = []column[aRow]{
+	cellID[annualRow](),
+	cellName[annualRow](),
+	i64Col("year", "1", "", "", "analysis year, named by the calendar year it begins in (extremes.year_start_month; 1: the calendar year)",
+		func(x aRow) int64 { return int64(x.v.y.Year) }),
+	strCol("device", "", "empty: the wave resource row; else the device whose energy the row gives",
+		func(x aRow) string {
+			if x.v.dev < 0 {
+				return ""
+			}
+			return x.v.sum.Devices[x.v.dev].Name
+		}),
+	f64Col("power_mean_kw_m", "kW/m", "", "time: mean", "resource row: duration-weighted mean wave power of the year (null on device rows)",
+		func(x aRow) float64 {
+			if x.v.dev >= 0 {
+				return math.NaN()
+			}
+			return x.v.y.PowerMeanKWm
+		}),
+	f64Col("energy_mwh", "MWh", "", "", "device row: the device's energy in the year, its mean power over the steps with a valid Hm0 and period times the year's hours (null on resource rows)",
+		func(x aRow) float64 {
+			if x.v.dev < 0 {
+				return math.NaN()
+			}
+			return x.v.y.DeviceEnergyMWh[x.v.dev]
+		}),
+	f64Col("valid_hours", "h", "", "", "time with a valid wave power (resource row) or a valid Hm0 and matrix period (device row)",
+		func(x aRow) float64 {
+			if x.v.dev < 0 {
+				return x.v.y.ValidHours
+			}
+			return x.v.y.DeviceValidHours[x.v.dev]
+		}),
+	f64Col("hours", "h", "", "", "length of the analysis year in the data's calendar",
+		func(x aRow) float64 { return x.v.y.Hours }),
+	f64Col("coverage_frac", "1", "", "", "valid_hours / hours",
+		func(x aRow) float64 {
+			if x.v.dev < 0 {
+				return x.v.y.CoverageFrac
+			}
+			return x.v.y.DeviceCoverageFrac[x.v.dev]
+		}),
+	boolCol("excluded", "", "the year's wave-power coverage is below statistics.coverage_min: left out of interannual_std_kw_m and the AEP bands",
+		func(x aRow) bool { return x.v.y.Excluded }),
+}
+
+func annualRows(r *cellResult) []annualRow {
+	var out []annualRow
+	for i := range r.annual {
+		for d := -1; d < len(r.sum.Devices); d++ {
+			out = append(out, annualRow{y: &r.annual[i], dev: d, sum: &r.sum})
+		}
+	}
+	return out
+}
+
+type bRow = longRow[climate.AEPBand]
+
+// bandsSchema: the P50/P90/P99 annual energy of each device per horizon
+// with its uncertainty components (climate.AEPBands; screening estimates,
+// see the README).
+var bandsSchema = []column[bRow]{
+	cellID[climate.AEPBand](),
+	cellName[climate.AEPBand](),
+	strCol("device", "", "device", func(x bRow) string { return x.v.Device }),
+	f64Col("horizon_y", "yr", "", "", "future period whose mean annual energy the band is for (uncertainty.horizons_y)", func(x bRow) float64 { return x.v.HorizonY }),
+	i64Col("years_used", "1", "", "", "complete analysis years behind the inter-annual spread", func(x bRow) int64 { return int64(x.v.YearsUsed) }),
+	f64Col("aep_p50_mwh", "MWh/yr", "", "", "P50: the long-term mean annual energy (aep_<device>_mwh of cells.parquet)", func(x bRow) float64 { return x.v.P50MWh }),
+	f64Col("interannual_frac", "1", "", "", "sample standard deviation (ddof 1) of the complete years' mean device power over their mean", func(x bRow) float64 { return x.v.InterannualFrac }),
+	f64Col("u_record_frac", "1", "", "", "uncertainty of the long-term mean from the record length: interannual_frac / sqrt(years_used)", func(x bRow) float64 { return x.v.RecordFrac }),
+	f64Col("u_future_frac", "1", "", "", "variability of the mean of horizon_y future years: interannual_frac / sqrt(horizon_y)", func(x bRow) float64 { return x.v.FutureFrac }),
+	f64Col("u_model_frac", "1", "", "", "model uncertainty (uncertainty.model_frac: an assumption, see the manifest)", func(x bRow) float64 { return x.v.ModelFrac }),
+	f64Col("u_total_frac", "1", "", "", "root-sum-square of u_record_frac, u_future_frac and u_model_frac (independent errors)", func(x bRow) float64 { return x.v.TotalFrac }),
+	f64Col("aep_p90_mwh", "MWh/yr", "", "", "annual energy exceeded with 90 % probability: aep_p50_mwh (1 - 1.2816 u_total_frac) (null when not positive)", func(x bRow) float64 { return x.v.P90MWh }),
+	f64Col("aep_p99_mwh", "MWh/yr", "", "", "annual energy exceeded with 99 % probability: aep_p50_mwh (1 - 2.3263 u_total_frac) (null when not positive)", func(x bRow) float64 { return x.v.P99MWh }),
+}
+
+func bandRows(r *cellResult) []climate.AEPBand { return r.bands }

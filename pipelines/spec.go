@@ -33,11 +33,13 @@ type Spec struct {
 	Statistics StatisticsSpec    `toml:"statistics" json:"statistics"`
 	Extremes   ExtremesSpec      `toml:"extremes" json:"extremes"`
 	Design     DesignSpec        `toml:"design" json:"design"`
-	Devices    []DeviceSpec      `toml:"device" json:"devices"`
-	Contours   ContourSpec       `toml:"contours" json:"contours"`
-	Output     OutputSpec        `toml:"output" json:"output"`
-	Sites      []SiteSpec        `toml:"site" json:"sites"`
-	Screening  *ScreeningSpec    `toml:"screening" json:"screening,omitempty"`
+	// Uncertainty sets the year-by-year energy bands (aep_bands.parquet).
+	Uncertainty UncertaintySpec `toml:"uncertainty" json:"uncertainty"`
+	Devices     []DeviceSpec    `toml:"device" json:"devices"`
+	Contours    ContourSpec     `toml:"contours" json:"contours"`
+	Output      OutputSpec      `toml:"output" json:"output"`
+	Sites       []SiteSpec      `toml:"site" json:"sites"`
+	Screening   *ScreeningSpec  `toml:"screening" json:"screening,omitempty"`
 	// Validation sets `swellgrid validate` (nil: defaults); it changes no
 	// result of the run.
 	Validation *ValidationSpec `toml:"validation" json:"validation,omitempty"`
@@ -182,6 +184,22 @@ type RunSpec struct {
 	CheckpointEveryS float64 `toml:"checkpoint_every_s" json:"-"`
 }
 
+// UncertaintySpec holds the settings of the P50/P90/P99 energy bands.
+type UncertaintySpec struct {
+	// HorizonsY are the future periods (years) whose mean energy the bands
+	// are given for.
+	HorizonsY []float64 `toml:"horizons_y" json:"horizons_y"`
+	// ModelFrac is the model uncertainty: the relative standard uncertainty
+	// of the hindcast's mean device energy, an assumption until a validation
+	// gives it (recorded in the manifest).
+	ModelFrac float64 `toml:"model_frac" json:"model_frac"`
+}
+
+// DefaultModelFrac is uncertainty.model_frac by default: an assumed 10 %
+// relative standard uncertainty of a hindcast's mean device energy, a round
+// screening figure (an assumption of this project, not from a source).
+const DefaultModelFrac = 0.10
+
 // DefaultSpec is the spec of the common case.
 func DefaultSpec() *Spec {
 	return &Spec{
@@ -194,10 +212,11 @@ func DefaultSpec() *Spec {
 		Extremes: ExtremesSpec{ReturnPeriodsY: []float64{1, 5, 10, 25, 50, 100}, YearStartMonth: 1, SeparationH: 48,
 			ThresholdRule: "quantile", ThresholdQuantile: 0.99, PeaksPerYear: 5, MinYears: 10, Seed: 1,
 			MinPeaks: 20, ShapeRange: []float64{-0.5, 0.5}, MaxExtrapolation: 4, BreakingRatio: 0.6},
-		Design:   DesignSpec{Enabled: true, ReturnPeriodsY: []float64{1, 10, 50, 100}, ContourPoints: 36},
-		Contours: ContourSpec{Columns: []string{"power_mean_kw_m", "hm0_mean_m", "hm0_rl100y_m"}, Levels: map[string][]float64{}},
-		Output:   OutputSpec{Dir: "swellgrid-out", Report: true, NetCDF: true, GeoPackage: true},
-		Run:      RunSpec{MemoryLimit: "2GiB", BlockSteps: 64, CheckpointEveryS: 60},
+		Design:      DesignSpec{Enabled: true, ReturnPeriodsY: []float64{1, 10, 50, 100}, ContourPoints: 36},
+		Uncertainty: UncertaintySpec{HorizonsY: []float64{1, 10}, ModelFrac: DefaultModelFrac},
+		Contours:    ContourSpec{Columns: []string{"power_mean_kw_m", "hm0_mean_m", "hm0_rl100y_m"}, Levels: map[string][]float64{}},
+		Output:      OutputSpec{Dir: "swellgrid-out", Report: true, NetCDF: true, GeoPackage: true},
+		Run:         RunSpec{MemoryLimit: "2GiB", BlockSteps: 64, CheckpointEveryS: 60},
 	}
 }
 
@@ -383,6 +402,15 @@ func (s *Spec) Validate() error {
 		if d.ContourPoints < 8 || d.ContourPoints > 720 {
 			return bad("design.contour_points", "must lie in 8..720", d.ContourPoints)
 		}
+	}
+	if err := increasing("uncertainty.horizons_y", s.Uncertainty.HorizonsY, 0, 1000); err != nil {
+		return err
+	}
+	if n := len(s.Uncertainty.HorizonsY); n > climate.MaxHorizons {
+		return bad("uncertainty.horizons_y", fmt.Sprintf("at most %d horizons", climate.MaxHorizons), n)
+	}
+	if m := s.Uncertainty.ModelFrac; !(m >= 0 && m < 1) {
+		return bad("uncertainty.model_frac", "must lie in [0, 1) (a relative standard uncertainty: 0.1 is 10 %)", m)
 	}
 	names := map[string]bool{}
 	for i, d := range s.Devices {

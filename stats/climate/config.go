@@ -292,7 +292,9 @@ type CellMemory struct {
 //	Result = 2 x (rows of the cell's long tables, each by its Go size:
 //	         monthly (12 + 12 years) x 72, scatter bins (all of them) x 56,
 //	         exceedance edges x 40, windows (limits x durations x 12) x 80,
-//	         seasons 4 x 64) + 16 KiB (summary, fits, return levels,
+//	         seasons 4 x 64, analysis years (years + 1) x (YearRow +
+//	         3 x 8 x devices), AEP bands MaxHorizons x devices x AEPBand)
+//	         + 16 KiB (summary, fits, return levels,
 //	         threshold ladder, design contour)
 //
 // The factor 1.125 is the worst rounding of Go's size classes above 1 KiB
@@ -311,6 +313,7 @@ func (c *Config) CellMemory(years, maxPeaksPerYear int) CellMemory {
 	rows := (12+12*years)*int(unsafe.Sizeof(MonthRow{})) +
 		l.nScH*l.nScT*int(unsafe.Sizeof(ScatterRow{})) +
 		(l.nHm0Hist+l.nPowerHist+2)*int(unsafe.Sizeof(ExceedRow{})) +
-		l.nLim*l.nDur*12*int(unsafe.Sizeof(WindowRow{})) + 4*int(unsafe.Sizeof(SeasonRow{}))
+		l.nLim*l.nDur*12*int(unsafe.Sizeof(WindowRow{})) + 4*int(unsafe.Sizeof(SeasonRow{})) +
+		(years+1)*(int(unsafe.Sizeof(YearRow{}))+24*l.nDev) + MaxHorizons*l.nDev*int(unsafe.Sizeof(AEPBand{}))
 	return CellMemory{State: state, Result: 2*rows + 16<<10}
 }

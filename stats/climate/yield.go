@@ -2,6 +2,10 @@ package climate
 
 import "math"
 
+// MaxHorizons is the most horizons a run asks bands for (the memory model,
+// Config.CellMemory, counts this many per device).
+const MaxHorizons = 8
+
 // AEPBand is the uncertainty of one device's annual energy at one cell over
 // one horizon: the central estimate, each component as a relative standard
 // uncertainty (a fraction of P50), their combination and the energies

@@ -37,6 +37,21 @@ Definitions (README "Methods"; sources named beside each):
   occurrence (scatter), exceedance curves on the histogram edges
   (exceedance), weather windows (windows), calendar-month and season rows,
   IFORM design contours (design).
+- year by year (annual): per calendar year (the spec's analysis year) the
+  mean J of its valid steps, valid hours (6 h a step), the year's hours
+  (calendar.isleap), coverage_frac = valid / year hours, excluded below
+  coverage_min; each device's energy = mean device power over the year's
+  steps with Hm0 and Te x the year's hours / 1000 MWh;
+  interannual_std_kw_m = numpy.std(ddof=1) of the complete years' mean J.
+- AEP bands (aep_bands): over the complete years, interannual_frac =
+  std(ddof=1) / mean of the years' mean device power; u_record =
+  interannual / sqrt(years), u_future = interannual / sqrt(horizon),
+  u_model = 0.10 (the spec's default, uncertainty.model_frac), u_total =
+  sqrt(u_record^2 + u_future^2 + u_model^2) (independent errors, JCGM 100
+  "GUM" 5.1.2, from memory); P90 = P50 (1 - z u_total) with z =
+  scipy.stats.norm.ppf(0.9), P99 with norm.ppf(0.99) (common practice in
+  energy-yield assessment, from memory); P50 = the AEP; horizons 1 and 10
+  years (the spec's default uncertainty.horizons_y).
 Run: /usr/bin/python3 testdata/e2e/reference.py [OUT.json]
 """
 import calendar
@@ -57,6 +72,8 @@ PERCENTILES = [10.0, 50.0, 90.0, 99.0]
 PERIODS = [2.0, 5.0, 10.0]
 COVERAGE_MIN = 0.8
 HOURS_PER_YEAR = 8766.0
+HORIZONS = [1.0, 10.0]  # uncertainty.horizons_y, the spec's default
+MODEL_FRAC = 0.10  # uncertainty.model_frac, the spec's default
 
 
 def group_velocity(f, h):
@@ -601,6 +618,44 @@ def extras(cid, t, h, e, p, J, v, depth, years, months, mJ, mx, gev, devs, c, ta
     return out
 
 
+def annual_years(cid, h, e, J, v, years, devs, c, tables):
+    """Year by year and the AEP bands (see the module docstring)."""
+    yrs = range(2001, 2013)
+    hours = {y: (366 if calendar.isleap(y) else 365) * 24.0 for y in yrs}
+    means, dev_means = [], {n: [] for n in devs}
+    for y in yrs:
+        sel = years == y
+        vs = sel & v
+        cov = 6.0 * vs.sum() / hours[y]
+        excl = bool(cov < COVERAGE_MIN)
+        tables["annual"].append({"cell_id": cid, "year": y, "device": "", "power_mean_kw_m": J[vs].mean(), "energy_mwh": None,
+                                 "valid_hours": 6.0 * vs.sum(), "hours": hours[y], "coverage_frac": cov, "excluded": excl})
+        if not excl:
+            means.append(J[vs].mean())
+        ds = sel & np.isfinite(h) & np.isfinite(e)
+        for name, dev in devs.items():
+            pw = device_power(h[ds], e[ds], dev)[0].mean()
+            tables["annual"].append({"cell_id": cid, "year": y, "device": name, "power_mean_kw_m": None,
+                                     "energy_mwh": pw * hours[y] / 1000, "valid_hours": 6.0 * ds.sum(), "hours": hours[y],
+                                     "coverage_frac": 6.0 * ds.sum() / hours[y], "excluded": excl})
+            if not excl:
+                dev_means[name].append(pw)
+    c["interannual_std_kw_m"] = np.std(means, ddof=1)
+    c["annual_years"] = len(means)
+    for name in devs:
+        x = np.array(dev_means[name])
+        iav = x.std(ddof=1) / x.mean()
+        rec = iav / math.sqrt(len(x))
+        for H in HORIZONS:
+            fut = iav / math.sqrt(H)
+            tot = math.sqrt(rec ** 2 + fut ** 2 + MODEL_FRAC ** 2)
+            p50 = c["aep_%s_mwh" % name]
+            tables["aep_bands"].append({"cell_id": cid, "device": name, "horizon_y": H, "years_used": len(x), "aep_p50_mwh": p50,
+                                        "interannual_frac": iav, "u_record_frac": rec, "u_future_frac": fut, "u_model_frac": MODEL_FRAC,
+                                        "u_total_frac": tot, "aep_p90_mwh": p50 * (1 - stats.norm.ppf(0.90) * tot),
+                                        "aep_p99_mwh": p50 * (1 - stats.norm.ppf(0.99) * tot)})
+
+
 def main():
     t, hs, te, tp, dr, depth = read()
     dates = np.datetime64("2001-01-01T00") + t.astype("timedelta64[h]")
@@ -610,7 +665,7 @@ def main():
     devs = {n: matrix(os.path.join(HERE, "device_%s.csv" % n[-1])) for n in ["wec_a", "wec_b"]}
     ny, nx = depth.shape
     cells, monthly = [], []
-    tables = {k: [] for k in ["climatology", "scatter", "exceedance", "windows", "extremes", "threshold_diagnostics", "design"]}
+    tables = {k: [] for k in ["climatology", "scatter", "exceedance", "windows", "extremes", "threshold_diagnostics", "design", "annual", "aep_bands"]}
     for cid in range(ny * nx):
         j, i = divmod(cid, nx)
         h, e, p, d = hs[:, j, i], te[:, j, i], tp[:, j, i], dr[:, j, i]
@@ -657,6 +712,7 @@ def main():
             mean_kw = pw.mean()
             c["aep_%s_mwh" % name] = mean_kw * HOURS_PER_YEAR / 1000
             c["cf_%s" % name] = mean_kw / dev[2].max()
+        annual_years(cid, h, e, J, v, years, devs, c, tables)
         # GEV on calendar-year maxima
         mx = np.array([h[(years == y) & np.isfinite(h)].max() for y in range(2001, 2013)])
         cc, loc, scale = stats.genextreme.fit(mx)
