@@ -7,8 +7,10 @@
 // years and months below a coverage threshold excluded and flagged; the joint
 // occurrence of Hm0 and Te with mean power per bin; the directional
 // distribution of power and occurrence by sector; exceedance curves; weather
-// windows per Hm0 limit, minimum duration and calendar month; and the yield
-// of wave energy devices from their power matrices.
+// windows per Hm0 limit, minimum duration and calendar month; the yield
+// of wave energy devices from their power matrices; and, year by year
+// (Annual), the mean power and each device's energy, with the P50/P90/P99
+// bands of the annual energy and their uncertainty components (AEPBands).
 //
 // It knows nothing of files, NetCDF, grids or output tables: the caller
 // feeds Step values (already unpacked, in physical units, with the data's
