@@ -70,6 +70,7 @@ var twCellCols = map[string]twTol{
 	"hm0_p10_m":    twHm0Bin, "hm0_p50_m": twHm0Bin, "hm0_p90_m": twHm0Bin, "hm0_p99_m": twHm0Bin,
 	"power_p10_kw_m": twJBin, "power_p50_kw_m": twJBin, "power_p90_kw_m": twJBin, "power_p99_kw_m": twJBin,
 	"mvi": twIndex, "svi": twIndex, "interannual_cov": twIndex,
+	"interannual_std_kw_m": twIndex, "annual_years": twExact,
 	"aep_wec_a_mwh": twEnergy, "aep_wec_b_mwh": twEnergy, "cf_wec_a": twEnergy, "cf_wec_b": twEnergy,
 	// shares of energy: sums of J in 1/16 W/m, whose rounding moves a share
 	// by at most (1/16 W/m) / mean J (6e-6 here) and in practice far less
@@ -118,6 +119,14 @@ func withCols(base map[string]twTol, more map[string]twTol) map[string]twTol {
 }
 
 var twTables = []twTable{
+	// year by year and the AEP bands, weighted by duration (fixture a: two
+	// 3-hourly years and an hourly one)
+	{"annual.parquet", "annual", []string{"cell_id", "year", "device"}, nil,
+		map[string]twTol{"power_mean_kw_m": twPower, "energy_mwh": twEnergy, "valid_hours": twExact, "hours": twExact,
+			"coverage_frac": twShare, "excluded": twExact}},
+	{"aep_bands.parquet", "aep_bands", []string{"cell_id", "device", "horizon_y"}, nil,
+		map[string]twTol{"years_used": twExact, "aep_p50_mwh": twEnergy, "interannual_frac": twIndex, "u_record_frac": twIndex,
+			"u_future_frac": twIndex, "u_model_frac": twShare, "u_total_frac": twIndex, "aep_p90_mwh": twEnergy, "aep_p99_mwh": twEnergy}},
 	{"monthly.parquet", "monthly", []string{"cell_id", "year", "month"}, periodIs(func(p string) bool { return p == "year_month" }),
 		map[string]twTol{"power_mean_kw_m": twPower, "hm0_mean_m": twMean, "valid_hours": twExact, "coverage": twShare, "excluded": twExact}},
 	{"monthly.parquet", "climatology", []string{"cell_id", "period", "month"}, periodIs(func(p string) bool { return p != "year_month" }),

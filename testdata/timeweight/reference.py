@@ -338,6 +338,52 @@ def device_classes(hm0, te, dev):
 
 # ---------------------------------------------------------------- one cell
 
+def annual_years(cid, w, years, ylist, h, e, J, v, vh, devs, c, tables):
+    """Year by year and the AEP bands, every step weighted by its duration
+    w (as testdata/e2e/reference.py, whose steps are all 6 h): per calendar
+    year with data, the weighted mean J, valid hours, the year's hours,
+    coverage_frac, excluded below coverage_min; each device's energy = its
+    weighted mean power over the steps with Hm0 and Te x the year's hours /
+    1000; interannual_std_kw_m (ddof 1); the bands from the complete years'
+    weighted mean device powers (see testdata/e2e/reference.py)."""
+    means, dev_means = [], {n: [] for n in devs}
+    for y in ylist:
+        sel = years == y
+        ds = sel & np.isfinite(h) & np.isfinite(e)
+        if not (sel & (v | vh)).any() and not ds.any():
+            continue
+        yh = 8784.0 if calendar.isleap(y) else 8760.0
+        vs = sel & v
+        cov = min(1.0, float(w[vs].sum()) / yh)
+        excl = bool(cov < COVERAGE_MIN)
+        tables["annual"].append({"cell_id": cid, "year": y, "device": "", "power_mean_kw_m": wmean(J[vs], w[vs]) if vs.any() else None,
+                                 "energy_mwh": None, "valid_hours": float(w[vs].sum()), "hours": yh, "coverage_frac": cov, "excluded": excl})
+        if not excl:
+            means.append(wmean(J[vs], w[vs]))
+        for name, dev in devs.items():
+            pw = wmean(E2E.device_power(h[ds], e[ds], dev)[0], w[ds]) if ds.any() else None
+            tables["annual"].append({"cell_id": cid, "year": y, "device": name, "power_mean_kw_m": None,
+                                     "energy_mwh": None if pw is None else pw * yh / 1000, "valid_hours": float(w[ds].sum()),
+                                     "hours": yh, "coverage_frac": min(1.0, float(w[ds].sum()) / yh), "excluded": excl})
+            if not excl and pw is not None:
+                dev_means[name].append(pw)
+    c["interannual_std_kw_m"] = float(np.std(means, ddof=1)) if len(means) >= 2 else None
+    c["annual_years"] = len(means)
+    for name in devs:
+        x = np.array(dev_means[name])
+        iav = x.std(ddof=1) / x.mean() if len(x) >= 2 else None
+        rec = iav / math.sqrt(len(x)) if iav is not None else None
+        for H in E2E.HORIZONS:
+            fut = iav / math.sqrt(H) if iav is not None else None
+            tot = math.sqrt(rec ** 2 + fut ** 2 + E2E.MODEL_FRAC ** 2) if iav is not None else None
+            p50 = c["aep_%s_mwh" % name]
+            tables["aep_bands"].append({"cell_id": cid, "device": name, "horizon_y": H, "years_used": len(x), "aep_p50_mwh": p50,
+                                        "interannual_frac": iav, "u_record_frac": rec, "u_future_frac": fut, "u_model_frac": E2E.MODEL_FRAC,
+                                        "u_total_frac": tot,
+                                        "aep_p90_mwh": None if tot is None else p50 * (1 - stats.norm.ppf(0.90) * tot),
+                                        "aep_p99_mwh": None if tot is None else p50 * (1 - stats.norm.ppf(0.99) * tot)})
+
+
 def cell(cid, t, w, years, months, h, e, p, d, depth, devs, tables):
     cg = np.array([E2E.group_velocity(1 / x, depth) if np.isfinite(x) else np.nan for x in e])
     J = RHO * G * h ** 2 * cg / 16 / 1000  # kW/m
@@ -428,6 +474,7 @@ def cell(cid, t, w, years, months, h, e, p, d, depth, devs, tables):
         c["below_cutin_%s" % name] = E[below].sum() / E.sum()
         c["energy_outside_matrix_%s_frac" % name] = E[outside].sum() / E.sum()
     c["hm0_depth_limit_m"] = BREAKING_RATIO * depth if math.isfinite(depth) and depth > 0 else None
+    annual_years(cid, w, years, ylist, h, e, J, v, vh, devs, c, tables)
 
     # extremes: complete years, storm peaks above the 99 % quantile of hours
     c["gev_years"] = len(complete)
@@ -548,7 +595,7 @@ def compute(directory, policy, devs, source):
                 "covered_hours": float(w.sum())})
     ny, nx = depth.shape
     cells = []
-    tables = {k: [] for k in ["monthly", "climatology", "scatter", "exceedance", "windows", "extremes", "threshold_diagnostics"]}
+    tables = {k: [] for k in ["monthly", "climatology", "scatter", "exceedance", "windows", "extremes", "threshold_diagnostics", "annual", "aep_bands"]}
     for cid in range(ny * nx):
         j, i = divmod(cid, nx)
         c = cell(cid, t, w, years, months, f["hs"][:, j, i], f["te"][:, j, i], f["tp"][:, j, i], f["mwd"][:, j, i],
@@ -591,7 +638,8 @@ def check_e2e():
     keys = {"cells": ["cell_id"], "monthly": ["cell_id", "year", "month"], "climatology": ["cell_id", "period", "month"],
             "scatter": ["cell_id", "hm0_lo_m", "te_lo_s"], "exceedance": ["cell_id", "variable", "value"],
             "windows": ["cell_id", "hm0_limit_m", "min_duration_h", "month"], "threshold_diagnostics": ["cell_id", "quantile"],
-            "extremes": ["cell_id", "method", "return_period_y"]}
+            "extremes": ["cell_id", "method", "return_period_y"], "annual": ["cell_id", "year", "device"],
+            "aep_bands": ["cell_id", "device", "horizon_y"]}
     # Columns from maximum-likelihood fits: scipy's optimisers stop at their
     # tolerances, and a threshold differing in the 15th digit moves the optimum
     # found by about 1e-7 (relative; absolute below 1): 1e-5 there, 1e-9 elsewhere.
