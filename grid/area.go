@@ -113,18 +113,22 @@ func (c *Corners) At(i, j int) orb.Point {
 // the first and last centres (latitudes clipped to +-90); for a curvilinear
 // grid the mean of the four surrounding nodes, the nodes first extended by
 // one row and column on each side by linear extrapolation (common practice;
-// a NaN node makes its corners NaN). Points have no cells: ok is false, as
-// it is for an axis of one value (no spacing to take an edge from).
+// a NaN node makes its corners NaN). Longitudes are those of the grid's
+// continuous frame (LonFrame: 0..360 for a grid across 180 degrees), so
+// that the cells beside 180 degrees have their true width. Points have no
+// cells: ok is false, as it is for an axis of one value (no spacing to take
+// an edge from).
 func CellCorners(g *Grid) (*Corners, bool) {
 	nx, ny := g.NX, g.NY
 	if g.Kind == Points || nx < 2 || ny < 2 {
 		return nil, false
 	}
+	lons := g.Frame().ShiftAll(g.Lon)
 	c := &Corners{NX: nx, NY: ny, Lon: make([]float64, (nx+1)*(ny+1)), Lat: make([]float64, (nx+1)*(ny+1))}
 	if g.Kind == Regular {
 		xs, ys := make([]float64, nx), make([]float64, ny)
 		for i := range xs {
-			xs[i] = g.Lon[i]
+			xs[i] = lons[i]
 		}
 		for j := range ys {
 			ys[j] = g.Lat[j*nx]
@@ -160,7 +164,7 @@ func CellCorners(g *Grid) (*Corners, bool) {
 			return val
 		}
 	}
-	lon, lat := ext(g.Lon), ext(g.Lat)
+	lon, lat := ext(lons), ext(g.Lat)
 	for j := 0; j <= ny; j++ {
 		for i := 0; i <= nx; i++ {
 			k := j*(nx+1) + i

@@ -27,8 +27,14 @@ import (
 // Field is a scalar field on a structured (regular or curvilinear) grid of
 // NY x NX nodes, stored row-major (node k = j*NX + i). Lon and Lat are the node
 // coordinates in degrees (len NY*NX; for a regular grid the caller expands its
-// 1-D axes). A node is masked, and every cell touching it left out, when its
-// Value is NaN or ±Inf or Mask[k] is true. Mask may be nil.
+// 1-D axes), longitudes in one continuous frame (GeoField shifts them into
+// the region's frame, LonFrame); contours are computed and returned in that
+// frame (CutLines and CutPolygons cut them at 180 degrees for GeoJSON). A
+// node is masked, and every cell touching it left out, when its Value is NaN
+// or ±Inf or Mask[k] is true. Mask may be nil. A cell with an edge longer
+// than 180 degrees of longitude spans the seam of the frame (a grid that
+// wraps round the globe or a pole): it is left out too (SeamCells counts
+// them).
 type Field struct {
 	NX, NY int
 	Lon    []float64
@@ -253,15 +259,55 @@ func (f *Field) prepare() ([]bool, error) {
 			if !(node[k] && node[k+1] && node[k+nx] && node[k+nx+1]) {
 				continue
 			}
-			cv[k] = true
-			for _, e := range [][2]int{{k, k + 1}, {k + 1, k + nx + 1}, {k + nx + 1, k + nx}, {k + nx, k}} {
-				if math.Abs(f.Lon[e[0]]-f.Lon[e[1]]) > 180 {
-					return nil, fmt.Errorf("grid: cell i=%d, j=%d spans the antimeridian (lon %v to %v); contours across ±180° are not supported, mask those cells or shift the longitudes", i, j, f.Lon[e[0]], f.Lon[e[1]])
-				}
-			}
+			cv[k] = !f.acrossSeam(k)
 		}
 	}
 	return cv, nil
+}
+
+// acrossSeam reports whether the cell with lower-left node k has an edge
+// longer than 180 degrees of longitude (it spans the seam of the frame).
+func (f *Field) acrossSeam(k int) bool {
+	nx := f.NX
+	for _, e := range [4][2]int{{k, k + 1}, {k + 1, k + nx + 1}, {k + nx + 1, k + nx}, {k + nx, k}} {
+		if math.Abs(f.Lon[e[0]]-f.Lon[e[1]]) > 180 {
+			return true
+		}
+	}
+	return false
+}
+
+// SeamCells counts the cells of f with four valid corners that span more
+// than 180 degrees of longitude, which Isolines and Bands leave out.
+func (f *Field) SeamCells() int {
+	n := 0
+	if f == nil || f.NX < 2 || f.NY < 2 || len(f.Lon) != f.NX*f.NY || len(f.Lat) != len(f.Lon) || len(f.Value) != len(f.Lon) {
+		return 0
+	}
+	valid := func(k int) bool {
+		v := f.Value[k]
+		return !math.IsNaN(v) && !math.IsInf(v, 0) && (f.Mask == nil || !f.Mask[k]) && !math.IsNaN(f.Lon[k])
+	}
+	for j := 0; j < f.NY-1; j++ {
+		for i := 0; i < f.NX-1; i++ {
+			k := j*f.NX + i
+			if valid(k) && valid(k+1) && valid(k+f.NX) && valid(k+f.NX+1) && f.acrossSeam(k) {
+				n++
+			}
+		}
+	}
+	return n
+}
+
+// GeoField is the Field of values on a structured lon/lat grid of ny x nx
+// nodes (row-major) with its longitudes shifted into the region's
+// continuous frame (LonFrame of lon: 0..360 for a region across 180
+// degrees), and that frame. Its contours come in the frame: one piece
+// across 180 degrees, for maps and for the products kept in the frame; cut
+// them with CutLines and CutPolygons for GeoJSON.
+func GeoField(nx, ny int, lon, lat, value []float64, mask []bool) (*Field, Frame) {
+	fr := LonFrame(lon)
+	return &Field{NX: nx, NY: ny, Lon: fr.ShiftAll(lon), Lat: lat, Value: value, Mask: mask}, fr
 }
 
 // Cell corners in counter-clockwise order in index space (x = i, y = j):

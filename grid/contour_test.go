@@ -484,9 +484,15 @@ func TestFieldErrors(t *testing.T) {
 	if _, err := Isolines(&Field{NX: 2, NY: 2, Lon: make([]float64, 3), Lat: make([]float64, 4), Value: make([]float64, 4)}, []float64{1}); err == nil {
 		t.Error("short Lon accepted")
 	}
+	// a cell across the seam of its frame is left out (GeoField shifts a
+	// region across 180 degrees into 0..360 first, so only a grid that
+	// wraps round the globe has such cells)
 	f := &Field{NX: 2, NY: 2, Lon: []float64{179, -179, 179, -179}, Lat: []float64{0, 0, 1, 1}, Value: []float64{0, 1, 0, 1}}
-	if _, err := Isolines(f, []float64{0.5}); err == nil {
-		t.Error("antimeridian cell accepted")
+	if iso, err := Isolines(f, []float64{0.5}); err != nil || len(iso[0]) != 0 || f.SeamCells() != 1 {
+		t.Errorf("antimeridian cell: isolines %v, %v, %d seam cells; want none, left out", iso, err, f.SeamCells())
+	}
+	if iso, _ := Isolines(&Field{NX: 2, NY: 2, Lon: []float64{179, 181, 179, 181}, Lat: f.Lat, Value: f.Value}, []float64{0.5}); len(iso[0]) != 1 || iso[0][0][0][0] != 180 {
+		t.Errorf("the same cell in 0..360: isolines %v, want one through 180", iso)
 	}
 	g := regularField(3, 3, 0, 1, 0, 1, cone)
 	if _, err := Bands(g, []float64{1, 0.5}); err == nil {

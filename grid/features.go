@@ -10,7 +10,11 @@ package grid
 // GeoPackage layers in EPSG:4326 mean), and the distance to a line is the
 // shortest geodesic (Inverse) from the point to any point of that lon/lat
 // straight segment. Rings must not cross the antimeridian (Validate refuses
-// an edge longer than 180 degrees of longitude).
+// an edge longer than 180 degrees of longitude); a layer may give its
+// longitudes in -180..180 (cut at 180 degrees as RFC 7946 asks) or in
+// 0..360, and the point tested against it in either: the point is tried at
+// its longitude and 360 degrees east and west of it. Distances are geodesics
+// (Inverse takes the difference of longitudes modulo 360).
 
 import (
 	"math"
@@ -35,11 +39,15 @@ func Covers(p orb.Polygon, pt orb.Point) bool {
 	return true
 }
 
-// MultiCovers reports whether any polygon of mp covers pt.
+// MultiCovers reports whether any polygon of mp covers pt, the point taken
+// at its longitude and at 360 degrees east and west of it (a layer and a
+// grid may use different longitude frames, -180..180 and 0..360).
 func MultiCovers(mp orb.MultiPolygon, pt orb.Point) bool {
 	for _, p := range mp {
-		if Covers(p, pt) {
-			return true
+		for _, dx := range []float64{0, 360, -360} {
+			if Covers(p, orb.Point{pt[0] + dx, pt[1]}) {
+				return true
+			}
 		}
 	}
 	return false

@@ -37,15 +37,16 @@ func (k Kind) String() string {
 
 // Grid is the geometry of a hindcast's cells in swellgrid's canonical order,
 // which gives every cell a stable id (its index): for a regular grid, rows of
-// ascending latitude, each of ascending longitude (after normalisation to
-// [-180, 180)); for a curvilinear grid, the file's (y, x) order; for a point
+// ascending latitude, each of ascending longitude in the region's continuous
+// frame (LonFrame: -180..180, or 0..360 for a grid across 180 degrees, so
+// that neighbouring columns stay neighbours); for a curvilinear grid, the file's (y, x) order; for a point
 // set, the file's station order; for a mesh, the Hilbert-curve order of its
 // nodes or faces (NewMesh). The canonical order does not depend on how a
 // file stores its axes, so ids agree between files and runs.
 type Grid struct {
 	Kind   Kind
 	NX, NY int       // structured shape (Points: NX = number of points, NY = 1)
-	Lon    []float64 // per cell, degrees east in [-180, 180)
+	Lon    []float64 // per cell, degrees east in [-180, 180) (LonFrame gives the frame to compute in)
 	Lat    []float64 // per cell, degrees north
 
 	// For Regular grids: the file index along each axis of canonical column
@@ -70,7 +71,9 @@ func NormLon(lon float64) float64 {
 }
 
 // NewRegular builds a regular grid from its 1-D axes as stored (either order,
-// ascending or descending; longitudes in any 360-degree convention).
+// ascending or descending; longitudes in any 360-degree convention, a jump
+// from 180 to -180 inside the axis included). Its columns are in ascending
+// longitude in the axis's continuous frame (LonFrame), whatever the storage.
 func NewRegular(lon, lat []float64) (*Grid, error) {
 	if len(lon) == 0 || len(lat) == 0 {
 		return nil, fmt.Errorf("grid: regular grid with an empty axis (%d lon x %d lat)", len(lon), len(lat))
@@ -85,8 +88,13 @@ func NewRegular(lon, lat []float64) (*Grid, error) {
 			return nil, fmt.Errorf("grid: longitude[%d] = %v is not finite", i, v)
 		}
 	}
-	xs := sortedAxis(lon, true)
-	ys := sortedAxis(lat, false)
+	norm := make([]float64, len(lon))
+	for i, v := range lon {
+		norm[i] = NormLon(v)
+	}
+	fr := LonFrame(norm)
+	xs := sortedAxis(fr.ShiftAll(norm))
+	ys := sortedAxis(lat)
 	for i := 1; i < len(xs); i++ {
 		if NormLon(lon[xs[i]]) == NormLon(lon[xs[i-1]]) {
 			return nil, fmt.Errorf("grid: longitude %v appears twice", lon[xs[i]])
@@ -125,18 +133,13 @@ func monotonic(a []float64) bool {
 	return up || down
 }
 
-func sortedAxis(a []float64, isLon bool) []int {
+// sortedAxis returns the indices of a in ascending order of value.
+func sortedAxis(a []float64) []int {
 	idx := make([]int, len(a))
 	for i := range idx {
 		idx[i] = i
 	}
-	key := func(i int) float64 {
-		if isLon {
-			return NormLon(a[i])
-		}
-		return a[i]
-	}
-	sort.SliceStable(idx, func(i, j int) bool { return key(idx[i]) < key(idx[j]) })
+	sort.SliceStable(idx, func(i, j int) bool { return a[idx[i]] < a[idx[j]] })
 	return idx
 }
 
@@ -211,19 +214,17 @@ func near(a, b float64) bool {
 	return math.Abs(a-b) <= 1e-6
 }
 
-// Bounds returns the lon/lat bounding box of the cells with finite positions.
-func (g *Grid) Bounds() (minLon, minLat, maxLon, maxLat float64) {
-	minLon, minLat = math.Inf(1), math.Inf(1)
-	maxLon, maxLat = math.Inf(-1), math.Inf(-1)
-	for i := range g.Lon {
-		if math.IsNaN(g.Lon[i]) || math.IsNaN(g.Lat[i]) {
-			continue
-		}
-		minLon, maxLon = math.Min(minLon, g.Lon[i]), math.Max(maxLon, g.Lon[i])
-		minLat, maxLat = math.Min(minLat, g.Lat[i]), math.Max(maxLat, g.Lat[i])
-	}
-	return
+// Bounds returns the true extent of the cells with finite positions, as an
+// RFC 7946 bounding box (BBox): west, south, east, north, longitudes in
+// [-180, 180], west > east for a grid across 180 degrees (RFC 7946 section
+// 5.2). Without a finite cell, +Inf, +Inf, -Inf, -Inf.
+func (g *Grid) Bounds() (west, south, east, north float64) {
+	b, _ := BBox(g.Lon, g.Lat)
+	return b[0], b[1], b[2], b[3]
 }
+
+// Frame is the continuous longitude frame of the grid's cells (LonFrame).
+func (g *Grid) Frame() Frame { return LonFrame(g.Lon) }
 
 // Structured reports whether the grid has a (y, x) node structure that can be
 // contoured by marching squares (meshes are contoured on their triangles).
