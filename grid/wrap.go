@@ -124,11 +124,14 @@ func BBox(lons, lats []float64) (bb [4]float64, ok bool) {
 	if math.IsInf(w, 1) {
 		return [4]float64{math.Inf(1), math.Inf(1), math.Inf(-1), math.Inf(-1)}, false
 	}
-	we, ee := NormLon(w), NormLon(e)
-	if ee == -180 && e != w { // the east end on 180 degrees
-		ee = 180
+	// back to [-180, 180] (exact: x - 360 for x in [180, 360) loses no bit)
+	if w >= 180 {
+		w -= 360
 	}
-	return [4]float64{we, s, ee, n}, true
+	if e > 180 {
+		e -= 360
+	}
+	return [4]float64{w, s, e, n}, true
 }
 
 // isSeam reports whether x is an antimeridian (180 + 360 k degrees).
@@ -547,54 +550,66 @@ func RejoinLines(mls orb.MultiLineString, fr Frame) orb.MultiLineString {
 // multiple of 360 degrees to lie beside the region (its middle nearest to
 // fr.Centre), then the parts that meet along an antimeridian are merged: an
 // edge on an antimeridian that another part has in the opposite direction
-// is inner (the cut) and removed, the remaining edges are linked into rings
-// again (split into simple loops where a ring passes a vertex twice), and
-// the rings sorted into exterior rings and holes as CutPolygons gives them.
+// is inner (the cut) and removed, the remaining edges of those parts are
+// linked into rings again (split into simple loops where a ring passes a
+// vertex twice), and the rings sorted into exterior rings and holes as
+// CutPolygons gives them. Polygons that meet no other come back as they are
+// (shifted), first, in their order.
 func RejoinPolygons(mp orb.MultiPolygon, fr Frame) orb.MultiPolygon {
 	type edge struct{ a, b orb.Point }
-	var edges []edge
-	seams := map[float64]bool{}
+	var polys []orb.Polygon
+	count := map[edge]int{} // edges on an antimeridian, by direction
 	for _, p := range mp {
 		if len(p) == 0 || len(p[0]) < 4 {
 			continue
 		}
-		b := p[0].Bound()
+		q := clonePolygon(p)
+		b := q[0].Bound()
 		dx := shiftInto(b.Min[0], b.Max[0], fr.Centre)
-		for _, r := range p {
+		for _, r := range q {
+			translate(r, dx)
 			for k := 0; k+1 < len(r); k++ {
-				e := edge{r[k], r[k+1]}
-				e.a[0] += dx
-				e.b[0] += dx
-				if e.a != e.b {
-					edges = append(edges, e)
-				}
-				if e.a[0] == e.b[0] && isSeam(e.a[0]) {
-					seams[e.a[0]] = true
+				if r[k][0] == r[k+1][0] && r[k][1] != r[k+1][1] && isSeam(r[k][0]) {
+					count[edge{r[k], r[k+1]}]++
 				}
 			}
 		}
+		polys = append(polys, q)
 	}
-	// cancel the cut: seam edges present in both directions
-	isCut := func(e edge) bool { return e.a[0] == e.b[0] && seams[e.a[0]] }
-	count := map[edge]int{}
-	for _, e := range edges {
-		if isCut(e) {
-			count[e]++
-		}
-	}
+	// the cut: edges on an antimeridian present in both directions
 	remove := map[edge]int{}
 	for e, n := range count {
-		remove[e] = min(n, count[edge{e.b, e.a}])
+		if m := min(n, count[edge{e.b, e.a}]); m > 0 {
+			remove[e] = m
+		}
 	}
-	keep := edges[:0]
-	for _, e := range edges {
-		if isCut(e) && remove[e] > 0 {
-			remove[e]--
+	out := orb.MultiPolygon{}
+	var edges []edge
+	for _, q := range polys {
+		cut := false
+		for _, r := range q {
+			for k := 0; k+1 < len(r) && !cut; k++ {
+				cut = remove[edge{r[k], r[k+1]}] > 0
+			}
+		}
+		if !cut {
+			out = append(out, q)
 			continue
 		}
-		keep = append(keep, e)
+		for _, r := range q {
+			for k := 0; k+1 < len(r); k++ {
+				e := edge{r[k], r[k+1]}
+				if e.a == e.b {
+					continue
+				}
+				if remove[e] > 0 {
+					remove[e]--
+					continue
+				}
+				edges = append(edges, e)
+			}
+		}
 	}
-	edges = keep
 	outOf := map[orb.Point][]int{}
 	for k, e := range edges {
 		outOf[e.a] = append(outOf[e.a], k)
@@ -623,11 +638,9 @@ func RejoinPolygons(mp orb.MultiPolygon, fr Frame) orb.MultiPolygon {
 			k = next
 		}
 		for _, loop := range splitLoops(path) {
-			r := append(orb.Ring(loop), loop[0])
-			rings = append(rings, r)
+			rings = append(rings, append(orb.Ring(loop), loop[0]))
 		}
 	}
-	out := orb.MultiPolygon{}
 	for _, p := range assemble(rings, math.NaN()) {
 		out = append(out, p)
 	}
