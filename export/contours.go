@@ -13,6 +13,8 @@ import (
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/geojson"
+
+	"swellgrid/grid"
 )
 
 // ContourDir is the sub-directory of a run directory holding contour layers.
@@ -29,8 +31,11 @@ var layerName = regexp.MustCompile(`^[a-z][a-z0-9_]*$`)
 //     [edges[b], edges[b+1]), properties "lower", "upper" (null when the edge
 //     is infinite, i.e. the band is open-ended), "column", "units".
 //
-// Geometries are written as given (grid.Isolines and grid.Bands already give
-// lon/lat with right-hand-rule rings). Each collection also carries the
+// Geometries come in the region's continuous longitude frame (grid.Isolines
+// and grid.Bands give lon/lat with right-hand-rule rings, 0..360 for a region
+// across 180 degrees) and are cut at the antimeridian here, as RFC 7946
+// section 3.1.9 asks (grid.CutLines, grid.CutPolygons): longitudes in
+// [-180, 180], no segment longer than 180 degrees. Each collection also carries the
 // foreign members "name" (the layer name) and "caution" (ScreeningCaution).
 // A layer is skipped when its levels (or edges) and geometries are both empty.
 // Both files are encoded before either is written, and each is written
@@ -56,10 +61,7 @@ func WriteContours(runDir, column, units string, levels []float64, lines []orb.M
 			if math.IsNaN(l) || math.IsInf(l, 0) {
 				return fmt.Errorf("export: contours of %s: level %d is %v", column, k, l)
 			}
-			g := lines[k]
-			if g == nil {
-				g = orb.MultiLineString{}
-			}
+			g := grid.CutLines(lines[k])
 			ft := geojson.NewFeature(g)
 			ft.Properties = geojson.Properties{"level": l, "column": column, "units": units}
 			fc.Append(ft)
@@ -76,10 +78,7 @@ func WriteContours(runDir, column, units string, levels []float64, lines []orb.M
 		}
 		fc := newCollection(column + ".bands")
 		for k := range bands {
-			g := bands[k]
-			if g == nil {
-				g = orb.MultiPolygon{}
-			}
+			g := grid.CutPolygons(bands[k])
 			ft := geojson.NewFeature(g)
 			ft.Properties = geojson.Properties{"lower": finiteOrNil(edges[k]), "upper": finiteOrNil(edges[k+1]), "column": column, "units": units}
 			fc.Append(ft)

@@ -8,20 +8,21 @@ import (
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/geojson"
+
+	"swellgrid/grid"
 )
 
 // WriteScreeningOutline writes runDir/contours/screening_<scenario>.geojson:
 // an RFC 7946 FeatureCollection of one MultiPolygon feature (the passing
-// area of a screening scenario, as given: right-hand-rule rings in lon/lat)
-// with the properties given, and the foreign members "name" and "caution",
-// atomically.
+// area of a screening scenario: right-hand-rule rings in lon/lat, given in
+// the grid's continuous frame and cut at the antimeridian here as RFC 7946
+// section 3.1.9 asks, grid.CutPolygons) with the properties given, and the
+// foreign members "name" and "caution", atomically.
 func WriteScreeningOutline(runDir, scenario string, mp orb.MultiPolygon, props map[string]any) error {
 	if !layerName.MatchString(scenario) {
 		return fmt.Errorf("export: screening scenario name %q must be lower-case letters, digits and _ (it names the file)", scenario)
 	}
-	if mp == nil {
-		mp = orb.MultiPolygon{}
-	}
+	mp = grid.CutPolygons(mp)
 	fc := newCollection("screening_" + scenario)
 	ft := geojson.NewFeature(mp)
 	ft.Properties = geojson.Properties(props)

@@ -39,7 +39,8 @@ type InspectReport struct {
 	// set without depth. A run flags every cell without a value masked.
 	EmptyCells  int                             `json:"masked_cells_without_values"`
 	SampleSteps int                             `json:"sampled_steps_per_file"`
-	Bounds      [4]float64                      `json:"bbox_lon_lat"`
+	Bounds      [4]float64                      `json:"bbox_lon_lat"` // RFC 7946: west, south, east, north; west > east across 180 degrees
+	LonFrame    string                          `json:"lon_frame"`    // the grid's continuous longitude frame: "-180..180" or "0..360"
 	Roles       map[ingest.Role]*ingest.VarInfo `json:"roles"`
 	Spectral    *ingest.Spectral                `json:"spectral,omitempty"`
 	// Readings say how the spectral conventions were read; an ambiguous
@@ -240,6 +241,7 @@ func report(cat *ingest.Catalog) *InspectReport {
 	}
 	a, b, c, d := cat.Grid.Bounds()
 	r.Bounds = [4]float64{a, b, c, d}
+	r.LonFrame = cat.Grid.Frame().String()
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, z := range cat.Depth {
 		if z > 0 && !math.IsInf(z, 1) {
@@ -347,7 +349,11 @@ func (r *InspectReport) WriteText(w io.Writer) error {
 		fmt.Fprintf(&sb, " (%d of them without any value in the first %d steps of every file)", r.EmptyCells, r.SampleSteps)
 	}
 	sb.WriteString("\n")
-	fmt.Fprintf(&sb, "extent       lon %.4f .. %.4f, lat %.4f .. %.4f\n", r.Bounds[0], r.Bounds[2], r.Bounds[1], r.Bounds[3])
+	fmt.Fprintf(&sb, "extent       lon %.4f .. %.4f, lat %.4f .. %.4f", r.Bounds[0], r.Bounds[2], r.Bounds[1], r.Bounds[3])
+	if r.Bounds[0] > r.Bounds[2] {
+		fmt.Fprintf(&sb, " (across 180 degrees: lon %.4f .. %.4f in the frame %s)", r.Bounds[0], r.Bounds[2]+360, r.LonFrame)
+	}
+	sb.WriteString("\n")
 	roles := make([]string, 0, len(r.Roles))
 	for k := range r.Roles {
 		roles = append(roles, string(k))

@@ -11,19 +11,21 @@ import (
 )
 
 // contourFunc computes the isolines at levels and the bands between edges
-// of one per-cell column.
+// of one per-cell column, in the grid's continuous longitude frame
+// (grid.LonFrame; export cuts them at 180 degrees for GeoJSON).
 type contourFunc func(vals, levels, edges []float64) ([]orb.MultiLineString, []orb.MultiPolygon, error)
 
 // contourer chooses how the grid is contoured: marching squares on a
-// structured grid, marching triangles on a mesh with values on its nodes.
-// It returns nil and the reason when the grid has no contours.
+// structured grid (in its continuous longitude frame, grid.GeoField),
+// marching triangles on a mesh with values on its nodes. It returns nil and
+// the reason when the grid has no contours.
 func contourer(g *grid.Grid, masked []bool) (contourFunc, string) {
 	switch {
 	case g.Structured() && (g.NX < 2 || g.NY < 2):
 		return nil, fmt.Sprintf("no contours: the grid is %d x %d cells, and isolines need at least 2 x 2", g.NY, g.NX)
 	case g.Structured():
 		return func(vals, levels, edges []float64) ([]orb.MultiLineString, []orb.MultiPolygon, error) {
-			f := &grid.Field{NX: g.NX, NY: g.NY, Lon: g.Lon, Lat: g.Lat, Value: vals, Mask: masked}
+			f, _ := grid.GeoField(g.NX, g.NY, g.Lon, g.Lat, vals, masked)
 			lines, err := grid.Isolines(f, levels)
 			if err != nil {
 				return nil, nil, err
@@ -48,6 +50,25 @@ func contourer(g *grid.Grid, masked []bool) (contourFunc, string) {
 		return nil, "no contour layers: the data are on the mesh's faces (one value per face), and contours need values on nodes; use cells.parquet or atlas.gpkg as points"
 	}
 	return nil, "no contour layers: the grid is a point set, which has no cells to contour between; use cells.parquet as points"
+}
+
+// seamWarning says how many cells of a structured grid span the seam of its
+// continuous longitude frame (a grid that wraps round the globe or a pole,
+// which no frame makes continuous), which the contours leave out; "" when
+// none does.
+func seamWarning(g *grid.Grid, masked []bool) string {
+	if !g.Structured() || g.NX < 2 || g.NY < 2 {
+		return ""
+	}
+	ones := make([]float64, g.NCells())
+	for i := range ones {
+		ones[i] = 1
+	}
+	f, fr := grid.GeoField(g.NX, g.NY, g.Lon, g.Lat, ones, masked)
+	if n := f.SeamCells(); n > 0 {
+		return fmt.Sprintf("contours leave out %d cells that span more than 180 degrees of longitude in the grid's frame (%s): the grid wraps round the globe or a pole", n, fr)
+	}
+	return ""
 }
 
 // Mesh tables of a run on a UGRID mesh: the topology that atlas.nc and the

@@ -48,6 +48,9 @@ func (e *engine) writeContours(out string, vals map[string][]float64) ([]string,
 		warns = append(warns, why)
 		return written, warns, nil
 	}
+	if w := seamWarning(e.cat.Grid, e.cat.Masked); w != "" && len(e.spec.Contours.Columns) > 0 {
+		warns = append(warns, w)
+	}
 	units := e.columnNames()
 	for _, col := range e.spec.Contours.Columns {
 		vals := vals[col]
@@ -136,12 +139,18 @@ type ManifestInput struct {
 
 // ManifestGrid describes the grid.
 type ManifestGrid struct {
-	Kind   string     `json:"kind"`
-	NY, NX int        `json:"-"`
-	Shape  [2]int     `json:"shape_ny_nx"`
-	Cells  int        `json:"cells"`
-	Masked int        `json:"masked_cells"`
-	BBox   [4]float64 `json:"bbox_lon_lat"`
+	Kind   string `json:"kind"`
+	NY, NX int    `json:"-"`
+	Shape  [2]int `json:"shape_ny_nx"`
+	Cells  int    `json:"cells"`
+	Masked int    `json:"masked_cells"`
+	// BBox is the true extent as an RFC 7946 bounding box (section 5):
+	// west, south, east, north, west > east for a grid across 180 degrees.
+	BBox [4]float64 `json:"bbox_lon_lat"`
+	// LonFrame is the grid's continuous longitude frame (grid.LonFrame):
+	// "-180..180", or "0..360" for a grid across 180 degrees, the frame of
+	// atlas.nc, atlas.gpkg and the report's maps.
+	LonFrame string `json:"lon_frame"`
 }
 
 func (e *engine) manifest(version string, sums, warns []string, timings map[string]float64) *Manifest {
@@ -168,7 +177,7 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 		}
 	}
 	a, b, cc, d := c.Grid.Bounds()
-	m.Grid = ManifestGrid{Kind: c.Grid.Kind.String(), Shape: [2]int{c.Grid.NY, c.Grid.NX}, Cells: c.Grid.NCells(), Masked: masked, BBox: [4]float64{a, b, cc, d}}
+	m.Grid = ManifestGrid{Kind: c.Grid.Kind.String(), Shape: [2]int{c.Grid.NY, c.Grid.NX}, Cells: c.Grid.NCells(), Masked: masked, BBox: [4]float64{a, b, cc, d}, LonFrame: c.Grid.Frame().String()}
 	m.Assumptions = []string{fmt.Sprintf("water density %g kg/m3, gravity %g m/s2", e.spec.Physics.Rho, e.spec.Physics.G)}
 	if !e.spectral {
 		m.Assumptions = append(m.Assumptions, "wave power from bulk Hm0 and Te with linear-theory group velocity at the cell depth (deep water where the depth is unknown or the deep-water assumption is chosen)")

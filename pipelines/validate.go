@@ -14,6 +14,7 @@ import (
 
 	"swellgrid/export"
 	"swellgrid/export/rundir"
+	"swellgrid/grid"
 	"swellgrid/ingest"
 	"swellgrid/stats/climate"
 	"swellgrid/stats/seastate"
@@ -362,12 +363,16 @@ func (v *validator) place(st *ingest.Station) (*stationPlace, error) {
 //
 // with a, b the station's fractional position between the cell centres
 // (common practice), or why it cannot (not a regular grid, outside the
-// centres' hull, a land cell among the four).
+// centres' hull, a land cell among the four). Longitudes are compared in
+// the grid's continuous frame (grid.LonFrame), so a station beside 180
+// degrees finds its cells on both sides of it, whatever its convention.
 func bilinearCells(kind string, nx, ny int, lons, lats []float64, masked []bool, lon, lat float64) ([]int, []float64, string) {
 	if kind != "regular" || nx < 2 || ny < 2 {
 		return nil, nil, "bilinear location needs a regular grid"
 	}
-	xs := lons[:nx]
+	fr := grid.LonFrame(lons[:nx])
+	xs := fr.ShiftAll(lons[:nx])
+	lon = fr.Shift(lon)
 	ys := make([]float64, ny)
 	for j := range ys {
 		ys[j] = lats[j*nx]
