@@ -15,6 +15,8 @@ import (
 	"github.com/apache/arrow/go/v17/parquet/pqarrow"
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/encoding/wkb"
+
+	"swellgrid/grid"
 )
 
 // Metadata keys written into every table's Parquet key/value metadata.
@@ -138,15 +140,15 @@ func geoLayout(path string, t *Table, lon, lat []float64) ([]Column, string, err
 	if len(lon) != len(lat) {
 		return nil, "", fmt.Errorf("export: %s: %d lon and %d lat values", path, len(lon), len(lat))
 	}
-	bbox := [4]float64{math.Inf(1), math.Inf(1), math.Inf(-1), math.Inf(-1)}
 	for k := range lon {
 		x, y := lon[k], lat[k]
 		if !(x >= -180 && x <= 180) || !(y >= -90 && y <= 90) {
 			return nil, "", fmt.Errorf("export: %s: row %d has lon %v, lat %v; points need finite degrees, lon in [-180, 180], lat in [-90, 90]", path, k, x, y)
 		}
-		bbox[0], bbox[1] = math.Min(bbox[0], x), math.Min(bbox[1], y)
-		bbox[2], bbox[3] = math.Max(bbox[2], x), math.Max(bbox[3], y)
 	}
+	// GeoParquet's bbox follows RFC 7946 section 5: across 180 degrees,
+	// west > east (section 5.2)
+	bbox, _ := grid.BBox(lon, lat)
 	cols := make([]Column, 0, len(t.Columns)+2)
 	have := map[string]int{}
 	for k, c := range t.Columns {

@@ -4,7 +4,11 @@
 // contoured column (from contours/*.geojson). It writes the required metadata
 // tables (gpkg_spatial_ref_sys, gpkg_contents, gpkg_geometry_columns), the
 // GeoPackage binary geometry (header + ISO WKB) and the R-tree spatial index
-// extension (gpkg_rtree_index) of every layer.
+// extension (gpkg_rtree_index) of every layer. Every layer is in the grid's
+// continuous longitude frame (grid.LonFrame: 0..360 for a grid across 180
+// degrees, said in each layer's description), the contours joined again
+// where their GeoJSON twins are cut at 180 degrees, so that a region across
+// 180 degrees is one piece in a GIS.
 //
 // The SQLite engine is modernc.org/sqlite (pure Go). gpkg encodes values it
 // is given (through export/rundir); it computes nothing.
@@ -29,6 +33,7 @@ import (
 	_ "modernc.org/sqlite"
 
 	"swellgrid/export/rundir"
+	"swellgrid/grid"
 )
 
 // FileName is the GeoPackage's name in the run directory.
@@ -139,8 +144,13 @@ func stamp(end string) string {
 // Layers assembles the layers of r: cells (every column), and for every
 // contours/<column>.geojson and .bands.geojson a line and a polygon layer.
 func Layers(r *rundir.Run) ([]*Layer, error) {
-	lon, lat := r.Lon(), r.Lat()
-	cells := &Layer{Name: "cells", GeomType: "POINT", Description: "one point per cell with every column of cells.parquet (null: no result). " + r.Manifest.Caution}
+	fr := r.Frame()
+	lon, lat := fr.ShiftAll(r.Lon()), r.Lat()
+	frameNote := ""
+	if fr.Crosses180() {
+		frameNote = " Longitudes in the grid's continuous frame 0..360 (the grid crosses 180 degrees east/west)."
+	}
+	cells := &Layer{Name: "cells", GeomType: "POINT", Description: "one point per cell with every column of cells.parquet (null: no result)." + frameNote + " " + r.Manifest.Caution}
 	for i := range lon {
 		cells.Geoms = append(cells.Geoms, orb.Point{lon[i], lat[i]})
 	}
@@ -172,14 +182,19 @@ func Layers(r *rundir.Run) ([]*Layer, error) {
 		}
 		unit := ""
 		vals := make([][]float64, len(props))
+		l.Description += frameNote
 		for _, ft := range fc.Features {
+			// the GeoJSON is cut at 180 degrees (RFC 7946); the layer is
+			// in the grid's frame, joined again across it
 			switch g := ft.Geometry.(type) {
-			case orb.MultiLineString, orb.MultiPolygon:
-				l.Geoms = append(l.Geoms, g)
+			case orb.MultiLineString:
+				l.Geoms = append(l.Geoms, grid.RejoinLines(g, fr))
+			case orb.MultiPolygon:
+				l.Geoms = append(l.Geoms, grid.RejoinPolygons(g, fr))
 			case orb.LineString:
-				l.Geoms = append(l.Geoms, orb.MultiLineString{g})
+				l.Geoms = append(l.Geoms, grid.RejoinLines(orb.MultiLineString{g}, fr))
 			case orb.Polygon:
-				l.Geoms = append(l.Geoms, orb.MultiPolygon{g})
+				l.Geoms = append(l.Geoms, grid.RejoinPolygons(orb.MultiPolygon{g}, fr))
 			default:
 				return nil, fmt.Errorf("gpkg: %s: unexpected geometry %T", f, ft.Geometry)
 			}

@@ -1,7 +1,10 @@
 // Package raster writes atlas.nc: the per-cell results of a finished run as a
 // CF-1.8 NetCDF-4 raster on the run's own grid (regular: 1-D lat/lon axes;
 // curvilinear: the 2-D lat/lon of the input), for GIS users who load mean
-// power as a raster layer rather than as points.
+// power as a raster layer rather than as points. Longitudes are in the
+// grid's continuous frame (grid.LonFrame: 0..360 for a grid across 180
+// degrees, as the lon variable's comment says), so that a regular grid keeps
+// a regular axis and its raster a geotransform.
 //
 // Every numeric column of cells.parquet becomes a 2-D variable with units,
 // long_name, and standard_name and cell_methods where the schema gives them,
@@ -167,12 +170,21 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 	if err := text(crs.Attr("spatial_ref"), WGS84WKT); err != nil { // GDAL reads this name
 		return err
 	}
+	fr := r.Frame()
+	lonComment := fmt.Sprintf("longitudes in the grid's continuous frame %s", fr)
+	if fr.Crosses180() {
+		lonComment += " (the grid crosses 180 degrees east/west; cells.parquet gives the same positions in [-180, 180))"
+	}
 	coord := func(name, std, units, long, axis string, dims []netcdf.Dim, vals []float64) error {
 		v, err := ds.AddVar(name, netcdf.DOUBLE, dims)
 		if err != nil {
 			return err
 		}
-		for _, kv := range [][2]string{{"standard_name", std}, {"units", units}, {"long_name", long}, {"axis", axis}} {
+		comment := ""
+		if name == "lon" {
+			comment = lonComment
+		}
+		for _, kv := range [][2]string{{"standard_name", std}, {"units", units}, {"long_name", long}, {"axis", axis}, {"comment", comment}} {
 			if kv[1] == "" {
 				continue
 			}
@@ -182,7 +194,7 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 		}
 		return v.WriteFloat64s(vals)
 	}
-	lon, lat := r.Lon(), r.Lat()
+	lon, lat := fr.ShiftAll(r.Lon()), r.Lat()
 	dims2 := []netcdf.Dim{yd, xd}
 	coordsAttr := ""
 	if regular {

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"strconv"
 
 	"github.com/paulmach/orb"
 	"gonum.org/v1/plot"
@@ -41,6 +42,10 @@ type MapInfo struct {
 	Min, Max                  float64 // the colour bar's range: the column's min and max over sea cells
 	Levels                    []float64
 	Valid, Land               int
+	// Extent is the map's data range [west, south, east, north] in the
+	// grid's continuous longitude frame (grid.LonFrame: east beyond 180 for
+	// a region across 180 degrees, drawn in one piece).
+	Extent [4]float64 `json:"extent_lon_lat"`
 	// DataArea is the map's data rectangle on the figure in points (1/72
 	// inch) from the lower left corner, set when the figure is drawn.
 	DataArea vg.Rectangle `json:"-"`
@@ -207,8 +212,16 @@ func (l *cellsLayer) DataRange() (xmin, xmax, ymin, ymax float64) {
 // same length on the page (equirectangular at the mean latitude), cells
 // coloured with viridis from the column's min to its max, land and masked
 // cells in sand, the isolines at f.Levels on top, and a colour bar titled with
-// the unit whose ends are labelled with the min and the max.
+// the unit whose ends are labelled with the min and the max. A grid or point
+// set is drawn in its continuous longitude frame (grid.LonFrame), so a region
+// across 180 degrees is one piece; the longitude ticks are labelled in
+// [-180, 180].
 func Map(name, title string, f *Field) (*figure, *MapInfo, error) {
+	if f.Shapes == nil {
+		g := *f
+		g.Lon = grid.LonFrame(f.Lon).ShiftAll(f.Lon)
+		f = &g
+	}
 	lo, hi, n := f.Range()
 	if n == 0 {
 		return nil, nil, fmt.Errorf("no finite values of %s on sea cells", f.Name)
@@ -258,7 +271,9 @@ func Map(name, title string, f *Field) (*figure, *MapInfo, error) {
 		}
 	}
 	b := layer.bounds
+	info.Extent = [4]float64{b.Min[0], b.Min[1], b.Max[0], b.Max[1]}
 	p := newPlot(title, "longitude (°E)", "latitude (°N)")
+	p.X.Tick.Marker = lonTicks{}
 	p.Add(layer)
 	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = b.Min[0], b.Max[0], b.Min[1], b.Max[1]
 	midLat := (b.Min[1] + b.Max[1]) / 2
@@ -307,4 +322,24 @@ func pathLen(pts []vg.Point) vg.Length {
 		d += vg.Length(math.Hypot(float64(pts[i].X-pts[i-1].X), float64(pts[i].Y-pts[i-1].Y)))
 	}
 	return d
+}
+
+// lonTicks are the default ticks of a longitude axis, labelled in [-180,
+// 180] (a map in the 0..360 frame of a region across 180 degrees reads
+// 170, 180, -170).
+type lonTicks struct{}
+
+func (lonTicks) Ticks(lo, hi float64) []plot.Tick {
+	ts := plot.DefaultTicks{}.Ticks(lo, hi)
+	for k := range ts {
+		if ts[k].Label == "" || (ts[k].Value >= -180 && ts[k].Value <= 180) {
+			continue
+		}
+		v := grid.NormLon(ts[k].Value)
+		if v == -180 {
+			v = 180
+		}
+		ts[k].Label = strconv.FormatFloat(v, 'f', -1, 64)
+	}
+	return ts
 }

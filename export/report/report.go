@@ -402,8 +402,9 @@ var indexPage = template.Must(template.New("index").Funcs(funcs).Parse(`<!DOCTYP
 <h2 id="maps">Maps</h2>
 <p>Colour scale: viridis (perceptually uniform); <span class="sw" style="background:#d8ccb2"></span> land or masked cells,
 <span class="sw" style="background:#c8c8c8"></span> sea cells without a result. Axes in degrees on WGS 84, drawn with the
-aspect of the mean latitude. Each figure is also an SVG file (link below it).</p>
-{{range .Maps}}<figure class="map" data-column="{{.Map.Column}}" data-min="{{printf "%.17g" .Map.Min}}" data-max="{{printf "%.17g" .Map.Max}}" data-unit="{{.Map.Unit}}">
+aspect of the mean latitude, a region across 180° in one piece (longitudes 0..360 on the axis, labelled -180..180).
+Each figure is also an SVG file (link below it).</p>
+{{range .Maps}}<figure class="map" data-column="{{.Map.Column}}" data-min="{{printf "%.17g" .Map.Min}}" data-max="{{printf "%.17g" .Map.Max}}" data-unit="{{.Map.Unit}}" data-extent="{{range $i, $v := .Map.Extent}}{{if $i}} {{end}}{{printf "%.17g" $v}}{{end}}">
 <img src="{{.PNG}}" alt="{{.Title}}"><figcaption>{{.Caption}} <a href="{{.SVG}}">SVG</a></figcaption></figure>
 {{else}}<p>No maps: no mapped column has values.</p>{{end}}
 <h2 id="sites">Sites</h2>

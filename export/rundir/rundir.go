@@ -27,6 +27,8 @@ import (
 	"github.com/apache/arrow/go/v17/parquet/file"
 	"github.com/apache/arrow/go/v17/parquet/metadata"
 	"github.com/apache/arrow/go/v17/parquet/pqarrow"
+
+	"swellgrid/grid"
 )
 
 // Kind of values a Column holds.
@@ -405,7 +407,10 @@ type Grid struct {
 	Shape  [2]int     `json:"shape_ny_nx"`
 	Cells  int        `json:"cells"`
 	Masked int        `json:"masked_cells"`
-	BBox   [4]float64 `json:"bbox_lon_lat"`
+	BBox   [4]float64 `json:"bbox_lon_lat"` // RFC 7946: west > east across 180 degrees
+	// LonFrame is the grid's continuous longitude frame ("-180..180" or
+	// "0..360"; empty in a manifest written before it was recorded).
+	LonFrame string `json:"lon_frame"`
 }
 
 // Parameters is the part of the recorded spec the products use.
@@ -584,9 +589,17 @@ type groupRead struct {
 	t   *Table
 }
 
-// Lon and Lat of every cell.
+// Lon and Lat of every cell (cells.parquet: lon in [-180, 180)).
 func (r *Run) Lon() []float64 { return r.Cells.Col("lon").Float }
 func (r *Run) Lat() []float64 { return r.Cells.Col("lat").Float }
+
+// Frame is the continuous longitude frame of the run's cells
+// (grid.LonFrame: 0..360 for a grid across 180 degrees), which atlas.nc,
+// atlas.gpkg and the report's maps use.
+func (r *Run) Frame() grid.Frame { return grid.LonFrame(r.Lon()) }
+
+// FrameLon is the cells' longitudes in the run's continuous frame (Frame).
+func (r *Run) FrameLon() []float64 { return r.Frame().ShiftAll(r.Lon()) }
 
 // Structured reports whether the cells form a (y, x) grid.
 func (r *Run) Structured() bool { return r.Kind == "regular" || r.Kind == "curvilinear" }
