@@ -69,6 +69,9 @@ func TestMain(m *testing.M) {
 	if valRunDir != "" {
 		os.RemoveAll(valRunDir) // validate_test.go
 	}
+	if dlRuns.dir != "" {
+		os.RemoveAll(dlRuns.dir) // dateline_test.go
+	}
 	os.Exit(code)
 }
 
