@@ -75,9 +75,9 @@ func (f Frame) ShiftAll(lons []float64) []float64 {
 // degrees (the points in [-180, 180): min + 360 - max), g0 the one that
 // holds 0 degrees (the points in [0, 360): min + 360 - max). When g0 > g180
 // the region's ends lie about 0 and it is continuous across 180: 0..360.
-// When the region crosses neither, g0 and g180 are the same stretch (equal);
-// when it crosses both (a global grid), both are one spacing: a tie keeps
-// -180..180.
+// When the region crosses neither, g0 and g180 are the same stretch (equal
+// but for rounding: within 1e-9 degree counts as equal); when it crosses
+// both (a global grid), both are one spacing: a tie keeps -180..180.
 func LonFrame(lons []float64) Frame {
 	min180, max180 := math.Inf(1), math.Inf(-1)
 	min0, max0 := math.Inf(1), math.Inf(-1)
@@ -95,8 +95,11 @@ func LonFrame(lons []float64) Frame {
 	if n == 0 {
 		return Frame{West: -180}
 	}
+	// the two are computed from different representations of the same
+	// longitudes and may differ by rounding where they are the same
+	// stretch: 0..360 only when g0 is wider by more than that
 	g180, g0 := min180+360-max180, min0+360-max0
-	if g0 > g180 {
+	if g0 > g180+1e-9 {
 		return Frame{West: 0, Centre: (min0 + max0) / 2}
 	}
 	return Frame{West: -180, Centre: (min180 + max180) / 2}

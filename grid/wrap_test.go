@@ -46,6 +46,22 @@ func TestLonFrame(t *testing.T) {
 			t.Errorf("%s: frame %v, want west %v", tc.name, got, tc.west)
 		}
 	}
+	// a region crossing neither 0 nor 180 keeps -180..180 whatever the
+	// rounding of its two representations (longitudes of a curvilinear
+	// fixture, testdata/curvilinear_bulk.nc, and a sweep round the globe)
+	if fr := LonFrame([]float64{-30.3877345077309, -29.9345806142125, -28.5751189336575, -27.4575020157505}); fr.West != -180 {
+		t.Errorf("curvilinear region west of 0: frame %v, want -180..180", fr)
+	}
+	for x := -179.9; x < 170; x += 0.7311 {
+		lons := []float64{x, x + 0.1234567, x + 3.3333333, x + 9.87654321}
+		want := -180.0
+		if x+9.87654321 > 180 {
+			want = 0
+		}
+		if fr := LonFrame(lons); fr.West != want {
+			t.Errorf("region %v..%v: frame %v, want west %v", x, x+9.87654321, fr, want)
+		}
+	}
 	fr := LonFrame(jump)
 	if fr.Centre != 178 {
 		t.Errorf("centre of 172..184 = %v, want 178", fr.Centre)
