@@ -115,7 +115,7 @@ def write(name, data):
 
 def layers(name):
     """The screening layers: a polygon 3 columns wide around the 180 (10)
-    degree column and a point 1 degree west of it, given in the fixture's
+    degree column and a point 1 degree east of it, given in the fixture's
     own longitude convention."""
     s = SHIFT[name]
     if name == "pacific_pm180":
