@@ -10,7 +10,6 @@ import (
 	"os"
 	"strings"
 	"syscall"
-	"unicode/utf8"
 )
 
 // fileStamp is what the file system says of a file: a file whose stamp is
@@ -105,29 +104,6 @@ func (c *Catalog) HashFile(ctx context.Context, i int) (string, error) {
 		return "", err
 	}
 	return hex.EncodeToString(h.Sum(nil)), nil
-}
-
-// PathText is a file name as text for the manifest and the saved states:
-// the name itself when it is valid UTF-8, else the name with every byte that
-// is not part of a valid UTF-8 sequence written as \xNN (so that names
-// differing in such bytes stay different, and the same name gives the same
-// text on every run; JSON would replace them all by U+FFFD).
-func PathText(p string) string {
-	if utf8.ValidString(p) {
-		return p
-	}
-	var b strings.Builder
-	for i := 0; i < len(p); {
-		r, n := utf8.DecodeRuneInString(p[i:])
-		if r == utf8.RuneError && n <= 1 {
-			fmt.Fprintf(&b, `\x%02x`, p[i])
-			i++
-			continue
-		}
-		b.WriteString(p[i : i+n])
-		i += n
-	}
-	return b.String()
 }
 
 // globEscape makes a path match itself literally as a filepath.Glob pattern

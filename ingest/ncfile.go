@@ -6,7 +6,6 @@ import (
 	"math"
 	"os"
 	"sync"
-	"syscall"
 
 	"github.com/fhs/go-netcdf/netcdf"
 )
@@ -30,18 +29,11 @@ func checkMagic(path string) (format string, size int64, err error) {
 // would block open and read forever) and refused by name when it is not a
 // regular file.
 func checkMagicStamp(path string) (format string, size int64, stamp fileStamp, err error) {
-	f, err := os.OpenFile(path, os.O_RDONLY|syscall.O_NONBLOCK, 0)
+	f, st, err := OpenRegular(path)
 	if err != nil {
-		return "", 0, stamp, fmt.Errorf("ingest: %s: %w", path, err)
+		return "", 0, stamp, fmt.Errorf("ingest: %w", err)
 	}
 	defer f.Close()
-	st, err := f.Stat()
-	if err != nil {
-		return "", 0, stamp, fmt.Errorf("ingest: %s: %w", path, err)
-	}
-	if !st.Mode().IsRegular() {
-		return "", 0, stamp, fmt.Errorf("ingest: %s: not a regular file (%s); give NetCDF files, directories of them or globs", path, modeName(st.Mode()))
-	}
 	stamp = stampOf(st)
 	head := make([]byte, 8)
 	n, _ := f.Read(head)

@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"sort"
 	"strconv"
 	"strings"
@@ -27,7 +26,7 @@ var csvRole = map[string]Role{"hm0_m": Hm0, "te_s": Te, "tp_s": Tp, "dir_deg": D
 // ReadObservationCSV reads an observation CSV file (CSVColumns). A bad row
 // is refused with the file, the line, the column and what to do.
 func ReadObservationCSV(path string) ([]*Station, error) {
-	fh, err := os.Open(path)
+	fh, _, err := OpenRegular(path)
 	if err != nil {
 		return nil, fmt.Errorf("ingest: observations: %w", err)
 	}
@@ -208,9 +207,14 @@ func parseISOTime(s string) (Date, error) {
 // readCSVComments keeps the file's leading "# key: value" comment lines as
 // the stations' attributes (e.g. "# comment: invented station").
 func readCSVComments(path string, st []*Station) error {
-	b, err := os.ReadFile(path)
+	fh, _, err := OpenRegular(path)
 	if err != nil {
 		return fmt.Errorf("ingest: %w", err)
+	}
+	defer fh.Close()
+	b, err := io.ReadAll(fh)
+	if err != nil {
+		return fmt.Errorf("ingest: %s: %w", TermText(path), err)
 	}
 	for _, l := range strings.Split(string(b), "\n") {
 		if !strings.HasPrefix(l, "#") {

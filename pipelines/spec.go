@@ -5,6 +5,7 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -517,20 +518,14 @@ func (s *Spec) readNamedFiles() error {
 	return nil
 }
 
-// openRegular opens path if it is a regular file of at most limit bytes.
+// openRegular opens path if it is a regular file of at most limit bytes
+// (ingest.OpenRegular: a named pipe or device is refused without blocking).
 func openRegular(path string, limit int64) (*os.File, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("cannot be read: %w", err)
-	}
-	st, err := f.Stat()
-	if err != nil {
-		f.Close()
-		return nil, fmt.Errorf("cannot be read: %w", err)
-	}
-	if !st.Mode().IsRegular() {
-		f.Close()
-		return nil, fmt.Errorf("is not a regular file (%s); give a file", st.Mode().Type())
+	f, st, err := ingest.OpenRegular(path)
+	if fe := (*ingest.FileError)(nil); errors.As(err, &fe) {
+		return nil, errors.New(fe.Reason) // the caller names the key and the file
+	} else if err != nil {
+		return nil, err
 	}
 	if st.Size() > limit {
 		f.Close()
