@@ -324,6 +324,9 @@ func parseRefDate(s string, c Calendar) (Stamp, error) {
 		nums[0] = -nums[0]
 	}
 	d := Date{Year: nums[0], Month: nums[1], Day: nums[2]}
+	if d.Year < MinYear || d.Year > MaxYear {
+		return 0, fmt.Errorf("reference date %q: year %d is outside the years %d-%d that swellgrid reads", ShortText(parts[0]), d.Year, MinYear, MaxYear)
+	}
 	if d.Month < 1 || d.Month > 12 || d.Day < 1 || d.Day > daysInMonth(c, d.Year, d.Month) {
 		return 0, fmt.Errorf("reference date %q does not exist in the %s calendar", parts[0], c)
 	}
@@ -346,6 +349,9 @@ func parseRefDate(s string, c Calendar) (Stamp, error) {
 		}
 	}
 	st := StampOf(c, d) + Stamp(math.Round(frac)) - Stamp(offset)
+	if lo, hi := timeRange(c); st < lo || st >= hi {
+		return 0, fmt.Errorf("reference date %q with its time and zone falls outside the years %d-%d that swellgrid reads", ShortText(s), MinYear, MaxYear)
+	}
 	return st, nil
 }
 
@@ -381,8 +387,23 @@ func (tu TimeUnits) Stamp(v float64) (Stamp, error) {
 		return 0, fmt.Errorf("time value %v is not finite", v)
 	}
 	s := v * tu.Seconds
-	if math.Abs(s) > 1e15 {
-		return 0, fmt.Errorf("time value %v %s is out of range", v, tu.Text)
+	lo, hi := timeRange(tu.Calendar)
+	if st := float64(tu.Ref) + math.Round(s); st < float64(lo) || st >= float64(hi) {
+		return 0, fmt.Errorf("time value %v %s falls outside the years %d-%d of the %s calendar; fix the time values or their units", v, tu.Text, MinYear, MaxYear, tu.Calendar)
 	}
 	return tu.Ref + Stamp(math.Round(s)), nil
+}
+
+// MinYear and MaxYear bound the calendar years swellgrid reads: a reference
+// date or a time outside them is refused (a time axis that far away is a
+// wrong units attribute, and the day arithmetic stays far from overflow).
+const (
+	MinYear = 1
+	MaxYear = 9999
+)
+
+// timeRange is the stamps of the start of MinYear and of the year after
+// MaxYear in calendar c: a time t is read when lo <= t < hi.
+func timeRange(c Calendar) (lo, hi Stamp) {
+	return StampOf(c, Date{Year: MinYear, Month: 1, Day: 1}), StampOf(c, Date{Year: MaxYear + 1, Month: 1, Day: 1})
 }
