@@ -60,15 +60,17 @@ func fileError(path string, err error) error {
 
 // escapeText writes s with every byte that is not part of a valid UTF-8
 // sequence as \xNN and, when controls is set, every control character as
-// well: C0 controls (U+0000-U+001F, among them ESC and BEL), DEL (U+007F)
-// and C1 controls (U+0080-U+009F) as \xNN or \u00NN, and the backslash as
-// \\ so that the escaped text reads back to one text only (the escapes of
-// Go's %q; ECMA-48 defines C0 and C1 as the characters a terminal acts on).
+// well: C0 controls (U+0000-U+001F, among them ESC, BEL, CR and LF) and DEL
+// (U+007F) as \xNN, C1 controls (U+0080-U+009F, among them CSI) as \u00NN
+// (ECMA-48 defines C0 and C1 as the characters a terminal acts on; the
+// escapes are those of Go's %q). A backslash is kept as it is, so that text
+// escaped once is left unchanged by a second pass (a message may quote a
+// file name that was escaped already).
 func escapeText(s string, controls bool) string {
 	clean := utf8.ValidString(s)
 	if clean && controls {
 		for _, r := range s {
-			if isControl(r) || r == '\\' {
+			if isControl(r) {
 				clean = false
 				break
 			}
@@ -83,8 +85,6 @@ func escapeText(s string, controls bool) string {
 		switch {
 		case r == utf8.RuneError && n <= 1:
 			fmt.Fprintf(&b, `\x%02x`, s[i])
-		case controls && r == '\\':
-			b.WriteString(`\\`)
 		case controls && r < 0x80 && isControl(r):
 			fmt.Fprintf(&b, `\x%02x`, r)
 		case controls && isControl(r):

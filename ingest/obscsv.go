@@ -36,18 +36,18 @@ func ReadObservationCSV(path string) ([]*Station, error) {
 	r.FieldsPerRecord = -1
 	r.TrimLeadingSpace = true
 	bad := func(line int, col, format string, a ...any) error {
-		where := fmt.Sprintf("%s:%d", path, line)
+		where := fmt.Sprintf("%s:%d", TermText(path), line)
 		if col != "" {
-			where += fmt.Sprintf(": column %q", col)
+			where += fmt.Sprintf(": column %q", ShortText(col))
 		}
 		return fmt.Errorf("ingest: %s: %s", where, fmt.Sprintf(format, a...))
 	}
 	header, err := r.Read()
 	if errors.Is(err, io.EOF) {
-		return nil, fmt.Errorf("ingest: %s: empty file; an observation CSV starts with the header %s", path, strings.Join(CSVColumns, ","))
+		return nil, fmt.Errorf("ingest: %s: empty file; an observation CSV starts with the header %s", TermText(path), strings.Join(CSVColumns, ","))
 	}
 	if err != nil {
-		return nil, fmt.Errorf("ingest: %s: %w", path, err)
+		return nil, fmt.Errorf("ingest: %s: %w", TermText(path), err)
 	}
 	hline, _ := r.FieldPos(0)
 	idx := map[string]int{}
@@ -94,7 +94,7 @@ func ReadObservationCSV(path string) ([]*Station, error) {
 		}
 		line, _ := r.FieldPos(0)
 		if err != nil {
-			return nil, fmt.Errorf("ingest: %s:%d: %w; fix the CSV quoting", path, line, err)
+			return nil, fmt.Errorf("ingest: %s:%d: %w; fix the CSV quoting", TermText(path), line, err)
 		}
 		if len(rec) != len(header) {
 			return nil, bad(line, "", "%d fields, the header has %d; every row needs a value (possibly empty) for each column", len(rec), len(header))
@@ -112,16 +112,16 @@ func ReadObservationCSV(path string) ([]*Station, error) {
 		lon, err1 := strconv.ParseFloat(get("lon"), 64)
 		lat, err2 := strconv.ParseFloat(get("lat"), 64)
 		if err1 != nil || !(lon >= -360 && lon <= 720) {
-			return nil, bad(line, "lon", "%q is not a longitude in degrees east", get("lon"))
+			return nil, bad(line, "lon", "%q is not a longitude in degrees east", ShortText(get("lon")))
 		}
 		if err2 != nil || !(lat >= -90 && lat <= 90) {
-			return nil, bad(line, "lat", "%q is not a latitude in degrees north (-90..90)", get("lat"))
+			return nil, bad(line, "lat", "%q is not a latitude in degrees north (-90..90)", ShortText(get("lat")))
 		}
 		if p, ok := pos[name]; !ok {
 			pos[name] = [3]float64{lon, lat, float64(line)}
 			order = append(order, name)
 		} else if math.Abs(normLon(p[0])-normLon(lon)) > 1e-6 || math.Abs(p[1]-lat) > 1e-6 {
-			return nil, bad(line, "lon", "station %q is at (%v, %v) here but at (%v, %v) on line %d; a station is fixed: give it one position, or another name", name, lon, lat, p[0], p[1], int(p[2]))
+			return nil, bad(line, "lon", "station %q is at (%v, %v) here but at (%v, %v) on line %d; a station is fixed: give it one position, or another name", ShortText(name), lon, lat, p[0], p[1], int(p[2]))
 		}
 		vals := map[Role]float64{}
 		for _, c := range CSVColumns[4:] {
@@ -134,7 +134,7 @@ func ReadObservationCSV(path string) ([]*Station, error) {
 			if s != "" && !strings.EqualFold(s, "nan") && !strings.EqualFold(s, "na") {
 				x, err = strconv.ParseFloat(s, 64)
 				if err != nil || math.IsInf(x, 0) {
-					return nil, bad(line, c, "%q is not a number; write the value with a decimal point, or leave it empty when missing", s)
+					return nil, bad(line, c, "%q is not a number; write the value with a decimal point, or leave it empty when missing", ShortText(s))
 				}
 				role := csvRole[c]
 				switch {
@@ -153,7 +153,7 @@ func ReadObservationCSV(path string) ([]*Station, error) {
 		byStation[name] = append(byStation[name], row{StampOf(Standard, tt), line, vals})
 	}
 	if len(order) == 0 {
-		return nil, fmt.Errorf("ingest: %s: no data rows after the header", path)
+		return nil, fmt.Errorf("ingest: %s: no data rows after the header", TermText(path))
 	}
 	var out []*Station
 	for _, name := range order {
@@ -167,7 +167,7 @@ func ReadObservationCSV(path string) ([]*Station, error) {
 		}
 		for i, rw := range rows {
 			if i > 0 && rw.t == rows[i-1].t {
-				return nil, bad(rw.line, "time", "station %q has the time %s twice (also on line %d); remove the duplicate row", name, DateOf(Standard, rw.t), rows[i-1].line)
+				return nil, bad(rw.line, "time", "station %q has the time %s twice (also on line %d); remove the duplicate row", ShortText(name), DateOf(Standard, rw.t), rows[i-1].line)
 			}
 			st.Times = append(st.Times, rw.t)
 			for _, r := range roles {
@@ -191,17 +191,17 @@ func parseISOTime(s string) (Date, error) {
 		if t, err := time.Parse(l, s); err == nil {
 			t = t.UTC()
 			if t.Nanosecond() != 0 {
-				return Date{}, fmt.Errorf("time %q has a fraction of a second; give whole seconds", s)
+				return Date{}, fmt.Errorf("time %q has a fraction of a second; give whole seconds", ShortText(s))
 			}
 			return Date{t.Year(), int(t.Month()), t.Day(), t.Hour(), t.Minute(), t.Second()}, nil
 		}
 	}
 	for _, l := range []string{"2006-01-02T15:04:05", "2006-01-02 15:04:05", "2006-01-02T15:04", "2006-01-02 15:04", "2006-01-02"} {
 		if _, err := time.Parse(l, s); err == nil {
-			return Date{}, fmt.Errorf("time %q has no zone; write it in ISO 8601 with a zone, e.g. %sZ for UTC or with an offset such as +01:00", s, strings.Replace(s, " ", "T", 1))
+			return Date{}, fmt.Errorf("time %q has no zone; write it in ISO 8601 with a zone, e.g. %sZ for UTC or with an offset such as +01:00", ShortText(s), TermText(strings.Replace(s, " ", "T", 1)))
 		}
 	}
-	return Date{}, fmt.Errorf("%q is not an ISO 8601 time with a zone (e.g. 2031-01-01T00:00:00Z)", s)
+	return Date{}, fmt.Errorf("%q is not an ISO 8601 time with a zone (e.g. 2031-01-01T00:00:00Z)", ShortText(s))
 }
 
 // readCSVComments keeps the file's leading "# key: value" comment lines as

@@ -30,9 +30,9 @@ type scan struct {
 
 func errf(path, v, format string, a ...any) error {
 	if v == "" {
-		return fmt.Errorf("ingest: %s: %s", path, fmt.Sprintf(format, a...))
+		return fmt.Errorf("ingest: %s: %s", TermText(path), fmt.Sprintf(format, a...))
 	}
-	return fmt.Errorf("ingest: %s: variable %q: %s", path, v, fmt.Sprintf(format, a...))
+	return fmt.Errorf("ingest: %s: variable %q: %s", TermText(path), ShortText(v), fmt.Sprintf(format, a...))
 }
 
 // scanFile reads the metadata, the time axis and the grid of one file, and

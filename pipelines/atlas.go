@@ -14,6 +14,7 @@ import (
 	"swellgrid/export/raster"
 	atlasreport "swellgrid/export/report"
 	"swellgrid/export/rundir"
+	"swellgrid/ingest"
 )
 
 // Products says which of the products made from a finished run's tables to
@@ -35,11 +36,11 @@ func checkSites(sites []SiteSpec) error {
 			return fmt.Errorf("spec: %s.name is empty; give every [[site]] a name", key)
 		}
 		if seen[st.Name] {
-			return fmt.Errorf("spec: %s.name = %q appears twice", key, st.Name)
+			return fmt.Errorf("spec: %s.name = %q appears twice", key, ingest.ShortText(st.Name))
 		}
 		seen[st.Name] = true
 		if !(st.Lat >= -90 && st.Lat <= 90) || math.IsNaN(st.Lon) || math.IsInf(st.Lon, 0) {
-			return fmt.Errorf("spec: %s (%s): lon = %v, lat = %v is not a position (degrees east, degrees north)", key, st.Name, st.Lon, st.Lat)
+			return fmt.Errorf("spec: %s (%q): lon = %v, lat = %v is not a position (degrees east, degrees north)", key, ingest.ShortText(st.Name), st.Lon, st.Lat)
 		}
 	}
 	return nil

@@ -158,7 +158,7 @@ func GuidedHelp(err error) string {
 	w := tabwriter.NewWriter(&sb, 0, 0, 2, ' ', 0)
 	fmt.Fprintf(w, "  name\tdimensions\tunits\tlong_name\tstandard_name\n")
 	for _, v := range nr.Vars {
-		fmt.Fprintf(w, "  %s\t(%s)\t%s\t%s\t%s\n", v.Name, strings.Join(v.Dims, ", "), dash(v.Units), dash(v.LongName), dash(v.StandardName))
+		fmt.Fprintf(w, "  %s\t(%s)\t%s\t%s\t%s\n", ingest.TermText(v.Name), strings.Join(termAll(v.Dims), ", "), dash(v.Units), dash(v.LongName), dash(v.StandardName))
 	}
 	w.Flush()
 	guess := ingest.Guess(nr.Vars)
@@ -216,11 +216,22 @@ func GuidedHelp(err error) string {
 	return sb.String()
 }
 
+// dash is an attribute's text for the terminal (ingest.TermText, cut to a
+// short prefix), or "-" when it is empty.
 func dash(s string) string {
 	if s == "" {
 		return "-"
 	}
-	return s
+	return ingest.TermText(ingest.ShortText(s))
+}
+
+// termAll is every text of ts for the terminal (ingest.TermText).
+func termAll(ts []string) []string {
+	out := make([]string, len(ts))
+	for i, t := range ts {
+		out[i] = ingest.TermText(t)
+	}
+	return out
 }
 
 func report(cat *ingest.Catalog) *InspectReport {
@@ -296,10 +307,10 @@ func (r *InspectReport) WriteText(w io.Writer) error {
 				continue
 			}
 			if f.Static {
-				fmt.Fprintf(&sb, "    %s  static fields  %s\n", f.Path, f.Format)
+				fmt.Fprintf(&sb, "    %s  static fields  %s\n", ingest.TermText(f.Path), f.Format)
 				continue
 			}
-			fmt.Fprintf(&sb, "    %s  %s .. %s  %d steps  %s\n", f.Path, f.From, f.To, f.Steps, f.Format)
+			fmt.Fprintf(&sb, "    %s  %s .. %s  %d steps  %s\n", ingest.TermText(f.Path), f.From, f.To, f.Steps, f.Format)
 		}
 	}
 	fmt.Fprintf(&sb, "time         %s .. %s (%s calendar)\n", r.Start, r.End, r.Calendar)
@@ -328,7 +339,7 @@ func (r *InspectReport) WriteText(w io.Writer) error {
 			if !d.Identical {
 				same = "different values"
 			}
-			fmt.Fprintf(&sb, "  %s (%s) in %s and %s (%s; read from %s)\n", d.Time, strings.Join(d.Roles, ", "), ingest.PathText(d.Files[0]), ingest.PathText(d.Files[1]), same, ingest.PathText(d.Used))
+			fmt.Fprintf(&sb, "  %s (%s) in %s and %s (%s; read from %s)\n", d.Time, strings.Join(d.Roles, ", "), ingest.TermText(d.Files[0]), ingest.TermText(d.Files[1]), same, ingest.TermText(d.Used))
 		}
 	}
 	if len(r.RoleGaps) > 0 {
@@ -366,7 +377,7 @@ func (r *InspectReport) WriteText(w io.Writer) error {
 		if v.Packed {
 			pack = fmt.Sprintf("packed %s, scale %g, offset %g", v.Type, v.Scale, v.Offset)
 		}
-		fmt.Fprintf(&sb, "  %-11s %-10s units %q (x%g to SI), %s, dims %v\n", k, v.Name, v.Units, v.Factor, pack, v.Dims)
+		fmt.Fprintf(&sb, "  %-11s %-10s units %q (x%g to SI), %s, dims %v\n", k, ingest.TermText(v.Name), v.Units, v.Factor, pack, termAll(v.Dims))
 	}
 	if r.Spectral != nil {
 		sp := r.Spectral
@@ -384,13 +395,13 @@ func (r *InspectReport) WriteText(w io.Writer) error {
 		sb.WriteString("\n")
 	}
 	writeReadings(&sb, r.Readings)
-	fmt.Fprintf(&sb, "depth        %s", r.DepthSource)
+	fmt.Fprintf(&sb, "depth        %s", ingest.TermText(r.DepthSource))
 	if r.DepthRange[1] > 0 {
 		fmt.Fprintf(&sb, ", %.1f .. %.1f m", r.DepthRange[0], r.DepthRange[1])
 	}
 	sb.WriteString("\n")
 	for _, w := range r.Warnings {
-		fmt.Fprintf(&sb, "warning      %s\n", w)
+		fmt.Fprintf(&sb, "warning      %s\n", ingest.TermText(w))
 	}
 	_, err := io.WriteString(w, sb.String())
 	return err
@@ -403,7 +414,7 @@ func writeReadings(sb *strings.Builder, rs []ingest.Reading) {
 	label := "conventions "
 	for i := range rs {
 		if r := &rs[i]; r.Unsettled() {
-			fmt.Fprintf(sb, "AMBIGUOUS    %s; a run stops until the spec says which\n", r.Refusal())
+			fmt.Fprintf(sb, "AMBIGUOUS    %s; a run stops until the spec says which\n", ingest.TermText(r.Refusal()))
 		}
 	}
 	for _, r := range rs {
@@ -411,7 +422,7 @@ func writeReadings(sb *strings.Builder, rs []ingest.Reading) {
 		if r.Files > 1 {
 			files = fmt.Sprintf(" [%d files]", r.Files)
 		}
-		fmt.Fprintf(sb, "%s %s %q %s: %s (decided by %s)%s\n", label, r.Role, r.Variable, r.What, r.Reading, r.From, files)
+		fmt.Fprintf(sb, "%s %s %q %s: %s (decided by %s)%s\n", label, r.Role, r.Variable, ingest.TermText(r.What), ingest.TermText(r.Reading), ingest.TermText(r.From), files)
 		label = "            "
 	}
 }

@@ -55,7 +55,7 @@ and prints what it wrote and which files to open in GIS software.
 				}
 				printProducts(w, r.Result.OutDir, r.Result.Files)
 				for _, wr := range r.Result.Warnings {
-					fmt.Fprintf(w, "           warning: %s\n", wr)
+					fmt.Fprintf(w, "           warning: %s\n", termMessage(wr))
 				}
 			}
 			if v := res.Validation; v != nil {

@@ -50,7 +50,7 @@ Exit codes as for run.
 			fmt.Fprintf(os.Stdout, "merged %d shards: wrote %d files to %s (%d cells, %d steps) in %s\n", len(args), len(res.Files), res.OutDir, res.Cells, res.Steps, res.Wall.Round(time.Millisecond))
 			printProducts(os.Stdout, res.OutDir, res.Files)
 			for _, w := range res.Warnings {
-				fmt.Fprintln(os.Stdout, "warning:", w)
+				fmt.Fprintln(os.Stdout, "warning:", termMessage(w))
 			}
 			return nil
 		},

@@ -38,7 +38,7 @@ and every figure as PNG and SVG. The pages open from disk with no network.
 			fmt.Fprintf(os.Stdout, "wrote %d files to %s\n", len(files), args[0])
 			printProducts(os.Stdout, args[0], files)
 			for _, w := range warns {
-				fmt.Fprintln(os.Stdout, "warning:", w)
+				fmt.Fprintln(os.Stdout, "warning:", termMessage(w))
 			}
 			return nil
 		},

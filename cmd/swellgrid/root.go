@@ -8,9 +8,11 @@ import (
 	"os"
 	"path/filepath"
 	"runtime/debug"
+	"strings"
 
 	"github.com/spf13/cobra"
 
+	"swellgrid/ingest"
 	"swellgrid/pipelines"
 )
 
@@ -62,8 +64,20 @@ func mainCode(args []string, stderr io.Writer) (code int) {
 	if errors.As(err, &pe) && pe.Stack != nil {
 		return reportInternal(stderr, err, pe.Stack)
 	}
-	fmt.Fprintln(stderr, "swellgrid:", err)
+	fmt.Fprintln(stderr, "swellgrid:", termMessage(err.Error()))
 	return exitCode(err)
+}
+
+// termMessage is a message for the terminal: each of its lines through
+// ingest.TermText, so that no control character from an input (a file
+// name, an attribute, a station or site name) reaches stderr raw, whatever
+// the message quotes; the message's own line breaks are kept.
+func termMessage(msg string) string {
+	lines := strings.Split(msg, "\n")
+	for i, l := range lines {
+		lines[i] = ingest.TermText(l)
+	}
+	return strings.Join(lines, "\n")
 }
 
 // reportInternal writes an internal error's stack to crashLog in crashDir

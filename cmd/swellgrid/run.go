@@ -182,7 +182,7 @@ Exit codes: 0 ok, 1 internal error (stack saved in DIR/swellgrid-internal-error.
 			fmt.Fprintf(os.Stdout, "wrote %d files to %s (%d cells, %d steps) in %s\n", len(res.Files), res.OutDir, res.Cells, res.Steps, res.Wall.Round(time.Millisecond))
 			printProducts(os.Stdout, res.OutDir, res.Files)
 			for _, w := range res.Warnings {
-				fmt.Fprintln(os.Stdout, "warning:", w)
+				fmt.Fprintln(os.Stdout, "warning:", termMessage(w))
 			}
 			return nil
 		},

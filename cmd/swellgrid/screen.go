@@ -45,7 +45,7 @@ constraint file (named), 4 output directory locked or not writable.
 				fmt.Fprintln(os.Stdout, " ", f)
 			}
 			for _, w := range warns {
-				fmt.Fprintln(os.Stdout, "warning:", w)
+				fmt.Fprintln(os.Stdout, "warning:", termMessage(w))
 			}
 			return nil
 		},

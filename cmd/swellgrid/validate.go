@@ -62,15 +62,15 @@ Agreement with a few stations does not make the hindcast fit for design.
 				return interrupted(ctx, err, "validate interrupted; nothing was written, run it again")
 			}
 			for _, st := range res.Summary.Stations {
-				line := fmt.Sprintf("station %-16s cell %d (%s, %.1f km)  matched %d of %d times", st.Name, st.NearestCell, st.Location, st.DistanceKm, st.Matched, st.Measured)
+				line := fmt.Sprintf("station %-16s cell %d (%s, %.1f km)  matched %d of %d times", termMessage(st.Name), st.NearestCell, termMessage(st.Location), st.DistanceKm, st.Matched, st.Measured)
 				if h := st.Record["hm0"]; h != nil && h["bias"] != nil && h["scatter_index"] != nil {
 					line += fmt.Sprintf("  Hm0 bias %+.3f m, SI %.3f", *h["bias"], *h["scatter_index"])
 				}
 				fmt.Fprintln(os.Stdout, line)
 			}
-			fmt.Fprintf(os.Stdout, "wrote %v to %s\n", res.Files, res.OutDir)
+			fmt.Fprintln(os.Stdout, termMessage(fmt.Sprintf("wrote %v to %s", res.Files, res.OutDir)))
 			for _, w := range res.Warnings {
-				fmt.Fprintln(os.Stdout, "warning:", w)
+				fmt.Fprintln(os.Stdout, "warning:", termMessage(w))
 			}
 			return nil
 		},

@@ -11,6 +11,7 @@ import (
 	"runtime"
 	"strconv"
 	"sync"
+	"unicode/utf8"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
@@ -60,12 +61,48 @@ func save(dir string, f *figure) ([]string, error) {
 		return nil, fmt.Errorf("report: figure %s: %w", f.Name, err)
 	}
 	names := figureFiles(f)
-	for i, b := range [][]byte{pb.Bytes(), sb.Bytes()} {
+	for i, b := range [][]byte{pb.Bytes(), xmlChars(sb.Bytes())} {
 		if err := os.WriteFile(filepath.Join(dir, names[i]), b, 0o644); err != nil {
 			return nil, fmt.Errorf("report: %w", err)
 		}
 	}
 	return names, nil
+}
+
+// xmlChars drops from an SVG document every character XML 1.0 forbids
+// (XML 1.0 fifth edition, section 2.2, production Char: #x9 | #xA | #xD |
+// [#x20-#xD7FF] | [#xE000-#xFFFD] | [#x10000-#x10FFFF]); not even a
+// character reference may name the others, so a control character in a
+// station or site name (ESC, BEL) is left out of the figure's text, and a
+// byte that is not UTF-8 becomes U+FFFD. The SVG writer escapes markup
+// (<, &) itself but passes these through, which made the file ill-formed.
+func xmlChars(b []byte) []byte {
+	ok := utf8.Valid(b)
+	for _, r := range string(b) {
+		if !ok || !xmlChar(r) {
+			ok = false
+			break
+		}
+	}
+	if ok {
+		return b
+	}
+	out := make([]byte, 0, len(b))
+	for len(b) > 0 {
+		r, n := utf8.DecodeRune(b)
+		switch {
+		case r == utf8.RuneError && n <= 1:
+			out = utf8.AppendRune(out, utf8.RuneError)
+		case xmlChar(r):
+			out = append(out, b[:n]...)
+		}
+		b = b[n:]
+	}
+	return out
+}
+
+func xmlChar(r rune) bool {
+	return r == 0x9 || r == 0xA || r == 0xD || r >= 0x20 && r <= 0xD7FF || r >= 0xE000 && r <= 0xFFFD || r >= 0x10000 && r <= 0x10FFFF
 }
 
 // renderAll saves the figures into dir with at most workers goroutines (0:
