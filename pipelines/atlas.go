@@ -43,7 +43,11 @@ func checkSites(sites []SiteSpec) error {
 			return fmt.Errorf("spec: %s (%q): lon = %v, lat = %v is not a position (degrees east, degrees north)", key, ingest.ShortText(st.Name), st.Lon, st.Lat)
 		}
 	}
-	return nil
+	names := make([]string, len(sites))
+	for i, st := range sites {
+		names[i] = st.Name
+	}
+	return checkFileNames("site", names, func(i int) string { return fmt.Sprintf("spec: site[%d].name", i) }, atlasreport.SiteNameOverhead)
 }
 
 func buildProducts(out string, manifest []byte, p Products) ([]string, []string, error) {

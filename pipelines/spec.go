@@ -322,7 +322,7 @@ func (s *Spec) Validate() error {
 		n   int
 	}{{"statistics.percentiles", len(st.Percentiles)}, {"statistics.window_limits_m", len(st.WindowLimitsM)},
 		{"statistics.window_durations_h", len(st.WindowDurationsH)}, {"extremes.return_periods_y", len(s.Extremes.ReturnPeriodsY)},
-		{"device", len(s.Devices)}, {"contours.columns", len(s.Contours.Columns)}} {
+		{"device", len(s.Devices)}, {"contours.columns", len(s.Contours.Columns)}, {"design.return_periods_y", len(s.Design.ReturnPeriodsY)}} {
 		if err := withinLimit(l.key, l.n); err != nil {
 			return err
 		}
@@ -440,6 +440,9 @@ func (s *Spec) Validate() error {
 	}
 	if s.Output.Dir == "" {
 		return fmt.Errorf("spec: output.dir is empty; give --out or output.dir")
+	}
+	if strings.IndexByte(s.Output.Dir, 0) >= 0 {
+		return fmt.Errorf("spec: output.dir (or --out) %q contains a NUL byte, which no file name may hold; give another directory", ingest.ShortText(s.Output.Dir))
 	}
 	if err := s.Validation.check(); err != nil {
 		return err

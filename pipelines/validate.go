@@ -13,6 +13,7 @@ import (
 	"strings"
 
 	"swellgrid/export"
+	atlasreport "swellgrid/export/report"
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
 	"swellgrid/ingest"
@@ -173,6 +174,13 @@ func Validate(ctx context.Context, opt ValidateOptions) (*ValidateResult, error)
 	}
 	stations, err := ingest.ReadObservations(obsIn)
 	if err != nil {
+		return nil, inputErr(err)
+	}
+	stNames := make([]string, len(stations))
+	for i, st := range stations {
+		stNames[i] = st.Name
+	}
+	if err := checkFileNames("station", stNames, func(i int) string { return "validate: " + ingest.TermText(stations[i].Source) }, atlasreport.StationNameOverhead); err != nil {
 		return nil, inputErr(err)
 	}
 	cat, err := reopenCatalog(ctx, run, spec)

@@ -32,6 +32,19 @@ type Site struct {
 
 var monthNames = []string{"Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"}
 
+// Slug is the file-name form of a site or station name: lower-case ASCII
+// letters and digits, every other character an underscore, without leading
+// or trailing underscores. Two names with the same slug would share a page.
+func Slug(s string) string { return slug(s) }
+
+// The longest file names of a site's and a station's pages and figures
+// are the slug with these many bytes of prefix and suffix
+// ("site_<slug>_design_contours_hm0_te.svg", "validation_<slug>_scatter.png").
+const (
+	SiteNameOverhead    = len("site_") + len("_design_contours_hm0_te.svg")
+	StationNameOverhead = len("validation_") + len("_scatter.png")
+)
+
 func slug(s string) string {
 	var b strings.Builder
 	for _, r := range strings.ToLower(s) {
