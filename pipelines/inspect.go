@@ -216,13 +216,13 @@ func GuidedHelp(err error) string {
 	return sb.String()
 }
 
-// dash is an attribute's text for the terminal (ingest.TermText, cut to a
-// short prefix), or "-" when it is empty.
+// dash is an attribute's text for the terminal (ingest.TermText), or "-"
+// when it is empty.
 func dash(s string) string {
 	if s == "" {
 		return "-"
 	}
-	return ingest.TermText(ingest.ShortText(s))
+	return ingest.TermText(s)
 }
 
 // termAll is every text of ts for the terminal (ingest.TermText).
