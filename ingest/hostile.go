@@ -45,7 +45,7 @@ type FileError struct {
 }
 
 func (e *FileError) Error() string {
-	return TermText(ShortText(e.Path)) + ": " + e.Reason
+	return TermText(e.Path) + ": " + e.Reason // the whole path: it names the file to fix
 }
 
 func (e *FileError) Unwrap() error { return e.Err }
