@@ -19,29 +19,64 @@ func (c *Catalog) checkDuplicates(policy DuplicatePolicy) error {
 	}
 	defer ncThread()()
 	for i := range c.Duplicates {
-		d := &c.Duplicates[i]
-		for _, role := range d.Roles {
-			r := Role(role)
-			same, cell, va, vb, err := c.sameStep(r, d.a, d.b, d.stamp)
-			if err != nil {
-				return err
-			}
-			d.Identical = d.Identical && same
-			if same || policy != DuplicatesRefuse {
-				continue
-			}
-			fa, fb := &c.Files[d.a], &c.Files[d.b]
-			return fmt.Errorf("ingest: %s and %s both hold time %s for role %s (variable %q) with different values (cell %d: %v vs %v); remove the step from one file, or set input.duplicate_steps = \"first\" (use %s) or \"last\" (use %s) in the spec",
-				PathText(fa.Path), PathText(fb.Path), d.Time, r, fa.vars[r].Name, cell, va, vb, PathText(fa.Path), PathText(fb.Path))
+		if err := c.checkDuplicate(&c.Duplicates[i], policy); err != nil {
+			return err
 		}
 	}
 	return nil
 }
 
-// sameStep reads time t of role r from files a and b and compares them;
-// on a difference it gives the first cell that differs and both values
-// (its first value, for a spectrum).
-func (c *Catalog) sameStep(r Role, a, b int, t Stamp) (same bool, cell int, va, vb float64, err error) {
+// checkDuplicate compares one shared time, every role of it, opening each of
+// the two files once.
+func (c *Catalog) checkDuplicate(d *Duplicate, policy DuplicatePolicy) error {
+	fa, err := c.openChecked(d.a)
+	if err != nil {
+		return err
+	}
+	defer closeLocked(fa)
+	fb, err := c.openChecked(d.b)
+	if err != nil {
+		return err
+	}
+	defer closeLocked(fb)
+	for _, role := range d.Roles {
+		r := Role(role)
+		same, cell, va, vb, err := c.sameStep(r, d, fa, fb)
+		if err != nil {
+			return err
+		}
+		d.Identical = d.Identical && same
+		if same || policy != DuplicatesRefuse {
+			continue
+		}
+		pa, pb := &c.Files[d.a], &c.Files[d.b]
+		return fmt.Errorf("ingest: %s and %s both hold time %s for role %s (variable %q) with different values (cell %d: %v vs %v); remove the step from one file, or set input.duplicate_steps = \"first\" (use %s) or \"last\" (use %s) in the spec",
+			PathText(pa.Path), PathText(pb.Path), d.Time, r, pa.vars[r].Name, cell, va, vb, PathText(pa.Path), PathText(pb.Path))
+	}
+	return nil
+}
+
+// openChecked opens file fi after checking that it is the file the catalog
+// saw (Catalog.Unchanged).
+func (c *Catalog) openChecked(fi int) (*ncFile, error) {
+	ncMu.Lock()
+	defer ncMu.Unlock()
+	if err := c.Unchanged(fi); err != nil {
+		return nil, err
+	}
+	return openNC(c.Files[fi].Path)
+}
+
+func closeLocked(f *ncFile) {
+	ncMu.Lock()
+	f.close()
+	ncMu.Unlock()
+}
+
+// sameStep reads the shared time of d for role r from the open files fa
+// (d.a) and fb (d.b) and compares them; on a difference it gives the first
+// cell that differs and both values (its first value, for a spectrum).
+func (c *Catalog) sameStep(r Role, d *Duplicate, fa, fb *ncFile) (same bool, cell int, va, vb float64, err error) {
 	per := 1
 	if (r == Spectrum2D || r == Spectrum1D) && c.Spectral != nil {
 		per = len(c.Spectral.FreqHz) * max(1, len(c.Spectral.DirDeg))
@@ -50,11 +85,11 @@ func (c *Catalog) sameStep(r Role, a, b int, t Stamp) (same bool, cell int, va, 
 	chunk := max(1, min(n, (1<<22)/per)) // cells per comparison: at most 4 Mi values a side
 	for c0 := 0; c0 < n; c0 += chunk {
 		c1 := min(n, c0+chunk)
-		xa, err := c.stepValues(a, r, t, c0, c1, per)
+		xa, err := c.stepValues(d.a, fa, r, d.stamp, c0, c1, per)
 		if err != nil {
 			return false, 0, 0, 0, err
 		}
-		xb, err := c.stepValues(b, r, t, c0, c1, per)
+		xb, err := c.stepValues(d.b, fb, r, d.stamp, c0, c1, per)
 		if err != nil {
 			return false, 0, 0, 0, err
 		}
@@ -67,29 +102,14 @@ func (c *Catalog) sameStep(r Role, a, b int, t Stamp) (same bool, cell int, va, 
 	return true, 0, 0, 0, nil
 }
 
-// stepValues reads the values of role r at time t in file fi for cells
-// c0..c1-1, unpacked, in canonical order (per values a cell).
-func (c *Catalog) stepValues(fi int, r Role, t Stamp, c0, c1, per int) ([]float64, error) {
+// stepValues reads the values of role r at time t from f, the open file fi,
+// for cells c0..c1-1, unpacked, in canonical order (per values a cell).
+func (c *Catalog) stepValues(fi int, f *ncFile, r Role, t Stamp, c0, c1, per int) ([]float64, error) {
 	fe := &c.Files[fi]
 	k, ok := slices.BinarySearch(fe.times, t)
 	if !ok {
 		return nil, fmt.Errorf("ingest: internal error: %s holds no time %s", fe.Path, c.Date(t))
 	}
-	ncMu.Lock()
-	if err := c.Unchanged(fi); err != nil {
-		ncMu.Unlock()
-		return nil, err
-	}
-	f, err := openNC(fe.Path)
-	ncMu.Unlock()
-	if err != nil {
-		return nil, err
-	}
-	defer func() {
-		ncMu.Lock()
-		f.close()
-		ncMu.Unlock()
-	}()
 	vi := fe.vars[r]
 	v := f.find(vi.Name)
 	if v == nil {
