@@ -42,6 +42,9 @@ func (e *engine) seaStateHours() float64 {
 // (the earliest of equals), nil when none has a constant step or the record
 // has one step.
 func (e *engine) longestSegment() *ingest.Segment {
+	if e.cat.Steps < 2 {
+		return nil
+	}
 	var best *ingest.Segment
 	for i := range e.cat.Segments {
 		sg := &e.cat.Segments[i]
@@ -49,16 +52,15 @@ func (e *engine) longestSegment() *ingest.Segment {
 			best = sg
 		}
 	}
-	if e.cat.Steps < 2 {
-		return nil
-	}
 	return best
 }
 
 // seaStateNote says which sea-state duration the design contours use when
 // the record's step changes ("" when it does not, or the spec sets it).
 func (e *engine) seaStateNote() string {
-	if len(e.cat.Segments) < 2 && (len(e.cat.Segments) == 0 || e.cat.Segments[0].StepHours > 0) || e.spec.Design.SeaStateH > 0 {
+	segs := e.cat.Segments
+	constant := len(segs) == 0 || len(segs) == 1 && segs[0].StepHours > 0
+	if constant || e.spec.Design.SeaStateH > 0 {
 		return ""
 	}
 	return fmt.Sprintf("the time step changes (%d segments): the design contours take a sea state of %g h, the step of the segment covering the most time; set design.sea_state_h to choose another", len(e.cat.Segments), e.seaStateHours())
