@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"swellgrid/export"
+	"swellgrid/pipelines/fault"
 
 	"swellgrid/export/gpkg"
 	"swellgrid/export/raster"
@@ -88,7 +89,7 @@ func buildProducts(out string, manifest []byte, p Products) ([]string, []string,
 // atlas.gpkg when asked. It returns the files written, relative to dir.
 func Rebuild(dir string, p Products) ([]string, []string, error) {
 	if _, err := os.Stat(filepath.Join(dir, "manifest.json")); err != nil {
-		return nil, nil, inputErr(fmt.Errorf("report: %s is not a finished run directory (no manifest.json); run `swellgrid run` first: %w", dir, err))
+		return nil, nil, fault.Input(fmt.Errorf("report: %s is not a finished run directory (no manifest.json); run `swellgrid run` first: %w", dir, err))
 	}
 	unlock, err := lockDir(dir)
 	if err != nil {
@@ -96,11 +97,11 @@ func Rebuild(dir string, p Products) ([]string, []string, error) {
 	}
 	defer unlock()
 	if _, err := rundir.Open(dir, nil); err != nil {
-		return nil, nil, inputErr(err)
+		return nil, nil, fault.Input(err)
 	}
 	files, warns, err := buildProducts(dir, nil, p)
 	if err != nil {
-		return nil, nil, outputError(err)
+		return nil, nil, fault.Output(err)
 	}
 	return files, warns, nil
 }

@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"swellgrid/pipelines/fault"
 	"testing"
 )
 
@@ -76,7 +77,7 @@ func TestMergeUnderBudgetSameBytes(t *testing.T) {
 	// output directory is made.
 	tiny := filepath.Join(tmp, "tiny")
 	_, err = Merge(context.Background(), tiny, dirs, Options{Version: "test", MemoryLimit: "16MiB"})
-	if err == nil || KindOf(err).ExitCode() != 2 || !strings.Contains(err.Error(), "--memory-limit") {
+	if err == nil || fault.KindOf(err).ExitCode() != 2 || !strings.Contains(err.Error(), "--memory-limit") {
 		t.Errorf("merge at 16MiB: %v; want a refusal naming --memory-limit", err)
 	}
 	if _, err := os.Stat(tiny); !errors.Is(err, os.ErrNotExist) {
@@ -93,7 +94,7 @@ func TestBudgetRefusedAtStart(t *testing.T) {
 	s := clSpec(in, out)
 	s.Run.MemoryLimit = "16MiB"
 	_, err := Run(context.Background(), s, Options{Version: "test"})
-	if err == nil || KindOf(err).ExitCode() != 2 {
+	if err == nil || fault.KindOf(err).ExitCode() != 2 {
 		t.Fatalf("16MiB: %v; want an input error (exit 2)", err)
 	}
 	msg := err.Error()

@@ -14,6 +14,7 @@ import (
 
 	"swellgrid/export"
 	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
 )
 
 // stateDir is the run directory's folder for checkpoints and the lock.
@@ -139,26 +140,26 @@ func openSealed(path string) (*bufio.Reader, *os.File, error) {
 	n := st.Size() - sealSize
 	if n < int64(len(ckMagic)) {
 		f.Close()
-		return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("truncated: %d bytes", st.Size())})
+		return nil, nil, fault.Input(&damagedState{path, fmt.Sprintf("truncated: %d bytes", st.Size())})
 	}
 	m := make([]byte, len(ckMagic))
 	if _, err := io.ReadFull(f, m); err != nil || !bytes.Equal(m, ckMagic) {
 		f.Close()
 		if bytes.HasPrefix(m, []byte("SWGCKPT")) {
-			return nil, nil, inputErr(&damagedState{path, "not written by this version of swellgrid, or its first bytes are altered"})
+			return nil, nil, fault.Input(&damagedState{path, "not written by this version of swellgrid, or its first bytes are altered"})
 		}
-		return nil, nil, inputErr(&damagedState{path, "not a swellgrid state file"})
+		return nil, nil, fault.Input(&damagedState{path, "not a swellgrid state file"})
 	}
 	sum := sha256.New()
 	sum.Write(m)
 	if _, err := io.CopyN(sum, f, n-int64(len(m))); err != nil {
 		f.Close()
-		return nil, nil, inputErr(&damagedState{path, fmt.Sprintf("cannot be read: %v", err)})
+		return nil, nil, fault.Input(&damagedState{path, fmt.Sprintf("cannot be read: %v", err)})
 	}
 	seal := make([]byte, sealSize)
 	if _, err := io.ReadFull(f, seal); err != nil || !bytes.Equal(seal, sum.Sum(nil)) {
 		f.Close()
-		return nil, nil, inputErr(&damagedState{path, "its SHA-256 does not match its content: truncated or altered"})
+		return nil, nil, fault.Input(&damagedState{path, "its SHA-256 does not match its content: truncated or altered"})
 	}
 	if _, err := f.Seek(int64(len(m)), io.SeekStart); err != nil {
 		f.Close()
@@ -198,12 +199,12 @@ func readCkHeader(path string) (*ckHeader, *bufio.Reader, *os.File, error) {
 	hb, err := readBytes(r)
 	if err != nil {
 		f.Close()
-		return nil, nil, nil, inputErr(&damagedState{path, fmt.Sprintf("header: %v", err)})
+		return nil, nil, nil, fault.Input(&damagedState{path, fmt.Sprintf("header: %v", err)})
 	}
 	var h ckHeader
 	if err := json.Unmarshal(hb, &h); err != nil {
 		f.Close()
-		return nil, nil, nil, inputErr(&damagedState{path, fmt.Sprintf("header: %v", err)})
+		return nil, nil, nil, fault.Input(&damagedState{path, fmt.Sprintf("header: %v", err)})
 	}
 	return &h, r, f, nil
 }
@@ -258,7 +259,7 @@ func openStates(path string, want ckHeader, trusted int, newCell func(id int) *c
 	}
 	if why := h.mismatch(want, trusted); why != "" {
 		f.Close()
-		return nil, inputErr(&resumeRefused{path: path, why: why})
+		return nil, fault.Input(&resumeRefused{path: path, why: why})
 	}
 	return &stateReader{path: path, h: h, r: r, f: f, newCell: newCell}, nil
 }
@@ -276,36 +277,36 @@ func (s *stateReader) next(n int) ([]*cell, error) {
 		id := h.C0 + s.at + i
 		flag, err := r.ReadByte()
 		if err != nil {
-			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
+			return nil, fault.Input(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 		}
 		if flag == 0 {
 			continue
 		}
 		if flag != 1 {
-			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: flag byte %d", id, flag)})
+			return nil, fault.Input(&damagedState{path, fmt.Sprintf("cell %d: flag byte %d", id, flag)})
 		}
 		c := s.newCell(id)
 		a, err := readBytes(r)
 		if err != nil {
-			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
+			return nil, fault.Input(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 		}
 		b, err := readBytes(r)
 		if err != nil {
-			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
+			return nil, fault.Input(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 		}
 		if err := c.clim.UnmarshalBinary(a); err != nil {
-			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
+			return nil, fault.Input(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 		}
 		if err := c.col.UnmarshalBinary(b); err != nil {
-			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
+			return nil, fault.Input(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 		}
 		sp, err := readBytes(r)
 		if err != nil {
-			return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
+			return nil, fault.Input(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 		}
 		if c.spec != nil {
 			if err := c.spec.UnmarshalBinary(sp); err != nil {
-				return nil, inputErr(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
+				return nil, fault.Input(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
 			}
 		}
 		cells[i] = c
@@ -320,7 +321,7 @@ func (s *stateReader) end() error {
 		return fmt.Errorf("internal error: %s: %d of %d cells read", s.path, s.at, s.h.C1-s.h.C0)
 	}
 	if _, err := s.r.ReadByte(); err != io.EOF {
-		return inputErr(&damagedState{s.path, "data beyond the last cell"})
+		return fault.Input(&damagedState{s.path, "data beyond the last cell"})
 	}
 	return nil
 }

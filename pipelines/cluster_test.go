@@ -17,6 +17,7 @@ import (
 	"testing"
 
 	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
 	"swellgrid/pipelines/synth"
 )
 
@@ -316,7 +317,7 @@ func TestUpdateRefusals(t *testing.T) {
 		if err == nil {
 			t.Fatalf("%s: the update was accepted", what)
 		}
-		if !IsUpdateRefused(err) || KindOf(err) != BadInput {
+		if !IsUpdateRefused(err) || fault.KindOf(err) != fault.BadInput {
 			t.Errorf("%s: got %T %v, want a refused update marked as bad input (exit code 2)", what, err, err)
 		}
 		for _, f := range frag {

@@ -13,6 +13,7 @@ import (
 
 	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
+	"swellgrid/pipelines/fault"
 )
 
 // readRef decodes a reference JSON file into v.
@@ -305,13 +306,13 @@ func TestDeviceYieldAgainstNumpy(t *testing.T) {
 	s3 := testSpec(t, "testdata/devices/bulk_no_tp.nc", t.TempDir())
 	s3.Devices = []DeviceSpec{{Name: "tpbin", PowerMatrix: matrix, Period: "te"}}
 	_, err := Run(context.Background(), s3, Options{})
-	if err == nil || KindOf(err) != BadInput || !strings.Contains(err.Error(), `header of its power matrix`) {
+	if err == nil || fault.KindOf(err) != fault.BadInput || !strings.Contains(err.Error(), `header of its power matrix`) {
 		t.Errorf("period te against a tp header: %v", err)
 	}
 	// rated power below the matrix maximum
 	s4 := testSpec(t, "testdata/devices/bulk_no_tp.nc", t.TempDir())
 	s4.Devices = []DeviceSpec{{Name: "tpbin", PowerMatrix: matrix, RatedKW: 600}}
-	if _, err := Run(context.Background(), s4, Options{}); err == nil || KindOf(err) != BadInput || !strings.Contains(err.Error(), "below the largest entry") {
+	if _, err := Run(context.Background(), s4, Options{}); err == nil || fault.KindOf(err) != fault.BadInput || !strings.Contains(err.Error(), "below the largest entry") {
 		t.Errorf("rated_kw 600 below the 661 kW maximum: %v", err)
 	}
 }

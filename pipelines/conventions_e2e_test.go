@@ -11,6 +11,7 @@ import (
 
 	"swellgrid/ingest"
 	"swellgrid/internal/parquetread"
+	"swellgrid/pipelines/fault"
 )
 
 // conventionsRef is testdata/conventions/reference.json: for every file of
@@ -154,7 +155,7 @@ func TestSpectralConventionsAgainstNumpy(t *testing.T) {
 				if err == nil {
 					t.Fatalf("read with exit 0; want a refusal with %q", c.refused)
 				}
-				if code := ExitCode(err); code != 2 {
+				if code := fault.ExitCode(err); code != 2 {
 					t.Errorf("exit code %d, want 2: %v", code, err)
 				}
 				for _, frag := range c.refused {
@@ -253,8 +254,8 @@ func TestSpectralConventionSpecContradicts(t *testing.T) {
 	s := conventionsSpec(t, "testdata/conventions/dir_to.nc")
 	s.Input.DirectionConvention = "from"
 	_, err := Run(context.Background(), s, Options{Version: "test"})
-	if err == nil || ExitCode(err) != 2 {
-		t.Fatalf("a spec saying \"from\" against standard_name sea_surface_wave_to_direction: %v (exit %d), want a refusal (exit 2)", err, ExitCode(err))
+	if err == nil || fault.ExitCode(err) != 2 {
+		t.Fatalf("a spec saying \"from\" against standard_name sea_surface_wave_to_direction: %v (exit %d), want a refusal (exit 2)", err, fault.ExitCode(err))
 	}
 	for _, frag := range []string{`input.direction_convention = "nautical_from"`, `standard_name "sea_surface_wave_to_direction"`, "contradicts", "input.direction_convention_force"} {
 		if !strings.Contains(err.Error(), frag) {
@@ -268,12 +269,12 @@ func TestSpectralConventionSpecContradicts(t *testing.T) {
 	}
 	s = conventionsSpec(t, "testdata/conventions/dir_to.nc")
 	s.Input.DirectionConvention = "upwards"
-	if _, err := Run(context.Background(), s, Options{Version: "test"}); err == nil || ExitCode(err) != 2 || !strings.Contains(err.Error(), "input.direction_convention") {
+	if _, err := Run(context.Background(), s, Options{Version: "test"}); err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "input.direction_convention") {
 		t.Errorf("direction_convention = \"upwards\": %v, want a refusal naming the key", err)
 	}
 	s = conventionsSpec(t, "testdata/conventions/dir_to.nc")
 	s.Units["spectrum2d_encoding"] = "log2"
-	if _, err := Run(context.Background(), s, Options{Version: "test"}); err == nil || ExitCode(err) != 2 || !strings.Contains(err.Error(), "units.spectrum2d_encoding") {
+	if _, err := Run(context.Background(), s, Options{Version: "test"}); err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "units.spectrum2d_encoding") {
 		t.Errorf("units.spectrum2d_encoding = \"log2\": %v, want a refusal naming the key", err)
 	}
 }

@@ -20,6 +20,7 @@ import (
 	"swellgrid/ingest"
 	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
+	"swellgrid/pipelines/fault"
 )
 
 // The date-line checks (issue 31, longitude wrap): a Pacific grid across
@@ -72,7 +73,7 @@ func dlRun(t *testing.T) map[string]string {
 	})
 	for f, err := range dlRuns.errs {
 		if err != nil {
-			t.Fatalf("run of spec_%s.toml: %v (exit code %d, want 0)", f, err, ExitCode(err))
+			t.Fatalf("run of spec_%s.toml: %v (exit code %d, want 0)", f, err, fault.ExitCode(err))
 		}
 	}
 	return dlRuns.out

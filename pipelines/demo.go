@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"time"
 
+	"swellgrid/pipelines/fault"
 	"swellgrid/pipelines/synth"
 )
 
@@ -80,7 +81,7 @@ func Demo(ctx context.Context, dir string, opt Options) (*DemoResult, error) {
 	t0 := time.Now()
 	hind := filepath.Join(dir, "hindcast")
 	if err := os.MkdirAll(hind, 0o755); err != nil {
-		return nil, outputError(fmt.Errorf("demo: %w", err))
+		return nil, fault.Output(fmt.Errorf("demo: %w", err))
 	}
 	var files []string
 	for _, sc := range []synth.Scenario{synth.Demo(), synth.DemoSpectra(), synth.DemoMesh()} {
@@ -95,7 +96,7 @@ func Demo(ctx context.Context, dir string, opt Options) (*DemoResult, error) {
 	}
 	for name, b := range map[string][]byte{"demo_device.csv": demoDeviceCSV, "demo_reserve.geojson": demoReserve, "demo_ports.geojson": demoPorts} {
 		if err := os.WriteFile(filepath.Join(hind, name), b, 0o644); err != nil {
-			return nil, outputError(fmt.Errorf("demo: %w", err))
+			return nil, fault.Output(fmt.Errorf("demo: %w", err))
 		}
 	}
 	res := &DemoResult{Dir: dir, Hindcast: files}

@@ -9,6 +9,7 @@ import (
 	"os"
 
 	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
 	"swellgrid/stats/seastate"
 )
 
@@ -52,7 +53,7 @@ func writeDemoStation(ctx context.Context, runDir, path string, lon, lat float64
 	first = max(first, 0)
 	f, err := os.Create(path)
 	if err != nil {
-		return outputError(fmt.Errorf("demo: %w", err))
+		return fault.Output(fmt.Errorf("demo: %w", err))
 	}
 	defer f.Close()
 	w := bufio.NewWriter(f)
@@ -76,7 +77,7 @@ func writeDemoStation(ctx context.Context, runDir, path string, lon, lat float64
 			demoStationName, lon, lat, field(h, 0.05), field(te, 1), field(dir, 0))
 	}
 	if err := w.Flush(); err != nil {
-		return outputError(fmt.Errorf("demo: %s: %w", path, err))
+		return fault.Output(fmt.Errorf("demo: %s: %w", path, err))
 	}
 	return nil
 }

@@ -10,6 +10,7 @@ import (
 	"sort"
 	"strings"
 	"swellgrid/internal/parquetread"
+	"swellgrid/pipelines/fault"
 	"testing"
 )
 
@@ -256,7 +257,7 @@ func TestLockedOutputDir(t *testing.T) {
 	os.MkdirAll(filepath.Join(out, stateDir), 0o755)
 	os.WriteFile(filepath.Join(out, stateDir, "lock"), []byte("1\n"), 0o644) // pid 1 is always alive
 	_, err := Run(context.Background(), testSpec(t, "testdata/points_bulk.nc", out), Options{})
-	if err == nil || KindOf(err) != OutputUnusable || !strings.Contains(err.Error(), "pid 1") {
+	if err == nil || fault.KindOf(err) != fault.OutputUnusable || !strings.Contains(err.Error(), "pid 1") {
 		t.Fatalf("locked dir: %v", err)
 	}
 }

@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"swellgrid/internal/corpus"
+	"swellgrid/pipelines/fault"
 )
 
 // rewriteLastFloat overwrites the last 4 bytes of a classic NetCDF file (the
@@ -81,7 +82,7 @@ func TestResumeComparesContent(t *testing.T) {
 	if err == nil || !strings.Contains(err.Error(), "changed content") || !strings.Contains(err.Error(), "cx_2001-01.nc") || !strings.Contains(err.Error(), "--restart") {
 		t.Fatalf("resume over a same-size, same-mtime replacement: %v; want it refused for changed content", err)
 	}
-	if c := ExitCode(err); c != 2 {
+	if c := fault.ExitCode(err); c != 2 {
 		t.Errorf("refusal has exit code %d, want 2 (bad input)", c)
 	}
 }

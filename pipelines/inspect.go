@@ -13,6 +13,7 @@ import (
 	"text/tabwriter"
 
 	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
 )
 
 // InspectReport is what `swellgrid inspect` shows of a hindcast.
@@ -69,13 +70,13 @@ func Inspect(inputs []string, opt ingest.Options) (*InspectReport, error) {
 // them.
 func InspectSpec(spec *Spec, inputs []string) (*InspectReport, error) {
 	if err := spec.checkRoles(); err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	if len(inputs) == 0 {
 		inputs = spec.Input.Paths
 	}
 	if len(inputs) == 0 {
-		return nil, inputErr(fmt.Errorf("inspect: no input: give paths or a spec with input.paths"))
+		return nil, fault.Input(fmt.Errorf("inspect: no input: give paths or a spec with input.paths"))
 	}
 	return Inspect(inputs, spec.ingestOptions())
 }

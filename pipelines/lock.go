@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"swellgrid/pipelines/fault"
 	"syscall"
 	"time"
 )
@@ -141,7 +142,7 @@ func (li *lockInfo) holder(out string) (why string, live bool) {
 func lockDir(out string) (func(), error) {
 	dir := filepath.Join(out, stateDir)
 	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return nil, outputError(fmt.Errorf("output directory %s: %w", out, err))
+		return nil, fault.Output(fmt.Errorf("output directory %s: %w", out, err))
 	}
 	path := lockPath(out)
 	me := myLock()
@@ -155,23 +156,23 @@ func lockDir(out string) (func(), error) {
 			}
 			if werr != nil {
 				os.Remove(path)
-				return nil, outputError(fmt.Errorf("output directory %s: cannot write the lock %s: %w", out, path, werr))
+				return nil, fault.Output(fmt.Errorf("output directory %s: cannot write the lock %s: %w", out, path, werr))
 			}
 			return func() { os.Remove(path) }, nil
 		}
 		if !os.IsExist(err) {
-			return nil, outputError(fmt.Errorf("output directory %s: cannot create the lock: %w", out, err))
+			return nil, fault.Output(fmt.Errorf("output directory %s: cannot create the lock: %w", out, err))
 		}
 		li, err := readLock(path)
 		if err != nil {
-			return nil, outputError(fmt.Errorf("output directory %s: %w; if no run uses the directory, break the lock with `swellgrid unlock %s`", out, err, out))
+			return nil, fault.Output(fmt.Errorf("output directory %s: %w; if no run uses the directory, break the lock with `swellgrid unlock %s`", out, err, out))
 		}
 		if why, _ := li.holder(out); why != "" {
-			return nil, outputError(errors.New(why))
+			return nil, fault.Output(errors.New(why))
 		}
 		os.Remove(path) // stale: its process is gone
 	}
-	return nil, outputError(fmt.Errorf("output directory %s: cannot take the lock %s", out, path))
+	return nil, fault.Output(fmt.Errorf("output directory %s: cannot take the lock %s", out, path))
 }
 
 // Unlock breaks the lock of the run directory dir and says whose lock it
@@ -182,20 +183,20 @@ func Unlock(dir string) (string, error) {
 	path := lockPath(dir)
 	li, err := readLock(path)
 	if errors.Is(err, os.ErrNotExist) {
-		return "", inputErr(fmt.Errorf("%s is not locked (no %s)", dir, path))
+		return "", fault.Input(fmt.Errorf("%s is not locked (no %s)", dir, path))
 	}
 	what := "an unreadable lock"
 	if err == nil {
 		if why, live := li.holder(dir); live && why != "" {
 			h, _ := hostName()
 			if li.Host == h {
-				return "", outputError(fmt.Errorf("%s is locked by a live swellgrid run (%s); stop that run instead of breaking its lock", dir, li))
+				return "", fault.Output(fmt.Errorf("%s is locked by a live swellgrid run (%s); stop that run instead of breaking its lock", dir, li))
 			}
 		}
 		what = "the lock of " + li.String()
 	}
 	if err := os.Remove(path); err != nil {
-		return "", outputError(fmt.Errorf("removing the lock %s: %w", path, err))
+		return "", fault.Output(fmt.Errorf("removing the lock %s: %w", path, err))
 	}
 	return fmt.Sprintf("removed %s (%s)", path, what), nil
 }

@@ -13,6 +13,7 @@ import (
 
 	"swellgrid/export"
 	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
 )
 
 // Merge combines the shard directories written by runs with Options.Shard
@@ -46,14 +47,14 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 		r, err := openStates(pt.src, pt.want, len(j.ids), j.eng.newCell)
 		if err != nil {
 			if IsResumeRefused(err) || errors.Is(err, os.ErrNotExist) {
-				return nil, inputErr(fmt.Errorf("merge: shard %d/%d in %s: %w", pt.m.Shard, pt.m.Shards, pt.dir, err))
+				return nil, fault.Input(fmt.Errorf("merge: shard %d/%d in %s: %w", pt.m.Shard, pt.m.Shards, pt.dir, err))
 			}
 			return nil, err
 		}
 		j.seen[pi] = ingest.TallyOf(r.h.Seen) // the shard's counts: CheckTally sees every cell
 		if next := r.h.NextFile; next != len(j.cat.Files) {
 			r.close()
-			return nil, inputErr(fmt.Errorf("merge: shard %d/%d in %s has read %d of %d files; rerun it to finish", pt.m.Shard, pt.m.Shards, pt.dir, next, len(j.cat.Files)))
+			return nil, fault.Input(fmt.Errorf("merge: shard %d/%d in %s has read %d of %d files; rerun it to finish", pt.m.Shard, pt.m.Shards, pt.dir, next, len(j.cat.Files)))
 		}
 		j.mark("load_s", ts)
 		err = j.fitPass(ctx, p[0], p[1]-p[0], func(off, k int) ([]*cell, error) {
@@ -69,7 +70,7 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 			return nil, err
 		}
 		if err := copyFile(pt.src, ckPath(j.out, p[0], p[1])); err != nil {
-			return nil, outputError(fmt.Errorf("merge: saving the states in %s: %w", j.out, err))
+			return nil, fault.Output(fmt.Errorf("merge: saving the states in %s: %w", j.out, err))
 		}
 		if pt.lastOfShard {
 			j.log.Info("merged", "dir", pt.dir, "shard", fmt.Sprintf("%d/%d", pt.m.Shard, pt.m.Shards), "cells", pt.m.C1-pt.m.C0)
@@ -78,10 +79,10 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 	// Every shard's counts are in: a role variable without data in any
 	// cell is refused before a table is put in place.
 	if err := j.checkData(); err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	if err := removeStaleCheckpoints(j.out, j.passes); err != nil {
-		return nil, outputError(err)
+		return nil, fault.Output(err)
 	}
 	if ctx.Err() != nil {
 		return nil, ctx.Err()
@@ -110,16 +111,16 @@ type mergePart struct {
 func validateMerge(ctx context.Context, out string, shardDirs []string, opt Options) (*job, []mergePart, error) {
 	t0 := time.Now()
 	if len(shardDirs) == 0 {
-		return nil, nil, inputErr(errors.New("merge: no shard directories given"))
+		return nil, nil, fault.Input(errors.New("merge: no shard directories given"))
 	}
 	ms := make([]*ShardManifest, len(shardDirs))
 	for i, d := range shardDirs {
 		if absPath(d) == absPath(out) {
-			return nil, nil, inputErr(fmt.Errorf("merge: the output directory %s is one of the shards; choose another --out", out))
+			return nil, nil, fault.Input(fmt.Errorf("merge: the output directory %s is one of the shards; choose another --out", out))
 		}
 		m, err := readShardManifest(d)
 		if err != nil {
-			return nil, nil, inputErr(err)
+			return nil, nil, fault.Input(err)
 		}
 		ms[i] = m
 	}
@@ -129,7 +130,7 @@ func validateMerge(ctx context.Context, out string, shardDirs []string, opt Opti
 	}
 	sort.SliceStable(order, func(a, b int) bool { return ms[order[a]].Shard < ms[order[b]].Shard })
 	if why := shardsBelongTogether(shardDirs, ms, order); why != "" {
-		return nil, nil, inputErr(errors.New("merge: " + why))
+		return nil, nil, fault.Input(errors.New("merge: " + why))
 	}
 	first := ms[order[0]]
 	spec := *first.Spec
@@ -144,7 +145,7 @@ func validateMerge(ctx context.Context, out string, shardDirs []string, opt Opti
 		spec.Run.MemoryLimit = opt.MemoryLimit
 	}
 	if err := spec.Validate(); err != nil {
-		return nil, nil, inputErr(fmt.Errorf("merge: the shards' spec: %w", err))
+		return nil, nil, fault.Input(fmt.Errorf("merge: the shards' spec: %w", err))
 	}
 	if fp := spec.Fingerprint(); fp != first.Fingerprint {
 		// The shards' state files record what the fingerprint hashed.
@@ -153,28 +154,28 @@ func validateMerge(ctx context.Context, out string, shardDirs []string, opt Opti
 			if h, _, f, err := readCkHeader(ckPath(shardDirs[order[0]], p[0], p[1])); err == nil {
 				f.Close()
 				if len(h.Spec) > 0 {
-					return nil, nil, inputErr(fmt.Errorf("merge: the spec or a file it names changed since the shards ran (%s); rerun the shards", fingerprintChanges(h.Spec, &spec)))
+					return nil, nil, fault.Input(fmt.Errorf("merge: the spec or a file it names changed since the shards ran (%s); rerun the shards", fingerprintChanges(h.Spec, &spec)))
 				}
 			}
 		}
-		return nil, nil, inputErr(fmt.Errorf("merge: the spec recorded in %s does not reproduce its fingerprint (software version %s); rerun the shards with this version", filepath.Join(shardDirs[order[0]], shardFile), first.Version))
+		return nil, nil, fault.Input(fmt.Errorf("merge: the spec recorded in %s does not reproduce its fingerprint (software version %s); rerun the shards with this version", filepath.Join(shardDirs[order[0]], shardFile), first.Version))
 	}
 	ts := time.Now()
 	cat, err := openCatalog(ctx, &spec)
 	if err != nil {
-		return nil, nil, inputErr(fmt.Errorf("merge: the shards' inputs: %w", err))
+		return nil, nil, fault.Input(fmt.Errorf("merge: the shards' inputs: %w", err))
 	}
 	if len(cat.Files) != len(first.Inputs) {
-		return nil, nil, inputErr(fmt.Errorf("merge: the shards read %d input files, the inputs %v hold %d now; merge before adding files, then use run --update", len(first.Inputs), spec.Input.Paths, len(cat.Files)))
+		return nil, nil, fault.Input(fmt.Errorf("merge: the shards read %d input files, the inputs %v hold %d now; merge before adding files, then use run --update", len(first.Inputs), spec.Input.Paths, len(cat.Files)))
 	}
 	for i, f := range cat.Files {
 		in := first.Inputs[i]
 		if absPath(f.Path) != in.Path || f.Size != in.Size {
-			return nil, nil, inputErr(fmt.Errorf("merge: input %s changed since the shards ran (the shards read %s, %d bytes); rerun the shards", f.Path, in.Path, in.Size))
+			return nil, nil, fault.Input(fmt.Errorf("merge: input %s changed since the shards ran (the shards read %s, %d bytes); rerun the shards", f.Path, in.Path, in.Size))
 		}
 	}
 	if first.GridCells != cat.Grid.NCells() {
-		return nil, nil, inputErr(fmt.Errorf("merge: the shards were run on a grid of %d cells, the inputs have %d", first.GridCells, cat.Grid.NCells()))
+		return nil, nil, fault.Input(fmt.Errorf("merge: the shards were run on a grid of %d cells, the inputs have %d", first.GridCells, cat.Grid.NCells()))
 	}
 	j, err := newJob(&spec, opt, cat, t0)
 	if err != nil {
@@ -182,7 +183,7 @@ func validateMerge(ctx context.Context, out string, shardDirs []string, opt Opti
 	}
 	j.mark("catalog_s", ts)
 	if j.mem, err = j.eng.planMergeBudget(); err != nil {
-		return nil, nil, inputErr(err)
+		return nil, nil, fault.Input(err)
 	}
 	j.fitChunk = j.mem.fitChunk
 	var parts []mergePart
@@ -195,7 +196,7 @@ func validateMerge(ctx context.Context, out string, shardDirs []string, opt Opti
 			// manifest above; here their modification times are compared
 			// with those the shard saw (paths may be spelled differently).
 			if why := sameFileTimes(pt.src, j.ids); why != "" {
-				return nil, nil, inputErr(fmt.Errorf("merge: shard %d/%d in %s: %s; rerun the shards", m.Shard, m.Shards, dir, why))
+				return nil, nil, fault.Input(fmt.Errorf("merge: shard %d/%d in %s: %s; rerun the shards", m.Shard, m.Shards, dir, why))
 			}
 			parts = append(parts, pt)
 			j.passes = append(j.passes, p)

@@ -10,6 +10,7 @@ import (
 
 	"swellgrid/ingest"
 	"swellgrid/internal/corpus"
+	"swellgrid/pipelines/fault"
 )
 
 // noDataInput builds the corpus case whose February file holds only fill
@@ -32,8 +33,8 @@ func noDataInput(t *testing.T) string {
 func wantNoData(t *testing.T, what string, err error) {
 	t.Helper()
 	var nd *ingest.NoDataError
-	if !errors.As(err, &nd) || KindOf(err) != BadInput {
-		t.Fatalf("%s: got %v (kind %v), want a bad-input refusal of a variable without data", what, err, KindOf(err))
+	if !errors.As(err, &nd) || fault.KindOf(err) != fault.BadInput {
+		t.Fatalf("%s: got %v (kind %v), want a bad-input refusal of a variable without data", what, err, fault.KindOf(err))
 	}
 	for _, w := range []string{"cx_2001-02.nc", `"hm0"`, "every value is a fill value"} {
 		if !strings.Contains(err.Error(), w) {

@@ -24,6 +24,7 @@ import (
 
 	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
+	"swellgrid/pipelines/fault"
 )
 
 // needTool finds an outside program (testtool.Need: a skip, or a failure under CI).
@@ -713,7 +714,7 @@ func TestReportRebuild(t *testing.T) {
 	if n := len(cellsOf(t, run)["cell_id"]); pages != n {
 		t.Errorf("%d point pages, the demo has %d spectral points", pages, n)
 	}
-	if _, _, err := Rebuild(t.TempDir(), Products{Report: true}); err == nil || KindOf(err) != BadInput {
+	if _, _, err := Rebuild(t.TempDir(), Products{Report: true}); err == nil || fault.KindOf(err) != fault.BadInput {
 		t.Errorf("rebuild of an empty directory: %v", err)
 	}
 }

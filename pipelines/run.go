@@ -16,6 +16,7 @@ import (
 	"time"
 
 	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
 	"swellgrid/stats/climate"
 	"swellgrid/stats/extremes"
 )
@@ -279,10 +280,10 @@ func Run(ctx context.Context, spec *Spec, opt Options) (res *Result, err error) 
 			if ctx.Err() != nil {
 				return nil, ctx.Err()
 			}
-			return nil, inputErr(err)
+			return nil, fault.Input(err)
 		}
 		if why := inputContentChanges(j.update.prior, j.cat, s); why != "" {
-			return nil, inputErr(&updateRefused{j.out, why})
+			return nil, fault.Input(&updateRefused{j.out, why})
 		}
 		trusted = j.update.earlier
 		j.log.Info("update", "earlier_files", j.update.earlier, "new_files", len(j.cat.Files)-j.update.earlier)
@@ -297,10 +298,10 @@ func Run(ctx context.Context, spec *Spec, opt Options) (res *Result, err error) 
 		if ctx.Err() != nil {
 			return nil, ctx.Err()
 		}
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	if err := removeStaleCheckpoints(j.out, j.passes); err != nil {
-		return nil, outputError(err)
+		return nil, fault.Output(err)
 	}
 	if j.opt.Shard != nil {
 		return writeShard(j.out, spec, j.cat, *j.opt.Shard, j.lo, j.hi, j.passes, s, opt.Version, j.t0)
@@ -333,15 +334,15 @@ func (e *engine) finishAll(ctx context.Context, c0 int, cells []*cell, acfg extr
 	res := make([]*cellResult, len(cells))
 	next := make(chan int, 64)
 	var wg sync.WaitGroup
-	var failed failure
+	var failed fault.First
 	for w := 0; w < workers; w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
 			for i := range next {
-				if cells[i] != nil && !failed.set() {
-					failed.record(catchPanic(func() error {
-						panicHook("fit")
+				if cells[i] != nil && !failed.Set() {
+					failed.Record(fault.Catch(func() error {
+						fault.Hook("fit")
 						res[i] = e.finish(c0+i, cells[i], acfg)
 						return nil
 					}))
@@ -360,7 +361,7 @@ func (e *engine) finishAll(ctx context.Context, c0 int, cells []*cell, acfg extr
 	}
 	close(next)
 	wg.Wait()
-	if err := failed.get(); err != nil {
+	if err := failed.Get(); err != nil {
 		return nil, err
 	}
 	if err := ctx.Err(); err != nil {

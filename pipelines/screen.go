@@ -19,6 +19,7 @@ import (
 	"swellgrid/export"
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
+	"swellgrid/pipelines/fault"
 )
 
 // ScreeningFile is the summary written beside the manifest.
@@ -204,15 +205,15 @@ func screenRun(r *rundir.Run, s *Spec) (*screenResult, error) {
 			cr, _ := parseCriterion(t) // checked by validateScreening
 			col := r.Cells.Col(cr.column)
 			if col == nil {
-				return nil, inputErr(fmt.Errorf("screening: scenario %s: criterion %q: %q is not a column of %s; see the README's column list (cells.parquet)", c.Name, t, cr.column, filepath.Join(r.Dir, "cells.parquet")))
+				return nil, fault.Input(fmt.Errorf("screening: scenario %s: criterion %q: %q is not a column of %s; see the README's column list (cells.parquet)", c.Name, t, cr.column, filepath.Join(r.Dir, "cells.parquet")))
 			}
 			if !col.Numeric() {
-				return nil, inputErr(fmt.Errorf("screening: scenario %s: criterion %q: column %q is not numeric", c.Name, t, cr.column))
+				return nil, fault.Input(fmt.Errorf("screening: scenario %s: criterion %q: column %q is not numeric", c.Name, t, cr.column))
 			}
 			crits[k] = append(crits[k], cr)
 		}
 		if c.Device != "" && r.Cells.Col("aep_"+c.Device+"_mwh") == nil {
-			return nil, inputErr(fmt.Errorf("screening: scenario %s: device %q: the run has no column aep_%s_mwh; name a [[device]] of the run", c.Name, c.Device, c.Device))
+			return nil, fault.Input(fmt.Errorf("screening: scenario %s: device %q: the run has no column aep_%s_mwh; name a [[device]] of the run", c.Name, c.Device, c.Device))
 		}
 	}
 	power := r.Cells.Col("power_mean_kw_m")
@@ -431,7 +432,7 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 	mpath := filepath.Join(dir, "manifest.json")
 	raw, err := os.ReadFile(mpath)
 	if err != nil {
-		return nil, nil, inputErr(fmt.Errorf("screen: %s is not a finished run directory (no manifest.json); run `swellgrid run` first: %w", dir, err))
+		return nil, nil, fault.Input(fmt.Errorf("screen: %s is not a finished run directory (no manifest.json); run `swellgrid run` first: %w", dir, err))
 	}
 	spec, err := LoadScreeningSpec(specPath)
 	if err != nil {
@@ -444,7 +445,7 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 	defer unlock()
 	r, err := rundir.Open(dir, raw)
 	if err != nil {
-		return nil, nil, inputErr(err)
+		return nil, nil, fault.Input(err)
 	}
 	res, err := screenRun(r, spec)
 	if err != nil {
@@ -452,7 +453,7 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 	}
 	files, err := writeScreening(dir, res)
 	if err != nil {
-		return nil, nil, outputError(err)
+		return nil, nil, fault.Output(err)
 	}
 	// The manifest is edited key by key (order and every other value kept
 	// as the run wrote them).
@@ -461,7 +462,7 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 		Outputs []string `json:"outputs"`
 	}
 	if err := json.Unmarshal(raw, &top); err != nil {
-		return nil, nil, inputErr(fmt.Errorf("screen: %s: %w", mpath, err))
+		return nil, nil, fault.Input(fmt.Errorf("screen: %s: %w", mpath, err))
 	}
 	for _, o := range top.Outputs {
 		if o != "manifest.json" && !(strings.HasPrefix(o, export.ContourDir+"/screening_") || o == "screening.parquet" || o == ScreeningFile) {
@@ -481,17 +482,17 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 	}
 	for _, e := range edits {
 		if m, err = setJSONKey(m, e.path, e.v); err != nil {
-			return nil, nil, inputErr(fmt.Errorf("screen: %s: %w", mpath, err))
+			return nil, nil, fault.Input(fmt.Errorf("screen: %s: %w", mpath, err))
 		}
 	}
 	_, hasReport := os.Stat(filepath.Join(dir, "report", "index.html"))
 	_, hasGpkg := os.Stat(filepath.Join(dir, "atlas.gpkg"))
 	if err := export.WriteManifest(mpath, json.RawMessage(m)); err != nil {
-		return nil, nil, outputError(err)
+		return nil, nil, fault.Output(err)
 	}
 	pf, warns, err := buildProducts(dir, nil, Products{Report: hasReport == nil, GeoPackage: hasGpkg == nil})
 	if err != nil {
-		return nil, nil, outputError(err)
+		return nil, nil, fault.Output(err)
 	}
 	return append(files, pf...), warns, nil
 }

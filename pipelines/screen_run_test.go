@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"swellgrid/internal/testtool"
+	"swellgrid/pipelines/fault"
 )
 
 // TestScreeningInRun: a run whose spec has a [screening] section writes the
@@ -86,7 +87,7 @@ distance = [{layer = "pt", min_km = 1}]
 	}
 	os.WriteFile(spec, []byte("[[screening.layer]]\nname = \"u\"\nfile = \"utm.gpkg\"\n[[screening.scenario]]\nname = \"s\"\ndistance = [{layer = \"u\", max_km = 5}]\n"), 0o644)
 	_, _, err = Rescreen(out, spec)
-	if err == nil || ExitCode(err) != 2 || !strings.Contains(err.Error(), utm) || !strings.Contains(err.Error(), "EPSG:32631") {
+	if err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), utm) || !strings.Contains(err.Error(), "EPSG:32631") {
 		t.Errorf("a UTM GeoPackage: want exit 2 naming %s and its CRS, got %v", utm, err)
 	}
 }

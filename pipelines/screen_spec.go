@@ -22,6 +22,7 @@ import (
 	_ "modernc.org/sqlite"
 
 	"swellgrid/grid"
+	"swellgrid/pipelines/fault"
 )
 
 // ScreeningSpec is the [screening] section: layers, then scenarios using
@@ -478,10 +479,10 @@ func LoadScreeningSpec(path string) (*Spec, error) {
 		return nil, err
 	}
 	if s.Screening == nil {
-		return nil, inputErr(fmt.Errorf("spec %s: no [screening] section; add [[screening.scenario]] entries (see the README's screening section)", path))
+		return nil, fault.Input(fmt.Errorf("spec %s: no [screening] section; add [[screening.scenario]] entries (see the README's screening section)", path))
 	}
 	if err := s.validateScreening(nil); err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	return s, nil
 }

@@ -10,6 +10,7 @@ import (
 
 	"swellgrid/export"
 	"swellgrid/internal/parquetread"
+	"swellgrid/pipelines/fault"
 )
 
 // smallScreenRun writes a finished run directory by hand: the 5 x 3 regular
@@ -219,8 +220,8 @@ func TestScreeningBadLayers(t *testing.T) {
 		spec := filepath.Join(dir, "bad.toml")
 		os.WriteFile(spec, []byte("[[screening.layer]]\nname = \"bad\"\nfile = \""+c.name+"\"\n[[screening.scenario]]\nname = \"s\"\nexclude = [\"bad\"]\n"), 0o644)
 		_, _, err := Rescreen(dir, spec)
-		if err == nil || ExitCode(err) != 2 || !strings.Contains(err.Error(), p) || !strings.Contains(err.Error(), c.want) {
-			t.Errorf("%s: want exit 2 naming %s and %q, got %d: %v", c.name, p, c.want, ExitCode(err), err)
+		if err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), p) || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: want exit 2 naming %s and %q, got %d: %v", c.name, p, c.want, fault.ExitCode(err), err)
 		}
 	}
 	// a layer of lines cannot exclude; a criterion on an unknown column is refused
@@ -232,7 +233,7 @@ func TestScreeningBadLayers(t *testing.T) {
 	} {
 		spec := filepath.Join(dir, "bad.toml")
 		os.WriteFile(spec, []byte(body), 0o644)
-		if _, _, err := Rescreen(dir, spec); err == nil || ExitCode(err) != 2 || !strings.Contains(err.Error(), want) {
+		if _, _, err := Rescreen(dir, spec); err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), want) {
 			t.Errorf("want exit 2 with %q, got %v", want, err)
 		}
 	}

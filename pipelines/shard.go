@@ -15,6 +15,7 @@ import (
 	"swellgrid/export"
 	"swellgrid/grid"
 	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
 )
 
 // Shard selects share Index of Count (1-based) of a run's cells. Shares are
@@ -101,7 +102,7 @@ func writeShard(out string, spec *Spec, cat *ingest.Catalog, sh Shard, c0, c1 in
 		_, err := w.Write(append(b, '\n'))
 		return err
 	}); err != nil {
-		return nil, outputError(fmt.Errorf("writing %s: %w", path, err))
+		return nil, fault.Output(fmt.Errorf("writing %s: %w", path, err))
 	}
 	return &Result{OutDir: out, Files: []string{shardFile}, Cells: c1 - c0, Steps: cat.Steps, Warnings: cat.Warnings, Wall: time.Since(t0)}, nil
 }

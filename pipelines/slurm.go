@@ -11,6 +11,7 @@ import (
 	"time"
 
 	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
 )
 
 // SlurmJobs describes a sharded run on a Slurm cluster: an array job with one
@@ -41,20 +42,20 @@ type SlurmScripts struct {
 // both, checks that they fit. It writes nothing.
 func PlanSlurm(j SlurmJobs) (*SlurmPlan, *Spec, error) {
 	if j.SpecFile == "" {
-		return nil, nil, inputErr(fmt.Errorf("cluster slurm: give --spec FILE: the array tasks and the merge job all read the same spec"))
+		return nil, nil, fault.Input(fmt.Errorf("cluster slurm: give --spec FILE: the array tasks and the merge job all read the same spec"))
 	}
 	spec, err := LoadSpec(absPath(j.SpecFile))
 	if err != nil {
-		return nil, nil, inputErr(err)
+		return nil, nil, fault.Input(err)
 	}
 	if j.Out != "" {
 		spec.Output.Dir = j.Out
 	}
 	if err := spec.Validate(); err != nil {
-		return nil, nil, inputErr(err)
+		return nil, nil, fault.Input(err)
 	}
 	if j.Shards < 0 {
-		return nil, nil, inputErr(fmt.Errorf("cluster slurm: --shards %d: give at least 1 shard", j.Shards))
+		return nil, nil, fault.Input(fmt.Errorf("cluster slurm: --shards %d: give at least 1 shard", j.Shards))
 	}
 	var mem int64
 	if j.Mem != "" {
@@ -64,12 +65,12 @@ func PlanSlurm(j SlurmJobs) (*SlurmPlan, *Spec, error) {
 			m += "M"
 		}
 		if mem, err = ParseSize(m); err != nil {
-			return nil, nil, inputErr(fmt.Errorf("cluster slurm: --mem %q: %w", j.Mem, err))
+			return nil, nil, fault.Input(fmt.Errorf("cluster slurm: --mem %q: %w", j.Mem, err))
 		}
 	}
 	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
 	if err != nil {
-		return nil, nil, inputErr(err)
+		return nil, nil, fault.Input(err)
 	}
 	job, err := newJob(spec, Options{}, cat, time.Now())
 	if err != nil {
@@ -77,10 +78,10 @@ func PlanSlurm(j SlurmJobs) (*SlurmPlan, *Spec, error) {
 	}
 	p, err := planSlurm(job.slurmModel(), mem, j.Shards)
 	if err != nil {
-		return nil, nil, inputErr(err)
+		return nil, nil, fault.Input(err)
 	}
 	if _, _, err := (Shard{Index: 1, Count: p.Shards}).Cells(cat.Grid); err != nil {
-		return nil, nil, inputErr(fmt.Errorf("cluster slurm: %d shards: %w", p.Shards, err))
+		return nil, nil, fault.Input(fmt.Errorf("cluster slurm: %d shards: %w", p.Shards, err))
 	}
 	return p, spec, nil
 }
@@ -114,10 +115,10 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 	sdir = absPath(sdir)
 	shardRoot := filepath.Join(out, stateDir, "shards")
 	if err := os.MkdirAll(sdir, 0o755); err != nil {
-		return nil, outputError(fmt.Errorf("cluster slurm: script directory %s: %w", sdir, err))
+		return nil, fault.Output(fmt.Errorf("cluster slurm: script directory %s: %w", sdir, err))
 	}
 	if err := os.MkdirAll(shardRoot, 0o755); err != nil {
-		return nil, outputError(fmt.Errorf("cluster slurm: shard directory %s: %w", shardRoot, err))
+		return nil, fault.Output(fmt.Errorf("cluster slurm: shard directory %s: %w", shardRoot, err))
 	}
 	cwd, _ := os.Getwd()
 	res := &SlurmScripts{ArrayScript: filepath.Join(sdir, "shards.sbatch"), MergeScript: filepath.Join(sdir, "merge.sbatch"), Out: out, Plan: plan}
@@ -159,7 +160,7 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 		fmt.Sprintf("exec %s merge --out %s --workers \"${SLURM_CPUS_PER_TASK:-%d}\"%s %s\n", shQuote(bin), shQuote(out), cpus, memFlag, strings.Join(dirs, " "))
 	for _, f := range [][2]string{{res.ArrayScript, array}, {res.MergeScript, merge}} {
 		if err := os.WriteFile(f[0], []byte(f[1]), 0o755); err != nil {
-			return nil, outputError(fmt.Errorf("cluster slurm: %w", err))
+			return nil, fault.Output(fmt.Errorf("cluster slurm: %w", err))
 		}
 	}
 	return res, nil

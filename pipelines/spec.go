@@ -19,6 +19,7 @@ import (
 	"github.com/BurntSushi/toml"
 
 	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
 	"swellgrid/stats/climate"
 )
 
@@ -225,7 +226,7 @@ func DefaultSpec() *Spec {
 func LoadSpec(path string) (*Spec, error) {
 	raw, err := os.ReadFile(path)
 	if err != nil {
-		return nil, inputErr(fmt.Errorf("spec: %w", err))
+		return nil, fault.Input(fmt.Errorf("spec: %w", err))
 	}
 	return ParseSpec(raw, path)
 }
@@ -236,14 +237,14 @@ func ParseSpec(data []byte, path string) (*Spec, error) {
 	s := DefaultSpec()
 	md, err := toml.Decode(string(data), s)
 	if err != nil {
-		return nil, inputErr(fmt.Errorf("spec %s: %w", path, err))
+		return nil, fault.Input(fmt.Errorf("spec %s: %w", path, err))
 	}
 	if und := md.Undecoded(); len(und) > 0 {
 		keys := make([]string, len(und))
 		for i, k := range und {
 			keys[i] = k.String()
 		}
-		return nil, inputErr(fmt.Errorf("spec %s: unknown key %s; see the README's run spec section for the keys", path, strings.Join(keys, ", ")))
+		return nil, fault.Input(fmt.Errorf("spec %s: unknown key %s; see the README's run spec section for the keys", path, strings.Join(keys, ", ")))
 	}
 	s.dir = filepath.Dir(path)
 	if md.IsDefined("output", "dir") {

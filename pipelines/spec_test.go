@@ -5,6 +5,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"swellgrid/pipelines/fault"
 	"testing"
 )
 
@@ -89,7 +90,7 @@ func TestSpecErrorCreatesNoOutput(t *testing.T) {
 	os.WriteFile(filepath.Join(dir, "m.csv"), []byte(testMatrix), 0o644)
 	s.Devices = []DeviceSpec{{Name: "Wec", PowerMatrix: filepath.Join(dir, "m.csv")}}
 	_, err := Run(context.Background(), s, Options{})
-	if ExitCode(err) != 2 || !strings.Contains(err.Error(), "device[0].name") {
+	if fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "device[0].name") {
 		t.Fatalf("capital device name: %v", err)
 	}
 	if _, err := os.Stat(out); !os.IsNotExist(err) {
@@ -97,11 +98,11 @@ func TestSpecErrorCreatesNoOutput(t *testing.T) {
 	}
 	s = testSpec(t, "testdata/points_bulk.nc", out)
 	_, err = Run(context.Background(), s, Options{Update: true, Restart: true})
-	if ExitCode(err) != 2 {
+	if fault.ExitCode(err) != 2 {
 		t.Fatalf("--update with --restart: %v", err)
 	}
 	_, err = Run(context.Background(), s, Options{Update: true})
-	if ExitCode(err) != 2 || !strings.Contains(err.Error(), "no finished run") {
+	if fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "no finished run") {
 		t.Fatalf("--update of a directory with no run: %v", err)
 	}
 	if _, err := os.Stat(out); !os.IsNotExist(err) {
@@ -172,7 +173,7 @@ func TestFingerprintFollowsNamedFileContent(t *testing.T) {
 	s = testSpec(t, "testdata/points_bulk.nc", out)
 	s.Devices = []DeviceSpec{{Name: "wec", PowerMatrix: a}}
 	_, err := Run(context.Background(), s, Options{})
-	if ExitCode(err) != 2 || !strings.Contains(err.Error(), "device[0].power_matrix") || !strings.Contains(err.Error(), a) || !strings.Contains(err.Error(), "--restart") {
+	if fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "device[0].power_matrix") || !strings.Contains(err.Error(), a) || !strings.Contains(err.Error(), "--restart") {
 		t.Fatalf("resume after the matrix changed: %v", err)
 	}
 
@@ -189,7 +190,7 @@ func TestFingerprintFollowsNamedFileContent(t *testing.T) {
 	}
 	os.WriteFile(a, []byte(testMatrix), 0o644)
 	_, err = Merge(context.Background(), filepath.Join(root, "merged"), dirs, Options{})
-	if ExitCode(err) != 2 || !strings.Contains(err.Error(), "the content of device[0].power_matrix") {
+	if fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "the content of device[0].power_matrix") {
 		t.Fatalf("merge after the matrix changed: %v", err)
 	}
 }

@@ -13,6 +13,7 @@ import (
 
 	"swellgrid/export"
 	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
 	"swellgrid/stats/extremes"
 )
 
@@ -83,7 +84,7 @@ func openCatalog(ctx context.Context, spec *Spec) (*ingest.Catalog, error) {
 		if ctx.Err() != nil {
 			return nil, ctx.Err()
 		}
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	return cat, nil
 }
@@ -96,29 +97,29 @@ func newJob(spec *Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, e
 		log = slog.New(slog.NewTextHandler(devNull{}, nil))
 	}
 	if cat.DepthSource == "none" {
-		return nil, inputErr(fmt.Errorf("no water depth: the files hold no variable with standard_name sea_floor_depth_below_sea_surface; set depth.source in the spec (\"constant\", \"bathymetry\" or \"deep-water\"), or give --depth METRES or --deep-water"))
+		return nil, fault.Input(fmt.Errorf("no water depth: the files hold no variable with standard_name sea_floor_depth_below_sea_surface; set depth.source in the spec (\"constant\", \"bathymetry\" or \"deep-water\"), or give --depth METRES or --deep-water"))
 	}
 	// A spectral density whose units admit two readings (per Hz or per
 	// rad/s) is read only once the spec says which (inspect shows it).
 	for i := range cat.Readings {
 		if r := &cat.Readings[i]; r.Unsettled() {
-			return nil, inputErr(errors.New(r.Refusal()))
+			return nil, fault.Input(errors.New(r.Refusal()))
 		}
 	}
 	ccfg, err := spec.climateConfig(cat)
 	if err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	eng, err := newEngine(cat, spec, ccfg)
 	if err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	if err := eng.checkContourColumns(); err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	ids, err := inputIDs(cat)
 	if err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	workers := spec.Run.Workers
 	if workers == 0 {
@@ -133,13 +134,13 @@ func newJob(spec *Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, e
 func validateRun(ctx context.Context, spec *Spec, opt Options) (*job, error) {
 	t0 := time.Now()
 	if err := spec.Validate(); err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	if err := spec.checkRoles(); err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	if opt.Update && opt.Restart {
-		return nil, inputErr(errors.New("--update and --restart exclude each other: an update continues the saved states, a restart discards them"))
+		return nil, fault.Input(errors.New("--update and --restart exclude each other: an update continues the saved states, a restart discards them"))
 	}
 	ts := time.Now()
 	cat, err := openCatalog(ctx, spec)
@@ -153,18 +154,18 @@ func validateRun(ctx context.Context, spec *Spec, opt Options) (*job, error) {
 	j.mark("catalog_s", ts)
 	if opt.Shard != nil {
 		if j.lo, j.hi, err = opt.Shard.Cells(cat.Grid); err != nil {
-			return nil, inputErr(err)
+			return nil, fault.Input(err)
 		}
 	}
 	if j.passes, err = j.plan(j.lo, j.hi); err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	if opt.Update {
 		// Everything but the earlier files' contents (checked once their
 		// checksums are known, before any state is read).
 		up, err := checkUpdate(j.out, spec, cat, opt.Shard)
 		if err != nil {
-			return nil, inputErr(err)
+			return nil, fault.Input(err)
 		}
 		j.update, j.passes = up, up.passes
 		if up.shard != nil {
@@ -178,7 +179,7 @@ func validateRun(ctx context.Context, spec *Spec, opt Options) (*job, error) {
 // and removes the partial files of a killed run (which no live run owns).
 func (j *job) lock() (func(), error) {
 	if err := os.MkdirAll(j.out, 0o755); err != nil {
-		return nil, outputError(fmt.Errorf("output directory %s: %w", j.out, err))
+		return nil, fault.Output(fmt.Errorf("output directory %s: %w", j.out, err))
 	}
 	unlock, err := lockDir(j.out)
 	if err != nil {
@@ -201,13 +202,13 @@ func (j *job) restoreOwn(trusted int) func(pi int, p [2]int) ([]*cell, int, erro
 					// Resume compares the content of the files read so far.
 					f.Close()
 					if want.Inputs, err = j.sums.withSums(j.ids, hd.NextFile); err != nil {
-						return nil, 0, inputErr(err)
+						return nil, 0, fault.Input(err)
 					}
 				}
 				cells, h, err := loadState(path, want, trusted, j.eng.newCell)
 				if err != nil {
 					if IsResumeRefused(err) {
-						return nil, 0, inputErr(err)
+						return nil, 0, fault.Input(err)
 					}
 					return nil, 0, err
 				}
@@ -274,7 +275,7 @@ func (j *job) stream(ctx context.Context, pi int, p [2]int, cells []*cell, from 
 			}
 		}
 		if err := saveCheckpoint(path, h, cells); err != nil {
-			return outputError(fmt.Errorf("checkpoint %s: %w", path, err))
+			return fault.Output(fmt.Errorf("checkpoint %s: %w", path, err))
 		}
 		hold(ctx, "stream")
 		return nil
@@ -287,7 +288,7 @@ func (j *job) stream(ctx context.Context, pi int, p [2]int, cells []*cell, from 
 		if ctx.Err() != nil {
 			return ctx.Err()
 		}
-		if isOutput(err) {
+		if fault.IsOutput(err) {
 			return err
 		}
 		var nd *ingest.NoDataError
@@ -296,7 +297,7 @@ func (j *job) stream(ctx context.Context, pi int, p [2]int, cells []*cell, from 
 			// states of this run (saved before the refused file) stay.
 			os.Remove(path)
 		}
-		return inputErr(err)
+		return fault.Input(err)
 	}
 	return nil
 }
@@ -347,7 +348,7 @@ func (j *job) runPasses(ctx context.Context, restore func(pi int, p [2]int) ([]*
 	// Passes read in other processes (resumed, shards merged) are counted
 	// from their states' headers: refuse before any table is put in place.
 	if err := j.checkData(); err != nil {
-		return inputErr(err)
+		return fault.Input(err)
 	}
 	return nil
 }
@@ -363,7 +364,7 @@ func (j *job) fitPass(ctx context.Context, c0, n int, next func(off, k int) ([]*
 	if j.sink == nil {
 		s, err := j.eng.openSink(j.out, j.workers)
 		if err != nil {
-			return outputError(err)
+			return fault.Output(err)
 		}
 		j.sink = s
 	}
@@ -385,7 +386,7 @@ func (j *job) fitPass(ctx context.Context, c0, n int, next func(off, k int) ([]*
 		clear(cells) // the states of the chunk are done with
 		te := time.Now()
 		if err := j.sink.add(c0+off, c0+off+k, res); err != nil {
-			return outputError(err)
+			return fault.Output(err)
 		}
 		j.mark("export_s", te)
 	}
@@ -403,13 +404,13 @@ func (j *job) export(ctx context.Context, sums []string) (*Result, error) {
 	if j.sink == nil { // no cells at all
 		s, err := j.eng.openSink(j.out, j.workers)
 		if err != nil {
-			return nil, outputError(err)
+			return nil, fault.Output(err)
 		}
 		j.sink = s
 	}
 	written, warns, err := j.sink.close()
 	if err != nil {
-		return nil, outputError(err)
+		return nil, fault.Output(err)
 	}
 	if err := ctx.Err(); err != nil {
 		return nil, err // interrupted: the manifest, written last, stays the old one
@@ -420,10 +421,10 @@ func (j *job) export(ctx context.Context, sums []string) (*Result, error) {
 	}
 	m := j.eng.manifest(j.opt.Version, sums, warns, j.timings)
 	if err := j.eng.finishManifest(j.out, m, &written, &warns); err != nil {
-		return nil, outputError(err)
+		return nil, fault.Output(err)
 	}
 	if err := export.WriteManifest(filepath.Join(j.out, "manifest.json"), m); err != nil {
-		return nil, outputError(err)
+		return nil, fault.Output(err)
 	}
 	written = append(written, "manifest.json")
 	return &Result{OutDir: j.out, Files: written, Cells: j.cat.Grid.NCells(), Steps: j.cat.Steps,
@@ -475,7 +476,7 @@ func startChecksums(ctx context.Context, cat *ingest.Catalog) *checksums {
 	}
 	go func() {
 		defer close(c.done)
-		c.err = catchPanic(func() error {
+		c.err = fault.Catch(func() error {
 			for i := range cat.Files {
 				s, err := cat.HashFile(ctx, i)
 				if err != nil {

@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"swellgrid/pipelines/fault"
 	"syscall"
 	"testing"
 )
@@ -65,8 +66,8 @@ func TestDamagedCheckpointRefused(t *testing.T) {
 		if err == nil || cells != nil {
 			t.Fatalf("%s: loaded (%d cells), want refused", what, len(cells))
 		}
-		if KindOf(err) != BadInput || ExitCode(err) != 2 || !strings.Contains(err.Error(), "--restart") {
-			t.Fatalf("%s: %v (kind %v), want a bad-input refusal advising --restart", what, err, KindOf(err))
+		if fault.KindOf(err) != fault.BadInput || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "--restart") {
+			t.Fatalf("%s: %v (kind %v), want a bad-input refusal advising --restart", what, err, fault.KindOf(err))
 		}
 	}
 	r := rand.New(rand.NewPCG(19, 50))
@@ -82,7 +83,7 @@ func TestDamagedCheckpointRefused(t *testing.T) {
 	before, _ := os.ReadFile(filepath.Join(out, "cells.parquet"))
 	damage(t, good, path, len(good)/3, r)
 	_, err = Run(context.Background(), s, Options{})
-	if KindOf(err) != BadInput || !strings.Contains(err.Error(), "damaged") {
+	if fault.KindOf(err) != fault.BadInput || !strings.Contains(err.Error(), "damaged") {
 		t.Fatalf("run over a damaged checkpoint: %v", err)
 	}
 	after, _ := os.ReadFile(filepath.Join(out, "cells.parquet"))
@@ -112,7 +113,7 @@ func TestDamagedShardStateRefused(t *testing.T) {
 	for _, pos := range flipPositions(20, len(good), 50) {
 		damage(t, good, paths[0], pos, r)
 		_, err := Merge(context.Background(), out, dirs, Options{})
-		if KindOf(err) != BadInput || !strings.Contains(err.Error(), "damaged") {
+		if fault.KindOf(err) != fault.BadInput || !strings.Contains(err.Error(), "damaged") {
 			t.Fatalf("byte %d of %d altered: merge gave %v, want a refusal of the damaged state", pos, len(good), err)
 		}
 		if _, err := os.Stat(out); err == nil {
@@ -120,7 +121,7 @@ func TestDamagedShardStateRefused(t *testing.T) {
 		}
 	}
 	os.WriteFile(paths[0], good[:len(good)-7], 0o644)
-	if _, err := Merge(context.Background(), out, dirs, Options{}); KindOf(err) != BadInput || !strings.Contains(err.Error(), "truncated or altered") {
+	if _, err := Merge(context.Background(), out, dirs, Options{}); fault.KindOf(err) != fault.BadInput || !strings.Contains(err.Error(), "truncated or altered") {
 		t.Fatalf("truncated shard state: %v", err)
 	}
 	os.WriteFile(paths[0], good, 0o644)
@@ -172,10 +173,10 @@ func TestLock(t *testing.T) {
 		out := t.TempDir()
 		writeLock(t, out, holder)
 		_, err := lockDir(out)
-		if KindOf(err) != OutputUnusable || !strings.Contains(err.Error(), "in use by another run") || !strings.Contains(err.Error(), "pid 4242") {
+		if fault.KindOf(err) != fault.OutputUnusable || !strings.Contains(err.Error(), "in use by another run") || !strings.Contains(err.Error(), "pid 4242") {
 			t.Fatalf("lock of a live run of another user: %v", err)
 		}
-		if _, err := Unlock(out); KindOf(err) != OutputUnusable {
+		if _, err := Unlock(out); fault.KindOf(err) != fault.OutputUnusable {
 			t.Fatalf("unlock of a live run: %v", err)
 		}
 	})
@@ -186,7 +187,7 @@ func TestLock(t *testing.T) {
 		h.Host = "node-b"
 		writeLock(t, out, h)
 		_, err := lockDir(out)
-		if KindOf(err) != OutputUnusable || !strings.Contains(err.Error(), "host node-b") || !strings.Contains(err.Error(), "swellgrid unlock "+out) {
+		if fault.KindOf(err) != fault.OutputUnusable || !strings.Contains(err.Error(), "host node-b") || !strings.Contains(err.Error(), "swellgrid unlock "+out) {
 			t.Fatalf("lock of another host: %v", err)
 		}
 		msg, err := Unlock(out)
@@ -204,7 +205,7 @@ func TestLock(t *testing.T) {
 		out := t.TempDir()
 		writeLock(t, out, holder)
 		_, err := lockDir(out)
-		if KindOf(err) != OutputUnusable || !strings.Contains(err.Error(), "not the swellgrid run") || !strings.Contains(err.Error(), "swellgrid unlock "+out) {
+		if fault.KindOf(err) != fault.OutputUnusable || !strings.Contains(err.Error(), "not the swellgrid run") || !strings.Contains(err.Error(), "swellgrid unlock "+out) {
 			t.Fatalf("lock of a reused pid: %v", err)
 		}
 		if _, err := Unlock(out); err != nil {

@@ -8,6 +8,7 @@ import (
 	"time"
 
 	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
 	"swellgrid/stats/climate"
 	"swellgrid/stats/extremes"
 	"swellgrid/stats/seastate"
@@ -265,7 +266,7 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 	blocks := make(chan *ingest.Block, 2)
 	readErr := make(chan error, 1)
 	go func() {
-		readErr <- catchPanic(func() error {
+		readErr <- fault.Catch(func() error {
 			return e.cat.Read(ctx, ingest.ReadRange{C0: c0, C1: c1, MaxSteps: e.spec.Run.BlockSteps, FromFile: fromFile, Stats: &e.times.read, Raw: true}, blocks)
 		})
 		close(blocks)
@@ -282,7 +283,7 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 		times []stepTime
 		wg    *sync.WaitGroup
 	}
-	var failed failure // a worker's panic, as an internal error
+	var failed fault.First // a worker's panic, as an internal error
 	chans := make([]chan job, workers)
 	busy := make([]time.Duration, workers)
 	cook := make([]time.Duration, workers)
@@ -298,9 +299,9 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 			defer all.Done()
 			for j := range ch {
 				t := time.Now()
-				if !failed.set() {
-					failed.record(catchPanic(func() error {
-						panicHook("stream")
+				if !failed.Set() {
+					failed.Record(fault.Catch(func() error {
+						fault.Hook("stream")
 						j.b.Cook(lo, hi, tallies[w])
 						tc := time.Now()
 						cook[w] += tc.Sub(t)
@@ -340,13 +341,13 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 		}
 		go func() { // once every worker has fed it, its arrays serve later blocks
 			wg.Wait()
-			if !failed.set() {
+			if !failed.Set() {
 				b.Release()
 			}
 		}()
 		if b.LastOfFile {
 			wg.Wait()
-			if err := failed.get(); err != nil {
+			if err := failed.Get(); err != nil {
 				cancel()
 				for range blocks {
 				}
@@ -385,7 +386,7 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 		}
 	}
 	stop()
-	if err := failed.get(); err != nil {
+	if err := failed.Get(); err != nil {
 		<-readErr
 		return err
 	}

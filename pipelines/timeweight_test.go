@@ -14,6 +14,7 @@ import (
 
 	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
+	"swellgrid/pipelines/fault"
 )
 
 // The time-weighting checks (issue 27): the whole pipeline on the fixtures of
@@ -232,7 +233,7 @@ func TestTimeWeight(t *testing.T) {
 			ref := readTWRef(t, v)
 			out, err := runTW(t, v)
 			if err != nil {
-				t.Fatalf("run of spec_%s.toml: %v (exit code %d)", v, err, ExitCode(err))
+				t.Fatalf("run of spec_%s.toml: %v (exit code %d)", v, err, fault.ExitCode(err))
 			}
 			twCompareCells(t, out, ref)
 			for _, tb := range twTables {
@@ -255,7 +256,7 @@ func TestTimeWeightDuplicateRefused(t *testing.T) {
 	if err == nil {
 		t.Fatalf("the run of spec_e.toml succeeded; %s and %s hold different values at %s", ref.Refused.Files[0], ref.Refused.Files[1], ref.Refused.Time)
 	}
-	if c := ExitCode(err); c != 2 {
+	if c := fault.ExitCode(err); c != 2 {
 		t.Errorf("exit code %d, want 2 (bad input): %v", c, err)
 	}
 	msg := err.Error()

@@ -17,6 +17,7 @@ import (
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
 	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
 	"swellgrid/stats/climate"
 	"swellgrid/stats/seastate"
 	"swellgrid/stats/validate"
@@ -154,15 +155,15 @@ type ValidateResult struct {
 func Validate(ctx context.Context, opt ValidateOptions) (*ValidateResult, error) {
 	run, spec, err := openValidationRun(opt.RunDir)
 	if err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	if opt.Spec != nil {
 		if err := opt.Spec.Validation.check(); err != nil {
-			return nil, inputErr(err)
+			return nil, fault.Input(err)
 		}
 		spec.Validation = opt.Spec.Validation
 	} else if err := spec.Validation.check(); err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	vs := spec.Validation.withDefaults()
 	obsIn := opt.Obs
@@ -170,18 +171,18 @@ func Validate(ctx context.Context, opt ValidateOptions) (*ValidateResult, error)
 		obsIn = vs.Observations
 	}
 	if len(obsIn) == 0 {
-		return nil, inputErr(fmt.Errorf("validate: no observations: give --obs PATH_OR_GLOB or validation.observations in the spec"))
+		return nil, fault.Input(fmt.Errorf("validate: no observations: give --obs PATH_OR_GLOB or validation.observations in the spec"))
 	}
 	stations, err := ingest.ReadObservations(obsIn)
 	if err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	stNames := make([]string, len(stations))
 	for i, st := range stations {
 		stNames[i] = st.Name
 	}
 	if err := checkFileNames("station", stNames, func(i int) string { return "validate: " + ingest.TermText(stations[i].Source) }, atlasreport.StationNameOverhead); err != nil {
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	cat, err := reopenCatalog(ctx, run, spec)
 	if err != nil {
@@ -196,7 +197,7 @@ func Validate(ctx context.Context, opt ValidateOptions) (*ValidateResult, error)
 	for _, st := range stations {
 		p, err := v.place(st)
 		if err != nil {
-			return nil, inputErr(err)
+			return nil, fault.Input(err)
 		}
 		places = append(places, p)
 	}
@@ -204,29 +205,29 @@ func Validate(ctx context.Context, opt ValidateOptions) (*ValidateResult, error)
 		if ctx.Err() != nil {
 			return nil, ctx.Err()
 		}
-		return nil, inputErr(err)
+		return nil, fault.Input(err)
 	}
 	var results []*stationResult
 	for _, p := range places {
 		r, err := v.compare(p)
 		if err != nil {
-			return nil, inputErr(err)
+			return nil, fault.Input(err)
 		}
 		results = append(results, r)
 	}
 	if err := os.MkdirAll(out, 0o755); err != nil {
-		return nil, outputError(fmt.Errorf("validate: output directory %s: %w", out, err))
+		return nil, fault.Output(fmt.Errorf("validate: output directory %s: %w", out, err))
 	}
 	res := &ValidateResult{OutDir: out}
 	for name, t := range validationTables(results) {
 		if err := export.WriteParquet(filepath.Join(out, name), t); err != nil {
-			return nil, outputError(err)
+			return nil, fault.Output(err)
 		}
 		res.Files = append(res.Files, name)
 	}
 	sum := v.summary(run, opt.RunDir, results)
 	if err := export.WriteManifest(filepath.Join(out, "validation.json"), sum); err != nil {
-		return nil, outputError(err)
+		return nil, fault.Output(err)
 	}
 	res.Files = append(res.Files, "validation.json")
 	// The run's report gets its station pages now (swellgrid report DIR
@@ -279,7 +280,7 @@ func reopenCatalog(ctx context.Context, run *rundir.Run, spec *Spec) (*ingest.Ca
 		paths = append(paths, in.Path)
 	}
 	if len(paths) == 0 {
-		return nil, inputErr(fmt.Errorf("validate: %s/manifest.json lists no input files", run.Dir))
+		return nil, fault.Input(fmt.Errorf("validate: %s/manifest.json lists no input files", run.Dir))
 	}
 	opt := spec.ingestOptions()
 	opt.Ctx = ctx
@@ -291,16 +292,16 @@ func reopenCatalog(ctx context.Context, run *rundir.Run, spec *Spec) (*ingest.Ca
 		if ctx.Err() != nil {
 			return nil, ctx.Err()
 		}
-		return nil, inputErr(fmt.Errorf("validate: the run's hindcast files (from %s/manifest.json): %w", run.Dir, err))
+		return nil, fault.Input(fmt.Errorf("validate: the run's hindcast files (from %s/manifest.json): %w", run.Dir, err))
 	}
 	m := run.Manifest
 	if len(cat.Files) != len(m.Inputs) || cat.Steps != m.Steps || cat.Grid.NCells() != m.Grid.Cells {
-		return nil, inputErr(fmt.Errorf("validate: the hindcast files now hold %d files, %d steps, %d cells but the run read %d, %d, %d; the inputs changed since the run: rerun it before validating", len(cat.Files), cat.Steps, cat.Grid.NCells(), len(m.Inputs), m.Steps, m.Grid.Cells))
+		return nil, fault.Input(fmt.Errorf("validate: the hindcast files now hold %d files, %d steps, %d cells but the run read %d, %d, %d; the inputs changed since the run: rerun it before validating", len(cat.Files), cat.Steps, cat.Grid.NCells(), len(m.Inputs), m.Steps, m.Grid.Cells))
 	}
 	for i, f := range cat.Files {
 		in := m.Inputs[i]
 		if f.Size != in.Size || f.Steps != in.Steps || f.From != in.First || f.To != in.Last {
-			return nil, inputErr(fmt.Errorf("validate: %s: size %d, %d steps %s .. %s, but the run read %d bytes, %d steps %s .. %s; the file changed since the run: rerun it before validating", f.Path, f.Size, f.Steps, f.From, f.To, in.Size, in.Steps, in.First, in.Last))
+			return nil, fault.Input(fmt.Errorf("validate: %s: size %d, %d steps %s .. %s, but the run read %d bytes, %d steps %s .. %s; the file changed since the run: rerun it before validating", f.Path, f.Size, f.Steps, f.From, f.To, in.Size, in.Steps, in.First, in.Last))
 		}
 	}
 	return cat, nil
@@ -832,6 +833,6 @@ func (v *validator) plotPeriod(r *stationResult) (string, string) {
 
 // IsValidationInput reports whether err is a refusal of validate's inputs.
 func IsValidationInput(err error) bool {
-	var e *Error
-	return errors.As(err, &e) && e.Kind == BadInput
+	var e *fault.Error
+	return errors.As(err, &e) && e.Kind == fault.BadInput
 }

@@ -13,6 +13,7 @@ import (
 	"testing"
 
 	"swellgrid/export/rundir"
+	"swellgrid/pipelines/fault"
 )
 
 // stationExpected is testdata/validate/station_expected.json, made by
@@ -209,8 +210,8 @@ func TestValidateBilinearAndDistance(t *testing.T) {
 	exp := loadStationExpected(t)
 	obs := []string{"../testdata/validate/station_mid.csv"}
 	_, err := Validate(context.Background(), ValidateOptions{RunDir: run, Obs: obs, OutDir: t.TempDir()})
-	if err == nil || ExitCode(err) != 2 || !strings.Contains(err.Error(), `station "SYN-MID"`) || !strings.Contains(err.Error(), "max_distance_km = 25") || !strings.Contains(err.Error(), "station_mid.csv") {
-		t.Errorf("station 28 km away: %v (exit %d); want refused naming the station, the file and the limit", err, ExitCode(err))
+	if err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), `station "SYN-MID"`) || !strings.Contains(err.Error(), "max_distance_km = 25") || !strings.Contains(err.Error(), "station_mid.csv") {
+		t.Errorf("station 28 km away: %v (exit %d); want refused naming the station, the file and the limit", err, fault.ExitCode(err))
 	}
 	v := DefaultValidation()
 	v.Location, v.MaxDistanceKm = "bilinear", 40
@@ -251,8 +252,8 @@ func TestValidateRefusals(t *testing.T) {
 	}
 	for obs, want := range cases {
 		_, err := Validate(context.Background(), ValidateOptions{RunDir: run, Obs: []string{obs}, OutDir: filepath.Join(d, "out")})
-		if err == nil || ExitCode(err) != 2 {
-			t.Errorf("%s: %v (exit %d), want refused with exit 2", obs, err, ExitCode(err))
+		if err == nil || fault.ExitCode(err) != 2 {
+			t.Errorf("%s: %v (exit %d), want refused with exit 2", obs, err, fault.ExitCode(err))
 			continue
 		}
 		for _, w := range want {

@@ -14,7 +14,7 @@ import (
 	"time"
 
 	"swellgrid/internal/corpus"
-	"swellgrid/pipelines"
+	"swellgrid/pipelines/fault"
 )
 
 // codeOf runs the command line in this process through the one exit-code
@@ -115,11 +115,11 @@ func TestKindsMapToCodes(t *testing.T) {
 	}{
 		{nil, 0},
 		{base, 1},
-		{&pipelines.Error{Kind: pipelines.BadInput, Err: base}, 2},
-		{&pipelines.Error{Kind: pipelines.Interrupted, Err: base}, 3},
-		{&pipelines.Error{Kind: pipelines.OutputUnusable, Err: base}, 4},
-		{&pipelines.Error{Kind: pipelines.Internal, Err: base}, 1},
-		{errors.Join(errors.New("wrapped"), &pipelines.Error{Kind: pipelines.BadInput, Err: base}), 2},
+		{&fault.Error{Kind: fault.BadInput, Err: base}, 2},
+		{&fault.Error{Kind: fault.Interrupted, Err: base}, 3},
+		{&fault.Error{Kind: fault.OutputUnusable, Err: base}, 4},
+		{&fault.Error{Kind: fault.Internal, Err: base}, 1},
+		{errors.Join(errors.New("wrapped"), &fault.Error{Kind: fault.BadInput, Err: base}), 2},
 	} {
 		if got := exitCode(c.err); got != c.code {
 			t.Errorf("%v: exit code %d, want %d", c.err, got, c.code)

@@ -13,7 +13,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"swellgrid/ingest"
-	"swellgrid/pipelines"
+	"swellgrid/pipelines/fault"
 )
 
 // Version is the software version recorded in every manifest.
@@ -22,17 +22,17 @@ var Version = "0.1.0-dev"
 // Exit codes (documented in the README): 0 ok, 1 internal error, 2 bad input,
 // spec or usage, 3 interrupted, 4 output directory locked or not writable.
 // exitCode is the one place that maps an error to its code: the kind of the
-// *pipelines.Error it carries (see pipelines.Kind).
-func exitCode(err error) int { return pipelines.ExitCode(err) }
+// *fault.Error it carries (see fault.Kind).
+func exitCode(err error) int { return fault.ExitCode(err) }
 
 // badInput marks err as bad input, a bad spec or a usage error (exit code 2).
-func badInput(err error) error { return &pipelines.Error{Kind: pipelines.BadInput, Err: err} }
+func badInput(err error) error { return &fault.Error{Kind: fault.BadInput, Err: err} }
 
 // interrupted turns the failure of a command whose context was cancelled (a
 // signal) into an interruption (exit code 3) saying msg, what to do next.
 func interrupted(ctx context.Context, err error, msg string) error {
-	if err != nil && (ctx.Err() != nil || pipelines.KindOf(err) == pipelines.Interrupted) {
-		return &pipelines.Error{Kind: pipelines.Interrupted, Err: errors.New(msg)}
+	if err != nil && (ctx.Err() != nil || fault.KindOf(err) == fault.Interrupted) {
+		return &fault.Error{Kind: fault.Interrupted, Err: errors.New(msg)}
 	}
 	return err
 }
@@ -60,7 +60,7 @@ func mainCode(args []string, stderr io.Writer) (code int) {
 	if err == nil {
 		return 0
 	}
-	var pe *pipelines.Error
+	var pe *fault.Error
 	if errors.As(err, &pe) && pe.Stack != nil {
 		return reportInternal(stderr, err, pe.Stack)
 	}

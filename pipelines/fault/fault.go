@@ -1,4 +1,9 @@
-package pipelines
+// Package fault classifies the failures of a run: bad input, an unusable
+// output directory, an interruption or an internal defect, each with its
+// process exit code; it also keeps the first error of a pool of goroutines
+// and turns a worker's panic into an internal error. It knows nothing of
+// specs, files or statistics.
+package fault
 
 import (
 	"context"
@@ -76,13 +81,13 @@ func ExitCode(err error) int {
 	return KindOf(err).ExitCode()
 }
 
-// inputErr marks err as bad input or a bad spec (exit code 2), unless it
+// Input marks err as bad input or a bad spec (exit code 2), unless it
 // already carries a kind (an internal error caught from a panic stays one).
-func inputErr(err error) error { return withKind(BadInput, err) }
+func Input(err error) error { return withKind(BadInput, err) }
 
-// outputError marks err as an unusable output directory (exit code 4),
+// Output marks err as an unusable output directory (exit code 4),
 // unless it already carries a kind.
-func outputError(err error) error { return withKind(OutputUnusable, err) }
+func Output(err error) error { return withKind(OutputUnusable, err) }
 
 func withKind(k Kind, err error) error {
 	var e *Error
@@ -92,8 +97,8 @@ func withKind(k Kind, err error) error {
 	return &Error{Kind: k, Err: err}
 }
 
-// isOutput reports whether err is marked as an unusable output directory.
-func isOutput(err error) bool { return KindOf(err) == OutputUnusable }
+// IsOutput reports whether err is marked as an unusable output directory.
+func IsOutput(err error) bool { return KindOf(err) == OutputUnusable }
 
 // panicError turns a recovered panic value into an internal error with the
 // stack of the goroutine that panicked.
@@ -101,10 +106,10 @@ func panicError(r any) error {
 	return &Error{Kind: Internal, Err: fmt.Errorf("internal error: %v", r), Stack: debug.Stack()}
 }
 
-// catchPanic runs f and returns its error, or the panic it raised as an
+// Catch runs f and returns its error, or the panic it raised as an
 // internal error: a panic in a worker goroutine must not end the process
 // with the runtime's exit code 2, which means bad input.
-func catchPanic(f func() error) (err error) {
+func Catch(f func() error) (err error) {
 	defer func() {
 		if r := recover(); r != nil {
 			err = panicError(r)
@@ -113,13 +118,13 @@ func catchPanic(f func() error) (err error) {
 	return f()
 }
 
-// failure keeps the first error of a pool of goroutines.
-type failure struct {
+// First keeps the first error of a pool of goroutines.
+type First struct {
 	mu  sync.Mutex
 	err error
 }
 
-func (f *failure) record(err error) {
+func (f *First) Record(err error) {
 	if err == nil {
 		return
 	}
@@ -130,20 +135,20 @@ func (f *failure) record(err error) {
 	f.mu.Unlock()
 }
 
-func (f *failure) get() error {
+func (f *First) Get() error {
 	f.mu.Lock()
 	defer f.mu.Unlock()
 	return f.err
 }
 
-func (f *failure) set() bool { return f.get() != nil }
+func (f *First) Set() bool { return f.Get() != nil }
 
 // testPanic names a stage (fit, stream) whose workers panic: a hook for the
 // tests that an internal error exits 1 with its stack saved (environment
 // variable SWELLGRID_TEST_PANIC). Unset in normal use.
 var testPanic = os.Getenv("SWELLGRID_TEST_PANIC")
 
-func panicHook(stage string) {
+func Hook(stage string) {
 	if testPanic == stage {
 		panic("test panic in stage " + stage + " (SWELLGRID_TEST_PANIC)")
 	}
