@@ -2,20 +2,18 @@ package pipelines
 
 import (
 	"fmt"
-	"math"
 	"os"
 	"path/filepath"
-	"strings"
 	"time"
 
 	"swellgrid/export"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 
 	"swellgrid/export/gpkg"
 	"swellgrid/export/raster"
 	atlasreport "swellgrid/export/report"
 	"swellgrid/export/rundir"
-	"swellgrid/ingest"
 )
 
 // Products says which of the products made from a finished run's tables to
@@ -25,30 +23,9 @@ type Products struct {
 	Workers                    int // report figures rendered at once (0: one per core)
 }
 
-func (s *Spec) products() Products {
+// productsOf is the products the spec asks for.
+func productsOf(s *runspec.Spec) Products {
 	return Products{Report: s.Output.Report, NetCDF: s.Output.NetCDF, GeoPackage: s.Output.GeoPackage, Workers: s.Run.Workers}
-}
-
-func checkSites(sites []SiteSpec) error {
-	seen := map[string]bool{}
-	for i, st := range sites {
-		key := fmt.Sprintf("site[%d]", i)
-		if strings.TrimSpace(st.Name) == "" {
-			return fmt.Errorf("spec: %s.name is empty; give every [[site]] a name", key)
-		}
-		if seen[st.Name] {
-			return fmt.Errorf("spec: %s.name = %q appears twice", key, ingest.ShortText(st.Name))
-		}
-		seen[st.Name] = true
-		if !(st.Lat >= -90 && st.Lat <= 90) || math.IsNaN(st.Lon) || math.IsInf(st.Lon, 0) {
-			return fmt.Errorf("spec: %s (%q): lon = %v, lat = %v is not a position (degrees east, degrees north)", key, ingest.ShortText(st.Name), st.Lon, st.Lat)
-		}
-	}
-	names := make([]string, len(sites))
-	for i, st := range sites {
-		names[i] = st.Name
-	}
-	return checkFileNames("site", names, func(i int) string { return fmt.Sprintf("spec: site[%d].name", i) }, atlasreport.SiteNameOverhead)
 }
 
 func buildProducts(out string, manifest []byte, p Products) ([]string, []string, error) {
@@ -134,7 +111,7 @@ func (e *engine) finishManifest(out string, m *Manifest, written, warns *[]strin
 		*written = append(*written, sf...)
 		m.Screening = res.summary
 	}
-	files, w, err := buildProducts(out, nil, e.spec.products())
+	files, w, err := buildProducts(out, nil, productsOf(e.spec))
 	if err != nil {
 		return err
 	}

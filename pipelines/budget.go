@@ -7,6 +7,7 @@ import (
 
 	"swellgrid/grid"
 	"swellgrid/ingest"
+	"swellgrid/pipelines/runspec"
 )
 
 // The memory budget. run.memory_limit is what a run or a merge may hold, in
@@ -225,7 +226,7 @@ func neededLimit(cm chunkModel, perCell, perResult float64, fixed int64, cells, 
 // planBudget is the memory plan of cells lo..hi-1 under the spec's limit, or
 // the refusal that names the limit one pass needs.
 func (e *engine) planBudget(lo, hi int) (*memPlan, error) {
-	limit, err := ParseSize(e.spec.Run.MemoryLimit)
+	limit, err := runspec.ParseSize(e.spec.Run.MemoryLimit)
 	if err != nil {
 		return nil, err
 	}
@@ -259,7 +260,7 @@ func kib(b float64) string { return fmt.Sprintf("%.1f KiB", b/1024) }
 // a chunk at a time and holds the chunk's states and results only (no read
 // buffers, no chunk cache beyond the catalog's).
 func (e *engine) planMergeBudget() (*memPlan, error) {
-	limit, err := ParseSize(e.spec.Run.MemoryLimit)
+	limit, err := runspec.ParseSize(e.spec.Run.MemoryLimit)
 	if err != nil {
 		return nil, err
 	}

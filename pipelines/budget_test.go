@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"strings"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 	"testing"
 )
 
@@ -42,7 +43,7 @@ func TestBudgetSplitsSameBytes(t *testing.T) {
 }
 
 // mustPlan validates s as Run does and returns the job (passes and chunks).
-func mustPlan(t *testing.T, s *Spec) *job {
+func mustPlan(t *testing.T, s *runspec.Spec) *job {
 	t.Helper()
 	j, err := validateRun(context.Background(), s, Options{})
 	if err != nil {

@@ -15,6 +15,7 @@ import (
 	"swellgrid/export"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 // stateDir is the run directory's folder for checkpoints and the lock.
@@ -39,7 +40,7 @@ type ckHeader struct {
 	C0          int       `json:"c0"`
 	C1          int       `json:"c1"`
 	NextFile    int       `json:"next_file"`
-	// Spec is what the fingerprint hashes (the settings and the named
+	// runspec.Spec is what the fingerprint hashes (the settings and the named
 	// files' checksums), so that a refusal can name what changed.
 	Spec json.RawMessage `json:"fingerprinted,omitempty"`
 	// Seen is what the pass's cells have read of each role variable of each
@@ -47,7 +48,7 @@ type ckHeader struct {
 	// refused after a resume or a merge of shards.
 	Seen []ingest.TallyEntry `json:"seen,omitempty"`
 
-	spec *Spec // the spec now (wanted headers only)
+	spec *runspec.Spec // the spec now (wanted headers only)
 }
 
 func inputIDs(cat *ingest.Catalog) ([]inputID, error) {

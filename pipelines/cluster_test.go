@@ -18,19 +18,20 @@ import (
 
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 	"swellgrid/pipelines/synth"
 )
 
 // clSpec is the default spec over input, writing to out.
-func clSpec(input []string, out string) *Spec {
-	s := DefaultSpec()
+func clSpec(input []string, out string) *runspec.Spec {
+	s := runspec.DefaultSpec()
 	s.Input.Paths = input
 	s.Output.Dir = out
 	s.Run.Workers = 2
 	return s
 }
 
-func clRun(t *testing.T, s *Spec, opt Options) *Result {
+func clRun(t *testing.T, s *runspec.Spec, opt Options) *Result {
 	t.Helper()
 	opt.Version = "test"
 	r, err := Run(context.Background(), s, opt)
@@ -213,7 +214,7 @@ func readAllStates(t *testing.T, dir string) (*ckHeader, []*cell) {
 		t.Fatal(err)
 	}
 	s := clSpec(nil, dir)
-	ccfg, _ := s.climateConfig(cat)
+	ccfg, _ := s.ClimateConfig(cat)
 	eng, _ := newEngine(cat, s, ccfg)
 	cells, _, err := loadCheckpointTrusting(paths[0], *hs[0], len(hs[0].Inputs), eng.newCell)
 	if err != nil {
@@ -223,7 +224,7 @@ func readAllStates(t *testing.T, dir string) (*ckHeader, []*cell) {
 }
 
 func ingestOpenCluster(in []string) (*ingest.Catalog, error) {
-	return ingest.Open(in, clSpec(in, "x").ingestOptions())
+	return ingest.Open(in, clSpec(in, "x").IngestOptions())
 }
 
 // threeYears writes a synthetic 3-year, one-file-per-month record (the
@@ -311,7 +312,7 @@ func TestUpdateRefusals(t *testing.T) {
 	run := filepath.Join(tmp, "run")
 	clRun(t, clSpec([]string{dir}, run), Options{})
 	copyInto(t, dir, files[12:15])
-	expect := func(what string, s *Spec, frag ...string) {
+	expect := func(what string, s *runspec.Spec, frag ...string) {
 		t.Helper()
 		_, err := Run(context.Background(), s, Options{Update: true})
 		if err == nil {

@@ -14,6 +14,7 @@ import (
 	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 // readRef decodes a reference JSON file into v.
@@ -156,7 +157,7 @@ func TestMonthlyRowForEveryYearMonth(t *testing.T) {
 		t.Fatalf("fixture: %d files kept", len(keep))
 	}
 	out := t.TempDir()
-	s := DefaultSpec()
+	s := runspec.DefaultSpec()
 	s.Input.Paths, s.Output.Dir = keep, out
 	mustRun(t, s)
 	path := filepath.Join(out, "monthly.parquet")
@@ -280,7 +281,7 @@ func TestDeviceYieldAgainstNumpy(t *testing.T) {
 
 	out := t.TempDir()
 	s := testSpec(t, "testdata/bulk_monthly", out)
-	s.Devices = []DeviceSpec{
+	s.Devices = []runspec.DeviceSpec{
 		{Name: "tpbin", PowerMatrix: matrix, RatedKW: 750},
 		{Name: "tpbil", PowerMatrix: matrix, Lookup: "bilinear", Period: "tp", RatedKW: 750},
 	}
@@ -295,7 +296,7 @@ func TestDeviceYieldAgainstNumpy(t *testing.T) {
 
 	out2 := t.TempDir()
 	s2 := testSpec(t, "testdata/devices/bulk_no_tp.nc", out2)
-	s2.Devices = []DeviceSpec{{Name: "tpbin", PowerMatrix: matrix, RatedKW: 750}}
+	s2.Devices = []runspec.DeviceSpec{{Name: "tpbin", PowerMatrix: matrix, RatedKW: 750}}
 	mustRun(t, s2)
 	checkDevice(t, filepath.Join(out2, "cells.parquet"), "tpbin", ref.NoTp["tpbin"])
 	if a := manifestAssumptions(t, out2); !strings.Contains(a, "Tp = Te / 0.9") {
@@ -304,14 +305,14 @@ func TestDeviceYieldAgainstNumpy(t *testing.T) {
 
 	// the spec and the header disagree: refused before any output, as an input error
 	s3 := testSpec(t, "testdata/devices/bulk_no_tp.nc", t.TempDir())
-	s3.Devices = []DeviceSpec{{Name: "tpbin", PowerMatrix: matrix, Period: "te"}}
+	s3.Devices = []runspec.DeviceSpec{{Name: "tpbin", PowerMatrix: matrix, Period: "te"}}
 	_, err := Run(context.Background(), s3, Options{})
 	if err == nil || fault.KindOf(err) != fault.BadInput || !strings.Contains(err.Error(), `header of its power matrix`) {
 		t.Errorf("period te against a tp header: %v", err)
 	}
 	// rated power below the matrix maximum
 	s4 := testSpec(t, "testdata/devices/bulk_no_tp.nc", t.TempDir())
-	s4.Devices = []DeviceSpec{{Name: "tpbin", PowerMatrix: matrix, RatedKW: 600}}
+	s4.Devices = []runspec.DeviceSpec{{Name: "tpbin", PowerMatrix: matrix, RatedKW: 600}}
 	if _, err := Run(context.Background(), s4, Options{}); err == nil || fault.KindOf(err) != fault.BadInput || !strings.Contains(err.Error(), "below the largest entry") {
 		t.Errorf("rated_kw 600 below the 661 kW maximum: %v", err)
 	}
@@ -335,7 +336,7 @@ func TestDeviceSpecKeys(t *testing.T) {
 		if err := os.WriteFile(p, []byte(base+c.extra), 0o644); err != nil {
 			t.Fatal(err)
 		}
-		s, err := LoadSpec(p)
+		s, err := runspec.LoadSpec(p)
 		if err == nil {
 			err = s.Validate()
 		}

@@ -12,6 +12,7 @@ import (
 	"swellgrid/ingest"
 	"swellgrid/internal/parquetread"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 // conventionsRef is testdata/conventions/reference.json: for every file of
@@ -33,9 +34,9 @@ type conventionsRef struct {
 // a message holding every fragment of refused (what it found and the key
 // that settles it), and then read it right once settle states the key.
 type conventionCase struct {
-	spec    func(*Spec) // set before the first run (nil: the defaults)
+	spec    func(*runspec.Spec) // set before the first run (nil: the defaults)
 	refused []string
-	settle  func(*Spec)
+	settle  func(*runspec.Spec)
 	reading []string // fragments of the manifest's spectral_readings once read
 }
 
@@ -49,12 +50,12 @@ var conventionCases = map[string]conventionCase{
 	"dir_to_sn_cartesian_ln": {
 		refused: []string{"dir_to_sn_cartesian_ln.nc", `"direction"`, `standard_name "sea_surface_wave_to_direction" (nautical_to)`,
 			`long_name "Cartesian direction, going to, counterclockwise from east" (cartesian)`, "input.direction_convention", `"cartesian"`},
-		settle:  func(s *Spec) { s.Input.DirectionConvention = "cartesian" },
+		settle:  func(s *runspec.Spec) { s.Input.DirectionConvention = "cartesian" },
 		reading: []string{`the spec's input.direction_convention = \"cartesian\", choosing between`},
 	},
 	"dir_unlabelled": {
 		refused: []string{"dir_unlabelled.nc", `"direction"`, `long_name "spectral direction bin"`, "say nothing of its convention", "input.direction_convention", `"nautical_from", "nautical_to" or "cartesian"`},
-		settle:  func(s *Spec) { s.Input.DirectionConvention = "cartesian" },
+		settle:  func(s *runspec.Spec) { s.Input.DirectionConvention = "cartesian" },
 	},
 	// densities
 	"log10_longname": {reading: []string{`"log10: stored as log10`, `long_name \"log10 of the directional variance spectral density\" (log10)`, `comment \"values are log10(E)`}},
@@ -63,39 +64,39 @@ var conventionCases = map[string]conventionCase{
 	"log10_unlabelled": {
 		refused: []string{"log10_unlabelled.nc", `"efth"`, "are negative", `standard_name "sea_surface_wave_directional_variance_spectral_density"`, `units "m2 s rad-1"`,
 			"not clipped bin by bin", `units.spectrum2d_encoding = "log10"`},
-		settle:  func(s *Spec) { s.Units["spectrum2d_encoding"] = "log10" },
+		settle:  func(s *runspec.Spec) { s.Units["spectrum2d_encoding"] = "log10" },
 		reading: []string{`spec units.spectrum2d_encoding = \"log10\"`},
 	},
 	"linear_labelled_log10": {
 		refused: []string{"linear_labelled_log10.nc", `"efth"`, "beyond any sea", "read as log10", `long_name "log10 of the directional variance spectral density"`,
 			`units.spectrum2d_encoding = "linear"`},
-		settle:  func(s *Spec) { s.Units["spectrum2d_encoding"] = "linear" },
+		settle:  func(s *runspec.Spec) { s.Units["spectrum2d_encoding"] = "linear" },
 		reading: []string{`spec units.spectrum2d_encoding = \"linear\", over the file's long_name`},
 	},
 	"log_baseless": {
 		refused: []string{"log_baseless.nc", `"efth"`, "unstated base", `long_name "logarithm of the directional variance spectral density"`, "units.spectrum2d_encoding"},
-		settle:  func(s *Spec) { s.Units["spectrum2d_encoding"] = "log10" },
+		settle:  func(s *runspec.Spec) { s.Units["spectrum2d_encoding"] = "log10" },
 	},
 	// density units against the axes
 	"rads_2d_per_hz": {
 		refused: []string{"rads_2d_per_hz.nc", `"efth"`, "ambiguous", `units "m2 s rad-1" read per Hz per radian`, "rad s-1", "per rad/s per radian", `units.spectrum2d_basis = "per_hz" or "per_rad_s"`},
-		settle:  func(s *Spec) { s.Units["spectrum2d_basis"] = "per_hz" },
+		settle:  func(s *runspec.Spec) { s.Units["spectrum2d_basis"] = "per_hz" },
 		reading: []string{`"ambiguous": true`, `"stated_by_spec": true`, `"key": "units.spectrum2d_basis"`},
 	},
 	// the issue's angular-frequency file: the writer meant per rad/s
 	"rads_2d_per_rads": {
 		refused: []string{"rads_2d_per_rads.nc", "ambiguous", `units "m2 s rad-1"`, `units.spectrum2d_basis = "per_hz" or "per_rad_s"`},
-		settle:  func(s *Spec) { s.Units["spectrum2d_basis"] = "per_rad_s" },
+		settle:  func(s *runspec.Spec) { s.Units["spectrum2d_basis"] = "per_rad_s" },
 		reading: []string{`read per rad/s per radian (the radian of rad/s left out of the units), x 2 pi to per Hz, as the spec's units.spectrum2d_basis = \"per_rad_s\" says`},
 	},
 	"rads_2d_explicit_hz": {reading: []string{`units \"m2 Hz-1 rad-1\" read per Hz per radian; the frequency coordinate is in rad s-1`}},
 	"rads_1d_per_rads": {
 		refused: []string{"rads_1d_per_rads.nc", "ambiguous", `units "m2 s" read per Hz`, `units.spectrum1d_basis = "per_hz" or "per_rad_s"`},
-		settle:  func(s *Spec) { s.Units["spectrum1d_basis"] = "per_rad_s" },
+		settle:  func(s *runspec.Spec) { s.Units["spectrum1d_basis"] = "per_rad_s" },
 	},
 	"hz_1d_rad_per_hz": {
 		refused: []string{"hz_1d_rad_per_hz.nc", "ambiguous", `units "m2 s rad-1" read per rad/s`, "copied from a directional spectrum", `units.spectrum1d_basis = "per_hz" or "per_rad_s"`},
-		settle:  func(s *Spec) { s.Units["spectrum1d_basis"] = "per_hz" },
+		settle:  func(s *runspec.Spec) { s.Units["spectrum1d_basis"] = "per_hz" },
 	},
 	"per_degree_rad_axis": {reading: []string{"per degree (x 180/pi to per radian); the direction coordinate is in radians"}},
 	"wave_frequency":      {},
@@ -117,7 +118,7 @@ var conventionsTolerances = map[string]tol{
 }
 
 // conventionsSpec is a run of one fixture with the tables only.
-func conventionsSpec(t *testing.T, path string) *Spec {
+func conventionsSpec(t *testing.T, path string) *runspec.Spec {
 	s := testSpec(t, path, t.TempDir())
 	s.Output.Report, s.Output.NetCDF, s.Output.GeoPackage = false, false, false
 	return s

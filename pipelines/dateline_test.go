@@ -21,6 +21,7 @@ import (
 	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 // The date-line checks (issue 31, longitude wrap): a Pacific grid across
@@ -60,7 +61,7 @@ func dlRun(t *testing.T) map[string]string {
 			return
 		}
 		for _, f := range dlFixtures {
-			s, err := LoadSpec("../testdata/dateline/spec_" + f + ".toml")
+			s, err := runspec.LoadSpec("../testdata/dateline/spec_" + f + ".toml")
 			if err != nil {
 				dlRuns.errs[f] = err
 				continue

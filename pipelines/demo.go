@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 	"swellgrid/pipelines/synth"
 )
 
@@ -47,28 +48,28 @@ type DemoResult struct {
 // grid, directional spectra at the offshore points, and bulk fields on an
 // unstructured mesh of the invented Nullport Shelf hindcast written into
 // dir/hindcast.
-func DemoSpecs(dir string) []*Spec {
+func DemoSpecs(dir string) []*runspec.Spec {
 	hind := filepath.Join(dir, "hindcast")
-	mk := func(glob, out string, contours []string) *Spec {
-		s := DefaultSpec()
+	mk := func(glob, out string, contours []string) *runspec.Spec {
+		s := runspec.DefaultSpec()
 		s.Input.Paths = []string{filepath.Join(hind, glob)}
 		s.Output.Dir = filepath.Join(dir, out)
-		s.Devices = []DeviceSpec{{Name: "demo_wec", PowerMatrix: filepath.Join(hind, "demo_device.csv"), Lookup: "bilinear"}}
+		s.Devices = []runspec.DeviceSpec{{Name: "demo_wec", PowerMatrix: filepath.Join(hind, "demo_device.csv"), Lookup: "bilinear"}}
 		s.Contours.Columns = contours
 		return s
 	}
 	grid := mk("nullport_bulk_*.nc", "atlas-grid", []string{"power_mean_kw_m", "hm0_mean_m", "hm0_p90_m", "mvi", "aep_demo_wec_mwh"})
 	// Two invented places of interest get a report page each.
-	grid.Sites = []SiteSpec{{Name: "Outer shelf mooring (invented)", Lon: -32.0, Lat: 45.6}, {Name: "Inner shelf (invented)", Lon: -34.4, Lat: 45.1}}
+	grid.Sites = []runspec.SiteSpec{{Name: "Outer shelf mooring (invented)", Lon: -32.0, Lat: 45.6}, {Name: "Inner shelf (invented)", Lon: -34.4, Lat: 45.1}}
 	// A screening scenario on invented constraint layers.
-	grid.Screening = &ScreeningSpec{
-		Layers: []ScreenLayerSpec{{Name: "reserve", File: filepath.Join(hind, "demo_reserve.geojson")}, {Name: "ports", File: filepath.Join(hind, "demo_ports.geojson")}},
-		Scenarios: []ScenarioSpec{{Name: "demo_core",
+	grid.Screening = &runspec.ScreeningSpec{
+		Layers: []runspec.ScreenLayerSpec{{Name: "reserve", File: filepath.Join(hind, "demo_reserve.geojson")}, {Name: "ports", File: filepath.Join(hind, "demo_ports.geojson")}},
+		Scenarios: []runspec.ScenarioSpec{{Name: "demo_core",
 			Criteria: []string{"power_mean_kw_m >= 15", "depth_m between 30 and 150", "hm0_rl100y_m <= 14", "cf_demo_wec >= 0.1"},
-			Exclude:  []string{"reserve"}, Distance: []DistanceRule{{Layer: "ports", MaxKm: 150}},
+			Exclude:  []string{"reserve"}, Distance: []runspec.DistanceRule{{Layer: "ports", MaxKm: 150}},
 			Device: "demo_wec", DevicesPerKm2: 2}},
 	}
-	return []*Spec{
+	return []*runspec.Spec{
 		grid,
 		mk("nullport_spec_*.nc", "atlas-spectral-points", nil),
 		mk("nullport_mesh_*.nc", "atlas-mesh", []string{"power_mean_kw_m", "hm0_mean_m"}),

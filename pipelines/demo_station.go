@@ -10,6 +10,7 @@ import (
 
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 	"swellgrid/stats/seastate"
 )
 
@@ -39,7 +40,7 @@ func writeDemoStation(ctx context.Context, runDir, path string, lon, lat float64
 	if err != nil {
 		return err
 	}
-	v := &validator{cat: cat, spec: spec, vs: DefaultValidation(), consts: seastate.Consts{Rho: spec.Physics.Rho, G: spec.Physics.G}}
+	v := &validator{cat: cat, spec: spec, vs: runspec.DefaultValidation(), consts: seastate.Consts{Rho: spec.Physics.Rho, G: spec.Physics.G}}
 	p, err := v.place(&ingest.Station{Name: demoStationName, Lon: lon, Lat: lat, Source: path})
 	if err != nil {
 		return err

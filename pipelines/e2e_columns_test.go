@@ -15,6 +15,7 @@ import (
 
 	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
+	"swellgrid/pipelines/runspec"
 )
 
 // The end-to-end column checks: the whole pipeline on the bulk fixture of
@@ -246,7 +247,7 @@ func (w worst) log(t *testing.T, table string) {
 // runE2E runs the pipeline on the e2e fixture and returns its output directory.
 func runE2E(t *testing.T) string {
 	t.Helper()
-	s, err := LoadSpec("../testdata/e2e/spec.toml")
+	s, err := runspec.LoadSpec("../testdata/e2e/spec.toml")
 	if err != nil {
 		t.Fatal(err)
 	}

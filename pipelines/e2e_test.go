@@ -11,20 +11,21 @@ import (
 	"strings"
 	"swellgrid/internal/parquetread"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 	"testing"
 )
 
 var allTables = []string{"cells.parquet", "monthly.parquet", "scatter.parquet", "exceedance.parquet", "windows.parquet", "extremes.parquet", "manifest.json", "threshold_diagnostics.parquet", "design.parquet", "directions.parquet", "annual.parquet", "aep_bands.parquet"}
 
-func testSpec(t *testing.T, input string, out string) *Spec {
+func testSpec(t *testing.T, input string, out string) *runspec.Spec {
 	t.Helper()
-	s := DefaultSpec()
+	s := runspec.DefaultSpec()
 	s.Input.Paths = []string{filepath.Join("..", input)}
 	s.Output.Dir = out
 	return s
 }
 
-func mustRun(t *testing.T, s *Spec) *Result {
+func mustRun(t *testing.T, s *runspec.Spec) *Result {
 	t.Helper()
 	r, err := Run(context.Background(), s, Options{Version: "test"})
 	if err != nil {
@@ -107,20 +108,20 @@ func TestResumeGivesSameBytes(t *testing.T) {
 		t.Fatalf("fixture has %d files", len(files))
 	}
 	fresh := t.TempDir()
-	s := DefaultSpec()
+	s := runspec.DefaultSpec()
 	s.Input.Paths, s.Output.Dir = files, fresh
 	mustRun(t, s)
 	resumed := t.TempDir()
-	s1 := DefaultSpec()
+	s1 := runspec.DefaultSpec()
 	s1.Input.Paths, s1.Output.Dir = files[:12], resumed
 	mustRun(t, s1)
-	s2 := DefaultSpec()
+	s2 := runspec.DefaultSpec()
 	s2.Input.Paths, s2.Output.Dir = files, resumed
 	mustRun(t, s2)
 	sameBytes(t, "resumed", parquetFiles(t, fresh), parquetFiles(t, resumed))
 
 	// A changed spec refuses to resume and says why; --restart starts over.
-	s3 := DefaultSpec()
+	s3 := runspec.DefaultSpec()
 	s3.Input.Paths, s3.Output.Dir = files, resumed
 	s3.Physics.Rho = 1027
 	_, err := Run(context.Background(), s3, Options{})
@@ -230,19 +231,21 @@ func TestSpecUnknownKeyAndBadValues(t *testing.T) {
 	dir := t.TempDir()
 	p := filepath.Join(dir, "s.toml")
 	os.WriteFile(p, []byte("[input]\npaths = [\"x\"]\n[physics]\nrho = 1025.0\ngravity = 9.8\n"), 0o644)
-	if _, err := LoadSpec(p); err == nil || !strings.Contains(err.Error(), "physics.gravity") {
+	if _, err := runspec.LoadSpec(p); err == nil || !strings.Contains(err.Error(), "physics.gravity") {
 		t.Errorf("unknown key: %v", err)
 	}
 	for _, c := range []struct {
-		mod  func(s *Spec)
+		mod  func(s *runspec.Spec)
 		want string
 	}{
-		{func(s *Spec) { s.Extremes.ReturnPeriodsY = []float64{-5, 10} }, "extremes.return_periods_y"},
-		{func(s *Spec) { s.Statistics.WindowLimitsM = []float64{2, 1.5} }, "strictly increasing"},
-		{func(s *Spec) { s.Devices = []DeviceSpec{{Name: "wec", PowerMatrix: "/nonexistent.csv"}} }, "device[0].power_matrix"},
-		{func(s *Spec) { s.Depth.Source = "guess" }, "depth.source"},
+		{func(s *runspec.Spec) { s.Extremes.ReturnPeriodsY = []float64{-5, 10} }, "extremes.return_periods_y"},
+		{func(s *runspec.Spec) { s.Statistics.WindowLimitsM = []float64{2, 1.5} }, "strictly increasing"},
+		{func(s *runspec.Spec) {
+			s.Devices = []runspec.DeviceSpec{{Name: "wec", PowerMatrix: "/nonexistent.csv"}}
+		}, "device[0].power_matrix"},
+		{func(s *runspec.Spec) { s.Depth.Source = "guess" }, "depth.source"},
 	} {
-		s := DefaultSpec()
+		s := runspec.DefaultSpec()
 		s.Input.Paths = []string{"x"}
 		c.mod(s)
 		if err := s.Validate(); err == nil || !strings.Contains(err.Error(), c.want) {
@@ -310,7 +313,7 @@ func TestExampleSpecs(t *testing.T) {
 		t.Fatalf("%d example specs", len(files))
 	}
 	for _, f := range files {
-		s, err := LoadSpec(f)
+		s, err := runspec.LoadSpec(f)
 		if err != nil {
 			t.Errorf("%s: %v", f, err)
 			continue

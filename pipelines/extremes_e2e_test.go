@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"swellgrid/internal/parquetread"
+	"swellgrid/pipelines/runspec"
 )
 
 // readStrings reads one string column of a Parquet file with the Arrow reader.
@@ -170,7 +171,7 @@ func checkDemoExtremes(t *testing.T, dir string) {
 	hmax := readColumn(t, cp, "hm0_max_m")
 	lim := readColumn(t, cp, "hm0_depth_limit_m")
 	flags := readStrings(t, cp, "qc_flags")
-	s := DefaultSpec()
+	s := runspec.DefaultSpec()
 	published := 0
 	best, bestCell := math.Inf(-1), -1
 	for _, T := range s.Extremes.ReturnPeriodsY {

@@ -6,19 +6,20 @@ import (
 	"testing"
 
 	"swellgrid/ingest"
+	"swellgrid/pipelines/runspec"
 )
 
 // fitStageCells reads a fixture and feeds every block into fresh per-cell
 // states, as the stream stage does, and returns the engine, the states and
 // the ids of the unmasked cells: the input of the fit stage.
 func fitStageCells(b *testing.B, input string) (*engine, []*cell, []int) {
-	spec := DefaultSpec()
+	spec := runspec.DefaultSpec()
 	spec.Input.Paths = []string{input}
-	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
+	cat, err := ingest.Open(spec.Input.Paths, spec.IngestOptions())
 	if err != nil {
 		b.Fatal(err)
 	}
-	ccfg, err := spec.climateConfig(cat)
+	ccfg, err := spec.ClimateConfig(cat)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -72,7 +73,7 @@ func BenchmarkFitStage(b *testing.B) {
 			b.Run(name, func(b *testing.B) {
 				e, cells, ids := fitStageCells(b, c.input)
 				e.spec.Design.Enabled = design
-				acfg := e.spec.analysisConfig()
+				acfg := e.spec.AnalysisConfig()
 				b.ReportAllocs()
 				cpu0 := processCPU()
 				b.ResetTimer()

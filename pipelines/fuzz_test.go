@@ -1,6 +1,7 @@
 package pipelines
 
 import (
+	"swellgrid/pipelines/runspec"
 	"testing"
 )
 
@@ -23,7 +24,7 @@ func FuzzSpec(f *testing.F) {
 		f.Add([]byte(s))
 	}
 	f.Fuzz(func(t *testing.T, data []byte) {
-		s, err := ParseSpec(data, "/fuzz/run.toml")
+		s, err := runspec.ParseSpec(data, "/fuzz/run.toml")
 		if err != nil {
 			return
 		}

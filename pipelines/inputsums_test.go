@@ -11,6 +11,7 @@ import (
 
 	"swellgrid/internal/corpus"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 // rewriteLastFloat overwrites the last 4 bytes of a classic NetCDF file (the
@@ -56,27 +57,27 @@ func TestResumeComparesContent(t *testing.T) {
 		t.Fatal(err)
 	}
 	fresh := filepath.Join(t.TempDir(), "fresh")
-	sp := DefaultSpec()
+	sp := runspec.DefaultSpec()
 	sp.Input.Paths, sp.Output.Dir = []string{jan, feb}, fresh
 	mustRun(t, sp)
 
 	// Relative, then absolute: resumes, and gives the fresh run's tables.
 	out := filepath.Join(t.TempDir(), "resumed")
-	s1 := DefaultSpec()
+	s1 := runspec.DefaultSpec()
 	s1.Input.Paths, s1.Output.Dir = []string{relJan}, out
 	mustRun(t, s1)
-	s2 := DefaultSpec()
+	s2 := runspec.DefaultSpec()
 	s2.Input.Paths, s2.Output.Dir = []string{jan, feb}, out
 	mustRun(t, s2)
 	sameBytes(t, "resumed over absolute paths", parquetFiles(t, fresh), parquetFiles(t, out))
 
 	// Same size, same mtime, other bytes: refused on resume.
 	out2 := filepath.Join(t.TempDir(), "replaced")
-	s3 := DefaultSpec()
+	s3 := runspec.DefaultSpec()
 	s3.Input.Paths, s3.Output.Dir = []string{jan}, out2
 	mustRun(t, s3)
 	rewriteLastFloat(t, jan, 123.5)
-	s4 := DefaultSpec()
+	s4 := runspec.DefaultSpec()
 	s4.Input.Paths, s4.Output.Dir = []string{jan, feb}, out2
 	_, err = Run(context.Background(), s4, Options{})
 	if err == nil || !strings.Contains(err.Error(), "changed content") || !strings.Contains(err.Error(), "cx_2001-01.nc") || !strings.Contains(err.Error(), "--restart") {

@@ -14,6 +14,7 @@ import (
 
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 // InspectReport is what `swellgrid inspect` shows of a hindcast.
@@ -68,8 +69,8 @@ func Inspect(inputs []string, opt ingest.Options) (*InspectReport, error) {
 // InspectSpec inspects the inputs of a spec (or inputs, when given) with the
 // spec's roles, units, depth and direction convention, as a run would read
 // them.
-func InspectSpec(spec *Spec, inputs []string) (*InspectReport, error) {
-	if err := spec.checkRoles(); err != nil {
+func InspectSpec(spec *runspec.Spec, inputs []string) (*InspectReport, error) {
+	if err := spec.CheckRoles(); err != nil {
 		return nil, fault.Input(err)
 	}
 	if len(inputs) == 0 {
@@ -78,7 +79,7 @@ func InspectSpec(spec *Spec, inputs []string) (*InspectReport, error) {
 	if len(inputs) == 0 {
 		return nil, fault.Input(fmt.Errorf("inspect: no input: give paths or a spec with input.paths"))
 	}
-	return Inspect(inputs, spec.ingestOptions())
+	return Inspect(inputs, spec.IngestOptions())
 }
 
 // inspectSample is the number of steps inspect reads of each file to find

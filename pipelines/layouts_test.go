@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"swellgrid/internal/parquetread"
+	"swellgrid/pipelines/runspec"
 )
 
 // layoutsRef is testdata/layouts/layouts_ref.json, made by
@@ -70,7 +71,7 @@ func loadLayoutsRef(t *testing.T) layoutsRef {
 	return ref
 }
 
-func runLayout(t *testing.T, input, out string, mod func(*Spec)) {
+func runLayout(t *testing.T, input, out string, mod func(*runspec.Spec)) {
 	t.Helper()
 	s := testSpec(t, input, out)
 	if mod != nil {
@@ -115,14 +116,14 @@ func TestLayoutsPowerAgainstNumpy(t *testing.T) {
 	ref := loadLayoutsRef(t)
 	cases := []struct {
 		name, input string
-		mod         func(*Spec)
+		mod         func(*runspec.Spec)
 	}{
 		{"split", "testdata/layouts/split", nil},
 		{"combined", "testdata/layouts/combined", nil},
 		{"tstation", "testdata/layouts/tstation", nil},
 		{"tidal_pts", "testdata/layouts/tidal_pts", nil},
-		{"tidal_grid", "testdata/layouts/tidal_grid", func(s *Spec) { s.Roles = map[string]string{"depth": "bed_elev"} }},
-		{"shortnames_deep", "testdata/layouts/shortnames", func(s *Spec) {
+		{"tidal_grid", "testdata/layouts/tidal_grid", func(s *runspec.Spec) { s.Roles = map[string]string{"depth": "bed_elev"} }},
+		{"shortnames_deep", "testdata/layouts/shortnames", func(s *runspec.Spec) {
 			s.Roles = map[string]string{"hm0": "hsig", "te": "tm10", "dir": "thm"}
 			s.Units = map[string]string{"dir": "degree"}
 			s.Depth.Source = "deep-water"
@@ -200,7 +201,7 @@ func TestXarrayNaNAttributesManifest(t *testing.T) {
 	if !bytes.Contains(raw, []byte(`"hm0"`)) {
 		t.Error("manifest lacks the hm0 role")
 	}
-	r, err := Inspect([]string{"../testdata/layouts/combined"}, DefaultSpec().ingestOptions())
+	r, err := Inspect([]string{"../testdata/layouts/combined"}, runspec.DefaultSpec().IngestOptions())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -215,7 +216,7 @@ func TestXarrayNaNAttributesManifest(t *testing.T) {
 
 // Points whose coordinates move in time are refused, saying so.
 func TestMovingPointsRefused(t *testing.T) {
-	_, err := Inspect([]string{"../testdata/layouts/moving.nc"}, DefaultSpec().ingestOptions())
+	_, err := Inspect([]string{"../testdata/layouts/moving.nc"}, runspec.DefaultSpec().IngestOptions())
 	if err == nil || !strings.Contains(err.Error(), "moves") || !strings.Contains(err.Error(), "longitude") {
 		t.Fatalf("moving stations: %v", err)
 	}
@@ -242,8 +243,8 @@ func TestStationNamesInEveryTable(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		runLayout(t, c.input, out, func(s *Spec) {
-			s.Devices = []DeviceSpec{{Name: "wec_a", PowerMatrix: dev, Lookup: "bin"}}
+		runLayout(t, c.input, out, func(s *runspec.Spec) {
+			s.Devices = []runspec.DeviceSpec{{Name: "wec_a", PowerMatrix: dev, Lookup: "bin"}}
 		})
 		for _, table := range append(allTables[:6:6], "directions.parquet", "annual.parquet", "aep_bands.parquet") {
 			cols, err := parquetread.Columns(filepath.Join(out, table), "cell_id", "name")
@@ -275,7 +276,7 @@ func TestAllMissingCellMaskedWithoutDepth(t *testing.T) {
 		{"with depth", []string{"../testdata/layouts/split"}},
 	} {
 		out := t.TempDir()
-		s := DefaultSpec()
+		s := runspec.DefaultSpec()
 		s.Input.Paths, s.Output.Dir = c.paths, out
 		if c.what == "without depth" {
 			s.Depth.Source = "deep-water" // the run needs a depth choice; the files give none

@@ -14,6 +14,7 @@ import (
 	"swellgrid/export"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 // Merge combines the shard directories written by runs with Options.Shard
@@ -139,7 +140,7 @@ func validateMerge(ctx context.Context, out string, shardDirs []string, opt Opti
 		spec.Run.Workers = opt.Workers
 	}
 	if spec.Run.MemoryLimit == "" {
-		spec.Run.MemoryLimit = DefaultSpec().Run.MemoryLimit
+		spec.Run.MemoryLimit = runspec.DefaultSpec().Run.MemoryLimit
 	}
 	if opt.MemoryLimit != "" {
 		spec.Run.MemoryLimit = opt.MemoryLimit

@@ -11,6 +11,7 @@ import (
 	"swellgrid/export"
 	"swellgrid/grid"
 	"swellgrid/ingest"
+	"swellgrid/pipelines/runspec"
 )
 
 // columnNames lists the columns of cells.parquet for this run.
@@ -34,7 +35,7 @@ func (e *engine) checkContourColumns() error {
 			return fmt.Errorf("spec: contours.levels.%s: not a column of cells.parquet", c)
 		}
 	}
-	return e.spec.Screening.checkColumns(names)
+	return e.spec.Screening.CheckColumns(names)
 }
 
 // writeContours writes the contour layers of the contour columns, whose
@@ -111,7 +112,7 @@ type Manifest struct {
 	Roles       map[ingest.Role]*ingest.VarInfo `json:"roles"`
 	DepthSource string                          `json:"depth_source"`
 	Assumptions []string                        `json:"assumptions"`
-	Parameters  *Spec                           `json:"parameters"`
+	Parameters  *runspec.Spec                   `json:"parameters"`
 	Resolution  map[string]float64              `json:"histogram_resolution"`
 	Columns     map[string][]ColumnSpec         `json:"columns"`
 	Warnings    []string                        `json:"warnings"`

@@ -1,23 +1,17 @@
 package pipelines
 
 import (
-	"bytes"
 	"context"
 	"errors"
-	"fmt"
 	"log/slog"
-	"math"
 	"os"
 	"path/filepath"
-	"slices"
-	"sort"
-	"strings"
 	"sync"
 	"time"
 
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
-	"swellgrid/stats/climate"
+	"swellgrid/pipelines/runspec"
 	"swellgrid/stats/extremes"
 )
 
@@ -64,186 +58,9 @@ func IsResumeRefused(err error) bool {
 	return errors.As(err, &r)
 }
 
-// ingestOptions maps the spec to the reader's options.
-func (s *Spec) ingestOptions() ingest.Options {
-	opt := ingest.Options{Vars: map[ingest.Role]string{}, Units: map[ingest.Role]string{}, AllowLongGaps: s.Input.AllowLongGaps,
-		Duplicates: ingest.DuplicatePolicy(s.Input.DuplicateSteps)}
-	for k, v := range s.Roles {
-		opt.Vars[ingest.Role(k)] = v
-	}
-	opt.Encoding, opt.Basis = map[ingest.Role]ingest.Encoding{}, map[ingest.Role]ingest.DensityBasis{}
-	for k, v := range s.Units {
-		switch role, kind := unitsKey(k); kind {
-		case "encoding":
-			opt.Encoding[role], _ = ingest.ParseEncoding(v) // checked by checkRoles
-		case "basis":
-			opt.Basis[role], _ = ingest.ParseDensityBasis(v)
-		default:
-			opt.Units[role] = v
-		}
-	}
-	switch s.Depth.Source {
-	case "deep-water":
-		opt.DeepWater = true
-	case "constant":
-		opt.DepthConstant = s.Depth.ConstantM
-	case "bathymetry":
-		opt.BathymetryFile = s.Depth.BathymetryFile
-	}
-	opt.DirConvention, _ = ingest.ParseDirConvention(s.Input.DirectionConvention) // checked by Validate
-	opt.DirForce = s.Input.DirectionConventionForce
-	return opt
-}
-
-// unitsKey splits a key of the spec's [units] table into its role and
-// kind: "" for the units of a role ("spectrum2d"), "encoding" or "basis"
-// for a spectral density's statements ("spectrum2d_encoding",
-// "spectrum2d_basis").
-func unitsKey(k string) (ingest.Role, string) {
-	for _, kind := range []string{"encoding", "basis"} {
-		if r, ok := strings.CutSuffix(k, "_"+kind); ok && (ingest.Role(r) == ingest.Spectrum2D || ingest.Role(r) == ingest.Spectrum1D) {
-			return ingest.Role(r), kind
-		}
-	}
-	return ingest.Role(k), ""
-}
-
-func (s *Spec) checkRoles() error {
-	for k := range s.Roles {
-		ok := false
-		for _, r := range append(ingest.Roles, ingest.Mask) {
-			if string(r) == k {
-				ok = true
-			}
-		}
-		if !ok {
-			return fmt.Errorf("spec: roles.%s: unknown role; roles are %v", k, ingest.Roles)
-		}
-	}
-	for _, k := range keys(s.Units) {
-		role, kind := unitsKey(k)
-		switch kind {
-		case "encoding":
-			if _, err := ingest.ParseEncoding(s.Units[k]); err != nil {
-				return fmt.Errorf("spec: units.%s: %v", k, err)
-			}
-			continue
-		case "basis":
-			if _, err := ingest.ParseDensityBasis(s.Units[k]); err != nil {
-				return fmt.Errorf("spec: units.%s: %v", k, err)
-			}
-			continue
-		}
-		if _, ok := s.Roles[k]; !ok {
-			found := false
-			for _, r := range ingest.Roles {
-				found = found || r == role
-			}
-			if !found {
-				return fmt.Errorf("spec: units.%s: unknown role; roles are %v, and spectrum2d_encoding, spectrum2d_basis (spectrum1d_...) state how a spectral density is stored", k, ingest.Roles)
-			}
-		}
-	}
-	return nil
-}
-
-// climateConfig maps the spec to the per-cell state's configuration.
-func (s *Spec) climateConfig(cat *ingest.Catalog) (*climate.Config, error) {
-	cal := cat.Calendar
-	c := climate.DefaultConfig()
-	c.Calendar = string(cal)
-	c.Hm0HistResM = s.Statistics.Hm0BinM
-	c.Percentiles = append([]float64(nil), s.Statistics.Percentiles...)
-	// The POT threshold rule (extremes.POTThreshold) and the
-	// threshold-diagnostics ladder need those percentiles of Hm0 (not
-	// written as columns unless asked).
-	var need []float64
-	for _, q := range s.analysisConfig().Hm0Quantiles() {
-		need = append(need, 100*q)
-	}
-	for _, q := range extremes.LadderQuantiles {
-		need = append(need, 100*q)
-	}
-	for _, q := range need {
-		q = math.Round(q*1e9) / 1e9 // 100 * 0.995 is not exactly 99.5 in binary
-		if !slices.Contains(c.Percentiles, q) {
-			c.Percentiles = append(c.Percentiles, q)
-		}
-	}
-	sort.Float64s(c.Percentiles)
-	c.ScatterHm0StepM, c.ScatterTeStepS = s.Statistics.ScatterHm0BinM, s.Statistics.ScatterTeBinS
-	c.WindowLimitsM = append([]float64(nil), s.Statistics.WindowLimitsM...)
-	c.WindowDurationsH = append([]float64(nil), s.Statistics.WindowDurationsH...)
-	c.CoverageMin = s.Statistics.CoverageMin
-	c.DirectionSectors = s.Statistics.DirectionSectors
-	for i, d := range s.Devices {
-		// The bytes Validate read (bounded) and fingerprinted.
-		b, ok := s.namedData(fmt.Sprintf("device[%d].power_matrix", i))
-		if !ok {
-			return nil, fmt.Errorf("device %s: power matrix %s: not read; validate the spec first", d.Name, d.PowerMatrix)
-		}
-		dev, err := climate.ReadPowerMatrixCSV(bytes.NewReader(b), d.Name)
-		if err != nil {
-			return nil, fmt.Errorf("device %s: power matrix %s: %w", d.Name, d.PowerMatrix, err)
-		}
-		if d.Lookup == "bilinear" {
-			dev.Lookup = climate.Bilinear
-		}
-		if err := s.devicePeriod(dev, d, cat); err != nil {
-			return nil, err
-		}
-		dev.Rated = d.RatedKW
-		c.Devices = append(c.Devices, dev)
-	}
-	if err := c.Validate(); err != nil {
-		return nil, err
-	}
-	return c, nil
-}
-
-// analysisConfig maps the spec's extremes section to extremes.AnalysisConfig;
-// the threshold rule itself is extremes.POTThreshold (a cell's Hm0 quantile
-// is supplied per cell in engine.finish).
-func (s *Spec) analysisConfig() extremes.AnalysisConfig {
-	rule := extremes.ThresholdPeaksPerYear
-	if s.Extremes.ThresholdRule == "quantile" {
-		rule = extremes.ThresholdQuantile
-	}
-	a := extremes.AnalysisConfig{ReturnPeriods: s.Extremes.ReturnPeriodsY, MinYears: s.Extremes.MinYears,
-		Threshold: rule, TargetPeaksPerYear: s.Extremes.PeaksPerYear, ThresholdQuantile: s.Extremes.ThresholdQuantile,
-		MinPeaks: s.Extremes.MinPeaks, ShapeMin: s.Extremes.ShapeRange[0], ShapeMax: s.Extremes.ShapeRange[1],
-		MaxExtrapolation: s.Extremes.MaxExtrapolation, BreakingRatio: s.Extremes.BreakingRatio}
-	if s.Extremes.Bootstrap > 0 {
-		a.Bootstrap = extremes.Bootstrap{N: s.Extremes.Bootstrap, Seed: uint64(s.Extremes.Seed)}
-	}
-	return a
-}
-
-// analysisConfigFor is analysisConfig with the lengths of the analysis
-// years in the catalog's calendar (a full year for the GEV's complete years
-// and the peak rate's record length).
-func (s *Spec) analysisConfigFor(cat *ingest.Catalog) extremes.AnalysisConfig {
-	a := s.analysisConfig()
-	a.YearHours = yearHours(cat.Calendar, s.Extremes.YearStartMonth)
-	return a
-}
-
-// yearHours gives the hours of the analysis year y, from the first of month
-// m0 of y to the first of month m0 of y+1, in calendar cal.
-func yearHours(cal ingest.Calendar, m0 int) func(int) float64 {
-	if m0 < 1 || m0 > 12 {
-		m0 = 1
-	}
-	return func(y int) float64 {
-		a := ingest.StampOf(cal, ingest.Date{Year: y, Month: m0, Day: 1})
-		b := ingest.StampOf(cal, ingest.Date{Year: y + 1, Month: m0, Day: 1})
-		return float64(b-a) / 3600
-	}
-}
-
 // Run runs the whole job through the stages of stages.go: validate, lock,
 // restore, stream, fit, export.
-func Run(ctx context.Context, spec *Spec, opt Options) (res *Result, err error) {
+func Run(ctx context.Context, spec *runspec.Spec, opt Options) (res *Result, err error) {
 	j, err := validateRun(ctx, spec, opt)
 	if err != nil {
 		return nil, err

@@ -713,7 +713,7 @@ func (e *engine) outputColumns() map[string][]ColumnSpec {
 		out[t.file()] = t.specs()
 	}
 	if e.spec.Screening != nil {
-		out["screening.parquet"] = screeningSpecs(e.spec.Screening.distanceLayers())
+		out["screening.parquet"] = screeningSpecs(e.spec.Screening.DistanceLayers())
 	}
 	return out
 }

@@ -20,6 +20,7 @@ import (
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 // ScreeningFile is the summary written beside the manifest.
@@ -61,12 +62,12 @@ const ParamLayer Param = "layer"
 
 // ScenarioSummary is one scenario's result in screening.json and the manifest.
 type ScenarioSummary struct {
-	Name     string         `json:"name"`
-	Criteria []string       `json:"criteria"`
-	Exclude  []string       `json:"exclude,omitempty"`
-	Within   []string       `json:"within,omitempty"`
-	Distance []DistanceRule `json:"distance,omitempty"`
-	Cells    int            `json:"cells_passing"`
+	Name     string                 `json:"name"`
+	Criteria []string               `json:"criteria"`
+	Exclude  []string               `json:"exclude,omitempty"`
+	Within   []string               `json:"within,omitempty"`
+	Distance []runspec.DistanceRule `json:"distance,omitempty"`
+	Cells    int                    `json:"cells_passing"`
 	// AreaKm2 is the passing cells' area (null: a point set).
 	AreaKm2 *float64 `json:"area_km2"`
 	// Area-weighted mean, least and largest power_mean_kw_m of the passing
@@ -137,7 +138,7 @@ func runGrid(r *rundir.Run) *grid.Grid {
 
 // screenRun screens the run r with the spec's [screening] section (its
 // layers read by validateScreening).
-func screenRun(r *rundir.Run, s *Spec) (*screenResult, error) {
+func screenRun(r *rundir.Run, s *runspec.Spec) (*screenResult, error) {
 	sc := s.Screening
 	g := runGrid(r)
 	n := g.NCells()
@@ -151,8 +152,8 @@ func screenRun(r *rundir.Run, s *Spec) (*screenResult, error) {
 	}
 	res := &screenResult{polys: map[string]orb.MultiPolygon{}}
 	sum := &ScreeningSummary{Caution: Caution, Note: ScreeningNote, Method: screeningMethod}
-	for _, l := range s.layers {
-		sum.Layers = append(sum.Layers, ScreeningLayer{Name: l.Name, Path: l.File, Table: l.Table, SHA256: l.SHA256, Features: len(l.geoms)})
+	for _, l := range s.Layers() {
+		sum.Layers = append(sum.Layers, ScreeningLayer{Name: l.Name, Path: l.File, Table: l.Table, SHA256: l.SHA256, Features: len(l.Geoms)})
 	}
 	// distances, once per layer used in a distance rule
 	distIdx := map[string]int{}
@@ -166,7 +167,7 @@ func screenRun(r *rundir.Run, s *Spec) (*screenResult, error) {
 	}
 	dist := make([][]float64, len(res.distLayers))
 	for k, name := range res.distLayers {
-		t := grid.NewTarget(s.screeningLayer(name).geoms)
+		t := grid.NewTarget(s.ScreeningLayer(name).Geoms)
 		dist[k] = make([]float64, n)
 		for i := 0; i < n; i++ {
 			d, ok := t.DistanceM(g.Lon[i], g.Lat[i])
@@ -184,7 +185,7 @@ func screenRun(r *rundir.Run, s *Spec) (*screenResult, error) {
 				continue
 			}
 			var mp orb.MultiPolygon
-			for _, gm := range s.screeningLayer(name).geoms {
+			for _, gm := range s.ScreeningLayer(name).Geoms {
 				switch gm := gm.(type) {
 				case orb.Polygon:
 					mp = append(mp, gm)
@@ -199,16 +200,16 @@ func screenRun(r *rundir.Run, s *Spec) (*screenResult, error) {
 			inside[name] = in
 		}
 	}
-	crits := make([][]criterion, len(sc.Scenarios))
+	crits := make([][]runspec.Criterion, len(sc.Scenarios))
 	for k, c := range sc.Scenarios {
 		for _, t := range c.Criteria {
-			cr, _ := parseCriterion(t) // checked by validateScreening
-			col := r.Cells.Col(cr.column)
+			cr, _ := runspec.ParseCriterion(t) // checked by validateScreening
+			col := r.Cells.Col(cr.Column)
 			if col == nil {
-				return nil, fault.Input(fmt.Errorf("screening: scenario %s: criterion %q: %q is not a column of %s; see the README's column list (cells.parquet)", c.Name, t, cr.column, filepath.Join(r.Dir, "cells.parquet")))
+				return nil, fault.Input(fmt.Errorf("screening: scenario %s: criterion %q: %q is not a column of %s; see the README's column list (cells.parquet)", c.Name, t, cr.Column, filepath.Join(r.Dir, "cells.parquet")))
 			}
 			if !col.Numeric() {
-				return nil, fault.Input(fmt.Errorf("screening: scenario %s: criterion %q: column %q is not numeric", c.Name, t, cr.column))
+				return nil, fault.Input(fmt.Errorf("screening: scenario %s: criterion %q: column %q is not numeric", c.Name, t, cr.Column))
 			}
 			crits[k] = append(crits[k], cr)
 		}
@@ -231,12 +232,12 @@ func screenRun(r *rundir.Run, s *Spec) (*screenResult, error) {
 				row.reasons = append(row.reasons, "masked")
 			}
 			for _, cr := range crits[k] {
-				v := r.Cells.Col(cr.column).Value(i)
-				if !cr.holds(v) {
+				v := r.Cells.Col(cr.Column).Value(i)
+				if !cr.Holds(v) {
 					if math.IsNaN(v) {
-						row.reasons = append(row.reasons, cr.text+" (missing)")
+						row.reasons = append(row.reasons, cr.Text+" (missing)")
 					} else {
-						row.reasons = append(row.reasons, cr.text)
+						row.reasons = append(row.reasons, cr.Text)
 					}
 				}
 			}
@@ -291,11 +292,11 @@ func fptr(v float64) *float64 {
 // cells with a power (a point set, without areas: the plain mean); the
 // layout's devices rho sum a_i and annual energy rho sum(a_i AEP_i) / 1000
 // (GWh/yr; no array interaction, availability or transmission losses).
-func summarise(c ScenarioSpec, pass []bool, areaKm2 []float64, hasArea bool, power, aep *rundir.Column) ScenarioSummary {
+func summarise(c runspec.ScenarioSpec, pass []bool, areaKm2 []float64, hasArea bool, power, aep *rundir.Column) ScenarioSummary {
 	s := ScenarioSummary{Name: c.Name, Exclude: c.Exclude, Within: c.Within, Distance: c.Distance, Device: c.Device, DevicesPerKm2: c.DevicesPerKm2}
 	for _, t := range c.Criteria {
-		cr, _ := parseCriterion(t)
-		s.Criteria = append(s.Criteria, cr.text)
+		cr, _ := runspec.ParseCriterion(t)
+		s.Criteria = append(s.Criteria, cr.Text)
 	}
 	if s.Criteria == nil {
 		s.Criteria = []string{}
@@ -434,7 +435,7 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 	if err != nil {
 		return nil, nil, fault.Input(fmt.Errorf("screen: %s is not a finished run directory (no manifest.json); run `swellgrid run` first: %w", dir, err))
 	}
-	spec, err := LoadScreeningSpec(specPath)
+	spec, err := runspec.LoadScreeningSpec(specPath)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -476,7 +477,7 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 		v    any
 	}{
 		{[]string{"parameters", "screening"}, spec.Screening},
-		{[]string{"columns", "screening.parquet"}, screeningSpecs(spec.Screening.distanceLayers())},
+		{[]string{"columns", "screening.parquet"}, screeningSpecs(spec.Screening.DistanceLayers())},
 		{[]string{"outputs"}, outputs},
 		{[]string{"screening"}, res.summary},
 	}

@@ -11,6 +11,7 @@ import (
 
 	"swellgrid/internal/testtool"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 // TestScreeningInRun: a run whose spec has a [screening] section writes the
@@ -31,9 +32,9 @@ func TestScreeningInRun(t *testing.T) {
 		t.Fatalf("ogr2ogr: %v\n%s", err, b)
 	}
 	os.WriteFile(filepath.Join(lay, "pt.geojson"), []byte(`{"type": "Feature", "properties": {}, "geometry": {"type": "Point", "coordinates": [0, 0]}}`), 0o644)
-	s.Screening = &ScreeningSpec{
-		Layers:    []ScreenLayerSpec{{Name: "zone", File: gpkg, Table: "zone"}, {Name: "pt", File: filepath.Join(lay, "pt.geojson")}},
-		Scenarios: []ScenarioSpec{{Name: "all", Criteria: []string{"power_mean_kw_m > 0"}, Within: []string{"zone"}, Distance: []DistanceRule{{Layer: "pt", MinKm: 1}}}},
+	s.Screening = &runspec.ScreeningSpec{
+		Layers:    []runspec.ScreenLayerSpec{{Name: "zone", File: gpkg, Table: "zone"}, {Name: "pt", File: filepath.Join(lay, "pt.geojson")}},
+		Scenarios: []runspec.ScenarioSpec{{Name: "all", Criteria: []string{"power_mean_kw_m > 0"}, Within: []string{"zone"}, Distance: []runspec.DistanceRule{{Layer: "pt", MinKm: 1}}}},
 	}
 	mustRun(t, s)
 	first, err := os.ReadFile(filepath.Join(out, "screening.parquet"))

@@ -16,6 +16,7 @@ import (
 	"swellgrid/grid"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 // Shard selects share Index of Count (1-based) of a run's cells. Shares are
@@ -76,14 +77,14 @@ type ShardManifest struct {
 	Inputs      []ManifestInput `json:"inputs"`
 	// StepDurations identifies the durations the steps were weighted by.
 	StepDurations ingest.Durations `json:"step_durations"`
-	Spec          *Spec            `json:"spec"`
+	Spec          *runspec.Spec    `json:"spec"`
 	WallS         float64          `json:"wall_s"`
 	Note          string           `json:"note"`
 }
 
 // writeShard finishes a shard run: it writes shard.json beside the final
 // states.
-func writeShard(out string, spec *Spec, cat *ingest.Catalog, sh Shard, c0, c1 int, passes [][2]int, sums []string, version string, t0 time.Time) (*Result, error) {
+func writeShard(out string, spec *runspec.Spec, cat *ingest.Catalog, sh Shard, c0, c1 int, passes [][2]int, sums []string, version string, t0 time.Time) (*Result, error) {
 	st := *spec
 	st.Input.Paths = absPaths(spec.Input.Paths)
 	m := &ShardManifest{Software: "swellgrid", Version: version, Shard: sh.Index, Shards: sh.Count, C0: c0, C1: c1,

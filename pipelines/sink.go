@@ -2,8 +2,10 @@ package pipelines
 
 import (
 	"fmt"
+	"maps"
 	"math/bits"
 	"path/filepath"
+	"slices"
 	"sync"
 
 	"swellgrid/export"
@@ -52,7 +54,7 @@ func (e *engine) openSink(out string, workers int) (*tableSink, error) {
 	for _, t := range longSchemas {
 		byName[t.file()] = t
 	}
-	for _, name := range keys(byName) {
+	for _, name := range slices.Sorted(maps.Keys(byName)) {
 		st, err := export.NewParquetStream(filepath.Join(out, name), byName[name].build(nil))
 		if err != nil {
 			s.abort()

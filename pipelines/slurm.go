@@ -12,6 +12,7 @@ import (
 
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 // SlurmJobs describes a sharded run on a Slurm cluster: an array job with one
@@ -40,11 +41,11 @@ type SlurmScripts struct {
 // PlanSlurm sizes a sharded run (see SlurmPlan) from the spec's catalog:
 // the number of shards for j.Mem, the memory per task for j.Shards, or, with
 // both, checks that they fit. It writes nothing.
-func PlanSlurm(j SlurmJobs) (*SlurmPlan, *Spec, error) {
+func PlanSlurm(j SlurmJobs) (*SlurmPlan, *runspec.Spec, error) {
 	if j.SpecFile == "" {
 		return nil, nil, fault.Input(fmt.Errorf("cluster slurm: give --spec FILE: the array tasks and the merge job all read the same spec"))
 	}
-	spec, err := LoadSpec(absPath(j.SpecFile))
+	spec, err := runspec.LoadSpec(absPath(j.SpecFile))
 	if err != nil {
 		return nil, nil, fault.Input(err)
 	}
@@ -59,16 +60,16 @@ func PlanSlurm(j SlurmJobs) (*SlurmPlan, *Spec, error) {
 	}
 	var mem int64
 	if j.Mem != "" {
-		// Slurm reads a bare number as megabytes; ParseSize as bytes.
+		// Slurm reads a bare number as megabytes; runspec.ParseSize as bytes.
 		m := strings.TrimSpace(j.Mem)
 		if _, err := strconv.ParseFloat(m, 64); err == nil {
 			m += "M"
 		}
-		if mem, err = ParseSize(m); err != nil {
+		if mem, err = runspec.ParseSize(m); err != nil {
 			return nil, nil, fault.Input(fmt.Errorf("cluster slurm: --mem %q: %w", j.Mem, err))
 		}
 	}
-	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
+	cat, err := ingest.Open(spec.Input.Paths, spec.IngestOptions())
 	if err != nil {
 		return nil, nil, fault.Input(err)
 	}

@@ -6,6 +6,7 @@ import (
 	"path/filepath"
 	"strings"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 	"testing"
 )
 
@@ -17,7 +18,7 @@ hm0_m\te_s,5,7,9,11
 3.5,200,300,300,280
 `
 
-// Spec values past their limits are refused by Validate, naming the key and
+// runspec.Spec values past their limits are refused by Validate, naming the key and
 // the limit; nothing is computed or written.
 func TestSpecLimitsAndNames(t *testing.T) {
 	dir := t.TempDir()
@@ -35,31 +36,33 @@ func TestSpecLimitsAndNames(t *testing.T) {
 	}
 	for _, c := range []struct {
 		name string
-		mod  func(s *Spec)
+		mod  func(s *runspec.Spec)
 		want []string
 	}{
-		{"capital device name", func(s *Spec) { s.Devices = []DeviceSpec{{Name: "WEC", PowerMatrix: okCSV}} }, []string{"device[0].name", "lower-case"}},
-		{"device name with a dash", func(s *Spec) { s.Devices = []DeviceSpec{{Name: "wec-1", PowerMatrix: okCSV}} }, []string{"device[0].name"}},
-		{"negative seed", func(s *Spec) { s.Extremes.Seed = -1 }, []string{"extremes.seed", "-1"}},
-		{"model uncertainty of 100 %", func(s *Spec) { s.Uncertainty.ModelFrac = 1 }, []string{"uncertainty.model_frac", "[0, 1)"}},
-		{"a horizon of 0 years", func(s *Spec) { s.Uncertainty.HorizonsY = []float64{0, 10} }, []string{"uncertainty.horizons_y", "out of range"}},
-		{"9 horizons", func(s *Spec) { s.Uncertainty.HorizonsY = many[:9] }, []string{"uncertainty.horizons_y", "at most 8"}},
-		{"99999 percentiles", func(s *Spec) { s.Statistics.Percentiles = many[:99999] }, []string{"statistics.percentiles", "99999 entries", "at most 64"}},
-		{"100 return periods", func(s *Spec) { s.Extremes.ReturnPeriodsY = many[:100] }, []string{"extremes.return_periods_y", "at most 64"}},
-		{"100 window limits", func(s *Spec) { s.Statistics.WindowLimitsM = many[:100] }, []string{"statistics.window_limits_m", "at most 64"}},
-		{"100 contour levels", func(s *Spec) { s.Contours.Levels = map[string][]float64{"hm0_mean_m": many[:100]} }, []string{"contours.levels.hm0_mean_m", "at most 64"}},
-		{"65 devices", func(s *Spec) {
+		{"capital device name", func(s *runspec.Spec) { s.Devices = []runspec.DeviceSpec{{Name: "WEC", PowerMatrix: okCSV}} }, []string{"device[0].name", "lower-case"}},
+		{"device name with a dash", func(s *runspec.Spec) { s.Devices = []runspec.DeviceSpec{{Name: "wec-1", PowerMatrix: okCSV}} }, []string{"device[0].name"}},
+		{"negative seed", func(s *runspec.Spec) { s.Extremes.Seed = -1 }, []string{"extremes.seed", "-1"}},
+		{"model uncertainty of 100 %", func(s *runspec.Spec) { s.Uncertainty.ModelFrac = 1 }, []string{"uncertainty.model_frac", "[0, 1)"}},
+		{"a horizon of 0 years", func(s *runspec.Spec) { s.Uncertainty.HorizonsY = []float64{0, 10} }, []string{"uncertainty.horizons_y", "out of range"}},
+		{"9 horizons", func(s *runspec.Spec) { s.Uncertainty.HorizonsY = many[:9] }, []string{"uncertainty.horizons_y", "at most 8"}},
+		{"99999 percentiles", func(s *runspec.Spec) { s.Statistics.Percentiles = many[:99999] }, []string{"statistics.percentiles", "99999 entries", "at most 64"}},
+		{"100 return periods", func(s *runspec.Spec) { s.Extremes.ReturnPeriodsY = many[:100] }, []string{"extremes.return_periods_y", "at most 64"}},
+		{"100 window limits", func(s *runspec.Spec) { s.Statistics.WindowLimitsM = many[:100] }, []string{"statistics.window_limits_m", "at most 64"}},
+		{"100 contour levels", func(s *runspec.Spec) { s.Contours.Levels = map[string][]float64{"hm0_mean_m": many[:100]} }, []string{"contours.levels.hm0_mean_m", "at most 64"}},
+		{"65 devices", func(s *runspec.Spec) {
 			for i := 0; i < 65; i++ {
-				s.Devices = append(s.Devices, DeviceSpec{Name: "d" + itoa(i), PowerMatrix: okCSV})
+				s.Devices = append(s.Devices, runspec.DeviceSpec{Name: "d" + itoa(i), PowerMatrix: okCSV})
 			}
 		}, []string{"device has 65 entries", "at most 64"}},
-		{"matrix /dev/zero", func(s *Spec) { s.Devices = []DeviceSpec{{Name: "wec", PowerMatrix: "/dev/zero"}} }, []string{"device[0].power_matrix", "/dev/zero", "not a regular file"}},
-		{"matrix over 1 MB", func(s *Spec) { s.Devices = []DeviceSpec{{Name: "wec", PowerMatrix: big}} }, []string{"device[0].power_matrix", "the limit is 1048576 bytes"}},
-		{"matrix with 1006 rows", func(s *Spec) { s.Devices = []DeviceSpec{{Name: "wec", PowerMatrix: rows}} }, []string{"device[0].power_matrix", "at most 1000 rows"}},
-		{"matrix row of 1002 cells", func(s *Spec) { s.Devices = []DeviceSpec{{Name: "wec", PowerMatrix: wide}} }, []string{"device[0].power_matrix", "at most 1000 per row"}},
-		{"missing matrix", func(s *Spec) { s.Devices = []DeviceSpec{{Name: "wec", PowerMatrix: filepath.Join(dir, "none.csv")}} }, []string{"device[0].power_matrix", "none.csv"}},
+		{"matrix /dev/zero", func(s *runspec.Spec) { s.Devices = []runspec.DeviceSpec{{Name: "wec", PowerMatrix: "/dev/zero"}} }, []string{"device[0].power_matrix", "/dev/zero", "not a regular file"}},
+		{"matrix over 1 MB", func(s *runspec.Spec) { s.Devices = []runspec.DeviceSpec{{Name: "wec", PowerMatrix: big}} }, []string{"device[0].power_matrix", "the limit is 1048576 bytes"}},
+		{"matrix with 1006 rows", func(s *runspec.Spec) { s.Devices = []runspec.DeviceSpec{{Name: "wec", PowerMatrix: rows}} }, []string{"device[0].power_matrix", "at most 1000 rows"}},
+		{"matrix row of 1002 cells", func(s *runspec.Spec) { s.Devices = []runspec.DeviceSpec{{Name: "wec", PowerMatrix: wide}} }, []string{"device[0].power_matrix", "at most 1000 per row"}},
+		{"missing matrix", func(s *runspec.Spec) {
+			s.Devices = []runspec.DeviceSpec{{Name: "wec", PowerMatrix: filepath.Join(dir, "none.csv")}}
+		}, []string{"device[0].power_matrix", "none.csv"}},
 	} {
-		s := DefaultSpec()
+		s := runspec.DefaultSpec()
 		s.Input.Paths = []string{"x"}
 		c.mod(s)
 		err := s.Validate()
@@ -73,9 +76,9 @@ func TestSpecLimitsAndNames(t *testing.T) {
 			}
 		}
 	}
-	s := DefaultSpec()
+	s := runspec.DefaultSpec()
 	s.Input.Paths = []string{"x"}
-	s.Devices = []DeviceSpec{{Name: "wec_2", PowerMatrix: okCSV}}
+	s.Devices = []runspec.DeviceSpec{{Name: "wec_2", PowerMatrix: okCSV}}
 	if err := s.Validate(); err != nil {
 		t.Errorf("a good device is refused: %v", err)
 	}
@@ -88,7 +91,7 @@ func TestSpecErrorCreatesNoOutput(t *testing.T) {
 	s := testSpec(t, "testdata/points_bulk.nc", out)
 	dir := t.TempDir()
 	os.WriteFile(filepath.Join(dir, "m.csv"), []byte(testMatrix), 0o644)
-	s.Devices = []DeviceSpec{{Name: "Wec", PowerMatrix: filepath.Join(dir, "m.csv")}}
+	s.Devices = []runspec.DeviceSpec{{Name: "Wec", PowerMatrix: filepath.Join(dir, "m.csv")}}
 	_, err := Run(context.Background(), s, Options{})
 	if fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "device[0].name") {
 		t.Fatalf("capital device name: %v", err)
@@ -114,21 +117,21 @@ func TestSpecErrorCreatesNoOutput(t *testing.T) {
 // relative to the spec file's directory; the example specs write inside
 // the repository's ignored out/ folder.
 func TestSpecPathsRelativeToSpecFile(t *testing.T) {
-	s, err := ParseSpec([]byte("[input]\npaths = [\"in/a.nc\"]\n[output]\ndir = \"atlas\"\n[[device]]\nname = \"wec\"\npower_matrix = \"m.csv\"\n"), "/data/study/run.toml")
+	s, err := runspec.ParseSpec([]byte("[input]\npaths = [\"in/a.nc\"]\n[output]\ndir = \"atlas\"\n[[device]]\nname = \"wec\"\npower_matrix = \"m.csv\"\n"), "/data/study/run.toml")
 	if err != nil {
 		t.Fatal(err)
 	}
 	if s.Output.Dir != "/data/study/atlas" || s.Input.Paths[0] != "/data/study/in/a.nc" || s.Devices[0].PowerMatrix != "/data/study/m.csv" {
 		t.Fatalf("paths: out %s, input %v, matrix %s", s.Output.Dir, s.Input.Paths, s.Devices[0].PowerMatrix)
 	}
-	s, _ = ParseSpec([]byte("[input]\npaths = [\"/abs/a.nc\"]\n"), "/data/study/run.toml")
-	if s.Output.Dir != DefaultSpec().Output.Dir {
+	s, _ = runspec.ParseSpec([]byte("[input]\npaths = [\"/abs/a.nc\"]\n"), "/data/study/run.toml")
+	if s.Output.Dir != runspec.DefaultSpec().Output.Dir {
 		t.Fatalf("an output.dir not in the spec file is the default, got %s", s.Output.Dir)
 	}
 	repo, _ := filepath.Abs("..")
 	files, _ := filepath.Glob("examples/*.toml")
 	for _, f := range files {
-		s, err := LoadSpec(f)
+		s, err := runspec.LoadSpec(f)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -149,9 +152,9 @@ func TestFingerprintFollowsNamedFileContent(t *testing.T) {
 	os.WriteFile(a, []byte(testMatrix), 0o644)
 	os.WriteFile(b, []byte(testMatrix), 0o644)
 	fp := func(path string) string {
-		s := DefaultSpec()
+		s := runspec.DefaultSpec()
 		s.Input.Paths = []string{"x"}
-		s.Devices = []DeviceSpec{{Name: "wec", PowerMatrix: path}}
+		s.Devices = []runspec.DeviceSpec{{Name: "wec", PowerMatrix: path}}
 		if err := s.Validate(); err != nil {
 			t.Fatal(err)
 		}
@@ -167,11 +170,11 @@ func TestFingerprintFollowsNamedFileContent(t *testing.T) {
 
 	out := t.TempDir()
 	s := testSpec(t, "testdata/points_bulk.nc", out)
-	s.Devices = []DeviceSpec{{Name: "wec", PowerMatrix: a}}
+	s.Devices = []runspec.DeviceSpec{{Name: "wec", PowerMatrix: a}}
 	mustRun(t, s)
 	os.WriteFile(a, []byte(strings.Replace(testMatrix, "200,300", "210,300", 1)), 0o644)
 	s = testSpec(t, "testdata/points_bulk.nc", out)
-	s.Devices = []DeviceSpec{{Name: "wec", PowerMatrix: a}}
+	s.Devices = []runspec.DeviceSpec{{Name: "wec", PowerMatrix: a}}
 	_, err := Run(context.Background(), s, Options{})
 	if fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "device[0].power_matrix") || !strings.Contains(err.Error(), a) || !strings.Contains(err.Error(), "--restart") {
 		t.Fatalf("resume after the matrix changed: %v", err)
@@ -184,7 +187,7 @@ func TestFingerprintFollowsNamedFileContent(t *testing.T) {
 	for i := 1; i <= 2; i++ {
 		d := filepath.Join(root, "shard", itoa(i))
 		sh := clSpec(in, d)
-		sh.Devices = []DeviceSpec{{Name: "wec", PowerMatrix: a}}
+		sh.Devices = []runspec.DeviceSpec{{Name: "wec", PowerMatrix: a}}
 		clRun(t, sh, Options{Shard: &Shard{Index: i, Count: 2}})
 		dirs = append(dirs, d)
 	}

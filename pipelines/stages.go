@@ -14,6 +14,7 @@ import (
 	"swellgrid/export"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 	"swellgrid/stats/extremes"
 )
 
@@ -35,7 +36,7 @@ import (
 // job is a run or a merge after validation: everything is known and
 // checked, nothing is written yet.
 type job struct {
-	spec    *Spec
+	spec    *runspec.Spec
 	opt     Options
 	log     *slog.Logger
 	cat     *ingest.Catalog
@@ -68,16 +69,16 @@ func (j *job) mark(stage string, since time.Time) { j.timings[stage] += time.Sin
 
 // openCatalog builds the catalog of the spec's inputs, with a NetCDF chunk
 // cache sized from the memory budget.
-func openCatalog(ctx context.Context, spec *Spec) (*ingest.Catalog, error) {
+func openCatalog(ctx context.Context, spec *runspec.Spec) (*ingest.Catalog, error) {
 	// A sixteenth of the memory budget per variable for NetCDF-4 chunks
 	// (clamped to 16 MiB .. 512 MiB): enough for a month of a variable on a
 	// large grid, so each chunk is decompressed once.
-	limit, _ := ParseSize(spec.Run.MemoryLimit)
+	limit, _ := runspec.ParseSize(spec.Run.MemoryLimit)
 	if err := ingest.SetChunkCache(chunkCachePerVar(limit)); err != nil {
 		return nil, err
 	}
 	hold(ctx, "catalog")
-	opt := spec.ingestOptions()
+	opt := spec.IngestOptions()
 	opt.Ctx = ctx
 	cat, err := ingest.Open(spec.Input.Paths, opt)
 	if err != nil {
@@ -91,7 +92,7 @@ func openCatalog(ctx context.Context, spec *Spec) (*ingest.Catalog, error) {
 
 // newJob checks what the catalog and the spec say together and sets up the
 // engine; it writes nothing.
-func newJob(spec *Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, error) {
+func newJob(spec *runspec.Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, error) {
 	log := opt.Log
 	if log == nil {
 		log = slog.New(slog.NewTextHandler(devNull{}, nil))
@@ -106,7 +107,7 @@ func newJob(spec *Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, e
 			return nil, fault.Input(errors.New(r.Refusal()))
 		}
 	}
-	ccfg, err := spec.climateConfig(cat)
+	ccfg, err := spec.ClimateConfig(cat)
 	if err != nil {
 		return nil, fault.Input(err)
 	}
@@ -126,17 +127,17 @@ func newJob(spec *Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, e
 		workers = runtime.NumCPU()
 	}
 	return &job{spec: spec, opt: opt, log: log, cat: cat, eng: eng, ids: ids, out: spec.Output.Dir,
-		lo: 0, hi: cat.Grid.NCells(), workers: workers, acfg: spec.analysisConfigFor(cat),
+		lo: 0, hi: cat.Grid.NCells(), workers: workers, acfg: spec.AnalysisConfigFor(cat),
 		seen: map[int]ingest.Tally{}, timings: map[string]float64{}, t0: t0}, nil
 }
 
 // validateRun is the validate stage of Run.
-func validateRun(ctx context.Context, spec *Spec, opt Options) (*job, error) {
+func validateRun(ctx context.Context, spec *runspec.Spec, opt Options) (*job, error) {
 	t0 := time.Now()
 	if err := spec.Validate(); err != nil {
 		return nil, fault.Input(err)
 	}
-	if err := spec.checkRoles(); err != nil {
+	if err := spec.CheckRoles(); err != nil {
 		return nil, fault.Input(err)
 	}
 	if opt.Update && opt.Restart {
@@ -230,7 +231,7 @@ func (j *job) restoreOwn(trusted int) func(pi int, p [2]int) ([]*cell, int, erro
 
 // ckWant is the checkpoint header of pass p under this job.
 func (j *job) ckWant(p [2]int) ckHeader {
-	return ckHeader{Fingerprint: j.spec.Fingerprint(), Spec: j.spec.fingerprintJSON(), Inputs: j.ids, C0: p[0], C1: p[1], spec: j.spec}
+	return ckHeader{Fingerprint: j.spec.Fingerprint(), Spec: j.spec.FingerprintJSON(), Inputs: j.ids, C0: p[0], C1: p[1], spec: j.spec}
 }
 
 // stream is the stream stage of one pass: it feeds the files from..end to

@@ -9,6 +9,7 @@ import (
 
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 	"swellgrid/stats/climate"
 	"swellgrid/stats/extremes"
 	"swellgrid/stats/seastate"
@@ -26,7 +27,7 @@ type cell struct {
 // engine holds what every worker shares read-only during a pass.
 type engine struct {
 	cat      *ingest.Catalog
-	spec     *Spec
+	spec     *runspec.Spec
 	ccfg     *climate.Config
 	xcfg     extremes.CollectorConfig
 	layout   *seastate.Layout
@@ -67,7 +68,7 @@ func (e *engine) addStreamTimings(m map[string]float64) {
 	m["checkpoint_s"] += e.times.fileDone.Seconds()
 }
 
-func newEngine(cat *ingest.Catalog, spec *Spec, ccfg *climate.Config) (*engine, error) {
+func newEngine(cat *ingest.Catalog, spec *runspec.Spec, ccfg *climate.Config) (*engine, error) {
 	e := &engine{cat: cat, spec: spec, ccfg: ccfg,
 		consts: seastate.Consts{Rho: spec.Physics.Rho, G: spec.Physics.G},
 		xcfg:   extremes.CollectorConfig{YearStartMonth: spec.Extremes.YearStartMonth, SeparationHours: spec.Extremes.SeparationH},

@@ -8,6 +8,7 @@ import (
 	"time"
 
 	"swellgrid/ingest"
+	"swellgrid/pipelines/runspec"
 )
 
 // benchFeed reads a fixture into memory once, then measures feeding every
@@ -15,13 +16,13 @@ import (
 // bulk power or spectral parameters, climate and extremes accumulators), one
 // worker, and reports cell-steps per second.
 func benchFeed(b *testing.B, input string) {
-	spec := DefaultSpec()
+	spec := runspec.DefaultSpec()
 	spec.Input.Paths = []string{input}
-	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
+	cat, err := ingest.Open(spec.Input.Paths, spec.IngestOptions())
 	if err != nil {
 		b.Fatal(err)
 	}
-	ccfg, err := spec.climateConfig(cat)
+	ccfg, err := spec.ClimateConfig(cat)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -87,13 +88,13 @@ func processCPU() time.Duration {
 // intervals) on the states of the 24-file (2-year) bulk fixture, one worker,
 // and reports cells per second.
 func BenchmarkFinishBulk(b *testing.B) {
-	spec := DefaultSpec()
+	spec := runspec.DefaultSpec()
 	spec.Input.Paths = []string{filepath.Join("..", "testdata", "bulk_monthly")}
-	cat, err := ingest.Open(spec.Input.Paths, spec.ingestOptions())
+	cat, err := ingest.Open(spec.Input.Paths, spec.IngestOptions())
 	if err != nil {
 		b.Fatal(err)
 	}
-	ccfg, err := spec.climateConfig(cat)
+	ccfg, err := spec.ClimateConfig(cat)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -118,7 +119,7 @@ func BenchmarkFinishBulk(b *testing.B) {
 	for blk := range out {
 		e.feed(blk, e.blockTimes(blk), cells, 0, n)
 	}
-	acfg := spec.analysisConfig()
+	acfg := spec.AnalysisConfig()
 	b.ReportAllocs()
 	cpu0 := processCPU()
 	b.ResetTimer()

@@ -15,6 +15,7 @@ import (
 	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 // The time-weighting checks (issue 27): the whole pipeline on the fixtures of
@@ -216,7 +217,7 @@ func readTWRef(t *testing.T, variant string) *twRef {
 // temporary directory.
 func runTW(t *testing.T, variant string) (string, error) {
 	t.Helper()
-	s, err := LoadSpec("../testdata/timeweight/spec_" + variant + ".toml")
+	s, err := runspec.LoadSpec("../testdata/timeweight/spec_" + variant + ".toml")
 	if err != nil {
 		return "", err
 	}
@@ -543,7 +544,7 @@ func TestTimeWeightUpdate(t *testing.T) {
 		t.Fatalf("fixture a: %d files, want 36", len(files))
 	}
 	tmp := t.TempDir()
-	spec := func(in []string, out string) *Spec {
+	spec := func(in []string, out string) *runspec.Spec {
 		s := clSpec(in, out)
 		return s
 	}
@@ -582,7 +583,7 @@ func TestTimeWeightUpdateSharedStep(t *testing.T) {
 	}
 	for _, policy := range []string{"", "last"} {
 		tmp := t.TempDir()
-		spec := func(in []string, out string) *Spec {
+		spec := func(in []string, out string) *runspec.Spec {
 			s := clSpec(in, out)
 			s.Input.DuplicateSteps = policy
 			return s

@@ -5,12 +5,15 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"maps"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 
 	"swellgrid/ingest"
+	"swellgrid/pipelines/runspec"
 )
 
 // An incremental update (Options.Update) continues a finished run with the
@@ -87,7 +90,7 @@ func readPriorRun(dir string) (*priorRun, error) {
 // with the same size, and final states for every cell. It reads and writes
 // nothing else; the earlier files' contents are compared by
 // inputContentChanges once their checksums are known.
-func checkUpdate(dir string, spec *Spec, cat *ingest.Catalog, sh *Shard) (*updatePlan, error) {
+func checkUpdate(dir string, spec *runspec.Spec, cat *ingest.Catalog, sh *Shard) (*updatePlan, error) {
 	prior, err := readPriorRun(dir)
 	if err != nil {
 		return nil, err
@@ -195,7 +198,7 @@ func short(h string) string {
 // fingerprintChanges names what differs between a recorded fingerprinted
 // spec (ckHeader.Spec) and spec: the settings sections, and the files named
 // by the spec whose content changed.
-func fingerprintChanges(prior json.RawMessage, spec *Spec) string {
+func fingerprintChanges(prior json.RawMessage, spec *runspec.Spec) string {
 	var old struct {
 		Spec  map[string]json.RawMessage `json:"spec"`
 		Files map[string]string          `json:"files"`
@@ -203,30 +206,30 @@ func fingerprintChanges(prior json.RawMessage, spec *Spec) string {
 	if spec == nil || len(prior) == 0 || json.Unmarshal(prior, &old) != nil {
 		return "the earlier settings are not recorded"
 	}
-	now := spec.fingerprinted()
+	now := spec.Fingerprinted()
 	b, _ := json.Marshal(now.Spec)
 	sec := map[string]json.RawMessage{}
 	json.Unmarshal(b, &sec)
 	var diff []string
-	for _, k := range keys(sec) {
+	for _, k := range slices.Sorted(maps.Keys(sec)) {
 		if !bytes.Equal(old.Spec[k], sec[k]) {
 			diff = append(diff, k)
 		}
 	}
-	for _, k := range keys(old.Spec) {
+	for _, k := range slices.Sorted(maps.Keys(old.Spec)) {
 		if _, ok := sec[k]; !ok {
 			diff = append(diff, k)
 		}
 	}
 	var files []string
-	for _, n := range spec.named {
+	for _, n := range spec.NamedFiles() {
 		if o, ok := old.Files[n.Key]; !ok {
 			files = append(files, fmt.Sprintf("%s %s is new", n.Key, n.Path))
 		} else if o != n.SHA256 {
 			files = append(files, fmt.Sprintf("the content of %s %s (SHA-256 %s then, %s now)", n.Key, n.Path, short(o), short(n.SHA256)))
 		}
 	}
-	for _, k := range keys(old.Files) {
+	for _, k := range slices.Sorted(maps.Keys(old.Files)) {
 		if _, ok := now.Files[k]; !ok {
 			files = append(files, k+" is no longer given")
 		}
@@ -245,14 +248,14 @@ func fingerprintChanges(prior json.RawMessage, spec *Spec) string {
 // specChanges names the spec sections that differ between the earlier run's
 // recorded spec and spec (ignoring the input paths, output directory and run
 // settings, as Fingerprint does).
-func specChanges(prior json.RawMessage, spec *Spec) string {
-	var old Spec
+func specChanges(prior json.RawMessage, spec *runspec.Spec) string {
+	var old runspec.Spec
 	if len(prior) == 0 || json.Unmarshal(prior, &old) != nil {
 		return "the earlier spec is not recorded"
 	}
-	sections := func(s *Spec) map[string]json.RawMessage {
+	sections := func(s *runspec.Spec) map[string]json.RawMessage {
 		c := *s
-		c.Output, c.Input.Paths, c.Run = OutputSpec{}, nil, RunSpec{}
+		c.Output, c.Input.Paths, c.Run = runspec.OutputSpec{}, nil, runspec.RunSpec{}
 		b, _ := json.Marshal(&c)
 		m := map[string]json.RawMessage{}
 		json.Unmarshal(b, &m)

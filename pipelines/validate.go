@@ -9,7 +9,6 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
-	"strconv"
 	"strings"
 
 	"swellgrid/export"
@@ -18,118 +17,19 @@ import (
 	"swellgrid/grid"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 	"swellgrid/stats/climate"
 	"swellgrid/stats/seastate"
 	"swellgrid/stats/validate"
 )
-
-// ValidationSpec is the [validation] section of a run spec: how `swellgrid
-// validate` places the stations on the grid and matches their times.
-type ValidationSpec struct {
-	// Observations are the station files (files, directories, globs); the
-	// --obs flag replaces them.
-	Observations []string `toml:"observations" json:"observations,omitempty"`
-	// MaxDistanceKm: a station farther than this from its nearest sea cell
-	// (great-circle distance) is refused.
-	MaxDistanceKm float64 `toml:"max_distance_km" json:"max_distance_km"`
-	// Location: "nearest" (the nearest sea cell) or "bilinear" (the four
-	// cells around the station, regular grids).
-	Location string `toml:"location" json:"location"`
-	// MaxTimeDiffMin: a measured time is matched to the nearest hindcast
-	// step at most this many minutes away.
-	MaxTimeDiffMin float64 `toml:"max_time_diff_min" json:"max_time_diff_min"`
-	// Time: "nearest" (the nearest step within MaxTimeDiffMin) or
-	// "interpolate" (linear in time between the two steps around the
-	// measured time, which must be consecutive steps of the record).
-	Time string `toml:"time" json:"time"`
-	// StormPercentile: the storm tail is the measured Hm0 above this
-	// percentile of the station's matched measured Hm0.
-	StormPercentile float64 `toml:"storm_percentile" json:"storm_percentile"`
-	// PlotStart and PlotDays choose the period of the report's time-series
-	// overlay ("" = the station's first matched time; 0 days = 30).
-	PlotStart string  `toml:"plot_start" json:"plot_start,omitempty"`
-	PlotDays  float64 `toml:"plot_days" json:"plot_days,omitempty"`
-}
-
-// DefaultValidation is the [validation] section of the common case.
-func DefaultValidation() ValidationSpec {
-	return ValidationSpec{MaxDistanceKm: 25, Location: "nearest", MaxTimeDiffMin: 30, Time: "nearest", StormPercentile: 95, PlotDays: 30}
-}
-
-// withDefaults fills the keys a spec leaves out.
-func (v *ValidationSpec) withDefaults() ValidationSpec {
-	d := DefaultValidation()
-	if v == nil {
-		return d
-	}
-	o := *v
-	if o.MaxDistanceKm == 0 {
-		o.MaxDistanceKm = d.MaxDistanceKm
-	}
-	if o.Location == "" {
-		o.Location = d.Location
-	}
-	if o.MaxTimeDiffMin == 0 {
-		o.MaxTimeDiffMin = d.MaxTimeDiffMin
-	}
-	if o.Time == "" {
-		o.Time = d.Time
-	}
-	if o.StormPercentile == 0 {
-		o.StormPercentile = d.StormPercentile
-	}
-	if o.PlotDays == 0 {
-		o.PlotDays = d.PlotDays
-	}
-	return o
-}
-
-// check refuses a [validation] section that makes no sense, naming the key.
-func (v *ValidationSpec) check() error {
-	if v == nil {
-		return nil
-	}
-	o := v.withDefaults()
-	bad := func(key, why string, x any) error {
-		return fmt.Errorf("spec: validation.%s = %v: %s", key, x, why)
-	}
-	switch {
-	case !(o.MaxDistanceKm > 0 && o.MaxDistanceKm <= 500):
-		return bad("max_distance_km", "must be a distance in km, 0 < d <= 500", o.MaxDistanceKm)
-	case o.Location != "nearest" && o.Location != "bilinear":
-		return bad("location", `must be "nearest" or "bilinear"`, strconv.Quote(o.Location))
-	case !(o.MaxTimeDiffMin > 0 && o.MaxTimeDiffMin <= 1440):
-		return bad("max_time_diff_min", "must be minutes, 0 < m <= 1440", o.MaxTimeDiffMin)
-	case o.Time != "nearest" && o.Time != "interpolate":
-		return bad("time", `must be "nearest" or "interpolate"`, strconv.Quote(o.Time))
-	case !(o.StormPercentile >= 50 && o.StormPercentile < 100):
-		return bad("storm_percentile", "must be a percentile, 50 <= p < 100", o.StormPercentile)
-	case !(o.PlotDays > 0 && o.PlotDays <= 3660):
-		return bad("plot_days", "must be days, 0 < d <= 3660", o.PlotDays)
-	}
-	if o.PlotStart != "" {
-		if _, err := parsePlotStart(o.PlotStart); err != nil {
-			return bad("plot_start", err.Error(), strconv.Quote(o.PlotStart))
-		}
-	}
-	return nil
-}
-
-func parsePlotStart(s string) (ingest.Date, error) {
-	var d ingest.Date
-	if _, err := fmt.Sscanf(s, "%d-%d-%d", &d.Year, &d.Month, &d.Day); err != nil || d.Month < 1 || d.Month > 12 || d.Day < 1 || d.Day > 31 {
-		return d, fmt.Errorf("must be a date YYYY-MM-DD")
-	}
-	return d, nil
-}
 
 // ValidateOptions are the inputs of Validate.
 type ValidateOptions struct {
 	RunDir string   // a finished run directory (manifest.json, cells.parquet)
 	Obs    []string // observation files, directories or globs (nil: the spec's validation.observations)
 	OutDir string   // where to write (""= RunDir)
-	// Spec, if set, gives the [validation] section instead of the run's recorded spec.
-	Spec *Spec
+	// runspec.Spec, if set, gives the [validation] section instead of the run's recorded spec.
+	Spec *runspec.Spec
 }
 
 // ValidateResult is what Validate wrote.
@@ -158,14 +58,14 @@ func Validate(ctx context.Context, opt ValidateOptions) (*ValidateResult, error)
 		return nil, fault.Input(err)
 	}
 	if opt.Spec != nil {
-		if err := opt.Spec.Validation.check(); err != nil {
+		if err := opt.Spec.Validation.Check(); err != nil {
 			return nil, fault.Input(err)
 		}
 		spec.Validation = opt.Spec.Validation
-	} else if err := spec.Validation.check(); err != nil {
+	} else if err := spec.Validation.Check(); err != nil {
 		return nil, fault.Input(err)
 	}
-	vs := spec.Validation.withDefaults()
+	vs := spec.Validation.WithDefaults()
 	obsIn := opt.Obs
 	if len(obsIn) == 0 {
 		obsIn = vs.Observations
@@ -181,7 +81,7 @@ func Validate(ctx context.Context, opt ValidateOptions) (*ValidateResult, error)
 	for i, st := range stations {
 		stNames[i] = st.Name
 	}
-	if err := checkFileNames("station", stNames, func(i int) string { return "validate: " + ingest.TermText(stations[i].Source) }, atlasreport.StationNameOverhead); err != nil {
+	if err := runspec.CheckFileNames("station", stNames, func(i int) string { return "validate: " + ingest.TermText(stations[i].Source) }, atlasreport.StationNameOverhead); err != nil {
 		return nil, fault.Input(err)
 	}
 	cat, err := reopenCatalog(ctx, run, spec)
@@ -253,7 +153,7 @@ func Validate(ctx context.Context, opt ValidateOptions) (*ValidateResult, error)
 }
 
 // openValidationRun reads the run's manifest and its recorded spec.
-func openValidationRun(dir string) (*rundir.Run, *Spec, error) {
+func openValidationRun(dir string) (*rundir.Run, *runspec.Spec, error) {
 	run, err := rundir.Open(dir, nil)
 	if err != nil {
 		return nil, nil, err
@@ -264,7 +164,7 @@ func openValidationRun(dir string) (*rundir.Run, *Spec, error) {
 	if err := json.Unmarshal(run.Manifest.Raw, &raw); err != nil || len(raw.Parameters) == 0 {
 		return nil, nil, fmt.Errorf("validate: %s/manifest.json has no recorded spec (parameters); rerun the run with this version", dir)
 	}
-	spec := DefaultSpec()
+	spec := runspec.DefaultSpec()
 	if err := json.Unmarshal(raw.Parameters, spec); err != nil {
 		return nil, nil, fmt.Errorf("validate: %s/manifest.json: parameters: %w", dir, err)
 	}
@@ -274,7 +174,7 @@ func openValidationRun(dir string) (*rundir.Run, *Spec, error) {
 // reopenCatalog opens the hindcast files the run's manifest lists, with the
 // run's roles, units and depth, and checks they are still the files the run
 // read (count, sizes, steps and times).
-func reopenCatalog(ctx context.Context, run *rundir.Run, spec *Spec) (*ingest.Catalog, error) {
+func reopenCatalog(ctx context.Context, run *rundir.Run, spec *runspec.Spec) (*ingest.Catalog, error) {
 	var paths []string
 	for _, in := range run.Manifest.Inputs {
 		paths = append(paths, in.Path)
@@ -282,7 +182,7 @@ func reopenCatalog(ctx context.Context, run *rundir.Run, spec *Spec) (*ingest.Ca
 	if len(paths) == 0 {
 		return nil, fault.Input(fmt.Errorf("validate: %s/manifest.json lists no input files", run.Dir))
 	}
-	opt := spec.ingestOptions()
+	opt := spec.IngestOptions()
 	opt.Ctx = ctx
 	if strings.HasPrefix(run.Manifest.DepthSource, "bathymetry") && spec.Depth.BathymetryFile != "" {
 		opt.BathymetryFile = spec.Depth.BathymetryFile
@@ -310,8 +210,8 @@ func reopenCatalog(ctx context.Context, run *rundir.Run, spec *Spec) (*ingest.Ca
 // validator holds what the comparison of every station shares.
 type validator struct {
 	cat    *ingest.Catalog
-	spec   *Spec
-	vs     ValidationSpec
+	spec   *runspec.Spec
+	vs     runspec.ValidationSpec
 	consts seastate.Consts
 	// series are the hindcast's bulk values of the cells read, per cell id.
 	series map[int]*cellSeries
@@ -736,7 +636,7 @@ type ValidationSummary struct {
 	Software string                  `json:"software"`
 	Caution  string                  `json:"caution"`
 	Run      string                  `json:"run"`
-	Settings ValidationSpec          `json:"settings"`
+	Settings runspec.ValidationSpec  `json:"settings"`
 	Record   [2]string               `json:"hindcast_record"`
 	Calendar string                  `json:"calendar"`
 	Stations []ValidationStationSum  `json:"stations"`
@@ -824,7 +724,7 @@ func (v *validator) plotPeriod(r *stationResult) (string, string) {
 	cal := v.cat.Calendar
 	start := v.cat.Times()[r.matches[0].s0]
 	if v.vs.PlotStart != "" {
-		d, _ := parsePlotStart(v.vs.PlotStart)
+		d, _ := runspec.ParsePlotStart(v.vs.PlotStart)
 		start = ingest.StampOf(cal, d)
 	}
 	end := start + ingest.Stamp(v.vs.PlotDays*86400)

@@ -14,6 +14,7 @@ import (
 
 	"swellgrid/export/rundir"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 // stationExpected is testdata/validate/station_expected.json, made by
@@ -190,9 +191,9 @@ func TestValidateSyntheticStation(t *testing.T) {
 	// Interpolated in time: the measured times 45 min after a step are now
 	// matched too (between two steps of the record).
 	out2 := t.TempDir()
-	v := DefaultValidation()
+	v := runspec.DefaultValidation()
 	v.Time = "interpolate"
-	if _, err := Validate(context.Background(), ValidateOptions{RunDir: run, Obs: []string{"../testdata/validate/station_synth.csv"}, OutDir: out2, Spec: &Spec{Validation: &v}}); err != nil {
+	if _, err := Validate(context.Background(), ValidateOptions{RunDir: run, Obs: []string{"../testdata/validate/station_synth.csv"}, OutDir: out2, Spec: &runspec.Spec{Validation: &v}}); err != nil {
 		t.Fatal(err)
 	}
 	if m := readSummary(t, out2).Stations[0].Matched; m < int(exp.A["matched"]+exp.A["unmatched_inside"])-1 {
@@ -213,10 +214,10 @@ func TestValidateBilinearAndDistance(t *testing.T) {
 	if err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), `station "SYN-MID"`) || !strings.Contains(err.Error(), "max_distance_km = 25") || !strings.Contains(err.Error(), "station_mid.csv") {
 		t.Errorf("station 28 km away: %v (exit %d); want refused naming the station, the file and the limit", err, fault.ExitCode(err))
 	}
-	v := DefaultValidation()
+	v := runspec.DefaultValidation()
 	v.Location, v.MaxDistanceKm = "bilinear", 40
 	out := t.TempDir()
-	if _, err := Validate(context.Background(), ValidateOptions{RunDir: run, Obs: obs, OutDir: out, Spec: &Spec{Validation: &v}}); err != nil {
+	if _, err := Validate(context.Background(), ValidateOptions{RunDir: run, Obs: obs, OutDir: out, Spec: &runspec.Spec{Validation: &v}}); err != nil {
 		t.Fatal(err)
 	}
 	tb, err := rundir.ReadTable(filepath.Join(out, "validation.parquet"))

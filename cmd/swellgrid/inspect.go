@@ -8,6 +8,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"swellgrid/pipelines"
+	"swellgrid/pipelines/runspec"
 )
 
 func newInspectCmd() *cobra.Command {
@@ -38,9 +39,9 @@ Bad input stops it with a message naming the file, the variable and what to do
   swellgrid inspect --spec my-run.toml`,
 		Args: cobra.ArbitraryArgs, // paths, or none with --spec
 		RunE: func(cmd *cobra.Command, args []string) error {
-			spec := pipelines.DefaultSpec()
+			spec := runspec.DefaultSpec()
 			if specFile != "" {
-				s, err := pipelines.LoadSpec(specFile)
+				s, err := runspec.LoadSpec(specFile)
 				if err != nil {
 					return badInput(err)
 				}

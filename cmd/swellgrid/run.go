@@ -15,6 +15,7 @@ import (
 	"golang.org/x/term"
 
 	"swellgrid/pipelines"
+	"swellgrid/pipelines/runspec"
 )
 
 // caution is the one caution text (pipelines.Caution), wrapped for the help.
@@ -65,7 +66,7 @@ func (f *runFlags) register(cmd *cobra.Command) {
 
 // runOptions turns --shard and --update into run options; --update DIR is
 // the output directory.
-func (f *runFlags) runOptions(spec *pipelines.Spec) (pipelines.Options, error) {
+func (f *runFlags) runOptions(spec *runspec.Spec) (pipelines.Options, error) {
 	opt := pipelines.Options{Restart: f.restart, Update: f.update != ""}
 	if f.shard != "" {
 		sh, err := pipelines.ParseShard(f.shard)
@@ -84,10 +85,10 @@ func (f *runFlags) runOptions(spec *pipelines.Spec) (pipelines.Options, error) {
 }
 
 // buildSpec applies the flags over the spec file (or the defaults).
-func (f *runFlags) buildSpec() (*pipelines.Spec, error) {
-	spec := pipelines.DefaultSpec()
+func (f *runFlags) buildSpec() (*runspec.Spec, error) {
+	spec := runspec.DefaultSpec()
 	if f.spec != "" {
-		s, err := pipelines.LoadSpec(f.spec)
+		s, err := runspec.LoadSpec(f.spec)
 		if err != nil {
 			return nil, err
 		}
@@ -193,7 +194,7 @@ Exit codes: 0 ok, 1 internal error (stack saved in DIR/swellgrid-internal-error.
 
 // runSpecWith runs the pipeline with progress on stderr; on a signal the
 // run stops and says how to resume.
-func runSpecWith(spec *pipelines.Spec, opt pipelines.Options) (*pipelines.Result, error) {
+func runSpecWith(spec *runspec.Spec, opt pipelines.Options) (*pipelines.Result, error) {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
 	log := slog.New(slog.NewTextHandler(os.Stderr, nil))

@@ -10,6 +10,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"swellgrid/pipelines"
+	"swellgrid/pipelines/runspec"
 )
 
 func newValidateCmd() *cobra.Command {
@@ -49,7 +50,7 @@ Agreement with a few stations does not make the hindcast fit for design.
 			}
 			opt := pipelines.ValidateOptions{RunDir: runDir, Obs: obs, OutDir: out}
 			if specPath != "" {
-				s, err := pipelines.LoadSpec(specPath)
+				s, err := runspec.LoadSpec(specPath)
 				if err != nil {
 					return err
 				}

@@ -17,6 +17,7 @@ import (
 
 	"swellgrid/ingest"
 	"swellgrid/pipelines"
+	"swellgrid/pipelines/runspec"
 )
 
 // Case is one measured run, made in a child process of its own.
@@ -56,7 +57,7 @@ func RunChild(c Case) (*Measure, error) {
 			m.InputSize += st.Size()
 		}
 	}
-	spec := pipelines.DefaultSpec()
+	spec := runspec.DefaultSpec()
 	switch c.Mode {
 	case "floor", "ingest":
 		t0 := time.Now()

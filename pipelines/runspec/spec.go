@@ -1,4 +1,4 @@
-package pipelines
+package runspec
 
 import (
 	"bytes"
@@ -15,6 +15,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	atlasreport "swellgrid/export/report"
 
 	"github.com/BurntSushi/toml"
 
@@ -51,13 +52,13 @@ type Spec struct {
 	// named are the files the spec names (power matrices, bathymetry) with
 	// their content, read by Validate: their SHA-256 is in the fingerprint
 	// and the power matrices are parsed from these bytes.
-	named []namedFile
+	named []NamedFile
 	// layers are the screening layers read by Validate.
-	layers []*screenLayer
+	layers []*ScreenLayer
 }
 
-// namedFile is a file a spec names, by its key, with its content's SHA-256.
-type namedFile struct {
+// NamedFile is a file a spec names, by its key, with its content's SHA-256.
+type NamedFile struct {
 	Key    string `json:"key"`
 	Path   string `json:"path"`
 	SHA256 string `json:"sha256"`
@@ -445,7 +446,7 @@ func (s *Spec) Validate() error {
 	if strings.IndexByte(s.Output.Dir, 0) >= 0 {
 		return fmt.Errorf("spec: output.dir (or --out) %q contains a NUL byte, which no file name may hold; give another directory", ingest.ShortText(s.Output.Dir))
 	}
-	if err := s.Validation.check(); err != nil {
+	if err := s.Validation.Check(); err != nil {
 		return err
 	}
 	if err := checkSites(s.Sites); err != nil {
@@ -492,7 +493,7 @@ func withinLimit(key string, n int) error {
 // their size and row limits, the bathymetry file) and records its SHA-256,
 // so that the fingerprint changes with their content.
 func (s *Spec) readNamedFiles() error {
-	var named []namedFile
+	var named []NamedFile
 	for i, d := range s.Devices {
 		key := fmt.Sprintf("device[%d].power_matrix", i)
 		b, err := readBounded(d.PowerMatrix, maxMatrixBytes)
@@ -508,7 +509,7 @@ func (s *Spec) readNamedFiles() error {
 			}
 		}
 		h := sha256.Sum256(b)
-		named = append(named, namedFile{Key: key, Path: d.PowerMatrix, SHA256: hex.EncodeToString(h[:]), data: b})
+		named = append(named, NamedFile{Key: key, Path: d.PowerMatrix, SHA256: hex.EncodeToString(h[:]), data: b})
 	}
 	if s.Depth.Source == "bathymetry" {
 		key := "depth.bathymetry_file"
@@ -516,7 +517,7 @@ func (s *Spec) readNamedFiles() error {
 		if err != nil {
 			return fmt.Errorf("spec: %s = %q: %w", key, s.Depth.BathymetryFile, err)
 		}
-		named = append(named, namedFile{Key: key, Path: s.Depth.BathymetryFile, SHA256: sum})
+		named = append(named, NamedFile{Key: key, Path: s.Depth.BathymetryFile, SHA256: sum})
 	}
 	s.named = named
 	return nil
@@ -570,7 +571,7 @@ func hashBounded(path string, limit int64) (string, error) {
 	return hex.EncodeToString(h.Sum(nil)), nil
 }
 
-// namedFile returns the content read by Validate of the file under key.
+// NamedFile returns the content read by Validate of the file under key.
 func (s *Spec) namedData(key string) ([]byte, bool) {
 	for _, n := range s.named {
 		if n.Key == key {
@@ -625,20 +626,21 @@ func ParseSize(s string) (int64, error) {
 // whatever their path is spelled like): a checkpoint or an update is refused
 // when it differs.
 func (s *Spec) Fingerprint() string {
-	b, _ := json.Marshal(s.fingerprinted())
+	b, _ := json.Marshal(s.Fingerprinted())
 	// Maps marshal with sorted keys, so the bytes are stable.
 	h := sha256.Sum256(b)
 	return hex.EncodeToString(h[:])
 }
 
-// fingerprinted is what Fingerprint hashes: the spec's result-changing
+// FingerprintedSpec is what Fingerprint hashes: the spec's result-changing
 // settings and the named files' checksums by key.
-type fingerprinted struct {
+type FingerprintedSpec struct {
 	Spec  *Spec             `json:"spec"`
 	Files map[string]string `json:"files,omitempty"`
 }
 
-func (s *Spec) fingerprinted() fingerprinted {
+// Fingerprinted is the spec part and named-file checksums that Fingerprint hashes.
+func (s *Spec) Fingerprinted() FingerprintedSpec {
 	c := *s
 	c.Output = OutputSpec{}
 	c.Input.Paths = nil // inputs are compared file by file (size, checksum)
@@ -668,13 +670,13 @@ func (s *Spec) fingerprinted() fingerprinted {
 		}
 		c.Screening = &sc
 	}
-	return fingerprinted{Spec: &c, Files: files}
+	return FingerprintedSpec{Spec: &c, Files: files}
 }
 
-// fingerprintJSON is what Fingerprint hashes, for a checkpoint's header, so
+// FingerprintJSON is what Fingerprint hashes, for a checkpoint's header, so
 // that a refusal can name what changed.
-func (s *Spec) fingerprintJSON() json.RawMessage {
-	b, _ := json.Marshal(s.fingerprinted())
+func (s *Spec) FingerprintJSON() json.RawMessage {
+	b, _ := json.Marshal(s.Fingerprinted())
 	return b
 }
 
@@ -687,3 +689,32 @@ func keys[V any](m map[string]V) []string {
 	sort.Strings(out)
 	return out
 }
+
+func checkSites(sites []SiteSpec) error {
+	seen := map[string]bool{}
+	for i, st := range sites {
+		key := fmt.Sprintf("site[%d]", i)
+		if strings.TrimSpace(st.Name) == "" {
+			return fmt.Errorf("spec: %s.name is empty; give every [[site]] a name", key)
+		}
+		if seen[st.Name] {
+			return fmt.Errorf("spec: %s.name = %q appears twice", key, ingest.ShortText(st.Name))
+		}
+		seen[st.Name] = true
+		if !(st.Lat >= -90 && st.Lat <= 90) || math.IsNaN(st.Lon) || math.IsInf(st.Lon, 0) {
+			return fmt.Errorf("spec: %s (%q): lon = %v, lat = %v is not a position (degrees east, degrees north)", key, ingest.ShortText(st.Name), st.Lon, st.Lat)
+		}
+	}
+	names := make([]string, len(sites))
+	for i, st := range sites {
+		names[i] = st.Name
+	}
+	return CheckFileNames("site", names, func(i int) string { return fmt.Sprintf("spec: site[%d].name", i) }, atlasreport.SiteNameOverhead)
+}
+
+// Layers are the screening layers Validate read.
+func (s *Spec) Layers() []*ScreenLayer { return s.layers }
+
+// NamedFiles are the files the spec names (power matrices, bathymetry) with
+// their checksums, as Validate read them.
+func (s *Spec) NamedFiles() []NamedFile { return s.named }

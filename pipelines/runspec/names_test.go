@@ -1,4 +1,4 @@
-package pipelines
+package runspec
 
 import (
 	"strings"
@@ -24,7 +24,7 @@ func TestStationNamesAsFileNames(t *testing.T) {
 		{[]string{"buoy", strings.Repeat("x", 1_000_000), "b"}, []string{"b.nc", "1000000 bytes", "at most 200"}},
 		{[]string{"--", "b", "c"}, []string{"a.csv", "no letter or digit"}},
 	} {
-		err := checkFileNames("station", c.names, key, atlasreport.StationNameOverhead)
+		err := CheckFileNames("station", c.names, key, atlasreport.StationNameOverhead)
 		if err == nil {
 			t.Errorf("%.20q: accepted", c.names)
 			continue
@@ -39,7 +39,7 @@ func TestStationNamesAsFileNames(t *testing.T) {
 		}
 	}
 	long := strings.Repeat("y", maxNameLen)
-	if err := checkFileNames("station", []string{long, "ST-1", "st-2"}, key, atlasreport.StationNameOverhead); err != nil {
+	if err := CheckFileNames("station", []string{long, "ST-1", "st-2"}, key, atlasreport.StationNameOverhead); err != nil {
 		t.Errorf("distinct names refused: %v", err)
 	}
 	if n := len("validation_" + atlasreport.Slug(long) + "_scatter.png"); n > maxFileName {

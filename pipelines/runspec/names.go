@@ -1,4 +1,4 @@
-package pipelines
+package runspec
 
 import (
 	"fmt"
@@ -13,7 +13,7 @@ const (
 	maxNameLen  = 200 // bytes of a site or station name
 )
 
-// checkFileNames checks names that become parts of file names (the report's
+// CheckFileNames checks names that become parts of file names (the report's
 // site pages, the validation pages of stations) before anything is
 // computed or written: each at most maxNameLen bytes and its file names at
 // most maxFileName bytes with the prefix and suffix (overhead), with at
@@ -21,7 +21,7 @@ const (
 // share a page, one silently replacing the other). what names the list
 // ("site", "station"), key(i) the i-th entry for the message. Messages
 // quote at most a short prefix of a name, escaped for the terminal.
-func checkFileNames(what string, names []string, key func(i int) string, overhead int) error {
+func CheckFileNames(what string, names []string, key func(i int) string, overhead int) error {
 	seen := make(map[string]int, len(names))
 	for i, n := range names {
 		q := ingest.ShortText(n)

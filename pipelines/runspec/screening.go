@@ -1,4 +1,4 @@
-package pipelines
+package runspec
 
 // The [screening] section of the run spec: constraint layers and named
 // scenarios, and the reading and validation of the layers' files.
@@ -67,11 +67,11 @@ type DistanceRule struct {
 	MaxKm float64 `toml:"max_km" json:"max_km,omitempty"`
 }
 
-// screenLayer is a layer read and validated: its geometries and checksum.
-type screenLayer struct {
+// ScreenLayer is a layer read and validated: its geometries and checksum.
+type ScreenLayer struct {
 	ScreenLayerSpec
 	SHA256   string
-	geoms    []orb.Geometry
+	Geoms    []orb.Geometry
 	polygons bool // every geometry is a (multi)polygon
 }
 
@@ -79,10 +79,10 @@ var screenName = regexp.MustCompile(`^[a-z][a-z0-9_]{0,39}$`)
 
 const maxLayerBytes = 256 << 20
 
-// criterion is a parsed criterion.
-type criterion struct {
-	text   string
-	column string
+// Criterion is a parsed screening criterion ("COLUMN >= X", "COLUMN between A and B").
+type Criterion struct {
+	Text   string
+	Column string
 	op     string // >=, <=, >, <, between
 	a, b   float64
 }
@@ -90,7 +90,7 @@ type criterion struct {
 var critRe = regexp.MustCompile(`^\s*([a-z][a-z0-9_]*)\s*(>=|<=|>|<)\s*(\S+)\s*$`)
 var betweenRe = regexp.MustCompile(`^\s*([a-z][a-z0-9_]*)\s+between\s+(\S+)\s+and\s+(\S+)\s*$`)
 
-func parseCriterion(s string) (criterion, error) {
+func ParseCriterion(s string) (Criterion, error) {
 	num := func(t string) (float64, error) {
 		v, err := strconv.ParseFloat(t, 64)
 		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
@@ -101,29 +101,29 @@ func parseCriterion(s string) (criterion, error) {
 	if m := betweenRe.FindStringSubmatch(s); m != nil {
 		a, err := num(m[2])
 		if err != nil {
-			return criterion{}, err
+			return Criterion{}, err
 		}
 		b, err := num(m[3])
 		if err != nil {
-			return criterion{}, err
+			return Criterion{}, err
 		}
 		if a > b {
-			return criterion{}, fmt.Errorf("between %g and %g: the first bound must not exceed the second", a, b)
+			return Criterion{}, fmt.Errorf("between %g and %g: the first bound must not exceed the second", a, b)
 		}
-		return criterion{text: fmt.Sprintf("%s between %g and %g", m[1], a, b), column: m[1], op: "between", a: a, b: b}, nil
+		return Criterion{Text: fmt.Sprintf("%s between %g and %g", m[1], a, b), Column: m[1], op: "between", a: a, b: b}, nil
 	}
 	if m := critRe.FindStringSubmatch(s); m != nil {
 		a, err := num(m[3])
 		if err != nil {
-			return criterion{}, err
+			return Criterion{}, err
 		}
-		return criterion{text: fmt.Sprintf("%s %s %g", m[1], m[2], a), column: m[1], op: m[2], a: a}, nil
+		return Criterion{Text: fmt.Sprintf("%s %s %g", m[1], m[2], a), Column: m[1], op: m[2], a: a}, nil
 	}
-	return criterion{}, fmt.Errorf(`not a criterion; write "COLUMN >= X" (or <=, >, <) or "COLUMN between A and B"`)
+	return Criterion{}, fmt.Errorf(`not a criterion; write "COLUMN >= X" (or <=, >, <) or "COLUMN between A and B"`)
 }
 
-// holds reports whether v meets the criterion; a missing value (NaN) never does.
-func (c criterion) holds(v float64) bool {
+// Holds reports whether v meets the criterion; a missing value (NaN) never does.
+func (c Criterion) Holds(v float64) bool {
 	if math.IsNaN(v) {
 		return false
 	}
@@ -159,7 +159,7 @@ func (s *Spec) validateScreening(devices map[string]bool) error {
 		return err
 	}
 	s.layers = nil
-	byName := map[string]*screenLayer{}
+	byName := map[string]*ScreenLayer{}
 	for i, l := range sc.Layers {
 		key := fmt.Sprintf("screening.layer[%d]", i)
 		if !screenName.MatchString(l.Name) {
@@ -177,7 +177,7 @@ func (s *Spec) validateScreening(devices map[string]bool) error {
 		}
 		byName[l.Name] = sl
 		s.layers = append(s.layers, sl)
-		s.named = append(s.named, namedFile{Key: key + ".file", Path: l.File, SHA256: sl.SHA256})
+		s.named = append(s.named, NamedFile{Key: key + ".file", Path: l.File, SHA256: sl.SHA256})
 	}
 	seen := map[string]bool{}
 	for i, c := range sc.Scenarios {
@@ -193,7 +193,7 @@ func (s *Spec) validateScreening(devices map[string]bool) error {
 			return err
 		}
 		for k, t := range c.Criteria {
-			if _, err := parseCriterion(t); err != nil {
+			if _, err := ParseCriterion(t); err != nil {
 				return fmt.Errorf("spec: %s.criteria[%d] = %q: %w", key, k, t, err)
 			}
 		}
@@ -235,30 +235,30 @@ func (s *Spec) validateScreening(devices map[string]bool) error {
 }
 
 // readScreenLayer reads, checks and hashes one layer file.
-func readScreenLayer(l ScreenLayerSpec) (*screenLayer, error) {
+func readScreenLayer(l ScreenLayerSpec) (*ScreenLayer, error) {
 	b, err := readBounded(l.File, maxLayerBytes)
 	if err != nil {
 		return nil, err
 	}
 	h := sha256.Sum256(b)
-	sl := &screenLayer{ScreenLayerSpec: l, SHA256: hex.EncodeToString(h[:])}
+	sl := &ScreenLayer{ScreenLayerSpec: l, SHA256: hex.EncodeToString(h[:])}
 	switch {
 	case bytes.HasPrefix(b, []byte("SQLite format 3\x00")):
-		sl.geoms, err = readGeoPackageLayer(l.File, l.Table)
+		sl.Geoms, err = readGeoPackageLayer(l.File, l.Table)
 	default:
 		if l.Table != "" {
 			return nil, fmt.Errorf("table = %q is for GeoPackage files; this is not one (GeoJSON?)", l.Table)
 		}
-		sl.geoms, err = readGeoJSONLayer(b)
+		sl.Geoms, err = readGeoJSONLayer(b)
 	}
 	if err != nil {
 		return nil, err
 	}
-	if len(sl.geoms) == 0 {
+	if len(sl.Geoms) == 0 {
 		return nil, fmt.Errorf("the layer has no features")
 	}
 	sl.polygons = true
-	for k, g := range sl.geoms {
+	for k, g := range sl.Geoms {
 		if err := checkGeometry(g); err != nil {
 			return nil, fmt.Errorf("feature %d: %w", k, err)
 		}
@@ -461,8 +461,8 @@ func decodeGPKGGeometry(b []byte) (orb.Geometry, error) {
 	return g, nil
 }
 
-// screeningLayer returns the layer read by Validate under name.
-func (s *Spec) screeningLayer(name string) *screenLayer {
+// ScreeningLayer returns the layer read by Validate under name.
+func (s *Spec) ScreeningLayer(name string) *ScreenLayer {
 	for _, l := range s.layers {
 		if l.Name == name {
 			return l
@@ -487,9 +487,9 @@ func LoadScreeningSpec(path string) (*Spec, error) {
 	return s, nil
 }
 
-// distanceLayers lists the layers of distance rules, in order of first use:
+// DistanceLayers lists the layers of distance rules, in order of first use:
 // the dist_<layer>_km columns of screening.parquet.
-func (sc *ScreeningSpec) distanceLayers() []string {
+func (sc *ScreeningSpec) DistanceLayers() []string {
 	var out []string
 	seen := map[string]bool{}
 	for _, c := range sc.Scenarios {
@@ -503,20 +503,20 @@ func (sc *ScreeningSpec) distanceLayers() []string {
 	return out
 }
 
-// checkColumns refuses a criterion on a column the run does not write
+// CheckColumns refuses a criterion on a column the run does not write
 // (names: the run's cells.parquet columns), before anything is computed.
-func (sc *ScreeningSpec) checkColumns(names map[string]string) error {
+func (sc *ScreeningSpec) CheckColumns(names map[string]string) error {
 	if sc == nil {
 		return nil
 	}
 	for i, c := range sc.Scenarios {
 		for k, t := range c.Criteria {
-			cr, err := parseCriterion(t)
+			cr, err := ParseCriterion(t)
 			if err != nil {
 				return fmt.Errorf("spec: screening.scenario[%d].criteria[%d] = %q: %w", i, k, t, err)
 			}
-			if _, ok := names[cr.column]; !ok {
-				return fmt.Errorf("spec: screening.scenario[%d] (%s): criterion %q: %q is not a column of cells.parquet (see the README's column list)", i, c.Name, t, cr.column)
+			if _, ok := names[cr.Column]; !ok {
+				return fmt.Errorf("spec: screening.scenario[%d] (%s): criterion %q: %q is not a column of cells.parquet (see the README's column list)", i, c.Name, t, cr.Column)
 			}
 		}
 	}
