@@ -12,6 +12,7 @@ import (
 	"swellgrid/ingest"
 	"swellgrid/internal/parquetread"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/inspect"
 	"swellgrid/pipelines/runspec"
 )
 
@@ -284,7 +285,7 @@ func TestSpectralConventionSpecContradicts(t *testing.T) {
 // with the reading chosen and the key, where run stops; it refuses a
 // density mostly negative as a run does.
 func TestInspectReportsAmbiguousDensity(t *testing.T) {
-	r, err := Inspect([]string{"../testdata/conventions/rads_2d_per_rads.nc"}, ingest.Options{})
+	r, err := inspect.Inspect([]string{"../testdata/conventions/rads_2d_per_rads.nc"}, ingest.Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -299,7 +300,7 @@ func TestInspectReportsAmbiguousDensity(t *testing.T) {
 	}
 	// a log10 density under plain attributes: inspect's sample of the first
 	// steps is refused like a run, naming the key
-	_, err = Inspect([]string{"../testdata/conventions/log10_unlabelled.nc"}, ingest.Options{})
+	_, err = inspect.Inspect([]string{"../testdata/conventions/log10_unlabelled.nc"}, ingest.Options{})
 	if err == nil || !strings.Contains(err.Error(), "are negative") || !strings.Contains(err.Error(), "units.spectrum2d_encoding") {
 		t.Errorf("inspect of a log10 density under plain attributes: %v, want a refusal naming units.spectrum2d_encoding", err)
 	}

@@ -21,6 +21,7 @@ import (
 	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/inspect"
 	"swellgrid/pipelines/runspec"
 )
 
@@ -356,7 +357,7 @@ func TestDateLineMapsAndInspect(t *testing.T) {
 			t.Errorf("%s: map extent %v, want [171 -22 189 -14] (the cells' edges in the 0..360 frame)", f, ext)
 		}
 	}
-	r, err := Inspect([]string{"../testdata/dateline/pacific_pm180"}, ingest.Options{})
+	r, err := inspect.Inspect([]string{"../testdata/dateline/pacific_pm180"}, ingest.Options{})
 	if err != nil {
 		t.Fatal(err)
 	}

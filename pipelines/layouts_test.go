@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"swellgrid/internal/parquetread"
+	"swellgrid/pipelines/inspect"
 	"swellgrid/pipelines/runspec"
 )
 
@@ -201,7 +202,7 @@ func TestXarrayNaNAttributesManifest(t *testing.T) {
 	if !bytes.Contains(raw, []byte(`"hm0"`)) {
 		t.Error("manifest lacks the hm0 role")
 	}
-	r, err := Inspect([]string{"../testdata/layouts/combined"}, runspec.DefaultSpec().IngestOptions())
+	r, err := inspect.Inspect([]string{"../testdata/layouts/combined"}, runspec.DefaultSpec().IngestOptions())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -216,7 +217,7 @@ func TestXarrayNaNAttributesManifest(t *testing.T) {
 
 // Points whose coordinates move in time are refused, saying so.
 func TestMovingPointsRefused(t *testing.T) {
-	_, err := Inspect([]string{"../testdata/layouts/moving.nc"}, runspec.DefaultSpec().IngestOptions())
+	_, err := inspect.Inspect([]string{"../testdata/layouts/moving.nc"}, runspec.DefaultSpec().IngestOptions())
 	if err == nil || !strings.Contains(err.Error(), "moves") || !strings.Contains(err.Error(), "longitude") {
 		t.Fatalf("moving stations: %v", err)
 	}

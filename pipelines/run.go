@@ -192,3 +192,11 @@ func (e *engine) finishAll(ctx context.Context, c0 int, cells []*cell, acfg extr
 	}
 	return out, nil
 }
+
+// Progress shows how far a stage is: a bar on a terminal, periodic log lines
+// for schedulers.
+type Progress interface {
+	Start(stage string, total, done int64)
+	Add(n int64)
+	Done()
+}

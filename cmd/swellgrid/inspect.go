@@ -7,7 +7,7 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"swellgrid/pipelines"
+	"swellgrid/pipelines/inspect"
 	"swellgrid/pipelines/runspec"
 )
 
@@ -64,9 +64,9 @@ Bad input stops it with a message naming the file, the variable and what to do
 			case bathy != "":
 				spec.Depth.Source, spec.Depth.BathymetryFile = "bathymetry", bathy
 			}
-			r, err := pipelines.InspectSpec(spec, args)
+			r, err := inspect.Spec(spec, args)
 			if err != nil {
-				if help := pipelines.GuidedHelp(err); help != "" {
+				if help := inspect.GuidedHelp(err); help != "" {
 					err = fmt.Errorf("%w\n\n%s", err, strings.TrimRight(help, "\n"))
 				}
 				return badInput(err)

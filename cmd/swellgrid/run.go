@@ -212,7 +212,7 @@ func runSpecWith(spec *runspec.Spec, opt pipelines.Options) (*pipelines.Result, 
 // every 10 s otherwise (schedulers).
 func stderrProgress(log *slog.Logger) pipelines.Progress {
 	if term.IsTerminal(int(os.Stderr.Fd())) {
-		return pipelines.NewBarProgress(os.Stderr)
+		return newBarProgress(os.Stderr)
 	}
-	return pipelines.NewLogProgress(log, 10*time.Second)
+	return newLogProgress(log, 10*time.Second)
 }

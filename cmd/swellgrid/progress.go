@@ -1,25 +1,18 @@
-package pipelines
+package main
 
 import (
 	"io"
 	"log/slog"
+	"swellgrid/pipelines"
 	"sync"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
 )
 
-// Progress shows how far a stage is: a bar on a terminal, periodic log lines
-// for schedulers.
-type Progress interface {
-	Start(stage string, total, done int64)
-	Add(n int64)
-	Done()
-}
-
-// NewBarProgress draws one progress bar per stage on w (a terminal), with
+// newBarProgress draws one progress bar per stage on w (a terminal), with
 // counts, rate and time left.
-func NewBarProgress(w io.Writer) Progress { return &barProgress{w: w} }
+func newBarProgress(w io.Writer) pipelines.Progress { return &barProgress{w: w} }
 
 type barProgress struct {
 	w   io.Writer
@@ -48,9 +41,9 @@ func (p *barProgress) Done() {
 	}
 }
 
-// NewLogProgress writes a log line per stage every interval, with the count,
+// newLogProgress writes a log line per stage every interval, with the count,
 // rate and estimated time left: for runs whose stderr is not a terminal.
-func NewLogProgress(log *slog.Logger, every time.Duration) Progress {
+func newLogProgress(log *slog.Logger, every time.Duration) pipelines.Progress {
 	return &logProgress{log: log, every: every}
 }
 

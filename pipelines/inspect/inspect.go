@@ -1,4 +1,8 @@
-package pipelines
+// Package inspect describes a hindcast before any run: its files, time axis
+// (segments, gaps, shared steps), grid, roles and spectral conventions, as
+// JSON or text, and turns a refusal into guided help. It reads the catalog
+// only; it computes no statistic and writes no file.
+package inspect
 
 import (
 	"context"
@@ -17,8 +21,8 @@ import (
 	"swellgrid/pipelines/runspec"
 )
 
-// InspectReport is what `swellgrid inspect` shows of a hindcast.
-type InspectReport struct {
+// Report is what `swellgrid inspect` shows of a hindcast.
+type Report struct {
 	Files       []ingest.FileInfo `json:"files"`
 	Calendar    ingest.Calendar   `json:"calendar"`
 	Start       string            `json:"start"`
@@ -54,7 +58,7 @@ type InspectReport struct {
 }
 
 // Inspect builds the catalog of a hindcast and summarises it.
-func Inspect(inputs []string, opt ingest.Options) (*InspectReport, error) {
+func Inspect(inputs []string, opt ingest.Options) (*Report, error) {
 	cat, err := ingest.Open(inputs, opt)
 	if err != nil {
 		return nil, err
@@ -69,7 +73,7 @@ func Inspect(inputs []string, opt ingest.Options) (*InspectReport, error) {
 // InspectSpec inspects the inputs of a spec (or inputs, when given) with the
 // spec's roles, units, depth and direction convention, as a run would read
 // them.
-func InspectSpec(spec *runspec.Spec, inputs []string) (*InspectReport, error) {
+func Spec(spec *runspec.Spec, inputs []string) (*Report, error) {
 	if err := spec.CheckRoles(); err != nil {
 		return nil, fault.Input(err)
 	}
@@ -90,7 +94,7 @@ const inspectSample = 4
 // masked by depth or mask that have no value there (land where the files
 // give no depth); they are counted as masked. It reads in cell ranges of a
 // bounded size.
-func (r *InspectReport) countEmpty(cat *ingest.Catalog) error {
+func (r *Report) countEmpty(cat *ingest.Catalog) error {
 	lead := ingest.Hm0
 	per := 1
 	if cat.Spectral != nil && (cat.Vars[ingest.Spectrum2D] != nil || cat.Vars[ingest.Spectrum1D] != nil) {
@@ -236,8 +240,8 @@ func termAll(ts []string) []string {
 	return out
 }
 
-func report(cat *ingest.Catalog) *InspectReport {
-	r := &InspectReport{Files: cat.Files, Calendar: cat.Calendar, Start: cat.Start, End: cat.End, Steps: cat.Steps,
+func report(cat *ingest.Catalog) *Report {
+	r := &Report{Files: cat.Files, Calendar: cat.Calendar, Start: cat.Start, End: cat.End, Steps: cat.Steps,
 		StepSeconds: cat.StepSeconds, Gaps: cat.Gaps, RoleGaps: cat.RoleGaps, GridKind: cat.Grid.Kind.String(), GridShape: [2]int{cat.Grid.NY, cat.Grid.NX},
 		Cells: cat.Grid.NCells(), Roles: cat.Vars, Spectral: cat.Spectral, Readings: cat.Readings, DepthSource: cat.DepthSource, Warnings: cat.Warnings,
 		Segments: cat.Segments, CoveredHours: cat.CoveredHours(), Duplicates: cat.Duplicates}
@@ -268,14 +272,14 @@ func report(cat *ingest.Catalog) *InspectReport {
 }
 
 // WriteJSON writes the report as indented JSON.
-func (r *InspectReport) WriteJSON(w io.Writer) error {
+func (r *Report) WriteJSON(w io.Writer) error {
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
 	return enc.Encode(r)
 }
 
 // WriteText writes the report for a person.
-func (r *InspectReport) WriteText(w io.Writer) error {
+func (r *Report) WriteText(w io.Writer) error {
 	var sb strings.Builder
 	var total int64
 	for _, f := range r.Files {
