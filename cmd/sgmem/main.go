@@ -2,7 +2,7 @@
 // runs the swellgrid executable on the benchmark hindcasts under several
 // memory limits, each case a child process, and reports each child's peak
 // RSS (ru_maxrss) against its target (the limit plus the stated overhead,
-// pipelines.ProcessOverhead, or the 360 MB for the bulk benchmark at
+// engine.ProcessOverhead, or the 360 MB for the bulk benchmark at
 // 256 MiB). It asserts nothing: the figures go to BENCHMARKS.md.
 package main
 
@@ -16,7 +16,7 @@ import (
 	"syscall"
 
 	"swellgrid/internal/bench"
-	"swellgrid/pipelines"
+	"swellgrid/pipelines/engine"
 )
 
 func main() {
@@ -61,7 +61,7 @@ func main() {
 		defer os.RemoveAll(root)
 	}
 	var done []*bench.MemCase
-	for _, c := range bench.MemCases(bulk.Files, g200.Files, root, pipelines.ProcessOverhead) {
+	for _, c := range bench.MemCases(bulk.Files, g200.Files, root, engine.ProcessOverhead) {
 		if !selected(c.Name, *only) {
 			continue
 		}

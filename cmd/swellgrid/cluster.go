@@ -3,10 +3,9 @@ package main
 import (
 	"fmt"
 	"os"
+	"swellgrid/pipelines/cluster"
 
 	"github.com/spf13/cobra"
-
-	"swellgrid/pipelines"
 )
 
 func newClusterCmd() *cobra.Command {
@@ -19,7 +18,7 @@ func newClusterCmd() *cobra.Command {
 }
 
 func newClusterSlurmCmd() *cobra.Command {
-	var j pipelines.SlurmJobs
+	var j cluster.SlurmJobs
 	var submit, planOnly bool
 	cmd := &cobra.Command{
 		Use:   "slurm --spec FILE (--shards N | --mem M | both) [--partition P --time T] [--plan] [--submit]",
@@ -45,14 +44,14 @@ plan is printed; --plan prints it and writes nothing.
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if planOnly {
-				p, _, err := pipelines.PlanSlurm(j)
+				p, _, err := cluster.PlanSlurm(j)
 				if err != nil {
 					return err
 				}
 				fmt.Fprint(os.Stdout, p.Text())
 				return nil
 			}
-			s, err := pipelines.WriteSlurmScripts(j)
+			s, err := cluster.WriteSlurmScripts(j)
 			if err != nil {
 				return err
 			}
@@ -62,7 +61,7 @@ plan is printed; --plan prints it and writes nothing.
 				fmt.Fprintf(os.Stdout, "submit with: id=$(sbatch --parsable %s) && sbatch --dependency=afterok:$id %s\n", s.ArrayScript, s.MergeScript)
 				return nil
 			}
-			a, m, err := pipelines.SubmitSlurm(cmd.Context(), s)
+			a, m, err := cluster.SubmitSlurm(cmd.Context(), s)
 			if err != nil {
 				return err
 			}

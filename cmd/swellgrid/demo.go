@@ -13,7 +13,8 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"swellgrid/pipelines"
+	"swellgrid/pipelines/demo"
+	"swellgrid/pipelines/engine"
 )
 
 func newDemoCmd() *cobra.Command {
@@ -36,10 +37,10 @@ and prints what it wrote and which files to open in GIS software.
 			ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 			defer stop()
 			log := slog.New(slog.NewTextHandler(os.Stderr, nil))
-			opt := pipelines.Options{Log: log, Version: Version}
+			opt := engine.Options{Log: log, Version: Version}
 			opt.Progress = stderrProgress(log)
 			crashDir = out
-			res, err := pipelines.Demo(ctx, out, opt)
+			res, err := demo.Run(ctx, out, opt)
 			if err != nil {
 				return interrupted(ctx, err, "interrupted; rerun the demo")
 			}

@@ -12,7 +12,7 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"swellgrid/pipelines"
+	"swellgrid/pipelines/engine"
 )
 
 func newMergeCmd() *cobra.Command {
@@ -43,7 +43,7 @@ Exit codes as for run.
 			defer stop()
 			log := slog.New(slog.NewTextHandler(os.Stderr, nil))
 			crashDir = out
-			res, err := pipelines.Merge(ctx, out, args, pipelines.Options{Log: log, Version: Version, Workers: workers, MemoryLimit: memory, LimitProcess: true})
+			res, err := engine.Merge(ctx, out, args, engine.Options{Log: log, Version: Version, Workers: workers, MemoryLimit: memory, LimitProcess: true})
 			if err != nil {
 				return interrupted(ctx, err, "interrupted; nothing is lost: rerun the same merge")
 			}

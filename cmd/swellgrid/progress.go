@@ -3,7 +3,7 @@ package main
 import (
 	"io"
 	"log/slog"
-	"swellgrid/pipelines"
+	"swellgrid/pipelines/engine"
 	"sync"
 	"time"
 
@@ -12,7 +12,7 @@ import (
 
 // newBarProgress draws one progress bar per stage on w (a terminal), with
 // counts, rate and time left.
-func newBarProgress(w io.Writer) pipelines.Progress { return &barProgress{w: w} }
+func newBarProgress(w io.Writer) engine.Progress { return &barProgress{w: w} }
 
 type barProgress struct {
 	w   io.Writer
@@ -43,7 +43,7 @@ func (p *barProgress) Done() {
 
 // newLogProgress writes a log line per stage every interval, with the count,
 // rate and estimated time left: for runs whose stderr is not a terminal.
-func newLogProgress(log *slog.Logger, every time.Duration) pipelines.Progress {
+func newLogProgress(log *slog.Logger, every time.Duration) engine.Progress {
 	return &logProgress{log: log, every: every}
 }
 

@@ -6,10 +6,9 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"swellgrid/pipelines/products"
 
 	"github.com/spf13/cobra"
-
-	"swellgrid/pipelines"
 )
 
 func newReportCmd() *cobra.Command {
@@ -31,7 +30,7 @@ and every figure as PNG and SVG. The pages open from disk with no network.
   swellgrid report --atlas atlas`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			files, warns, err := pipelines.Rebuild(args[0], pipelines.Products{Report: true, NetCDF: atlas, GeoPackage: atlas})
+			files, warns, err := products.Rebuild(args[0], products.Products{Report: true, NetCDF: atlas, GeoPackage: atlas})
 			if err != nil {
 				return err
 			}

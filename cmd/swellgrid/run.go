@@ -14,12 +14,13 @@ import (
 	"github.com/spf13/cobra"
 	"golang.org/x/term"
 
-	"swellgrid/pipelines"
+	"swellgrid/pipelines/engine"
 	"swellgrid/pipelines/runspec"
+	"swellgrid/stats"
 )
 
-// caution is the one caution text (pipelines.Caution), wrapped for the help.
-var caution = wrapText("CAUTION: "+pipelines.Caution, 86)
+// caution is the one caution text (stats.Caution), wrapped for the help.
+var caution = wrapText("CAUTION: "+stats.Caution, 86)
 
 // wrapText breaks s into lines of at most width characters at spaces.
 func wrapText(s string, width int) string {
@@ -66,10 +67,10 @@ func (f *runFlags) register(cmd *cobra.Command) {
 
 // runOptions turns --shard and --update into run options; --update DIR is
 // the output directory.
-func (f *runFlags) runOptions(spec *runspec.Spec) (pipelines.Options, error) {
-	opt := pipelines.Options{Restart: f.restart, Update: f.update != ""}
+func (f *runFlags) runOptions(spec *runspec.Spec) (engine.Options, error) {
+	opt := engine.Options{Restart: f.restart, Update: f.update != ""}
 	if f.shard != "" {
-		sh, err := pipelines.ParseShard(f.shard)
+		sh, err := engine.ParseShard(f.shard)
 		if err != nil {
 			return opt, err
 		}
@@ -194,14 +195,14 @@ Exit codes: 0 ok, 1 internal error (stack saved in DIR/swellgrid-internal-error.
 
 // runSpecWith runs the pipeline with progress on stderr; on a signal the
 // run stops and says how to resume.
-func runSpecWith(spec *runspec.Spec, opt pipelines.Options) (*pipelines.Result, error) {
+func runSpecWith(spec *runspec.Spec, opt engine.Options) (*engine.Result, error) {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
 	log := slog.New(slog.NewTextHandler(os.Stderr, nil))
 	opt.Log, opt.Version, opt.LimitProcess = log, Version, true
 	opt.Progress = stderrProgress(log)
 	crashDir = spec.Output.Dir
-	res, err := pipelines.Run(ctx, spec, opt)
+	res, err := engine.Run(ctx, spec, opt)
 	if err != nil {
 		return nil, interrupted(ctx, err, fmt.Sprintf("interrupted; rerun the same command to continue (it resumes from the checkpoints in %s/.swellgrid if the run got that far)", spec.Output.Dir))
 	}
@@ -210,7 +211,7 @@ func runSpecWith(spec *runspec.Spec, opt pipelines.Options) (*pipelines.Result, 
 
 // stderrProgress shows progress on stderr: bars on a terminal, a log line
 // every 10 s otherwise (schedulers).
-func stderrProgress(log *slog.Logger) pipelines.Progress {
+func stderrProgress(log *slog.Logger) engine.Progress {
 	if term.IsTerminal(int(os.Stderr.Fd())) {
 		return newBarProgress(os.Stderr)
 	}

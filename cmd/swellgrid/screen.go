@@ -6,7 +6,7 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"swellgrid/pipelines"
+	"swellgrid/pipelines/screening"
 )
 
 func newScreenCmd() *cobra.Command {
@@ -28,7 +28,7 @@ them in manifest.json and rebuilds the report and atlas.gpkg where the run has
 them. Exit codes: 0 ok, 1 internal error, 2 not a finished run or a bad spec or
 constraint file (named), 4 output directory locked or not writable.
 
-` + wrapText(pipelines.ScreeningNote, 86) + "\n\n" + caution,
+` + wrapText(screening.Note, 86) + "\n\n" + caution,
 		Example: `  swellgrid screen demo-out/atlas-grid --spec screening.toml`,
 		Args:    cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
@@ -36,7 +36,7 @@ constraint file (named), 4 output directory locked or not writable.
 				return badInput(fmt.Errorf("screen: --spec FILE is required (a spec with a [screening] section)"))
 			}
 			crashDir = args[0]
-			files, warns, err := pipelines.Rescreen(args[0], specPath)
+			files, warns, err := screening.Rescreen(args[0], specPath)
 			if err != nil {
 				return err
 			}

@@ -3,10 +3,9 @@ package main
 import (
 	"fmt"
 	"os"
+	"swellgrid/pipelines/lock"
 
 	"github.com/spf13/cobra"
-
-	"swellgrid/pipelines"
 )
 
 func newUnlockCmd() *cobra.Command {
@@ -21,7 +20,7 @@ lock is alive on this host (exit code 4); stop that run instead.`,
 		Example: `  swellgrid unlock atlas`,
 		Args:    cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			msg, err := pipelines.Unlock(args[0])
+			msg, err := lock.Unlock(args[0])
 			if err != nil {
 				return err
 			}

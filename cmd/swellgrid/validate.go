@@ -9,8 +9,8 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"swellgrid/pipelines"
 	"swellgrid/pipelines/runspec"
+	"swellgrid/pipelines/validation"
 )
 
 func newValidateCmd() *cobra.Command {
@@ -48,7 +48,7 @@ Agreement with a few stations does not make the hindcast fit for design.
 			if runDir == "" {
 				return badInput(fmt.Errorf("validate: give the run directory with --run DIR"))
 			}
-			opt := pipelines.ValidateOptions{RunDir: runDir, Obs: obs, OutDir: out}
+			opt := validation.Options{RunDir: runDir, Obs: obs, OutDir: out}
 			if specPath != "" {
 				s, err := runspec.LoadSpec(specPath)
 				if err != nil {
@@ -58,7 +58,7 @@ Agreement with a few stations does not make the hindcast fit for design.
 			}
 			ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 			defer stop()
-			res, err := pipelines.Validate(ctx, opt)
+			res, err := validation.Validate(ctx, opt)
 			if err != nil {
 				return interrupted(ctx, err, "validate interrupted; nothing was written, run it again")
 			}

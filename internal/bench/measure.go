@@ -16,7 +16,7 @@ import (
 	"time"
 
 	"swellgrid/ingest"
-	"swellgrid/pipelines"
+	"swellgrid/pipelines/engine"
 	"swellgrid/pipelines/runspec"
 )
 
@@ -84,7 +84,7 @@ func RunChild(c Case) (*Measure, error) {
 			spec.Run.MemoryLimit = c.MemoryLimit
 		}
 		t0 := time.Now()
-		res, err := pipelines.Run(context.Background(), spec, processOptions())
+		res, err := engine.Run(context.Background(), spec, processOptions())
 		if err != nil {
 			return nil, err
 		}
@@ -121,8 +121,8 @@ func RunChild(c Case) (*Measure, error) {
 // name because the before tree (BENCH_BEFORE, built with this package and
 // cmd/sgbench copied over it) may predate it; there the run has no plan to
 // apply.
-func processOptions() pipelines.Options {
-	opt := pipelines.Options{Restart: true, Version: "bench"}
+func processOptions() engine.Options {
+	opt := engine.Options{Restart: true, Version: "bench"}
 	if f := reflect.ValueOf(&opt).Elem().FieldByName("LimitProcess"); f.IsValid() && f.Kind() == reflect.Bool {
 		f.SetBool(true)
 	}

@@ -1,9 +1,11 @@
 package layout
 
 import (
+	"go/ast"
 	"go/parser"
 	"go/token"
 	"io/fs"
+	"os"
 	"path/filepath"
 	"sort"
 	"strconv"
@@ -23,6 +25,7 @@ var tooling = []string{
 	"swellgrid/internal/bench",
 	"swellgrid/internal/corpus",
 	"swellgrid/internal/parquetread",
+	"swellgrid/internal/runcheck",
 	"swellgrid/internal/layout",
 }
 
@@ -88,7 +91,7 @@ func productImports(t *testing.T, root string) map[string][]string {
 func TestProductImportsNoTooling(t *testing.T) {
 	files := productImports(t, filepath.Join("..", ".."))
 	// The walk must have seen the product, or the check proves nothing.
-	for _, f := range []string{"pipelines/run.go", "ingest/reader.go", "cmd/swellgrid/main.go", "export/parquet.go"} {
+	for _, f := range []string{"pipelines/engine/run.go", "ingest/reader.go", "cmd/swellgrid/main.go", "export/parquet.go"} {
 		if _, ok := files[filepath.FromSlash(f)]; !ok {
 			t.Fatalf("the walk did not see %s (%d files seen): is the module root ../..?", f, len(files))
 		}
@@ -115,11 +118,13 @@ func TestIsTooling(t *testing.T) {
 		"swellgrid/internal/corpus":        true,
 		"swellgrid/internal/parquetread":   true,
 		"swellgrid/internal/testtool":      true,
+		"swellgrid/internal/runcheck":      true,
+		"swellgrid/cmd/mkfixtures":         true,
 		"swellgrid/cmd/sgdiff":             true,
 		"swellgrid/cmd/mkcorpus":           true,
 		"swellgrid/cmd/swellgrid":          false,
 		"swellgrid/internal/benchmarkless": false,
-		"swellgrid/pipelines":              false,
+		"swellgrid/pipelines/engine":       false,
 		"swellgrid/pipelines/synth":        false,
 		"swellgrid/export/rundir":          false,
 		"github.com/fhs/go-netcdf/netcdf":  false,
@@ -128,4 +133,88 @@ func TestIsTooling(t *testing.T) {
 			t.Errorf("isTooling(%q) = %v, want %v", path, got, want)
 		}
 	}
+}
+
+// Limits on a package made from pipelines (issue 28: a house a newcomer can
+// live in): its non-test lines and its exported top-level names (types,
+// functions, variables, constants; methods and fields not counted).
+const (
+	maxPackageLines    = 6000
+	maxPackageExported = 50
+)
+
+// Every package under pipelines/ stays within maxPackageLines non-test lines
+// and maxPackageExported exported names: a package that grows past them does
+// more than one job and is split by job (DEVELOPERS.md, "Layout and import
+// direction").
+func TestPipelinesPackageSize(t *testing.T) {
+	root := filepath.Join("..", "..", "pipelines")
+	lines, exported := map[string]int{}, map[string]int{}
+	fset := token.NewFileSet()
+	err := filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		if d.IsDir() && d.Name() == "testdata" {
+			return filepath.SkipDir
+		}
+		if d.IsDir() || !strings.HasSuffix(p, ".go") || strings.HasSuffix(p, "_test.go") {
+			return nil
+		}
+		b, err := os.ReadFile(p)
+		if err != nil {
+			return err
+		}
+		dir, _ := filepath.Rel(root, filepath.Dir(p))
+		lines[dir] += strings.Count(string(b), "\n")
+		f, err := parser.ParseFile(fset, p, b, 0)
+		if err != nil {
+			return err
+		}
+		for _, n := range topNames(f) {
+			if ast.IsExported(n) {
+				exported[dir]++
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(lines) < 5 || lines["engine"] == 0 {
+		t.Fatalf("the walk saw %d packages under %s (%v): is the module root ../..?", len(lines), root, lines)
+	}
+	for dir, n := range lines {
+		if n > maxPackageLines {
+			t.Errorf("pipelines/%s: %d non-test lines, more than %d: split it by job", dir, n, maxPackageLines)
+		}
+		if e := exported[dir]; e > maxPackageExported {
+			t.Errorf("pipelines/%s: %d exported names, more than %d: split it by job or unexport what only it uses", dir, e, maxPackageExported)
+		}
+	}
+}
+
+// topNames lists the top-level declared names of f (no methods).
+func topNames(f *ast.File) []string {
+	var out []string
+	for _, d := range f.Decls {
+		switch d := d.(type) {
+		case *ast.FuncDecl:
+			if d.Recv == nil {
+				out = append(out, d.Name.Name)
+			}
+		case *ast.GenDecl:
+			for _, s := range d.Specs {
+				switch s := s.(type) {
+				case *ast.TypeSpec:
+					out = append(out, s.Name.Name)
+				case *ast.ValueSpec:
+					for _, n := range s.Names {
+						out = append(out, n.Name)
+					}
+				}
+			}
+		}
+	}
+	return out
 }

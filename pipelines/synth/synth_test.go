@@ -190,7 +190,7 @@ func TestCommittedFixturesUpToDate(t *testing.T) {
 		crel = append(crel, r)
 	}
 	if strings.Join(rel, "\n") != strings.Join(crel, "\n") {
-		t.Fatalf("testdata/*.nc differs from synth.Fixtures():\ncommitted %v\ngenerated %v\nrun: go run ./pipelines/synth/cmd/mkfixtures", crel, rel)
+		t.Fatalf("testdata/*.nc differs from synth.Fixtures():\ncommitted %v\ngenerated %v\nrun: go run ./cmd/mkfixtures", crel, rel)
 	}
 	for i, p := range paths {
 		a, _ := os.ReadFile(p)
@@ -201,7 +201,7 @@ func TestCommittedFixturesUpToDate(t *testing.T) {
 		// Different bytes (e.g. another libnetcdf/HDF5 version): the values,
 		// as printed by ncdump, must still agree.
 		if ncdump(t, p) != strings.Replace(ncdump(t, committed[i]), filepath.Base(committed[i]), filepath.Base(p), 1) {
-			t.Errorf("%s: regenerated values differ from the committed fixture; run go run ./pipelines/synth/cmd/mkfixtures", rel[i])
+			t.Errorf("%s: regenerated values differ from the committed fixture; run go run ./cmd/mkfixtures", rel[i])
 		}
 	}
 }

@@ -440,3 +440,15 @@ func (k *Kernel) dirMax() (float64, float64) {
 	}
 	return best, k.arcB[bestArc]
 }
+
+// AllMissing reports whether every bin of a spectrum is missing (NaN): the
+// step is then a missing step. A spectrum with some bins missing is used,
+// the missing bins counting as 0 (and in bad_bins).
+func AllMissing(s []float64) bool {
+	for _, v := range s {
+		if v == v {
+			return false
+		}
+	}
+	return true
+}

@@ -1,0 +1,116 @@
+package demo
+
+import (
+	"context"
+	"fmt"
+	"os"
+	"path/filepath"
+	"time"
+
+	"swellgrid/pipelines/engine"
+	"swellgrid/pipelines/examples"
+	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
+	"swellgrid/pipelines/synth"
+	"swellgrid/pipelines/validation"
+)
+
+// Atlas is one atlas the demo made.
+type Atlas struct {
+	Name   string
+	Input  string
+	Result *engine.Result
+}
+
+// Result says what the demo wrote.
+type Result struct {
+	Dir      string
+	Hindcast []string
+	Runs     []Atlas
+	// Validation is the grid atlas against the invented station
+	// (station.go).
+	Validation *validation.Result
+	Wall       time.Duration
+}
+
+// Specs returns the specs of the demo's three atlases: bulk fields on the
+// grid, directional spectra at the offshore points, and bulk fields on an
+// unstructured mesh of the invented Nullport Shelf hindcast written into
+// dir/hindcast.
+func Specs(dir string) []*runspec.Spec {
+	hind := filepath.Join(dir, "hindcast")
+	mk := func(glob, out string, contours []string) *runspec.Spec {
+		s := runspec.DefaultSpec()
+		s.Input.Paths = []string{filepath.Join(hind, glob)}
+		s.Output.Dir = filepath.Join(dir, out)
+		s.Devices = []runspec.DeviceSpec{{Name: "demo_wec", PowerMatrix: filepath.Join(hind, "demo_device.csv"), Lookup: "bilinear"}}
+		s.Contours.Columns = contours
+		return s
+	}
+	grid := mk("nullport_bulk_*.nc", "atlas-grid", []string{"power_mean_kw_m", "hm0_mean_m", "hm0_p90_m", "mvi", "aep_demo_wec_mwh"})
+	// Two invented places of interest get a report page each.
+	grid.Sites = []runspec.SiteSpec{{Name: "Outer shelf mooring (invented)", Lon: -32.0, Lat: 45.6}, {Name: "Inner shelf (invented)", Lon: -34.4, Lat: 45.1}}
+	// A screening scenario on invented constraint layers.
+	grid.Screening = &runspec.ScreeningSpec{
+		Layers: []runspec.ScreenLayerSpec{{Name: "reserve", File: filepath.Join(hind, "demo_reserve.geojson")}, {Name: "ports", File: filepath.Join(hind, "demo_ports.geojson")}},
+		Scenarios: []runspec.ScenarioSpec{{Name: "demo_core",
+			Criteria: []string{"power_mean_kw_m >= 15", "depth_m between 30 and 150", "hm0_rl100y_m <= 14", "cf_demo_wec >= 0.1"},
+			Exclude:  []string{"reserve"}, Distance: []runspec.DistanceRule{{Layer: "ports", MaxKm: 150}},
+			Device: "demo_wec", DevicesPerKm2: 2}},
+	}
+	return []*runspec.Spec{
+		grid,
+		mk("nullport_spec_*.nc", "atlas-spectral-points", nil),
+		mk("nullport_mesh_*.nc", "atlas-mesh", []string{"power_mean_kw_m", "hm0_mean_m"}),
+	}
+}
+
+// Run writes the synthetic scenario and runs the whole job on it three
+// times: on the bulk grid, on the spectral points and on the mesh.
+func Run(ctx context.Context, dir string, opt engine.Options) (*Result, error) {
+	t0 := time.Now()
+	hind := filepath.Join(dir, "hindcast")
+	if err := os.MkdirAll(hind, 0o755); err != nil {
+		return nil, fault.Output(fmt.Errorf("demo: %w", err))
+	}
+	var files []string
+	for _, sc := range []synth.Scenario{synth.Demo(), synth.DemoSpectra(), synth.DemoMesh()} {
+		if opt.Log != nil {
+			opt.Log.Info("demo: writing the synthetic hindcast", "dir", hind, "place", sc.Place, "files", sc.Name, "months", sc.Months)
+		}
+		f, err := sc.Write(hind)
+		if err != nil {
+			return nil, fmt.Errorf("demo: writing the synthetic hindcast: %w", err)
+		}
+		files = append(files, f...)
+	}
+	for name, b := range map[string][]byte{"demo_device.csv": examples.DemoDeviceCSV, "demo_reserve.geojson": examples.DemoReserve, "demo_ports.geojson": examples.DemoPorts} {
+		if err := os.WriteFile(filepath.Join(hind, name), b, 0o644); err != nil {
+			return nil, fault.Output(fmt.Errorf("demo: %w", err))
+		}
+	}
+	res := &Result{Dir: dir, Hindcast: files}
+	for i, spec := range Specs(dir) {
+		name := []string{"bulk fields on the grid", "directional spectra at offshore points", "bulk fields on an unstructured mesh"}[i]
+		if opt.Log != nil {
+			opt.Log.Info("demo: atlas", "of", name, "out", spec.Output.Dir)
+		}
+		r, err := engine.Run(ctx, spec, opt)
+		if err != nil {
+			return nil, err
+		}
+		res.Runs = append(res.Runs, Atlas{Name: name, Input: spec.Input.Paths[0], Result: r})
+		if i == 0 {
+			// An invented station at the first site, validated against the grid atlas.
+			st := filepath.Join(hind, "synthetic_station.csv")
+			if err := writeDemoStation(ctx, spec.Output.Dir, st, spec.Sites[0].Lon, spec.Sites[0].Lat); err != nil {
+				return nil, fmt.Errorf("demo: synthetic station: %w", err)
+			}
+			if res.Validation, err = validation.Validate(ctx, validation.Options{RunDir: spec.Output.Dir, Obs: []string{st}}); err != nil {
+				return nil, fmt.Errorf("demo: validation: %w", err)
+			}
+		}
+	}
+	res.Wall = time.Since(t0)
+	return res, nil
+}

@@ -1,0 +1,58 @@
+package engine
+
+import (
+	"path/filepath"
+	"time"
+
+	"swellgrid/export"
+	"swellgrid/pipelines/products"
+	"swellgrid/pipelines/runspec"
+	"swellgrid/pipelines/screening"
+
+	"swellgrid/export/rundir"
+)
+
+// productsOf is the products the spec asks for.
+func productsOf(s *runspec.Spec) products.Products {
+	return products.Products{Report: s.Output.Report, NetCDF: s.Output.NetCDF, GeoPackage: s.Output.GeoPackage, Workers: s.Run.Workers}
+}
+
+// finishManifest writes the manifest m of the run directory out, builds the
+// products (as the spec switches say) from the tables and that manifest,
+// adds their files to written and their warnings to warns and m, and
+// rewrites the manifest listing every output. The manifest is on disk before
+// the products are built, so a run whose report fails still leaves a
+// finished run directory that `swellgrid report` can complete.
+func (e *engine) finishManifest(out string, m *Manifest, written, warns *[]string) error {
+	m.Outputs = append(append([]string{}, *written...), "manifest.json")
+	if err := export.WriteManifest(filepath.Join(out, "manifest.json"), m); err != nil {
+		return err
+	}
+	t0 := time.Now()
+	if e.spec.Screening != nil {
+		r, err := rundir.Open(out, nil)
+		if err != nil {
+			return err
+		}
+		sf, sum, err := screening.Apply(r, e.spec)
+		if err != nil {
+			return err
+		}
+		*written = append(*written, sf...)
+		m.Screening = sum
+	}
+	files, w, err := products.Build(out, nil, productsOf(e.spec))
+	if err != nil {
+		return err
+	}
+	if m.Timings != nil {
+		m.Timings["products_s"] = time.Since(t0).Seconds()
+	}
+	*written = append(*written, files...)
+	*warns = append(*warns, w...)
+	// kept apart from the run's warnings, which the report shows: a report
+	// rebuilt from the final manifest must equal the one the run made
+	m.ProductWarnings = append(m.ProductWarnings, w...)
+	m.Outputs = append(append([]string{}, *written...), "manifest.json")
+	return nil
+}

@@ -1,0 +1,228 @@
+package engine
+
+import (
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"swellgrid/export"
+	"swellgrid/grid"
+	"swellgrid/ingest"
+	"swellgrid/pipelines/lock"
+	"swellgrid/pipelines/runspec"
+	"swellgrid/pipelines/screening"
+	"swellgrid/pipelines/tables"
+)
+
+// columnNames lists the columns of cells.parquet for this run.
+func (e *engine) columnNames() map[string]string {
+	out := map[string]string{}
+	for _, c := range e.cellsColumns() {
+		out[c.Name] = c.Unit
+	}
+	return out
+}
+
+func (e *engine) checkContourColumns() error {
+	names := e.columnNames()
+	for _, c := range e.spec.Contours.Columns {
+		if _, ok := names[c]; !ok {
+			return fmt.Errorf("spec: contours.columns: %q is not a column of cells.parquet (see the README's column list)", c)
+		}
+	}
+	for c := range e.spec.Contours.Levels {
+		if _, ok := names[c]; !ok {
+			return fmt.Errorf("spec: contours.levels.%s: not a column of cells.parquet", c)
+		}
+	}
+	return e.spec.Screening.CheckColumns(names)
+}
+
+// writeContours writes the contour layers of the contour columns, whose
+// values over the grid (in cell order) are in vals (nil: not numeric); every
+// file is written atomically by export. It returns the files written
+// (relative to out) and the warnings.
+func (e *engine) writeContours(out string, vals map[string][]float64) ([]string, []string, error) {
+	var written, warns []string
+	contour, why := contourer(e.cat.Grid, e.cat.Masked)
+	if contour == nil {
+		warns = append(warns, why)
+		return written, warns, nil
+	}
+	if w := seamWarning(e.cat.Grid, e.cat.Masked); w != "" && len(e.spec.Contours.Columns) > 0 {
+		warns = append(warns, w)
+	}
+	units := e.columnNames()
+	for _, col := range e.spec.Contours.Columns {
+		vals := vals[col]
+		if vals == nil {
+			warns = append(warns, fmt.Sprintf("no contours for %s: not a numeric column", col))
+			continue
+		}
+		levels := e.spec.Contours.Levels[col]
+		if len(levels) == 0 {
+			lo, hi := math.Inf(1), math.Inf(-1)
+			for i, v := range vals {
+				if !math.IsNaN(v) && !e.cat.Masked[i] {
+					lo, hi = math.Min(lo, v), math.Max(hi, v)
+				}
+			}
+			levels = grid.NiceLevels(lo, hi, 8)
+		}
+		if len(levels) == 0 {
+			warns = append(warns, fmt.Sprintf("no contours for %s: the column has no spread of values", col))
+			continue
+		}
+		edges := append(append([]float64{math.Inf(-1)}, levels...), math.Inf(1))
+		lines, bands, err := contour(vals, levels, edges)
+		if err != nil {
+			return nil, nil, fmt.Errorf("contours of %s: %v", col, err)
+		}
+		if err := export.WriteContours(out, col, units[col], levels, lines, edges, bands); err != nil {
+			return nil, nil, fmt.Errorf("writing contours of %s: %v", col, err)
+		}
+		written = append(written, "contours/"+col+".geojson", "contours/"+col+".bands.geojson")
+	}
+	return written, warns, nil
+}
+
+// Manifest is manifest.json: what went in, what settings, what came out.
+type Manifest struct {
+	Software    string          `json:"software"`
+	Version     string          `json:"version"`
+	Caution     string          `json:"caution"`
+	Inputs      []ManifestInput `json:"inputs"`
+	Calendar    string          `json:"calendar"`
+	Start       string          `json:"time_start"`
+	End         string          `json:"time_end"`
+	Steps       int             `json:"steps"`
+	StepSeconds int64           `json:"step_seconds"`
+	// Segments are the stretches of one step duration (or irregular), and
+	// CoveredHours the time the steps stand for (ingest/timeaxis.go).
+	Segments     []ingest.Segment `json:"time_segments"`
+	CoveredHours float64          `json:"covered_hours"`
+	// StepDurations identifies the durations the steps were weighted by
+	// (an update checks that the earlier steps keep them).
+	StepDurations ingest.Durations `json:"step_durations"`
+	Gaps          []ingest.Gap     `json:"gaps"`
+	// Duplicates are the times held by two files of a role, each read once.
+	Duplicates  []ingest.Duplicate              `json:"duplicate_steps,omitempty"`
+	RoleGaps    []ingest.Gap                    `json:"role_gaps,omitempty"` // steps with no file for one role (one variable per file)
+	Grid        ManifestGrid                    `json:"grid"`
+	Roles       map[ingest.Role]*ingest.VarInfo `json:"roles"`
+	DepthSource string                          `json:"depth_source"`
+	Assumptions []string                        `json:"assumptions"`
+	Parameters  *runspec.Spec                   `json:"parameters"`
+	Resolution  map[string]float64              `json:"histogram_resolution"`
+	Columns     map[string][]tables.ColumnSpec  `json:"columns"`
+	Warnings    []string                        `json:"warnings"`
+	Outputs     []string                        `json:"outputs"` // files of the run directory, relative to it
+	// SpectralReadings say how the spectra's direction convention, density
+	// encoding and density units were read, file by file, and why.
+	SpectralReadings []ingest.Reading `json:"spectral_readings,omitempty"`
+	// ProductWarnings are those of atlas.nc, atlas.gpkg and report/.
+	ProductWarnings []string `json:"product_warnings,omitempty"`
+	// Screening: the constraint files and the scenarios' summaries
+	// (also in screening.json).
+	Screening *screening.Summary `json:"screening,omitempty"`
+	Timings   map[string]float64 `json:"timings_s,omitempty"`
+}
+
+// ManifestInput is one input file.
+type ManifestInput struct {
+	Path   string `json:"path"`
+	Size   int64  `json:"size_bytes"`
+	SHA256 string `json:"sha256"`
+	First  string `json:"first_time"`
+	Last   string `json:"last_time"`
+	Steps  int    `json:"steps"`
+}
+
+// ManifestGrid describes the grid.
+type ManifestGrid struct {
+	Kind   string `json:"kind"`
+	NY, NX int    `json:"-"`
+	Shape  [2]int `json:"shape_ny_nx"`
+	Cells  int    `json:"cells"`
+	Masked int    `json:"masked_cells"`
+	// BBox is the true extent as an RFC 7946 bounding box (section 5):
+	// west, south, east, north, west > east for a grid across 180 degrees.
+	BBox [4]float64 `json:"bbox_lon_lat"`
+	// LonFrame is the grid's continuous longitude frame (grid.LonFrame):
+	// "-180..180", or "0..360" for a grid across 180 degrees, the frame of
+	// atlas.nc, atlas.gpkg and the report's maps.
+	LonFrame string `json:"lon_frame"`
+}
+
+func (e *engine) manifest(version string, sums, warns []string, timings map[string]float64) *Manifest {
+	c := e.cat
+	m := &Manifest{Software: "swellgrid", Version: version, Caution: tables.Caution, Calendar: string(c.Calendar),
+		Start: c.Start, End: c.End, Steps: c.Steps, StepSeconds: c.StepSeconds, Gaps: c.Gaps, RoleGaps: c.RoleGaps, Roles: c.Vars,
+		DepthSource: c.DepthSource, Parameters: e.spec, Timings: timings, SpectralReadings: c.Readings}
+	if m.Gaps == nil {
+		m.Gaps = []ingest.Gap{}
+	}
+	m.Segments, m.CoveredHours, m.StepDurations = c.Segments, c.CoveredHours(), c.DurationsOf(c.Steps)
+	for _, d := range c.Duplicates {
+		d.Files = []string{ingest.PathText(d.Files[0]), ingest.PathText(d.Files[1])}
+		d.Used = ingest.PathText(d.Used)
+		m.Duplicates = append(m.Duplicates, d)
+	}
+	for i, f := range c.Files {
+		m.Inputs = append(m.Inputs, ManifestInput{Path: ingest.PathText(f.Path), Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
+	}
+	masked := 0
+	for _, x := range c.Masked {
+		if x {
+			masked++
+		}
+	}
+	a, b, cc, d := c.Grid.Bounds()
+	m.Grid = ManifestGrid{Kind: c.Grid.Kind.String(), Shape: [2]int{c.Grid.NY, c.Grid.NX}, Cells: c.Grid.NCells(), Masked: masked, BBox: [4]float64{a, b, cc, d}, LonFrame: c.Grid.Frame().String()}
+	m.Assumptions = []string{fmt.Sprintf("water density %g kg/m3, gravity %g m/s2", e.spec.Physics.Rho, e.spec.Physics.G)}
+	if !e.spectral {
+		m.Assumptions = append(m.Assumptions, "wave power from bulk Hm0 and Te with linear-theory group velocity at the cell depth (deep water where the depth is unknown or the deep-water assumption is chosen)")
+		if c.Vars[ingest.Te] == nil {
+			m.Assumptions = append(m.Assumptions, fmt.Sprintf("Te = %g Tp (no Te in the files)", e.spec.Physics.TeOverTp))
+		}
+	} else {
+		m.Assumptions = append(m.Assumptions, "wave power from the spectra with finite-depth group velocity of linear theory")
+	}
+	if len(e.ccfg.Devices) > 0 {
+		m.Assumptions = append(m.Assumptions, fmt.Sprintf("AEP bands (aep_bands.parquet): model uncertainty %g of the mean annual energy (uncertainty.model_frac; assumed, not from a validation: replace it with a validated figure), combined with the record-length and future-period uncertainties from the inter-annual spread as independent errors (root-sum-square), normal quantiles for P90 and P99", e.spec.Uncertainty.ModelFrac))
+	}
+	m.Assumptions = append(m.Assumptions, "each time step stands for the time until the next step (the last step, and a step before a gap, for the step before it); every statistic is weighted by that duration; a difference between steps longer than 1.5 times the upper quartile of the 24 differences around it is a gap, time that no step covers")
+	if n := e.seaStateNote(); n != "" {
+		m.Assumptions = append(m.Assumptions, n)
+	}
+	m.Assumptions = append(m.Assumptions, e.deviceAssumptions()...)
+	if strings.HasPrefix(c.DepthSource, "deep-water") {
+		m.Assumptions = append(m.Assumptions, "deep water everywhere (given)")
+	}
+	m.Resolution = map[string]float64{"hm0_m": e.ccfg.Hm0HistResM}
+	m.Columns = e.outputColumns()
+	m.Warnings = append(append([]string{}, c.Warnings...), warns...)
+	return m
+}
+
+// listRunDir lists the final-named files of a run directory (for the demo's
+// summary), sorted.
+func listRunDir(out string) []string {
+	var files []string
+	filepath.Walk(out, func(p string, info os.FileInfo, err error) error {
+		if err != nil || info.IsDir() {
+			if info != nil && info.IsDir() && info.Name() == lock.StateDir {
+				return filepath.SkipDir
+			}
+			return nil
+		}
+		rel, _ := filepath.Rel(out, p)
+		files = append(files, rel)
+		return nil
+	})
+	sort.Strings(files)
+	return files
+}

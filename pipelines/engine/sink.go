@@ -1,0 +1,186 @@
+package engine
+
+import (
+	"fmt"
+	"maps"
+	"path/filepath"
+	"slices"
+	"sync"
+
+	"swellgrid/export"
+	"swellgrid/grid"
+)
+
+// tableSink writes the run's tables as the results come, pass by pass, in
+// cell order: cells.parquet and every long table is a Parquet stream, put
+// in place at close (each atomically), and only the values of the contour
+// columns are kept over the whole grid for the contour layers. What a run
+// holds for its results is thus one chunk of cells, whatever the number of
+// passes.
+type tableSink struct {
+	e       *engine
+	out     string
+	cells   *export.TableStream
+	long    []*export.TableStream // in the order of their file names
+	schemas []longTable           // the schema of each of long
+	names   []string              // file names of long
+	workers int                   // the run's workers (sinkEncoders caps the goroutines)
+	next    int                   // the next cell id to write
+	contour map[string][]float64  // the contour columns over the grid
+}
+
+func (e *engine) openSink(out string, workers int) (*tableSink, error) {
+	s := &tableSink{e: e, out: out, workers: workers, contour: map[string][]float64{}}
+	g := e.cat.Grid
+	var err error
+	if s.cells, err = export.NewGeoParquetStream(filepath.Join(out, "cells.parquet"), e.cellsTable(0, 0, nil), g.Lon, g.Lat); err != nil {
+		return nil, fmt.Errorf("writing cells.parquet: %w", err)
+	}
+	// in the order of the file names (the order of Result.Files)
+	byName := map[string]longTable{}
+	for _, t := range longSchemas {
+		byName[t.file()] = t
+	}
+	for _, name := range slices.Sorted(maps.Keys(byName)) {
+		st, err := export.NewParquetStream(filepath.Join(out, name), byName[name].build(nil))
+		if err != nil {
+			s.abort()
+			return nil, fmt.Errorf("writing %s: %w", name, err)
+		}
+		s.long, s.schemas, s.names = append(s.long, st), append(s.schemas, byName[name]), append(s.names, name)
+	}
+	for _, col := range e.spec.Contours.Columns {
+		s.contour[col] = nil // contourer says whether the grid has contours
+	}
+	return s, nil
+}
+
+// add writes the rows of cells lo..hi-1, which must follow the cells
+// written before; res are the results of cells in that range (masked cells
+// have none), in any order.
+func (s *tableSink) add(lo, hi int, res []*cellResult) error {
+	if lo != s.next {
+		return fmt.Errorf("internal error: the tables have cells up to %d, the next part starts at %d", s.next-1, lo)
+	}
+	sortByID(res)
+	t := s.e.cellsTable(lo, hi, res)
+	if err := s.cells.Append(t); err != nil {
+		return fmt.Errorf("writing cells.parquet: %w", err)
+	}
+	for _, c := range t.Columns {
+		if v, ok := s.contour[c.Name]; ok {
+			if c.Float64 == nil {
+				s.contour[c.Name] = nil // not numeric: writeContours says so
+				continue
+			}
+			s.contour[c.Name] = append(v, c.Float64...)
+		}
+	}
+	// Each long table is its own stream: they are built and encoded
+	// side by side, each by one goroutine in cell order, so the bytes are
+	// those of one table after the other.
+	if err := s.eachLong(func(k int) error {
+		if err := s.long[k].Append(s.schemas[k].build(res)); err != nil {
+			return fmt.Errorf("writing %s: %w", s.names[k], err)
+		}
+		return nil
+	}); err != nil {
+		return err
+	}
+	s.next = hi
+	return nil
+}
+
+// sinkEncoders is the number of long tables built and encoded at a time
+// (at most; never more than the run's workers). Two take the stage off one
+// core; each more would hold one more table's columns and encoder
+// (memoryModel counts this many) for less gain, the tables being unequal.
+const sinkEncoders = 2
+
+// eachLong calls f for every long table k, on up to sinkEncoders
+// goroutines, and returns the error of the first table (in file order)
+// that failed.
+func (s *tableSink) eachLong(f func(k int) error) error {
+	errs := make([]error, len(s.long))
+	next := make(chan int, len(s.long))
+	for k := range s.long {
+		next <- k
+	}
+	close(next)
+	var wg sync.WaitGroup
+	for w := 0; w < min(max(s.workers, 1), sinkEncoders, len(s.long)); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for k := range next {
+				errs[k] = f(k)
+			}
+		}()
+	}
+	wg.Wait()
+	return firstErr(errs)
+}
+
+// firstErr is the first non-nil error of errs, or nil.
+func firstErr(errs []error) error {
+	for _, err := range errs {
+		if err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// close puts the tables in place and writes the contour layers; it returns
+// the files written (relative to the run directory) and the warnings.
+func (s *tableSink) close() ([]string, []string, error) {
+	if n := s.e.cat.Grid.NCells(); s.next != n {
+		s.abort()
+		return nil, nil, fmt.Errorf("internal error: the tables have %d of %d cells", s.next, n)
+	}
+	written := []string{"cells.parquet"}
+	if err := s.cells.Close(); err != nil {
+		s.abort()
+		return nil, nil, fmt.Errorf("writing cells.parquet: %w", err)
+	}
+	if err := s.eachLong(func(k int) error {
+		if err := s.long[k].Close(); err != nil {
+			return fmt.Errorf("writing %s: %w", s.names[k], err)
+		}
+		return nil
+	}); err != nil {
+		s.abort()
+		return nil, nil, err
+	}
+	written = append(written, s.names...)
+	if s.e.cat.Grid.Kind == grid.MeshKind {
+		files, err := writeMeshTables(s.out, s.e.cat.Grid)
+		if err != nil {
+			return nil, nil, err
+		}
+		written = append(written, files...)
+	}
+	files, warns, err := s.e.writeContours(s.out, s.contour)
+	if err != nil {
+		return nil, nil, err
+	}
+	return append(written, files...), warns, nil
+}
+
+// abort removes the unfinished tables.
+func (s *tableSink) abort() {
+	if s.cells != nil {
+		s.cells.Abort()
+	}
+	for _, st := range s.long {
+		st.Abort()
+	}
+}
+
+// abortSink removes the unfinished tables of a run that did not reach its
+// export (a no-op once they are in place).
+func (j *job) abortSink() {
+	if j.sink != nil {
+		j.sink.abort()
+	}
+}

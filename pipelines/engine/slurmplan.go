@@ -1,0 +1,166 @@
+package engine
+
+import (
+	"fmt"
+	"strings"
+	"time"
+
+	"swellgrid/grid"
+	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
+)
+
+// SlurmPlan is the sizing of a sharded run: how many shards, and how much
+// memory each array task asks Slurm for, so that every shard reads its
+// files once (one pass) within its budget. The budget a task runs with is
+// its request less ProcessOverhead (what the process takes beyond
+// run.memory_limit), so that a task sized by the plan is not killed by the
+// scheduler.
+type SlurmPlan struct {
+	Cells, NX, NY int  // the grid (NX 0: a point set, NY its points)
+	Steps, Years  int  // the record: time steps, years with data
+	Structured    bool // shards hold whole rows
+	// The memory model (budget.go): per cell of a pass, fixed part, cache.
+	PerCellBytes, FixedBytes, CacheBytes int64
+	Shards                               int   // array tasks
+	UnitsPerShard                        int   // rows (or points) of the largest shard
+	CellsPerShard                        int   // cells of the largest shard
+	BudgetBytes                          int64 // --memory-limit of each task
+	MemBytes                             int64 // sbatch --mem of each task (budget + ProcessOverhead)
+	// CellsPerPass is what one pass holds under BudgetBytes (>= CellsPerShard).
+	CellsPerPass int
+}
+
+// slurmModel is what the planner needs of a run: the grid and the memory
+// model of budget.go.
+type slurmModel struct {
+	cells, nx, ny, steps, years int
+	chunks                      chunkModel
+	structured                  bool
+	perCell, perResult          float64
+	fixed                       int64
+}
+
+func (j *job) slurmModel() slurmModel {
+	g := j.cat.Grid
+	perCell, perResult, fixed := j.eng.memoryModel()
+	m := slurmModel{cells: g.NCells(), nx: g.NX, ny: g.NY, steps: j.cat.Steps, years: j.eng.recordYears(), chunks: chunkModelOf(j.cat),
+		structured: g.Kind != grid.Points && g.Structured(), perCell: perCell, perResult: perResult, fixed: fixed}
+	if !m.structured {
+		m.nx, m.ny = 1, g.NCells()
+	}
+	return m
+}
+
+// planSlurm sizes the shards: from mem (the Slurm request per task, bytes;
+// 0: not given) the number of shards whose cells fit one pass, from shards
+// (0: not given) the memory per task; with both it checks that they fit.
+func planSlurm(m slurmModel, mem int64, shards int) (*SlurmPlan, error) {
+	p := &SlurmPlan{Cells: m.cells, NX: m.nx, NY: m.ny, Steps: m.steps, Years: m.years, Structured: m.structured,
+		PerCellBytes: int64(m.perCell), FixedBytes: m.fixed}
+	if !m.structured {
+		p.NX = 0
+	}
+	unit := "rows"
+	if !m.structured {
+		unit = "points"
+	}
+	// cells of the largest shard of n (Shard.Cells: ceil(NY/n) rows)
+	shardCells := func(n int) int { return (m.ny + n - 1) / n * m.nx }
+	passCells := func(budget int64) int {
+		pl, err := planMemory(budget, m.chunks, m.perCell, m.perResult, m.fixed, shardCells(1), 0)
+		if err != nil {
+			return 0
+		}
+		return pl.passCells
+	}
+	switch {
+	case mem == 0 && shards == 0:
+		return nil, fmt.Errorf("cluster slurm: give --mem (the shards are counted for it) or --shards (the memory per shard is computed), or both (checked)")
+	case shards > m.ny:
+		return nil, fmt.Errorf("cluster slurm: --shards %d: the grid has only %d %s, so at most %d shards; use fewer shards", shards, m.ny, unit, m.ny)
+	}
+	if mem > 0 {
+		budget := mem - ProcessOverhead
+		per := 0
+		if budget >= 16<<20 {
+			per = passCells(budget)
+		}
+		rows := per / m.nx
+		if rows < 1 {
+			need := neededLimit(m.chunks, m.perCell, m.perResult, m.fixed, shardCells(1), 0, m.nx) + ProcessOverhead
+			return nil, fmt.Errorf("cluster slurm: --mem %s cannot hold one %s of the grid (%d cells of %s each, plus %s fixed and %s of chunk cache and decompression, plus %s for the process): give --mem %s or more",
+				SizeText(mem), strings.TrimSuffix(unit, "s"), m.nx, kib(m.perCell), mib(m.fixed), mib(m.chunks.cMemory(max(budget, 16<<20))), mib(ProcessOverhead), SizeText(roundUp(need, 1<<20)))
+		}
+		need := (m.ny + rows - 1) / rows
+		if shards == 0 {
+			shards = need
+		} else if shards < need {
+			return nil, fmt.Errorf("cluster slurm: --shards %d with --mem %s cannot fit: a shard of %d %s (%d cells) needs more than one pass (%d cells fit one pass under a budget of %s, so each shard would read its files %d times); give --shards %d or more, or --mem %s or more",
+				shards, SizeText(mem), (m.ny+shards-1)/shards, unit, shardCells(shards), per, SizeText(budget), (shardCells(shards)+per-1)/per, need, SizeText(memFor(m, shardCells(shards))))
+		}
+		p.Shards, p.BudgetBytes, p.MemBytes, p.CellsPerPass = shards, budget, mem, per
+	} else {
+		p.Shards = shards
+		p.MemBytes = memFor(m, shardCells(shards))
+		p.BudgetBytes = p.MemBytes - ProcessOverhead
+		p.CellsPerPass = passCells(p.BudgetBytes)
+	}
+	p.UnitsPerShard = (m.ny + p.Shards - 1) / p.Shards
+	p.CellsPerShard = p.UnitsPerShard * m.nx
+	p.CacheBytes = m.chunks.cMemory(p.BudgetBytes)
+	return p, nil
+}
+
+// memFor is the Slurm request (rounded up to 64 MiB) whose budget holds
+// cells in one pass.
+func memFor(m slurmModel, cells int) int64 {
+	return roundUp(neededLimit(m.chunks, m.perCell, m.perResult, m.fixed, cells, 0, cells)+ProcessOverhead, 64<<20)
+}
+
+func roundUp(b, to int64) int64 { return (b + to - 1) / to * to }
+
+// SizeText writes bytes as Slurm and --memory-limit read them: whole GiB
+// as "8G", else whole MiB as "3968M".
+func SizeText(b int64) string {
+	if b%(1<<30) == 0 {
+		return fmt.Sprintf("%dG", b>>30)
+	}
+	return fmt.Sprintf("%dM", (b+(1<<20)-1)>>20)
+}
+
+// Text is the plan as `cluster slurm` prints it.
+func (p *SlurmPlan) Text() string {
+	var b strings.Builder
+	if p.Structured {
+		fmt.Fprintf(&b, "grid:     %d cells (%d x %d rows), %d steps, %d years with data\n", p.Cells, p.NX, p.NY, p.Steps, p.Years)
+	} else {
+		fmt.Fprintf(&b, "points:   %d, %d steps, %d years with data\n", p.Cells, p.Steps, p.Years)
+	}
+	fmt.Fprintf(&b, "model:    %s per cell of a pass (state and read buffers), %s fixed (catalog, table writers), %s chunk cache\n",
+		kib(float64(p.PerCellBytes)), mib(p.FixedBytes), mib(p.CacheBytes))
+	unit := "rows"
+	if !p.Structured {
+		unit = "points"
+	}
+	fmt.Fprintf(&b, "shards:   %d (at most %d %s, %d cells each; one pass holds %d cells)\n", p.Shards, p.UnitsPerShard, unit, p.CellsPerShard, p.CellsPerPass)
+	fmt.Fprintf(&b, "memory:   --mem %s per task = --memory-limit %s + %s for the process\n", SizeText(p.MemBytes), SizeText(p.BudgetBytes), mib(ProcessOverhead))
+	return b.String()
+}
+
+// PlanShards sizes a sharded run of spec over the catalog cat (see
+// SlurmPlan): the number of shards for a memory request of mem bytes per
+// task (0: not given), the memory per task for shards (0: not given), or,
+// with both, checks that they fit.
+func PlanShards(spec *runspec.Spec, cat *ingest.Catalog, mem int64, shards int) (*SlurmPlan, error) {
+	job, err := newJob(spec, Options{}, cat, time.Now())
+	if err != nil {
+		return nil, err
+	}
+	p, err := planSlurm(job.slurmModel(), mem, shards)
+	if err != nil {
+		return nil, fault.Input(err)
+	}
+	return p, nil
+}

@@ -1,0 +1,69 @@
+package engine
+
+import (
+	"strings"
+	"testing"
+)
+
+// The planner's arithmetic against a hand computation (the memory model of
+// budget.go, with round numbers for a model grid of 1000 x 1000 cells):
+// 4 role variables, 100 000 bytes per cell of a pass, 200 000 per cell of a
+// fit chunk, 10 MiB fixed.
+//
+// --mem 1152 MiB: budget 1152 - 128 = 1024 MiB = 1 073 741 824 bytes.
+// chunk cache 4 x 1 GiB / 16 = 268 435 456; Go's live share
+// 0.7 x (1 073 741 824 - 268 435 456) - 10 485 760 = 553 228 697.6;
+// fit chunk floor(0.2 x 553 228 697.6 / 200 000) = 553 cells;
+// one pass floor((553 228 697.6 - 553 x 200 000) / 100 000) = 4426 cells
+// = 4 whole rows; shards ceil(1000 / 4) = 250 of 4 rows (4000 cells).
+//
+// --shards 250: a shard of 4000 cells in one pass needs a live share x with
+// x - floor(x / 10^6) x 200 000 >= 4000 x 100 000, least x = 499.8e6 (fit
+// chunk 499); the limit L with 0.7 x 0.75 L - 10 485 760 = 499.8e6 is
+// 971 972 876 bytes, 926.95 MiB: 927 MiB to the MiB (926 MiB gives 3994
+// cells); the request 927 + 128 = 1055 MiB rounded up to 64 MiB: 1088 MiB,
+// budget 960 MiB.
+func TestSlurmPlanArithmetic(t *testing.T) {
+	m := slurmModel{cells: 1000 * 1000, nx: 1000, ny: 1000, steps: 87660, years: 30, chunks: chunkModel{chunks: make([]int64, 4)}, structured: true,
+		perCell: 100000, perResult: 200000, fixed: 10 << 20}
+	p, err := planSlurm(m, 1152<<20, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.Shards != 250 || p.UnitsPerShard != 4 || p.CellsPerShard != 4000 || p.CellsPerPass != 4426 || p.BudgetBytes != 1<<30 || p.MemBytes != 1152<<20 {
+		t.Errorf("--mem 1152M: %+v; want 250 shards of 4 rows (4000 cells), 4426 cells a pass, budget 1 GiB", p)
+	}
+	if p.CacheBytes != 268435456 {
+		t.Errorf("chunk cache %d, want 268435456", p.CacheBytes)
+	}
+	q, err := planSlurm(m, 0, 250)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if q.MemBytes != 1088<<20 || q.BudgetBytes != 960<<20 || q.CellsPerShard != 4000 || q.CellsPerPass < 4000 {
+		t.Errorf("--shards 250: --mem %s, budget %s, %d cells a shard, %d a pass; want 1088M, 960M, 4000, >= 4000", SizeText(q.MemBytes), SizeText(q.BudgetBytes), q.CellsPerShard, q.CellsPerPass)
+	}
+	if n := neededLimit(chunkModel{chunks: make([]int64, 4)}, 100000, 200000, 10<<20, 4000, 0, 4000); n != 927<<20 {
+		t.Errorf("least limit for 4000 cells in one pass: %d MiB, want 927", n>>20)
+	}
+	// Both given: 100 shards of 10 rows (10 000 cells) do not fit one pass
+	// of 4426 cells: refused, naming 250 shards.
+	if _, err := planSlurm(m, 1152<<20, 100); err == nil || !strings.Contains(err.Error(), "cannot fit") || !strings.Contains(err.Error(), "--shards 250 or more") {
+		t.Errorf("--mem 1152M --shards 100: %v; want a refusal naming --shards 250", err)
+	}
+	// 250 and more fit.
+	if p, err := planSlurm(m, 1152<<20, 300); err != nil || p.Shards != 300 {
+		t.Errorf("--mem 1152M --shards 300: %v, %+v", err, p)
+	}
+	// A request that cannot hold one row (budget 72 MiB: live share
+	// 0.7 x (72 - 4 x 4.5) MiB - 10 MiB = 27.8 MiB, 233 cells < 1000).
+	if _, err := planSlurm(m, 200<<20, 0); err == nil || !strings.Contains(err.Error(), "cannot hold one row") {
+		t.Errorf("--mem 200M: %v; want a refusal", err)
+	}
+	if _, err := planSlurm(m, 0, 1001); err == nil || !strings.Contains(err.Error(), "only 1000 rows") {
+		t.Errorf("--shards 1001: %v; want a refusal", err)
+	}
+	if _, err := planSlurm(m, 0, 0); err == nil {
+		t.Error("neither --mem nor --shards: no refusal")
+	}
+}

@@ -1,0 +1,596 @@
+package screening
+
+// Site screening of a finished run: every cell against each scenario's
+// criteria and constraint layers, from cells.parquet and the manifest (no
+// recomputation), written as screening.parquet, screening.json and
+// contours/screening_<scenario>.geojson.
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"github.com/paulmach/orb"
+
+	"swellgrid/export"
+	"swellgrid/export/rundir"
+	"swellgrid/grid"
+	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/lock"
+	"swellgrid/pipelines/products"
+	"swellgrid/pipelines/runspec"
+	"swellgrid/pipelines/tables"
+)
+
+// File is the summary written beside the manifest.
+const File = "screening.json"
+
+// Note goes with every screening summary and its help: what the
+// screening does not know.
+const Note = "Screening takes each cell whole, by its centre: a cell whose centre passes counts with all its area, " +
+	"and the passing area is only as good as the constraint layers given. It is a first sieve for planning studies, " +
+	"not a site selection; see the caution."
+
+// screenRow is one row of screening.parquet: a cell under a scenario.
+type screenRow struct {
+	id       int
+	scenario string
+	pass     bool
+	reasons  []string
+	areaKm2  float64
+	dist     []float64 // km, per distance layer of the run (screenResult.distLayers)
+	k        int       // index of the column's distance layer
+}
+
+// screeningSchema is screening.parquet, one row per cell and scenario, in
+// cell-id order, scenarios in spec order within a cell.
+var screeningSchema = []tables.Column[*screenRow]{
+	tables.I64("cell_id", "1", "", "", "cell id", func(r *screenRow) int64 { return int64(r.id) }),
+	tables.Str("scenario", "", "scenario name ([[screening.scenario]] name)", func(r *screenRow) string { return r.scenario }),
+	tables.Bool("pass", "", "the cell passes every criterion and constraint of the scenario", func(r *screenRow) bool { return r.pass }),
+	tables.Str("reasons", "", "semicolon-separated failed criteria and constraints (\"masked\"; a criterion as written, \"(missing)\" when the value is null; \"in LAYER\"; \"outside LAYER\"; \"LAYER distance ... km\"); empty when the cell passes",
+		func(r *screenRow) string { return strings.Join(r.reasons, "; ") }),
+	tables.F64("area_km2", "km2", "", "", "cell area on the WGS 84 ellipsoid from the grid's cell edges (null: a point set has no cells)",
+		func(r *screenRow) float64 { return r.areaKm2 }),
+	tables.F64("dist_<layer>_km", "km", "", "", "geodesic distance on WGS 84 from the cell centre to the nearest feature of layer <layer> (0 inside its polygons)",
+		func(r *screenRow) float64 { return r.dist[r.k] }).Per(ParamLayer),
+}
+
+// ParamLayer is the screening layer a distance column is repeated over.
+const ParamLayer tables.Param = "layer"
+
+// ScenarioSummary is one scenario's result in screening.json and the manifest.
+type ScenarioSummary struct {
+	Name     string                 `json:"name"`
+	Criteria []string               `json:"criteria"`
+	Exclude  []string               `json:"exclude,omitempty"`
+	Within   []string               `json:"within,omitempty"`
+	Distance []runspec.DistanceRule `json:"distance,omitempty"`
+	Cells    int                    `json:"cells_passing"`
+	// AreaKm2 is the passing cells' area (null: a point set).
+	AreaKm2 *float64 `json:"area_km2"`
+	// Area-weighted mean, least and largest power_mean_kw_m of the passing
+	// cells (null: none passes).
+	PowerMeanKWm *float64 `json:"power_mean_kw_m"`
+	PowerMinKWm  *float64 `json:"power_min_kw_m"`
+	PowerMaxKWm  *float64 `json:"power_max_kw_m"`
+	// ResourceMWhPerMYr is the mean incident wave energy per metre of crest
+	// and year: PowerMeanKWm x 8766 h / 1000 (8766 h = 365.25 days).
+	ResourceMWhPerMYr *float64 `json:"resource_mwh_per_m_yr"`
+	// Layout: Device at DevicesPerKm2 over the passing area; Devices is
+	// sum(area_km2) x density, AnnualEnergyGWh sum(area_km2 x density x
+	// aep_<device>_mwh) / 1000 over passing cells with an AEP (those without
+	// are counted in CellsWithoutAEP and add nothing).
+	Device          string   `json:"device,omitempty"`
+	DevicesPerKm2   float64  `json:"devices_per_km2,omitempty"`
+	Devices         *float64 `json:"devices,omitempty"`
+	AnnualEnergyGWh *float64 `json:"annual_energy_gwh,omitempty"`
+	CellsWithoutAEP int      `json:"cells_without_aep,omitempty"`
+	// Polygons is contours/screening_<name>.geojson (structured grids).
+	Polygons string `json:"polygons,omitempty"`
+}
+
+// Summary is screening.json, and the manifest's "screening".
+type Summary struct {
+	Caution   string            `json:"caution"`
+	Note      string            `json:"note"`
+	Method    string            `json:"method"`
+	Layers    []Layer           `json:"layers"`
+	Scenarios []ScenarioSummary `json:"scenarios"`
+}
+
+// Layer is a constraint file as used: path, table, checksum, size.
+type Layer struct {
+	Name     string `json:"name"`
+	Path     string `json:"path"`
+	Table    string `json:"table,omitempty"`
+	SHA256   string `json:"sha256"`
+	Features int    `json:"features"`
+}
+
+const screeningMethod = "criteria on cells.parquet columns (a missing value fails); a cell is in a polygon layer when its centre is " +
+	"inside or on the boundary of a polygon (planar in lon/lat, RFC 7946 edges); distances are geodesics on WGS 84 (Vincenty 1975) " +
+	"from the cell centre to the nearest point of the layer's features; cell areas on the WGS 84 ellipsoid from the grid's cell edges " +
+	"(midpoints between cell centres); passing areas dissolved exactly along the cell edges"
+
+// screenResult is the screening of a run.
+type screenResult struct {
+	rows       []*screenRow
+	distLayers []string // layers with a distance column, in spec order
+	summary    *Summary
+	polys      map[string]orb.MultiPolygon // passing outline per scenario (structured grids)
+}
+
+// runGrid rebuilds the grid geometry of a finished run from cells.parquet.
+func runGrid(r *rundir.Run) *grid.Grid {
+	g := &grid.Grid{NX: r.NX, NY: r.NY, Lon: r.Lon(), Lat: r.Lat()}
+	switch r.Kind {
+	case "regular":
+		g.Kind = grid.Regular
+	case "curvilinear":
+		g.Kind = grid.Curvilinear
+	default:
+		g.Kind = grid.Points
+	}
+	return g
+}
+
+// screenRun screens the run r with the spec's [screening] section (its
+// layers read by validateScreening).
+func screenRun(r *rundir.Run, s *runspec.Spec) (*screenResult, error) {
+	sc := s.Screening
+	g := runGrid(r)
+	n := g.NCells()
+	areas := grid.CellAreasM2(g)
+	areaKm2 := make([]float64, n)
+	for i := range areaKm2 {
+		areaKm2[i] = math.NaN()
+		if areas != nil {
+			areaKm2[i] = areas[i] / 1e6
+		}
+	}
+	res := &screenResult{polys: map[string]orb.MultiPolygon{}}
+	sum := &Summary{Caution: tables.Caution, Note: Note, Method: screeningMethod}
+	for _, l := range s.Layers() {
+		sum.Layers = append(sum.Layers, Layer{Name: l.Name, Path: l.File, Table: l.Table, SHA256: l.SHA256, Features: len(l.Geoms)})
+	}
+	// distances, once per layer used in a distance rule
+	distIdx := map[string]int{}
+	for _, c := range sc.Scenarios {
+		for _, d := range c.Distance {
+			if _, ok := distIdx[d.Layer]; !ok {
+				distIdx[d.Layer] = len(res.distLayers)
+				res.distLayers = append(res.distLayers, d.Layer)
+			}
+		}
+	}
+	dist := make([][]float64, len(res.distLayers))
+	for k, name := range res.distLayers {
+		t := grid.NewTarget(s.ScreeningLayer(name).Geoms)
+		dist[k] = make([]float64, n)
+		for i := 0; i < n; i++ {
+			d, ok := t.DistanceM(g.Lon[i], g.Lat[i])
+			if !ok {
+				d = math.NaN()
+			}
+			dist[k][i] = d / 1000
+		}
+	}
+	// polygon membership, once per polygon layer used
+	inside := map[string][]bool{}
+	for _, c := range sc.Scenarios {
+		for _, name := range append(append([]string{}, c.Exclude...), c.Within...) {
+			if inside[name] != nil {
+				continue
+			}
+			var mp orb.MultiPolygon
+			for _, gm := range s.ScreeningLayer(name).Geoms {
+				switch gm := gm.(type) {
+				case orb.Polygon:
+					mp = append(mp, gm)
+				case orb.MultiPolygon:
+					mp = append(mp, gm...)
+				}
+			}
+			in := make([]bool, n)
+			for i := 0; i < n; i++ {
+				in[i] = !math.IsNaN(g.Lon[i]) && grid.MultiCovers(mp, orb.Point{g.Lon[i], g.Lat[i]})
+			}
+			inside[name] = in
+		}
+	}
+	crits := make([][]runspec.Criterion, len(sc.Scenarios))
+	for k, c := range sc.Scenarios {
+		for _, t := range c.Criteria {
+			cr, _ := runspec.ParseCriterion(t) // checked by validateScreening
+			col := r.Cells.Col(cr.Column)
+			if col == nil {
+				return nil, fault.Input(fmt.Errorf("screening: scenario %s: criterion %q: %q is not a column of %s; see the README's column list (cells.parquet)", c.Name, t, cr.Column, filepath.Join(r.Dir, "cells.parquet")))
+			}
+			if !col.Numeric() {
+				return nil, fault.Input(fmt.Errorf("screening: scenario %s: criterion %q: column %q is not numeric", c.Name, t, cr.Column))
+			}
+			crits[k] = append(crits[k], cr)
+		}
+		if c.Device != "" && r.Cells.Col("aep_"+c.Device+"_mwh") == nil {
+			return nil, fault.Input(fmt.Errorf("screening: scenario %s: device %q: the run has no column aep_%s_mwh; name a [[device]] of the run", c.Name, c.Device, c.Device))
+		}
+	}
+	power := r.Cells.Col("power_mean_kw_m")
+	passes := make([][]bool, len(sc.Scenarios))
+	for k := range passes {
+		passes[k] = make([]bool, n)
+	}
+	for i := 0; i < n; i++ {
+		for k, c := range sc.Scenarios {
+			row := &screenRow{id: i, scenario: c.Name, areaKm2: areaKm2[i], dist: make([]float64, len(res.distLayers))}
+			for l := range res.distLayers {
+				row.dist[l] = dist[l][i]
+			}
+			if r.Land[i] {
+				row.reasons = append(row.reasons, "masked")
+			}
+			for _, cr := range crits[k] {
+				v := r.Cells.Col(cr.Column).Value(i)
+				if !cr.Holds(v) {
+					if math.IsNaN(v) {
+						row.reasons = append(row.reasons, cr.Text+" (missing)")
+					} else {
+						row.reasons = append(row.reasons, cr.Text)
+					}
+				}
+			}
+			for _, name := range c.Exclude {
+				if inside[name][i] {
+					row.reasons = append(row.reasons, "in "+name)
+				}
+			}
+			for _, name := range c.Within {
+				if !inside[name][i] {
+					row.reasons = append(row.reasons, "outside "+name)
+				}
+			}
+			for _, d := range c.Distance {
+				v := dist[distIdx[d.Layer]][i]
+				switch {
+				case math.IsNaN(v):
+					row.reasons = append(row.reasons, d.Layer+" distance unknown")
+				case d.MinKm > 0 && v < d.MinKm:
+					row.reasons = append(row.reasons, fmt.Sprintf("%s distance < %g km", d.Layer, d.MinKm))
+				case d.MaxKm > 0 && v > d.MaxKm:
+					row.reasons = append(row.reasons, fmt.Sprintf("%s distance > %g km", d.Layer, d.MaxKm))
+				}
+			}
+			row.pass = len(row.reasons) == 0
+			passes[k][i] = row.pass
+			res.rows = append(res.rows, row)
+		}
+	}
+	corners, structured := grid.CellCorners(g)
+	for k, c := range sc.Scenarios {
+		ss := summarise(c, passes[k], areaKm2, areas != nil, power, r.Cells.Col("aep_"+c.Device+"_mwh"))
+		if structured {
+			res.polys[c.Name] = grid.Dissolve(corners, passes[k], g.Kind == grid.Regular)
+			ss.Polygons = filepath.ToSlash(filepath.Join(export.ContourDir, "screening_"+c.Name+".geojson"))
+		}
+		sum.Scenarios = append(sum.Scenarios, ss)
+	}
+	res.summary = sum
+	return res, nil
+}
+
+func fptr(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
+}
+
+// summarise is a scenario's summary over its passing cells: area
+// A = sum a_i (km2); area-weighted mean power sum(a_i J_i) / sum(a_i) over
+// cells with a power (a point set, without areas: the plain mean); the
+// layout's devices rho sum a_i and annual energy rho sum(a_i AEP_i) / 1000
+// (GWh/yr; no array interaction, availability or transmission losses).
+func summarise(c runspec.ScenarioSpec, pass []bool, areaKm2 []float64, hasArea bool, power, aep *rundir.Column) ScenarioSummary {
+	s := ScenarioSummary{Name: c.Name, Exclude: c.Exclude, Within: c.Within, Distance: c.Distance, Device: c.Device, DevicesPerKm2: c.DevicesPerKm2}
+	for _, t := range c.Criteria {
+		cr, _ := runspec.ParseCriterion(t)
+		s.Criteria = append(s.Criteria, cr.Text)
+	}
+	if s.Criteria == nil {
+		s.Criteria = []string{}
+	}
+	area, wsum, wpow := 0.0, 0.0, 0.0
+	lo, hi := math.Inf(1), math.Inf(-1)
+	energy := 0.0
+	for i, p := range pass {
+		if !p {
+			continue
+		}
+		s.Cells++
+		w := 1.0
+		if hasArea {
+			w = areaKm2[i]
+			area += w
+		}
+		if power != nil {
+			if v := power.Value(i); !math.IsNaN(v) {
+				wsum += w
+				wpow += w * v
+				lo, hi = math.Min(lo, v), math.Max(hi, v)
+			}
+		}
+		if c.Device != "" && hasArea {
+			if v := aep.Value(i); !math.IsNaN(v) {
+				energy += areaKm2[i] * c.DevicesPerKm2 * v
+			} else {
+				s.CellsWithoutAEP++
+			}
+		}
+	}
+	if hasArea {
+		s.AreaKm2 = fptr(area)
+	}
+	if wsum > 0 {
+		m := wpow / wsum
+		s.PowerMeanKWm, s.PowerMinKWm, s.PowerMaxKWm = fptr(m), fptr(lo), fptr(hi)
+		s.ResourceMWhPerMYr = fptr(m * 8766 / 1000)
+	}
+	if c.Device != "" && hasArea {
+		s.Devices = fptr(area * c.DevicesPerKm2)
+		s.AnnualEnergyGWh = fptr(energy / 1000)
+	}
+	return s
+}
+
+// Specs is screening.parquet's schema with the distance columns of
+// this run expanded (layers: the distance layers), for the manifest.
+func Specs(layers []string) []tables.ColumnSpec {
+	var out []tables.ColumnSpec
+	for k := range screeningSchema {
+		c := screeningSchema[k].ColumnSpec
+		c.File, c.Type = "screening.parquet", screeningSchema[k].ValueType()
+		if c.Param == ParamLayer {
+			for _, l := range layers {
+				e := c
+				e.Param = tables.NoParam
+				e.Name = strings.ReplaceAll(c.Name, "<layer>", l)
+				e.Doc = strings.ReplaceAll(c.Doc, "<layer>", l)
+				out = append(out, e)
+			}
+			continue
+		}
+		out = append(out, c)
+	}
+	return out
+}
+
+// table builds screening.parquet.
+func (res *screenResult) table() *export.Table {
+	var cols []export.Column
+	for k := range screeningSchema {
+		c := &screeningSchema[k]
+		if c.Param == ParamLayer {
+			for l, name := range res.distLayers {
+				for _, r := range res.rows {
+					r.k = l
+				}
+				cols = append(cols, tables.Fill(c, strings.ReplaceAll(c.Name, "<layer>", name), strings.ReplaceAll(c.Doc, "<layer>", name), res.rows, nil))
+			}
+			continue
+		}
+		cols = append(cols, tables.Fill(c, c.Name, c.Doc, res.rows, nil))
+	}
+	return &export.Table{Columns: cols, Meta: map[string]string{export.MetaCaution: tables.Caution}}
+}
+
+// writeScreening writes screening.parquet, the scenario outlines and
+// screening.json into the run directory dir; it returns the files written.
+func writeScreening(dir string, res *screenResult) ([]string, error) {
+	if err := export.WriteParquet(filepath.Join(dir, "screening.parquet"), res.table()); err != nil {
+		return nil, fmt.Errorf("writing screening.parquet: %w", err)
+	}
+	files := []string{"screening.parquet"}
+	// outlines of scenarios no longer screened are stale: remove them
+	old, _ := filepath.Glob(filepath.Join(dir, export.ContourDir, "screening_*.geojson"))
+	for _, o := range old {
+		name := strings.TrimSuffix(strings.TrimPrefix(filepath.Base(o), "screening_"), ".geojson")
+		if _, ok := res.polys[name]; !ok {
+			os.Remove(o)
+		}
+	}
+	for _, s := range res.summary.Scenarios {
+		mp, ok := res.polys[s.Name]
+		if !ok {
+			continue
+		}
+		props := map[string]any{"scenario": s.Name, "criteria": strings.Join(s.Criteria, "; "), "cells": s.Cells, "area_km2": ptrOrNil(s.AreaKm2)}
+		if err := export.WriteScreeningOutline(dir, s.Name, mp, props); err != nil {
+			return nil, err
+		}
+		files = append(files, s.Polygons)
+	}
+	if err := export.WriteManifest(filepath.Join(dir, File), res.summary); err != nil {
+		return nil, err
+	}
+	return append(files, File), nil
+}
+
+func ptrOrNil(p *float64) any {
+	if p == nil {
+		return nil
+	}
+	return *p
+}
+
+// Rescreen screens the finished run in dir again with the [screening]
+// section of the spec at specPath, without recomputing anything: it
+// rewrites screening.parquet, screening.json and the scenario outlines,
+// records the screening in the manifest, and rebuilds the report and
+// atlas.gpkg where the run has them. It returns the files written.
+func Rescreen(dir, specPath string) ([]string, []string, error) {
+	mpath := filepath.Join(dir, "manifest.json")
+	raw, err := os.ReadFile(mpath)
+	if err != nil {
+		return nil, nil, fault.Input(fmt.Errorf("screen: %s is not a finished run directory (no manifest.json); run `swellgrid run` first: %w", dir, err))
+	}
+	spec, err := runspec.LoadScreeningSpec(specPath)
+	if err != nil {
+		return nil, nil, err
+	}
+	unlock, err := lock.Dir(dir)
+	if err != nil {
+		return nil, nil, err
+	}
+	defer unlock()
+	r, err := rundir.Open(dir, raw)
+	if err != nil {
+		return nil, nil, fault.Input(err)
+	}
+	res, err := screenRun(r, spec)
+	if err != nil {
+		return nil, nil, err
+	}
+	files, err := writeScreening(dir, res)
+	if err != nil {
+		return nil, nil, fault.Output(err)
+	}
+	// The manifest is edited key by key (order and every other value kept
+	// as the run wrote them).
+	var outputs []string
+	var top struct {
+		Outputs []string `json:"outputs"`
+	}
+	if err := json.Unmarshal(raw, &top); err != nil {
+		return nil, nil, fault.Input(fmt.Errorf("screen: %s: %w", mpath, err))
+	}
+	for _, o := range top.Outputs {
+		if o != "manifest.json" && !(strings.HasPrefix(o, export.ContourDir+"/screening_") || o == "screening.parquet" || o == File) {
+			outputs = append(outputs, o)
+		}
+	}
+	outputs = append(append(outputs, files...), "manifest.json")
+	m := raw
+	edits := []struct {
+		path []string
+		v    any
+	}{
+		{[]string{"parameters", "screening"}, spec.Screening},
+		{[]string{"columns", "screening.parquet"}, Specs(spec.Screening.DistanceLayers())},
+		{[]string{"outputs"}, outputs},
+		{[]string{"screening"}, res.summary},
+	}
+	for _, e := range edits {
+		if m, err = setJSONKey(m, e.path, e.v); err != nil {
+			return nil, nil, fault.Input(fmt.Errorf("screen: %s: %w", mpath, err))
+		}
+	}
+	_, hasReport := os.Stat(filepath.Join(dir, "report", "index.html"))
+	_, hasGpkg := os.Stat(filepath.Join(dir, "atlas.gpkg"))
+	if err := export.WriteManifest(mpath, json.RawMessage(m)); err != nil {
+		return nil, nil, fault.Output(err)
+	}
+	pf, warns, err := products.Build(dir, nil, products.Products{Report: hasReport == nil, GeoPackage: hasGpkg == nil})
+	if err != nil {
+		return nil, nil, fault.Output(err)
+	}
+	return append(files, pf...), warns, nil
+}
+
+// setJSONKey sets the member path of the JSON object doc to v, keeping the
+// order of the other members (a new member goes last).
+func setJSONKey(doc []byte, path []string, v any) ([]byte, error) {
+	dec := json.NewDecoder(bytes.NewReader(doc))
+	dec.UseNumber()
+	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
+		return nil, fmt.Errorf("not a JSON object")
+	}
+	var b bytes.Buffer
+	b.WriteByte('{')
+	found := false
+	n := 0
+	for dec.More() {
+		t, err := dec.Token()
+		if err != nil {
+			return nil, err
+		}
+		k := t.(string)
+		var val json.RawMessage
+		if err := dec.Decode(&val); err != nil {
+			return nil, err
+		}
+		if k == path[0] {
+			found = true
+			if len(path) > 1 {
+				if val, err = setJSONKey(val, path[1:], v); err != nil {
+					return nil, fmt.Errorf("%s: %w", k, err)
+				}
+			} else if val, err = marshalPlain(v); err != nil {
+				return nil, err
+			}
+		}
+		if n > 0 {
+			b.WriteByte(',')
+		}
+		n++
+		kb, _ := json.Marshal(k)
+		b.Write(kb)
+		b.WriteByte(':')
+		b.Write(val)
+	}
+	if !found {
+		var val []byte
+		var err error
+		if len(path) > 1 {
+			val, err = setJSONKey([]byte("{}"), path[1:], v)
+		} else {
+			val, err = marshalPlain(v)
+		}
+		if err != nil {
+			return nil, err
+		}
+		if n > 0 {
+			b.WriteByte(',')
+		}
+		kb, _ := json.Marshal(path[0])
+		b.Write(kb)
+		b.WriteByte(':')
+		b.Write(val)
+	}
+	b.WriteByte('}')
+	return b.Bytes(), nil
+}
+
+// marshalPlain is json.Marshal without HTML escaping (">=" stays ">=").
+func marshalPlain(v any) ([]byte, error) {
+	var b bytes.Buffer
+	enc := json.NewEncoder(&b)
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(v); err != nil {
+		return nil, err
+	}
+	return bytes.TrimRight(b.Bytes(), "\n"), nil
+}
+
+// Schema is the columns of screening.parquet, patterns unexpanded.
+func Schema() []tables.ColumnSpec { return tables.SpecsOf("screening.parquet", screeningSchema) }
+
+// Apply screens the finished run r with the scenarios of spec s and writes
+// screening.parquet, screening.json and the passing areas' outlines into
+// r.Dir. It returns the files written (relative to r.Dir) and the summary
+// for the manifest.
+func Apply(r *rundir.Run, s *runspec.Spec) ([]string, *Summary, error) {
+	res, err := screenRun(r, s)
+	if err != nil {
+		return nil, nil, err
+	}
+	files, err := writeScreening(r.Dir, res)
+	if err != nil {
+		return nil, nil, err
+	}
+	return files, res.summary, nil
+}
