@@ -69,7 +69,7 @@ lint: deps
 	@out=$$(gofmt -l $$(git ls-files '*.go')); if [ -n "$$out" ]; then echo "gofmt needed:"; echo "$$out"; exit 1; fi
 	$(GO) run honnef.co/go/tools/cmd/staticcheck@$(STATICCHECK_VERSION) ./...
 
-# mutants: wiring mutations of the column-filling code (pipelines/schema.go),
+# mutants: wiring mutations of the column-filling code (pipelines/engine/schema.go),
 # each of which must fail the end-to-end column checks (.ci/mutants.py lists them).
 mutants: test-deps
 	/usr/bin/python3 .ci/mutants.py
@@ -90,10 +90,13 @@ mutants: test-deps
 # import paths with the names it uses; the driver's own move (from
 # pipelines/bench to internal/bench and cmd/) does not matter. When a product
 # package it imports has moved since BENCH_BEFORE, BENCH_BEFORE_IMPORTS maps
-# it back: a list of NEW=OLD import paths rewritten in the copy only, e.g.
-# BENCH_BEFORE_IMPORTS=swellgrid/pipelines/engine=swellgrid/pipelines (the
-# driver then imports the moved package under a name of its own). When the
-# names it calls changed too, move BENCH_BEFORE past the change.
+# it back: a list of NEW=OLD import paths rewritten in the copy only, each
+# import of NEW becoming `<last element of NEW> "OLD"` (the driver keeps
+# calling engine.Run and runspec.DefaultSpec when both came from one
+# package). The default maps the split of pipelines (issue 28) back. When the
+# names it calls changed too, move BENCH_BEFORE past the change. The
+# micro-benchmarks run in BENCH_MICRO_PKGS here and BENCH_MICRO_PKGS_BEFORE on
+# the older tree, with the moved package's name mapped for benchstat.
 BENCH_OUT   ?= bench-out
 BENCH_CACHE ?= $(HOME)/.cache/swellgrid-bench
 BENCH_BEFORE ?= 60c6ddd
@@ -101,7 +104,9 @@ BENCH_PARTS ?= full,half
 BENCH_MICRO ?= FeedBulk|FeedSpectral|FinishBulk|FitStage|GroupVelocity|BulkDepthPower|FitGEV|FitGPD|^BenchmarkAdd
 BENCHSTAT_VERSION := v0.0.0-20260908200009-22c9c6c9d4da
 BENCH_DRIVER := internal/bench cmd/sgbench
-BENCH_BEFORE_IMPORTS ?=
+BENCH_BEFORE_IMPORTS ?= swellgrid/pipelines/engine=swellgrid/pipelines swellgrid/pipelines/runspec=swellgrid/pipelines
+BENCH_MICRO_PKGS ?= ./pipelines/engine/ ./stats/...
+BENCH_MICRO_PKGS_BEFORE ?= ./pipelines/ ./stats/...
 bench: deps
 	@mkdir -p $(BENCH_OUT) bin
 	$(GO) build -o bin/sgbench ./cmd/sgbench
@@ -113,13 +118,14 @@ bench: deps
 	  && cp -r $$d/. $(BENCH_OUT)/before-src/$$d/ || exit 1; done
 	for m in $(BENCH_BEFORE_IMPORTS); do new=$${m%%=*}; old=$${m#*=}; \
 	  find $(addprefix $(BENCH_OUT)/before-src/,$(BENCH_DRIVER)) -name '*.go' \
-	    -exec sed -i "s#\"$$new\"#\"$$old\"#" {} + || exit 1; done
+	    -exec sed -i "s#\"$$new\"#$${new##*/} \"$$old\"#" {} + || exit 1; done
 	cd $(BENCH_OUT)/before-src && $(GO) build -o $(CURDIR)/bin/sgbench-before ./cmd/sgbench \
 	  && $(GO) build -o $(CURDIR)/bin/swellgrid-before ./cmd/swellgrid
 	./bin/sgbench -cache $(BENCH_CACHE) -before bin/sgbench-before -parts $(BENCH_PARTS) -md $(BENCH_OUT)/pipeline.md
 	cd $(BENCH_OUT)/before-src && $(GO) test -run '^$$' -bench '$(BENCH_MICRO)' -benchmem -count 5 -benchtime 0.2s \
-	  ./pipelines/ ./stats/... > $(CURDIR)/$(BENCH_OUT)/micro-before.txt
-	$(GO) test -run '^$$' -bench '$(BENCH_MICRO)' -benchmem -count 5 -benchtime 0.2s ./pipelines/ ./stats/... > $(BENCH_OUT)/micro.txt
+	  $(BENCH_MICRO_PKGS_BEFORE) > $(CURDIR)/$(BENCH_OUT)/micro-before.txt
+	sed -i 's#^pkg: swellgrid/pipelines$$#pkg: swellgrid/pipelines/engine#' $(BENCH_OUT)/micro-before.txt
+	$(GO) test -run '^$$' -bench '$(BENCH_MICRO)' -benchmem -count 5 -benchtime 0.2s $(BENCH_MICRO_PKGS) > $(BENCH_OUT)/micro.txt
 	$(GO) install golang.org/x/perf/cmd/benchstat@$(BENCHSTAT_VERSION)
 	"$$($(GO) env GOPATH)/bin/benchstat" before=$(BENCH_OUT)/micro-before.txt after=$(BENCH_OUT)/micro.txt | tee $(BENCH_OUT)/micro-benchstat.txt
 	./internal/bench/compare_outputs.sh bin/swellgrid-before $(BIN) bin/sgdiff > $(BENCH_OUT)/tables.txt; cat $(BENCH_OUT)/tables.txt
@@ -144,14 +150,14 @@ bench-memory: deps
 	$(GO) build -o bin/sgmem ./cmd/sgmem
 	./bin/sgmem -cache $(BENCH_CACHE) -bin $(BIN) -md $(BENCH_OUT)/memory.md \
 	  -only '$(BENCH_MEM_ONLY)' -grid200-months $(BENCH_GRID200_MONTHS)
-	$(GO) test -run '^$$' -bench CellMemory -benchtime 3x ./pipelines/ | tee -a $(BENCH_OUT)/memory.md
+	$(GO) test -run '^$$' -bench CellMemory -benchtime 3x ./pipelines/engine/ | tee -a $(BENCH_OUT)/memory.md
 
 # Fuzz targets, each for FUZZTIME (go test -fuzz runs one target at a time).
 # A crasher is saved under the package's testdata/fuzz/ and must become a
 # regression test.
 FUZZTIME ?= 60s
 FUZZ_TARGETS := ./ingest:FuzzParseTimeUnits ./ingest:FuzzCatalogMetadata \
-	./pipelines:FuzzSpec ./stats/climate:FuzzPowerMatrix
+	./pipelines/engine:FuzzSpec ./stats/climate:FuzzPowerMatrix
 
 fuzz: deps
 	@for t in $(FUZZ_TARGETS); do pkg=$${t%%:*}; fn=$${t##*:}; \

@@ -2,7 +2,7 @@
 """Mutation check of the column wiring (`make mutants`).
 
 Each mutation below is a plausible wiring error in the column-filling code
-(pipelines/schema.go, unless an edit names another file): swapped columns,
+(pipelines/engine/schema.go, unless an edit names another file): swapped columns,
 reversed percentile order, SVI into mvi, GEV bounds swapped, off-by-one return
 periods, scatter axes transposed, seasons shifted, a window one step too
 long, ... For each one, the script copies the working tree to a temporary
@@ -18,7 +18,7 @@ import subprocess
 import sys
 import tempfile
 
-FILE = "pipelines/schema.go"
+FILE = "pipelines/engine/schema.go"
 TESTS = "TestE2EColumnsAgainstNumpy|TestSpectralColumnsAgainstNumpy|TestInvalidValuesAgainstNumpy|TestBootstrapColumnsAgainstScipy"
 
 # (name, [(old, new), ...])
@@ -54,7 +54,7 @@ MUTATIONS = [
       ("func(x eRow) float64 { return x.v.l.Upper }", "func(x eRow) float64 { return x.v.l.Lower }"),
       ("return x.v.l.@@ }", "return x.v.l.Upper }")]),
     ("hm0_mean_m filled with the maximum",
-     [("return c.r.sum.Hm0MeanM }).when", "return c.r.sum.Hm0MaxM }).when")]),
+     [("return c.r.sum.Hm0MeanM }).When", "return c.r.sum.Hm0MaxM }).When")]),
     ("capacity factor and AEP swapped",
      [("return device(c).AEPMWh }", "return device(c).@@ }"),
       ("return device(c).CapacityFactor }", "return device(c).AEPMWh }"),
@@ -112,10 +112,10 @@ MUTATIONS = [
       ("return x.v.@@ }", "return x.v.ShapeHi }")]),
     # the spectral-only columns (TestSpectralColumnsAgainstNumpy)
     ("width_mean and directionality swapped (spectra)",
-     [("pipelines/results.go", "= c.spec.WidthMean(), c.spec.DirMaxPowerDeg(), c.spec.Directionality(),",
+     [("pipelines/engine/results.go", "= c.spec.WidthMean(), c.spec.DirMaxPowerDeg(), c.spec.Directionality(),",
        "= c.spec.Directionality(), c.spec.DirMaxPowerDeg(), c.spec.WidthMean(),")]),
     ("tp_mean_s from the discrete peak, not the parabolic one (spectra)",
-     [("pipelines/stream.go", "p.J, p.Hm0, p.Te, p.Tp, p.MeanDirDeg", "p.J, p.Hm0, p.Te, p.TpDiscrete, p.MeanDirDeg")]),
+     [("pipelines/engine/stream.go", "p.J, p.Hm0, p.Te, p.Tp, p.MeanDirDeg", "p.J, p.Hm0, p.Te, p.TpDiscrete, p.MeanDirDeg")]),
     ("directional maximum only at the arc ends (spectra)",
      [("stats/seastate/kernel.go", "if cs*d-ss*c > 0 && c*se-d*ce > 0 {", "if false && cs*d-ss*c > 0 && c*se-d*ce > 0 {")]),
     ("bootstrap interval bounds swapped (extremes.parquet)",
@@ -124,7 +124,7 @@ MUTATIONS = [
       ("return x.v.l.@@ }", "return x.v.l.BootUpper }")]),
     # unusable values (TestInvalidValuesAgainstNumpy)
     ("storm peaks fed the unscreened Hm0 (a 70 m height as an annual maximum)",
-     [("pipelines/stream.go", "j, hm0, te, tp, dir := c.clim.AddAt(&st.ct, jv[t*w+k], hm0s[i], tev[t*w+k], tp, dir)",
+     [("pipelines/engine/stream.go", "j, hm0, te, tp, dir := c.clim.AddAt(&st.ct, jv[t*w+k], hm0s[i], tev[t*w+k], tp, dir)",
        "j, _, te, tp, dir := c.clim.AddAt(&st.ct, jv[t*w+k], hm0s[i], tev[t*w+k], tp, dir)\n\t\t\thm0 := hm0s[i]")]),
     ("power kept when Hm0 or Te is unusable",
      [("stats/climate/state.go", "\tif bad {\n\t\tj = nan\n\t} else if", "\tif bad && false {\n\t\tj = nan\n\t} else if")]),
@@ -157,7 +157,7 @@ def main():
                 origs = {f: open(os.path.join(src, f)).read() for f in texts}
                 for f, text in texts.items():
                     open(os.path.join(src, f), "w").write(text)
-                r = subprocess.run(["go", "test", "-count=1", "-run", TESTS, "./pipelines/"], cwd=src,
+                r = subprocess.run(["go", "test", "-count=1", "-run", TESTS, "./pipelines/engine/"], cwd=src,
                                    capture_output=True, text=True)
                 failed = sorted(set(re.findall(r"--- FAIL: (\S+)", r.stdout)))
                 first = next((l.strip() for l in r.stdout.splitlines() if "_test.go:" in l and "largest difference" not in l), "")

@@ -20,7 +20,7 @@ import (
 // the filters over them, each filter into a new buffer, before it copies out
 // the values asked for. A chunk larger than the chunk cache is decompressed
 // into such buffers on every read, which the memory budget must count
-// (pipelines/budget.go); an unfiltered chunk is read straight into the
+// (pipelines/engine/budget.go); an unfiltered chunk is read straight into the
 // caller's buffer.
 func (v *ncVar) chunkBytes() (int64, bool, error) {
 	rank := len(v.shape)

@@ -279,7 +279,7 @@ func TestEveryColumnProven(t *testing.T) {
 		p, ok := columnProofs[key]
 		if !ok {
 			t.Errorf("%s has no proof: compare it end to end (testdata/e2e/reference.py and a tolerance in e2e_columns_test.go, "+
-				"then %q: byE2E in columnProofs, pipelines/proofs_test.go) or name the test that proves it against an outside reference "+
+				"then %q: byE2E in columnProofs, pipelines/engine/proofs_test.go) or name the test that proves it against an outside reference "+
 				"(%q: by(\"TestX\", \"what it checks against what\")); see DEVELOPERS.md", key, key, key)
 			continue
 		}

@@ -15,7 +15,7 @@ import (
 
 var updateREADME = flag.Bool("update-readme", false, "rewrite the README's column tables from the schema")
 
-// TestREADMEColumns: the README's column tables are the schema (pipelines/schema.go),
+// TestREADMEColumns: the README's column tables are the schema (pipelines/engine/schema.go),
 // and the README carries the one caution text.
 func TestREADMEColumns(t *testing.T) {
 	const path = "../../README.md"
@@ -34,7 +34,7 @@ func TestREADMEColumns(t *testing.T) {
 		return
 	}
 	if want != string(old) {
-		t.Errorf("README.md's column tables differ from pipelines/schema.go; run go test ./pipelines -run TestREADMEColumns -update-readme")
+		t.Errorf("README.md's column tables differ from pipelines/engine/schema.go; run go test ./pipelines/engine -run TestREADMEColumns -update-readme")
 	}
 	// The caution, word for word (the README quotes it as a block, "> " lines).
 	text := strings.Join(strings.Fields(strings.ReplaceAll(string(old), "\n> ", " ")), " ")

@@ -6,7 +6,7 @@
 //
 // It works on plain slices of paired values already matched in time. It must
 // not know about NetCDF, files, grids, stations, time axes or tables: the
-// co-location and matching are done by its caller (pipelines/validate.go).
+// co-location and matching are done by its caller (pipelines/validation/validate.go).
 package validate
 
 import (

@@ -1,7 +1,7 @@
 #!/usr/bin/python3
 """Spectral files in every convention swellgrid reads or refuses, written
 with Debian's python3-netcdf4 (not with swellgrid's own generator), for
-pipelines/conventions_e2e_test.go and ingest/conventions_test.go.
+pipelines/engine/conventions_e2e_test.go and ingest/conventions_test.go.
 
 An invented, synthetic scenario (no real place): 3 stations at depths 25,
 150 and 4000 m, daily steps over three months (2031-01-01 .. 2031-03-31),

@@ -3,7 +3,7 @@
 and python3-scipy (no swellgrid code), of what each file of
 make_fixtures.py holds, read as it was written (its variant's "truth", not
 its attributes, which may be wrong on purpose). Writes reference.json,
-which pipelines/conventions_e2e_test.go compares with runs on the files
+which pipelines/engine/conventions_e2e_test.go compares with runs on the files
 that swellgrid reads (or is told how to read).
 
 Each file's stored values are decoded as written:

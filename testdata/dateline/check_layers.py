@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Checks of the layers of a date-line run (pipelines/dateline_test.go) with
+"""Checks of the layers of a date-line run (pipelines/engine/dateline_test.go) with
 Debian's python3-shapely (GEOS) alone: every GeoJSON layer of RUN/contours
 and every layer of RUN/atlas.gpkg, compared with the same layer of the run
 AWAY on the same values 170 degrees west (away from the date line).

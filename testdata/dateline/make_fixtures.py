@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Fixtures of the date-line checks (pipelines/dateline_test.go, issue 31:
+"""Fixtures of the date-line checks (pipelines/engine/dateline_test.go, issue 31:
 longitude wrap), written with Debian's python3-netcdf4, not with swellgrid's
 own generator.
 
@@ -136,7 +136,7 @@ def layers(name):
         json.dump(fc({"type": "Point", "coordinates": port}), f, indent=1)
 
 
-SPEC = """# Date-line check (pipelines/dateline_test.go), written by make_fixtures.py:
+SPEC = """# Date-line check (pipelines/engine/dateline_test.go), written by make_fixtures.py:
 # %(what)s. Invented, synthetic data.
 [input]
 paths = ["%(name)s"]

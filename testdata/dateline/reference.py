@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Reference of the date-line checks (pipelines/dateline_test.go, issue 31),
+"""Reference of the date-line checks (pipelines/engine/dateline_test.go, issue 31),
 computed from the fixtures' NetCDF files with numpy, python3-netcdf4,
 python3-pyproj and python3-shapely alone (no swellgrid code), into
 reference_<fixture>.json.

@@ -1,6 +1,6 @@
 #!/usr/bin/python3
 """Independent reference for swellgrid's device-yield columns
-(pipelines/columns_test.go, TestDeviceYieldAgainstNumpy).
+(pipelines/engine/columns_test.go, TestDeviceYieldAgainstNumpy).
 
 Writes:
   - testdata/devices/tp_matrix.csv: an invented power matrix (kW) over Hm0 and

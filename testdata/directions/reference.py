@@ -2,7 +2,7 @@
 """Independent computation of directions.parquet (the directional
 distribution of wave power and occurrence) with Debian's python3-netcdf4,
 python3-numpy and python3-scipy; no swellgrid code. Writes reference.json,
-which pipelines/directions_e2e_test.go compares with two runs.
+which pipelines/engine/directions_e2e_test.go compares with two runs.
 
 Sectors: n = 16 (statistics.direction_sectors default), sector k centred on
 k*360/n deg nautical "from", spanning [centre - 180/n, centre + 180/n).

@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Bulk fixture for the end-to-end column checks (pipelines/e2e_columns_test.go),
+"""Bulk fixture for the end-to-end column checks (pipelines/engine/e2e_columns_test.go),
 written with Debian's python3-netcdf4, not with swellgrid's own generator.
 
 An invented, synthetic scenario (no real place): a 3 x 2 grid, 12 years

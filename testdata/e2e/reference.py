@@ -2,7 +2,7 @@
 """Independent computation of the output columns of swellgrid on the bulk
 fixture (make_fixture.py), with Debian's python3-netcdf4, python3-numpy and
 python3-scipy; no swellgrid code. Writes reference.json (committed), which
-pipelines/e2e_columns_test.go compares with every table of a run; the test
+pipelines/engine/e2e_columns_test.go compares with every table of a run; the test
 reruns this script when the tools are there (always under CI=true).
 
 Definitions (README "Methods"; sources named beside each):

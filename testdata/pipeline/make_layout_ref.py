@@ -1,6 +1,6 @@
 #!/usr/bin/python3
 """Independent reference for the point-set and curvilinear runs of
-pipelines/e2e_test.go (TestPointSetRun, TestCurvilinearRun).
+pipelines/engine/e2e_test.go (TestPointSetRun, TestCurvilinearRun).
 
 Reads testdata/points_bulk.nc and testdata/curvilinear_bulk.nc with Debian's
 python3-netcdf4 and computes for every cell (matched by its lon/lat, which the

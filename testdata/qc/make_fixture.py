@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Fixture for the invalid-value count (pipelines/qc_counts_test.go), written
+"""Fixture for the invalid-value count (pipelines/engine/qc_counts_test.go), written
 with Debian's python3-netcdf4, not with swellgrid's own generator.
 
 An invented, synthetic scenario (no real place): a 2 x 2 grid of deep water

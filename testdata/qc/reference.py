@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Reference for pipelines/qc_counts_test.go, computed from testdata/qc/qc_bulk.nc
+"""Reference for pipelines/engine/qc_counts_test.go, computed from testdata/qc/qc_bulk.nc
 read with Debian's python3-netcdf4, independently of swellgrid (numpy 1.24,
 scipy 1.10 on Debian 12).
 

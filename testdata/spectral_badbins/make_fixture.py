@@ -1,6 +1,6 @@
 #!/usr/bin/python3
 """Fixture and independent reference for swellgrid's missing-bin and
-mean-direction checks (pipelines/columns_test.go).
+mean-direction checks (pipelines/engine/columns_test.go).
 
 Writes, with Debian's python3-netcdf4, testdata/spectral_badbins/spectral_badbins.nc:
 invented, synthetic two-peaked directional spectra (a wind sea from 270 deg and

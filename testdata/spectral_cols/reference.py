@@ -3,7 +3,7 @@
 fills (te_mean_s, tp_mean_s, width_mean, directionality, dir_max_power_deg,
 with hm0_mean_m, power_mean_kw_m and dir_mean_deg alongside) with Debian's
 python3-netcdf4, python3-numpy and python3-scipy; no swellgrid code. Writes
-reference.json, which pipelines/spectral_e2e_test.go compares with runs on
+reference.json, which pipelines/engine/spectral_e2e_test.go compares with runs on
 three spectral files written by python3-netcdf4 (invented, synthetic data):
   - ../directions/spectral_dirs.nc: 2-D, directions descending and offset by
     7.5 deg, depths 15 to 4000 m, station 3 with all energy in one direction;

@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Fixtures of the time-weighting checks (pipelines/timeweight_test.go, issue
+"""Fixtures of the time-weighting checks (pipelines/engine/timeweight_test.go, issue
 27: every step weighted by its duration), written with Debian's
 python3-netcdf4, not with swellgrid's own generator.
 
@@ -235,7 +235,7 @@ def main():
                              "dup": "" if policy is None else 'duplicate_steps = "%s"\n' % policy})
 
 
-SPEC = """# Time-weighting check %(v)s (pipelines/timeweight_test.go), written by
+SPEC = """# Time-weighting check %(v)s (pipelines/engine/timeweight_test.go), written by
 # make_fixtures.py: %(what)s.
 # Invented, synthetic data.
 [input]

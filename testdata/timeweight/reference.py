@@ -3,7 +3,7 @@
 fixtures (make_fixtures.py), every statistic weighting each time step by its
 duration, with Debian's python3-netcdf4, python3-numpy and python3-scipy; no
 swellgrid code. Writes reference_<variant>.json (committed), which
-pipelines/timeweight_test.go compares with the tables and manifest of a run.
+pipelines/engine/timeweight_test.go compares with the tables and manifest of a run.
 
 The duration rule (issue 27; the README's time axis section):
 - the record's times t_0 < ... < t_{n-1} are the union of every file's times
