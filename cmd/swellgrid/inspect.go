@@ -58,11 +58,11 @@ Bad input stops it with a message naming the file, the variable and what to do
 			}
 			switch {
 			case deep:
-				spec.Depth.Source = "deep-water"
+				spec.Depth.Source = runspec.DepthDeepWater
 			case depth != 0:
-				spec.Depth.Source, spec.Depth.ConstantM = "constant", depth
+				spec.Depth.Source, spec.Depth.ConstantM = runspec.DepthConstant, depth
 			case bathy != "":
-				spec.Depth.Source, spec.Depth.BathymetryFile = "bathymetry", bathy
+				spec.Depth.Source, spec.Depth.BathymetryFile = runspec.DepthBathymetry, bathy
 			}
 			r, err := inspect.Spec(spec, args)
 			if err != nil {

@@ -65,10 +65,11 @@ func (f *runFlags) register(cmd *cobra.Command) {
 	cmd.Flags().StringVar(&f.update, "update", "", "continue the finished run in DIR with the new (later) input files; refused if an earlier file or the spec changed")
 }
 
-// runOptions turns --shard and --update into run options; --update DIR is
-// the output directory.
+// runOptions turns --shard, --update, --workers and --memory-limit into
+// run options (the last two replace the spec's run.workers and
+// run.memory_limit, as for a merge); --update DIR is the output directory.
 func (f *runFlags) runOptions(spec *runspec.Spec) (engine.Options, error) {
-	opt := engine.Options{Restart: f.restart, Update: f.update != ""}
+	opt := engine.Options{Restart: f.restart, Update: f.update != "", Workers: f.workers, MemoryLimit: f.memory}
 	if f.shard != "" {
 		sh, err := engine.ParseShard(f.shard)
 		if err != nil {
@@ -101,23 +102,17 @@ func (f *runFlags) buildSpec() (*runspec.Spec, error) {
 	if f.out != "" {
 		spec.Output.Dir = f.out
 	}
-	if f.workers != 0 {
-		spec.Run.Workers = f.workers
-	}
 	if f.checkpointEvery >= 0 {
 		spec.Run.CheckpointEveryS = f.checkpointEvery
-	}
-	if f.memory != "" {
-		spec.Run.MemoryLimit = f.memory
 	}
 	if f.depth != 0 && f.deep {
 		return nil, errors.New("give either --depth or --deep-water, not both")
 	}
 	if f.depth != 0 {
-		spec.Depth.Source, spec.Depth.ConstantM = "constant", f.depth
+		spec.Depth.Source, spec.Depth.ConstantM = runspec.DepthConstant, f.depth
 	}
 	if f.deep {
-		spec.Depth.Source = "deep-water"
+		spec.Depth.Source = runspec.DepthDeepWater
 	}
 	return spec, nil
 }

@@ -58,7 +58,8 @@ func PlanSlurm(j SlurmJobs) (*engine.SlurmPlan, *runspec.Spec, error) {
 	if j.Out != "" {
 		spec.Output.Dir = j.Out
 	}
-	if err := spec.Validate(); err != nil {
+	rs, err := spec.Resolve()
+	if err != nil {
 		return nil, nil, fault.Input(err)
 	}
 	if j.Shards < 0 {
@@ -79,7 +80,7 @@ func PlanSlurm(j SlurmJobs) (*engine.SlurmPlan, *runspec.Spec, error) {
 	if err != nil {
 		return nil, nil, fault.Input(err)
 	}
-	p, err := engine.PlanShards(spec, cat, mem, j.Shards)
+	p, err := engine.PlanShards(rs, cat, mem, j.Shards)
 	if err != nil {
 		return nil, nil, err
 	}

@@ -13,8 +13,8 @@ import (
 )
 
 // productsOf is the products the spec asks for.
-func productsOf(s *runspec.Spec) products.Products {
-	return products.Products{Report: s.Output.Report, NetCDF: s.Output.NetCDF, GeoPackage: s.Output.GeoPackage, Workers: s.Run.Workers}
+func productsOf(s *runspec.Resolved) products.Products {
+	return products.Products{Report: s.Output.Report, NetCDF: s.Output.NetCDF, GeoPackage: s.Output.GeoPackage, Workers: s.Exec.Workers}
 }
 
 // finishManifest writes the manifest m of the run directory out, builds the

@@ -7,7 +7,6 @@ import (
 
 	"swellgrid/grid"
 	"swellgrid/ingest"
-	"swellgrid/pipelines/runspec"
 )
 
 // The memory budget. run.memory_limit is what a run or a merge may hold, in
@@ -144,7 +143,7 @@ func (e *engine) memoryModel() (perCell, perResult float64, fixed int64) {
 			values++
 		}
 	}
-	perCell = float64(m.State) + float64(blocksInFlight*e.spec.Run.BlockSteps*values*8)
+	perCell = float64(m.State) + float64(blocksInFlight*e.spec.Exec.BlockSteps*values*8)
 	if e.spectral {
 		perCell += float64(e.layout.Len())*16 + 2048 // the cell's spectral kernel
 	}
@@ -226,10 +225,7 @@ func neededLimit(cm chunkModel, perCell, perResult float64, fixed int64, cells, 
 // planBudget is the memory plan of cells lo..hi-1 under the spec's limit, or
 // the refusal that names the limit one pass needs.
 func (e *engine) planBudget(lo, hi int) (*memPlan, error) {
-	limit, err := runspec.ParseSize(e.spec.Run.MemoryLimit)
-	if err != nil {
-		return nil, err
-	}
+	limit := e.spec.Exec.MemoryBytes
 	perCell, perResult, fixed := e.memoryModel()
 	nx := 0
 	if e.cat.Grid.Kind != grid.Points {
@@ -240,7 +236,7 @@ func (e *engine) planBudget(lo, hi int) (*memPlan, error) {
 	if err != nil {
 		need := neededLimit(cm, perCell, perResult, fixed, hi-lo, nx, 1)
 		return nil, fmt.Errorf("run.memory_limit %s is too small for even one pass of one cell: this record (%d cells, %d steps, %d years) needs at least %s (chunk cache %s, decompressing a chunk %s, tables and catalog %s, %s per cell); set run.memory_limit or --memory-limit to %s or more",
-			e.spec.Run.MemoryLimit, e.cat.Grid.NCells(), e.cat.Steps, e.recordYears(), mib(need), mib(cm.cacheBytes(limit)), mib(cm.decodeBytes()), mib(fixed), kib(perCell), mib(need))
+			e.spec.Exec.MemoryText, e.cat.Grid.NCells(), e.cat.Steps, e.recordYears(), mib(need), mib(cm.cacheBytes(limit)), mib(cm.decodeBytes()), mib(fixed), kib(perCell), mib(need))
 	}
 	return p, nil
 }
@@ -260,10 +256,7 @@ func kib(b float64) string { return fmt.Sprintf("%.1f KiB", b/1024) }
 // a chunk at a time and holds the chunk's states and results only (no read
 // buffers, no chunk cache beyond the catalog's).
 func (e *engine) planMergeBudget() (*memPlan, error) {
-	limit, err := runspec.ParseSize(e.spec.Run.MemoryLimit)
-	if err != nil {
-		return nil, err
-	}
+	limit := e.spec.Exec.MemoryBytes
 	_, perResult, fixed := e.memoryModel()
 	state := float64(e.ccfg.CellMemory(e.recordYears(), 0).State)
 	per := state + perResult
@@ -274,7 +267,7 @@ func (e *engine) planMergeBudget() (*memPlan, error) {
 	if err != nil || p.passCells < 1 {
 		need := neededLimit(cm, per, 1, fixed, e.cat.Grid.NCells(), 0, 2)
 		return nil, fmt.Errorf("merge: run.memory_limit %s is too small to merge even one cell at a time (%s per cell, tables and catalog %s); give --memory-limit %s or more",
-			e.spec.Run.MemoryLimit, kib(per), mib(fixed), mib(need))
+			e.spec.Exec.MemoryText, kib(per), mib(fixed), mib(need))
 	}
 	p.fitChunk = min(4096, p.passCells)
 	p.perCell, p.perResult = state, perResult

@@ -46,7 +46,7 @@ type ckHeader struct {
 	// refused after a resume or a merge of shards.
 	Seen []ingest.TallyEntry `json:"seen,omitempty"`
 
-	spec *runspec.Spec // the spec now (wanted headers only)
+	spec *runspec.Resolved // the spec now (wanted headers only)
 }
 
 func inputIDs(cat *ingest.Catalog) ([]inputID, error) {

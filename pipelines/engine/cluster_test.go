@@ -156,7 +156,7 @@ func readAllStates(t *testing.T, dir string) (*ckHeader, []*cell) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	s := clSpec(nil, dir)
+	s := mustResolve(t, clSpec([]string{runcheck.BulkFixture(t)}, dir))
 	ccfg, _ := s.ClimateConfig(cat)
 	eng, _ := newEngine(cat, s, ccfg)
 	cells, _, err := loadCheckpointTrusting(paths[0], *hs[0], len(hs[0].Inputs), eng.newCell)
@@ -298,4 +298,18 @@ func TestUpdateRefusals(t *testing.T) {
 
 	// With everything restored the update goes through.
 	clRun(t, clSpec([]string{dir}, run), Options{Update: true})
+}
+
+// mustResolve resolves s (runspec.Spec.Resolve), with an output directory
+// if it has none, failing tb on an error.
+func mustResolve(tb testing.TB, s *runspec.Spec) *runspec.Resolved {
+	tb.Helper()
+	if s.Output.Dir == "" {
+		s.Output.Dir = tb.TempDir()
+	}
+	r, err := s.Resolve()
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return r
 }

@@ -204,7 +204,7 @@ func TestSpecUnknownKeyAndBadValues(t *testing.T) {
 		s := runspec.DefaultSpec()
 		s.Input.Paths = []string{"x"}
 		c.mod(s)
-		if err := s.Validate(); err == nil || !strings.Contains(err.Error(), c.want) {
+		if _, err := s.Resolve(); err == nil || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("want %q, got %v", c.want, err)
 		}
 	}

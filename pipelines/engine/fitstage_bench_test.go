@@ -19,11 +19,12 @@ func fitStageCells(b *testing.B, input string) (*engine, []*cell, []int) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	ccfg, err := spec.ClimateConfig(cat)
+	rs := mustResolve(b, spec)
+	ccfg, err := rs.ClimateConfig(cat)
 	if err != nil {
 		b.Fatal(err)
 	}
-	e, err := newEngine(cat, spec, ccfg)
+	e, err := newEngine(cat, rs, ccfg)
 	if err != nil {
 		b.Fatal(err)
 	}

@@ -31,24 +31,31 @@ func FuzzSpec(f *testing.F) {
 		if len(s.Input.Paths) == 0 {
 			s.Input.Paths = []string{"/fuzz/in"}
 		}
-		if err := s.Validate(); err != nil {
+		fp := func(s *runspec.Spec) string {
+			r, err := s.Resolve()
+			if err != nil {
+				t.Fatalf("a valid spec does not resolve: %v", err)
+			}
+			return r.Fingerprint()
+		}
+		if _, err := s.Resolve(); err != nil {
 			return
 		}
 		// The fingerprint follows the result-changing settings only: the
 		// execution settings and the output place leave it alone, a changed
 		// physical constant changes it (README "Usage": a changed spec refuses to resume).
-		a := s.Fingerprint()
+		a := fp(s)
 		if len(a) != 64 {
 			t.Fatalf("fingerprint %q is not a hex SHA-256", a)
 		}
 		moved := *s
 		moved.Output.Dir, moved.Run.Workers, moved.Run.MemoryLimit = "/elsewhere/out", s.Run.Workers+3, "64MiB"
-		if b := moved.Fingerprint(); b != a {
+		if b := fp(&moved); b != a {
 			t.Fatalf("output dir, workers and memory limit changed the fingerprint: %q -> %q", a, b)
 		}
 		denser := *s
 		denser.Physics.Rho = s.Physics.Rho + 1
-		if b := denser.Fingerprint(); b == a {
+		if b := fp(&denser); b == a {
 			t.Fatalf("physics.rho %g -> %g left the fingerprint %q", s.Physics.Rho, denser.Physics.Rho, a)
 		}
 	})

@@ -136,33 +136,28 @@ func validateMerge(ctx context.Context, out string, shardDirs []string, opt Opti
 	first := ms[order[0]]
 	spec := *first.Spec
 	spec.Output.Dir = out
-	if opt.Workers > 0 {
-		spec.Run.Workers = opt.Workers
-	}
 	if spec.Run.MemoryLimit == "" {
 		spec.Run.MemoryLimit = runspec.DefaultSpec().Run.MemoryLimit
 	}
-	if opt.MemoryLimit != "" {
-		spec.Run.MemoryLimit = opt.MemoryLimit
-	}
-	if err := spec.Validate(); err != nil {
+	rs, err := resolveSpec(&spec, opt)
+	if err != nil {
 		return nil, nil, fault.Input(fmt.Errorf("merge: the shards' spec: %w", err))
 	}
-	if fp := spec.Fingerprint(); fp != first.Fingerprint {
+	if fp := rs.Fingerprint(); fp != first.Fingerprint {
 		// The shards' state files record what the fingerprint hashed.
 		if len(first.Passes) > 0 {
 			p := first.Passes[0]
 			if h, _, f, err := readCkHeader(ckPath(shardDirs[order[0]], p[0], p[1])); err == nil {
 				f.Close()
 				if len(h.Spec) > 0 {
-					return nil, nil, fault.Input(fmt.Errorf("merge: the spec or a file it names changed since the shards ran (%s); rerun the shards", fingerprintChanges(h.Spec, &spec)))
+					return nil, nil, fault.Input(fmt.Errorf("merge: the spec or a file it names changed since the shards ran (%s); rerun the shards", fingerprintChanges(h.Spec, rs)))
 				}
 			}
 		}
 		return nil, nil, fault.Input(fmt.Errorf("merge: the spec recorded in %s does not reproduce its fingerprint (software version %s); rerun the shards with this version", filepath.Join(shardDirs[order[0]], shardFile), first.Version))
 	}
 	ts := time.Now()
-	cat, err := openCatalog(ctx, &spec)
+	cat, err := openCatalog(ctx, rs)
 	if err != nil {
 		return nil, nil, fault.Input(fmt.Errorf("merge: the shards' inputs: %w", err))
 	}
@@ -178,7 +173,7 @@ func validateMerge(ctx context.Context, out string, shardDirs []string, opt Opti
 	if first.GridCells != cat.Grid.NCells() {
 		return nil, nil, fault.Input(fmt.Errorf("merge: the shards were run on a grid of %d cells, the inputs have %d", first.GridCells, cat.Grid.NCells()))
 	}
-	j, err := newJob(&spec, opt, cat, t0)
+	j, err := newJob(rs, opt, cat, t0)
 	if err != nil {
 		return nil, nil, err
 	}

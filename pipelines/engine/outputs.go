@@ -161,7 +161,7 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 	c := e.cat
 	m := &Manifest{Software: "swellgrid", Version: version, Caution: tables.Caution, Calendar: string(c.Calendar),
 		Start: c.Start, End: c.End, Steps: c.Steps, StepSeconds: c.StepSeconds, Gaps: c.Gaps, RoleGaps: c.RoleGaps, Roles: c.Vars,
-		DepthSource: c.DepthSource, Parameters: e.spec, Timings: timings, SpectralReadings: c.Readings}
+		DepthSource: c.DepthSource, Parameters: e.spec.Spec, Timings: timings, SpectralReadings: c.Readings}
 	if m.Gaps == nil {
 		m.Gaps = []ingest.Gap{}
 	}

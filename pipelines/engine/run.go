@@ -29,12 +29,12 @@ type Options struct {
 	// Update continues the finished run in the output directory with the
 	// input files that are new (later in time); see update.go.
 	Update bool
-	// Workers, if > 0, is the number of fit workers of Merge (a run takes
-	// run.workers from the spec).
+	// Workers, if > 0, replaces the spec's run.workers (a run's or a
+	// merge's: the command line's --workers).
 	Workers int
-	// MemoryLimit, if set, is the memory budget of Merge (a size such as
-	// "512MiB"; a run takes run.memory_limit from the spec, a merge
-	// otherwise the default, as the shards do not record theirs).
+	// MemoryLimit, if set, replaces the spec's run.memory_limit (a size such
+	// as "512MiB"; the command line's --memory-limit). A merge without it
+	// takes the default, as the shards do not record theirs.
 	MemoryLimit string
 	// LimitProcess applies the memory plan to this process: Go's soft
 	// memory limit (runtime/debug.SetMemoryLimit) is set to the budget less
@@ -57,6 +57,20 @@ type Result struct {
 func IsResumeRefused(err error) bool {
 	var r *resumeRefused
 	return errors.As(err, &r)
+}
+
+// resolveSpec applies the options' execution settings (Workers,
+// MemoryLimit) to a copy of spec and resolves it (runspec.Spec.Resolve):
+// the one way in of these settings for a run and a merge alike.
+func resolveSpec(spec *runspec.Spec, opt Options) (*runspec.Resolved, error) {
+	s := *spec
+	if opt.Workers != 0 {
+		s.Run.Workers = opt.Workers
+	}
+	if opt.MemoryLimit != "" {
+		s.Run.MemoryLimit = opt.MemoryLimit
+	}
+	return s.Resolve()
 }
 
 // Run runs the whole job through the stages of stages.go: validate, lock,
@@ -122,7 +136,7 @@ func Run(ctx context.Context, spec *runspec.Spec, opt Options) (res *Result, err
 		return nil, fault.Output(err)
 	}
 	if j.opt.Shard != nil {
-		return writeShard(j.out, spec, j.cat, *j.opt.Shard, j.lo, j.hi, j.passes, s, opt.Version, j.t0)
+		return writeShard(j.out, j.spec, j.cat, *j.opt.Shard, j.lo, j.hi, j.passes, s, opt.Version, j.t0)
 	}
 	return j.export(ctx, s)
 }

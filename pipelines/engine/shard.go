@@ -85,8 +85,8 @@ type ShardManifest struct {
 
 // writeShard finishes a shard run: it writes shard.json beside the final
 // states.
-func writeShard(out string, spec *runspec.Spec, cat *ingest.Catalog, sh Shard, c0, c1 int, passes [][2]int, sums []string, version string, t0 time.Time) (*Result, error) {
-	st := *spec
+func writeShard(out string, spec *runspec.Resolved, cat *ingest.Catalog, sh Shard, c0, c1 int, passes [][2]int, sums []string, version string, t0 time.Time) (*Result, error) {
+	st := *spec.Spec
 	st.Input.Paths = absPaths(spec.Input.Paths)
 	m := &ShardManifest{Software: "swellgrid", Version: version, Shard: sh.Index, Shards: sh.Count, C0: c0, C1: c1,
 		GridCells: cat.Grid.NCells(), Passes: passes, Fingerprint: spec.Fingerprint(), Spec: &st, StepDurations: cat.DurationsOf(cat.Steps),

@@ -153,7 +153,7 @@ func (p *SlurmPlan) Text() string {
 // SlurmPlan): the number of shards for a memory request of mem bytes per
 // task (0: not given), the memory per task for shards (0: not given), or,
 // with both, checks that they fit.
-func PlanShards(spec *runspec.Spec, cat *ingest.Catalog, mem int64, shards int) (*SlurmPlan, error) {
+func PlanShards(spec *runspec.Resolved, cat *ingest.Catalog, mem int64, shards int) (*SlurmPlan, error) {
 	job, err := newJob(spec, Options{}, cat, time.Now())
 	if err != nil {
 		return nil, err

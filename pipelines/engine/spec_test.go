@@ -65,7 +65,7 @@ func TestSpecLimitsAndNames(t *testing.T) {
 		s := runspec.DefaultSpec()
 		s.Input.Paths = []string{"x"}
 		c.mod(s)
-		err := s.Validate()
+		_, err := s.Resolve()
 		if err == nil {
 			t.Errorf("%s: accepted", c.name)
 			continue
@@ -79,7 +79,7 @@ func TestSpecLimitsAndNames(t *testing.T) {
 	s := runspec.DefaultSpec()
 	s.Input.Paths = []string{"x"}
 	s.Devices = []runspec.DeviceSpec{{Name: "wec_2", PowerMatrix: okCSV}}
-	if err := s.Validate(); err != nil {
+	if _, err := s.Resolve(); err != nil {
 		t.Errorf("a good device is refused: %v", err)
 	}
 }
@@ -155,10 +155,11 @@ func TestFingerprintFollowsNamedFileContent(t *testing.T) {
 		s := runspec.DefaultSpec()
 		s.Input.Paths = []string{"x"}
 		s.Devices = []runspec.DeviceSpec{{Name: "wec", PowerMatrix: path}}
-		if err := s.Validate(); err != nil {
+		r, err := s.Resolve()
+		if err != nil {
 			t.Fatal(err)
 		}
-		return s.Fingerprint()
+		return r.Fingerprint()
 	}
 	if fp(a) != fp(b) {
 		t.Error("the same matrix at two paths gives two fingerprints")

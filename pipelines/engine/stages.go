@@ -37,7 +37,7 @@ import (
 // job is a run or a merge after validation: everything is known and
 // checked, nothing is written yet.
 type job struct {
-	spec    *runspec.Spec
+	spec    *runspec.Resolved
 	opt     Options
 	log     *slog.Logger
 	cat     *ingest.Catalog
@@ -70,12 +70,11 @@ func (j *job) mark(stage string, since time.Time) { j.timings[stage] += time.Sin
 
 // openCatalog builds the catalog of the spec's inputs, with a NetCDF chunk
 // cache sized from the memory budget.
-func openCatalog(ctx context.Context, spec *runspec.Spec) (*ingest.Catalog, error) {
+func openCatalog(ctx context.Context, spec *runspec.Resolved) (*ingest.Catalog, error) {
 	// A sixteenth of the memory budget per variable for NetCDF-4 chunks
 	// (clamped to 16 MiB .. 512 MiB): enough for a month of a variable on a
 	// large grid, so each chunk is decompressed once.
-	limit, _ := runspec.ParseSize(spec.Run.MemoryLimit)
-	if err := ingest.SetChunkCache(chunkCachePerVar(limit)); err != nil {
+	if err := ingest.SetChunkCache(chunkCachePerVar(spec.Exec.MemoryBytes)); err != nil {
 		return nil, err
 	}
 	hold(ctx, "catalog")
@@ -93,7 +92,7 @@ func openCatalog(ctx context.Context, spec *runspec.Spec) (*ingest.Catalog, erro
 
 // newJob checks what the catalog and the spec say together and sets up the
 // engine; it writes nothing.
-func newJob(spec *runspec.Spec, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, error) {
+func newJob(spec *runspec.Resolved, opt Options, cat *ingest.Catalog, t0 time.Time) (*job, error) {
 	log := opt.Log
 	if log == nil {
 		log = slog.New(slog.NewTextHandler(devNull{}, nil))
@@ -123,7 +122,7 @@ func newJob(spec *runspec.Spec, opt Options, cat *ingest.Catalog, t0 time.Time) 
 	if err != nil {
 		return nil, fault.Input(err)
 	}
-	workers := spec.Run.Workers
+	workers := spec.Exec.Workers
 	if workers == 0 {
 		workers = runtime.NumCPU()
 	}
@@ -133,9 +132,10 @@ func newJob(spec *runspec.Spec, opt Options, cat *ingest.Catalog, t0 time.Time) 
 }
 
 // validateRun is the validate stage of Run.
-func validateRun(ctx context.Context, spec *runspec.Spec, opt Options) (*job, error) {
+func validateRun(ctx context.Context, given *runspec.Spec, opt Options) (*job, error) {
 	t0 := time.Now()
-	if err := spec.Validate(); err != nil {
+	spec, err := resolveSpec(given, opt)
+	if err != nil {
 		return nil, fault.Input(err)
 	}
 	if err := spec.CheckRoles(); err != nil {
@@ -255,7 +255,7 @@ func (j *job) stream(ctx context.Context, pi int, p [2]int, cells []*cell, from 
 		j.seen[pi] = ingest.Tally{}
 	}
 	lastCk := time.Now()
-	every := time.Duration(j.spec.Run.CheckpointEveryS * float64(time.Second))
+	every := time.Duration(j.spec.Exec.CheckpointEveryS * float64(time.Second))
 	err := j.eng.streamPass(ctx, p[0], p[1], from, j.workers, cells, j.seen[pi], func(next int) error {
 		if err := j.eng.checkSea(); err != nil {
 			return err // a density read other than it is stored: before its states are saved

@@ -27,7 +27,7 @@ type cell struct {
 // engine holds what every worker shares read-only during a pass.
 type engine struct {
 	cat      *ingest.Catalog
-	spec     *runspec.Spec
+	spec     *runspec.Resolved
 	ccfg     *climate.Config
 	xcfg     extremes.CollectorConfig
 	layout   *seastate.Layout
@@ -68,7 +68,7 @@ func (e *engine) addStreamTimings(m map[string]float64) {
 	m["checkpoint_s"] += e.times.fileDone.Seconds()
 }
 
-func newEngine(cat *ingest.Catalog, spec *runspec.Spec, ccfg *climate.Config) (*engine, error) {
+func newEngine(cat *ingest.Catalog, spec *runspec.Resolved, ccfg *climate.Config) (*engine, error) {
 	e := &engine{cat: cat, spec: spec, ccfg: ccfg,
 		consts: seastate.Consts{Rho: spec.Physics.Rho, G: spec.Physics.G},
 		xcfg:   extremes.CollectorConfig{YearStartMonth: spec.Extremes.YearStartMonth, SeparationHours: spec.Extremes.SeparationH},
@@ -256,7 +256,7 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 	readErr := make(chan error, 1)
 	go func() {
 		readErr <- fault.Catch(func() error {
-			return e.cat.Read(ctx, ingest.ReadRange{C0: c0, C1: c1, MaxSteps: e.spec.Run.BlockSteps, FromFile: fromFile, Stats: &e.times.read, Raw: true}, blocks)
+			return e.cat.Read(ctx, ingest.ReadRange{C0: c0, C1: c1, MaxSteps: e.spec.Exec.BlockSteps, FromFile: fromFile, Stats: &e.times.read, Raw: true}, blocks)
 		})
 		close(blocks)
 	}()

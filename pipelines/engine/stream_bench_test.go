@@ -22,11 +22,12 @@ func benchFeed(b *testing.B, input string) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	ccfg, err := spec.ClimateConfig(cat)
+	rs := mustResolve(b, spec)
+	ccfg, err := rs.ClimateConfig(cat)
 	if err != nil {
 		b.Fatal(err)
 	}
-	e, err := newEngine(cat, spec, ccfg)
+	e, err := newEngine(cat, rs, ccfg)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -96,11 +97,12 @@ func BenchmarkFinishBulk(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	ccfg, err := spec.ClimateConfig(cat)
+	rs := mustResolve(b, spec)
+	ccfg, err := rs.ClimateConfig(cat)
 	if err != nil {
 		b.Fatal(err)
 	}
-	e, err := newEngine(cat, spec, ccfg)
+	e, err := newEngine(cat, rs, ccfg)
 	if err != nil {
 		b.Fatal(err)
 	}

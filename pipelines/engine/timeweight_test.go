@@ -582,7 +582,7 @@ func TestTimeWeightUpdateSharedStep(t *testing.T) {
 	if len(files) != 4 {
 		t.Fatalf("fixture d: %d files, want 4", len(files))
 	}
-	for _, policy := range []string{"", "last"} {
+	for _, policy := range []runspec.DuplicateSteps{runspec.DuplicatesRefused, runspec.DuplicatesLast} {
 		tmp := t.TempDir()
 		spec := func(in []string, out string) *runspec.Spec {
 			s := clSpec(in, out)

@@ -91,7 +91,7 @@ func readPriorRun(dir string) (*priorRun, error) {
 // with the same size, and final states for every cell. It reads and writes
 // nothing else; the earlier files' contents are compared by
 // inputContentChanges once their checksums are known.
-func checkUpdate(dir string, spec *runspec.Spec, cat *ingest.Catalog, sh *Shard) (*updatePlan, error) {
+func checkUpdate(dir string, spec *runspec.Resolved, cat *ingest.Catalog, sh *Shard) (*updatePlan, error) {
 	prior, err := readPriorRun(dir)
 	if err != nil {
 		return nil, err
@@ -116,7 +116,7 @@ func checkUpdate(dir string, spec *runspec.Spec, cat *ingest.Catalog, sh *Shard)
 	}
 	for _, h := range hs {
 		if h.Fingerprint != fp {
-			what := specChanges(prior.spec, spec)
+			what := specChanges(prior.spec, spec.Spec)
 			if len(h.Spec) > 0 {
 				what = fingerprintChanges(h.Spec, spec)
 			}
@@ -199,7 +199,7 @@ func short(h string) string {
 // fingerprintChanges names what differs between a recorded fingerprinted
 // spec (ckHeader.Spec) and spec: the settings sections, and the files named
 // by the spec whose content changed.
-func fingerprintChanges(prior json.RawMessage, spec *runspec.Spec) string {
+func fingerprintChanges(prior json.RawMessage, spec *runspec.Resolved) string {
 	var old struct {
 		Spec  map[string]json.RawMessage `json:"spec"`
 		Files map[string]string          `json:"files"`
@@ -223,7 +223,7 @@ func fingerprintChanges(prior json.RawMessage, spec *runspec.Spec) string {
 		}
 	}
 	var files []string
-	for _, n := range spec.NamedFiles() {
+	for _, n := range spec.Named {
 		if o, ok := old.Files[n.Key]; !ok {
 			files = append(files, fmt.Sprintf("%s %s is new", n.Key, n.Path))
 		} else if o != n.SHA256 {

@@ -140,11 +140,12 @@ func (c Criterion) Holds(v float64) bool {
 	return v >= c.a && v <= c.b
 }
 
-// validateScreening checks the [screening] section (names, criteria,
-// references between scenarios and layers), reads and validates every layer
-// file, and records the files' checksums among the spec's named files.
-// devices, when not nil, are the device names the run has.
-func (s *Spec) validateScreening(devices map[string]bool) error {
+// checkScreening checks the [screening] section (names, criteria,
+// references between scenarios and layers) without reading a file;
+// devices, when not nil, are the device names the run has. The layer files
+// are read, and the layers that exclude and within name checked to hold
+// polygons, by readScreenLayers.
+func (s *Spec) checkScreening(devices map[string]bool) error {
 	sc := s.Screening
 	if sc == nil {
 		return nil
@@ -158,26 +159,19 @@ func (s *Spec) validateScreening(devices map[string]bool) error {
 	if err := withinLimit("screening.scenario", len(sc.Scenarios)); err != nil {
 		return err
 	}
-	s.layers = nil
-	byName := map[string]*ScreenLayer{}
+	byName := map[string]bool{}
 	for i, l := range sc.Layers {
 		key := fmt.Sprintf("screening.layer[%d]", i)
 		if !screenName.MatchString(l.Name) {
 			return fmt.Errorf("spec: %s.name = %q: must be lower-case letters, digits and _, starting with a letter, at most 40 characters (it names columns)", key, l.Name)
 		}
-		if byName[l.Name] != nil {
+		if byName[l.Name] {
 			return fmt.Errorf("spec: %s.name = %q appears twice", key, l.Name)
 		}
 		if l.File == "" {
 			return fmt.Errorf("spec: %s.file is empty; give a GeoJSON or GeoPackage file in WGS 84", key)
 		}
-		sl, err := readScreenLayer(l)
-		if err != nil {
-			return fmt.Errorf("spec: %s.file = %q: %w", key, l.File, err)
-		}
-		byName[l.Name] = sl
-		s.layers = append(s.layers, sl)
-		s.named = append(s.named, NamedFile{Key: key + ".file", Path: l.File, SHA256: sl.SHA256})
+		byName[l.Name] = true
 	}
 	seen := map[string]bool{}
 	for i, c := range sc.Scenarios {
@@ -202,18 +196,14 @@ func (s *Spec) validateScreening(devices map[string]bool) error {
 			names []string
 		}{{"exclude", c.Exclude}, {"within", c.Within}} {
 			for _, n := range ref.names {
-				l := byName[n]
-				if l == nil {
+				if !byName[n] {
 					return fmt.Errorf("spec: %s.%s names layer %q, which no [[screening.layer]] defines", key, ref.what, n)
-				}
-				if !l.polygons {
-					return fmt.Errorf("spec: %s.%s: layer %q (%s) holds geometries other than polygons; %s takes polygon layers (measure distances to lines and points with distance)", key, ref.what, n, l.File, ref.what)
 				}
 			}
 		}
 		for k, d := range c.Distance {
 			dk := fmt.Sprintf("%s.distance[%d]", key, k)
-			if byName[d.Layer] == nil {
+			if !byName[d.Layer] {
 				return fmt.Errorf("spec: %s.layer = %q: no [[screening.layer]] of that name", dk, d.Layer)
 			}
 			if !(d.MinKm >= 0) || !(d.MaxKm >= 0) || math.IsInf(d.MinKm, 0) || math.IsInf(d.MaxKm, 0) || (d.MinKm == 0 && d.MaxKm == 0) || (d.MaxKm > 0 && d.MaxKm < d.MinKm) {
@@ -232,6 +222,44 @@ func (s *Spec) validateScreening(devices map[string]bool) error {
 		}
 	}
 	return nil
+}
+
+// readScreenLayers reads, checks and hashes every layer file of the checked
+// [screening] section (checkScreening), in order, with the layers' entries
+// among the spec's named files; a layer that a scenario's exclude or within
+// names must hold polygons only.
+func (s *Spec) readScreenLayers() ([]*ScreenLayer, []NamedFile, error) {
+	sc := s.Screening
+	if sc == nil {
+		return nil, nil, nil
+	}
+	var layers []*ScreenLayer
+	var named []NamedFile
+	byName := map[string]*ScreenLayer{}
+	for i, l := range sc.Layers {
+		key := fmt.Sprintf("screening.layer[%d]", i)
+		sl, err := readScreenLayer(l)
+		if err != nil {
+			return nil, nil, fileErr(key+".file", l.File, err)
+		}
+		byName[l.Name] = sl
+		layers = append(layers, sl)
+		named = append(named, NamedFile{Key: key + ".file", Path: l.File, SHA256: sl.SHA256})
+	}
+	for i, c := range sc.Scenarios {
+		key := fmt.Sprintf("screening.scenario[%d]", i)
+		for _, ref := range []struct {
+			what  string
+			names []string
+		}{{"exclude", c.Exclude}, {"within", c.Within}} {
+			for _, n := range ref.names {
+				if l := byName[n]; !l.polygons {
+					return nil, nil, fmt.Errorf("spec: %s.%s: layer %q (%s) holds geometries other than polygons; %s takes polygon layers (measure distances to lines and points with distance)", key, ref.what, n, l.File, ref.what)
+				}
+			}
+		}
+	}
+	return layers, named, nil
 }
 
 // readScreenLayer reads, checks and hashes one layer file.
@@ -461,9 +489,9 @@ func decodeGPKGGeometry(b []byte) (orb.Geometry, error) {
 	return g, nil
 }
 
-// ScreeningLayer returns the layer read by Validate under name.
-func (s *Spec) ScreeningLayer(name string) *ScreenLayer {
-	for _, l := range s.layers {
+// ScreeningLayer returns the layer read by Resolve under name.
+func (r *Resolved) ScreeningLayer(name string) *ScreenLayer {
+	for _, l := range r.Layers {
 		if l.Name == name {
 			return l
 		}
@@ -473,7 +501,7 @@ func (s *Spec) ScreeningLayer(name string) *ScreenLayer {
 
 // LoadScreeningSpec reads a spec for `swellgrid screen`: only its
 // [screening] section counts (other sections are parsed, not used).
-func LoadScreeningSpec(path string) (*Spec, error) {
+func LoadScreeningSpec(path string) (*Resolved, error) {
 	s, err := LoadSpec(path)
 	if err != nil {
 		return nil, err
@@ -481,10 +509,14 @@ func LoadScreeningSpec(path string) (*Spec, error) {
 	if s.Screening == nil {
 		return nil, fault.Input(fmt.Errorf("spec %s: no [screening] section; add [[screening.scenario]] entries (see the README's screening section)", path))
 	}
-	if err := s.validateScreening(nil); err != nil {
+	if err := s.checkScreening(nil); err != nil {
 		return nil, fault.Input(err)
 	}
-	return s, nil
+	layers, named, err := s.readScreenLayers()
+	if err != nil {
+		return nil, fault.Input(err)
+	}
+	return &Resolved{Spec: s, Named: named, Layers: layers}, nil
 }
 
 // DistanceLayers lists the layers of distance rules, in order of first use:

@@ -31,11 +31,11 @@ func (s *Spec) IngestOptions() ingest.Options {
 		}
 	}
 	switch s.Depth.Source {
-	case "deep-water":
+	case DepthDeepWater:
 		opt.DeepWater = true
-	case "constant":
+	case DepthConstant:
 		opt.DepthConstant = s.Depth.ConstantM
-	case "bathymetry":
+	case DepthBathymetry:
 		opt.BathymetryFile = s.Depth.BathymetryFile
 	}
 	opt.DirConvention, _ = ingest.ParseDirConvention(s.Input.DirectionConvention) // checked by Validate
@@ -96,7 +96,8 @@ func (s *Spec) CheckRoles() error {
 }
 
 // ClimateConfig maps the spec to the per-cell state's configuration.
-func (s *Spec) ClimateConfig(cat *ingest.Catalog) (*climate.Config, error) {
+func (r *Resolved) ClimateConfig(cat *ingest.Catalog) (*climate.Config, error) {
+	s := r.Spec
 	cal := cat.Calendar
 	c := climate.DefaultConfig()
 	c.Calendar = string(cal)
@@ -126,7 +127,7 @@ func (s *Spec) ClimateConfig(cat *ingest.Catalog) (*climate.Config, error) {
 	c.DirectionSectors = s.Statistics.DirectionSectors
 	for i, d := range s.Devices {
 		// The bytes Validate read (bounded) and fingerprinted.
-		b, ok := s.namedData(fmt.Sprintf("device[%d].power_matrix", i))
+		b, ok := r.namedData(fmt.Sprintf("device[%d].power_matrix", i))
 		if !ok {
 			return nil, fmt.Errorf("device %s: power matrix %s: not read; validate the spec first", d.Name, d.PowerMatrix)
 		}
@@ -134,7 +135,7 @@ func (s *Spec) ClimateConfig(cat *ingest.Catalog) (*climate.Config, error) {
 		if err != nil {
 			return nil, fmt.Errorf("device %s: power matrix %s: %w", d.Name, d.PowerMatrix, err)
 		}
-		if d.Lookup == "bilinear" {
+		if d.Lookup == LookupBilinear {
 			dev.Lookup = climate.Bilinear
 		}
 		if err := s.devicePeriod(dev, d, cat); err != nil {
@@ -154,7 +155,7 @@ func (s *Spec) ClimateConfig(cat *ingest.Catalog) (*climate.Config, error) {
 // is supplied per cell in engine.finish).
 func (s *Spec) AnalysisConfig() extremes.AnalysisConfig {
 	rule := extremes.ThresholdPeaksPerYear
-	if s.Extremes.ThresholdRule == "quantile" {
+	if s.Extremes.ThresholdRule == ThresholdByQuantile {
 		rule = extremes.ThresholdQuantile
 	}
 	a := extremes.AnalysisConfig{ReturnPeriods: s.Extremes.ReturnPeriodsY, MinYears: s.Extremes.MinYears,
@@ -200,10 +201,10 @@ func tpInData(cat *ingest.Catalog) bool {
 // CSV header (which must agree when both say it) and, for a matrix over Tp
 // on a record without Tp, the run's Te/Tp assumption.
 func (s *Spec) devicePeriod(dev *climate.Device, d DeviceSpec, cat *ingest.Catalog) error {
-	if d.Period != "" && dev.HeaderPeriod != "" && d.Period != dev.HeaderPeriod {
+	if d.Period != "" && dev.HeaderPeriod != "" && d.Period != MatrixPeriod(dev.HeaderPeriod) {
 		return fmt.Errorf("device %s: the spec says period = %q, the header of its power matrix %s says %q: make them agree", d.Name, d.Period, d.PowerMatrix, dev.HeaderPeriod)
 	}
-	p := d.Period
+	p := string(d.Period)
 	if p == "" {
 		p = dev.HeaderPeriod
 	}

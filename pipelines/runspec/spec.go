@@ -49,12 +49,6 @@ type Spec struct {
 	Run        RunSpec         `toml:"run" json:"run"`
 
 	dir string // directory of the spec file: relative paths are relative to it
-	// named are the files the spec names (power matrices, bathymetry) with
-	// their content, read by Validate: their SHA-256 is in the fingerprint
-	// and the power matrices are parsed from these bytes.
-	named []NamedFile
-	// layers are the screening layers read by Validate.
-	layers []*ScreenLayer
 }
 
 // NamedFile is a file a spec names, by its key, with its content's SHA-256.
@@ -83,7 +77,7 @@ type InputSpec struct {
 	// DuplicateSteps says which file's values a time held by two files of a
 	// role takes: "" (identical values used once, different values refused),
 	// "first" (the earlier file's) or "last" (the later file's).
-	DuplicateSteps string `toml:"duplicate_steps" json:"duplicate_steps,omitempty"`
+	DuplicateSteps DuplicateSteps `toml:"duplicate_steps" json:"duplicate_steps,omitempty"`
 }
 
 // DepthSpec says where the water depth comes from.
@@ -91,9 +85,9 @@ type DepthSpec struct {
 	// Source: "file" (a variable with standard_name
 	// sea_floor_depth_below_sea_surface in the hindcast), "constant",
 	// "bathymetry" (a separate file) or "deep-water".
-	Source         string  `toml:"source" json:"source"`
-	ConstantM      float64 `toml:"constant_m" json:"constant_m"`
-	BathymetryFile string  `toml:"bathymetry_file" json:"bathymetry_file"`
+	Source         DepthSource `toml:"source" json:"source"`
+	ConstantM      float64     `toml:"constant_m" json:"constant_m"`
+	BathymetryFile string      `toml:"bathymetry_file" json:"bathymetry_file"`
 }
 
 // PhysicsSpec holds the physical constants and assumptions.
@@ -117,15 +111,15 @@ type StatisticsSpec struct {
 
 // ExtremesSpec holds the extreme-value settings.
 type ExtremesSpec struct {
-	ReturnPeriodsY    []float64 `toml:"return_periods_y" json:"return_periods_y"`
-	YearStartMonth    int       `toml:"year_start_month" json:"year_start_month"`
-	SeparationH       float64   `toml:"separation_h" json:"separation_h"`
-	ThresholdRule     string    `toml:"threshold_rule" json:"threshold_rule"` // "quantile" or "peaks_per_year"
-	ThresholdQuantile float64   `toml:"threshold_quantile" json:"threshold_quantile"`
-	PeaksPerYear      float64   `toml:"peaks_per_year" json:"peaks_per_year"`
-	MinYears          int       `toml:"min_years" json:"min_years"`
-	Bootstrap         int       `toml:"bootstrap" json:"bootstrap"`
-	Seed              int64     `toml:"seed" json:"seed"`
+	ReturnPeriodsY    []float64     `toml:"return_periods_y" json:"return_periods_y"`
+	YearStartMonth    int           `toml:"year_start_month" json:"year_start_month"`
+	SeparationH       float64       `toml:"separation_h" json:"separation_h"`
+	ThresholdRule     ThresholdRule `toml:"threshold_rule" json:"threshold_rule"` // "quantile" or "peaks_per_year"
+	ThresholdQuantile float64       `toml:"threshold_quantile" json:"threshold_quantile"`
+	PeaksPerYear      float64       `toml:"peaks_per_year" json:"peaks_per_year"`
+	MinYears          int           `toml:"min_years" json:"min_years"`
+	Bootstrap         int           `toml:"bootstrap" json:"bootstrap"`
+	Seed              int64         `toml:"seed" json:"seed"`
 	// Publication policy of return levels (extremes.Publication) and the
 	// depth limit (extremes.DepthLimit).
 	MinPeaks         int       `toml:"min_peaks" json:"min_peaks"`
@@ -146,10 +140,10 @@ type DesignSpec struct {
 type DeviceSpec struct {
 	Name        string `toml:"name" json:"name"`
 	PowerMatrix string `toml:"power_matrix" json:"power_matrix"`
-	Lookup      string `toml:"lookup" json:"lookup"` // "bin" or "bilinear"
+	Lookup      Lookup `toml:"lookup" json:"lookup"` // "bin" or "bilinear"
 	// Period of the matrix's columns: "te" (default) or "tp"; the CSV's
 	// corner label may say it too ("hm0_m\tp_s"), and must then agree.
-	Period string `toml:"period" json:"period"`
+	Period MatrixPeriod `toml:"period" json:"period"`
 	// RatedKW is the data sheet's rated power, kW (0: the largest matrix entry).
 	RatedKW float64 `toml:"rated_kw" json:"rated_kw"`
 }
@@ -207,13 +201,13 @@ const DefaultModelFrac = 0.10
 func DefaultSpec() *Spec {
 	return &Spec{
 		Roles: map[string]string{}, Units: map[string]string{},
-		Depth:   DepthSpec{Source: "file"},
+		Depth:   DepthSpec{Source: DepthFromFile},
 		Physics: PhysicsSpec{Rho: 1025, G: 9.81, TeOverTp: 0.9},
 		Statistics: StatisticsSpec{Hm0BinM: 0.05, Percentiles: []float64{10, 50, 90, 99}, ScatterHm0BinM: 0.5, ScatterTeBinS: 1,
 			WindowLimitsM: []float64{1.5, 2.0, 2.5}, WindowDurationsH: []float64{6, 12, 24, 48}, CoverageMin: 0.8,
 			DirectionSectors: climate.DefaultDirectionSectors},
 		Extremes: ExtremesSpec{ReturnPeriodsY: []float64{1, 5, 10, 25, 50, 100}, YearStartMonth: 1, SeparationH: 48,
-			ThresholdRule: "quantile", ThresholdQuantile: 0.99, PeaksPerYear: 5, MinYears: 10, Seed: 1,
+			ThresholdRule: ThresholdByQuantile, ThresholdQuantile: 0.99, PeaksPerYear: 5, MinYears: 10, Seed: 1,
 			MinPeaks: 20, ShapeRange: []float64{-0.5, 0.5}, MaxExtrapolation: 4, BreakingRatio: 0.6},
 		Design:      DesignSpec{Enabled: true, ReturnPeriodsY: []float64{1, 10, 50, 100}, ContourPoints: 36},
 		Uncertainty: UncertaintySpec{HorizonsY: []float64{1, 10}, ModelFrac: DefaultModelFrac},
@@ -275,18 +269,19 @@ func (s *Spec) resolve(p string) string {
 	return filepath.Join(s.dir, p)
 }
 
-// Validate refuses values that make no sense, naming the key.
+// Validate refuses values that make no sense, naming the key. It reads no
+// file: Resolve reads the files the spec names.
 func (s *Spec) Validate() error {
 	bad := func(key, why string, v any) error {
-		return fmt.Errorf("spec: %s = %v: %s", key, v, why)
+		return &Error{Key: key, Value: fmt.Sprint(v), Why: why}
 	}
 	if len(s.Input.Paths) == 0 {
 		return fmt.Errorf("spec: no input: give input.paths in the spec or --input")
 	}
 	switch s.Input.DuplicateSteps {
-	case "", "first", "last":
+	case DuplicatesRefused, DuplicatesFirst, DuplicatesLast:
 	default:
-		return bad("input.duplicate_steps", `must be "first" (the earlier file's values) or "last" (the later file's), or absent (different values refused)`, strconv.Quote(s.Input.DuplicateSteps))
+		return bad("input.duplicate_steps", `must be "first" (the earlier file's values) or "last" (the later file's), or absent (different values refused)`, strconv.Quote(string(s.Input.DuplicateSteps)))
 	}
 	if dc, err := ingest.ParseDirConvention(s.Input.DirectionConvention); err != nil {
 		return bad("input.direction_convention", err.Error(), strconv.Quote(s.Input.DirectionConvention))
@@ -294,17 +289,17 @@ func (s *Spec) Validate() error {
 		return bad("input.direction_convention_force", "needs input.direction_convention: say which convention wins over the files' attributes", true)
 	}
 	switch s.Depth.Source {
-	case "file", "deep-water":
-	case "constant":
+	case DepthFromFile, DepthDeepWater:
+	case DepthConstant:
 		if !(s.Depth.ConstantM > 0) || math.IsInf(s.Depth.ConstantM, 0) {
 			return bad("depth.constant_m", "must be a positive depth in metres", s.Depth.ConstantM)
 		}
-	case "bathymetry":
+	case DepthBathymetry:
 		if s.Depth.BathymetryFile == "" {
 			return bad("depth.bathymetry_file", "must name a NetCDF file when depth.source = \"bathymetry\"", `""`)
 		}
 	default:
-		return bad("depth.source", `must be "file", "constant", "bathymetry" or "deep-water"`, strconv.Quote(s.Depth.Source))
+		return bad("depth.source", `must be "file", "constant", "bathymetry" or "deep-water"`, strconv.Quote(string(s.Depth.Source)))
 	}
 	if !(s.Physics.Rho > 900 && s.Physics.Rho < 1100) {
 		return bad("physics.rho", "must be a water density in kg/m3 (900..1100)", s.Physics.Rho)
@@ -363,16 +358,16 @@ func (s *Spec) Validate() error {
 		return bad("extremes.separation_h", "must be a positive number of hours below 60 days", ex.SeparationH)
 	}
 	switch ex.ThresholdRule {
-	case "quantile":
+	case ThresholdByQuantile:
 		if !(ex.ThresholdQuantile > 0.5 && ex.ThresholdQuantile < 1) {
 			return bad("extremes.threshold_quantile", "must lie in (0.5, 1)", ex.ThresholdQuantile)
 		}
-	case "peaks_per_year":
+	case ThresholdByPeaksPerYear:
 		if !(ex.PeaksPerYear > 0 && ex.PeaksPerYear <= 50) {
 			return bad("extremes.peaks_per_year", "must lie in (0, 50]", ex.PeaksPerYear)
 		}
 	default:
-		return bad("extremes.threshold_rule", `must be "quantile" or "peaks_per_year"`, strconv.Quote(ex.ThresholdRule))
+		return bad("extremes.threshold_rule", `must be "quantile" or "peaks_per_year"`, strconv.Quote(string(ex.ThresholdRule)))
 	}
 	if ex.MinYears < 2 {
 		return bad("extremes.min_years", "must be at least 2", ex.MinYears)
@@ -425,11 +420,11 @@ func (s *Spec) Validate() error {
 			return bad(key+".name", "appears twice", d.Name)
 		}
 		names[d.Name] = true
-		if d.Lookup != "" && d.Lookup != "bin" && d.Lookup != "bilinear" {
-			return bad(key+".lookup", `must be "bin" or "bilinear"`, strconv.Quote(d.Lookup))
+		if d.Lookup != "" && d.Lookup != LookupBin && d.Lookup != LookupBilinear {
+			return bad(key+".lookup", `must be "bin" or "bilinear"`, strconv.Quote(string(d.Lookup)))
 		}
-		if d.Period != "" && d.Period != "te" && d.Period != "tp" {
-			return bad(key+".period", `must be "te" (energy period) or "tp" (peak period)`, strconv.Quote(d.Period))
+		if d.Period != "" && d.Period != PeriodTe && d.Period != PeriodTp {
+			return bad(key+".period", `must be "te" (energy period) or "tp" (peak period)`, strconv.Quote(string(d.Period)))
 		}
 		if !(d.RatedKW >= 0 && d.RatedKW < 1<<30) {
 			return bad(key+".rated_kw", "must be a power in kW >= 0 (0: the largest matrix entry)", d.RatedKW)
@@ -464,10 +459,7 @@ func (s *Spec) Validate() error {
 	if s.Run.BlockSteps < 0 {
 		return bad("run.block_steps", "must be positive", s.Run.BlockSteps)
 	}
-	if err := s.readNamedFiles(); err != nil {
-		return err
-	}
-	return s.validateScreening(names)
+	return s.checkScreening(names)
 }
 
 // Limits of the spec: lists longer than these are refused (each entry adds
@@ -492,35 +484,34 @@ func withinLimit(key string, n int) error {
 // readNamedFiles reads every file the spec names (power matrices within
 // their size and row limits, the bathymetry file) and records its SHA-256,
 // so that the fingerprint changes with their content.
-func (s *Spec) readNamedFiles() error {
+func (s *Spec) readNamedFiles() ([]NamedFile, error) {
 	var named []NamedFile
 	for i, d := range s.Devices {
 		key := fmt.Sprintf("device[%d].power_matrix", i)
 		b, err := readBounded(d.PowerMatrix, maxMatrixBytes)
 		if err != nil {
-			return fmt.Errorf("spec: %s = %q: %w", key, d.PowerMatrix, err)
+			return nil, fileErr(key, d.PowerMatrix, err)
 		}
 		if n := bytes.Count(b, []byte("\n")); n > maxMatrixRows {
-			return fmt.Errorf("spec: %s = %q: %d rows; a power matrix may have at most %d rows", key, d.PowerMatrix, n, maxMatrixRows)
+			return nil, &Error{Key: key, Value: strconv.Quote(d.PowerMatrix), Why: fmt.Sprintf("%d rows; a power matrix may have at most %d rows", n, maxMatrixRows)}
 		}
 		for _, line := range bytes.Split(b, []byte("\n")) {
 			if n := bytes.Count(line, []byte(",")) + 1; n > maxMatrixRows {
-				return fmt.Errorf("spec: %s = %q: a row of %d cells; a power matrix may have at most %d per row", key, d.PowerMatrix, n, maxMatrixRows)
+				return nil, &Error{Key: key, Value: strconv.Quote(d.PowerMatrix), Why: fmt.Sprintf("a row of %d cells; a power matrix may have at most %d per row", n, maxMatrixRows)}
 			}
 		}
 		h := sha256.Sum256(b)
 		named = append(named, NamedFile{Key: key, Path: d.PowerMatrix, SHA256: hex.EncodeToString(h[:]), data: b})
 	}
-	if s.Depth.Source == "bathymetry" {
+	if s.Depth.Source == DepthBathymetry {
 		key := "depth.bathymetry_file"
 		sum, err := hashBounded(s.Depth.BathymetryFile, maxNamedFileBytes)
 		if err != nil {
-			return fmt.Errorf("spec: %s = %q: %w", key, s.Depth.BathymetryFile, err)
+			return nil, fileErr(key, s.Depth.BathymetryFile, err)
 		}
 		named = append(named, NamedFile{Key: key, Path: s.Depth.BathymetryFile, SHA256: sum})
 	}
-	s.named = named
-	return nil
+	return named, nil
 }
 
 // openRegular opens path if it is a regular file of at most limit bytes
@@ -571,9 +562,9 @@ func hashBounded(path string, limit int64) (string, error) {
 	return hex.EncodeToString(h.Sum(nil)), nil
 }
 
-// NamedFile returns the content read by Validate of the file under key.
-func (s *Spec) namedData(key string) ([]byte, bool) {
-	for _, n := range s.named {
+// namedData is the content read by Resolve of the file under key.
+func (r *Resolved) namedData(key string) ([]byte, bool) {
+	for _, n := range r.Named {
 		if n.Key == key {
 			return n.data, n.data != nil
 		}
@@ -587,10 +578,10 @@ func increasing(key string, v []float64, lo, hi float64) error {
 	}
 	for i, x := range v {
 		if math.IsNaN(x) || x <= lo && lo != math.Inf(-1) || x > hi {
-			return fmt.Errorf("spec: %s = %v: value %v is out of range (%v, %v]", key, v, x, lo, hi)
+			return &Error{Key: key, Value: fmt.Sprint(v), Why: fmt.Sprintf("value %v is out of range (%v, %v]", x, lo, hi)}
 		}
 		if i > 0 && x <= v[i-1] {
-			return fmt.Errorf("spec: %s = %v: values must be strictly increasing", key, v)
+			return &Error{Key: key, Value: fmt.Sprint(v), Why: "values must be strictly increasing"}
 		}
 	}
 	return nil
@@ -622,11 +613,11 @@ func ParseSize(s string) (int64, error) {
 
 // Fingerprint is a hash of everything in the spec that changes results (not
 // the run settings nor the output directory), including the content of the
-// files it names (power matrices, bathymetry: by SHA-256, read by Validate,
+// files it names (power matrices, bathymetry, layers: by SHA-256, read by Resolve,
 // whatever their path is spelled like): a checkpoint or an update is refused
 // when it differs.
-func (s *Spec) Fingerprint() string {
-	b, _ := json.Marshal(s.Fingerprinted())
+func (r *Resolved) Fingerprint() string {
+	b, _ := json.Marshal(r.Fingerprinted())
 	// Maps marshal with sorted keys, so the bytes are stable.
 	h := sha256.Sum256(b)
 	return hex.EncodeToString(h[:])
@@ -640,7 +631,8 @@ type FingerprintedSpec struct {
 }
 
 // Fingerprinted is the spec part and named-file checksums that Fingerprint hashes.
-func (s *Spec) Fingerprinted() FingerprintedSpec {
+func (r *Resolved) Fingerprinted() FingerprintedSpec {
+	s := r.Spec
 	c := *s
 	c.Output = OutputSpec{}
 	c.Input.Paths = nil // inputs are compared file by file (size, checksum)
@@ -649,7 +641,7 @@ func (s *Spec) Fingerprinted() FingerprintedSpec {
 	c.Validation = nil // validation reads the run, it changes none of its results
 	c.Devices = append([]DeviceSpec(nil), s.Devices...)
 	files := map[string]string{}
-	for _, n := range s.named {
+	for _, n := range r.Named {
 		files[n.Key] = n.SHA256
 	}
 	for i := range c.Devices {
@@ -675,8 +667,8 @@ func (s *Spec) Fingerprinted() FingerprintedSpec {
 
 // FingerprintJSON is what Fingerprint hashes, for a checkpoint's header, so
 // that a refusal can name what changed.
-func (s *Spec) FingerprintJSON() json.RawMessage {
-	b, _ := json.Marshal(s.Fingerprinted())
+func (r *Resolved) FingerprintJSON() json.RawMessage {
+	b, _ := json.Marshal(r.Fingerprinted())
 	return b
 }
 
@@ -711,10 +703,3 @@ func checkSites(sites []SiteSpec) error {
 	}
 	return CheckFileNames("site", names, func(i int) string { return fmt.Sprintf("spec: site[%d].name", i) }, atlasreport.SiteNameOverhead)
 }
-
-// Layers are the screening layers Validate read.
-func (s *Spec) Layers() []*ScreenLayer { return s.layers }
-
-// NamedFiles are the files the spec names (power matrices, bathymetry) with
-// their checksums, as Validate read them.
-func (s *Spec) NamedFiles() []NamedFile { return s.named }

@@ -17,14 +17,14 @@ type ValidationSpec struct {
 	MaxDistanceKm float64 `toml:"max_distance_km" json:"max_distance_km"`
 	// Location: "nearest" (the nearest sea cell) or "bilinear" (the four
 	// cells around the station, regular grids).
-	Location string `toml:"location" json:"location"`
+	Location StationPlace `toml:"location" json:"location"`
 	// MaxTimeDiffMin: a measured time is matched to the nearest hindcast
 	// step at most this many minutes away.
 	MaxTimeDiffMin float64 `toml:"max_time_diff_min" json:"max_time_diff_min"`
 	// Time: "nearest" (the nearest step within MaxTimeDiffMin) or
 	// "interpolate" (linear in time between the two steps around the
 	// measured time, which must be consecutive steps of the record).
-	Time string `toml:"time" json:"time"`
+	Time TimeMatch `toml:"time" json:"time"`
 	// StormPercentile: the storm tail is the measured Hm0 above this
 	// percentile of the station's matched measured Hm0.
 	StormPercentile float64 `toml:"storm_percentile" json:"storm_percentile"`
@@ -36,7 +36,7 @@ type ValidationSpec struct {
 
 // DefaultValidation is the [validation] section of the common case.
 func DefaultValidation() ValidationSpec {
-	return ValidationSpec{MaxDistanceKm: 25, Location: "nearest", MaxTimeDiffMin: 30, Time: "nearest", StormPercentile: 95, PlotDays: 30}
+	return ValidationSpec{MaxDistanceKm: 25, Location: PlaceNearest, MaxTimeDiffMin: 30, Time: TimeNearest, StormPercentile: 95, PlotDays: 30}
 }
 
 // WithDefaults fills the keys a spec leaves out.
@@ -79,12 +79,12 @@ func (v *ValidationSpec) Check() error {
 	switch {
 	case !(o.MaxDistanceKm > 0 && o.MaxDistanceKm <= 500):
 		return bad("max_distance_km", "must be a distance in km, 0 < d <= 500", o.MaxDistanceKm)
-	case o.Location != "nearest" && o.Location != "bilinear":
-		return bad("location", `must be "nearest" or "bilinear"`, strconv.Quote(o.Location))
+	case o.Location != PlaceNearest && o.Location != PlaceBilinear:
+		return bad("location", `must be "nearest" or "bilinear"`, strconv.Quote(string(o.Location)))
 	case !(o.MaxTimeDiffMin > 0 && o.MaxTimeDiffMin <= 1440):
 		return bad("max_time_diff_min", "must be minutes, 0 < m <= 1440", o.MaxTimeDiffMin)
-	case o.Time != "nearest" && o.Time != "interpolate":
-		return bad("time", `must be "nearest" or "interpolate"`, strconv.Quote(o.Time))
+	case o.Time != TimeNearest && o.Time != TimeInterpolate:
+		return bad("time", `must be "nearest" or "interpolate"`, strconv.Quote(string(o.Time)))
 	case !(o.StormPercentile >= 50 && o.StormPercentile < 100):
 		return bad("storm_percentile", "must be a percentile, 50 <= p < 100", o.StormPercentile)
 	case !(o.PlotDays > 0 && o.PlotDays <= 3660):

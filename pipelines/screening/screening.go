@@ -141,7 +141,7 @@ func runGrid(r *rundir.Run) *grid.Grid {
 
 // screenRun screens the run r with the spec's [screening] section (its
 // layers read by validateScreening).
-func screenRun(r *rundir.Run, s *runspec.Spec) (*screenResult, error) {
+func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 	sc := s.Screening
 	g := runGrid(r)
 	n := g.NCells()
@@ -155,7 +155,7 @@ func screenRun(r *rundir.Run, s *runspec.Spec) (*screenResult, error) {
 	}
 	res := &screenResult{polys: map[string]orb.MultiPolygon{}}
 	sum := &Summary{Caution: tables.Caution, Note: Note, Method: screeningMethod}
-	for _, l := range s.Layers() {
+	for _, l := range s.Layers {
 		sum.Layers = append(sum.Layers, Layer{Name: l.Name, Path: l.File, Table: l.Table, SHA256: l.SHA256, Features: len(l.Geoms)})
 	}
 	// distances, once per layer used in a distance rule
@@ -583,7 +583,7 @@ func Schema() []tables.ColumnSpec { return tables.SpecsOf("screening.parquet", s
 // screening.parquet, screening.json and the passing areas' outlines into
 // r.Dir. It returns the files written (relative to r.Dir) and the summary
 // for the manifest.
-func Apply(r *rundir.Run, s *runspec.Spec) ([]string, *Summary, error) {
+func Apply(r *rundir.Run, s *runspec.Resolved) ([]string, *Summary, error) {
 	res, err := screenRun(r, s)
 	if err != nil {
 		return nil, nil, err

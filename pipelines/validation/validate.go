@@ -256,7 +256,7 @@ func (v *validator) place(st *ingest.Station) (*stationPlace, error) {
 		return nil, fmt.Errorf("validate: %s: station %q at (%.4f, %.4f) is %.1f km from the nearest sea cell of the grid, more than validation.max_distance_km = %g; leave the station out, or raise the limit if the cell still represents it", st.Source, st.Name, st.Lon, st.Lat, bd, v.vs.MaxDistanceKm)
 	}
 	p := &stationPlace{st: st, nearest: best, distKm: bd, cells: []int{best}, weights: []float64{1}, method: "nearest"}
-	if v.vs.Location == "bilinear" {
+	if v.vs.Location == runspec.PlaceBilinear {
 		cells, w, why := bilinearCells(g.Kind.String(), g.NX, g.NY, g.Lon, g.Lat, v.cat.Masked, st.Lon, st.Lat)
 		if why != "" {
 			p.warning = fmt.Sprintf("station %q: %s; the nearest sea cell %d (%.1f km) is used", st.Name, why, best, bd)
@@ -472,9 +472,9 @@ func (v *validator) compare(p *stationPlace) (*stationResult, error) {
 		i := sort.Search(len(times), func(j int) bool { return times[j] >= t })
 		m := matched{obs: k}
 		switch {
-		case v.vs.Time == "interpolate" && i < len(times) && times[i] == t:
+		case v.vs.Time == runspec.TimeInterpolate && i < len(times) && times[i] == t:
 			m.s0, m.s1 = i, i
-		case v.vs.Time == "interpolate":
+		case v.vs.Time == runspec.TimeInterpolate:
 			if i == 0 || i == len(times) || v.cat.GapAfter(i-1) {
 				r.unpaired++ // at the record's ends or across a gap
 				continue
