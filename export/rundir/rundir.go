@@ -342,7 +342,7 @@ func pick[T any](v []T, rows []int) []T {
 }
 
 // Manifest is contract.Manifest, kept under this name for the callers not
-// yet moved to the contract (pipelines/dateline_test.go).
+// yet moved to the contract (pipelines/engine/dateline_test.go).
 //
 // Deprecated: use contract.Manifest.
 type Manifest = contract.Manifest
@@ -356,7 +356,7 @@ type Run struct {
 	NX, NY   int
 	GridKind grid.Kind // the manifest's grid kind
 	// Kind is GridKind's name (grid.Kind.String), kept for the callers not
-	// yet moved to GridKind (pipelines/screen.go's runGrid).
+	// yet moved to GridKind (runGrid in pipelines/screening/screening.go).
 	//
 	// Deprecated: compare GridKind with grid.Kind values instead.
 	Kind   string
