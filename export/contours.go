@@ -14,11 +14,12 @@ import (
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/geojson"
 
+	"swellgrid/export/contract"
 	"swellgrid/grid"
 )
 
 // ContourDir is the sub-directory of a run directory holding contour layers.
-const ContourDir = "contours"
+const ContourDir = contract.ContourDir
 
 var layerName = regexp.MustCompile(`^[a-z][a-z0-9_]*$`)
 
@@ -70,7 +71,7 @@ func WriteContours(runDir, column, units string, levels []float64, lines []orb.M
 		if err != nil {
 			return fmt.Errorf("export: contours of %s: %w", column, err)
 		}
-		layers = append(layers, layer{filepath.Join(dir, column+".geojson"), data})
+		layers = append(layers, layer{filepath.Join(dir, contract.ContourLinesFile(column)), data})
 	}
 	if len(edges) > 0 || len(bands) > 0 {
 		if len(edges) < 2 || len(bands) != len(edges)-1 {
@@ -87,7 +88,7 @@ func WriteContours(runDir, column, units string, levels []float64, lines []orb.M
 		if err != nil {
 			return fmt.Errorf("export: bands of %s: %w", column, err)
 		}
-		layers = append(layers, layer{filepath.Join(dir, column+".bands.geojson"), data})
+		layers = append(layers, layer{filepath.Join(dir, contract.ContourBandsFile(column)), data})
 	}
 	if len(layers) == 0 {
 		return nil

@@ -16,6 +16,7 @@ import (
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/encoding/wkb"
 
+	"swellgrid/export/contract"
 	"swellgrid/grid"
 )
 
@@ -154,14 +155,14 @@ func geoLayout(path string, t *Table, lon, lat []float64) ([]Column, string, err
 	for k, c := range t.Columns {
 		have[c.Name] = k
 	}
-	if _, ok := have["geometry"]; ok {
+	if _, ok := have[contract.ColGeometry]; ok {
 		return nil, "", fmt.Errorf("export: %s: column name \"geometry\" is reserved for the GeoParquet point column", path)
 	}
-	_, hasLon := have["lon"]
-	_, hasLat := have["lat"]
+	_, hasLon := have[contract.ColLon]
+	_, hasLat := have[contract.ColLat]
 	switch {
 	case hasLon && hasLat:
-		for name, want := range map[string][]float64{"lon": lon, "lat": lat} {
+		for name, want := range map[string][]float64{contract.ColLon: lon, contract.ColLat: lat} {
 			c := t.Columns[have[name]]
 			if c.Float64 == nil {
 				return nil, "", fmt.Errorf("export: %s: column %q must be Float64", path, name)
@@ -176,22 +177,22 @@ func geoLayout(path string, t *Table, lon, lat []float64) ([]Column, string, err
 	case hasLon || hasLat:
 		return nil, "", fmt.Errorf("export: %s: the table has only one of lon/lat; give both or neither", path)
 	default:
-		lonC := Float64Column("lon", "degree_east", "longitude of the cell centre (WGS 84, [-180, 180))", lon)
-		latC := Float64Column("lat", "degree_north", "latitude of the cell centre (WGS 84)", lat)
-		if t.Columns[0].Name == "cell_id" {
+		lonC := Float64Column(contract.ColLon, "degree_east", "longitude of the cell centre (WGS 84, [-180, 180))", lon)
+		latC := Float64Column(contract.ColLat, "degree_north", "latitude of the cell centre (WGS 84)", lat)
+		if t.Columns[0].Name == contract.ColCellID {
 			cols = append(cols, t.Columns[0], lonC, latC)
 			cols = append(cols, t.Columns[1:]...)
 		} else {
 			cols = append(append(cols, lonC, latC), t.Columns...)
 		}
 	}
-	geo := geoMeta{Version: "1.1.0", PrimaryColumn: "geometry", Columns: map[string]geoColumn{
-		"geometry": {Encoding: "WKB", GeometryTypes: []string{"Point"}},
+	geo := geoMeta{Version: "1.1.0", PrimaryColumn: contract.ColGeometry, Columns: map[string]geoColumn{
+		contract.ColGeometry: {Encoding: "WKB", GeometryTypes: []string{"Point"}},
 	}}
 	if len(lon) > 0 {
-		g := geo.Columns["geometry"]
+		g := geo.Columns[contract.ColGeometry]
 		g.BBox = bbox[:]
-		geo.Columns["geometry"] = g
+		geo.Columns[contract.ColGeometry] = g
 	}
 	meta, err := json.Marshal(geo)
 	if err != nil {
@@ -282,8 +283,8 @@ func newStream(path string, cols []Column, t *Table, points *pointColumn, geo st
 		fields = append(fields, arrow.Field{Name: c.Name, Type: arrowType(c), Nullable: true, Metadata: fieldMeta(c)})
 	}
 	if points != nil {
-		docs = append(docs, colDoc{Name: "geometry", Doc: "cell centre as a WKB point (lon, lat; OGC:CRS84)"})
-		fields = append(fields, arrow.Field{Name: "geometry", Type: arrow.BinaryTypes.Binary, Nullable: false})
+		docs = append(docs, colDoc{Name: contract.ColGeometry, Doc: "cell centre as a WKB point (lon, lat; OGC:CRS84)"})
+		fields = append(fields, arrow.Field{Name: contract.ColGeometry, Type: arrow.BinaryTypes.Binary, Nullable: false})
 	}
 	docJSON, err := json.Marshal(docs)
 	if err != nil {
@@ -324,7 +325,7 @@ func newStream(path string, cols []Column, t *Table, points *pointColumn, geo st
 		parquet.WithMaxRowGroupLength(int64(group)),
 		parquet.WithCreatedBy(createdBy),
 		parquet.WithDictionaryDefault(false),
-		parquet.WithStatsFor("geometry", false),
+		parquet.WithStatsFor(contract.ColGeometry, false),
 	}
 	for k := range cols {
 		if cols[k].String != nil {
@@ -380,9 +381,9 @@ func (s *TableStream) Append(t *Table) error {
 		k := 0
 		for _, c := range s.cols {
 			switch c.Name {
-			case "lon", "lat":
+			case contract.ColLon, contract.ColLat:
 				v := s.points.lon
-				if c.Name == "lat" {
+				if c.Name == contract.ColLat {
 					v = s.points.lat
 				}
 				if s.rows+n > len(v) {
@@ -407,9 +408,9 @@ func (s *TableStream) Append(t *Table) error {
 		for _, c := range cols {
 			want := s.points.lon
 			switch c.Name {
-			case "lat":
+			case contract.ColLat:
 				want = s.points.lat
-			case "lon":
+			case contract.ColLon:
 			default:
 				continue
 			}

@@ -9,6 +9,7 @@ import (
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/geojson"
 
+	"swellgrid/export/contract"
 	"swellgrid/grid"
 )
 
@@ -23,7 +24,7 @@ func WriteScreeningOutline(runDir, scenario string, mp orb.MultiPolygon, props m
 		return fmt.Errorf("export: screening scenario name %q must be lower-case letters, digits and _ (it names the file)", scenario)
 	}
 	mp = grid.CutPolygons(mp)
-	fc := newCollection("screening_" + scenario)
+	fc := newCollection(contract.ScreeningOutlinePrefix + scenario)
 	ft := geojson.NewFeature(mp)
 	ft.Properties = geojson.Properties(props)
 	fc.Append(ft)
@@ -35,7 +36,7 @@ func WriteScreeningOutline(runDir, scenario string, mp orb.MultiPolygon, props m
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("export: creating %s: %w", dir, err)
 	}
-	return WriteFileAtomic(filepath.Join(dir, "screening_"+scenario+".geojson"), func(w io.Writer) error {
+	return WriteFileAtomic(filepath.Join(dir, contract.ScreeningOutlineFile(scenario)), func(w io.Writer) error {
 		_, err := w.Write(data)
 		return err
 	})

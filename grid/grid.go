@@ -35,6 +35,40 @@ func (k Kind) String() string {
 	return "unknown"
 }
 
+// kinds lists every Kind, for ParseKind.
+var kinds = [...]Kind{Regular, Curvilinear, Points, MeshKind}
+
+// ParseKind returns the Kind whose String is s ("regular", "curvilinear",
+// "points" or "mesh": the grid kinds of a manifest).
+func ParseKind(s string) (Kind, error) {
+	for _, k := range kinds {
+		if k.String() == s {
+			return k, nil
+		}
+	}
+	return 0, fmt.Errorf("grid: unknown grid kind %q (want regular, curvilinear, points or mesh)", s)
+}
+
+// MarshalText gives the kind's name (String), so that JSON holds the kind as
+// the string a manifest has always held; an unknown kind is an error, never
+// written.
+func (k Kind) MarshalText() ([]byte, error) {
+	if _, err := ParseKind(k.String()); err != nil {
+		return nil, fmt.Errorf("grid: cannot write grid kind %d: not a kind", int(k))
+	}
+	return []byte(k.String()), nil
+}
+
+// UnmarshalText reads a kind's name (ParseKind).
+func (k *Kind) UnmarshalText(b []byte) error {
+	v, err := ParseKind(string(b))
+	if err != nil {
+		return err
+	}
+	*k = v
+	return nil
+}
+
 // Grid is the geometry of a hindcast's cells in swellgrid's canonical order,
 // which gives every cell a stable id (its index): for a regular grid, rows of
 // ascending latitude, each of ascending longitude in the region's continuous

@@ -13,6 +13,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"swellgrid/export/contract"
 	"swellgrid/pipelines/demo"
 	"swellgrid/pipelines/engine"
 )
@@ -70,7 +71,7 @@ and prints what it wrote and which files to open in GIS software.
 			}
 			g := res.Runs[0].Result.OutDir
 			fmt.Fprintf(w, "open in GIS: %s (points, GeoParquet), %s and %s (contours, GeoJSON)\n",
-				filepath.Join(g, "cells.parquet"), filepath.Join(g, "contours", "power_mean_kw_m.bands.geojson"), filepath.Join(g, "contours", "power_mean_kw_m.geojson"))
+				filepath.Join(g, contract.CellsFile), filepath.Join(g, contract.ContourDir, contract.ContourBandsFile(contract.ColPowerMean)), filepath.Join(g, contract.ContourDir, contract.ContourLinesFile(contract.ColPowerMean)))
 			fmt.Fprintf(w, "done in %s\n\n%s\n", res.Wall.Round(time.Millisecond), caution)
 			return nil
 		},

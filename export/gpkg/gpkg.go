@@ -32,12 +32,13 @@ import (
 	"github.com/paulmach/orb/geojson"
 	_ "modernc.org/sqlite"
 
+	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
 )
 
 // FileName is the GeoPackage's name in the run directory.
-const FileName = "atlas.gpkg"
+const FileName = contract.AtlasGPKGFile
 
 // applicationID is "GPKG" as a big-endian 32-bit integer and userVersion
 // 10300 marks version 1.3 (OGC 12-128r18, Requirement 2).
@@ -156,7 +157,7 @@ func Layers(r *rundir.Run) ([]*Layer, error) {
 	}
 	cells.Columns = r.Cells.Columns
 	out := []*Layer{cells}
-	files, _ := filepath.Glob(filepath.Join(r.Dir, "contours", "*.geojson"))
+	files, _ := filepath.Glob(filepath.Join(r.Dir, contract.ContourDir, "*.geojson"))
 	sort.Strings(files)
 	for _, f := range files {
 		b, err := os.ReadFile(f)
@@ -170,7 +171,7 @@ func Layers(r *rundir.Run) ([]*Layer, error) {
 		base := strings.TrimSuffix(filepath.Base(f), ".geojson")
 		l := &Layer{}
 		var props []string
-		if sc, ok := strings.CutPrefix(base, "screening_"); ok {
+		if sc, ok := strings.CutPrefix(base, contract.ScreeningOutlinePrefix); ok {
 			l.Name, l.GeomType, props = base, "MULTIPOLYGON", []string{"cells", "area_km2"}
 			l.Description = "passing area of screening scenario " + sc + " (cells taken whole; see screening.json)"
 		} else if col, ok := strings.CutSuffix(base, ".bands"); ok {

@@ -24,12 +24,14 @@ import (
 
 	"github.com/fhs/go-netcdf/netcdf"
 
+	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
+	"swellgrid/grid"
 	"swellgrid/ingest"
 )
 
 // FileName is the raster's name in the run directory.
-const FileName = "atlas.nc"
+const FileName = contract.AtlasNCFile
 
 // IntFill is the _FillValue of the integer variables (counts; never negative).
 const IntFill int64 = -1
@@ -60,11 +62,11 @@ func CFUnits(u string) string {
 // dir renamed when complete. Point sets have no raster and are refused.
 func Write(r *rundir.Run) error {
 	if !r.Structured() && r.Mesh == nil {
-		return fmt.Errorf("raster: %s: the grid is a point set (%s); there is no raster to write, use cells.parquet or atlas.gpkg", r.Dir, r.Kind)
+		return fmt.Errorf("raster: %s: the grid is a point set (%s); there is no raster to write, use cells.parquet or atlas.gpkg", r.Dir, r.GridKind)
 	}
 	// the columns Climatology reads, not the whole table (a large grid's
 	// monthly.parquet has a row per cell and month)
-	monthly, err := r.Columns("monthly", "period", "cell_id", "month", "power_mean_kw_m", "hm0_mean_m")
+	monthly, err := r.Columns(contract.TableMonthly, "period", contract.ColCellID, "month", contract.ColPowerMean, contract.ColHm0Mean)
 	if err != nil {
 		return err
 	}
@@ -130,7 +132,7 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 	}()
 	nx, ny := r.NX, r.NY
 	var yd, xd netcdf.Dim
-	regular := r.Kind == "regular"
+	regular := r.GridKind == grid.Regular
 	yn, xn := "y", "x"
 	if regular {
 		yn, xn = "lat", "lon"
@@ -248,7 +250,7 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 		return addFloatVar(ds, name, dims, vals, func(v netcdf.Var) error { return attrs(v, c, long) })
 	}
 	for _, c := range r.Cells.Columns {
-		if !c.Numeric() || c.Name == "lon" || c.Name == "lat" {
+		if !c.Numeric() || c.Name == contract.ColLon || c.Name == contract.ColLat {
 			continue
 		}
 		long := c.LongName
@@ -294,8 +296,8 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 		return err
 	}
 	for _, cv := range []struct{ name, col, std, long string }{
-		{"power_monthly_mean_kw_m", "power_mean_kw_m", "", "mean wave power J of each calendar month over the included years"},
-		{"hm0_monthly_mean_m", "hm0_mean_m", "sea_surface_wave_significant_height", "mean significant wave height Hm0 of each calendar month over the included years"},
+		{"power_monthly_mean_kw_m", contract.ColPowerMean, "", "mean wave power J of each calendar month over the included years"},
+		{"hm0_monthly_mean_m", contract.ColHm0Mean, "sea_surface_wave_significant_height", "mean significant wave height Hm0 of each calendar month over the included years"},
 	} {
 		c := &rundir.Column{Unit: monthly.Col(cv.col).Unit, StandardName: cv.std, CellMethods: "time: mean"}
 		if err := floatVar(cv.name, []netcdf.Dim{md, yd, xd}, c, cv.long, clim[cv.col]); err != nil {
@@ -346,11 +348,11 @@ func column(v []float64, nx, ny int, isLon bool) []float64 {
 // has no row.
 func Climatology(monthly *rundir.Table, cells int) (map[string][]float64, error) {
 	out := map[string][]float64{}
-	period, id, month := monthly.Col("period"), monthly.Col("cell_id"), monthly.Col("month")
+	period, id, month := monthly.Col("period"), monthly.Col(contract.ColCellID), monthly.Col("month")
 	if period == nil || id == nil || month == nil {
 		return nil, fmt.Errorf("%s: no period, cell_id or month column", monthly.Path)
 	}
-	for _, name := range []string{"power_mean_kw_m", "hm0_mean_m"} {
+	for _, name := range []string{contract.ColPowerMean, contract.ColHm0Mean} {
 		src := monthly.Col(name)
 		if src == nil {
 			return nil, fmt.Errorf("%s: no column %s", monthly.Path, name)

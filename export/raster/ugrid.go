@@ -10,6 +10,7 @@ import (
 
 	"github.com/fhs/go-netcdf/netcdf"
 
+	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 )
 
@@ -158,7 +159,7 @@ func writeMesh(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 		return addFloatVar(ds, name, dims, vals, func(v netcdf.Var) error { return attrs(v, c, long) })
 	}
 	for _, c := range r.Cells.Columns {
-		if !c.Numeric() || c.Name == "lon" || c.Name == "lat" {
+		if !c.Numeric() || c.Name == contract.ColLon || c.Name == contract.ColLat {
 			continue
 		}
 		long := c.LongName
@@ -202,8 +203,8 @@ func writeMesh(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 		return err
 	}
 	for _, cvar := range []struct{ name, col, std, long string }{
-		{"power_monthly_mean_kw_m", "power_mean_kw_m", "", "mean wave power J of each calendar month over the included years"},
-		{"hm0_monthly_mean_m", "hm0_mean_m", "sea_surface_wave_significant_height", "mean significant wave height Hm0 of each calendar month over the included years"},
+		{"power_monthly_mean_kw_m", contract.ColPowerMean, "", "mean wave power J of each calendar month over the included years"},
+		{"hm0_monthly_mean_m", contract.ColHm0Mean, "sea_surface_wave_significant_height", "mean significant wave height Hm0 of each calendar month over the included years"},
 	} {
 		a := clim[cvar.col]
 		vals := make([]float64, 0, 12*len(m.Cell))

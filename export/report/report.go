@@ -25,26 +25,27 @@ import (
 	"strconv"
 	"strings"
 
+	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
 )
 
 // Dir is the report's directory in the run directory.
-const Dir = "report"
+const Dir = contract.ReportDir
 
 // mapColumns are the columns mapped, with their titles, when the run has
 // them with at least one value: mean power, Hm0 p90, the 100-year Hm0, MVI,
 // then each device's AEP and capacity factor.
 func mapColumns(r *rundir.Run) [][2]string {
 	out := [][2]string{
-		{"power_mean_kw_m", "Mean wave power"},
-		{"hm0_p90_m", "90th percentile of Hm0"},
-		{"hm0_rl100y_m", "100-year return level of Hm0 (GEV, screening estimate)"},
-		{"mvi", "Monthly variability index (MVI)"},
+		{contract.ColPowerMean, "Mean wave power"},
+		{contract.Hm0PercentileColumn(90), "90th percentile of Hm0"},
+		{contract.Hm0ReturnLevelColumn(100), "100-year return level of Hm0 (GEV, screening estimate)"},
+		{contract.ColMVI, "Monthly variability index (MVI)"},
 	}
 	for _, d := range r.Manifest.Parameters.Devices {
-		out = append(out, [2]string{"aep_" + d.Name + "_mwh", "Mean annual energy of device " + d.Name},
-			[2]string{"cf_" + d.Name, "Capacity factor of device " + d.Name})
+		out = append(out, [2]string{contract.AEPColumn(d.Name), "Mean annual energy of device " + d.Name},
+			[2]string{contract.CapacityFactorColumn(d.Name), "Capacity factor of device " + d.Name})
 	}
 	return out
 }
@@ -78,9 +79,9 @@ type siteView struct {
 type indexView struct {
 	Title, Caution, Software, Version, Synthetic string
 	Summary                                      [][2]string
-	Inputs                                       []rundir.Input
+	Inputs                                       []contract.Input
 	InputsMore                                   int
-	Gaps                                         []rundir.Gap
+	Gaps                                         []contract.Gap
 	GapsMore                                     int
 	Assumptions, Warnings, Notes, Outputs        []string
 	Maps                                         []pageFigure
@@ -162,7 +163,7 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 	warns = append(warns, sw...)
 	for _, s := range sites {
 		sv := &siteView{Site: s, File: "site_" + s.Slug + ".html", CellLon: lon[s.Cell], CellLat: lat[s.Cell]}
-		if r.Kind != "points" {
+		if r.GridKind != grid.Points {
 			sv.Distance = fmt.Sprintf("%.1f km", s.DistKM)
 		}
 		figs, fn, err := siteFigures(r, s)
@@ -221,10 +222,10 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 		}
 		add(sv.File)
 	}
-	if err := writePage(filepath.Join(tmp, "index.html"), indexPage, v); err != nil {
+	if err := writePage(filepath.Join(tmp, contract.ReportIndex), indexPage, v); err != nil {
 		return nil, nil, err
 	}
-	add("index.html")
+	add(contract.ReportIndex)
 	if err := renderAll(tmp, queue, workers); err != nil {
 		return nil, nil, err
 	}
@@ -277,7 +278,7 @@ func summary(r *rundir.Run) [][2]string {
 	if len(m.Duplicates) > 0 {
 		cov += fmt.Sprintf("; %d time steps held by two files, each read once (see manifest.json duplicate_steps)", len(m.Duplicates))
 	}
-	if c := r.Cells.Col("coverage"); c != nil {
+	if c := r.Cells.Col(contract.ColCoverage); c != nil {
 		lo, hi := math.Inf(1), math.Inf(-1)
 		for i, x := range c.Float {
 			if !r.Land[i] && !math.IsNaN(x) {
@@ -326,7 +327,7 @@ func runTime(t map[string]float64) string {
 // segmentsText says how the record's step runs: "every 3 h", or its
 // segments when the step changes ("2001-01-01 00:00:00 to 2002-12-31
 // 21:00:00 every 3 h; ..."); a manifest without segments gives its step.
-func segmentsText(m *rundir.Manifest) string {
+func segmentsText(m *contract.Manifest) string {
 	if len(m.Segments) == 0 {
 		return "step " + stepText(m.StepSeconds)
 	}
@@ -370,7 +371,8 @@ func writePage(path string, t *template.Template, data any) error {
 	return nil
 }
 
-var funcs = template.FuncMap{"num": fmtNum, "nums": joinNums}
+var funcs = template.FuncMap{"num": fmtNum, "nums": joinNums,
+	"colPowerMean": func() string { return contract.ColPowerMean }}
 
 const css = `body{font-family:sans-serif;margin:0 auto;max-width:1100px;padding:0 1.2em 3em;color:#1b1b1b;line-height:1.4}
 h1{font-size:1.6em;margin-top:1em}h2{font-size:1.25em;border-bottom:1px solid #ccc;padding-bottom:.2em;margin-top:1.6em}
@@ -409,7 +411,7 @@ Each figure is also an SVG file (link below it).</p>
 {{else}}<p>No maps: no mapped column has values.</p>{{end}}
 <h2 id="sites">Sites</h2>
 {{if .Sites}}<table><tr><th>site</th><th>cell</th><th>lon</th><th>lat</th><th>mean power (kW/m)</th></tr>
-{{range .Sites}}<tr><td><a href="{{.File}}">{{.Name}}</a></td><td>{{.Cell}}</td><td>{{num .CellLon}}</td><td>{{num .CellLat}}</td><td>{{range .Numbers}}{{if eq (index . 0) "power_mean_kw_m"}}{{index . 1}}{{end}}{{end}}</td></tr>{{end}}</table>
+{{range .Sites}}<tr><td><a href="{{.File}}">{{.Name}}</a></td><td>{{.Cell}}</td><td>{{num .CellLon}}</td><td>{{num .CellLat}}</td><td>{{range .Numbers}}{{if eq (index . 0) colPowerMean}}{{index . 1}}{{end}}{{end}}</td></tr>{{end}}</table>
 {{else}}<p>No site pages: the spec has no [[site]] list (a point set gets a page for every point).</p>{{end}}
 {{if .Validation}}<h2 id="validation">Validation against measurements</h2><table><tr><th>station</th><th>cell</th><th>matched times</th><th>Hm0 bias (m)</th><th>Hm0 scatter index</th></tr>
 {{range .Validation}}<tr><td><a href="{{.File}}">{{.Name}}</a></td><td>{{.Cell}}</td><td>{{.Matched}}</td><td>{{.Hm0Bias}}</td><td>{{.Hm0SI}}</td></tr>{{end}}</table>{{end}}

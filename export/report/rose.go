@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
+	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
 )
@@ -37,11 +38,11 @@ func bearingPoint(c vg.Point, r vg.Length, deg float64) vg.Point {
 // directionsFigure draws the site's directional power rose from
 // directions.parquet (nil when the run has no rows for the cell).
 func directionsFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.CellTable("directions", int64(s.Cell))
+	t, err := r.CellTable(contract.TableDirections, int64(s.Cell))
 	if err != nil || t == nil {
 		return nil, err
 	}
-	rows := t.RowsOf("cell_id", int64(s.Cell))
+	rows := t.RowsOf(contract.ColCellID, int64(s.Cell))
 	c, a, b, p, o := t.Col("sector_centre_deg"), t.Col("sector_from_deg"), t.Col("sector_to_deg"), t.Col("power_share"), t.Col("occurrence_share")
 	if len(rows) == 0 || c == nil || a == nil || b == nil || p == nil || o == nil {
 		return nil, nil

@@ -8,49 +8,34 @@ import (
 	"path/filepath"
 	"strings"
 
+	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 )
-
-// screeningSummary is the part of screening.json the maps' captions use.
-type screeningSummary struct {
-	Note      string `json:"note"`
-	Scenarios []struct {
-		Name            string   `json:"name"`
-		Criteria        []string `json:"criteria"`
-		Exclude         []string `json:"exclude"`
-		Within          []string `json:"within"`
-		Cells           int      `json:"cells_passing"`
-		AreaKm2         *float64 `json:"area_km2"`
-		PowerMeanKWm    *float64 `json:"power_mean_kw_m"`
-		Device          string   `json:"device"`
-		AnnualEnergyGWh *float64 `json:"annual_energy_gwh"`
-	} `json:"scenarios"`
-}
 
 // screeningMaps draws one map per screening scenario of the run (from
 // screening.parquet and screening.json): passing cells in yellow (1),
 // failing sea cells in purple (0), land in sand, into dir. A run without
 // screening has none.
 func screeningMaps(r *rundir.Run, dir string) ([]pageFigure, []string, error) {
-	b, err := os.ReadFile(filepath.Join(r.Dir, "screening.json"))
+	b, err := os.ReadFile(filepath.Join(r.Dir, contract.ScreeningFile))
 	if os.IsNotExist(err) {
 		return nil, nil, nil
 	}
 	if err != nil {
 		return nil, nil, fmt.Errorf("report: %w", err)
 	}
-	var sum screeningSummary
+	var sum contract.ScreeningSummary
 	if err := json.Unmarshal(b, &sum); err != nil {
 		return nil, nil, fmt.Errorf("report: screening.json: %w", err)
 	}
-	t, err := r.Table("screening")
+	t, err := r.Table(contract.TableScreening)
 	if err != nil {
 		return nil, nil, err
 	}
 	if t == nil {
 		return nil, nil, fmt.Errorf("report: screening.json without screening.parquet in %s; rerun swellgrid screen", r.Dir)
 	}
-	ids, sc, pass := t.Col("cell_id"), t.Col("scenario"), t.Col("pass")
+	ids, sc, pass := t.Col(contract.ColCellID), t.Col("scenario"), t.Col("pass")
 	if ids == nil || sc == nil || pass == nil {
 		return nil, nil, fmt.Errorf("report: screening.parquet lacks cell_id, scenario or pass")
 	}
@@ -101,7 +86,7 @@ func screeningMaps(r *rundir.Run, dir string) ([]pageFigure, []string, error) {
 		if s.Device != "" && s.AnnualEnergyGWh != nil {
 			c += fmt.Sprintf(" Layout of %s: %s GWh/yr.", s.Device, fmtNum(*s.AnnualEnergyGWh))
 		}
-		c += " Reasons per cell in screening.parquet, outline in contours/screening_" + s.Name + ".geojson. " + sum.Note
+		c += " Reasons per cell in screening.parquet, outline in " + contract.ContourDir + "/" + contract.ScreeningOutlineFile(s.Name) + ". " + sum.Note
 		figs = append(figs, pageFigure{Title: title, Caption: c, PNG: names[0], SVG: names[1], Map: info})
 	}
 	return figs, files, nil

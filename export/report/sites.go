@@ -14,6 +14,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
+	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
 	"swellgrid/stats/climate"
@@ -64,7 +65,7 @@ func slug(s string) string {
 func Sites(r *rundir.Run) ([]Site, []string) {
 	var out []Site
 	var warns []string
-	if r.Kind == "points" {
+	if r.GridKind == grid.Points {
 		lon, lat := r.Lon(), r.Lat()
 		for i := range lon {
 			if r.Land[i] {
@@ -141,11 +142,11 @@ func siteFigures(r *rundir.Run, s Site) ([]*figure, []string, error) {
 }
 
 func monthlyFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.CellTable("monthly", int64(s.Cell))
+	t, err := r.CellTable(contract.TableMonthly, int64(s.Cell))
 	if err != nil || t == nil {
 		return nil, err
 	}
-	rows := t.RowsOf("cell_id", int64(s.Cell))
+	rows := t.RowsOf(contract.ColCellID, int64(s.Cell))
 	if len(rows) == 0 {
 		return nil, nil
 	}
@@ -212,8 +213,8 @@ func monthlyFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 		p.X.Tick.Marker = plot.ConstantTicks(ticks)
 		return p
 	}
-	top := panel("power_mean_kw_m", "Monthly mean wave power", "J (kW/m)")
-	bot := panel("hm0_mean_m", "Monthly mean Hm0", "Hm0 (m)")
+	top := panel(contract.ColPowerMean, "Monthly mean wave power", "J (kW/m)")
+	bot := panel(contract.ColHm0Mean, "Monthly mean Hm0", "Hm0 (m)")
 	f := &figure{Name: name, Title: "Monthly climatology with the inter-annual spread",
 		Caption: "Monthly mean wave power (top) and Hm0 (bottom): thick line the calendar-month climatology over the included years; grey, each year's month (months below the coverage threshold left out).",
 		W:       6.5 * vg.Inch, H: 6 * vg.Inch}
@@ -228,11 +229,11 @@ func monthlyFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 }
 
 func exceedanceFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.CellTable("exceedance", int64(s.Cell))
+	t, err := r.CellTable(contract.TableExceedance, int64(s.Cell))
 	if err != nil || t == nil {
 		return nil, err
 	}
-	rows := t.RowsOf("cell_id", int64(s.Cell))
+	rows := t.RowsOf(contract.ColCellID, int64(s.Cell))
 	if len(rows) == 0 {
 		return nil, nil
 	}
@@ -344,11 +345,11 @@ func (l *binsLayer) DataRange() (xmin, xmax, ymin, ymax float64) {
 }
 
 func occurrenceFigure(r *rundir.Run, s Site, name string) (*figure, []string, error) {
-	t, err := r.CellTable("scatter", int64(s.Cell))
+	t, err := r.CellTable(contract.TableScatter, int64(s.Cell))
 	if err != nil || t == nil {
 		return nil, nil, err
 	}
-	rows := t.RowsOf("cell_id", int64(s.Cell))
+	rows := t.RowsOf(contract.ColCellID, int64(s.Cell))
 	if len(rows) == 0 {
 		return nil, []string{"no Hm0 x Te occurrence rows for this cell"}, nil
 	}
@@ -388,7 +389,7 @@ func occurrenceFigure(r *rundir.Run, s Site, name string) (*figure, []string, er
 	// Wave power isolines J(Hm0, Te) at the cell's depth (bulk formula of
 	// seastate.BulkPowerFinite; deep water where the depth is unknown).
 	depth := math.NaN()
-	if d := r.Cells.Col("depth_m"); d != nil {
+	if d := r.Cells.Col(contract.ColDepth); d != nil {
 		depth = d.Float[s.Cell]
 	}
 	ph := r.Manifest.Parameters.Physics
@@ -521,11 +522,11 @@ func (e *errBars) Plot(c draw.Canvas, p *plot.Plot) {
 }
 
 func returnLevelFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.CellTable("extremes", int64(s.Cell))
+	t, err := r.CellTable(contract.TableExtremes, int64(s.Cell))
 	if err != nil || t == nil {
 		return nil, err
 	}
-	rows := t.RowsOf("cell_id", int64(s.Cell))
+	rows := t.RowsOf(contract.ColCellID, int64(s.Cell))
 	method, T, lvl, lo, hi := t.Col("method"), t.Col("return_period_y"), t.Col("hm0_m"), t.Col("hm0_lo_m"), t.Col("hm0_hi_m")
 	p := newPlot("Return levels of Hm0 with 95% intervals", "return period (years)", "Hm0 (m)")
 	p.X.Scale = plot.LogScale{}
@@ -576,11 +577,11 @@ func returnLevelFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 // designFigure draws the environmental design contours of design.parquet
 // (when the run has them): Hm0 against the period column per return period.
 func designFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.CellTable("design", int64(s.Cell))
+	t, err := r.CellTable(contract.TableDesign, int64(s.Cell))
 	if err != nil || t == nil {
 		return nil, err
 	}
-	rows := t.RowsOf("cell_id", int64(s.Cell))
+	rows := t.RowsOf(contract.ColCellID, int64(s.Cell))
 	if len(rows) == 0 {
 		return nil, nil
 	}

@@ -14,6 +14,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
+	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 )
 
@@ -48,7 +49,7 @@ type validationStation struct {
 // with the density of the pairs, a Q-Q plot and a time-series overlay of the
 // chosen period. It only draws what the validation tables hold.
 func validationPages(r *rundir.Run, tmp string, v *indexView, add func(...string)) ([]validationLink, error) {
-	b, err := os.ReadFile(filepath.Join(r.Dir, "validation.json"))
+	b, err := os.ReadFile(filepath.Join(r.Dir, contract.ValidationFile))
 	if err != nil {
 		return nil, nil // no validation yet
 	}
@@ -60,15 +61,15 @@ func validationPages(r *rundir.Run, tmp string, v *indexView, add func(...string
 	if err := json.Unmarshal(b, &sum); err != nil {
 		return nil, fmt.Errorf("report: %s/validation.json: %w", r.Dir, err)
 	}
-	stats, err := r.Table("validation")
+	stats, err := r.Table(contract.TableValidation)
 	if err != nil || stats == nil {
 		return nil, fmt.Errorf("report: %s has validation.json but no readable validation.parquet (%v); run swellgrid validate again", r.Dir, err)
 	}
-	qq, err := r.Table("validation_qq")
+	qq, err := r.Table(contract.TableValidationQQ)
 	if err != nil {
 		return nil, err
 	}
-	pairs, err := r.Table("validation_pairs")
+	pairs, err := r.Table(contract.TableValidationPairs)
 	if err != nil {
 		return nil, err
 	}

@@ -3,6 +3,8 @@ package rundir
 import (
 	"fmt"
 	"path/filepath"
+
+	"swellgrid/export/contract"
 )
 
 // Mesh is the UGRID mesh of a run on one (from mesh_nodes.parquet and
@@ -24,11 +26,11 @@ func (m *Mesh) Face(f int) []int { return m.FaceNode[m.FaceOff[f]:m.FaceOff[f+1]
 
 // readMesh reads the mesh tables of a run directory with cells cells.
 func readMesh(dir string, cells int) (*Mesh, error) {
-	nodes, err := ReadTable(filepath.Join(dir, "mesh_nodes.parquet"))
+	nodes, err := ReadTable(filepath.Join(dir, contract.ParquetFile(contract.TableMeshNodes)))
 	if err != nil {
 		return nil, err
 	}
-	faces, err := ReadTable(filepath.Join(dir, "mesh_faces.parquet"))
+	faces, err := ReadTable(filepath.Join(dir, contract.ParquetFile(contract.TableMeshFaces)))
 	if err != nil {
 		return nil, err
 	}
@@ -36,8 +38,8 @@ func readMesh(dir string, cells int) (*Mesh, error) {
 	bad := func(t *Table, why string, a ...any) error {
 		return fmt.Errorf("rundir: %s: %s; the run directory is damaged, rerun it", t.Path, fmt.Sprintf(why, a...))
 	}
-	nid, lon, lat, ncell := nodes.Col("node"), nodes.Col("lon"), nodes.Col("lat"), nodes.Col("cell_id")
-	fid, corner, fnode, fcell := faces.Col("face"), faces.Col("corner"), faces.Col("node"), faces.Col("cell_id")
+	nid, lon, lat, ncell := nodes.Col("node"), nodes.Col(contract.ColLon), nodes.Col(contract.ColLat), nodes.Col(contract.ColCellID)
+	fid, corner, fnode, fcell := faces.Col("face"), faces.Col("corner"), faces.Col("node"), faces.Col(contract.ColCellID)
 	if nid == nil || lon == nil || lat == nil || ncell == nil || fid == nil || corner == nil || fnode == nil || fcell == nil {
 		return nil, bad(nodes, "mesh tables without their columns")
 	}

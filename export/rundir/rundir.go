@@ -28,6 +28,7 @@ import (
 	"github.com/apache/arrow/go/v17/parquet/metadata"
 	"github.com/apache/arrow/go/v17/parquet/pqarrow"
 
+	"swellgrid/export/contract"
 	"swellgrid/grid"
 )
 
@@ -112,7 +113,7 @@ func ReadCellRows(path string, cell int64) (*Table, error) { return readTable(pa
 // rowGroupsOf lists the row groups of rdr whose cell_id statistics include
 // cell (nil, false when a row group lacks them: read all).
 func rowGroupsOf(rdr *file.Reader, cell int64) ([]int, bool) {
-	ci := rdr.MetaData().Schema.ColumnIndexByName("cell_id")
+	ci := rdr.MetaData().Schema.ColumnIndexByName(contract.ColCellID)
 	if ci < 0 {
 		return nil, false
 	}
@@ -156,7 +157,7 @@ func readTable(path string, cell *int64, names []string) (*Table, error) {
 			return err
 		}
 		if cell != nil {
-			t.keep(t.RowsOf("cell_id", *cell))
+			t.keep(t.RowsOf(contract.ColCellID, *cell))
 		}
 		return nil
 	})
@@ -240,7 +241,7 @@ func decodeGroups(path string, rdr *file.Reader, names []string, rgs []int) (*Ta
 	}
 	for ci := 0; ci < int(tbl.NumCols()); ci++ {
 		ac := tbl.Column(ci)
-		if ac.Name() == "geometry" {
+		if ac.Name() == contract.ColGeometry {
 			continue
 		}
 		c := &Column{Name: ac.Name()}
@@ -340,125 +341,25 @@ func pick[T any](v []T, rows []int) []T {
 	return out
 }
 
-// Manifest is the part of manifest.json the products use; Raw keeps the
-// whole document.
-type Manifest struct {
-	Software    string             `json:"software"`
-	Version     string             `json:"version"`
-	Caution     string             `json:"caution"`
-	Inputs      []Input            `json:"inputs"`
-	Calendar    string             `json:"calendar"`
-	Start       string             `json:"time_start"`
-	End         string             `json:"time_end"`
-	Steps       int                `json:"steps"`
-	StepSeconds int64              `json:"step_seconds"`
-	Segments    []Segment          `json:"time_segments"`
-	CovHours    float64            `json:"covered_hours"`
-	Gaps        []Gap              `json:"gaps"`
-	Duplicates  []Duplicate        `json:"duplicate_steps"`
-	Grid        Grid               `json:"grid"`
-	DepthSource string             `json:"depth_source"`
-	Assumptions []string           `json:"assumptions"`
-	Warnings    []string           `json:"warnings"`
-	Parameters  Parameters         `json:"parameters"`
-	Timings     map[string]float64 `json:"timings_s"` // seconds per stage
-	Raw         json.RawMessage    `json:"-"`
-}
-
-// Input is one input file of the run.
-type Input struct {
-	Path  string `json:"path"`
-	Size  int64  `json:"size_bytes"`
-	First string `json:"first_time"`
-	Last  string `json:"last_time"`
-	Steps int    `json:"steps"`
-}
-
-// Gap is time in the record that no step covers.
-type Gap struct {
-	After  string  `json:"after"`
-	Before string  `json:"before"`
-	Hours  float64 `json:"missing_hours"`
-}
-
-// Segment is a stretch of the record with one step duration (StepHours;
-// 0: irregular, its steps from MinStepHours to MaxStepHours).
-type Segment struct {
-	First        string  `json:"first"`
-	Last         string  `json:"last"`
-	Steps        int     `json:"steps"`
-	StepHours    float64 `json:"step_hours"`
-	MinStepHours float64 `json:"min_step_hours"`
-	MaxStepHours float64 `json:"max_step_hours"`
-}
-
-// Duplicate is a time held by two input files, read once.
-type Duplicate struct {
-	Roles     []string `json:"roles"`
-	Time      string   `json:"time"`
-	Files     []string `json:"files"`
-	Identical bool     `json:"identical"`
-	Used      string   `json:"used"`
-}
-
-// Grid is the grid of the run.
-type Grid struct {
-	Kind   string     `json:"kind"`
-	Shape  [2]int     `json:"shape_ny_nx"`
-	Cells  int        `json:"cells"`
-	Masked int        `json:"masked_cells"`
-	BBox   [4]float64 `json:"bbox_lon_lat"` // RFC 7946: west > east across 180 degrees
-	// LonFrame is the grid's continuous longitude frame ("-180..180" or
-	// "0..360"; empty in a manifest written before it was recorded).
-	LonFrame string `json:"lon_frame"`
-}
-
-// Parameters is the part of the recorded spec the products use.
-type Parameters struct {
-	Devices []struct {
-		Name        string `json:"name"`
-		PowerMatrix string `json:"power_matrix"`
-		Lookup      string `json:"lookup"`
-	} `json:"devices"`
-	Extremes struct {
-		ReturnPeriodsY []float64 `json:"return_periods_y"`
-	} `json:"extremes"`
-	Contours struct {
-		Columns []string             `json:"columns"`
-		Levels  map[string][]float64 `json:"levels"`
-	} `json:"contours"`
-	Physics struct {
-		Rho float64 `json:"rho_kg_m3"`
-		G   float64 `json:"g_m_s2"`
-	} `json:"physics"`
-	Sites []Site `json:"sites"`
-}
-
-// Site is a named place of the spec's [[site]] list.
-type Site struct {
-	Name string  `json:"name"`
-	Lon  float64 `json:"lon"`
-	Lat  float64 `json:"lat"`
-}
-
-// DecodeManifest decodes manifest.json bytes.
-func DecodeManifest(b []byte) (*Manifest, error) {
-	m := &Manifest{}
-	if err := json.Unmarshal(b, m); err != nil {
-		return nil, fmt.Errorf("rundir: manifest.json: %w", err)
-	}
-	m.Raw = append(json.RawMessage(nil), b...)
-	return m, nil
-}
+// Manifest is contract.Manifest, kept under this name for the callers not
+// yet moved to the contract (pipelines/engine/dateline_test.go).
+//
+// Deprecated: use contract.Manifest.
+type Manifest = contract.Manifest
 
 // Run is a finished run directory read back.
 type Run struct {
 	Dir      string
-	Manifest *Manifest
+	Manifest *contract.Manifest
 	Cells    *Table
 	// NX, NY: the structured shape (points: NX = points, NY = 1).
-	NX, NY int
-	Kind   string // regular, curvilinear, points or mesh
+	NX, NY   int
+	GridKind grid.Kind // the manifest's grid kind
+	// Kind is GridKind's name (grid.Kind.String), kept for the callers not
+	// yet moved to GridKind (runGrid in pipelines/screening/screening.go).
+	//
+	// Deprecated: compare GridKind with grid.Kind values instead.
+	Kind   string
 	Land   []bool // masked cells (qc flag "masked"): drawn as land, no values
 	Mesh   *Mesh  // the UGRID mesh of a run on one (mesh.go), else nil
 	tables map[string]*Table
@@ -470,45 +371,45 @@ type Run struct {
 // nil reads dir/manifest.json.
 func Open(dir string, manifest []byte) (*Run, error) {
 	if manifest == nil {
-		b, err := os.ReadFile(filepath.Join(dir, "manifest.json"))
+		b, err := os.ReadFile(filepath.Join(dir, contract.ManifestFile))
 		if err != nil {
 			return nil, fmt.Errorf("rundir: %s is not a finished run directory (no manifest.json; run `swellgrid run` or `swellgrid merge` first): %w", dir, err)
 		}
 		manifest = b
 	}
-	m, err := DecodeManifest(manifest)
+	m, err := contract.DecodeManifest(manifest)
+	if err != nil {
+		return nil, fmt.Errorf("rundir: %w", err)
+	}
+	cells, err := ReadTable(filepath.Join(dir, contract.CellsFile))
 	if err != nil {
 		return nil, err
 	}
-	cells, err := ReadTable(filepath.Join(dir, "cells.parquet"))
-	if err != nil {
-		return nil, err
-	}
-	r := &Run{Dir: dir, Manifest: m, Cells: cells, Kind: m.Grid.Kind, NY: m.Grid.Shape[0], NX: m.Grid.Shape[1], tables: map[string]*Table{}, groups: map[string]*groupRead{}}
+	r := &Run{Dir: dir, Manifest: m, Cells: cells, GridKind: m.Grid.Kind, Kind: m.Grid.Kind.String(), NY: m.Grid.Shape[0], NX: m.Grid.Shape[1], tables: map[string]*Table{}, groups: map[string]*groupRead{}}
 	if r.NX*r.NY != cells.Rows {
 		return nil, fmt.Errorf("rundir: %s: the manifest's grid is %d x %d but cells.parquet has %d rows; the directory mixes two runs, rerun it", dir, r.NY, r.NX, cells.Rows)
 	}
-	for _, need := range []string{"cell_id", "lon", "lat"} {
+	for _, need := range []string{contract.ColCellID, contract.ColLon, contract.ColLat} {
 		if cells.Col(need) == nil {
 			return nil, fmt.Errorf("rundir: %s: cells.parquet has no column %q", dir, need)
 		}
 	}
-	id := cells.Col("cell_id")
+	id := cells.Col(contract.ColCellID)
 	for i := 0; i < cells.Rows; i++ {
 		if id.Int[i] != int64(i) {
 			return nil, fmt.Errorf("rundir: %s: cells.parquet row %d holds cell %d; rows must be in cell-id order", dir, i, id.Int[i])
 		}
 	}
-	if r.Kind == "mesh" {
+	if r.GridKind == grid.MeshKind {
 		if r.Mesh, err = readMesh(dir, cells.Rows); err != nil {
 			return nil, err
 		}
 	}
 	r.Land = make([]bool, cells.Rows)
-	if q := cells.Col("qc_flags"); q != nil && q.Kind == String {
+	if q := cells.Col(contract.ColQCFlags); q != nil && q.Kind == String {
 		for i, s := range q.Str {
-			for _, f := range strings.Split(s, ",") {
-				if f == "masked" {
+			for _, f := range strings.Split(s, contract.QCFlagSeparator) {
+				if f == contract.QCFlagMasked {
 					r.Land[i] = true
 				}
 			}
@@ -523,7 +424,7 @@ func (r *Run) Table(name string) (*Table, error) {
 	if t, ok := r.tables[name]; ok {
 		return t, nil
 	}
-	p := filepath.Join(r.Dir, name+".parquet")
+	p := filepath.Join(r.Dir, contract.ParquetFile(name))
 	if _, err := os.Stat(p); errors.Is(err, os.ErrNotExist) {
 		r.tables[name] = nil
 		return nil, nil
@@ -539,7 +440,7 @@ func (r *Run) Table(name string) (*Table, error) {
 // Columns reads the named columns of the long table name (ReadColumns), not
 // cached; nil, nil when the run has no such file.
 func (r *Run) Columns(name string, cols ...string) (*Table, error) {
-	p := filepath.Join(r.Dir, name+".parquet")
+	p := filepath.Join(r.Dir, contract.ParquetFile(name))
 	if _, err := os.Stat(p); errors.Is(err, os.ErrNotExist) {
 		return nil, nil
 	}
@@ -556,9 +457,9 @@ func (r *Run) CellTable(name string, cell int64) (*Table, error) {
 		if t == nil {
 			return nil, nil
 		}
-		return t.subset(t.RowsOf("cell_id", cell)), nil
+		return t.subset(t.RowsOf(contract.ColCellID, cell)), nil
 	}
-	p := filepath.Join(r.Dir, name+".parquet")
+	p := filepath.Join(r.Dir, contract.ParquetFile(name))
 	if _, err := os.Stat(p); errors.Is(err, os.ErrNotExist) {
 		return nil, nil
 	}
@@ -577,7 +478,7 @@ func (r *Run) CellTable(name string, cell int64) (*Table, error) {
 			g = &groupRead{rgs: rgs, t: t}
 			r.groups[name] = g
 		}
-		out = g.t.subset(g.t.RowsOf("cell_id", cell))
+		out = g.t.subset(g.t.RowsOf(contract.ColCellID, cell))
 		return nil
 	})
 	return out, err
@@ -590,8 +491,8 @@ type groupRead struct {
 }
 
 // Lon and Lat of every cell (cells.parquet: lon in [-180, 180)).
-func (r *Run) Lon() []float64 { return r.Cells.Col("lon").Float }
-func (r *Run) Lat() []float64 { return r.Cells.Col("lat").Float }
+func (r *Run) Lon() []float64 { return r.Cells.Col(contract.ColLon).Float }
+func (r *Run) Lat() []float64 { return r.Cells.Col(contract.ColLat).Float }
 
 // Frame is the continuous longitude frame of the run's cells
 // (grid.LonFrame: 0..360 for a grid across 180 degrees), which atlas.nc,
@@ -602,14 +503,16 @@ func (r *Run) Frame() grid.Frame { return grid.LonFrame(r.Lon()) }
 func (r *Run) FrameLon() []float64 { return r.Frame().ShiftAll(r.Lon()) }
 
 // Structured reports whether the cells form a (y, x) grid.
-func (r *Run) Structured() bool { return r.Kind == "regular" || r.Kind == "curvilinear" }
+func (r *Run) Structured() bool {
+	return r.GridKind == grid.Regular || r.GridKind == grid.Curvilinear
+}
 
 // NearestSeaCell returns the cell nearest to (lon, lat) by great-circle
 // distance among the cells that are not land and have a mean power, and the
 // distance in km (haversine on a sphere of radius 6371.0088 km, the IUGG mean
 // Earth radius). It returns -1 if there is no such cell.
 func (r *Run) NearestSeaCell(lon, lat float64) (int, float64) {
-	pw := r.Cells.Col("power_mean_kw_m")
+	pw := r.Cells.Col(contract.ColPowerMean)
 	best, bd := -1, math.Inf(1)
 	lons, lats := r.Lon(), r.Lat()
 	for i := range lons {

@@ -1,0 +1,56 @@
+package contract
+
+// Files of a run directory whose names more than one package spells.
+const (
+	ManifestFile   = "manifest.json"   // the run's manifest (Manifest)
+	CellsFile      = "cells.parquet"   // one row per cell (the Col* columns)
+	ScreeningFile  = "screening.json"  // swellgrid screen's summary (ScreeningSummary)
+	ValidationFile = "validation.json" // swellgrid validate's summary
+	AtlasNCFile    = "atlas.nc"        // the CF raster (UGRID on a mesh)
+	AtlasGPKGFile  = "atlas.gpkg"      // the OGC GeoPackage
+	ContourDir     = "contours"        // sub-directory of the contour and screening layers
+	ReportDir      = "report"          // sub-directory of the HTML report
+	ReportIndex    = "index.html"      // the report's first page, in ReportDir
+)
+
+// Long tables of a run directory by name: the file is the name with
+// ".parquet" (ParquetFile).
+const (
+	TableMonthly              = "monthly"
+	TableScatter              = "scatter"
+	TableExceedance           = "exceedance"
+	TableWindows              = "windows"
+	TableExtremes             = "extremes"
+	TableThresholdDiagnostics = "threshold_diagnostics"
+	TableDesign               = "design"
+	TableDirections           = "directions"
+	TableAnnual               = "annual"
+	TableAEPBands             = "aep_bands"
+	TableScreening            = "screening"
+	TableValidation           = "validation"
+	TableValidationQQ         = "validation_qq"
+	TableValidationPairs      = "validation_pairs"
+	TableMeshNodes            = "mesh_nodes"
+	TableMeshFaces            = "mesh_faces"
+)
+
+// ParquetFile is the file of the table named table: table + ".parquet".
+func ParquetFile(table string) string { return table + ".parquet" }
+
+// ContourLinesFile is the isoline layer of a cells.parquet column in
+// ContourDir: <column>.geojson.
+func ContourLinesFile(column string) string { return column + ".geojson" }
+
+// ContourBandsFile is the band layer of a cells.parquet column in
+// ContourDir: <column>.bands.geojson.
+func ContourBandsFile(column string) string { return column + ".bands.geojson" }
+
+// ScreeningOutlinePrefix begins the name of every screening outline in
+// ContourDir (ScreeningOutlineFile).
+const ScreeningOutlinePrefix = "screening_"
+
+// ScreeningOutlineFile is the passing area of a screening scenario in
+// ContourDir: screening_<scenario>.geojson.
+func ScreeningOutlineFile(scenario string) string {
+	return ScreeningOutlinePrefix + scenario + ".geojson"
+}
