@@ -341,12 +341,6 @@ func pick[T any](v []T, rows []int) []T {
 	return out
 }
 
-// Manifest is contract.Manifest, kept under this name for the callers not
-// yet moved to the contract (pipelines/engine/dateline_test.go).
-//
-// Deprecated: use contract.Manifest.
-type Manifest = contract.Manifest
-
 // Run is a finished run directory read back.
 type Run struct {
 	Dir      string
@@ -355,15 +349,10 @@ type Run struct {
 	// NX, NY: the structured shape (points: NX = points, NY = 1).
 	NX, NY   int
 	GridKind grid.Kind // the manifest's grid kind
-	// Kind is GridKind's name (grid.Kind.String), kept for the callers not
-	// yet moved to GridKind (runGrid in pipelines/screening/screening.go).
-	//
-	// Deprecated: compare GridKind with grid.Kind values instead.
-	Kind   string
-	Land   []bool // masked cells (qc flag "masked"): drawn as land, no values
-	Mesh   *Mesh  // the UGRID mesh of a run on one (mesh.go), else nil
-	tables map[string]*Table
-	groups map[string]*groupRead // CellTable's last row groups of each table
+	Land     []bool    // masked cells (qc flag "masked"): drawn as land, no values
+	Mesh     *Mesh     // the UGRID mesh of a run on one (mesh.go), else nil
+	tables   map[string]*Table
+	groups   map[string]*groupRead // CellTable's last row groups of each table
 }
 
 // Open reads the manifest and cells.parquet of the run directory dir. The
@@ -385,7 +374,7 @@ func Open(dir string, manifest []byte) (*Run, error) {
 	if err != nil {
 		return nil, err
 	}
-	r := &Run{Dir: dir, Manifest: m, Cells: cells, GridKind: m.Grid.Kind, Kind: m.Grid.Kind.String(), NY: m.Grid.Shape[0], NX: m.Grid.Shape[1], tables: map[string]*Table{}, groups: map[string]*groupRead{}}
+	r := &Run{Dir: dir, Manifest: m, Cells: cells, GridKind: m.Grid.Kind, NY: m.Grid.Shape[0], NX: m.Grid.Shape[1], tables: map[string]*Table{}, groups: map[string]*groupRead{}}
 	if r.NX*r.NY != cells.Rows {
 		return nil, fmt.Errorf("rundir: %s: the manifest's grid is %d x %d but cells.parquet has %d rows; the directory mixes two runs, rerun it", dir, r.NY, r.NX, cells.Rows)
 	}

@@ -21,7 +21,7 @@ normalise() {
 }
 compare_dirs() { # compare_dirs LABEL DIR_BEFORE DIR_AFTER
   label=$1; a=$2; b=$3; bad=""
-  files=$( (cd "$a" && find . -type f ! -path './.swellgrid/*'; cd "$b" && find . -type f ! -path './.swellgrid/*') | sort -u)
+  files=$( (cd "$a" && find . -type f ! -path '*/.swellgrid/*'; cd "$b" && find . -type f ! -path '*/.swellgrid/*') | sort -u)
   n=0
   for f in $files; do
     n=$((n+1))

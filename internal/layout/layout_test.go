@@ -10,6 +10,8 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"swellgrid/export/contract"
+	"swellgrid/pipelines/engine"
 	"testing"
 )
 
@@ -217,4 +219,81 @@ func topNames(f *ast.File) []string {
 		}
 	}
 	return out
+}
+
+// genericColumnWords are cells.parquet column names that are also ordinary
+// keys elsewhere (a GeoJSON member, a log key, a progress label): their
+// literals are not counted.
+var genericColumnWords = map[string]bool{"name": true, "steps": true}
+
+// A result column of cells.parquet (cell_id, lon and lat aside) is spelled as
+// a string literal in at most two non-test files: the run's schema and the
+// output contract (export/contract); everything else takes the contract's
+// constants and builders (issue 28). A pattern ("aep_<device>_mwh") counts
+// by its fixed prefix as a whole literal ("aep_"). Struct tags are not
+// literals here.
+func TestColumnNamesNotRepeated(t *testing.T) {
+	root := filepath.Join("..", "..")
+	lits := map[string]map[string]bool{} // literal -> files
+	fset := token.NewFileSet()
+	err := filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		if d.IsDir() && (d.Name() == "testdata" || strings.HasPrefix(d.Name(), ".") && p != root) {
+			return filepath.SkipDir
+		}
+		if d.IsDir() || !strings.HasSuffix(p, ".go") || strings.HasSuffix(p, "_test.go") {
+			return nil
+		}
+		f, err := parser.ParseFile(fset, p, nil, 0)
+		if err != nil {
+			return err
+		}
+		tags := map[*ast.BasicLit]bool{}
+		ast.Inspect(f, func(n ast.Node) bool {
+			if fl, ok := n.(*ast.Field); ok && fl.Tag != nil {
+				tags[fl.Tag] = true
+			}
+			return true
+		})
+		rel, _ := filepath.Rel(root, p)
+		ast.Inspect(f, func(n ast.Node) bool {
+			if bl, ok := n.(*ast.BasicLit); ok && bl.Kind == token.STRING && !tags[bl] {
+				if v, err := strconv.Unquote(bl.Value); err == nil {
+					if lits[v] == nil {
+						lits[v] = map[string]bool{}
+					}
+					lits[v][rel] = true
+				}
+			}
+			return true
+		})
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	checked := 0
+	for _, c := range engine.Schema() {
+		if c.File != contract.CellsFile || c.Name == contract.ColCellID || c.Name == contract.ColLon || c.Name == contract.ColLat || genericColumnWords[c.Name] {
+			continue
+		}
+		lit := c.Name
+		if i := strings.IndexByte(lit, '<'); i >= 0 {
+			lit = lit[:i]
+		}
+		checked++
+		if files := lits[lit]; len(files) > 2 {
+			var fs []string
+			for f := range files {
+				fs = append(fs, f)
+			}
+			sort.Strings(fs)
+			t.Errorf("cells.parquet column %s: the literal %q is in %d non-test files %v; take the constant or builder of export/contract", c.Name, lit, len(fs), fs)
+		}
+	}
+	if checked < 30 {
+		t.Fatalf("only %d cells.parquet columns checked: is the schema read?", checked)
+	}
 }

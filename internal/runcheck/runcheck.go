@@ -13,8 +13,8 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
-	"strconv"
 	"strings"
+	"swellgrid/export/contract"
 	"swellgrid/internal/parquetread"
 	"swellgrid/pipelines/runspec"
 	"testing"
@@ -136,29 +136,30 @@ func CheckDemoExtremes(t *testing.T, dir string) {
 	cp := filepath.Join(dir, "cells.parquet")
 	hmax := ReadColumn(t, cp, "hm0_max_m")
 	lim := ReadColumn(t, cp, "hm0_depth_limit_m")
-	flags := ReadStrings(t, cp, "qc_flags")
+	flags := ReadStrings(t, cp, contract.ColQCFlags)
 	s := runspec.DefaultSpec()
 	published := 0
 	best, bestCell := math.Inf(-1), -1
 	for _, T := range s.Extremes.ReturnPeriodsY {
-		tag := strings.ReplaceAll(strconv.FormatFloat(T, 'f', -1, 64), ".", "p") // as the run names a return period (100 -> "100", 2.5 -> "2p5")
-		for _, m := range []struct{ prefix, flag string }{{"hm0_rl", "gev_depth_limited"}, {"hm0_pot_rl", "gpd_depth_limited"}} {
-			lv := ReadColumn(t, cp, m.prefix+tag+"y_m")
-			hi := ReadColumn(t, cp, m.prefix+tag+"y_hi_m")
+		gev := contract.Hm0ReturnLevelColumn(T)          // hm0_rl<T>y_m
+		pot := strings.Replace(gev, "_rl", "_pot_rl", 1) // hm0_pot_rl<T>y_m
+		for _, m := range []struct{ level, flag string }{{gev, "gev_depth_limited"}, {pot, "gpd_depth_limited"}} {
+			lv := ReadColumn(t, cp, m.level)
+			hi := ReadColumn(t, cp, strings.TrimSuffix(m.level, "_m")+"_hi_m")
 			for i, v := range lv {
 				if math.IsNaN(v) {
 					continue
 				}
 				published++
-				if T == 100 && m.prefix == "hm0_rl" && v > best {
+				if T == 100 && m.level == gev && v > best {
 					best, bestCell = v, i
 				}
 				for _, x := range []float64{v, hi[i]} {
 					if x > 3*hmax[i] {
-						t.Errorf("cell %d: %s%sy level or upper end %.2f m above 3 x its largest Hm0 %.2f m", i, m.prefix, tag, x, hmax[i])
+						t.Errorf("cell %d: %s level or upper end %.2f m above 3 x its largest Hm0 %.2f m", i, m.level, x, hmax[i])
 					}
 					if x > lim[i] && !HasFlag(flags[i], m.flag) {
-						t.Errorf("cell %d: %s%sy %.2f m above the depth limit %.2f m without %s (%q)", i, m.prefix, tag, x, lim[i], m.flag, flags[i])
+						t.Errorf("cell %d: %s %.2f m above the depth limit %.2f m without %s (%q)", i, m.level, x, lim[i], m.flag, flags[i])
 					}
 				}
 			}
@@ -168,7 +169,7 @@ func CheckDemoExtremes(t *testing.T, dir string) {
 		t.Fatal("the demo publishes no GEV 100-year level")
 	}
 	t.Logf("demo: %d published levels; largest published GEV 100-year Hm0 %.2f m in cell %d, whose largest Hm0 is %.2f m", published, best, bestCell, hmax[bestCell])
-	pot := ReadColumn(t, cp, "hm0_pot_rl100y_m")
+	pot := ReadColumn(t, cp, strings.Replace(contract.Hm0ReturnLevelColumn(100), "_rl", "_pot_rl", 1))
 	pbest, pcell := math.Inf(-1), -1
 	for i, v := range pot {
 		if v > pbest {
@@ -231,7 +232,7 @@ func CheckDemoMesh(t *testing.T, dir string) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for i, v := range cols["power_mean_kw_m"] {
+	for i, v := range cols[contract.ColPowerMean] {
 		if x, ok := v.(float64); !ok || !(x > 0) {
 			t.Errorf("demo mesh node %d: power_mean_kw_m %v", i, v)
 		}

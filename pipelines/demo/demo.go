@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"time"
 
+	"swellgrid/export/contract"
 	"swellgrid/pipelines/engine"
 	"swellgrid/pipelines/examples"
 	"swellgrid/pipelines/fault"
@@ -47,21 +48,21 @@ func Specs(dir string) []*runspec.Spec {
 		s.Contours.Columns = contours
 		return s
 	}
-	grid := mk("nullport_bulk_*.nc", "atlas-grid", []string{"power_mean_kw_m", "hm0_mean_m", "hm0_p90_m", "mvi", "aep_demo_wec_mwh"})
+	grid := mk("nullport_bulk_*.nc", "atlas-grid", []string{contract.ColPowerMean, contract.ColHm0Mean, contract.Hm0PercentileColumn(90), contract.ColMVI, contract.AEPColumn("demo_wec")})
 	// Two invented places of interest get a report page each.
 	grid.Sites = []runspec.SiteSpec{{Name: "Outer shelf mooring (invented)", Lon: -32.0, Lat: 45.6}, {Name: "Inner shelf (invented)", Lon: -34.4, Lat: 45.1}}
 	// A screening scenario on invented constraint layers.
 	grid.Screening = &runspec.ScreeningSpec{
 		Layers: []runspec.ScreenLayerSpec{{Name: "reserve", File: filepath.Join(hind, "demo_reserve.geojson")}, {Name: "ports", File: filepath.Join(hind, "demo_ports.geojson")}},
 		Scenarios: []runspec.ScenarioSpec{{Name: "demo_core",
-			Criteria: []string{"power_mean_kw_m >= 15", "depth_m between 30 and 150", "hm0_rl100y_m <= 14", "cf_demo_wec >= 0.1"},
+			Criteria: []string{contract.ColPowerMean + " >= 15", contract.ColDepth + " between 30 and 150", contract.Hm0ReturnLevelColumn(100) + " <= 14", contract.CapacityFactorColumn("demo_wec") + " >= 0.1"},
 			Exclude:  []string{"reserve"}, Distance: []runspec.DistanceRule{{Layer: "ports", MaxKm: 150}},
 			Device: "demo_wec", DevicesPerKm2: 2}},
 	}
 	return []*runspec.Spec{
 		grid,
 		mk("nullport_spec_*.nc", "atlas-spectral-points", nil),
-		mk("nullport_mesh_*.nc", "atlas-mesh", []string{"power_mean_kw_m", "hm0_mean_m"}),
+		mk("nullport_mesh_*.nc", "atlas-mesh", []string{contract.ColPowerMean, contract.ColHm0Mean}),
 	}
 }
 

@@ -15,7 +15,7 @@ import (
 	"sync"
 	"testing"
 
-	"swellgrid/export/rundir"
+	"swellgrid/export/contract"
 	"swellgrid/grid"
 	"swellgrid/ingest"
 	"swellgrid/internal/parquetread"
@@ -145,7 +145,7 @@ func TestDateLineTables(t *testing.T) {
 			}
 		}
 		w.log(t, f)
-		var m rundir.Manifest
+		var m contract.Manifest
 		b, _ := os.ReadFile(filepath.Join(out[f], "manifest.json"))
 		json.Unmarshal(b, &m)
 		if m.Grid.BBox != ref.BBox || m.Grid.LonFrame != ref.LonFrame {

@@ -9,11 +9,11 @@ import (
 	"strings"
 
 	"swellgrid/export"
+	"swellgrid/export/contract"
 	"swellgrid/grid"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/lock"
 	"swellgrid/pipelines/runspec"
-	"swellgrid/pipelines/screening"
 	"swellgrid/pipelines/tables"
 )
 
@@ -127,8 +127,8 @@ type Manifest struct {
 	ProductWarnings []string `json:"product_warnings,omitempty"`
 	// Screening: the constraint files and the scenarios' summaries
 	// (also in screening.json).
-	Screening *screening.Summary `json:"screening,omitempty"`
-	Timings   map[string]float64 `json:"timings_s,omitempty"`
+	Screening *contract.ScreeningSummary `json:"screening,omitempty"`
+	Timings   map[string]float64         `json:"timings_s,omitempty"`
 }
 
 // ManifestInput is one input file.
@@ -143,11 +143,11 @@ type ManifestInput struct {
 
 // ManifestGrid describes the grid.
 type ManifestGrid struct {
-	Kind   string `json:"kind"`
-	NY, NX int    `json:"-"`
-	Shape  [2]int `json:"shape_ny_nx"`
-	Cells  int    `json:"cells"`
-	Masked int    `json:"masked_cells"`
+	Kind   grid.Kind `json:"kind"`
+	NY, NX int       `json:"-"`
+	Shape  [2]int    `json:"shape_ny_nx"`
+	Cells  int       `json:"cells"`
+	Masked int       `json:"masked_cells"`
 	// BBox is the true extent as an RFC 7946 bounding box (section 5):
 	// west, south, east, north, west > east for a grid across 180 degrees.
 	BBox [4]float64 `json:"bbox_lon_lat"`
@@ -181,7 +181,7 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 		}
 	}
 	a, b, cc, d := c.Grid.Bounds()
-	m.Grid = ManifestGrid{Kind: c.Grid.Kind.String(), Shape: [2]int{c.Grid.NY, c.Grid.NX}, Cells: c.Grid.NCells(), Masked: masked, BBox: [4]float64{a, b, cc, d}, LonFrame: c.Grid.Frame().String()}
+	m.Grid = ManifestGrid{Kind: c.Grid.Kind, Shape: [2]int{c.Grid.NY, c.Grid.NX}, Cells: c.Grid.NCells(), Masked: masked, BBox: [4]float64{a, b, cc, d}, LonFrame: c.Grid.Frame().String()}
 	m.Assumptions = []string{fmt.Sprintf("water density %g kg/m3, gravity %g m/s2", e.spec.Physics.Rho, e.spec.Physics.G)}
 	if !e.spectral {
 		m.Assumptions = append(m.Assumptions, "wave power from bulk Hm0 and Te with linear-theory group velocity at the cell depth (deep water where the depth is unknown or the deep-water assumption is chosen)")

@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"swellgrid/export"
+	"swellgrid/export/contract"
 	"swellgrid/pipelines/screening"
 	"swellgrid/pipelines/tables"
 	"swellgrid/stats/climate"
@@ -77,7 +78,7 @@ var cellsSchema = []tables.Column[*cellRow]{
 		func(c *cellRow) float64 { return c.e.cat.Grid.Lon[c.id] }),
 	tables.F64("lat", "degree_north", "latitude", "", "cell latitude, WGS 84",
 		func(c *cellRow) float64 { return c.e.cat.Grid.Lat[c.id] }),
-	tables.F64("depth_m", "m", tables.CFDepth, "", "water depth used for group velocity (null: deep-water assumption or unknown)",
+	tables.F64(contract.ColDepth, "m", tables.CFDepth, "", "water depth used for group velocity (null: deep-water assumption or unknown)",
 		func(c *cellRow) float64 {
 			if d := c.e.cat.Depth[c.id]; !math.IsInf(d, 1) {
 				return d
@@ -86,9 +87,9 @@ var cellsSchema = []tables.Column[*cellRow]{
 		}),
 	tables.I64("steps", "1", "", "", "time steps read for the cell",
 		func(c *cellRow) int64 { return int64(c.r.sum.Steps) }).When(nullNoCell),
-	tables.F64("coverage", "1", "", "", "share of the record's time with a valid wave power",
+	tables.F64(contract.ColCoverage, "1", "", "", "share of the record's time with a valid wave power",
 		func(c *cellRow) float64 { return c.r.sum.CoverageFrac }).When(nullNoData),
-	tables.F64("power_mean_kw_m", "kW/m", "", "time: mean", "mean omnidirectional wave power J",
+	tables.F64(contract.ColPowerMean, "kW/m", "", "time: mean", "mean omnidirectional wave power J",
 		func(c *cellRow) float64 { return c.r.sum.PowerMeanKWm }).When(nullNoData),
 	tables.F64("power_std_kw_m", "kW/m", "", "time: standard_deviation", "standard deviation of J",
 		func(c *cellRow) float64 { return c.r.sum.PowerStdKWm }).When(nullNoData),
@@ -98,7 +99,7 @@ var cellsSchema = []tables.Column[*cellRow]{
 		func(c *cellRow) float64 { return c.r.sum.PowerMaxKWm }).When(nullNoData),
 	tables.F64("power_p<P>_kw_m", "kW/m", "", "", "<P> th percentile of J (histogram, resolution stated in the manifest)",
 		func(c *cellRow) float64 { return c.r.sum.PowerPercentilesKWm[c.k] }).When(nullNoData).Per(tables.ParamPercentile),
-	tables.F64("hm0_mean_m", "m", tables.CFHm0, "time: mean", "mean significant wave height Hm0",
+	tables.F64(contract.ColHm0Mean, "m", tables.CFHm0, "time: mean", "mean significant wave height Hm0",
 		func(c *cellRow) float64 { return c.r.sum.Hm0MeanM }).When(nullNoData),
 	tables.F64("hm0_p<P>_m", "m", "", "", "<P> th percentile of Hm0 (histogram bins of <bin> m)",
 		func(c *cellRow) float64 { return c.r.sum.Hm0PercentilesM[c.k] }).When(nullNoData).Per(tables.ParamPercentile),
@@ -116,7 +117,7 @@ var cellsSchema = []tables.Column[*cellRow]{
 		func(c *cellRow) float64 { return c.r.direct }).When(nullNoData),
 	tables.F64("width_mean", "1", "", "", "mean spectral width eps0 (spectra only)",
 		func(c *cellRow) float64 { return c.r.width }).When(nullNoData),
-	tables.F64("mvi", "1", "", "", "monthly variability index: (most - least energetic calendar month mean J) / annual mean J",
+	tables.F64(contract.ColMVI, "1", "", "", "monthly variability index: (most - least energetic calendar month mean J) / annual mean J",
 		func(c *cellRow) float64 { return c.r.sum.MVI }).When(nullNoData),
 	tables.F64("svi", "1", "", "", "seasonal variability index: (most - least energetic season mean J) / annual mean J",
 		func(c *cellRow) float64 { return c.r.sum.SVI }).When(nullNoData),
@@ -178,7 +179,7 @@ var cellsSchema = []tables.Column[*cellRow]{
 		func(c *cellRow) int64 { return int64(c.r.sum.InvalidValues) }).When(nullNoCell),
 	tables.I64("rejected_steps", "1", "", "", "time steps that could not be placed in the calendar, left out",
 		func(c *cellRow) int64 { return int64(c.r.sum.RejectedSteps) }).When(nullNoCell),
-	tables.Str("qc_flags", "", "comma-separated quality flags (see README)",
+	tables.Str(contract.ColQCFlags, "", "comma-separated quality flags (see README)",
 		func(c *cellRow) string { return strings.Join(c.e.cellFlags(c.id, c.r), ",") }),
 }
 
@@ -232,14 +233,14 @@ var monthlySchema = []tables.Column[mRow]{
 			}
 			return int64(x.v.m.Month)
 		}),
-	tables.F64("power_mean_kw_m", "kW/m", "", "time: mean", "mean wave power",
+	tables.F64(contract.ColPowerMean, "kW/m", "", "time: mean", "mean wave power",
 		func(x mRow) float64 {
 			if x.v.s != nil {
 				return x.v.s.PowerMeanKWm
 			}
 			return x.v.m.PowerMeanKWm
 		}),
-	tables.F64("hm0_mean_m", "m", tables.CFHm0, "time: mean", "mean Hm0",
+	tables.F64(contract.ColHm0Mean, "m", tables.CFHm0, "time: mean", "mean Hm0",
 		func(x mRow) float64 {
 			if x.v.s != nil {
 				return x.v.s.Hm0MeanM
@@ -253,7 +254,7 @@ var monthlySchema = []tables.Column[mRow]{
 			}
 			return x.v.m.ValidHours
 		}),
-	tables.F64("coverage", "1", "", "", "year-month: valid share of the month (0: no data; every year-month of the record has a row); climatology: share of year-months included",
+	tables.F64(contract.ColCoverage, "1", "", "", "year-month: valid share of the month (0: no data; every year-month of the record has a row); climatology: share of year-months included",
 		func(x mRow) float64 {
 			if x.v.s != nil {
 				return math.NaN()
@@ -286,7 +287,7 @@ var scatterSchema = []tables.Column[sRow]{
 	tables.F64("te_hi_s", "s", "", "", "Te bin upper edge (null: open bin)", func(x sRow) float64 { return openEdge(x.v.TeHiS) }),
 	tables.F64("hours", "h", "", "", "time in the bin", func(x sRow) float64 { return x.v.Hours }),
 	tables.F64("time_share", "1", "", "", "share of the table's time", func(x sRow) float64 { return x.v.TimeShare }),
-	tables.F64("power_mean_kw_m", "kW/m", "", "time: mean", "mean wave power in the bin", func(x sRow) float64 { return x.v.PowerMeanKWm }),
+	tables.F64(contract.ColPowerMean, "kW/m", "", "time: mean", "mean wave power in the bin", func(x sRow) float64 { return x.v.PowerMeanKWm }),
 }
 
 // openEdge writes the +Inf upper edge of an open bin as null, as the
@@ -349,7 +350,7 @@ var extremesSchema = []tables.Column[eRow]{
 	tables.F64("scale_m", "m", "", "", "scale", func(x eRow) float64 { return x.v.m.Scale }),
 	tables.F64("shape", "1", "", "", "shape, Coles (2001) sign", func(x eRow) float64 { return x.v.m.Shape }),
 	tables.I64("n", "1", "", "", "maxima or exceedances fitted", func(x eRow) int64 { return int64(x.v.m.N) }),
-	tables.Str("qc_flags", "", "flags of the level (why it is null, or what is flagged about it) and of its fit", func(x eRow) string {
+	tables.Str(contract.ColQCFlags, "", "flags of the level (why it is null, or what is flagged about it) and of its fit", func(x eRow) string {
 		return strings.Join((x.v.m.Flags&^extremes.Withheld | x.v.l.Flags).Names(), ",")
 	}),
 }
@@ -642,7 +643,7 @@ var directionsSchema = []tables.Column[dirRow]{
 	tables.F64("sector_to_deg", "degree", "", "", "clockwise end of the sector (excluded)", func(x dirRow) float64 { return x.v.ToDeg }),
 	tables.F64("power_share", "1", "", "", "share of the record's wave energy arriving from the sector", func(x dirRow) float64 { return x.v.PowerShare }),
 	tables.F64("occurrence_share", "1", "", "", "share of the time whose mean wave direction lies in the sector", func(x dirRow) float64 { return x.v.OccurrenceShare }),
-	tables.F64("power_mean_kw_m", "kW/m", "", "time: mean", "time-mean wave power arriving from the sector (the sectors sum to the mean power of the steps with a direction)", func(x dirRow) float64 { return x.v.PowerMeanKWm }),
+	tables.F64(contract.ColPowerMean, "kW/m", "", "time: mean", "time-mean wave power arriving from the sector (the sectors sum to the mean power of the steps with a direction)", func(x dirRow) float64 { return x.v.PowerMeanKWm }),
 	tables.F64("occurrence_hours", "h", "", "", "time whose mean wave direction lies in the sector", func(x dirRow) float64 { return x.v.OccurrenceHours }),
 }
 
@@ -672,7 +673,7 @@ var annualSchema = []tables.Column[aRow]{
 			}
 			return x.v.sum.Devices[x.v.dev].Name
 		}),
-	tables.F64("power_mean_kw_m", "kW/m", "", "time: mean", "resource row: duration-weighted mean wave power of the year (null on device rows)",
+	tables.F64(contract.ColPowerMean, "kW/m", "", "time: mean", "resource row: duration-weighted mean wave power of the year (null on device rows)",
 		func(x aRow) float64 {
 			if x.v.dev >= 0 {
 				return math.NaN()

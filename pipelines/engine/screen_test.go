@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"swellgrid/export"
+	"swellgrid/export/contract"
 	"swellgrid/internal/parquetread"
 	"swellgrid/pipelines/fault"
 	"swellgrid/pipelines/screening"
@@ -115,7 +116,7 @@ func TestScreeningSummaryByHand(t *testing.T) {
 			energy += a * 2 * 100 * power[id] / 1000
 		}
 	}
-	var sum screening.Summary
+	var sum contract.ScreeningSummary
 	sb, err := os.ReadFile(filepath.Join(dir, screening.File))
 	if err != nil {
 		t.Fatal(err)

@@ -8,7 +8,7 @@ type DepthSource string
 
 // Depth sources.
 const (
-	DepthFromFile   DepthSource = "file"       // a variable with standard_name sea_floor_depth_below_sea_surface
+	depthFromFile   DepthSource = "file"       // a variable with standard_name sea_floor_depth_below_sea_surface
 	DepthConstant   DepthSource = "constant"   // depth.constant_m everywhere
 	DepthBathymetry DepthSource = "bathymetry" // a separate file (depth.bathymetry_file)
 	DepthDeepWater  DepthSource = "deep-water" // the deep-water assumption
@@ -20,26 +20,26 @@ type ThresholdRule string
 
 // Threshold rules.
 const (
-	ThresholdByQuantile     ThresholdRule = "quantile"       // a quantile of the cell's Hm0
-	ThresholdByPeaksPerYear ThresholdRule = "peaks_per_year" // a target number of storm peaks a year
+	thresholdByQuantile     ThresholdRule = "quantile"       // a quantile of the cell's Hm0
+	thresholdByPeaksPerYear ThresholdRule = "peaks_per_year" // a target number of storm peaks a year
 )
 
 // Lookup is device.lookup: how a power matrix is read between its bins.
 type Lookup string
 
-// Power-matrix lookups ("" is LookupBin).
+// Power-matrix lookups ("" is lookupBin).
 const (
-	LookupBin      Lookup = "bin"
-	LookupBilinear Lookup = "bilinear"
+	lookupBin      Lookup = "bin"
+	lookupBilinear Lookup = "bilinear"
 )
 
 // MatrixPeriod is device.period: the period of a power matrix's columns.
 type MatrixPeriod string
 
-// Matrix periods ("" is PeriodTe).
+// Matrix periods ("" is periodTe).
 const (
-	PeriodTe MatrixPeriod = "te"
-	PeriodTp MatrixPeriod = "tp"
+	periodTe MatrixPeriod = "te"
+	periodTp MatrixPeriod = "tp"
 )
 
 // DuplicateSteps is input.duplicate_steps: which file's values a time held
@@ -49,7 +49,7 @@ type DuplicateSteps string
 // Duplicate-step policies.
 const (
 	DuplicatesRefused DuplicateSteps = ""      // identical values used once, different values refused
-	DuplicatesFirst   DuplicateSteps = "first" // the earlier file's
+	duplicatesFirst   DuplicateSteps = "first" // the earlier file's
 	DuplicatesLast    DuplicateSteps = "last"  // the later file's
 )
 
@@ -58,7 +58,7 @@ type StationPlace string
 
 // Station places.
 const (
-	PlaceNearest  StationPlace = "nearest"  // the nearest sea cell
+	placeNearest  StationPlace = "nearest"  // the nearest sea cell
 	PlaceBilinear StationPlace = "bilinear" // the four cells around the station (regular grids)
 )
 
@@ -67,6 +67,6 @@ type TimeMatch string
 
 // Time matches.
 const (
-	TimeNearest     TimeMatch = "nearest"     // the nearest step within max_time_diff_min
+	timeNearest     TimeMatch = "nearest"     // the nearest step within max_time_diff_min
 	TimeInterpolate TimeMatch = "interpolate" // linear between the two steps around it
 )

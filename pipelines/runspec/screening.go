@@ -21,6 +21,7 @@ import (
 	"github.com/paulmach/orb/geojson"
 	_ "modernc.org/sqlite"
 
+	"swellgrid/export/contract"
 	"swellgrid/grid"
 	"swellgrid/pipelines/fault"
 )
@@ -61,11 +62,7 @@ type ScenarioSpec struct {
 
 // DistanceRule bounds the geodesic distance from a cell's centre to the
 // nearest feature of a layer: at least MinKm, at most MaxKm (0: no bound).
-type DistanceRule struct {
-	Layer string  `toml:"layer" json:"layer"`
-	MinKm float64 `toml:"min_km" json:"min_km,omitempty"`
-	MaxKm float64 `toml:"max_km" json:"max_km,omitempty"`
-}
+type DistanceRule = contract.DistanceRule
 
 // ScreenLayer is a layer read and validated: its geometries and checksum.
 type ScreenLayer struct {

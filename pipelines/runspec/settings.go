@@ -135,7 +135,7 @@ func (r *Resolved) ClimateConfig(cat *ingest.Catalog) (*climate.Config, error) {
 		if err != nil {
 			return nil, fmt.Errorf("device %s: power matrix %s: %w", d.Name, d.PowerMatrix, err)
 		}
-		if d.Lookup == LookupBilinear {
+		if d.Lookup == lookupBilinear {
 			dev.Lookup = climate.Bilinear
 		}
 		if err := s.devicePeriod(dev, d, cat); err != nil {
@@ -155,7 +155,7 @@ func (r *Resolved) ClimateConfig(cat *ingest.Catalog) (*climate.Config, error) {
 // is supplied per cell in engine.finish).
 func (s *Spec) AnalysisConfig() extremes.AnalysisConfig {
 	rule := extremes.ThresholdPeaksPerYear
-	if s.Extremes.ThresholdRule == ThresholdByQuantile {
+	if s.Extremes.ThresholdRule == thresholdByQuantile {
 		rule = extremes.ThresholdQuantile
 	}
 	a := extremes.AnalysisConfig{ReturnPeriods: s.Extremes.ReturnPeriodsY, MinYears: s.Extremes.MinYears,

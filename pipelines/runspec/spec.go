@@ -15,6 +15,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"swellgrid/export/contract"
 	atlasreport "swellgrid/export/report"
 
 	"github.com/BurntSushi/toml"
@@ -192,26 +193,26 @@ type UncertaintySpec struct {
 	ModelFrac float64 `toml:"model_frac" json:"model_frac"`
 }
 
-// DefaultModelFrac is uncertainty.model_frac by default: an assumed 10 %
+// defaultModelFrac is uncertainty.model_frac by default: an assumed 10 %
 // relative standard uncertainty of a hindcast's mean device energy, a round
 // screening figure (an assumption of this project, not from a source).
-const DefaultModelFrac = 0.10
+const defaultModelFrac = 0.10
 
 // DefaultSpec is the spec of the common case.
 func DefaultSpec() *Spec {
 	return &Spec{
 		Roles: map[string]string{}, Units: map[string]string{},
-		Depth:   DepthSpec{Source: DepthFromFile},
+		Depth:   DepthSpec{Source: depthFromFile},
 		Physics: PhysicsSpec{Rho: 1025, G: 9.81, TeOverTp: 0.9},
 		Statistics: StatisticsSpec{Hm0BinM: 0.05, Percentiles: []float64{10, 50, 90, 99}, ScatterHm0BinM: 0.5, ScatterTeBinS: 1,
 			WindowLimitsM: []float64{1.5, 2.0, 2.5}, WindowDurationsH: []float64{6, 12, 24, 48}, CoverageMin: 0.8,
 			DirectionSectors: climate.DefaultDirectionSectors},
 		Extremes: ExtremesSpec{ReturnPeriodsY: []float64{1, 5, 10, 25, 50, 100}, YearStartMonth: 1, SeparationH: 48,
-			ThresholdRule: ThresholdByQuantile, ThresholdQuantile: 0.99, PeaksPerYear: 5, MinYears: 10, Seed: 1,
+			ThresholdRule: thresholdByQuantile, ThresholdQuantile: 0.99, PeaksPerYear: 5, MinYears: 10, Seed: 1,
 			MinPeaks: 20, ShapeRange: []float64{-0.5, 0.5}, MaxExtrapolation: 4, BreakingRatio: 0.6},
 		Design:      DesignSpec{Enabled: true, ReturnPeriodsY: []float64{1, 10, 50, 100}, ContourPoints: 36},
-		Uncertainty: UncertaintySpec{HorizonsY: []float64{1, 10}, ModelFrac: DefaultModelFrac},
-		Contours:    ContourSpec{Columns: []string{"power_mean_kw_m", "hm0_mean_m", "hm0_rl100y_m"}, Levels: map[string][]float64{}},
+		Uncertainty: UncertaintySpec{HorizonsY: []float64{1, 10}, ModelFrac: defaultModelFrac},
+		Contours:    ContourSpec{Columns: []string{contract.ColPowerMean, contract.ColHm0Mean, contract.Hm0ReturnLevelColumn(100)}, Levels: map[string][]float64{}},
 		Output:      OutputSpec{Dir: "swellgrid-out", Report: true, NetCDF: true, GeoPackage: true},
 		Run:         RunSpec{MemoryLimit: "2GiB", BlockSteps: 64, CheckpointEveryS: 60},
 	}
@@ -279,7 +280,7 @@ func (s *Spec) Validate() error {
 		return fmt.Errorf("spec: no input: give input.paths in the spec or --input")
 	}
 	switch s.Input.DuplicateSteps {
-	case DuplicatesRefused, DuplicatesFirst, DuplicatesLast:
+	case DuplicatesRefused, duplicatesFirst, DuplicatesLast:
 	default:
 		return bad("input.duplicate_steps", `must be "first" (the earlier file's values) or "last" (the later file's), or absent (different values refused)`, strconv.Quote(string(s.Input.DuplicateSteps)))
 	}
@@ -289,7 +290,7 @@ func (s *Spec) Validate() error {
 		return bad("input.direction_convention_force", "needs input.direction_convention: say which convention wins over the files' attributes", true)
 	}
 	switch s.Depth.Source {
-	case DepthFromFile, DepthDeepWater:
+	case depthFromFile, DepthDeepWater:
 	case DepthConstant:
 		if !(s.Depth.ConstantM > 0) || math.IsInf(s.Depth.ConstantM, 0) {
 			return bad("depth.constant_m", "must be a positive depth in metres", s.Depth.ConstantM)
@@ -358,11 +359,11 @@ func (s *Spec) Validate() error {
 		return bad("extremes.separation_h", "must be a positive number of hours below 60 days", ex.SeparationH)
 	}
 	switch ex.ThresholdRule {
-	case ThresholdByQuantile:
+	case thresholdByQuantile:
 		if !(ex.ThresholdQuantile > 0.5 && ex.ThresholdQuantile < 1) {
 			return bad("extremes.threshold_quantile", "must lie in (0.5, 1)", ex.ThresholdQuantile)
 		}
-	case ThresholdByPeaksPerYear:
+	case thresholdByPeaksPerYear:
 		if !(ex.PeaksPerYear > 0 && ex.PeaksPerYear <= 50) {
 			return bad("extremes.peaks_per_year", "must lie in (0, 50]", ex.PeaksPerYear)
 		}
@@ -420,10 +421,10 @@ func (s *Spec) Validate() error {
 			return bad(key+".name", "appears twice", d.Name)
 		}
 		names[d.Name] = true
-		if d.Lookup != "" && d.Lookup != LookupBin && d.Lookup != LookupBilinear {
+		if d.Lookup != "" && d.Lookup != lookupBin && d.Lookup != lookupBilinear {
 			return bad(key+".lookup", `must be "bin" or "bilinear"`, strconv.Quote(string(d.Lookup)))
 		}
-		if d.Period != "" && d.Period != PeriodTe && d.Period != PeriodTp {
+		if d.Period != "" && d.Period != periodTe && d.Period != periodTp {
 			return bad(key+".period", `must be "te" (energy period) or "tp" (peak period)`, strconv.Quote(string(d.Period)))
 		}
 		if !(d.RatedKW >= 0 && d.RatedKW < 1<<30) {

@@ -36,7 +36,7 @@ type ValidationSpec struct {
 
 // DefaultValidation is the [validation] section of the common case.
 func DefaultValidation() ValidationSpec {
-	return ValidationSpec{MaxDistanceKm: 25, Location: PlaceNearest, MaxTimeDiffMin: 30, Time: TimeNearest, StormPercentile: 95, PlotDays: 30}
+	return ValidationSpec{MaxDistanceKm: 25, Location: placeNearest, MaxTimeDiffMin: 30, Time: timeNearest, StormPercentile: 95, PlotDays: 30}
 }
 
 // WithDefaults fills the keys a spec leaves out.
@@ -79,11 +79,11 @@ func (v *ValidationSpec) Check() error {
 	switch {
 	case !(o.MaxDistanceKm > 0 && o.MaxDistanceKm <= 500):
 		return bad("max_distance_km", "must be a distance in km, 0 < d <= 500", o.MaxDistanceKm)
-	case o.Location != PlaceNearest && o.Location != PlaceBilinear:
+	case o.Location != placeNearest && o.Location != PlaceBilinear:
 		return bad("location", `must be "nearest" or "bilinear"`, strconv.Quote(string(o.Location)))
 	case !(o.MaxTimeDiffMin > 0 && o.MaxTimeDiffMin <= 1440):
 		return bad("max_time_diff_min", "must be minutes, 0 < m <= 1440", o.MaxTimeDiffMin)
-	case o.Time != TimeNearest && o.Time != TimeInterpolate:
+	case o.Time != timeNearest && o.Time != TimeInterpolate:
 		return bad("time", `must be "nearest" or "interpolate"`, strconv.Quote(string(o.Time)))
 	case !(o.StormPercentile >= 50 && o.StormPercentile < 100):
 		return bad("storm_percentile", "must be a percentile, 50 <= p < 100", o.StormPercentile)

@@ -17,6 +17,7 @@ import (
 	"github.com/paulmach/orb"
 
 	"swellgrid/export"
+	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
 	"swellgrid/pipelines/fault"
@@ -27,7 +28,7 @@ import (
 )
 
 // File is the summary written beside the manifest.
-const File = "screening.json"
+const File = contract.ScreeningFile
 
 // Note goes with every screening summary and its help: what the
 // screening does not know.
@@ -63,55 +64,6 @@ var screeningSchema = []tables.Column[*screenRow]{
 // ParamLayer is the screening layer a distance column is repeated over.
 const ParamLayer tables.Param = "layer"
 
-// ScenarioSummary is one scenario's result in screening.json and the manifest.
-type ScenarioSummary struct {
-	Name     string                 `json:"name"`
-	Criteria []string               `json:"criteria"`
-	Exclude  []string               `json:"exclude,omitempty"`
-	Within   []string               `json:"within,omitempty"`
-	Distance []runspec.DistanceRule `json:"distance,omitempty"`
-	Cells    int                    `json:"cells_passing"`
-	// AreaKm2 is the passing cells' area (null: a point set).
-	AreaKm2 *float64 `json:"area_km2"`
-	// Area-weighted mean, least and largest power_mean_kw_m of the passing
-	// cells (null: none passes).
-	PowerMeanKWm *float64 `json:"power_mean_kw_m"`
-	PowerMinKWm  *float64 `json:"power_min_kw_m"`
-	PowerMaxKWm  *float64 `json:"power_max_kw_m"`
-	// ResourceMWhPerMYr is the mean incident wave energy per metre of crest
-	// and year: PowerMeanKWm x 8766 h / 1000 (8766 h = 365.25 days).
-	ResourceMWhPerMYr *float64 `json:"resource_mwh_per_m_yr"`
-	// Layout: Device at DevicesPerKm2 over the passing area; Devices is
-	// sum(area_km2) x density, AnnualEnergyGWh sum(area_km2 x density x
-	// aep_<device>_mwh) / 1000 over passing cells with an AEP (those without
-	// are counted in CellsWithoutAEP and add nothing).
-	Device          string   `json:"device,omitempty"`
-	DevicesPerKm2   float64  `json:"devices_per_km2,omitempty"`
-	Devices         *float64 `json:"devices,omitempty"`
-	AnnualEnergyGWh *float64 `json:"annual_energy_gwh,omitempty"`
-	CellsWithoutAEP int      `json:"cells_without_aep,omitempty"`
-	// Polygons is contours/screening_<name>.geojson (structured grids).
-	Polygons string `json:"polygons,omitempty"`
-}
-
-// Summary is screening.json, and the manifest's "screening".
-type Summary struct {
-	Caution   string            `json:"caution"`
-	Note      string            `json:"note"`
-	Method    string            `json:"method"`
-	Layers    []Layer           `json:"layers"`
-	Scenarios []ScenarioSummary `json:"scenarios"`
-}
-
-// Layer is a constraint file as used: path, table, checksum, size.
-type Layer struct {
-	Name     string `json:"name"`
-	Path     string `json:"path"`
-	Table    string `json:"table,omitempty"`
-	SHA256   string `json:"sha256"`
-	Features int    `json:"features"`
-}
-
 const screeningMethod = "criteria on cells.parquet columns (a missing value fails); a cell is in a polygon layer when its centre is " +
 	"inside or on the boundary of a polygon (planar in lon/lat, RFC 7946 edges); distances are geodesics on WGS 84 (Vincenty 1975) " +
 	"from the cell centre to the nearest point of the layer's features; cell areas on the WGS 84 ellipsoid from the grid's cell edges " +
@@ -121,19 +73,17 @@ const screeningMethod = "criteria on cells.parquet columns (a missing value fail
 type screenResult struct {
 	rows       []*screenRow
 	distLayers []string // layers with a distance column, in spec order
-	summary    *Summary
+	summary    *contract.ScreeningSummary
 	polys      map[string]orb.MultiPolygon // passing outline per scenario (structured grids)
 }
 
 // runGrid rebuilds the grid geometry of a finished run from cells.parquet.
 func runGrid(r *rundir.Run) *grid.Grid {
 	g := &grid.Grid{NX: r.NX, NY: r.NY, Lon: r.Lon(), Lat: r.Lat()}
-	switch r.Kind {
-	case "regular":
-		g.Kind = grid.Regular
-	case "curvilinear":
-		g.Kind = grid.Curvilinear
-	default:
+	switch r.GridKind {
+	case grid.Regular, grid.Curvilinear:
+		g.Kind = r.GridKind
+	default: // points, and a mesh's nodes or faces
 		g.Kind = grid.Points
 	}
 	return g
@@ -154,9 +104,9 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 		}
 	}
 	res := &screenResult{polys: map[string]orb.MultiPolygon{}}
-	sum := &Summary{Caution: tables.Caution, Note: Note, Method: screeningMethod}
+	sum := &contract.ScreeningSummary{Caution: tables.Caution, Note: Note, Method: screeningMethod}
 	for _, l := range s.Layers {
-		sum.Layers = append(sum.Layers, Layer{Name: l.Name, Path: l.File, Table: l.Table, SHA256: l.SHA256, Features: len(l.Geoms)})
+		sum.Layers = append(sum.Layers, contract.ScreeningLayer{Name: l.Name, Path: l.File, Table: l.Table, SHA256: l.SHA256, Features: len(l.Geoms)})
 	}
 	// distances, once per layer used in a distance rule
 	distIdx := map[string]int{}
@@ -216,11 +166,11 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 			}
 			crits[k] = append(crits[k], cr)
 		}
-		if c.Device != "" && r.Cells.Col("aep_"+c.Device+"_mwh") == nil {
+		if c.Device != "" && r.Cells.Col(contract.AEPColumn(c.Device)) == nil {
 			return nil, fault.Input(fmt.Errorf("screening: scenario %s: device %q: the run has no column aep_%s_mwh; name a [[device]] of the run", c.Name, c.Device, c.Device))
 		}
 	}
-	power := r.Cells.Col("power_mean_kw_m")
+	power := r.Cells.Col(contract.ColPowerMean)
 	passes := make([][]bool, len(sc.Scenarios))
 	for k := range passes {
 		passes[k] = make([]bool, n)
@@ -272,10 +222,10 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 	}
 	corners, structured := grid.CellCorners(g)
 	for k, c := range sc.Scenarios {
-		ss := summarise(c, passes[k], areaKm2, areas != nil, power, r.Cells.Col("aep_"+c.Device+"_mwh"))
+		ss := summarise(c, passes[k], areaKm2, areas != nil, power, r.Cells.Col(contract.AEPColumn(c.Device)))
 		if structured {
 			res.polys[c.Name] = grid.Dissolve(corners, passes[k], g.Kind == grid.Regular)
-			ss.Polygons = filepath.ToSlash(filepath.Join(export.ContourDir, "screening_"+c.Name+".geojson"))
+			ss.Polygons = filepath.ToSlash(filepath.Join(contract.ContourDir, contract.ScreeningOutlineFile(c.Name)))
 		}
 		sum.Scenarios = append(sum.Scenarios, ss)
 	}
@@ -295,8 +245,8 @@ func fptr(v float64) *float64 {
 // cells with a power (a point set, without areas: the plain mean); the
 // layout's devices rho sum a_i and annual energy rho sum(a_i AEP_i) / 1000
 // (GWh/yr; no array interaction, availability or transmission losses).
-func summarise(c runspec.ScenarioSpec, pass []bool, areaKm2 []float64, hasArea bool, power, aep *rundir.Column) ScenarioSummary {
-	s := ScenarioSummary{Name: c.Name, Exclude: c.Exclude, Within: c.Within, Distance: c.Distance, Device: c.Device, DevicesPerKm2: c.DevicesPerKm2}
+func summarise(c runspec.ScenarioSpec, pass []bool, areaKm2 []float64, hasArea bool, power, aep *rundir.Column) contract.ScenarioSummary {
+	s := contract.ScenarioSummary{Name: c.Name, Exclude: c.Exclude, Within: c.Within, Distance: c.Distance, Device: c.Device, DevicesPerKm2: c.DevicesPerKm2}
 	for _, t := range c.Criteria {
 		cr, _ := runspec.ParseCriterion(t)
 		s.Criteria = append(s.Criteria, cr.Text)
@@ -583,7 +533,7 @@ func Schema() []tables.ColumnSpec { return tables.SpecsOf("screening.parquet", s
 // screening.parquet, screening.json and the passing areas' outlines into
 // r.Dir. It returns the files written (relative to r.Dir) and the summary
 // for the manifest.
-func Apply(r *rundir.Run, s *runspec.Resolved) ([]string, *Summary, error) {
+func Apply(r *rundir.Run, s *runspec.Resolved) ([]string, *contract.ScreeningSummary, error) {
 	res, err := screenRun(r, s)
 	if err != nil {
 		return nil, nil, err
