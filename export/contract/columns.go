@@ -50,3 +50,39 @@ func AEPColumn(device string) string { return "aep_" + device + "_mwh" }
 // CapacityFactorColumn is cells.parquet's capacity factor of a device:
 // cf_<device>.
 func CapacityFactorColumn(device string) string { return "cf_" + device }
+
+// ColumnType is the Parquet (Arrow) type of a column.
+type ColumnType string
+
+// Column types.
+const (
+	TypeFloat64 ColumnType = "double"
+	TypeInt64   ColumnType = "int64"
+	TypeString  ColumnType = "string"
+	TypeBool    ColumnType = "boolean"
+)
+
+// Param is the run parameter a column pattern is repeated over.
+type Param string
+
+// Parameters of column patterns.
+const (
+	NoParam         Param = ""
+	ParamPercentile Param = "P"      // statistics.percentiles
+	ParamPeriod     Param = "T"      // extremes.return_periods_y
+	ParamDevice     Param = "device" // [[device]] name
+	ParamDesign     Param = "TD"     // design.return_periods_y
+)
+
+// ColumnSpec describes one column, or one family of columns when Name is a
+// pattern: what the Parquet metadata, the manifest and the README say about it.
+type ColumnSpec struct {
+	File         string     `json:"file"`
+	Name         string     `json:"name"`
+	Param        Param      `json:"param,omitempty"`
+	Type         ColumnType `json:"type"`
+	Unit         string     `json:"unit"`
+	StandardName string     `json:"standard_name,omitempty"` // CF standard name, where one exists
+	CellMethods  string     `json:"cell_methods,omitempty"`  // CF cell_methods, where they apply
+	Doc          string     `json:"doc"`
+}

@@ -5,78 +5,82 @@ import (
 	"fmt"
 
 	"swellgrid/grid"
+	"swellgrid/ingest"
 )
 
-// Manifest is the part of manifest.json the products read back; Raw keeps
-// the whole document.
-type Manifest struct {
-	Software    string             `json:"software"`
-	Version     string             `json:"version"`
-	Caution     string             `json:"caution"`
-	Inputs      []Input            `json:"inputs"`
-	Calendar    string             `json:"calendar"`
-	Start       string             `json:"time_start"`
-	End         string             `json:"time_end"`
-	Steps       int                `json:"steps"`
-	StepSeconds int64              `json:"step_seconds"`
-	Segments    []Segment          `json:"time_segments"`
-	CovHours    float64            `json:"covered_hours"`
-	Gaps        []Gap              `json:"gaps"`
-	Duplicates  []Duplicate        `json:"duplicate_steps"`
-	Grid        Grid               `json:"grid"`
-	DepthSource string             `json:"depth_source"`
-	Assumptions []string           `json:"assumptions"`
-	Warnings    []string           `json:"warnings"`
-	Parameters  Parameters         `json:"parameters"`
-	Timings     map[string]float64 `json:"timings_s"` // seconds per stage
-	Raw         json.RawMessage    `json:"-"`
+// Document is manifest.json, declared once for its writer and its
+// readers: P is how the recorded spec is held (the run engine writes its
+// whole spec, P = *runspec.Spec; a reader takes the part the products use,
+// P = Parameters: Manifest). Field order is the document's (encoding/json
+// writes fields in declaration order).
+type Document[P any] struct {
+	Software    string  `json:"software"`
+	Version     string  `json:"version"`
+	Caution     string  `json:"caution"`
+	Inputs      []Input `json:"inputs"`
+	Calendar    string  `json:"calendar"`
+	Start       string  `json:"time_start"`
+	End         string  `json:"time_end"`
+	Steps       int     `json:"steps"`
+	StepSeconds int64   `json:"step_seconds"`
+	// Segments are the stretches of one step duration (or irregular), and
+	// CoveredHours the time the steps stand for (ingest/timeaxis.go).
+	Segments     []ingest.Segment `json:"time_segments"`
+	CoveredHours float64          `json:"covered_hours"`
+	// StepDurations identifies the durations the steps were weighted by
+	// (an update checks that the earlier steps keep them).
+	StepDurations ingest.Durations `json:"step_durations"`
+	Gaps          []ingest.Gap     `json:"gaps"`
+	// Duplicates are the times held by two files of a role, each read once.
+	Duplicates  []ingest.Duplicate              `json:"duplicate_steps,omitempty"`
+	RoleGaps    []ingest.Gap                    `json:"role_gaps,omitempty"` // steps with no file for one role (one variable per file)
+	Grid        Grid                            `json:"grid"`
+	Roles       map[ingest.Role]*ingest.VarInfo `json:"roles"`
+	DepthSource string                          `json:"depth_source"`
+	Assumptions []string                        `json:"assumptions"`
+	Parameters  P                               `json:"parameters"`
+	Resolution  map[string]float64              `json:"histogram_resolution"`
+	Columns     map[string][]ColumnSpec         `json:"columns"`
+	Warnings    []string                        `json:"warnings"`
+	Outputs     []string                        `json:"outputs"` // files of the run directory, relative to it
+	// SpectralReadings say how the spectra's direction convention, density
+	// encoding and density units were read, file by file, and why.
+	SpectralReadings []ingest.Reading `json:"spectral_readings,omitempty"`
+	// ProductWarnings are those of atlas.nc, atlas.gpkg and report/.
+	ProductWarnings []string `json:"product_warnings,omitempty"`
+	// Screening: the constraint files and the scenarios' summaries
+	// (also in screening.json).
+	Screening *ScreeningSummary  `json:"screening,omitempty"`
+	Timings   map[string]float64 `json:"timings_s,omitempty"` // seconds per stage
+	// Raw is the whole document as read (DecodeManifest); never written.
+	Raw json.RawMessage `json:"-"`
 }
 
-// Input is one input file of the run.
+// Manifest is manifest.json as the products read it back.
+type Manifest = Document[Parameters]
+
+// Input is one input file of the run, with its content's SHA-256.
 type Input struct {
-	Path  string `json:"path"`
-	Size  int64  `json:"size_bytes"`
-	First string `json:"first_time"`
-	Last  string `json:"last_time"`
-	Steps int    `json:"steps"`
-}
-
-// Gap is time in the record that no step covers.
-type Gap struct {
-	After  string  `json:"after"`
-	Before string  `json:"before"`
-	Hours  float64 `json:"missing_hours"`
-}
-
-// Segment is a stretch of the record with one step duration (StepHours;
-// 0: irregular, its steps from MinStepHours to MaxStepHours).
-type Segment struct {
-	First        string  `json:"first"`
-	Last         string  `json:"last"`
-	Steps        int     `json:"steps"`
-	StepHours    float64 `json:"step_hours"`
-	MinStepHours float64 `json:"min_step_hours"`
-	MaxStepHours float64 `json:"max_step_hours"`
-}
-
-// Duplicate is a time held by two input files, read once.
-type Duplicate struct {
-	Roles     []string `json:"roles"`
-	Time      string   `json:"time"`
-	Files     []string `json:"files"`
-	Identical bool     `json:"identical"`
-	Used      string   `json:"used"`
+	Path   string `json:"path"`
+	Size   int64  `json:"size_bytes"`
+	SHA256 string `json:"sha256"`
+	First  string `json:"first_time"`
+	Last   string `json:"last_time"`
+	Steps  int    `json:"steps"`
 }
 
 // Grid is the grid of the run. Kind is written as its name ("regular",
 // "curvilinear", "points" or "mesh"; grid.Kind's MarshalText); a manifest
 // without a kind reads as grid.Regular, the zero Kind.
 type Grid struct {
-	Kind   grid.Kind  `json:"kind"`
-	Shape  [2]int     `json:"shape_ny_nx"`
-	Cells  int        `json:"cells"`
-	Masked int        `json:"masked_cells"`
-	BBox   [4]float64 `json:"bbox_lon_lat"` // RFC 7946: west > east across 180 degrees
+	Kind   grid.Kind `json:"kind"`
+	NY, NX int       `json:"-"`
+	Shape  [2]int    `json:"shape_ny_nx"`
+	Cells  int       `json:"cells"`
+	Masked int       `json:"masked_cells"`
+	// BBox is the true extent as an RFC 7946 bounding box (section 5):
+	// west, south, east, north, west > east for a grid across 180 degrees.
+	BBox [4]float64 `json:"bbox_lon_lat"`
 	// LonFrame is the grid's continuous longitude frame ("-180..180" or
 	// "0..360"; empty in a manifest written before it was recorded).
 	LonFrame string `json:"lon_frame"`

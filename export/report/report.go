@@ -28,6 +28,7 @@ import (
 	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
+	"swellgrid/ingest"
 )
 
 // Dir is the report's directory in the run directory.
@@ -81,7 +82,7 @@ type indexView struct {
 	Summary                                      [][2]string
 	Inputs                                       []contract.Input
 	InputsMore                                   int
-	Gaps                                         []contract.Gap
+	Gaps                                         []ingest.Gap
 	GapsMore                                     int
 	Assumptions, Warnings, Notes, Outputs        []string
 	Maps                                         []pageFigure
@@ -273,7 +274,7 @@ func summary(r *rundir.Run) [][2]string {
 	}
 	cov := "no gaps in the time axis"
 	if len(m.Gaps) > 0 {
-		cov = fmt.Sprintf("%d gaps, %s hours not covered (%.2f%% of the record)", len(m.Gaps), fmtNum(missing), 100*missing/math.Max(1, m.CovHours+missing))
+		cov = fmt.Sprintf("%d gaps, %s hours not covered (%.2f%% of the record)", len(m.Gaps), fmtNum(missing), 100*missing/math.Max(1, m.CoveredHours+missing))
 	}
 	if len(m.Duplicates) > 0 {
 		cov += fmt.Sprintf("; %d time steps held by two files, each read once (see manifest.json duplicate_steps)", len(m.Duplicates))

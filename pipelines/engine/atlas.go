@@ -23,7 +23,7 @@ func productsOf(s *runspec.Resolved) products.Products {
 // rewrites the manifest listing every output. The manifest is on disk before
 // the products are built, so a run whose report fails still leaves a
 // finished run directory that `swellgrid report` can complete.
-func (e *engine) finishManifest(out string, m *Manifest, written, warns *[]string) error {
+func (e *engine) finishManifest(out string, m *runManifest, written, warns *[]string) error {
 	m.Outputs = append(append([]string{}, *written...), "manifest.json")
 	if err := export.WriteManifest(filepath.Join(out, "manifest.json"), m); err != nil {
 		return err

@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"swellgrid/export"
+	"swellgrid/export/contract"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
 	"swellgrid/pipelines/runspec"
@@ -246,7 +247,7 @@ func shardsBelongTogether(dirs []string, ms []*ShardManifest, order []int) strin
 	return ""
 }
 
-func sameInputs(a, b []ManifestInput) string {
+func sameInputs(a, b []contract.Input) string {
 	if len(a) != len(b) {
 		return fmt.Sprintf("%d files against %d", len(a), len(b))
 	}

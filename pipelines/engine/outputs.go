@@ -89,77 +89,13 @@ func (e *engine) writeContours(out string, vals map[string][]float64) ([]string,
 	return written, warns, nil
 }
 
-// Manifest is manifest.json: what went in, what settings, what came out.
-type Manifest struct {
-	Software    string          `json:"software"`
-	Version     string          `json:"version"`
-	Caution     string          `json:"caution"`
-	Inputs      []ManifestInput `json:"inputs"`
-	Calendar    string          `json:"calendar"`
-	Start       string          `json:"time_start"`
-	End         string          `json:"time_end"`
-	Steps       int             `json:"steps"`
-	StepSeconds int64           `json:"step_seconds"`
-	// Segments are the stretches of one step duration (or irregular), and
-	// CoveredHours the time the steps stand for (ingest/timeaxis.go).
-	Segments     []ingest.Segment `json:"time_segments"`
-	CoveredHours float64          `json:"covered_hours"`
-	// StepDurations identifies the durations the steps were weighted by
-	// (an update checks that the earlier steps keep them).
-	StepDurations ingest.Durations `json:"step_durations"`
-	Gaps          []ingest.Gap     `json:"gaps"`
-	// Duplicates are the times held by two files of a role, each read once.
-	Duplicates  []ingest.Duplicate              `json:"duplicate_steps,omitempty"`
-	RoleGaps    []ingest.Gap                    `json:"role_gaps,omitempty"` // steps with no file for one role (one variable per file)
-	Grid        ManifestGrid                    `json:"grid"`
-	Roles       map[ingest.Role]*ingest.VarInfo `json:"roles"`
-	DepthSource string                          `json:"depth_source"`
-	Assumptions []string                        `json:"assumptions"`
-	Parameters  *runspec.Spec                   `json:"parameters"`
-	Resolution  map[string]float64              `json:"histogram_resolution"`
-	Columns     map[string][]tables.ColumnSpec  `json:"columns"`
-	Warnings    []string                        `json:"warnings"`
-	Outputs     []string                        `json:"outputs"` // files of the run directory, relative to it
-	// SpectralReadings say how the spectra's direction convention, density
-	// encoding and density units were read, file by file, and why.
-	SpectralReadings []ingest.Reading `json:"spectral_readings,omitempty"`
-	// ProductWarnings are those of atlas.nc, atlas.gpkg and report/.
-	ProductWarnings []string `json:"product_warnings,omitempty"`
-	// Screening: the constraint files and the scenarios' summaries
-	// (also in screening.json).
-	Screening *contract.ScreeningSummary `json:"screening,omitempty"`
-	Timings   map[string]float64         `json:"timings_s,omitempty"`
-}
+// runManifest is manifest.json as the run writes it: the output contract's
+// document with the whole spec recorded.
+type runManifest = contract.Document[*runspec.Spec]
 
-// ManifestInput is one input file.
-type ManifestInput struct {
-	Path   string `json:"path"`
-	Size   int64  `json:"size_bytes"`
-	SHA256 string `json:"sha256"`
-	First  string `json:"first_time"`
-	Last   string `json:"last_time"`
-	Steps  int    `json:"steps"`
-}
-
-// ManifestGrid describes the grid.
-type ManifestGrid struct {
-	Kind   grid.Kind `json:"kind"`
-	NY, NX int       `json:"-"`
-	Shape  [2]int    `json:"shape_ny_nx"`
-	Cells  int       `json:"cells"`
-	Masked int       `json:"masked_cells"`
-	// BBox is the true extent as an RFC 7946 bounding box (section 5):
-	// west, south, east, north, west > east for a grid across 180 degrees.
-	BBox [4]float64 `json:"bbox_lon_lat"`
-	// LonFrame is the grid's continuous longitude frame (grid.LonFrame):
-	// "-180..180", or "0..360" for a grid across 180 degrees, the frame of
-	// atlas.nc, atlas.gpkg and the report's maps.
-	LonFrame string `json:"lon_frame"`
-}
-
-func (e *engine) manifest(version string, sums, warns []string, timings map[string]float64) *Manifest {
+func (e *engine) manifest(version string, sums, warns []string, timings map[string]float64) *runManifest {
 	c := e.cat
-	m := &Manifest{Software: "swellgrid", Version: version, Caution: tables.Caution, Calendar: string(c.Calendar),
+	m := &runManifest{Software: "swellgrid", Version: version, Caution: tables.Caution, Calendar: string(c.Calendar),
 		Start: c.Start, End: c.End, Steps: c.Steps, StepSeconds: c.StepSeconds, Gaps: c.Gaps, RoleGaps: c.RoleGaps, Roles: c.Vars,
 		DepthSource: c.DepthSource, Parameters: e.spec.Spec, Timings: timings, SpectralReadings: c.Readings}
 	if m.Gaps == nil {
@@ -172,7 +108,7 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 		m.Duplicates = append(m.Duplicates, d)
 	}
 	for i, f := range c.Files {
-		m.Inputs = append(m.Inputs, ManifestInput{Path: ingest.PathText(f.Path), Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
+		m.Inputs = append(m.Inputs, contract.Input{Path: ingest.PathText(f.Path), Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
 	}
 	masked := 0
 	for _, x := range c.Masked {
@@ -181,7 +117,7 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 		}
 	}
 	a, b, cc, d := c.Grid.Bounds()
-	m.Grid = ManifestGrid{Kind: c.Grid.Kind, Shape: [2]int{c.Grid.NY, c.Grid.NX}, Cells: c.Grid.NCells(), Masked: masked, BBox: [4]float64{a, b, cc, d}, LonFrame: c.Grid.Frame().String()}
+	m.Grid = contract.Grid{Kind: c.Grid.Kind, Shape: [2]int{c.Grid.NY, c.Grid.NX}, Cells: c.Grid.NCells(), Masked: masked, BBox: [4]float64{a, b, cc, d}, LonFrame: c.Grid.Frame().String()}
 	m.Assumptions = []string{fmt.Sprintf("water density %g kg/m3, gravity %g m/s2", e.spec.Physics.Rho, e.spec.Physics.G)}
 	if !e.spectral {
 		m.Assumptions = append(m.Assumptions, "wave power from bulk Hm0 and Te with linear-theory group velocity at the cell depth (deep water where the depth is unknown or the deep-water assumption is chosen)")

@@ -13,6 +13,7 @@ import (
 	"time"
 
 	"swellgrid/export"
+	"swellgrid/export/contract"
 	"swellgrid/grid"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
@@ -66,16 +67,16 @@ const shardFile = "shard.json"
 // that Merge can check the shards belong together. The final per-cell states
 // are the pass checkpoints in the shard's .swellgrid folder.
 type ShardManifest struct {
-	Software    string          `json:"software"`
-	Version     string          `json:"version"`
-	Shard       int             `json:"shard"`
-	Shards      int             `json:"shards"`
-	C0          int             `json:"cell_first"`
-	C1          int             `json:"cell_end"` // exclusive
-	GridCells   int             `json:"grid_cells"`
-	Passes      [][2]int        `json:"passes"`
-	Fingerprint string          `json:"spec_fingerprint"`
-	Inputs      []ManifestInput `json:"inputs"`
+	Software    string           `json:"software"`
+	Version     string           `json:"version"`
+	Shard       int              `json:"shard"`
+	Shards      int              `json:"shards"`
+	C0          int              `json:"cell_first"`
+	C1          int              `json:"cell_end"` // exclusive
+	GridCells   int              `json:"grid_cells"`
+	Passes      [][2]int         `json:"passes"`
+	Fingerprint string           `json:"spec_fingerprint"`
+	Inputs      []contract.Input `json:"inputs"`
 	// StepDurations identifies the durations the steps were weighted by.
 	StepDurations ingest.Durations `json:"step_durations"`
 	Spec          *runspec.Spec    `json:"spec"`
@@ -93,7 +94,7 @@ func writeShard(out string, spec *runspec.Resolved, cat *ingest.Catalog, sh Shar
 		WallS: time.Since(t0).Seconds(),
 		Note:  "a shard of a swellgrid run: its per-cell states are in .swellgrid/; combine all shards with `swellgrid merge --out DIR SHARD_DIR...`"}
 	for i, f := range cat.Files {
-		m.Inputs = append(m.Inputs, ManifestInput{Path: ingest.PathText(absPath(f.Path)), Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
+		m.Inputs = append(m.Inputs, contract.Input{Path: ingest.PathText(absPath(f.Path)), Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
 	}
 	b, err := json.MarshalIndent(m, "", "  ")
 	if err != nil {

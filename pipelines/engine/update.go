@@ -12,6 +12,7 @@ import (
 	"sort"
 	"strings"
 
+	"swellgrid/export/contract"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/lock"
 	"swellgrid/pipelines/runspec"
@@ -26,11 +27,11 @@ import (
 
 // updatePlan is what an accepted update continues from.
 type updatePlan struct {
-	passes  [][2]int        // the saved states' cell ranges
-	earlier int             // number of earlier input files (verified by checksum)
-	shard   *Shard          // the directory is a shard (nil: a whole run)
-	lo, hi  int             // cells covered
-	prior   []ManifestInput // the earlier run's inputs
+	passes  [][2]int         // the saved states' cell ranges
+	earlier int              // number of earlier input files (verified by checksum)
+	shard   *Shard           // the directory is a shard (nil: a whole run)
+	lo, hi  int              // cells covered
+	prior   []contract.Input // the earlier run's inputs
 }
 
 // updateRefused says why an update cannot continue the earlier run.
@@ -48,7 +49,7 @@ func IsUpdateRefused(err error) bool {
 
 // priorRun is what a finished run directory says about its inputs and spec.
 type priorRun struct {
-	inputs    []ManifestInput
+	inputs    []contract.Input
 	spec      json.RawMessage
 	shard     *ShardManifest
 	durations ingest.Durations // empty in a run made before durations were recorded
@@ -74,7 +75,7 @@ func readPriorRun(dir string) (*priorRun, error) {
 		return nil, err
 	}
 	var m struct {
-		Inputs        []ManifestInput  `json:"inputs"`
+		Inputs        []contract.Input `json:"inputs"`
 		Parameters    json.RawMessage  `json:"parameters"`
 		Steps         int              `json:"steps"`
 		StepSeconds   int64            `json:"step_seconds"`
@@ -160,14 +161,14 @@ func durationChanges(prior *priorRun, cat *ingest.Catalog) string {
 
 // inputContentChanges is inputChanges with the checksums sums of the
 // catalog's files.
-func inputContentChanges(old []ManifestInput, cat *ingest.Catalog, sums []string) string {
+func inputContentChanges(old []contract.Input, cat *ingest.Catalog, sums []string) string {
 	return inputChanges(old, cat, sums)
 }
 
 // inputChanges compares the earlier run's inputs with the new catalog: the
 // earlier files must come first, in the same order, unchanged (by content
 // too when sums, the checksums of the catalog's files, is not nil).
-func inputChanges(old []ManifestInput, cat *ingest.Catalog, sums []string) string {
+func inputChanges(old []contract.Input, cat *ingest.Catalog, sums []string) string {
 	now := map[string]int{}
 	for i, f := range cat.Files {
 		now[ingest.PathText(absPath(f.Path))] = i

@@ -10,44 +10,31 @@ import (
 	"math"
 	"math/bits"
 	"swellgrid/export"
+	"swellgrid/export/contract"
 	"swellgrid/stats"
 )
 
-// ColumnType is the Parquet (Arrow) type of a column.
-type ColumnType string
-
-// Column types.
-const (
-	TypeFloat64 ColumnType = "double"
-	TypeInt64   ColumnType = "int64"
-	TypeString  ColumnType = "string"
-	TypeBool    ColumnType = "boolean"
+// The declarative part of a column (name, type, unit, CF attributes,
+// description) is the output contract's (export/contract); these names are
+// the contract's, for the schema entries below.
+type (
+	ColumnSpec = contract.ColumnSpec
+	ColumnType = contract.ColumnType
+	Param      = contract.Param
 )
 
-// Param is the run parameter a column pattern is repeated over.
-type Param string
-
-// Parameters of column patterns.
+// Column types and pattern parameters (export/contract).
 const (
-	NoParam         Param = ""
-	ParamPercentile Param = "P"      // statistics.percentiles
-	ParamPeriod     Param = "T"      // extremes.return_periods_y
-	ParamDevice     Param = "device" // [[device]] name
-	ParamDesign     Param = "TD"     // design.return_periods_y
+	TypeFloat64     = contract.TypeFloat64
+	TypeInt64       = contract.TypeInt64
+	TypeString      = contract.TypeString
+	TypeBool        = contract.TypeBool
+	NoParam         = contract.NoParam
+	ParamPercentile = contract.ParamPercentile
+	ParamPeriod     = contract.ParamPeriod
+	ParamDevice     = contract.ParamDevice
+	ParamDesign     = contract.ParamDesign
 )
-
-// ColumnSpec describes one column, or one family of columns when Name is a
-// pattern: what the Parquet metadata, the manifest and the README say about it.
-type ColumnSpec struct {
-	File         string     `json:"file"`
-	Name         string     `json:"name"`
-	Param        Param      `json:"param,omitempty"`
-	Type         ColumnType `json:"type"`
-	Unit         string     `json:"unit"`
-	StandardName string     `json:"standard_name,omitempty"` // CF standard name, where one exists
-	CellMethods  string     `json:"cell_methods,omitempty"`  // CF cell_methods, where they apply
-	Doc          string     `json:"doc"`
-}
 
 // NullRule says when a cells.parquet column is null for a cell, before its
 // filling function is asked.
