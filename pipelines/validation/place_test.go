@@ -20,12 +20,12 @@ func TestValidationPlacesAcrossDateLine(t *testing.T) {
 	}
 	away, _ := grid.NewRegular(dlAxis(2), lat)
 	masked := make([]bool, pac.NCells())
-	wc, ww, why := bilinearCells("regular", 9, 4, away.Lon, away.Lat, masked, 10.7, -17.5)
+	wc, ww, why := bilinearCells(grid.Regular, 9, 4, away.Lon, away.Lat, masked, 10.7, -17.5)
 	if why != "" {
 		t.Fatal(why)
 	}
 	for _, lon := range []float64{180.7, -179.3} {
-		c, w, why := bilinearCells("regular", 9, 4, pac.Lon, pac.Lat, masked, lon, -17.5)
+		c, w, why := bilinearCells(grid.Regular, 9, 4, pac.Lon, pac.Lat, masked, lon, -17.5)
 		if why != "" {
 			t.Fatalf("station at %v: %s", lon, why)
 		}

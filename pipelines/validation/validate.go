@@ -257,7 +257,7 @@ func (v *validator) place(st *ingest.Station) (*stationPlace, error) {
 	}
 	p := &stationPlace{st: st, nearest: best, distKm: bd, cells: []int{best}, weights: []float64{1}, method: "nearest"}
 	if v.vs.Location == runspec.PlaceBilinear {
-		cells, w, why := bilinearCells(g.Kind.String(), g.NX, g.NY, g.Lon, g.Lat, v.cat.Masked, st.Lon, st.Lat)
+		cells, w, why := bilinearCells(g.Kind, g.NX, g.NY, g.Lon, g.Lat, v.cat.Masked, st.Lon, st.Lat)
 		if why != "" {
 			p.warning = fmt.Sprintf("station %q: %s; the nearest sea cell %d (%.1f km) is used", st.Name, why, best, bd)
 		} else {
@@ -277,8 +277,8 @@ func (v *validator) place(st *ingest.Station) (*stationPlace, error) {
 // centres' hull, a land cell among the four). Longitudes are compared in
 // the grid's continuous frame (grid.LonFrame), so a station beside 180
 // degrees finds its cells on both sides of it, whatever its convention.
-func bilinearCells(kind string, nx, ny int, lons, lats []float64, masked []bool, lon, lat float64) ([]int, []float64, string) {
-	if kind != "regular" || nx < 2 || ny < 2 {
+func bilinearCells(kind grid.Kind, nx, ny int, lons, lats []float64, masked []bool, lon, lat float64) ([]int, []float64, string) {
+	if kind != grid.Regular || nx < 2 || ny < 2 {
 		return nil, nil, "bilinear location needs a regular grid"
 	}
 	fr := grid.LonFrame(lons[:nx])
