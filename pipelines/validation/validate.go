@@ -268,12 +268,9 @@ func (v *validator) place(st *ingest.Station) (*stationPlace, error) {
 }
 
 // bilinearCells returns the four cells of a regular grid around (lon, lat)
-// and their bilinear weights in longitude and latitude,
-//
-//	w = (1 - a)(1 - b), a (1 - b), (1 - a) b, a b
-//
-// with a, b the station's fractional position between the cell centres
-// (common practice), or why it cannot (not a regular grid, outside the
+// and their bilinear weights in longitude and latitude
+// (validate.BilinearWeights of the station's fractional position between
+// the cell centres), or why it cannot (not a regular grid, outside the
 // centres' hull, a land cell among the four). Longitudes are compared in
 // the grid's continuous frame (grid.LonFrame), so a station beside 180
 // degrees finds its cells on both sides of it, whatever its convention.
@@ -308,7 +305,8 @@ func bilinearCells(kind grid.Kind, nx, ny int, lons, lats []float64, masked []bo
 			return nil, nil, fmt.Sprintf("cell %d among the four around it is land or has no data", c)
 		}
 	}
-	return cells, []float64{(1 - a) * (1 - b), a * (1 - b), (1 - a) * b, a * b}, ""
+	w := validate.BilinearWeights(a, b)
+	return cells, w[:], ""
 }
 
 // readCells reads the hindcast again for the stations' cells only: one
@@ -513,37 +511,18 @@ func (v *validator) compare(p *stationPlace) (*stationResult, error) {
 	r.depth = cellDepth
 	get := func(which func(*cellSeries) []float64, circ bool) []float64 {
 		out := make([]float64, n)
+		var xs, ws []float64
 		for k, m := range r.matches {
-			var sx, sy, sw float64
-			ok := true
+			xs, ws = xs[:0], ws[:0]
 			for ci, c := range p.cells {
 				s := which(v.series[c])
 				for _, q := range [][2]float64{{float64(m.s0), 1 - m.w1}, {float64(m.s1), m.w1}} {
-					w := p.weights[ci] * q[1]
-					if w == 0 {
-						continue
+					if w := p.weights[ci] * q[1]; w != 0 {
+						xs, ws = append(xs, s[int(q[0])]), append(ws, w)
 					}
-					x := s[int(q[0])]
-					if math.IsNaN(x) {
-						ok = false
-					}
-					if circ {
-						sx += w * math.Cos(x*math.Pi/180)
-						sy += w * math.Sin(x*math.Pi/180)
-					} else {
-						sx += w * x
-					}
-					sw += w
 				}
 			}
-			switch {
-			case !ok || sw == 0:
-				out[k] = math.NaN()
-			case circ:
-				out[k] = math.Mod(math.Atan2(sy, sx)*180/math.Pi+360, 360)
-			default:
-				out[k] = sx / sw
-			}
+			out[k] = validate.WeightedMean(xs, ws, circ)
 		}
 		return out
 	}

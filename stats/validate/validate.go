@@ -249,3 +249,42 @@ func QQ(m, o []float64) (model, obs []float64) {
 	}
 	return Quantiles(mm, ps), Quantiles(oo, ps)
 }
+
+// BilinearWeights are the weights of the four cells around a point at the
+// fractional position (a, b), 0 <= a, b <= 1, between the centres of a
+// regular grid, in the order (x0, y0), (x1, y0), (x0, y1), (x1, y1):
+//
+//	w = (1 - a)(1 - b), a (1 - b), (1 - a) b, a b
+//
+// (bilinear interpolation; common practice). They sum to 1.
+func BilinearWeights(a, b float64) [4]float64 {
+	return [4]float64{(1 - a) * (1 - b), a * (1 - b), (1 - a) * b, a * b}
+}
+
+// WeightedMean is the weighted mean of x, sum(w x) / sum(w), or for angles
+// in degrees (circular) the weighted mean direction atan2(sum w sin x,
+// sum w cos x) in [0, 360) (Mardia and Jupp 2000, sec. 2.2.1, with
+// weights); NaN when a value is missing (NaN) or the weights sum to 0. The
+// sums run in the order given.
+func WeightedMean(x, w []float64, circular bool) float64 {
+	var sx, sy, sw float64
+	for i, v := range x {
+		if math.IsNaN(v) {
+			return math.NaN()
+		}
+		if circular {
+			sx += w[i] * math.Cos(v*math.Pi/180)
+			sy += w[i] * math.Sin(v*math.Pi/180)
+		} else {
+			sx += w[i] * v
+		}
+		sw += w[i]
+	}
+	switch {
+	case sw == 0:
+		return math.NaN()
+	case circular:
+		return math.Mod(math.Atan2(sy, sx)*180/math.Pi+360, 360)
+	}
+	return sx / sw
+}
