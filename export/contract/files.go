@@ -11,6 +11,7 @@ const (
 	ContourDir     = "contours"        // sub-directory of the contour and screening layers
 	ReportDir      = "report"          // sub-directory of the HTML report
 	ReportIndex    = "index.html"      // the report's first page, in ReportDir
+	StateDir       = ".swellgrid"      // the run's state: checkpoints, the lock, a cluster's scripts; no output
 )
 
 // Long tables of a run directory by name: the file is the name with

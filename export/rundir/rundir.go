@@ -13,6 +13,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io/fs"
 	"math"
 	"os"
 	"path/filepath"
@@ -577,4 +578,27 @@ func NoSpace(dir string, err error) error {
 		return err
 	}
 	return fmt.Errorf("%w: %w; free space on the output's file system and run again", err, syscall.ENOSPC)
+}
+
+// Files lists the files of the run directory dir, relative to it and
+// sorted, leaving out its state folder (contract.StateDir: checkpoints, the
+// lock), which holds no output.
+func Files(dir string) []string {
+	var files []string
+	filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return nil
+		}
+		if d.IsDir() {
+			if d.Name() == contract.StateDir {
+				return filepath.SkipDir
+			}
+			return nil
+		}
+		rel, _ := filepath.Rel(dir, p)
+		files = append(files, rel)
+		return nil
+	})
+	sort.Strings(files)
+	return files
 }

@@ -8,13 +8,13 @@ package runcheck
 import (
 	"bytes"
 	"encoding/json"
-	"io/fs"
 	"math"
 	"os"
 	"path/filepath"
 	"sort"
 	"strings"
 	"swellgrid/export/contract"
+	"swellgrid/export/rundir"
 	"swellgrid/internal/parquetread"
 	"swellgrid/pipelines/runspec"
 	"testing"
@@ -244,7 +244,7 @@ func CheckDemoMesh(t *testing.T, dir string) {
 func RunOutputs(t *testing.T, dir string) map[string][]byte {
 	t.Helper()
 	out := map[string][]byte{}
-	for _, f := range runFiles(dir) {
+	for _, f := range rundir.Files(dir) {
 		// The manifest, the report's summary page and atlas.nc's global
 		// attributes name the input files, which these runs read from
 		// different directories; their values are checked elsewhere
@@ -297,26 +297,4 @@ func BulkFixture(t *testing.T) string {
 		t.Fatalf("fixture %s missing; make it with go run ./cmd/mkfixtures: %v", d, err)
 	}
 	return d
-}
-
-// runFiles lists the files of a run directory, relative to it and sorted,
-// leaving out its state folder (.swellgrid).
-func runFiles(dir string) []string {
-	var files []string
-	filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
-		if err != nil {
-			return nil
-		}
-		if d.IsDir() {
-			if d.Name() == ".swellgrid" {
-				return filepath.SkipDir
-			}
-			return nil
-		}
-		rel, _ := filepath.Rel(dir, p)
-		files = append(files, rel)
-		return nil
-	})
-	sort.Strings(files)
-	return files
 }

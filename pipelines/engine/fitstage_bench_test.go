@@ -1,38 +1,15 @@
 package engine
 
 import (
-	"context"
 	"path/filepath"
 	"testing"
-
-	"swellgrid/ingest"
-	"swellgrid/pipelines/runspec"
 )
 
 // fitStageCells reads a fixture and feeds every block into fresh per-cell
 // states, as the stream stage does, and returns the engine, the states and
 // the ids of the unmasked cells: the input of the fit stage.
 func fitStageCells(b *testing.B, input string) (*engine, []*cell, []int) {
-	spec := runspec.DefaultSpec()
-	spec.Input.Paths = []string{input}
-	cat, err := ingest.Open(spec.Input.Paths, spec.IngestOptions())
-	if err != nil {
-		b.Fatal(err)
-	}
-	rs := mustResolve(b, spec)
-	ccfg, err := rs.ClimateConfig(cat)
-	if err != nil {
-		b.Fatal(err)
-	}
-	e, err := newEngine(cat, rs, ccfg)
-	if err != nil {
-		b.Fatal(err)
-	}
-	out := make(chan *ingest.Block, 1<<12)
-	if err := cat.Read(context.Background(), ingest.ReadRange{MaxSteps: spec.Run.BlockSteps}, out); err != nil {
-		b.Fatal(err)
-	}
-	close(out)
+	e, cat, out := benchEngine(b, input)
 	n := cat.Grid.NCells()
 	cells := make([]*cell, n)
 	var ids []int

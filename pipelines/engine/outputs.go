@@ -3,16 +3,12 @@ package engine
 import (
 	"fmt"
 	"math"
-	"os"
-	"path/filepath"
-	"sort"
 	"strings"
 
 	"swellgrid/export"
 	"swellgrid/export/contract"
 	"swellgrid/grid"
 	"swellgrid/ingest"
-	"swellgrid/pipelines/lock"
 	"swellgrid/pipelines/runspec"
 	"swellgrid/pipelines/tables"
 )
@@ -142,23 +138,4 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 	m.Columns = e.outputColumns()
 	m.Warnings = append(append([]string{}, c.Warnings...), warns...)
 	return m
-}
-
-// listRunDir lists the final-named files of a run directory (for the demo's
-// summary), sorted.
-func listRunDir(out string) []string {
-	var files []string
-	filepath.Walk(out, func(p string, info os.FileInfo, err error) error {
-		if err != nil || info.IsDir() {
-			if info != nil && info.IsDir() && info.Name() == lock.StateDir {
-				return filepath.SkipDir
-			}
-			return nil
-		}
-		rel, _ := filepath.Rel(out, p)
-		files = append(files, rel)
-		return nil
-	})
-	sort.Strings(files)
-	return files
 }

@@ -16,26 +16,7 @@ import (
 // bulk power or spectral parameters, climate and extremes accumulators), one
 // worker, and reports cell-steps per second.
 func benchFeed(b *testing.B, input string) {
-	spec := runspec.DefaultSpec()
-	spec.Input.Paths = []string{input}
-	cat, err := ingest.Open(spec.Input.Paths, spec.IngestOptions())
-	if err != nil {
-		b.Fatal(err)
-	}
-	rs := mustResolve(b, spec)
-	ccfg, err := rs.ClimateConfig(cat)
-	if err != nil {
-		b.Fatal(err)
-	}
-	e, err := newEngine(cat, rs, ccfg)
-	if err != nil {
-		b.Fatal(err)
-	}
-	out := make(chan *ingest.Block, 1<<12)
-	if err := cat.Read(context.Background(), ingest.ReadRange{MaxSteps: spec.Run.BlockSteps}, out); err != nil {
-		b.Fatal(err)
-	}
-	close(out)
+	e, cat, out := benchEngine(b, input)
 	var blocks []*ingest.Block
 	var times [][]stepTime
 	for blk := range out {
@@ -91,8 +72,27 @@ func processCPU() time.Duration {
 // intervals) on the states of the 24-file (2-year) bulk fixture, one worker,
 // and reports cells per second.
 func BenchmarkFinishBulk(b *testing.B) {
+	e, cells, ids := fitStageCells(b, filepath.Join("..", "..", "testdata", "bulk_monthly"))
+	acfg := e.spec.AnalysisConfig()
+	b.ReportAllocs()
+	cpu0 := processCPU()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		id := ids[i%len(ids)]
+		if r := e.finish(id, cells[id], acfg); r == nil {
+			b.Fatal("no result")
+		}
+	}
+	b.StopTimer()
+	b.ReportMetric(float64(b.N)/b.Elapsed().Seconds(), "cells/s")
+	b.ReportMetric(float64((processCPU()-cpu0).Nanoseconds())/float64(b.N)/1e3, "cpu-us/cell")
+}
+
+// benchEngine is the engine of the default spec on input, with every block
+// of the record read (one worker's input).
+func benchEngine(b *testing.B, input string) (*engine, *ingest.Catalog, <-chan *ingest.Block) {
 	spec := runspec.DefaultSpec()
-	spec.Input.Paths = []string{filepath.Join("..", "..", "testdata", "bulk_monthly")}
+	spec.Input.Paths = []string{input}
 	cat, err := ingest.Open(spec.Input.Paths, spec.IngestOptions())
 	if err != nil {
 		b.Fatal(err)
@@ -111,29 +111,5 @@ func BenchmarkFinishBulk(b *testing.B) {
 		b.Fatal(err)
 	}
 	close(out)
-	n := cat.Grid.NCells()
-	cells := make([]*cell, n)
-	var ids []int
-	for id := range cells {
-		if !cat.Masked[id] {
-			cells[id] = e.newCell(id)
-			ids = append(ids, id)
-		}
-	}
-	for blk := range out {
-		e.feed(blk, e.blockTimes(blk), cells, 0, n)
-	}
-	acfg := spec.AnalysisConfig()
-	b.ReportAllocs()
-	cpu0 := processCPU()
-	b.ResetTimer()
-	for i := 0; i < b.N; i++ {
-		id := ids[i%len(ids)]
-		if r := e.finish(id, cells[id], acfg); r == nil {
-			b.Fatal("no result")
-		}
-	}
-	b.StopTimer()
-	b.ReportMetric(float64(b.N)/b.Elapsed().Seconds(), "cells/s")
-	b.ReportMetric(float64((processCPU()-cpu0).Nanoseconds())/float64(b.N)/1e3, "cpu-us/cell")
+	return e, cat, out
 }

@@ -12,6 +12,7 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"swellgrid/export/contract"
 	"swellgrid/pipelines/fault"
 	"syscall"
 	"time"
@@ -205,5 +206,6 @@ func Unlock(dir string) (string, error) {
 	return fmt.Sprintf("removed %s (%s)", path, what), nil
 }
 
-// StateDir is the run directory's folder for checkpoints and the lock.
-const StateDir = ".swellgrid"
+// StateDir is the run directory's folder for checkpoints and the lock
+// (export/contract).
+const StateDir = contract.StateDir
