@@ -25,25 +25,6 @@ type validationLink struct {
 	Hm0Bias, Hm0SI   string
 }
 
-// validationStation is the part of validation.json a page shows.
-type validationStation struct {
-	Name        string            `json:"name"`
-	Source      string            `json:"source"`
-	Attributes  map[string]string `json:"attributes"`
-	Lon         float64           `json:"lon"`
-	Lat         float64           `json:"lat"`
-	Location    string            `json:"location"`
-	NearestCell int               `json:"nearest_cell"`
-	DistanceKm  float64           `json:"distance_km"`
-	Measured    int               `json:"measured_times"`
-	Matched     int               `json:"matched_times"`
-	Outside     int               `json:"outside_record"`
-	Unpaired    int               `json:"unmatched_inside_record"`
-	PlotFrom    string            `json:"plot_from"`
-	PlotTo      string            `json:"plot_to"`
-	Notes       []string          `json:"notes"`
-}
-
 // validationPages writes a page per station of the run's validation (when
 // DIR/validation.json exists): the statistics table, a scatter plot of Hm0
 // with the density of the pairs, a Q-Q plot and a time-series overlay of the
@@ -53,11 +34,7 @@ func validationPages(r *rundir.Run, tmp string, v *indexView, add func(...string
 	if err != nil {
 		return nil, nil // no validation yet
 	}
-	var sum struct {
-		Caution  string              `json:"caution"`
-		Stations []validationStation `json:"stations"`
-		Warnings []string            `json:"warnings"`
-	}
+	var sum contract.ValidationSummary
 	if err := json.Unmarshal(b, &sum); err != nil {
 		return nil, fmt.Errorf("report: %s/validation.json: %w", r.Dir, err)
 	}
@@ -129,7 +106,7 @@ func validationPages(r *rundir.Run, tmp string, v *indexView, add func(...string
 
 type validationView struct {
 	*indexView
-	S        validationStation
+	S        contract.ValidationStation
 	Record   [][]string
 	ByPeriod [][]string
 	Figures  []pageFigure
@@ -231,7 +208,7 @@ func qqFigure(t *rundir.Table, station, name string) *figure {
 
 // overlayFigure: measured and hindcast Hm0 over the chosen period, in days
 // from its start (times compared as text, YYYY-MM-DD hh:mm:ss).
-func overlayFigure(t *rundir.Table, st validationStation, name string) *figure {
+func overlayFigure(t *rundir.Table, st contract.ValidationStation, name string) *figure {
 	o, m, times := stationPairs(t, st.Name, "hm0_obs_m", "hm0_model_m")
 	var po, pm plotter.XYs
 	var d0 float64 = math.NaN()

@@ -12,6 +12,7 @@ import (
 	"sync"
 	"testing"
 
+	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 	"swellgrid/pipelines/fault"
 	"swellgrid/pipelines/products"
@@ -84,12 +85,12 @@ func valRowOf(t *testing.T, tb *rundir.Table, station, variable, period string) 
 	return -1
 }
 
-func readSummary(t *testing.T, dir string) *validation.Summary {
+func readSummary(t *testing.T, dir string) *contract.ValidationDocument[runspec.ValidationSpec] {
 	b, err := os.ReadFile(filepath.Join(dir, "validation.json"))
 	if err != nil {
 		t.Fatal(err)
 	}
-	s := &validation.Summary{}
+	s := &contract.ValidationDocument[runspec.ValidationSpec]{}
 	if err := json.Unmarshal(b, s); err != nil {
 		t.Fatal(err)
 	}

@@ -12,6 +12,7 @@ import (
 	"strings"
 
 	"swellgrid/export"
+	"swellgrid/export/contract"
 	atlasreport "swellgrid/export/report"
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
@@ -38,7 +39,7 @@ type Options struct {
 type Result struct {
 	OutDir   string
 	Files    []string
-	Summary  *Summary
+	Summary  *summaryDoc
 	Warnings []string
 }
 
@@ -612,45 +613,9 @@ func absStamp(s ingest.Stamp) ingest.Stamp {
 	return s
 }
 
-// Summary is validation.json.
-type Summary struct {
-	Software string                         `json:"software"`
-	Caution  string                         `json:"caution"`
-	Run      string                         `json:"run"`
-	Settings runspec.ValidationSpec         `json:"settings"`
-	Record   [2]string                      `json:"hindcast_record"`
-	Calendar string                         `json:"calendar"`
-	Stations []StationSummary               `json:"stations"`
-	Columns  map[string][]tables.ColumnSpec `json:"columns"`
-	Warnings []string                       `json:"warnings"`
-}
-
-// StationSummary is one station in validation.json.
-type StationSummary struct {
-	Name        string                         `json:"name"`
-	Source      string                         `json:"source"`
-	Format      string                         `json:"format"`
-	Attributes  map[string]string              `json:"attributes,omitempty"`
-	Lon         float64                        `json:"lon"`
-	Lat         float64                        `json:"lat"`
-	Location    string                         `json:"location"`
-	Cells       []int                          `json:"cells"`
-	Weights     []float64                      `json:"weights"`
-	NearestCell int                            `json:"nearest_cell"`
-	DistanceKm  float64                        `json:"distance_km"`
-	DepthM      *float64                       `json:"depth_m"`
-	Measured    int                            `json:"measured_times"`
-	Matched     int                            `json:"matched_times"`
-	Outside     int                            `json:"outside_record"`
-	Unpaired    int                            `json:"unmatched_inside_record"`
-	NotInCal    int                            `json:"not_in_calendar,omitempty"`
-	First, Last string                         `json:"-"`
-	StormThrM   *float64                       `json:"storm_threshold_m"`
-	Record      map[string]map[string]*float64 `json:"record"`
-	PlotFrom    string                         `json:"plot_from"`
-	PlotTo      string                         `json:"plot_to"`
-	Notes       []string                       `json:"notes,omitempty"`
-}
+// summaryDoc is validation.json as validate writes it: the output
+// contract's document with the [validation] settings used.
+type summaryDoc = contract.ValidationDocument[runspec.ValidationSpec]
 
 func jsonNum(x float64) *float64 {
 	if math.IsNaN(x) || math.IsInf(x, 0) {
@@ -668,13 +633,13 @@ func statsMap(s validate.Stats, circ bool) map[string]*float64 {
 	return m
 }
 
-func (v *validator) summary(run *rundir.Run, dir string, rs []*stationResult) *Summary {
-	s := &Summary{Software: "swellgrid", Caution: tables.Caution, Run: dir, Settings: v.vs, Record: [2]string{v.cat.Start, v.cat.End},
+func (v *validator) summary(run *rundir.Run, dir string, rs []*stationResult) *summaryDoc {
+	s := &summaryDoc{Software: "swellgrid", Caution: tables.Caution, Run: dir, Settings: v.vs, Record: [2]string{v.cat.Start, v.cat.End},
 		Calendar: string(v.cat.Calendar), Columns: validationColumns(), Warnings: []string{}}
 	s.Settings.Observations = nil
 	for _, r := range rs {
 		st := r.p.st
-		ss := StationSummary{Name: st.Name, Source: ingest.PathText(st.Source), Format: st.Format, Attributes: st.Attrs, Lon: st.Lon, Lat: st.Lat,
+		ss := contract.ValidationStation{Name: st.Name, Source: ingest.PathText(st.Source), Format: st.Format, Attributes: st.Attrs, Lon: st.Lon, Lat: st.Lat,
 			Location: r.p.method, Cells: r.p.cells, Weights: r.p.weights, NearestCell: r.p.nearest, DistanceKm: r.p.distKm, DepthM: jsonNum(r.depth),
 			Measured: len(st.Times), Matched: len(r.matches), Outside: r.outside, Unpaired: r.unpaired, NotInCal: r.unmapped,
 			StormThrM: jsonNum(r.thr), Record: map[string]map[string]*float64{}}
