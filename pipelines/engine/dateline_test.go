@@ -403,11 +403,3 @@ func TestDateLineReferenceReproduced(t *testing.T) {
 		}
 	}
 }
-
-func dlAxis(x0 float64) []float64 {
-	a := make([]float64, 9)
-	for i := range a {
-		a[i] = x0 + 2*float64(i)
-	}
-	return a
-}
