@@ -374,6 +374,7 @@ func windowRows(r *cellResult) []climate.WindowRow   { return r.windows }
 
 // longTable is a long table: its file, its schema, the rows one cell gives.
 type longTable interface {
+	tableName() string
 	file() string
 	specs() []tables.ColumnSpec
 	build(res []*cellResult) *export.Table
@@ -384,6 +385,8 @@ type longSchema[T any] struct {
 	cols []tables.Column[longRow[T]]
 	rows func(r *cellResult) []T
 }
+
+func (s longSchema[T]) tableName() string { return s.name }
 
 func (s longSchema[T]) file() string { return s.name + ".parquet" }
 
@@ -559,11 +562,23 @@ var geometryColumn = tables.ColumnSpec{File: "cells.parquet", Name: "geometry", 
 // keyed by file name: the manifest's column list.
 func (e *engine) outputColumns() map[string][]tables.ColumnSpec {
 	out := map[string][]tables.ColumnSpec{"cells.parquet": append(e.cellsColumns(), geometryColumn)}
-	for _, t := range longSchemas {
+	for _, t := range e.writtenLongTables() {
 		out[t.file()] = t.specs()
 	}
 	if e.spec.Screening != nil {
 		out["screening.parquet"] = screening.Specs(e.spec.Screening.DistanceLayers())
+	}
+	return out
+}
+
+// writtenLongTables are the long tables the run writes
+// (output.long_tables: all by default), in longSchemas' order.
+func (e *engine) writtenLongTables() []longTable {
+	var out []longTable
+	for _, t := range longSchemas {
+		if e.spec.Output.WritesLongTable(t.tableName()) {
+			out = append(out, t)
+		}
 	}
 	return out
 }

@@ -38,7 +38,7 @@ func (e *engine) openSink(out string, workers int) (*tableSink, error) {
 	}
 	// in the order of the file names (the order of Result.Files)
 	byName := map[string]longTable{}
-	for _, t := range longSchemas {
+	for _, t := range e.writtenLongTables() {
 		byName[t.file()] = t
 	}
 	for _, name := range slices.Sorted(maps.Keys(byName)) {

@@ -12,6 +12,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -162,6 +163,23 @@ type OutputSpec struct {
 	Report     bool   `toml:"report" json:"report"`         // report/index.html with maps and site pages
 	NetCDF     bool   `toml:"netcdf" json:"netcdf"`         // atlas.nc, CF raster (structured grids) or UGRID (meshes)
 	GeoPackage bool   `toml:"geopackage" json:"geopackage"` // atlas.gpkg, OGC GeoPackage
+	// LongTables, if given, are the only long tables written (by name:
+	// "monthly", "extremes", ...; LongTableNames lists them): for very large
+	// grids, where a table of rows per cell and bin is more than a study
+	// needs. Empty: every long table (the default).
+	LongTables []string `toml:"long_tables" json:"long_tables,omitempty"`
+}
+
+// LongTableNames are the run's long tables, by name (the file is the name
+// with ".parquet"), in file order: what output.long_tables may choose.
+var LongTableNames = []string{contract.TableAEPBands, contract.TableAnnual, contract.TableDesign, contract.TableDirections,
+	contract.TableExceedance, contract.TableExtremes, contract.TableMonthly, contract.TableScatter,
+	contract.TableThresholdDiagnostics, contract.TableWindows}
+
+// WritesLongTable reports whether the run writes the long table name
+// (output.long_tables).
+func (o OutputSpec) WritesLongTable(name string) bool {
+	return len(o.LongTables) == 0 || slices.Contains(o.LongTables, name)
 }
 
 // SiteSpec is a named place of interest: the report gives it a page, taken to
@@ -434,6 +452,14 @@ func (s *Spec) Validate() error {
 	for col, lv := range s.Contours.Levels {
 		if err := increasing("contours.levels."+col, lv, math.Inf(-1), math.Inf(1)); err != nil {
 			return err
+		}
+	}
+	if err := withinLimit("output.long_tables", len(s.Output.LongTables)); err != nil {
+		return err
+	}
+	for i, t := range s.Output.LongTables {
+		if !slices.Contains(LongTableNames, t) {
+			return bad(fmt.Sprintf("output.long_tables[%d]", i), fmt.Sprintf("not a long table; the long tables are %s (or leave output.long_tables out for all)", strings.Join(LongTableNames, ", ")), strconv.Quote(t))
 		}
 	}
 	if s.Output.Dir == "" {
