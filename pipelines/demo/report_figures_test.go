@@ -18,7 +18,8 @@ import (
 // here with the Arrow reader (parquetread), not with the report's reader:
 // the design contours equal design.parquet point for point, per return
 // period, for the grid's [[site]] cells and for spectral points; the rose's
-// sectors equal directions.parquet. The run summary states the run time.
+// sectors equal directions.parquet; the energy-band bars equal
+// aep_bands.parquet. The run summary states the run time.
 func TestReportFiguresEqualTables(t *testing.T) {
 	dir, _ := demoRun(t)
 	for _, name := range []string{"atlas-grid", "atlas-spectral-points"} {
@@ -39,7 +40,11 @@ func TestReportFiguresEqualTables(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		nDesign, nRose := 0, 0
+		bands, err := parquetread.Columns(filepath.Join(run, "aep_bands.parquet"), "cell_id", "device", "horizon_y", "aep_p50_mwh", "aep_p90_mwh", "aep_p99_mwh", "u_total_frac")
+		if err != nil {
+			t.Fatal(err)
+		}
+		nDesign, nRose, nBands := 0, 0, 0
 		for _, s := range sites {
 			vals, err := sgreport.PlottedValues(r, s)
 			if err != nil {
@@ -80,6 +85,29 @@ func TestReportFiguresEqualTables(t *testing.T) {
 					}
 				}
 			}
+			// aep_bands.parquet rows of the cell with a P50, in table order
+			var brows []int
+			for i := range bands["cell_id"] {
+				if bands["cell_id"][i].(int64) == int64(s.Cell) && !math.IsNaN(runcheck.Num(bands["aep_p50_mwh"][i])) {
+					brows = append(brows, i)
+				}
+			}
+			eb, ok := vals["site_"+s.Slug+"_energy_bands"].([]sgreport.EnergyBand)
+			if len(brows) > 0 != ok {
+				t.Errorf("%s site %s: %d energy-band rows, band figure drawn: %v", name, s.Name, len(brows), ok)
+			} else if ok {
+				nBands++
+				if len(eb) != len(brows) {
+					t.Errorf("%s site %s: %d band groups drawn, aep_bands.parquet has %d", name, s.Name, len(eb), len(brows))
+				}
+				for k, i := range brows[:min(len(brows), len(eb))] {
+					g := eb[k]
+					if g.Device != bands["device"][i].(string) || g.HorizonY != runcheck.Num(bands["horizon_y"][i]) || !runcheck.SameNum(g.P50, runcheck.Num(bands["aep_p50_mwh"][i])) ||
+						!runcheck.SameNum(g.P90, runcheck.Num(bands["aep_p90_mwh"][i])) || !runcheck.SameNum(g.P99, runcheck.Num(bands["aep_p99_mwh"][i])) || !runcheck.SameNum(g.TotalFrac, runcheck.Num(bands["u_total_frac"][i])) {
+						t.Errorf("%s site %s band %d: drawn %+v, aep_bands.parquet row %d differs", name, s.Name, k, g, i)
+					}
+				}
+			}
 			// directions.parquet rows of the cell
 			var rows []int
 			for i := range drs["cell_id"] {
@@ -116,7 +144,10 @@ func TestReportFiguresEqualTables(t *testing.T) {
 		if nDesign == 0 || nRose == 0 {
 			t.Errorf("%s: %d design figures and %d roses checked, want some of each", name, nDesign, nRose)
 		}
-		t.Logf("%s: %d sites, %d design figures and %d roses equal to the tables", name, len(sites), nDesign, nRose)
+		if name == "atlas-grid" && nBands == 0 {
+			t.Errorf("%s: no site's energy-band figure checked (the grid atlas has a device)", name)
+		}
+		t.Logf("%s: %d sites, %d design figures, %d roses and %d energy-band figures equal to the tables", name, len(sites), nDesign, nRose, nBands)
 		idx, err := os.ReadFile(filepath.Join(run, "report", "index.html"))
 		if err != nil {
 			t.Fatal(err)
