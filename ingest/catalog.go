@@ -190,6 +190,7 @@ type FileInfo struct {
 	// steps before lead and from keep on are shared with the neighbouring
 	// file of a role, which gives their values (Catalog.Duplicates).
 	lead, keep int
+	axes       int       // index of the file's spectral axes in Catalog.SpectralAxes (files with spectra)
 	timeUnits  string    // the time variable's units attribute
 	stamp      fileStamp // the file as the catalog saw it (identity.go)
 	// xFile, yFile are this file's own orientation: the file index of each
@@ -237,10 +238,16 @@ type Catalog struct {
 	Duplicates  []Duplicate       `json:"duplicate_steps,omitempty"`
 	Grid        *grid.Grid        `json:"-"`
 	Vars        map[Role]*VarInfo `json:"roles"`
-	Spectral    *Spectral         `json:"spectral,omitempty"`
-	RoleGaps    []Gap             `json:"role_gaps,omitempty"`
-	Depth       []float64         `json:"-"` // per cell, m; NaN unknown; +Inf deep water
-	DepthSource string            `json:"depth_source"`
+	// Spectral is the spectral axes of the first file with spectra, and
+	// SpectralAxes every distinct set of them, in order of first use (the
+	// first is Spectral); AxisSegments lists the record's stretches on one
+	// set when there is more than one (spectralaxes.go).
+	Spectral     *Spectral     `json:"spectral,omitempty"`
+	SpectralAxes []*Spectral   `json:"-"`
+	AxisSegments []AxisSegment `json:"spectral_axis_segments,omitempty"`
+	RoleGaps     []Gap         `json:"role_gaps,omitempty"`
+	Depth        []float64     `json:"-"` // per cell, m; NaN unknown; +Inf deep water
+	DepthSource  string        `json:"depth_source"`
 	// Readings say how each file's spectral conventions were read.
 	Readings []Reading `json:"spectral_readings,omitempty"`
 	// DepthVaries is true when depth varies in time: the reader then gives
@@ -380,18 +387,13 @@ func openLocked(inputs []string, opt Options) (*Catalog, error) {
 	first := scans[0]
 	c.Calendar, c.Grid, c.gridDim = first.cal, first.grid, first.gridDim
 	var w warnings
-	var spec *scan
 	for _, s := range scans {
 		if err := c.compatible(first, s); err != nil {
 			return nil, err
 		}
 		c.Readings = addReadings(c.Readings, s.info.Path, s.readings)
 		if s.spectral != nil {
-			if spec == nil {
-				spec, c.Spectral = s, s.spectral
-			} else if !sameFloats(spec.spectral.FreqHz, s.spectral.FreqHz) || !sameFloats(spec.spectral.DirDeg, s.spectral.DirDeg) {
-				return nil, fmt.Errorf("ingest: %s and %s have different %s coordinates (converted to Hz and nautical-from degrees); all files need one spectral layout", spec.info.Path, s.info.Path, map[bool]string{true: "frequency", false: "direction"}[!sameFloats(spec.spectral.FreqHz, s.spectral.FreqHz)])
-			}
+			c.addAxes(s) // each file keeps its own axes (spectralaxes.go)
 		}
 		for _, r := range s.info.Roles {
 			vi := s.info.vars[r]
@@ -424,6 +426,7 @@ func openLocked(inputs []string, opt Options) (*Catalog, error) {
 	if err := c.checkLongGaps(opt.AllowLongGaps); err != nil {
 		return nil, err
 	}
+	c.axisSegments()
 	if err := c.resolveDepth(scans, opt); err != nil {
 		return nil, err
 	}
@@ -495,7 +498,11 @@ func (c *Catalog) checkRoles(scans []*scan) error {
 			filesWord(c.Files), StandardNames[Te][0], StandardNames[Tp][0])}
 	}
 	if c.Vars[Spectrum2D] != nil && c.Vars[Spectrum1D] != nil {
-		return fmt.Errorf("ingest: %s: both a 2-D spectrum (%q) and a 1-D spectrum (%q); map one of them in the spec's [roles] table", filesWord(c.Files), c.Vars[Spectrum2D].Name, c.Vars[Spectrum1D].Name)
+		// Spectral axes may change between files, but the directional
+		// statistics (mean direction, directional power, direction
+		// sectors) need a direction axis over the whole record.
+		return fmt.Errorf("ingest: %s holds a 2-D spectrum (%q, on a direction axis) and %s a 1-D spectrum (%q, without one); the directional statistics (mean direction, directional power, direction sectors) need the direction axis in every file of the record, so a record cannot mix them: map one of them in the spec's [roles] table (roles.spectrum2d or roles.spectrum1d) and give it in every file",
+			PathText(c.fileOf(Spectrum2D)), c.Vars[Spectrum2D].Name, PathText(c.fileOf(Spectrum1D)), c.Vars[Spectrum1D].Name)
 	}
 	if vi := c.Vars[Depth]; vi != nil {
 		// Depth is static or varies in time in every file that has it.

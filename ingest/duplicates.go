@@ -41,6 +41,16 @@ func (c *Catalog) checkDuplicate(d *Duplicate, policy DuplicatePolicy) error {
 	defer closeLocked(fb)
 	for _, role := range d.Roles {
 		r := Role(role)
+		if spec := r == Spectrum2D || r == Spectrum1D; spec && c.axesOf(d.a) != c.axesOf(d.b) {
+			// two spectral layouts: no bin-by-bin comparison
+			d.Identical = false
+			if policy != DuplicatesRefuse {
+				continue
+			}
+			pa, pb := &c.Files[d.a], &c.Files[d.b]
+			return fmt.Errorf("ingest: %s and %s both hold time %s for role %s (variable %q) on different spectral axes (%s in the first, %s in the second), so the two spectra cannot be compared bin by bin; remove the step from one file, or set input.duplicate_steps = \"first\" (use %s) or \"last\" (use %s) in the spec",
+				PathText(pa.Path), PathText(pb.Path), d.Time, r, pa.vars[r].Name, c.SpectralAxes[pa.axes].binsText(), c.SpectralAxes[pb.axes].binsText(), PathText(pa.Path), PathText(pb.Path))
+		}
 		same, cell, va, vb, err := c.sameStep(r, d, fa, fb)
 		if err != nil {
 			return err
@@ -79,7 +89,7 @@ func closeLocked(f *ncFile) {
 func (c *Catalog) sameStep(r Role, d *Duplicate, fa, fb *ncFile) (same bool, cell int, va, vb float64, err error) {
 	per := 1
 	if (r == Spectrum2D || r == Spectrum1D) && c.Spectral != nil {
-		per = len(c.Spectral.FreqHz) * max(1, len(c.Spectral.DirDeg))
+		per = c.SpectralAxes[c.axesOf(d.a)].bins() // both files' axes (checkDuplicate)
 	}
 	n := c.Grid.NCells()
 	chunk := max(1, min(n, (1<<22)/per)) // cells per comparison: at most 4 Mi values a side

@@ -23,9 +23,11 @@ type Block struct {
 	Bulk map[Role][]float64
 	// Spec holds the spectra as [((t*(C1-C0) + c)*NF + f)*ND + d] in m2/Hz/rad
 	// (ND = 1 and m2/Hz for 1-D spectra), frequencies and directions in the
-	// order of Catalog.Spectral; NaN where missing.
+	// order of Catalog.SpectralAxes[Axes], the axes of the file the block's
+	// spectra come from; NaN where missing.
 	Spec   []float64
 	NF, ND int
+	Axes   int
 	// LastOfFile is true on the last block of a file.
 	LastOfFile bool
 
@@ -168,9 +170,17 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 		}
 	}
 	nc := r.C1 - r.C0
-	var nf, nd int
+	// The spectra are on the axes of the file they are read from (axes
+	// may change between files: spectralaxes.go).
+	var nf, nd, axes int
+	for _, role := range []Role{Spectrum2D, Spectrum1D} {
+		if src, ok := sources[role]; ok {
+			axes = c.axesOf(src.fi)
+		}
+	}
 	if c.Spectral != nil {
-		nf, nd = len(c.Spectral.FreqHz), max(1, len(c.Spectral.DirDeg))
+		sp := c.SpectralAxes[axes]
+		nf, nd = len(sp.FreqHz), max(1, len(sp.DirDeg))
 	}
 	if r.Sample > 0 {
 		s1 = min(s1, s0+r.Sample)
@@ -178,7 +188,7 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 	for b0 := s0; b0 < s1; b0 += r.MaxSteps {
 		nt := min(r.MaxSteps, s1-b0)
 		b := &Block{File: fi, Step0: b0, NT: nt, Times: c.times[b0 : b0+nt], C0: r.C0, C1: r.C1,
-			Bulk: map[Role][]float64{}, NF: nf, ND: nd, LastOfFile: b0+nt >= s1}
+			Bulk: map[Role][]float64{}, NF: nf, ND: nd, Axes: axes, LastOfFile: b0+nt >= s1}
 		for _, role := range Roles {
 			if c.roleFiles[role] == nil {
 				continue

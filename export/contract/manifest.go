@@ -52,6 +52,10 @@ type Document[P any] struct {
 	// (also in screening.json).
 	Screening *ScreeningSummary  `json:"screening,omitempty"`
 	Timings   map[string]float64 `json:"timings_s,omitempty"` // seconds per stage
+	// SpectralAxisSegments are the stretches of the record on one set of
+	// spectral axes when the axes change between files (a model upgrade),
+	// each integrated on its own axes; absent when they do not change.
+	SpectralAxisSegments []ingest.AxisSegment `json:"spectral_axis_segments,omitempty"`
 	// Raw is the whole document as read (DecodeManifest); never written.
 	Raw json.RawMessage `json:"-"`
 }

@@ -138,14 +138,16 @@ func (e *engine) memoryModel() (perCell, perResult float64, fixed int64) {
 			continue
 		}
 		if r == ingest.Spectrum2D || r == ingest.Spectrum1D {
-			values += e.layout.Len()
+			values += e.cat.MaxBins() // the largest spectrum of any file
 		} else {
 			values++
 		}
 	}
 	perCell = float64(m.State) + float64(blocksInFlight*e.spec.Exec.BlockSteps*values*8)
 	if e.spectral {
-		perCell += float64(e.layout.Len())*16 + 2048 // the cell's spectral kernel
+		for _, l := range e.layouts {
+			perCell += float64(l.Len())*16 + 2048 // the cell's spectral kernel for each set of axes
+		}
 	}
 	ncols := len(e.cellsColumns())
 	perResult = float64(m.Result) + float64(2*ncols*8+64)

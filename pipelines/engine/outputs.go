@@ -98,6 +98,10 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 		m.Gaps = []ingest.Gap{}
 	}
 	m.Segments, m.CoveredHours, m.StepDurations = c.Segments, c.CoveredHours(), c.DurationsOf(c.Steps)
+	for _, a := range c.AxisSegments {
+		a.FirstFile, a.LastFile = ingest.PathText(a.FirstFile), ingest.PathText(a.LastFile)
+		m.SpectralAxisSegments = append(m.SpectralAxisSegments, a)
+	}
 	for _, d := range c.Duplicates {
 		d.Files = []string{ingest.PathText(d.Files[0]), ingest.PathText(d.Files[1])}
 		d.Used = ingest.PathText(d.Used)

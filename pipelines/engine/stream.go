@@ -20,18 +20,24 @@ import (
 type cell struct {
 	clim *climate.CellState
 	col  *extremes.Collector
-	kern *seastate.Kernel      // spectral runs only
-	spec *seastate.RecordMeans // spectral runs only
+	// kerns holds the cell's spectral kernel for each set of spectral axes
+	// of the record (Catalog.SpectralAxes), made when a block on that set
+	// first comes (spectral runs only).
+	kerns []*seastate.Kernel
+	spec  *seastate.RecordMeans // spectral runs only
 }
 
 // engine holds what every worker shares read-only during a pass.
 type engine struct {
-	cat      *ingest.Catalog
-	spec     *runspec.Resolved
-	ccfg     *climate.Config
-	xcfg     extremes.CollectorConfig
-	layout   *seastate.Layout
-	sectors  *seastate.SectorSplit // 2-D spectra: direction bins over the rose's sectors
+	cat  *ingest.Catalog
+	spec *runspec.Resolved
+	ccfg *climate.Config
+	xcfg extremes.CollectorConfig
+	// layouts and sectors are per set of spectral axes (Catalog.SpectralAxes,
+	// which may change between files): each set's bins, and (2-D spectra)
+	// how its direction bins share the rose's fixed sectors.
+	layouts  []*seastate.Layout
+	sectors  []*seastate.SectorSplit
 	consts   seastate.Consts
 	spectral bool
 	// times is where the stream stage's time went, summed over passes.
@@ -74,15 +80,19 @@ func newEngine(cat *ingest.Catalog, spec *runspec.Resolved, ccfg *climate.Config
 		xcfg:   extremes.CollectorConfig{YearStartMonth: spec.Extremes.YearStartMonth, SeparationHours: spec.Extremes.SeparationH},
 	}
 	if cat.Spectral != nil && (cat.Vars[ingest.Spectrum2D] != nil || cat.Vars[ingest.Spectrum1D] != nil) {
-		l, err := seastate.NewLayout(cat.Spectral.FreqHz, cat.Spectral.DirDeg)
-		if err != nil {
-			return nil, fmt.Errorf("spectral layout: %v", err)
-		}
-		e.layout, e.spectral = l, true
-		if l.ND() > 0 {
-			if e.sectors, err = seastate.NewSectorSplit(l, ccfg.DirectionSectors); err != nil {
+		e.spectral = true
+		for _, a := range cat.SpectralAxes {
+			l, err := seastate.NewLayout(a.FreqHz, a.DirDeg)
+			if err != nil {
 				return nil, fmt.Errorf("spectral layout: %v", err)
 			}
+			var sp *seastate.SectorSplit
+			if l.ND() > 0 {
+				if sp, err = seastate.NewSectorSplit(l, ccfg.DirectionSectors); err != nil {
+					return nil, fmt.Errorf("spectral layout: %v", err)
+				}
+			}
+			e.layouts, e.sectors = append(e.layouts, l), append(e.sectors, sp)
 		}
 	}
 	return e, nil
@@ -91,10 +101,21 @@ func newEngine(cat *ingest.Catalog, spec *runspec.Resolved, ccfg *climate.Config
 func (e *engine) newCell(id int) *cell {
 	c := &cell{clim: climate.NewCellState(e.ccfg), col: extremes.NewCollector(e.xcfg)}
 	if e.spectral {
-		c.kern = seastate.NewKernel(e.layout, e.cat.Depth[id], e.consts)
+		c.kerns = make([]*seastate.Kernel, len(e.layouts))
 		c.spec = &seastate.RecordMeans{}
 	}
 	return c
+}
+
+// kernel is cell c (id) 's kernel for the spectral axes set axes, made on
+// first use: one per cell and set, whatever the number of blocks.
+func (e *engine) kernel(c *cell, id, axes int) *seastate.Kernel {
+	k := c.kerns[axes]
+	if k == nil {
+		k = seastate.NewKernel(e.layouts[axes], e.cat.Depth[id], e.consts)
+		c.kerns[axes] = k
+	}
+	return k
 }
 
 // stepTime is the calendar information of one time step, shared by all cells.
@@ -117,9 +138,10 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 	per := b.NF * b.ND
 	nan := math.NaN()
 	depths := b.Bulk[ingest.Depth] // per step when depth varies in time, else nil
+	sectors := e.sectors[b.Axes]   // the block's axes: those of its file
 	var sectorJ []float64
-	if e.sectors != nil {
-		sectorJ = make([]float64, e.sectors.N())
+	if sectors != nil {
+		sectorJ = make([]float64, sectors.N())
 	}
 	for id := lo; id < hi; id++ {
 		c := cells[id-b.C0]
@@ -127,16 +149,17 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 			continue
 		}
 		k := id - b.C0
+		kern := e.kernel(c, id, b.Axes)
 		for t := 0; t < b.NT; t++ {
 			st := &times[t]
 			i := t*nc + k
 			j, hm0, te, tp, dir := nan, nan, nan, nan, nan
 			if depths != nil {
-				c.kern.SetDepth(depths[i]) // depth varying in time: this step's
+				kern.SetDepth(depths[i]) // depth varying in time: this step's
 			}
 			if s := b.Spec[i*per : (i+1)*per]; !seastate.AllMissing(s) {
 				// missing (NaN) and non-finite bins are set to 0 and counted by the kernel
-				c.kern.Params(s, &p)
+				kern.Params(s, &p)
 				if p.Hm0 > maxSeaHm0M {
 					e.beyond.note(b.Step0+t, id, p.Hm0) // refused at the end of the file (checkSea)
 				}
@@ -151,7 +174,7 @@ func (e *engine) feed(b *ingest.Block, times []stepTime, cells []*cell, lo, hi i
 			// screened: unusable values counted and left out, here as in the state
 			j, hm0, te, tp, dir = c.clim.AddAt(&st.ct, j, hm0, te, tp, dir)
 			if sectorJ != nil && j == j { // j is valid only after a valid Params
-				c.kern.SectorPowers(e.sectors, sectorJ)
+				kern.SectorPowers(sectors, sectorJ)
 				c.clim.AddDirectionalPower(&st.ct, sectorJ, dir)
 			}
 			c.col.Add(st.year, st.month, st.hours, st.weightH, hm0, te, tp)

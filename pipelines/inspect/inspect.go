@@ -49,6 +49,9 @@ type Report struct {
 	LonFrame    string                          `json:"lon_frame"`    // the grid's continuous longitude frame: "-180..180" or "0..360"
 	Roles       map[ingest.Role]*ingest.VarInfo `json:"roles"`
 	Spectral    *ingest.Spectral                `json:"spectral,omitempty"`
+	// AxisSegments are the stretches of the record on one set of spectral
+	// axes, when the axes change between files (else empty).
+	AxisSegments []ingest.AxisSegment `json:"spectral_axis_segments,omitempty"`
 	// Readings say how the spectral conventions were read; an ambiguous
 	// one not stated by the spec stops a run.
 	Readings    []ingest.Reading `json:"spectral_readings,omitempty"`
@@ -99,7 +102,7 @@ func (r *Report) countEmpty(cat *ingest.Catalog) error {
 	per := 1
 	if cat.Spectral != nil && (cat.Vars[ingest.Spectrum2D] != nil || cat.Vars[ingest.Spectrum1D] != nil) {
 		lead = ingest.Spectrum2D
-		per = len(cat.Spectral.FreqHz) * max(1, len(cat.Spectral.DirDeg))
+		per = cat.MaxBins() // the largest of the files' spectra (axes may change between files)
 	}
 	n := cat.Grid.NCells()
 	seen := make([]bool, n)
@@ -114,6 +117,9 @@ func (r *Report) countEmpty(cat *ingest.Catalog) error {
 		}()
 		for b := range out {
 			nc := b.NC()
+			if lead != ingest.Hm0 {
+				per = b.NF * b.ND // the block's own axes
+			}
 			for t := 0; t < b.NT; t++ {
 				for k := 0; k < nc; k++ {
 					i := t*nc + k
@@ -243,7 +249,7 @@ func termAll(ts []string) []string {
 func report(cat *ingest.Catalog) *Report {
 	r := &Report{Files: cat.Files, Calendar: cat.Calendar, Start: cat.Start, End: cat.End, Steps: cat.Steps,
 		StepSeconds: cat.StepSeconds, Gaps: cat.Gaps, RoleGaps: cat.RoleGaps, GridKind: cat.Grid.Kind.String(), GridShape: [2]int{cat.Grid.NY, cat.Grid.NX},
-		Cells: cat.Grid.NCells(), Roles: cat.Vars, Spectral: cat.Spectral, Readings: cat.Readings, DepthSource: cat.DepthSource, Warnings: cat.Warnings,
+		Cells: cat.Grid.NCells(), Roles: cat.Vars, Spectral: cat.Spectral, AxisSegments: cat.AxisSegments, Readings: cat.Readings, DepthSource: cat.DepthSource, Warnings: cat.Warnings,
 		Segments: cat.Segments, CoveredHours: cat.CoveredHours(), Duplicates: cat.Duplicates}
 	if r.Gaps == nil {
 		r.Gaps = []ingest.Gap{}
@@ -398,7 +404,16 @@ func (r *Report) WriteText(w io.Writer) error {
 			}
 			fmt.Fprintf(&sb, ", %d directions (%s)", len(sp.DirDeg), conv)
 		}
+		if len(r.AxisSegments) > 1 {
+			sb.WriteString(" in the first file")
+		}
 		sb.WriteString("\n")
+	}
+	if len(r.AxisSegments) > 1 {
+		fmt.Fprintf(&sb, "spectral axes change between files: %d segments, each integrated on its own axes\n", len(r.AxisSegments))
+		for _, s := range r.AxisSegments {
+			fmt.Fprintf(&sb, "  %s\n", ingest.TermText(s.String()))
+		}
 	}
 	writeReadings(&sb, r.Readings)
 	fmt.Fprintf(&sb, "depth        %s", ingest.TermText(r.DepthSource))

@@ -326,11 +326,15 @@ func (v *validator) readCells(ctx context.Context, places []*stationPlace) error
 		ids = append(ids, c)
 	}
 	sort.Ints(ids)
-	var l *seastate.Layout
+	// one layout per set of spectral axes (they may change between files)
+	var layouts []*seastate.Layout
 	if v.cat.Spectral != nil && (v.cat.Vars[ingest.Spectrum2D] != nil || v.cat.Vars[ingest.Spectrum1D] != nil) {
-		var err error
-		if l, err = seastate.NewLayout(v.cat.Spectral.FreqHz, v.cat.Spectral.DirDeg); err != nil {
-			return fmt.Errorf("spectral layout: %w", err)
+		for _, a := range v.cat.SpectralAxes {
+			l, err := seastate.NewLayout(a.FreqHz, a.DirDeg)
+			if err != nil {
+				return fmt.Errorf("spectral layout: %w", err)
+			}
+			layouts = append(layouts, l)
 		}
 	}
 	v.series = map[int]*cellSeries{}
@@ -357,7 +361,8 @@ func (v *validator) readCells(ctx context.Context, places []*stationPlace) error
 			defer close(ch)
 			errc <- v.cat.Read(rctx, ingest.ReadRange{C0: c0, C1: c1, MaxSteps: 256}, ch)
 		}()
-		kerns := map[int]*seastate.Kernel{}
+		type kernKey struct{ cell, axes int }
+		kerns := map[kernKey]*seastate.Kernel{}
 		var p seastate.Params
 		for b := range ch {
 			nc := b.NC()
@@ -366,16 +371,16 @@ func (v *validator) readCells(ctx context.Context, places []*stationPlace) error
 				for t := 0; t < b.NT; t++ {
 					i := t*nc + (id - c0)
 					step := b.Step0 + t
-					if l != nil {
+					if layouts != nil {
 						per := b.NF * b.ND
 						sp := b.Spec[i*per : (i+1)*per]
 						if seastate.AllMissing(sp) {
 							continue
 						}
-						kern := kerns[id]
+						kern := kerns[kernKey{id, b.Axes}]
 						if kern == nil {
-							kern = seastate.NewKernel(l, v.cat.Depth[id], v.consts)
-							kerns[id] = kern
+							kern = seastate.NewKernel(layouts[b.Axes], v.cat.Depth[id], v.consts)
+							kerns[kernKey{id, b.Axes}] = kern
 						}
 						kern.Params(sp, &p)
 						if p.Valid {
