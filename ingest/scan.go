@@ -716,17 +716,20 @@ func (s *scan) findSpectral(opt Options) error {
 	sp := &Spectral{}
 	var freqUnits, dirUnits string
 	var dirFrom string
+	var seen []string // each spectral dimension's coordinate, for messages
 	for k, d := range vi.Dims {
 		if vi.axes[k] != 0 {
 			continue
 		}
 		cv := s.f.find(d)
 		if cv == nil || len(cv.dims) != 1 {
-			return errf(s.f.path, vi.Name, "dimension %q has no coordinate variable; add %s(%s) with units", d, d, d)
+			return errf(s.f.path, vi.Name, "dimension %q has no coordinate variable, so its frequencies or directions are unknown; no spec key gives them: add %s(%s) with standard_name %s and units \"Hz\" (a frequency) or standard_name %s and units \"degree\" (a direction)",
+				d, d, d, FrequencyNames[0], StandardNames[Dir][0])
 		}
 		sn := cv.str("standard_name")
 		u := cv.str("units")
 		found := quoteAttrs([]attr{{"standard_name", sn}, {"long_name", cv.str("long_name")}})
+		seen = append(seen, fmt.Sprintf("%q (units %q, %s)", d, u, found))
 		vals, err := cv.readAll(s.f.path)
 		if err != nil {
 			return err
@@ -738,7 +741,7 @@ func (s *scan) findSpectral(opt Options) error {
 			for i, f := range vals {
 				f *= ffac
 				if !(f > 0) || math.IsInf(f, 0) {
-					return errf(s.f.path, cv.name, "frequency %d is %v (units %q); frequencies must be positive", i, vals[i], u)
+					return errf(s.f.path, cv.name, "frequency %d is %v (units %q, %s); frequencies must be positive and finite; no spec key overrides a coordinate's values: correct the coordinate", i, vals[i], u, found)
 				}
 				sp.FreqHz = append(sp.FreqHz, f)
 			}
@@ -761,7 +764,7 @@ func (s *scan) findSpectral(opt Options) error {
 			for i, d := range vals {
 				d *= fac
 				if math.IsNaN(d) || math.IsInf(d, 0) || d < -360 || d > 720 {
-					return errf(s.f.path, cv.name, "direction %d is %v (units %q: %v degrees); directions must lie in 0-360 degrees: check the values or the units", i, vals[i], u, d)
+					return errf(s.f.path, cv.name, "direction %d is %v (units %q: %v degrees; %s); directions must lie in 0-360 degrees; no spec key overrides a coordinate's values or units: correct the values or the units", i, vals[i], u, d, found)
 				}
 				sp.DirDeg = append(sp.DirDeg, conv.ToNauticalFrom(d))
 			}
@@ -771,7 +774,8 @@ func (s *scan) findSpectral(opt Options) error {
 			d, u, found)
 	}
 	if len(sp.FreqHz) == 0 || (vi.Role == Spectrum2D && len(sp.DirDeg) == 0) {
-		return errf(s.f.path, vi.Name, "spectral dimensions %v: found %d frequencies and %d directions; the spectrum needs a frequency and (2-D) a direction coordinate", vi.Dims, len(sp.FreqHz), len(sp.DirDeg))
+		return errf(s.f.path, vi.Name, "spectral dimensions %s: found %d frequencies and %d directions; the spectrum needs a frequency and (2-D) a direction coordinate; no spec key overrides a coordinate's attributes: give the frequency coordinate units \"Hz\" (standard_name %s) and the direction coordinate units \"degree\" (standard_name %s)",
+			strings.Join(seen, ", "), len(sp.FreqHz), len(sp.DirDeg), FrequencyNames[0], StandardNames[Dir][0])
 	}
 	// The density: its encoding, then its units against the axes'.
 	encKey, basisKey, unitsKey := "units."+string(vi.Role)+"_encoding", "units."+string(vi.Role)+"_basis", "units."+string(vi.Role)

@@ -183,3 +183,19 @@ func TestSpectralAxesDirectionNeeded(t *testing.T) {
 		}
 	}
 }
+
+// A direction coordinate in Hz without a standard_name is taken for a
+// frequency, and its value 0 is refused quoting the coordinate's units and
+// long_name and saying that no spec key overrides them.
+func TestSpectralAxisRefusalQuotes(t *testing.T) {
+	_, err := Open([]string{spectralFile(t, map[string]string{"standard_name": "sea_surface_wave_frequency", "units": "Hz"},
+		map[string]string{"long_name": "bin", "units": "Hz"})}, Options{DeepWater: true})
+	if err == nil {
+		t.Fatal("a direction coordinate in Hz was read")
+	}
+	for _, frag := range []string{`variable "direction": frequency 0 is 0 (units "Hz", long_name "bin")`, "no spec key"} {
+		if !strings.Contains(err.Error(), frag) {
+			t.Errorf("refusal lacks %q: %v", frag, err)
+		}
+	}
+}
