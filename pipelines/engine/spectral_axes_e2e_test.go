@@ -1,11 +1,13 @@
 package engine
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -14,7 +16,9 @@ import (
 	"swellgrid/export/rundir"
 	"swellgrid/ingest"
 	"swellgrid/internal/parquetread"
+	"swellgrid/internal/runcheck"
 	"swellgrid/pipelines/inspect"
+	"swellgrid/pipelines/runspec"
 	"swellgrid/pipelines/validation"
 )
 
@@ -240,4 +244,66 @@ func TestSpectralAxesReferenceReproduced(t *testing.T) {
 			}
 		}
 	}
+}
+
+// The model upgrade as it comes: a run on January (one set of axes), then
+// February and March (two other sets) added by an update, and the same
+// through two shards updated and merged, give the tables of a run on the
+// three files at once (DESIGN.md: resuming continues the per-cell states),
+// and the updated manifest lists the three axis segments.
+func TestSpectralAxesUpdateSameAsFullRun(t *testing.T) {
+	tmp := t.TempDir()
+	src, _ := filepath.Glob("../../testdata/spectral_axes/axes_2031-0*.nc")
+	if len(src) != 3 {
+		t.Fatalf("fixtures %v", src)
+	}
+	spec := func(in []string, out string) *runspec.Spec {
+		s := clSpec(in, out)
+		s.Output.Report, s.Output.NetCDF, s.Output.GeoPackage = false, false, false
+		return s
+	}
+	full := filepath.Join(tmp, "full")
+	clRun(t, spec(src, full), Options{})
+	want := runcheck.RunOutputs(t, full)
+
+	grow := filepath.Join(tmp, "grow")
+	os.MkdirAll(grow, 0o755)
+	copyInto(t, grow, src[:1])
+	run := filepath.Join(tmp, "run")
+	clRun(t, spec([]string{grow}, run), Options{})
+	if bytes.Equal(runcheck.RunOutputs(t, run)["cells.parquet"], want["cells.parquet"]) {
+		t.Fatal("January alone gave the three months' tables: the comparison would prove nothing")
+	}
+	copyInto(t, grow, src[1:])
+	clRun(t, spec([]string{grow}, run), Options{Update: true})
+	runcheck.SameOutputs(t, "January + update with February and March", want, runcheck.RunOutputs(t, run))
+	b, err := os.ReadFile(filepath.Join(run, contract.ManifestFile))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var man struct {
+		Segs []ingest.AxisSegment `json:"spectral_axis_segments"`
+	}
+	if err := json.Unmarshal(b, &man); err != nil || len(man.Segs) != 3 {
+		t.Errorf("updated manifest's spectral_axis_segments: %+v (%v), want 3", man.Segs, err)
+	}
+
+	grow2 := filepath.Join(tmp, "grow2")
+	os.MkdirAll(grow2, 0o755)
+	copyInto(t, grow2, src[:1])
+	var dirs []string
+	for i := 1; i <= 2; i++ {
+		d := filepath.Join(tmp, "shard", strconv.Itoa(i))
+		clRun(t, spec([]string{grow2}, d), Options{Shard: &Shard{Index: i, Count: 2}})
+		dirs = append(dirs, d)
+	}
+	copyInto(t, grow2, src[1:])
+	for _, d := range dirs {
+		clRun(t, spec([]string{grow2}, d), Options{Update: true})
+	}
+	merged := filepath.Join(tmp, "merged")
+	if _, err := Merge(context.Background(), merged, dirs, Options{}); err != nil {
+		t.Fatal(err)
+	}
+	runcheck.SameOutputs(t, "2 shards of January, each updated with February and March, merged", want, runcheck.RunOutputs(t, merged))
 }
