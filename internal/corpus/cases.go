@@ -110,6 +110,36 @@ func specCase(change func(d *ncDesc)) func(string) (*Setup, error) {
 	}
 }
 
+// spec2DThen1DCase builds a two-month spectral input: January's 2-D
+// spectra, February's integrated over direction into a 1-D spectrum
+// (E(f) = sum_j S_j dtheta, no direction axis).
+func spec2DThen1DCase(dir string) (*Setup, error) {
+	jan, feb := spectralFile(1, 11), spectralFile(2, 11)
+	v := feb.v("efth")
+	oned := make([]float64, len(v.data)/specND)
+	for k := range oned {
+		for j := 0; j < specND; j++ {
+			oned[k] += v.data[k*specND+j] * 2 * math.Pi / specND
+		}
+	}
+	v.data, v.dims = oned, []string{"time", "station", "frequency"}
+	v.setText("standard_name", "sea_surface_wave_variance_spectral_density")
+	v.setText("units", "m2 s")
+	feb.drop("direction")
+	dims := feb.dims[:0]
+	for _, d := range feb.dims {
+		if d.name != "direction" {
+			dims = append(dims, d)
+		}
+	}
+	feb.dims = dims
+	in, err := writeAll(dir, map[string]*ncDesc{"cx_spec_2001-01.nc": jan, "cx_spec_2001-02.nc": feb})
+	if err != nil {
+		return nil, err
+	}
+	return &Setup{Input: in}, nil
+}
+
 // runSpecCase builds a good bulk input and a run spec with body (plus files).
 func runSpecCase(body string, extra map[string]string) func(string) (*Setup, error) {
 	return func(dir string) (*Setup, error) {
@@ -305,6 +335,9 @@ func Cases() []Case {
 		{Name: "density_wrong_units", Breaks: `spectral density with units "m2" (no per-frequency)`, Outcome: Refused, Exit: 2, Stage: "catalog",
 			Want:  []string{"cx_spec_2001-01.nc", `"efth"`, "not convertible", "set units.spectrum2d in the spec"},
 			build: specCase(func(d *ncDesc) { d.v("efth").setText("units", "m2") })},
+		{Name: "spectrum_2d_then_1d", Breaks: "directional spectra in January, frequency spectra (no direction axis) in February", Outcome: Refused, Exit: 2, Stage: "catalog",
+			Want:  []string{"cx_spec_2001-01.nc", "cx_spec_2001-02.nc", "direction axis in every file", "roles.spectrum2d"},
+			build: spec2DThen1DCase},
 		{Name: "direction_coord_out_of_range", Breaks: "spectral direction coordinate reaching 900 degrees", Outcome: Refused, Exit: 2, Stage: "catalog",
 			Want:  []string{"cx_spec_2001-01.nc", `"direction"`, "0-360"},
 			build: specCase(func(d *ncDesc) { d.v("direction").data[11] = 900 })},
