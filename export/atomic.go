@@ -16,10 +16,17 @@ import (
 // write) the temporary file is removed, and no file named path is created or
 // replaced. The file gets mode 0644.
 func WriteFileAtomic(path string, write func(w io.Writer) error) (err error) {
+	return WriteFileAtomicMode(path, 0o644, write)
+}
+
+// WriteFileAtomicMode is WriteFileAtomic giving the file the mode perm (a
+// script: 0755).
+func WriteFileAtomicMode(path string, perm os.FileMode, write func(w io.Writer) error) (err error) {
 	f, err := CreateAtomic(path)
 	if err != nil {
 		return err
 	}
+	f.mode = perm
 	defer f.Abort()
 	if err := write(f); err != nil {
 		return fmt.Errorf("export: writing %s: %w", path, err)
@@ -33,6 +40,7 @@ func WriteFileAtomic(path string, write func(w io.Writer) error) (err error) {
 // as its rows come).
 type AtomicFile struct {
 	path, tmp string
+	mode      os.FileMode
 	f         *os.File
 	bw        *bufio.Writer
 	done      bool
@@ -47,18 +55,18 @@ func CreateAtomic(path string) (*AtomicFile, error) {
 	if base == "" {
 		return nil, fmt.Errorf("export: %q names a directory, not a file", path)
 	}
-	f, err := os.CreateTemp(dir, "."+base+".partial-*")
+	f, err := os.CreateTemp(dir, "."+base+PartialMark+"*")
 	if err != nil {
 		return nil, fmt.Errorf("export: cannot create a temporary file for %s (does the output directory exist and is it writable?): %w", path, err)
 	}
-	return &AtomicFile{path: path, tmp: f.Name(), f: f, bw: bufio.NewWriterSize(f, 1<<20)}, nil
+	return &AtomicFile{path: path, tmp: f.Name(), mode: 0o644, f: f, bw: bufio.NewWriterSize(f, 1<<20)}, nil
 }
 
 // Write writes to the temporary file.
 func (a *AtomicFile) Write(p []byte) (int, error) { return a.bw.Write(p) }
 
-// Commit flushes the file to disk (fsync) and renames it to its path. When
-// it fails, the temporary file is removed: nothing is left behind.
+// Commit flushes the file to disk (fsync) and renames it to its path, unless
+// the path is a symbolic link (a *LinkError, see RenameInto). When it fails, the temporary file is removed: nothing is left behind.
 func (a *AtomicFile) Commit() error {
 	path := a.path
 	if a.done {
@@ -75,7 +83,7 @@ func (a *AtomicFile) commit(path string) error {
 	if err := a.bw.Flush(); err != nil {
 		return fmt.Errorf("export: writing %s: %w", path, err)
 	}
-	if err := a.f.Chmod(0o644); err != nil {
+	if err := a.f.Chmod(a.mode); err != nil {
 		return fmt.Errorf("export: setting the mode of %s: %w", path, err)
 	}
 	if err := a.f.Sync(); err != nil {
@@ -84,12 +92,10 @@ func (a *AtomicFile) commit(path string) error {
 	if err := a.f.Close(); err != nil {
 		return fmt.Errorf("export: closing %s: %w", path, err)
 	}
-	if err := os.Rename(a.tmp, path); err != nil {
-		os.Remove(a.tmp)
-		a.done = true
-		return fmt.Errorf("export: renaming the finished %s into place: %w", path, err)
-	}
 	a.done = true
+	if err := RenameInto(a.tmp, path); err != nil {
+		return err
+	}
 	// Make the rename itself durable; not every file system supports a
 	// directory fsync, so a failure here is not an error.
 	dir := filepath.Dir(path)

@@ -93,8 +93,8 @@ func WriteContours(runDir, column, units string, levels []float64, lines []orb.M
 	if len(layers) == 0 {
 		return nil
 	}
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return fmt.Errorf("export: creating %s: %w", dir, err)
+	if _, err := MakeDir(runDir, ContourDir); err != nil {
+		return err
 	}
 	var created []string
 	for _, l := range layers {

@@ -3,7 +3,6 @@ package export
 import (
 	"fmt"
 	"io"
-	"os"
 	"path/filepath"
 
 	"github.com/paulmach/orb"
@@ -32,9 +31,9 @@ func WriteScreeningOutline(runDir, scenario string, mp orb.MultiPolygon, props m
 	if err != nil {
 		return fmt.Errorf("export: screening outline %s: %w", scenario, err)
 	}
-	dir := filepath.Join(runDir, ContourDir)
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return fmt.Errorf("export: creating %s: %w", dir, err)
+	dir, err := MakeDir(runDir, ContourDir)
+	if err != nil {
+		return err
 	}
 	return WriteFileAtomic(filepath.Join(dir, contract.ScreeningOutlineFile(scenario)), func(w io.Writer) error {
 		_, err := w.Write(data)

@@ -32,6 +32,7 @@ import (
 	"github.com/paulmach/orb/geojson"
 	_ "modernc.org/sqlite"
 
+	"swellgrid/export"
 	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
@@ -117,18 +118,16 @@ func Write(r *rundir.Run) error {
 		return err
 	}
 	final := filepath.Join(r.Dir, FileName)
-	tmp := filepath.Join(r.Dir, "."+FileName+".partial")
-	os.Remove(tmp)
+	tmp, cleanup, err := export.PartialDir(r.Dir, FileName)
+	if err != nil {
+		return err
+	}
+	defer cleanup()
 	if err := write(tmp, stamp(r.Manifest.End), layers); err != nil {
 		err = rundir.NoSpace(r.Dir, err) // SQLite says "database or disk is full"; before the partial file's space is freed
-		os.Remove(tmp)
 		return fmt.Errorf("gpkg: writing %s: %w", final, err)
 	}
-	if err := os.Rename(tmp, final); err != nil {
-		os.Remove(tmp)
-		return fmt.Errorf("gpkg: renaming the finished %s into place: %w", final, err)
-	}
-	return nil
+	return export.RenameInto(tmp, final)
 }
 
 // stamp is the last_change of every layer: the end of the hindcast record,

@@ -18,12 +18,12 @@ package raster
 import (
 	"fmt"
 	"math"
-	"os"
 	"path/filepath"
 	"strings"
 
 	"github.com/fhs/go-netcdf/netcdf"
 
+	"swellgrid/export"
 	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
@@ -71,8 +71,11 @@ func Write(r *rundir.Run) error {
 		return err
 	}
 	final := filepath.Join(r.Dir, FileName)
-	tmp := filepath.Join(r.Dir, "."+FileName+".partial")
-	os.Remove(tmp)
+	tmp, cleanup, err := export.PartialDir(r.Dir, FileName)
+	if err != nil {
+		return err
+	}
+	defer cleanup()
 	err = ingest.WithNetCDF(func() error {
 		if r.Mesh != nil {
 			return writeMesh(tmp, r, monthly) // ugrid.go
@@ -81,14 +84,9 @@ func Write(r *rundir.Run) error {
 	})
 	if err != nil {
 		err = rundir.NoSpace(r.Dir, err) // NetCDF-C says only "HDF error"; before the partial file's space is freed
-		os.Remove(tmp)
 		return fmt.Errorf("raster: writing %s: %w", final, err)
 	}
-	if err := os.Rename(tmp, final); err != nil {
-		os.Remove(tmp)
-		return fmt.Errorf("raster: renaming the finished %s into place: %w", final, err)
-	}
-	return nil
+	return export.RenameInto(tmp, final)
 }
 
 func text(a netcdf.Attr, s string) error { return a.WriteBytes([]byte(s)) }

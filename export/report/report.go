@@ -25,6 +25,7 @@ import (
 	"strconv"
 	"strings"
 
+	"swellgrid/export"
 	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
@@ -99,7 +100,7 @@ func Build(r *rundir.Run) ([]string, []string, error) { return BuildWith(r, 0) }
 // BuildWith is Build rendering the figures with at most workers goroutines
 // (0: one per core). The files do not depend on the number.
 func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
-	tmp, err := os.MkdirTemp(r.Dir, ".report.partial-")
+	tmp, err := os.MkdirTemp(r.Dir, "."+Dir+export.PartialMark)
 	if err != nil {
 		return nil, nil, fmt.Errorf("report: %w", err)
 	}
@@ -233,7 +234,13 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 	final := filepath.Join(r.Dir, Dir)
 	old := final + ".old"
 	os.RemoveAll(old)
-	if _, err := os.Stat(final); err == nil {
+	if err := export.CheckTarget(final, true); err != nil {
+		return nil, nil, err
+	}
+	if err := export.CheckTarget(old, true); err != nil {
+		return nil, nil, err
+	}
+	if _, err := os.Lstat(final); err == nil {
 		if err := os.Rename(final, old); err != nil {
 			return nil, nil, fmt.Errorf("report: moving the earlier %s aside: %w", final, err)
 		}

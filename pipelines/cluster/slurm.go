@@ -8,12 +8,14 @@ package cluster
 import (
 	"context"
 	"fmt"
+	"io"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"strconv"
 	"strings"
 
+	"swellgrid/export"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/engine"
 	"swellgrid/pipelines/fault"
@@ -112,17 +114,27 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 	}
 	bin = absPath(bin)
 	out := absPath(spec.Output.Dir)
+	if err := os.MkdirAll(out, 0o755); err != nil {
+		return nil, fault.Output(fmt.Errorf("cluster slurm: output directory %s: %w", out, err))
+	}
+	// The folders inside the run directory go through its one door
+	// (export.MakeDir: a planted link is refused); a --script-dir of the
+	// user's choice is made as given.
 	sdir := j.ScriptDir
 	if sdir == "" {
-		sdir = filepath.Join(out, lock.StateDir, "slurm")
+		d, err := export.MakeDir(out, lock.StateDir+"/slurm")
+		if err != nil {
+			return nil, fault.Input(fmt.Errorf("cluster slurm: script directory: %w", err))
+		}
+		sdir = d
 	}
 	sdir = absPath(sdir)
-	shardRoot := filepath.Join(out, lock.StateDir, "shards")
+	shardRoot, err := export.MakeDir(out, lock.StateDir+"/shards")
+	if err != nil {
+		return nil, fault.Input(fmt.Errorf("cluster slurm: shard directory: %w", err))
+	}
 	if err := os.MkdirAll(sdir, 0o755); err != nil {
 		return nil, fault.Output(fmt.Errorf("cluster slurm: script directory %s: %w", sdir, err))
-	}
-	if err := os.MkdirAll(shardRoot, 0o755); err != nil {
-		return nil, fault.Output(fmt.Errorf("cluster slurm: shard directory %s: %w", shardRoot, err))
 	}
 	cwd, _ := os.Getwd()
 	res := &SlurmScripts{ArrayScript: filepath.Join(sdir, "shards.sbatch"), MergeScript: filepath.Join(sdir, "merge.sbatch"), Out: out, Plan: plan}
@@ -163,7 +175,11 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 	merge := header("swellgrid-merge", "merge.log", "--kill-on-invalid-dep=yes") +
 		fmt.Sprintf("exec %s merge --out %s --workers \"${SLURM_CPUS_PER_TASK:-%d}\"%s %s\n", shQuote(bin), shQuote(out), cpus, memFlag, strings.Join(dirs, " "))
 	for _, f := range [][2]string{{res.ArrayScript, array}, {res.MergeScript, merge}} {
-		if err := os.WriteFile(f[0], []byte(f[1]), 0o755); err != nil {
+		body := f[1]
+		if err := export.WriteFileAtomicMode(f[0], 0o755, func(w io.Writer) error {
+			_, err := io.WriteString(w, body)
+			return err
+		}); err != nil {
 			return nil, fault.Output(fmt.Errorf("cluster slurm: %w", err))
 		}
 	}

@@ -362,15 +362,19 @@ func (h *ckHeader) mismatch(w ckHeader, trusted int) string {
 	return ""
 }
 
-// removePartials deletes the temporary files (".<name>.partial-*", see
-// export.WriteFileAtomic) that a run killed while writing left in the run
+// removePartials deletes the temporary files and folders
+// (export.PartialGlob: ".<name>.partial-*", see export.WriteFileAtomic and
+// export.PartialDir) that a run killed while writing left in the run
 // directory, its contours folder and its state folder. It runs under the lock,
-// so no live run owns them.
+// so no live run owns them. A link is removed, never followed (RemoveAll).
 func removePartials(out string) {
-	for _, d := range []string{out, filepath.Join(out, "contours"), filepath.Join(out, lock.StateDir)} {
-		m, _ := filepath.Glob(filepath.Join(d, ".*.partial-*"))
+	for i, d := range []string{out, filepath.Join(out, export.ContourDir), filepath.Join(out, lock.StateDir)} {
+		if st, err := os.Lstat(d); i > 0 && (err != nil || !st.IsDir()) {
+			continue // --out may be a link, its folders may not
+		}
+		m, _ := filepath.Glob(filepath.Join(d, export.PartialGlob))
 		for _, p := range m {
-			os.Remove(p)
+			os.RemoveAll(p)
 		}
 	}
 }

@@ -259,29 +259,28 @@ func sameInputs(a, b []contract.Input) string {
 	return ""
 }
 
-// copyFile copies src to dst atomically, as a hard link where the file
-// system allows (checkpoints are replaced by rename, never rewritten in
-// place, so a link is safe).
+// copyFile copies src to dst (in the run's state folder, which the lock
+// made) atomically, as a hard link where the file system allows
+// (checkpoints are replaced by rename, never rewritten in place, so a link
+// is safe). The link gets a unique temporary name (a link never replaces an
+// existing name) and is renamed only over a dst that is not a symbolic link
+// (export.RenameInto).
 func copyFile(src, dst string) error {
-	if err := os.MkdirAll(filepath.Dir(dst), 0o755); err != nil {
-		return err
-	}
-	tmp := dst + ".link"
-	os.Remove(tmp)
-	if os.Link(src, tmp) == nil {
-		if err := os.Rename(tmp, dst); err == nil {
-			return nil
-		}
+	if t, err := os.CreateTemp(filepath.Dir(dst), "."+filepath.Base(dst)+export.PartialMark+"*"); err == nil {
+		tmp := t.Name()
+		t.Close()
 		os.Remove(tmp)
+		if os.Link(src, tmp) == nil {
+			if err := export.RenameInto(tmp, dst); err == nil || export.IsLink(err) {
+				return err
+			}
+		}
 	}
 	f, err := os.Open(src)
 	if err != nil {
 		return err
 	}
 	defer f.Close()
-	if err := os.MkdirAll(filepath.Dir(dst), 0o755); err != nil {
-		return err
-	}
 	return export.WriteFileAtomic(dst, func(w io.Writer) error {
 		_, err := io.Copy(w, f)
 		return err

@@ -78,7 +78,7 @@ func (e *engine) writeContours(out string, vals map[string][]float64) ([]string,
 			return nil, nil, fmt.Errorf("contours of %s: %v", col, err)
 		}
 		if err := export.WriteContours(out, col, units[col], levels, lines, edges, bands); err != nil {
-			return nil, nil, fmt.Errorf("writing contours of %s: %v", col, err)
+			return nil, nil, fmt.Errorf("writing contours of %s: %w", col, err)
 		}
 		written = append(written, "contours/"+col+".geojson", "contours/"+col+".bands.geojson")
 	}

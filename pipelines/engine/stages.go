@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"swellgrid/export"
+	"swellgrid/export/contract"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
 	"swellgrid/pipelines/lock"
@@ -186,6 +187,12 @@ func (j *job) lock() (func(), error) {
 	unlock, err := lock.Dir(j.out)
 	if err != nil {
 		return nil, err
+	}
+	// the folders the run makes at its end: a planted link is refused now,
+	// before anything is computed (export.MakeDir checks again)
+	if err := export.CheckDirs(j.out, export.ContourDir, contract.ReportDir); err != nil {
+		unlock()
+		return nil, fault.Input(err)
 	}
 	removePartials(j.out)
 	return unlock, nil

@@ -60,13 +60,22 @@ type Error struct {
 func (e *Error) Error() string { return e.Err.Error() }
 func (e *Error) Unwrap() error { return e.Err }
 
+// inputError is an error that declares itself bad input wherever it is
+// wrapped (export.LinkError: a link planted in a run directory; a damaged
+// product of a finished run): the user's files, not the machine, must change.
+type inputError interface{ IsBadInput() bool }
+
 // KindOf is the kind of err: that of the outermost *Error it wraps;
-// Interrupted for a cancelled context; Internal otherwise.
+// BadInput for an error that declares itself so (IsBadInput); Interrupted
+// for a cancelled context; Internal otherwise.
 func KindOf(err error) Kind {
 	var e *Error
+	var in inputError
 	switch {
 	case errors.As(err, &e):
 		return e.Kind
+	case errors.As(err, &in) && in.IsBadInput():
+		return BadInput
 	case errors.Is(err, context.Canceled), errors.Is(err, context.DeadlineExceeded):
 		return Interrupted
 	}
@@ -93,6 +102,9 @@ func withKind(k Kind, err error) error {
 	var e *Error
 	if errors.As(err, &e) {
 		return err
+	}
+	if in := inputError(nil); errors.As(err, &in) && in.IsBadInput() {
+		k = BadInput
 	}
 	return &Error{Kind: k, Err: err}
 }

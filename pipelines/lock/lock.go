@@ -12,6 +12,7 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"swellgrid/export"
 	"swellgrid/export/contract"
 	"swellgrid/pipelines/fault"
 	"syscall"
@@ -145,11 +146,13 @@ func (li *lockInfo) holder(out string) (why string, live bool) {
 // Dir takes the run directory's lock. A lock whose process is gone is
 // taken over; see the comment at the top of this file.
 func Dir(out string) (func(), error) {
-	dir := filepath.Join(out, StateDir)
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return nil, fault.Output(fmt.Errorf("output directory %s: %w", out, err))
+	if _, err := export.MakeDir(out, StateDir); err != nil {
+		return nil, fault.Output(fmt.Errorf("output directory %s: %w", out, err)) // a planted link: bad input (export.LinkError)
 	}
 	path := lockPath(out)
+	if err := export.CheckTarget(path, false); err != nil {
+		return nil, fault.Input(err)
+	}
 	me := myLock()
 	body, _ := json.Marshal(me)
 	for attempt := 0; attempt < 2; attempt++ {
