@@ -5,6 +5,9 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"os"
+	"path/filepath"
+	"swellgrid/export/contract"
 )
 
 // WriteManifest writes m as indented JSON (two spaces, a final newline, no HTML
@@ -24,4 +27,138 @@ func WriteManifest(path string, m any) error {
 		_, err := w.Write(buf.Bytes())
 		return err
 	})
+}
+
+// SetJSONMember sets the member path of the JSON object doc to v, keeping the
+// order of the other members (a new member goes last).
+func SetJSONMember(doc []byte, path []string, v any) ([]byte, error) {
+	dec := json.NewDecoder(bytes.NewReader(doc))
+	dec.UseNumber()
+	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
+		return nil, fmt.Errorf("not a JSON object")
+	}
+	var b bytes.Buffer
+	b.WriteByte('{')
+	found := false
+	n := 0
+	for dec.More() {
+		t, err := dec.Token()
+		if err != nil {
+			return nil, err
+		}
+		k := t.(string)
+		var val json.RawMessage
+		if err := dec.Decode(&val); err != nil {
+			return nil, err
+		}
+		if k == path[0] {
+			found = true
+			if len(path) > 1 {
+				if val, err = SetJSONMember(val, path[1:], v); err != nil {
+					return nil, fmt.Errorf("%s: %w", k, err)
+				}
+			} else if val, err = marshalPlain(v); err != nil {
+				return nil, err
+			}
+		}
+		if n > 0 {
+			b.WriteByte(',')
+		}
+		n++
+		kb, _ := json.Marshal(k)
+		b.Write(kb)
+		b.WriteByte(':')
+		b.Write(val)
+	}
+	if !found {
+		var val []byte
+		var err error
+		if len(path) > 1 {
+			val, err = SetJSONMember([]byte("{}"), path[1:], v)
+		} else {
+			val, err = marshalPlain(v)
+		}
+		if err != nil {
+			return nil, err
+		}
+		if n > 0 {
+			b.WriteByte(',')
+		}
+		kb, _ := json.Marshal(path[0])
+		b.Write(kb)
+		b.WriteByte(':')
+		b.Write(val)
+	}
+	b.WriteByte('}')
+	return b.Bytes(), nil
+}
+
+// marshalPlain is json.Marshal without HTML escaping (">=" stays ">=").
+func marshalPlain(v any) ([]byte, error) {
+	var b bytes.Buffer
+	enc := json.NewEncoder(&b)
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(v); err != nil {
+		return nil, err
+	}
+	return bytes.TrimRight(b.Bytes(), "\n"), nil
+}
+
+// OutputChecksums is the size and SHA-256 of each of the files outputs
+// (relative to dir, slash-separated), in their order, for the manifest's
+// output_checksums; manifest.json itself is left out (a file cannot hold
+// its own checksum). A listed file that is missing is an error.
+func OutputChecksums(dir string, outputs []string) ([]contract.FileSum, error) {
+	var sums []contract.FileSum
+	for _, o := range outputs {
+		if o == contract.ManifestFile {
+			continue
+		}
+		p := filepath.Join(dir, filepath.FromSlash(o))
+		st, err := os.Lstat(p)
+		if err != nil {
+			return nil, fmt.Errorf("export: checksum of the output %s: %w", p, err)
+		}
+		if !st.Mode().IsRegular() {
+			return nil, &LinkError{Path: p, What: kindOf(st.Mode())}
+		}
+		h, err := SHA256File(p)
+		if err != nil {
+			return nil, err
+		}
+		sums = append(sums, contract.FileSum{Path: o, Size: st.Size(), SHA256: h})
+	}
+	return sums, nil
+}
+
+// Reseal recomputes the output_checksums of dir/manifest.json over its
+// outputs list after a command rewrote files of a finished run (report,
+// screen), keeping every other byte of the manifest's content. A manifest
+// without output_checksums (a run of an earlier version) is left as it is:
+// resealing it would vouch for files nobody checked.
+func Reseal(dir string) error {
+	path := filepath.Join(dir, contract.ManifestFile)
+	raw, err := os.ReadFile(path)
+	if err != nil {
+		return fmt.Errorf("export: %w", err)
+	}
+	var m struct {
+		Outputs []string           `json:"outputs"`
+		Sums    []contract.FileSum `json:"output_checksums"`
+	}
+	if err := json.Unmarshal(raw, &m); err != nil {
+		return fmt.Errorf("export: %s: %w", path, err)
+	}
+	if m.Sums == nil {
+		return nil
+	}
+	sums, err := OutputChecksums(dir, m.Outputs)
+	if err != nil {
+		return err
+	}
+	doc, err := SetJSONMember(raw, []string{contract.ManifestChecksumsKey}, sums)
+	if err != nil {
+		return fmt.Errorf("export: %s: %w", path, err)
+	}
+	return WriteManifest(path, json.RawMessage(doc))
 }

@@ -56,12 +56,28 @@ type Document[P any] struct {
 	// spectral axes when the axes change between files (a model upgrade),
 	// each integrated on its own axes; absent when they do not change.
 	SpectralAxisSegments []ingest.AxisSegment `json:"spectral_axis_segments,omitempty"`
+	// OutputChecksums are the size and SHA-256 of every output listed but
+	// the manifest itself, recorded when the run finishes (and again when
+	// report or screen rewrite files): a run read back (export/rundir)
+	// proves its files against them. Absent in runs of earlier versions.
+	OutputChecksums []FileSum `json:"output_checksums,omitempty"`
 	// Raw is the whole document as read (DecodeManifest); never written.
 	Raw json.RawMessage `json:"-"`
 }
 
 // Manifest is manifest.json as the products read it back.
 type Manifest = Document[Parameters]
+
+// ManifestChecksumsKey is the manifest's member of Document.OutputChecksums.
+const ManifestChecksumsKey = "output_checksums"
+
+// FileSum is one output file of a run, relative to the run directory, with
+// its size and content's SHA-256 (lower-case hex).
+type FileSum struct {
+	Path   string `json:"path"`
+	Size   int64  `json:"size_bytes"`
+	SHA256 string `json:"sha256"`
+}
 
 // Input is one input file of the run, with its content's SHA-256.
 type Input struct {

@@ -10,9 +10,12 @@ package rundir
 
 import (
 	"context"
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"io/fs"
 	"math"
 	"os"
@@ -165,19 +168,99 @@ func readTable(path string, cell *int64, names []string) (*Table, error) {
 	return t, err
 }
 
-// withParquet opens the Parquet file at path for fn.
-func withParquet(path string, fn func(rdr *file.Reader) error) error {
+// withParquet opens the Parquet file at path for fn. A panic of the Parquet
+// reader on a damaged file (a failed page CRC, a bad length) is an error
+// (*DamagedError), never a crash.
+func withParquet(path string, fn func(rdr *file.Reader) error) (err error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return fmt.Errorf("rundir: %w", err)
 	}
 	defer f.Close()
+	defer func() {
+		if p := recover(); p != nil {
+			err = &DamagedError{Path: path, Why: fmt.Sprintf("cannot be read as Parquet (%v)", p)}
+		}
+	}()
 	rdr, err := file.NewParquetReader(f)
 	if err != nil {
 		return fmt.Errorf("rundir: %s: not a readable Parquet file (rerun the run or its export): %w", path, err)
 	}
 	defer rdr.Close()
 	return fn(rdr)
+}
+
+// DamagedError is a file of a finished run that does not match the size or
+// SHA-256 its manifest records (output_checksums), or that its reader
+// cannot decode: damaged, truncated or copied from another run. It is bad
+// input (exit code 2 in pipelines/fault), never read.
+type DamagedError struct {
+	Path string
+	Why  string
+}
+
+func (e *DamagedError) Error() string {
+	return fmt.Sprintf("rundir: %s %s: the file is damaged or was copied from another run; rerun the run (`swellgrid run` with the same spec and --out) to make it again", e.Path, e.Why)
+}
+
+// IsBadInput marks a DamagedError as bad input (pipelines/fault).
+func (e *DamagedError) IsBadInput() bool { return true }
+
+// UncheckedWarning is the warning of a run directory whose manifest has no
+// output checksums (written by an earlier version): its files are read
+// without proof.
+const UncheckedWarning = "the manifest records no output checksums (a run of an earlier swellgrid): its files are read without verification; rerun it to have them verified"
+
+// verify proves the file rel (relative to the run directory) against the
+// manifest's output_checksums before it is read, once per Run: its size,
+// then its SHA-256. A run without checksums (an earlier version) is read
+// as before (Open warns); a file the manifest lists among its outputs but
+// gives no checksum is refused; a file it does not list (validation's
+// tables, written later) is not a sealed output and is read as it is.
+func (r *Run) verify(rel string) error {
+	if r.sums == nil {
+		return nil
+	}
+	if err, ok := r.verified[rel]; ok {
+		return err
+	}
+	err := r.check(rel)
+	r.verified[rel] = err
+	return err
+}
+
+func (r *Run) check(rel string) error {
+	path := filepath.Join(r.Dir, filepath.FromSlash(rel))
+	want, ok := r.sums[rel]
+	if !ok {
+		if slices.Contains(r.Manifest.Outputs, rel) {
+			return &DamagedError{Path: path, Why: "is listed in the manifest's outputs without a checksum"}
+		}
+		return nil
+	}
+	st, err := os.Lstat(path)
+	if err != nil {
+		return &DamagedError{Path: path, Why: fmt.Sprintf("cannot be checked (%v)", err)}
+	}
+	if !st.Mode().IsRegular() {
+		return &DamagedError{Path: path, Why: "is not a regular file"}
+	}
+	if st.Size() != want.Size {
+		return &DamagedError{Path: path, Why: fmt.Sprintf("is %d bytes, the manifest records %d", st.Size(), want.Size)}
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return &DamagedError{Path: path, Why: fmt.Sprintf("cannot be checked (%v)", err)}
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return &DamagedError{Path: path, Why: fmt.Sprintf("cannot be checked (%v)", err)}
+	}
+	if got := hex.EncodeToString(h.Sum(nil)); got != want.SHA256 {
+		return &DamagedError{Path: path, Why: fmt.Sprintf("has SHA-256 %.12s..., the manifest records %.12s...", got, want.SHA256)}
+	}
+	return nil
 }
 
 func allGroups(rdr *file.Reader) []int {
@@ -352,8 +435,12 @@ type Run struct {
 	GridKind grid.Kind // the manifest's grid kind
 	Land     []bool    // masked cells (qc flag "masked"): drawn as land, no values
 	Mesh     *Mesh     // the UGRID mesh of a run on one (mesh.go), else nil
+	// Warnings say what was read without proof (UncheckedWarning).
+	Warnings []string
 	tables   map[string]*Table
 	groups   map[string]*groupRead // CellTable's last row groups of each table
+	sums     map[string]contract.FileSum
+	verified map[string]error // verify's verdicts
 }
 
 // Open reads the manifest and cells.parquet of the run directory dir. The
@@ -371,11 +458,26 @@ func Open(dir string, manifest []byte) (*Run, error) {
 	if err != nil {
 		return nil, fmt.Errorf("rundir: %w", err)
 	}
+	r := &Run{Dir: dir, Manifest: m, GridKind: m.Grid.Kind, NY: m.Grid.Shape[0], NX: m.Grid.Shape[1], tables: map[string]*Table{}, groups: map[string]*groupRead{}}
+	if m.OutputChecksums == nil {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("%s: %s", dir, UncheckedWarning))
+	} else {
+		r.sums, r.verified = map[string]contract.FileSum{}, map[string]error{}
+		for _, s := range m.OutputChecksums {
+			r.sums[s.Path] = s
+		}
+		if _, ok := r.sums[contract.CellsFile]; !ok {
+			return nil, &DamagedError{Path: filepath.Join(dir, contract.ManifestFile), Why: "records no checksum of " + contract.CellsFile}
+		}
+	}
+	if err := r.verify(contract.CellsFile); err != nil {
+		return nil, err
+	}
 	cells, err := ReadTable(filepath.Join(dir, contract.CellsFile))
 	if err != nil {
 		return nil, err
 	}
-	r := &Run{Dir: dir, Manifest: m, Cells: cells, GridKind: m.Grid.Kind, NY: m.Grid.Shape[0], NX: m.Grid.Shape[1], tables: map[string]*Table{}, groups: map[string]*groupRead{}}
+	r.Cells = cells
 	if r.NX*r.NY != cells.Rows {
 		return nil, fmt.Errorf("rundir: %s: the manifest's grid is %d x %d but cells.parquet has %d rows; the directory mixes two runs, rerun it", dir, r.NY, r.NX, cells.Rows)
 	}
@@ -419,6 +521,9 @@ func (r *Run) Table(name string) (*Table, error) {
 		r.tables[name] = nil
 		return nil, nil
 	}
+	if err := r.verify(contract.ParquetFile(name)); err != nil {
+		return nil, err
+	}
 	t, err := ReadTable(p)
 	if err != nil {
 		return nil, err
@@ -433,6 +538,9 @@ func (r *Run) Columns(name string, cols ...string) (*Table, error) {
 	p := filepath.Join(r.Dir, contract.ParquetFile(name))
 	if _, err := os.Stat(p); errors.Is(err, os.ErrNotExist) {
 		return nil, nil
+	}
+	if err := r.verify(contract.ParquetFile(name)); err != nil {
+		return nil, err
 	}
 	return ReadColumns(p, cols...)
 }
@@ -452,6 +560,9 @@ func (r *Run) CellTable(name string, cell int64) (*Table, error) {
 	p := filepath.Join(r.Dir, contract.ParquetFile(name))
 	if _, err := os.Stat(p); errors.Is(err, os.ErrNotExist) {
 		return nil, nil
+	}
+	if err := r.verify(contract.ParquetFile(name)); err != nil {
+		return nil, err
 	}
 	var out *Table
 	err := withParquet(p, func(rdr *file.Reader) error {

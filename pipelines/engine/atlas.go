@@ -20,11 +20,16 @@ func productsOf(s *runspec.Resolved) products.Products {
 // finishManifest writes the manifest m of the run directory out, builds the
 // products (as the spec switches say) from the tables and that manifest,
 // adds their files to written and their warnings to warns and m, and
-// rewrites the manifest listing every output. The manifest is on disk before
+// rewrites the manifest listing every output with its size and SHA-256
+// (output_checksums, which rundir.Open verifies). The manifest is on disk before
 // the products are built, so a run whose report fails still leaves a
 // finished run directory that `swellgrid report` can complete.
 func (e *engine) finishManifest(out string, m *runManifest, written, warns *[]string) error {
 	m.Outputs = append(append([]string{}, *written...), "manifest.json")
+	var err error
+	if m.OutputChecksums, err = export.OutputChecksums(out, m.Outputs); err != nil {
+		return err
+	}
 	if err := export.WriteManifest(filepath.Join(out, "manifest.json"), m); err != nil {
 		return err
 	}
@@ -54,5 +59,6 @@ func (e *engine) finishManifest(out string, m *runManifest, written, warns *[]st
 	// rebuilt from the final manifest must equal the one the run made
 	m.ProductWarnings = append(m.ProductWarnings, w...)
 	m.Outputs = append(append([]string{}, *written...), "manifest.json")
-	return nil
+	m.OutputChecksums, err = export.OutputChecksums(out, m.Outputs)
+	return err
 }

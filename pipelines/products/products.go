@@ -10,6 +10,7 @@ import (
 	"os"
 	"path/filepath"
 
+	"swellgrid/export"
 	"swellgrid/export/gpkg"
 	"swellgrid/export/raster"
 	atlasreport "swellgrid/export/report"
@@ -91,7 +92,8 @@ func Build(out string, manifest []byte, p Products) ([]string, []string, error) 
 	if err != nil {
 		return nil, nil, err
 	}
-	var files, warns []string
+	var files []string
+	warns := append([]string{}, r.Warnings...)
 	for _, pr := range p.chosen() {
 		f, w, err := pr.Build(r)
 		if err != nil {
@@ -120,6 +122,10 @@ func Rebuild(dir string, p Products) ([]string, []string, error) {
 	}
 	files, warns, err := Build(dir, nil, p)
 	if err != nil {
+		return nil, nil, fault.Output(err)
+	}
+	// the rebuilt files' checksums, under the lock (a sealed run stays sealed)
+	if err := export.Reseal(dir); err != nil {
 		return nil, nil, fault.Output(err)
 	}
 	return files, warns, nil

@@ -6,7 +6,6 @@ package screening
 // contours/screening_<scenario>.geojson.
 
 import (
-	"bytes"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -434,8 +433,18 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 		{[]string{"outputs"}, outputs},
 		{[]string{"screening"}, res.summary},
 	}
+	if r.Manifest.OutputChecksums != nil { // a sealed run stays sealed (rundir.Open verifies)
+		sums, err := export.OutputChecksums(dir, outputs)
+		if err != nil {
+			return nil, nil, fault.Output(err)
+		}
+		edits = append(edits, struct {
+			path []string
+			v    any
+		}{[]string{contract.ManifestChecksumsKey}, sums})
+	}
 	for _, e := range edits {
-		if m, err = setJSONKey(m, e.path, e.v); err != nil {
+		if m, err = export.SetJSONMember(m, e.path, e.v); err != nil {
 			return nil, nil, fault.Input(fmt.Errorf("screen: %s: %w", mpath, err))
 		}
 	}
@@ -448,82 +457,10 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 	if err != nil {
 		return nil, nil, fault.Output(err)
 	}
+	if err := export.Reseal(dir); err != nil { // the rebuilt report and atlas.gpkg
+		return nil, nil, fault.Output(err)
+	}
 	return append(files, pf...), warns, nil
-}
-
-// setJSONKey sets the member path of the JSON object doc to v, keeping the
-// order of the other members (a new member goes last).
-func setJSONKey(doc []byte, path []string, v any) ([]byte, error) {
-	dec := json.NewDecoder(bytes.NewReader(doc))
-	dec.UseNumber()
-	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
-		return nil, fmt.Errorf("not a JSON object")
-	}
-	var b bytes.Buffer
-	b.WriteByte('{')
-	found := false
-	n := 0
-	for dec.More() {
-		t, err := dec.Token()
-		if err != nil {
-			return nil, err
-		}
-		k := t.(string)
-		var val json.RawMessage
-		if err := dec.Decode(&val); err != nil {
-			return nil, err
-		}
-		if k == path[0] {
-			found = true
-			if len(path) > 1 {
-				if val, err = setJSONKey(val, path[1:], v); err != nil {
-					return nil, fmt.Errorf("%s: %w", k, err)
-				}
-			} else if val, err = marshalPlain(v); err != nil {
-				return nil, err
-			}
-		}
-		if n > 0 {
-			b.WriteByte(',')
-		}
-		n++
-		kb, _ := json.Marshal(k)
-		b.Write(kb)
-		b.WriteByte(':')
-		b.Write(val)
-	}
-	if !found {
-		var val []byte
-		var err error
-		if len(path) > 1 {
-			val, err = setJSONKey([]byte("{}"), path[1:], v)
-		} else {
-			val, err = marshalPlain(v)
-		}
-		if err != nil {
-			return nil, err
-		}
-		if n > 0 {
-			b.WriteByte(',')
-		}
-		kb, _ := json.Marshal(path[0])
-		b.Write(kb)
-		b.WriteByte(':')
-		b.Write(val)
-	}
-	b.WriteByte('}')
-	return b.Bytes(), nil
-}
-
-// marshalPlain is json.Marshal without HTML escaping (">=" stays ">=").
-func marshalPlain(v any) ([]byte, error) {
-	var b bytes.Buffer
-	enc := json.NewEncoder(&b)
-	enc.SetEscapeHTML(false)
-	if err := enc.Encode(v); err != nil {
-		return nil, err
-	}
-	return bytes.TrimRight(b.Bytes(), "\n"), nil
 }
 
 // Schema is the columns of screening.parquet, patterns unexpanded.
