@@ -271,6 +271,42 @@ func allGroups(rdr *file.Reader) []int {
 	return rgs
 }
 
+// readGroups is pqarrow's FileReader.ReadRowGroups decoding every column
+// on the calling goroutine: ReadRowGroups decodes in goroutines of its own,
+// where a panic of the decoder on a damaged file (zstd's "match offset
+// bigger than current history", a failed CRC) could not be recovered
+// (withParquet turns it into a DamagedError).
+func readGroups(fr *pqarrow.FileReader, cols, rgs []int) (arrow.Table, error) {
+	readers, sc, err := fr.GetFieldReaders(context.Background(), cols, rgs)
+	if err != nil {
+		return nil, err
+	}
+	defer func() {
+		for _, r := range readers {
+			r.Release()
+		}
+	}()
+	columns := make([]arrow.Column, 0, len(readers))
+	defer func() {
+		for i := range columns {
+			columns[i].Release()
+		}
+	}()
+	for i, r := range readers {
+		ch, err := fr.ReadColumn(rgs, r)
+		if err != nil {
+			return nil, err
+		}
+		columns = append(columns, *arrow.NewColumn(sc.Field(i), ch))
+		ch.Release()
+	}
+	var nrows int
+	if len(columns) > 0 {
+		nrows = columns[0].Len()
+	}
+	return array.NewTable(sc, columns, int64(nrows)), nil
+}
+
 // decodeGroups decodes the row groups rgs of rdr, the named columns (nil:
 // all but the geometry).
 func decodeGroups(path string, rdr *file.Reader, names []string, rgs []int) (*Table, error) {
@@ -291,7 +327,7 @@ func decodeGroups(path string, rdr *file.Reader, names []string, rgs []int) (*Ta
 		}
 		slices.Sort(cols) // file order, as ReadTable gives them
 	}
-	tbl, err := fr.ReadRowGroups(context.Background(), cols, rgs)
+	tbl, err := readGroups(fr, cols, rgs)
 	if err != nil {
 		return nil, fmt.Errorf("rundir: %s: %w", path, err)
 	}
