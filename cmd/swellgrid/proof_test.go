@@ -228,3 +228,56 @@ func sha256Hex(b []byte) string {
 	s := sha256.Sum256(b)
 	return hex.EncodeToString(s[:])
 }
+
+// screen adds screening.parquet to a sealed run and rebuilds its report:
+// the manifest's checksums are kept right (every listed file proves itself
+// afterwards, screening.parquet among them), so the run still opens.
+func TestScreenKeepsRunSealed(t *testing.T) {
+	dir := copyRun(t, provedRuns(t)[0])
+	spec := filepath.Join(t.TempDir(), "s.toml")
+	os.WriteFile(spec, []byte("[[screening.scenario]]\nname = \"core\"\ncriteria = [\"power_mean_kw_m >= 1\"]\n"), 0o644)
+	if code, stderr := codeOf("screen", dir, "--spec", spec); code != 0 {
+		t.Fatalf("screen: exit %d: %s", code, stderr)
+	}
+	b, _ := os.ReadFile(filepath.Join(dir, contract.ManifestFile))
+	m, err := contract.DecodeManifest(b)
+	if err != nil {
+		t.Fatal(err)
+	}
+	seen := map[string]bool{}
+	for _, s := range m.OutputChecksums {
+		body, err := os.ReadFile(filepath.Join(dir, s.Path))
+		if err != nil || int64(len(body)) != s.Size || sha256Hex(body) != s.SHA256 {
+			t.Errorf("%s after screen: %d bytes %s (%v), the manifest records %d bytes %s", s.Path, len(body), sha256Hex(body), err, s.Size, s.SHA256)
+		}
+		seen[s.Path] = true
+	}
+	if !seen["screening.parquet"] || len(m.OutputChecksums) != len(m.Outputs)-1 {
+		t.Errorf("after screen: %d checksums for %d outputs, screening.parquet sealed: %v", len(m.OutputChecksums), len(m.Outputs), seen["screening.parquet"])
+	}
+	if _, err := rundir.Open(dir, nil); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// screen and report on a finished run with a link planted at contours/ or
+// report/: refused with exit 2 naming it, nothing written outside.
+func TestScreenRefusesPlantedLink(t *testing.T) {
+	in := filepath.Join("..", "..", "testdata", "regular_packed.nc")
+	src := filepath.Join(t.TempDir(), "run")
+	if code, stderr := codeOf("run", "--input", in, "--out", src, "--workers", "1"); code != 0 {
+		t.Fatalf("run: exit %d: %s", code, stderr)
+	}
+	spec := filepath.Join(t.TempDir(), "s.toml")
+	os.WriteFile(spec, []byte("[[screening.scenario]]\nname = \"core\"\ncriteria = [\"power_mean_kw_m >= 1\"]\n"), 0o644)
+	dir := copyRun(t, src)
+	outside, intact := outsideDir(t)
+	os.RemoveAll(filepath.Join(dir, "contours"))
+	link := filepath.Join(dir, "contours")
+	os.Symlink(outside, link)
+	code, stderr := codeOf("screen", dir, "--spec", spec)
+	if code != 2 || !strings.Contains(stderr, link) {
+		t.Fatalf("screen: exit %d, want 2 naming %s: %s", code, link, stderr)
+	}
+	intact(t)
+}
