@@ -240,15 +240,34 @@ func TestExampleSpecs(t *testing.T) {
 	}
 }
 
-// Temporary files left by a run killed while writing (".<name>.partial-*")
-// are removed by the next run in the same directory.
+// Temporary files and folders left by a run killed while writing
+// (".<name>.partial-*": export.WriteFileAtomic's files, export.PartialDir's
+// folders of atlas.nc and atlas.gpkg, in the run directory and its state
+// folder) are removed by the next run in the same directory; a link
+// planted under such a name is removed, its target left alone.
 func TestPartialsRemoved(t *testing.T) {
 	out := t.TempDir()
+	outside := t.TempDir()
+	victim := filepath.Join(outside, "keep.txt")
+	os.WriteFile(victim, []byte("keep"), 0o644)
 	left := filepath.Join(out, ".cells.parquet.partial-123")
 	os.WriteFile(left, []byte("half"), 0o644)
+	folder := filepath.Join(out, ".atlas.gpkg.partial-456")
+	os.Mkdir(folder, 0o700)
+	os.WriteFile(filepath.Join(folder, "atlas.gpkg"), []byte("half"), 0o644)
+	os.Mkdir(filepath.Join(out, lock.StateDir), 0o755)
+	state := filepath.Join(out, lock.StateDir, ".pass-0-8.ckpt.partial-789")
+	os.WriteFile(state, []byte("half"), 0o644)
+	link := filepath.Join(out, ".atlas.nc.partial-000")
+	os.Symlink(outside, link)
 	mustRun(t, testSpec(t, "testdata/points_bulk.nc", out))
-	if _, err := os.Stat(left); err == nil {
-		t.Error("partial file left in place")
+	for _, p := range []string{left, folder, state, link} {
+		if _, err := os.Lstat(p); err == nil {
+			t.Errorf("%s left in place", p)
+		}
+	}
+	if b, err := os.ReadFile(victim); err != nil || string(b) != "keep" {
+		t.Errorf("the target of a planted partial link was touched: %q %v", b, err)
 	}
 }
 
