@@ -281,3 +281,24 @@ func TestScreenRefusesPlantedLink(t *testing.T) {
 	}
 	intact(t)
 }
+
+// A run on a UGRID mesh proves its mesh tables too: one flipped byte in
+// mesh_faces.parquet is refused by `report` with exit 2 naming it.
+func TestDamagedMeshTableRefused(t *testing.T) {
+	in := filepath.Join("..", "..", "testdata", "ugrid", "mixed0.nc")
+	dir := filepath.Join(t.TempDir(), "run")
+	if code, stderr := codeOf("run", "--input", in, "--out", dir, "--workers", "1"); code != 0 {
+		t.Fatalf("run: exit %d: %s", code, stderr)
+	}
+	if code, stderr := codeOf("report", dir); code != 0 {
+		t.Fatalf("report of the sound run: exit %d: %s", code, stderr)
+	}
+	path := filepath.Join(dir, "mesh_faces.parquet")
+	b, _ := os.ReadFile(path)
+	b[len(b)/2] ^= 0x01
+	os.WriteFile(path, b, 0o644)
+	code, stderr := codeOf("report", dir)
+	if code != 2 || !strings.Contains(stderr, path) {
+		t.Fatalf("report: exit %d, want 2 naming %s: %s", code, path, stderr)
+	}
+}

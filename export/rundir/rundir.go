@@ -529,6 +529,11 @@ func Open(dir string, manifest []byte) (*Run, error) {
 		}
 	}
 	if r.GridKind == grid.MeshKind {
+		for _, name := range []string{contract.TableMeshNodes, contract.TableMeshFaces} {
+			if err := r.verify(contract.ParquetFile(name)); err != nil {
+				return nil, err
+			}
+		}
 		if r.Mesh, err = readMesh(dir, cells.Rows); err != nil {
 			return nil, err
 		}
