@@ -25,6 +25,7 @@ var (
 	provedOnce sync.Once
 	provedDirs [2]string
 	provedErr  error
+	provedRoot string // removed by TestMain
 )
 
 // provedRuns runs testdata/points_bulk.nc twice, once with the defaults and
@@ -39,6 +40,7 @@ func provedRuns(t *testing.T) [2]string {
 			provedErr = err
 			return
 		}
+		provedRoot = root
 		spec := filepath.Join(root, "rho.toml")
 		os.WriteFile(spec, []byte("[physics]\nrho = 1030\n"), 0o644)
 		in := filepath.Join("..", "..", "testdata", "points_bulk.nc")

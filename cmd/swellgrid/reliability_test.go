@@ -45,11 +45,15 @@ var (
 	binDir  string
 )
 
-// TestMain removes the binary built for the reliability tests.
+// TestMain removes the binary built for the reliability tests and the runs
+// shared by proof_test.go.
 func TestMain(m *testing.M) {
 	code := m.Run()
 	if binDir != "" {
 		os.RemoveAll(binDir)
+	}
+	if provedRoot != "" {
+		os.RemoveAll(provedRoot)
 	}
 	os.Exit(code)
 }
