@@ -115,8 +115,8 @@ func TestManifestRecordsOutputChecksums(t *testing.T) {
 
 // A run directory whose cells.parquet (or a table the report reads) has one
 // flipped byte, is truncated, or was copied from another run of the same
-// grid is refused by rundir.Open (a *DamagedError, bad input) and by
-// `swellgrid report` with exit 2 naming the file and saying to rerun; the
+// grid is refused by rundir.Open (a *DamagedError, bad input), by
+// `swellgrid report` and (cells.parquet) by `swellgrid screen` with exit 2 naming the file and saying to rerun; the
 // damaged file is left as it was and no report is written.
 func TestDamagedOrForeignRunRefused(t *testing.T) {
 	runs := provedRuns(t)
@@ -157,6 +157,16 @@ func TestDamagedOrForeignRunRefused(t *testing.T) {
 			code, stderr := codeWithin(t, 60*time.Second, "report", dir)
 			if code != 2 || !strings.Contains(stderr, path) || !strings.Contains(stderr, "rerun") {
 				t.Fatalf("report: exit %d, want 2 naming %s: %s", code, path, stderr)
+			}
+			if c.file == contract.CellsFile {
+				spec := filepath.Join(t.TempDir(), "s.toml")
+				os.WriteFile(spec, []byte("[[screening.scenario]]\nname = \"core\"\ncriteria = [\"power_mean_kw_m >= 1\"]\n"), 0o644)
+				if code, stderr := codeWithin(t, 60*time.Second, "screen", dir, "--spec", spec); code != 2 || !strings.Contains(stderr, path) {
+					t.Errorf("screen: exit %d, want 2 naming %s: %s", code, path, stderr)
+				}
+				if _, err := os.Stat(filepath.Join(dir, "screening.parquet")); err == nil {
+					t.Error("screen wrote screening.parquet from a damaged run")
+				}
 			}
 			if b, _ := os.ReadFile(path); !bytes.Equal(b, c.body) {
 				t.Error("the damaged file was changed")
