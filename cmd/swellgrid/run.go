@@ -61,7 +61,7 @@ func (f *runFlags) register(cmd *cobra.Command) {
 	cmd.Flags().StringVar(&f.memory, "memory-limit", "", "memory budget, e.g. 4GiB (sets the cells per pass)")
 	cmd.Flags().Float64Var(&f.checkpointEvery, "checkpoint-every", -1, "seconds between checkpoints (0: after every input file; default 60, or run.checkpoint_every_s)")
 	cmd.Flags().BoolVar(&f.restart, "restart", false, "ignore checkpoints in the output directory and start over")
-	cmd.Flags().StringVar(&f.shard, "shard", "", "run only share I of N of the cells (I/N, 1-based; whole grid rows) and write a shard directory for `swellgrid merge`")
+	cmd.Flags().StringVar(&f.shard, "shard", "", "run only share I of N of the cells (`I/N`, 1-based; whole grid rows) and write a shard directory for swellgrid merge")
 	cmd.Flags().StringVar(&f.update, "update", "", "continue the finished run in DIR with the new (later) input files; refused if an earlier file or the spec changed")
 }
 
