@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 	"runtime"
 	"strconv"
+	"swellgrid/export/rundir"
 	"sync"
 	"unicode/utf8"
 
@@ -149,6 +150,16 @@ func fmtNum(x float64) string {
 		return "0"
 	}
 	return strconv.FormatFloat(x, 'g', 4, 64)
+}
+
+// colText formats row i of a numeric column for a table: an integer column
+// as the integer (a count of 10070 reads 10070, not 1.007e+04), a float as
+// fmtNum; null as fmtNum's dash.
+func colText(c *rundir.Column, i int) string {
+	if c.Kind == rundir.Int && c.Valid[i] {
+		return strconv.FormatInt(c.Int[i], 10)
+	}
+	return fmtNum(c.Value(i))
 }
 
 // endTicks marks both ends of [lo, hi] (labelled with fmtNum, so a reader

@@ -185,7 +185,7 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 			val := ""
 			switch c.Kind {
 			case rundir.Float, rundir.Int:
-				val = fmtNum(c.Value(s.Cell))
+				val = colText(c, s.Cell)
 			case rundir.String:
 				val = c.Str[s.Cell]
 			case rundir.Bool:

@@ -62,7 +62,7 @@ func validationPages(r *rundir.Run, tmp string, v *indexView, add func(...string
 				if col.Kind == rundir.String {
 					row = append(row, col.Str[i])
 				} else {
-					row = append(row, fmtNum(col.Value(i)))
+					row = append(row, colText(col, i))
 				}
 			}
 			if row[2] == "all" || strings.HasPrefix(row[2], "storm") {
