@@ -2,6 +2,7 @@ package report
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"swellgrid/export/rundir"
@@ -21,6 +22,24 @@ func TestColTextIntegers(t *testing.T) {
 	for i, want := range []string{"0.1235", "2.098", "–"} {
 		if got := colText(f, i); got != want {
 			t.Errorf("float %g: %q, want %q", f.Float[i], got, want)
+		}
+	}
+}
+
+// A map caption gives the column's unit after its range and isolines, and
+// none for a dimensionless column (CF's canonical unit "1"): the caption of
+// a ratio read "from 1.845 to 2.098 1" (issue 33).
+func TestMapCaptionUnits(t *testing.T) {
+	for _, c := range []struct {
+		unit, colour, iso string
+	}{
+		{"1", "Colour from 1.845 to 2.098 (viridis);", "Isolines at 1.9, 2."},
+		{"", "Colour from 1.845 to 2.098 (viridis);", "Isolines at 1.9, 2."},
+		{"kW/m", "Colour from 1.845 to 2.098 kW/m (viridis);", "Isolines at 1.9, 2 kW/m."},
+	} {
+		got := mapCaption("x", "a column", c.unit, 1.845, 2.098, []float64{1.9, 2})
+		if !strings.Contains(got, c.colour) || !strings.HasSuffix(got, c.iso) {
+			t.Errorf("unit %q: caption %q, want %q and ending %q", c.unit, got, c.colour, c.iso)
 		}
 	}
 }

@@ -149,10 +149,7 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 			return nil, nil, err
 		}
 		add(names...)
-		fig.Caption = fmt.Sprintf("%s: %s. Colour from %s to %s %s (viridis); sand: land or masked cells; grey: sea cells without a result.", c.Name, c.Doc, fmtNum(lo), fmtNum(hi), c.Unit)
-		if len(f.Levels) > 0 {
-			fig.Caption += " Isolines at " + joinNums(f.Levels) + " " + c.Unit + "."
-		}
+		fig.Caption = mapCaption(c.Name, c.Doc, c.Unit, lo, hi, f.Levels)
 		v.Maps = append(v.Maps, pageFigure{Title: fig.Title, Caption: fig.Caption, PNG: names[0], SVG: names[1], Map: info})
 	}
 	sm, smFiles, err := screeningMaps(r, tmp) // screening.go
@@ -259,6 +256,20 @@ func unitSuffix(u string) string {
 		return ""
 	}
 	return " (" + u + ")"
+}
+
+// mapCaption is the caption of a column's map: the colour range and the
+// isolines with the column's unit, none for a dimensionless one ("1").
+func mapCaption(name, doc, unit string, lo, hi float64, levels []float64) string {
+	u := ""
+	if unit != "" && unit != "1" {
+		u = " " + unit
+	}
+	c := fmt.Sprintf("%s: %s. Colour from %s to %s%s (viridis); sand: land or masked cells; grey: sea cells without a result.", name, doc, fmtNum(lo), fmtNum(hi), u)
+	if len(levels) > 0 {
+		c += " Isolines at " + joinNums(levels) + u + "."
+	}
+	return c
 }
 
 func joinNums(v []float64) string {
