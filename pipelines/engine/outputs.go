@@ -3,6 +3,7 @@ package engine
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 
 	"swellgrid/export"
@@ -58,18 +59,9 @@ func (e *engine) writeContours(out string, vals map[string][]float64) ([]string,
 			warns = append(warns, fmt.Sprintf("no contours for %s: not a numeric column", col))
 			continue
 		}
-		levels := e.spec.Contours.Levels[col]
+		levels, why := contourLevels(col, vals, e.cat.Masked, e.spec.Contours.Levels[col])
 		if len(levels) == 0 {
-			lo, hi := math.Inf(1), math.Inf(-1)
-			for i, v := range vals {
-				if !math.IsNaN(v) && !e.cat.Masked[i] {
-					lo, hi = math.Min(lo, v), math.Max(hi, v)
-				}
-			}
-			levels = grid.NiceLevels(lo, hi, 8)
-		}
-		if len(levels) == 0 {
-			warns = append(warns, fmt.Sprintf("no contours for %s: the column has no spread of values", col))
+			warns = append(warns, why)
 			continue
 		}
 		edges := append(append([]float64{math.Inf(-1)}, levels...), math.Inf(1))
@@ -83,6 +75,33 @@ func (e *engine) writeContours(out string, vals map[string][]float64) ([]string,
 		written = append(written, "contours/"+col+".geojson", "contours/"+col+".bands.geojson")
 	}
 	return written, warns, nil
+}
+
+// contourLevels returns the contour levels of column col: the spec's
+// levels when given, else nice levels over the range of its values on sea
+// cells (vals in cell order, NaN for null; masked marks land). With no
+// levels it gives the warning why: the column has no value on a sea cell,
+// or all its values are equal.
+func contourLevels(col string, vals []float64, masked []bool, given []float64) ([]float64, string) {
+	if len(given) > 0 {
+		return given, ""
+	}
+	lo, hi, n := math.Inf(1), math.Inf(-1), 0
+	for i, v := range vals {
+		if !math.IsNaN(v) && !masked[i] {
+			lo, hi, n = math.Min(lo, v), math.Max(hi, v), n+1
+		}
+	}
+	if n == 0 {
+		return nil, fmt.Sprintf("no contours for %s: the column has no values (null on every sea cell)", col)
+	}
+	if levels := grid.NiceLevels(lo, hi, 8); len(levels) > 0 {
+		return levels, ""
+	}
+	if hi > lo {
+		return nil, fmt.Sprintf("no contours for %s: no levels found between %s and %s; give contours.levels.%s in the spec", col, strconv.FormatFloat(lo, 'g', -1, 64), strconv.FormatFloat(hi, 'g', -1, 64), col)
+	}
+	return nil, fmt.Sprintf("no contours for %s: the column has no spread of values (%s on every sea cell with a value)", col, strconv.FormatFloat(lo, 'g', -1, 64))
 }
 
 // runManifest is manifest.json as the run writes it: the output contract's
