@@ -10,6 +10,7 @@ import (
 	"strconv"
 	"strings"
 	"time"
+	"unicode"
 )
 
 // CSVColumns are the columns of an observation CSV file, in any order (the
@@ -205,7 +206,9 @@ func parseISOTime(s string) (Date, error) {
 }
 
 // readCSVComments keeps the file's leading "# key: value" comment lines as
-// the stations' attributes (e.g. "# comment: invented station").
+// the stations' attributes (e.g. "# comment: invented station"); the key is
+// one word (attrName). Other comment lines are free text, appended to the
+// comment attribute.
 func readCSVComments(path string, st []*Station) error {
 	fh, _, err := OpenRegular(path)
 	if err != nil {
@@ -220,11 +223,18 @@ func readCSVComments(path string, st []*Station) error {
 		if !strings.HasPrefix(l, "#") {
 			break
 		}
-		k, v, ok := strings.Cut(strings.TrimSpace(strings.TrimPrefix(l, "#")), ":")
-		if !ok {
-			continue
+		text := strings.TrimSpace(strings.TrimPrefix(l, "#"))
+		k, v, ok := strings.Cut(text, ":")
+		k = strings.TrimSpace(k)
+		if !ok || !attrName(k) {
+			// Free text (its colon, if any, is no key's: "(+01:00)"):
+			// part of the comment.
+			if text == "" {
+				continue
+			}
+			k, v = "comment", text
 		}
-		k = strings.ToLower(strings.TrimSpace(k))
+		k = strings.ToLower(k)
 		for _, s := range st {
 			if old := s.Attrs[k]; old != "" {
 				s.Attrs[k] = old + " " + strings.TrimSpace(v)
@@ -234,4 +244,17 @@ func readCSVComments(path string, st []*Station) error {
 		}
 	}
 	return nil
+}
+
+// attrName reports whether k can name an attribute of a CSV comment line:
+// an ASCII letter, then ASCII letters, digits, '_', '-' or '.' (one word:
+// "times (+01" is no key).
+func attrName(k string) bool {
+	for i, r := range k {
+		letter := r < 128 && unicode.IsLetter(r)
+		if !letter && (i == 0 || !(r < 128 && unicode.IsDigit(r)) && r != '_' && r != '-' && r != '.') {
+			return false
+		}
+	}
+	return k != ""
 }

@@ -5,6 +5,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 )
@@ -146,6 +147,28 @@ func TestObservationCSV(t *testing.T) {
 	}
 	if s1.Attrs["comment"] != "invented station for tests" {
 		t.Errorf("comment attribute %q", s1.Attrs["comment"])
+	}
+}
+
+// A comment line's colon splits off a key only when the text before it is
+// one word: "(+01:00)" in free text made a bogus attribute "times ... (+01"
+// (issue 33). Free text joins the comment attribute; key lines stay keys.
+func TestObservationCSVCommentColons(t *testing.T) {
+	p := filepath.Join(t.TempDir(), "obs.csv")
+	head := "# comment: invented station for tests\n# Times were local (+01:00) before conversion\n# source_note: synthetic, at 12:00\n#\n"
+	os.WriteFile(p, []byte(head+goodCSV[strings.Index(goodCSV, "time,"):]), 0o644)
+	st, err := ReadObservationCSV(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := map[string]string{
+		"comment":     "invented station for tests Times were local (+01:00) before conversion",
+		"source_note": "synthetic, at 12:00",
+	}
+	for _, s := range st {
+		if !reflect.DeepEqual(s.Attrs, want) {
+			t.Errorf("%s: attributes %q, want %q", s.Name, s.Attrs, want)
+		}
 	}
 }
 
