@@ -104,6 +104,18 @@ func contourLevels(col string, vals []float64, masked []bool, given []float64) (
 	return nil, fmt.Sprintf("no contours for %s: the column has no spread of values (%s on every sea cell with a value)", col, strconv.FormatFloat(lo, 'g', -1, 64))
 }
 
+// recordedSpec is the spec as manifest.json records it: the bathymetry file
+// that the run read, like its inputs, by absolute path, so that validate
+// finds them from any working directory.
+func recordedSpec(s *runspec.Spec) *runspec.Spec {
+	if s.Depth.BathymetryFile == "" {
+		return s
+	}
+	c := *s
+	c.Depth.BathymetryFile = absPath(s.Depth.BathymetryFile)
+	return &c
+}
+
 // runManifest is manifest.json as the run writes it: the output contract's
 // document with the whole spec recorded.
 type runManifest = contract.Document[*runspec.Spec]
@@ -112,7 +124,7 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 	c := e.cat
 	m := &runManifest{Software: "swellgrid", Version: version, Caution: tables.Caution, Calendar: string(c.Calendar),
 		Start: c.Start, End: c.End, Steps: c.Steps, StepSeconds: c.StepSeconds, Gaps: c.Gaps, RoleGaps: c.RoleGaps, Roles: c.Vars,
-		DepthSource: c.DepthSource, Parameters: e.spec.Spec, Timings: timings, SpectralReadings: c.Readings}
+		DepthSource: c.DepthSource, Parameters: recordedSpec(e.spec.Spec), Timings: timings, SpectralReadings: c.Readings}
 	if m.Gaps == nil {
 		m.Gaps = []ingest.Gap{}
 	}
@@ -127,7 +139,7 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 		m.Duplicates = append(m.Duplicates, d)
 	}
 	for i, f := range c.Files {
-		m.Inputs = append(m.Inputs, contract.Input{Path: ingest.PathText(f.Path), Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
+		m.Inputs = append(m.Inputs, contract.Input{Path: ingest.PathText(absPath(f.Path)), Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
 	}
 	masked := 0
 	for _, x := range c.Masked {

@@ -1,6 +1,7 @@
 package engine
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"image/png"
@@ -317,3 +318,49 @@ func TestValidateReportPage(t *testing.T) {
 }
 
 func strconvG4(x float64) string { return strconv.FormatFloat(x, 'g', 4, 64) }
+
+// validate reads the run's hindcast files from the paths its manifest
+// records: run from another working directory it failed as if a file were
+// missing, the run's relative input paths being taken against the current
+// directory (issue 33). The results from elsewhere are the same bytes.
+func TestValidateFromAnotherDirectory(t *testing.T) {
+	run := validationRun(t)
+	obs, err := filepath.Abs("../../testdata/validate/station_synth.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	here := t.TempDir()
+	if _, err := validation.Validate(context.Background(), validation.Options{RunDir: run, Obs: []string{obs}, OutDir: here}); err != nil {
+		t.Fatal(err)
+	}
+	t.Chdir(t.TempDir())
+	there := t.TempDir()
+	if _, err := validation.Validate(context.Background(), validation.Options{RunDir: run, Obs: []string{obs}, OutDir: there}); err != nil {
+		t.Fatalf("validate from another working directory: %v", err)
+	}
+	for _, name := range []string{"validation.parquet", "validation_pairs.parquet"} {
+		a, err1 := os.ReadFile(filepath.Join(here, name))
+		b, err2 := os.ReadFile(filepath.Join(there, name))
+		if err1 != nil || err2 != nil || !bytes.Equal(a, b) {
+			t.Errorf("%s differs when validate runs from another directory (%v, %v)", name, err1, err2)
+		}
+	}
+}
+
+// The recorded spec names the bathymetry file by absolute path (validate
+// reopens it with the inputs); the run's own spec is left as given.
+func TestRecordedSpecBathymetryAbsolute(t *testing.T) {
+	wd, err := os.Getwd()
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := runspec.DefaultSpec()
+	s.Depth.BathymetryFile = filepath.Join("data", "bathy.nc")
+	r := recordedSpec(s)
+	if want := filepath.Join(wd, "data", "bathy.nc"); r.Depth.BathymetryFile != want {
+		t.Errorf("recorded bathymetry file %q, want %q", r.Depth.BathymetryFile, want)
+	}
+	if s.Depth.BathymetryFile != filepath.Join("data", "bathy.nc") {
+		t.Errorf("the run's spec was changed: %q", s.Depth.BathymetryFile)
+	}
+}
