@@ -2,6 +2,7 @@ package engine
 
 import (
 	"bufio"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -222,4 +223,76 @@ func TestDesignEndToEnd(t *testing.T) {
 	if rows != 2 || len(td["cell_id"]) != 3*6 {
 		t.Errorf("%d rows at 0.99 for stations 1-2, %d rows in all (want 3 x 6)", rows, len(td["cell_id"]))
 	}
+}
+
+// A row of extremes.parquet carries the flags true of that row, the fit's
+// in fit_flags (issue 33: every GEV row of the demo said
+// period_outside_model, true only of the 1-year row, and depth_limited
+// stood on levels below the limit). On the python3-netcdf4 point set
+// (testdata/extremes_points) with the periods 1, 5, 10 and 100 years:
+//   - period_outside_model is on a GEV row exactly when T = 1 y: the GEV
+//     level z_p for p = 1/T (Coles 2001, eq. 3.4) needs -log(1 - p), infinite
+//     at p = 1; the row's level is then null;
+//   - depth_limited is on a row exactly when its level or its profile upper
+//     end exceeds the cell's hm0_depth_limit_m (the README's definition; the
+//     fixture's depths 60, 80 and 8 m x the breaking ratio 0.6);
+//   - fit_flags is the same on every row of a method and holds no level's
+//     flag; the flat station's no_convergence is there (and on each row).
+func TestExtremesRowFlags(t *testing.T) {
+	out := t.TempDir()
+	s := testSpec(t, "testdata/extremes_points/extremes_points.nc", out)
+	s.Extremes.ReturnPeriodsY = []float64{1, 5, 10, 100}
+	mustRun(t, s)
+	lim := runcheck.ReadColumn(t, filepath.Join(out, "cells.parquet"), "hm0_depth_limit_m")
+	m, err := parquetread.Columns(filepath.Join(out, "extremes.parquet"), "cell_id", "method", "return_period_y", "hm0_m", "hm0_hi_m", "qc_flags", "fit_flags")
+	if err != nil {
+		t.Fatal(err)
+	}
+	num := func(n string, k int) float64 {
+		if v, ok := m[n][k].(float64); ok {
+			return v
+		}
+		return math.NaN()
+	}
+	fit := map[string]string{}
+	limited, outside := 0, 0
+	for k := range m["cell_id"] {
+		cell, method, T := m["cell_id"][k].(int64), m["method"][k].(string), num("return_period_y", k)
+		qc, ff := m["qc_flags"][k].(string), m["fit_flags"][k].(string)
+		tag := fmt.Sprintf("cell %d %s T=%g (qc_flags %q, fit_flags %q)", cell, method, T, qc, ff)
+		key := fmt.Sprint(cell, method)
+		if f, ok := fit[key]; ok && f != ff {
+			t.Errorf("%s: fit_flags differ between rows of one fit (%q)", tag, f)
+		}
+		fit[key] = ff
+		for _, lf := range []string{"period_outside_model", "extrapolation_limit", "depth_limited", "below_record_maximum", "open_interval"} {
+			if runcheck.HasFlag(ff, lf) {
+				t.Errorf("%s: fit_flags holds the level's flag %s", tag, lf)
+			}
+		}
+		h, hi := num("hm0_m", k), num("hm0_hi_m", k)
+		if method == "gev_annual_maxima" && cell != 0 {
+			if want := T == 1; runcheck.HasFlag(qc, "period_outside_model") != want {
+				t.Errorf("%s: period_outside_model is %v, want %v", tag, !want, want)
+			}
+			if T == 1 && !math.IsNaN(h) {
+				t.Errorf("%s: a 1-year GEV level %g", tag, h)
+			}
+		}
+		if runcheck.HasFlag(qc, "period_outside_model") {
+			outside++
+		}
+		if want := h > lim[cell] || hi > lim[cell]; runcheck.HasFlag(qc, "depth_limited") != want {
+			t.Errorf("%s: level %.3f m, upper %.3f m, depth limit %.3f m: depth_limited is %v, want %v", tag, h, hi, lim[cell], !want, want)
+		} else if want {
+			limited++
+		}
+		if cell == 0 && method == "gev_annual_maxima" && (!runcheck.HasFlag(ff, "no_convergence") || !runcheck.HasFlag(qc, "no_convergence") || !math.IsNaN(h)) {
+			t.Errorf("%s: the flat station's GEV does not converge (fit_flags and qc_flags) and publishes nothing", tag)
+		}
+	}
+	if limited == 0 || outside == 0 {
+		t.Errorf("%d depth_limited and %d period_outside_model rows: the fixture no longer exercises the flags", limited, outside)
+	}
+	t.Logf("%d rows, %d depth_limited, %d period_outside_model", len(m["cell_id"]), limited, outside)
 }

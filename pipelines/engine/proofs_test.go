@@ -150,7 +150,8 @@ var columnProofs = map[string]proof{
 	"extremes.parquet:scale_m":            byE2E,
 	"extremes.parquet:shape":              byE2E,
 	"extremes.parquet:n":                  byE2E,
-	"extremes.parquet:qc_flags":           by("TestNoReturnLevelsFromDegenerateFits", "depth_limited levels of the shallow station of a python3-netcdf4 point set"),
+	"extremes.parquet:qc_flags":           by("TestExtremesRowFlags", "each row's own flags on a python3-netcdf4 point set: period_outside_model exactly on the 1-year GEV rows (Coles 2001, eq. 3.4), depth_limited exactly where the row's level or upper end exceeds the cell's depth limit"),
+	"extremes.parquet:fit_flags":          by("TestExtremesRowFlags", "the same on every row of a method, no level's flag in it, no_convergence of the flat station's GEV (python3-netcdf4 point set)"),
 
 	"threshold_diagnostics.parquet:cell_id":             byE2E,
 	"threshold_diagnostics.parquet:quantile":            byE2E,

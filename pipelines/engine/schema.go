@@ -350,8 +350,11 @@ var extremesSchema = []tables.Column[eRow]{
 	tables.F64("scale_m", "m", "", "", "scale", func(x eRow) float64 { return x.v.m.Scale }),
 	tables.F64("shape", "1", "", "", "shape, Coles (2001) sign", func(x eRow) float64 { return x.v.m.Shape }),
 	tables.I64("n", "1", "", "", "maxima or exceedances fitted", func(x eRow) int64 { return int64(x.v.m.N) }),
-	tables.Str(contract.ColQCFlags, "", "flags of the level (why it is null, or what is flagged about it) and of its fit", func(x eRow) string {
-		return strings.Join((x.v.m.Flags&^extremes.Withheld | x.v.l.Flags).Names(), ",")
+	tables.Str(contract.ColQCFlags, "", "flags of this return level: why it is null, or what is flagged about it (fit_flags: its fit's)", func(x eRow) string {
+		return strings.Join(x.v.l.Flags.Names(), ",")
+	}),
+	tables.Str("fit_flags", "", "flags of the method's fit and its input, the same on each of its rows (e.g. incomplete_years, peaks_truncated, no_convergence)", func(x eRow) string {
+		return strings.Join((x.v.m.Flags &^ extremes.LevelFlags).Names(), ",")
 	}),
 }
 

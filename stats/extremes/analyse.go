@@ -142,6 +142,10 @@ var flagNames = []string{"few_years", "few_peaks", "shape_implausible", "no_conv
 // state three times the largest of a multi-year record is a useful bound.
 const PlausibleFactor = 3
 
+// LevelFlags are the flags that describe one return level rather than its
+// fit: one level of a fit may carry them while another does not.
+const LevelFlags = FlagPeriodOutsideModel | FlagExtrapolation | FlagDepthLimited | FlagBelowRecordMax | FlagOpenInterval
+
 // Withheld are the flags that stop a return level being published.
 const Withheld = FlagFewYears | FlagFewPeaks | FlagShapeImplausible | FlagNoConvergence |
 	FlagSingularInformation | FlagNoFit | FlagExtrapolation
