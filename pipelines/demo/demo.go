@@ -49,8 +49,10 @@ func Specs(dir string) []*runspec.Spec {
 		return s
 	}
 	grid := mk("nullport_bulk_*.nc", "atlas-grid", []string{contract.ColPowerMean, contract.ColHm0Mean, contract.Hm0PercentileColumn(90), contract.ColMVI, contract.AEPColumn("demo_wec")})
-	// Two invented places of interest get a report page each.
-	grid.Sites = []runspec.SiteSpec{{Name: "Outer shelf mooring (invented)", Lon: -32.0, Lat: 45.6}, {Name: "Inner shelf (invented)", Lon: -34.4, Lat: 45.1}}
+	// Two invented places of interest get a report page each: a mooring on
+	// the inner shelf by the coast (about 20 m deep) and a site on the outer
+	// shelf offshore (about 180 m; depths of the demo's cells.parquet).
+	grid.Sites = []runspec.SiteSpec{{Name: "Inner shelf mooring (invented)", Lon: -32.0, Lat: 45.6}, {Name: "Outer shelf (invented)", Lon: -34.4, Lat: 45.1}}
 	// A screening scenario on invented constraint layers.
 	grid.Screening = &runspec.ScreeningSpec{
 		Layers: []runspec.ScreenLayerSpec{{Name: "reserve", File: filepath.Join(hind, "demo_reserve.geojson")}, {Name: "ports", File: filepath.Join(hind, "demo_ports.geojson")}},
