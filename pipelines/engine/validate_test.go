@@ -364,3 +364,41 @@ func TestRecordedSpecBathymetryAbsolute(t *testing.T) {
 		t.Errorf("the run's spec was changed: %q", s.Depth.BathymetryFile)
 	}
 }
+
+// A manifest written before the inputs were recorded by absolute path
+// names them relative to where the run started: validate from elsewhere
+// says so and what to do.
+func TestValidateRelativeManifestHint(t *testing.T) {
+	run := validationRun(t)
+	dir := t.TempDir()
+	b, err := os.ReadFile(filepath.Join(run, "manifest.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var doc map[string]any
+	if err := json.Unmarshal(b, &doc); err != nil {
+		t.Fatal(err)
+	}
+	wd, _ := os.Getwd()
+	for _, in := range doc["inputs"].([]any) {
+		m := in.(map[string]any)
+		rel, err := filepath.Rel(wd, m["path"].(string))
+		if err != nil {
+			t.Fatal(err)
+		}
+		m["path"] = rel
+	}
+	b, _ = json.Marshal(doc)
+	os.WriteFile(filepath.Join(dir, "manifest.json"), b, 0o644)
+	cells, _ := os.ReadFile(filepath.Join(run, "cells.parquet"))
+	os.WriteFile(filepath.Join(dir, "cells.parquet"), cells, 0o644)
+	obs, _ := filepath.Abs("../../testdata/validate/station_synth.csv")
+	if _, err := validation.Validate(context.Background(), validation.Options{RunDir: dir, Obs: []string{obs}, OutDir: t.TempDir()}); err != nil {
+		t.Fatalf("relative manifest paths from the run's own directory: %v", err)
+	}
+	t.Chdir(t.TempDir())
+	_, err = validation.Validate(context.Background(), validation.Options{RunDir: dir, Obs: []string{obs}, OutDir: t.TempDir()})
+	if err == nil || !strings.Contains(err.Error(), "relative to the directory the run was started from") {
+		t.Errorf("relative manifest paths from elsewhere: %v, want the hint", err)
+	}
+}

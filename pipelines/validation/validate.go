@@ -195,7 +195,14 @@ func reopenCatalog(ctx context.Context, run *rundir.Run, spec *runspec.Spec) (*i
 		if ctx.Err() != nil {
 			return nil, ctx.Err()
 		}
-		return nil, fault.Input(fmt.Errorf("validate: the run's hindcast files (from %s/manifest.json): %w", run.Dir, err))
+		hint := ""
+		for _, p := range paths {
+			if !filepath.IsAbs(p) {
+				hint = "; the manifest names them relative to the directory the run was started from (a run made before paths were recorded absolute): run validate from there"
+				break
+			}
+		}
+		return nil, fault.Input(fmt.Errorf("validate: the run's hindcast files (from %s/manifest.json): %w%s", run.Dir, err, hint))
 	}
 	m := run.Manifest
 	if len(cat.Files) != len(m.Inputs) || cat.Steps != m.Steps || cat.Grid.NCells() != m.Grid.Cells {
