@@ -26,6 +26,8 @@ STATICCHECK_VERSION := v0.8.2
 TEST_DEBS  += chromium python3-matplotlib
 # screening geometry references (GEOS validity, point-in-polygon, geodesics and areas)
 TEST_DEBS  += python3-shapely python3-pyproj
+# QGIS (python3-qgis) opens atlas.gpkg with its default styles (pipelines/demo)
+TEST_DEBS  += python3-qgis
 
 .PHONY: all deps test-deps build demo test lint mutants bench bench-memory fuzz soak clean
 

@@ -123,7 +123,7 @@ func Write(r *rundir.Run) error {
 		return err
 	}
 	defer cleanup()
-	if err := write(tmp, stamp(r.Manifest.End), layers); err != nil {
+	if err := write(tmp, stamp(r.Manifest.End), layers, styles(r, layers)); err != nil {
 		err = rundir.NoSpace(r.Dir, err) // SQLite says "database or disk is full"; before the partial file's space is freed
 		return fmt.Errorf("gpkg: writing %s: %w", final, err)
 	}
@@ -156,6 +156,9 @@ func Layers(r *rundir.Run) ([]*Layer, error) {
 	}
 	cells.Columns = r.Cells.Columns
 	out := []*Layer{cells}
+	if fp := footprints(r, frameNote); fp != nil {
+		out = append(out, fp)
+	}
 	files, _ := filepath.Glob(filepath.Join(r.Dir, contract.ContourDir, "*.geojson"))
 	sort.Strings(files)
 	for _, f := range files {
@@ -169,19 +172,21 @@ func Layers(r *rundir.Run) ([]*Layer, error) {
 		}
 		base := strings.TrimSuffix(filepath.Base(f), ".geojson")
 		l := &Layer{}
-		var props []string
+		var props []prop
 		if sc, ok := strings.CutPrefix(base, contract.ScreeningOutlinePrefix); ok {
-			l.Name, l.GeomType, props = base, "MULTIPOLYGON", []string{"cells", "area_km2"}
+			l.Name, l.GeomType, props = base, "MULTIPOLYGON", screeningProps
 			l.Description = "passing area of screening scenario " + sc + " (cells taken whole; see screening.json)"
 		} else if col, ok := strings.CutSuffix(base, ".bands"); ok {
-			l.Name, l.GeomType, props = "bands_"+col, "MULTIPOLYGON", []string{"lower", "upper"}
+			l.Name, l.GeomType, props = "bands_"+col, "MULTIPOLYGON", bandProps
 			l.Description = "filled contour bands [lower, upper) of " + col + " (null bound: open band)"
 		} else {
-			l.Name, l.GeomType, props = "isolines_"+col, "MULTILINESTRING", []string{"level"}
+			l.Name, l.GeomType, props = "isolines_"+col, "MULTILINESTRING", isolineProps
 			l.Description = "isolines of " + col
 		}
-		unit := ""
-		vals := make([][]float64, len(props))
+		cols := make([]*rundir.Column, len(props))
+		for k, p := range props {
+			cols[k] = &rundir.Column{Name: p.name, Kind: p.kind}
+		}
 		l.Description += frameNote
 		for _, ft := range fc.Features {
 			// the GeoJSON is cut at 180 degrees (RFC 7946); the layer is
@@ -199,19 +204,19 @@ func Layers(r *rundir.Run) ([]*Layer, error) {
 				return nil, fmt.Errorf("gpkg: %s: unexpected geometry %T", f, ft.Geometry)
 			}
 			for k, p := range props {
-				v, ok := ft.Properties[p].(float64)
-				if !ok {
-					v = math.NaN()
+				if err := appendProp(cols[k], ft.Properties[p.name]); err != nil {
+					return nil, fmt.Errorf("gpkg: %s: property %q: %w", f, p.name, err)
 				}
-				vals[k] = append(vals[k], v)
-			}
-			if u, ok := ft.Properties["units"].(string); ok {
-				unit = u
 			}
 		}
-		for k, p := range props {
-			l.Columns = append(l.Columns, &rundir.Column{Name: p, Unit: unit, Kind: rundir.Float, Float: vals[k]})
+		if u, ok := unitOf(fc); ok {
+			for _, c := range cols {
+				if c.Kind == rundir.Float {
+					c.Unit = u
+				}
+			}
 		}
+		l.Columns = cols
 		out = append(out, l)
 	}
 	return out, nil
@@ -255,7 +260,7 @@ func value(c *rundir.Column, i int) any {
 
 func quote(id string) string { return `"` + strings.ReplaceAll(id, `"`, `""`) + `"` }
 
-func write(path, lastChange string, layers []*Layer) error {
+func write(path, lastChange string, layers []*Layer, ss []style) error {
 	db, err := sql.Open("sqlite", path)
 	if err != nil {
 		return err
@@ -309,7 +314,7 @@ func write(path, lastChange string, layers []*Layer) error {
 			return fmt.Errorf("layer %s: %w", l.Name, err)
 		}
 	}
-	return nil
+	return writeStyles(exec, lastChange, ss)
 }
 
 // wgs84WKT is EPSG:4326 in OGC WKT as GeoPackage files commonly hold it.
@@ -454,4 +459,104 @@ END`,
 BEGIN
   DELETE FROM "rtree_<t>_<c>" WHERE id = OLD."<i>";
 END`,
+}
+
+// prop is one property of a GeoJSON layer and the field type its GeoPackage
+// twin stores it as.
+type prop struct {
+	name string
+	kind rundir.Kind
+}
+
+// The properties of the layers under contours/, in the order and with the
+// types their writers give them (export.WriteContours and
+// export.WriteScreeningOutline, through pipelines/screening): a layer in
+// atlas.gpkg carries the same fields as its GeoJSON twin (TestLayerFieldsMatchGeoJSON).
+var (
+	isolineProps   = []prop{{"level", rundir.Float}, {"column", rundir.String}, {"units", rundir.String}}
+	bandProps      = []prop{{"lower", rundir.Float}, {"upper", rundir.Float}, {"column", rundir.String}, {"units", rundir.String}}
+	screeningProps = []prop{{"scenario", rundir.String}, {"criteria", rundir.String}, {"cells", rundir.Int}, {"area_km2", rundir.Float}}
+)
+
+// appendProp appends a GeoJSON property value (nil: null) to c.
+func appendProp(c *rundir.Column, v any) error {
+	switch c.Kind {
+	case rundir.Float:
+		f, ok := v.(float64)
+		if !ok {
+			if v != nil {
+				return fmt.Errorf("%v is not a number", v)
+			}
+			f = math.NaN()
+		}
+		c.Float = append(c.Float, f)
+	case rundir.Int:
+		f, ok := v.(float64)
+		if ok && (f != math.Trunc(f) || math.Abs(f) > 1<<53) {
+			return fmt.Errorf("%v is not an integer", v)
+		}
+		if !ok && v != nil {
+			return fmt.Errorf("%v is not a number", v)
+		}
+		c.Int, c.Valid = append(c.Int, int64(f)), append(c.Valid, ok)
+	case rundir.String:
+		s, ok := v.(string)
+		if !ok && v != nil {
+			return fmt.Errorf("%v is not a text", v)
+		}
+		c.Str, c.Valid = append(c.Str, s), append(c.Valid, ok)
+	default:
+		return fmt.Errorf("unsupported field type")
+	}
+	return nil
+}
+
+// unitOf is the "units" property of the layer's first feature that has one.
+func unitOf(fc *geojson.FeatureCollection) (string, bool) {
+	for _, ft := range fc.Features {
+		if u, ok := ft.Properties["units"].(string); ok {
+			return u, true
+		}
+	}
+	return "", false
+}
+
+// FootprintLayer is the name of the polygon layer of the cells' footprints.
+const FootprintLayer = "cell_footprints"
+
+// footprints is the layer of the cells' outlines (grid.CellCorners: edges
+// halfway between neighbouring centres, in the grid's continuous longitude
+// frame, WGS 84 like every layer) with every column of cells.parquet, one
+// feature per cell in cell-id order; a cell with an unknown corner has an
+// empty geometry. A point set or a mesh has no cells of its own: nil.
+func footprints(r *rundir.Run, frameNote string) *Layer {
+	if !r.Structured() {
+		return nil
+	}
+	g := &grid.Grid{Kind: r.GridKind, NX: r.NX, NY: r.NY, Lon: r.Lon(), Lat: r.Lat()}
+	c, ok := grid.CellCorners(g)
+	if !ok {
+		return nil
+	}
+	l := &Layer{Name: FootprintLayer, GeomType: "MULTIPOLYGON", Columns: r.Cells.Columns,
+		Description: "one polygon per cell (its outline, edges halfway between neighbouring centres) with every column of cells.parquet, for selecting and querying cells by area (null: no result)." + frameNote + " " + r.Manifest.Caution}
+	l.Geoms = make([]orb.Geometry, 0, r.NX*r.NY)
+	for j := 0; j < r.NY; j++ {
+		for i := 0; i < r.NX; i++ {
+			ring := c.CellRing(i, j)
+			bad := false
+			for _, p := range ring {
+				bad = bad || math.IsNaN(p[0]) || math.IsNaN(p[1])
+			}
+			if bad {
+				l.Geoms = append(l.Geoms, orb.MultiPolygon{})
+				continue
+			}
+			if ring.Orientation() == orb.CW { // right-hand rule: exterior anticlockwise (OGC 06-103r4 6.1.11.1 recommends it; GeoPackage readers accept either)
+				ring.Reverse()
+			}
+			l.Geoms = append(l.Geoms, orb.MultiPolygon{orb.Polygon{ring}})
+		}
+	}
+	return l
 }

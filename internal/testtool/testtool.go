@@ -64,6 +64,7 @@ const Python = "/usr/bin/python3"
 var debOf = map[string]string{
 	"numpy": "python3-numpy", "scipy": "python3-scipy", "netCDF4": "python3-netcdf4",
 	"xarray": "python3-xarray", "cftime": "python3-cftime", "osgeo": "python3-gdal",
+	"qgis.core": "python3-qgis", "matplotlib": "python3-matplotlib",
 }
 
 // NeedPython returns Debian's python3 if it imports every module, or stops
