@@ -1,7 +1,10 @@
 // Package gpkg writes atlas.gpkg, an OGC GeoPackage 1.3 (OGC 12-128r18) of a
 // finished run for desktop GIS software: a point layer "cells" with every
-// column of cells.parquet, and one line layer and one polygon layer per
-// contoured column (from contours/*.geojson). It writes the required metadata
+// column of cells.parquet, a polygon layer of the cells' footprints on a
+// structured grid, one line layer and one polygon layer per contoured column
+// and one per screening scenario (from contours/*.geojson, with their
+// GeoJSON twins' fields), and the default style of each in the QGIS
+// layer_styles table (styles.go). It writes the required metadata
 // tables (gpkg_spatial_ref_sys, gpkg_contents, gpkg_geometry_columns), the
 // GeoPackage binary geometry (header + ISO WKB) and the R-tree spatial index
 // extension (gpkg_rtree_index) of every layer. Every layer is in the grid's
