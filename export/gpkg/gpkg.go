@@ -531,8 +531,12 @@ const FootprintLayer = "cell_footprints"
 // halfway between neighbouring centres, in the grid's continuous longitude
 // frame, WGS 84 like every layer) with every column of cells.parquet, one
 // feature per cell in cell-id order; a cell with an unknown corner has an
-// empty geometry. A point set or a mesh has no cells of its own: nil.
+// empty geometry. A mesh's cells are its faces or its nodes' median dual
+// cells (grid.MeshOutlines). A point set has no cells of its own: nil.
 func footprints(r *rundir.Run, frameNote string) *Layer {
+	if r.Mesh != nil {
+		return meshFootprints(r)
+	}
 	if !r.Structured() {
 		return nil
 	}
@@ -562,4 +566,26 @@ func footprints(r *rundir.Run, frameNote string) *Layer {
 		}
 	}
 	return l
+}
+
+// meshFootprints is the footprint layer of a mesh run: a face, or a node's
+// median dual cell, per cell in cell-id order (empty where a node has none).
+func meshFootprints(r *rundir.Run) *Layer {
+	m := r.Mesh
+	rings := grid.MeshOutlines(m.Location, m.NodeLon, m.NodeLat, m.FaceOff, m.FaceNode)
+	geoms := make([]orb.Geometry, r.Cells.Rows)
+	for i := range geoms {
+		geoms[i] = orb.MultiPolygon{}
+	}
+	for e, c := range m.Cell {
+		if e < len(rings) && rings[e] != nil && c >= 0 && c < len(geoms) {
+			geoms[c] = orb.MultiPolygon{orb.Polygon{rings[e]}}
+		}
+	}
+	what := "its face"
+	if m.Location == grid.OnNodes {
+		what = "its node's median dual cell (edge midpoints joined through the face centroids round the node)"
+	}
+	return &Layer{Name: FootprintLayer, GeomType: "MULTIPOLYGON", Columns: r.Cells.Columns, Geoms: geoms,
+		Description: "one polygon per cell of the mesh (" + what + ") with every column of cells.parquet, for selecting and querying cells by area (null: no result). " + r.Manifest.Caution}
 }

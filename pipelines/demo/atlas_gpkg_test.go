@@ -11,6 +11,7 @@ import (
 	"strings"
 	"testing"
 
+	"swellgrid/export/rundir"
 	"swellgrid/internal/runcheck"
 	"swellgrid/internal/testtool"
 )
@@ -314,4 +315,54 @@ func TestAtlasGpkgStylesInQGIS(t *testing.T) {
 		t.Errorf("the rendered map (%s) shows %d of %d band colours", rep.Render.PNG, shown, len(bands.Rules))
 	}
 	t.Logf("QGIS rendering kept at %s", rep.Render.PNG)
+}
+
+// On the demo's mesh atlas, cell_footprints has a polygon per cell, none
+// empty, and the polygons tile the mesh: their areas (the shoelace formula,
+// planar in lon/lat) sum to the area of the mesh's faces as
+// mesh_faces.parquet lists them (read by rundir), to 1e-9.
+func TestAtlasGpkgMeshFootprints(t *testing.T) {
+	dir, _ := demoRun(t)
+	run := filepath.Join(dir, "atlas-mesh")
+	feats := ogrLayerJSON(t, filepath.Join(run, "atlas.gpkg"), "cell_footprints")
+	r, err := rundir.Open(run, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Mesh == nil || len(feats) != r.Cells.Rows {
+		t.Fatalf("%d footprints, %d cells (mesh %v)", len(feats), r.Cells.Rows, r.Mesh != nil)
+	}
+	shoelace := func(ring [][2]float64) float64 {
+		s := 0.0
+		for k := 0; k+1 < len(ring); k++ {
+			s += ring[k][0]*ring[k+1][1] - ring[k+1][0]*ring[k][1]
+		}
+		return s / 2
+	}
+	sum := 0.0
+	for k, f := range feats {
+		var mp [][][][2]float64
+		if err := json.Unmarshal(f.Geometry.Coordinates, &mp); err != nil || len(mp) != 1 {
+			t.Fatalf("footprint %d: %s", k, f.Geometry.Coordinates)
+		}
+		a := shoelace(mp[0][0])
+		if a <= 0 {
+			t.Errorf("footprint %d: area %g (not anticlockwise)", k, a)
+		}
+		sum += a
+	}
+	mesh := 0.0
+	m := r.Mesh
+	for fc := 0; fc < m.NFaces(); fc++ {
+		var ring [][2]float64
+		for _, n := range m.Face(fc) {
+			ring = append(ring, [2]float64{m.NodeLon[n], m.NodeLat[n]})
+		}
+		ring = append(ring, ring[0])
+		mesh += math.Abs(shoelace(ring))
+	}
+	if math.Abs(sum-mesh) > 1e-9*mesh {
+		t.Errorf("footprints cover %.12g square degrees, the mesh's faces %.12g", sum, mesh)
+	}
+	t.Logf("%d mesh footprints (%s) cover %.9g square degrees, the faces %.9g", len(feats), m.Location, sum, mesh)
 }
