@@ -9,6 +9,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
 	"sync"
 	"testing"
@@ -19,6 +20,7 @@ import (
 	"swellgrid/internal/parquetread"
 	"swellgrid/internal/runcheck"
 	"swellgrid/internal/testtool"
+	"swellgrid/pipelines/runspec"
 )
 
 // meshPair writes, with testdata/ugrid/make_ugrid.py (Debian's
@@ -291,4 +293,70 @@ func TestMeshFacesEndToEnd(t *testing.T) {
 	if _, err := os.Stat(filepath.Join(dir, "contours")); err == nil || !warned {
 		t.Errorf("face data: contours written or no warning (warnings %v)", res.Warnings)
 	}
+}
+
+// TestMeshScreenedByArea: a node-centred mesh is screened by area, each node
+// taking its median dual cell (grid.MeshOutlines). With every node passing,
+// the scenario's area is the area of the mesh (the triangulated rectangle of
+// meshPair) as pyproj's geodesic polygon area gives it
+// (testdata/ugrid/hull_area.py, Debian's python3-pyproj; 1e-6 relative),
+// the rows' area_km2 sum to it, and the mean power is weighted by them.
+func TestMeshScreenedByArea(t *testing.T) {
+	_, mf := meshPair(t)
+	py := testtool.NeedPython(t, "numpy", "netCDF4", "pyproj")
+	out, err := exec.Command(py, "../../testdata/ugrid/hull_area.py", mf).Output()
+	if err != nil {
+		t.Fatalf("hull_area.py: %v", err)
+	}
+	want, err := strconv.ParseFloat(strings.TrimSpace(string(out)), 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := filepath.Join(t.TempDir(), "mesh")
+	s := clSpec([]string{mf}, dir)
+	s.Output.Report, s.Output.NetCDF = false, false
+	s.Screening = &runspec.ScreeningSpec{Scenarios: []runspec.ScenarioSpec{{Name: "all", Criteria: []string{"hm0_mean_m > 0"}}}}
+	clRun(t, s, Options{})
+	b, err := os.ReadFile(filepath.Join(dir, "screening.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var sum struct {
+		Scenarios []struct {
+			Cells        int      `json:"cells_passing"`
+			AreaKm2      *float64 `json:"area_km2"`
+			PowerMeanKWm *float64 `json:"power_mean_kw_m"`
+		} `json:"scenarios"`
+	}
+	if err := json.Unmarshal(b, &sum); err != nil || len(sum.Scenarios) != 1 {
+		t.Fatalf("screening.json: %v\n%s", err, b)
+	}
+	sc := sum.Scenarios[0]
+	if sc.Cells != 108 || sc.AreaKm2 == nil {
+		t.Fatalf("%d cells passing, area %v: the mesh is not screened by area", sc.Cells, sc.AreaKm2)
+	}
+	if rel := math.Abs(*sc.AreaKm2-want) / want; rel > 1e-6 {
+		t.Errorf("area %.6f km2, pyproj %.6f km2 (relative %.2g)", *sc.AreaKm2, want, rel)
+	}
+	rows, err := parquetread.Columns(filepath.Join(dir, "screening.parquet"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	cells, err := parquetread.Columns(filepath.Join(dir, "cells.parquet"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	tot, wp := 0.0, 0.0
+	for k, a := range rows["area_km2"] {
+		id := rows["cell_id"][k].(int64)
+		tot += a.(float64)
+		wp += a.(float64) * cells["power_mean_kw_m"][id].(float64)
+	}
+	if math.Abs(tot-*sc.AreaKm2) > 1e-9**sc.AreaKm2 {
+		t.Errorf("rows' areas sum to %.9g, the scenario's %.9g", tot, *sc.AreaKm2)
+	}
+	if sc.PowerMeanKWm == nil || math.Abs(*sc.PowerMeanKWm-wp/tot) > 1e-9*wp/tot {
+		t.Errorf("mean power %v, area-weighted %.9g", sc.PowerMeanKWm, wp/tot)
+	}
+	t.Logf("mesh screened: %d nodes, %.3f km2 (pyproj %.3f), mean power %.4f kW/m", sc.Cells, *sc.AreaKm2, want, *sc.PowerMeanKWm)
 }

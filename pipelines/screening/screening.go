@@ -54,7 +54,7 @@ var screeningSchema = []tables.Column[*screenRow]{
 	tables.Bool("pass", "", "the cell passes every criterion and constraint of the scenario", func(r *screenRow) bool { return r.pass }),
 	tables.Str("reasons", "", "semicolon-separated failed criteria and constraints (\"masked\"; a criterion as written, \"(missing)\" when the value is null; \"in LAYER\"; \"outside LAYER\"; \"LAYER distance ... km\"); empty when the cell passes",
 		func(r *screenRow) string { return strings.Join(r.reasons, "; ") }),
-	tables.F64("area_km2", "km2", "", "", "cell area on the WGS 84 ellipsoid from the grid's cell edges (null: a point set has no cells)",
+	tables.F64("area_km2", "km2", "", "", "cell area on the WGS 84 ellipsoid from the grid's cell edges, or a mesh's faces or median dual cells (null: a point set has no cells)",
 		func(r *screenRow) float64 { return r.areaKm2 }),
 	tables.F64("dist_<layer>_km", "km", "", "", "geodesic distance on WGS 84 from the cell centre to the nearest feature of layer <layer> (0 inside its polygons)",
 		func(r *screenRow) float64 { return r.dist[r.k] }).Per(ParamLayer),
@@ -66,7 +66,7 @@ const ParamLayer tables.Param = "layer"
 const screeningMethod = "criteria on cells.parquet columns (a missing value fails); a cell is in a polygon layer when its centre is " +
 	"inside or on the boundary of a polygon (planar in lon/lat, RFC 7946 edges); distances are geodesics on WGS 84 (Vincenty 1975) " +
 	"from the cell centre to the nearest point of the layer's features; cell areas on the WGS 84 ellipsoid from the grid's cell edges " +
-	"(midpoints between cell centres); passing areas dissolved exactly along the cell edges"
+	"(midpoints between cell centres), on a mesh from its faces or its nodes' median dual cells; passing areas of a structured grid dissolved exactly along the cell edges"
 
 // screenResult is the screening of a run.
 type screenResult struct {
@@ -94,7 +94,7 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 	sc := s.Screening
 	g := runGrid(r)
 	n := g.NCells()
-	areas := grid.CellAreasM2(g)
+	areas := cellAreasM2(r, g)
 	areaKm2 := make([]float64, n)
 	for i := range areaKm2 {
 		areaKm2[i] = math.NaN()
@@ -480,4 +480,26 @@ func Apply(r *rundir.Run, s *runspec.Resolved) ([]string, *contract.ScreeningSum
 		return nil, nil, err
 	}
 	return files, res.summary, nil
+}
+
+// cellAreasM2 is every cell's area on WGS 84 in m^2, in cell-id order: a
+// structured grid's from its cell edges (grid.CellAreasM2), a mesh's from its
+// faces or its nodes' median dual cells (grid.MeshOutlines, RingAreaM2; NaN
+// for a node without one); nil for a point set.
+func cellAreasM2(r *rundir.Run, g *grid.Grid) []float64 {
+	m := r.Mesh
+	if m == nil {
+		return grid.CellAreasM2(g)
+	}
+	rings := grid.MeshOutlines(m.Location, m.NodeLon, m.NodeLat, m.FaceOff, m.FaceNode)
+	out := make([]float64, g.NCells())
+	for i := range out {
+		out[i] = math.NaN()
+	}
+	for e, c := range m.Cell {
+		if e < len(rings) && rings[e] != nil && c >= 0 && c < len(out) {
+			out[c] = math.Abs(grid.RingAreaM2(rings[e]))
+		}
+	}
+	return out
 }
