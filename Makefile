@@ -13,7 +13,7 @@ SUDO    := $(shell [ "$$(id -u)" = 0 ] || echo sudo)
 # DuckDB reader check). A failed install fails `make test`: under CI=true
 # (.ci/run) a test whose tool is missing fails instead of skipping
 # (internal/testtool), so nothing is skipped quietly.
-BUILD_DEBS := libnetcdf-dev pkg-config
+BUILD_DEBS := libnetcdf-dev libproj-dev pkg-config
 TEST_DEBS  := netcdf-bin gdal-bin python3-gdal python3-numpy python3-scipy python3-netcdf4 \
 	python3-xarray python3-cftime r-base-core r-cran-evd slurm-wlm munge nodejs
 # The npm DuckDB package the export tests read our Parquet files with (the

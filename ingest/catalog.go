@@ -237,6 +237,9 @@ type Catalog struct {
 	Gaps        []Gap             `json:"gaps"`
 	Duplicates  []Duplicate       `json:"duplicate_steps,omitempty"`
 	Grid        *grid.Grid        `json:"-"`
+	// Mapping is the CF grid mapping of a projected or rotated native grid
+	// (gridmapping.go; nil on a longitude/latitude grid, a point set or a mesh).
+	Mapping *GridMapping `json:"grid_mapping,omitempty"`
 	Vars        map[Role]*VarInfo `json:"roles"`
 	// Spectral is the spectral axes of the first file with spectra, and
 	// SpectralAxes every distinct set of them, in order of first use (the
@@ -385,7 +388,7 @@ func openLocked(inputs []string, opt Options) (*Catalog, error) {
 		return a.First < b.First
 	})
 	first := scans[0]
-	c.Calendar, c.Grid, c.gridDim = first.cal, first.grid, first.gridDim
+	c.Calendar, c.Grid, c.gridDim, c.Mapping = first.cal, first.grid, first.gridDim, first.mapping
 	var w warnings
 	for _, s := range scans {
 		if err := c.compatible(first, s); err != nil {

@@ -26,6 +26,7 @@ type scan struct {
 	readings []Reading    // how the spectral conventions were read (findSpectral)
 	invX     []int
 	invY     []int
+	mapping  *GridMapping // the CF grid mapping of a projected or rotated native grid (gridmapping.go); nil otherwise
 }
 
 func errf(path, v, format string, a ...any) error {
@@ -338,8 +339,15 @@ func (s *scan) findGrid(timeDim string) error {
 		return nil
 	}
 	lon, lat := pick(lons), pick(lats)
+	gm, err := s.findMapping()
+	if err != nil {
+		return err
+	}
+	if (lon == nil || lat == nil) && gm != nil {
+		return s.projectedGrid(gm)
+	}
 	if lon == nil || lat == nil {
-		return errf(s.f.path, "", "no longitude/latitude coordinates (variables with standard_name longitude and latitude, or units degrees_east and degrees_north); add them")
+		return errf(s.f.path, "", "no longitude/latitude coordinates (variables with standard_name longitude and latitude, or units degrees_east and degrees_north) and no grid mapping with projected x/y axes; add them")
 	}
 	lonv, err := lon.readAll(s.f.path)
 	if err != nil {
@@ -404,9 +412,33 @@ func (s *scan) findGrid(timeDim string) error {
 		s.grid = g
 		s.gridDim[lonDims[0]] = axY
 		s.gridDim[lonDims[1]] = axX
+		if gm != nil && len(gm.X) == int(lon.shape[1]) && len(gm.Y) == int(lon.shape[0]) {
+			s.mapping = gm // the native grid of the given lat/lon, kept for atlas.nc
+		}
 	default:
 		return errf(s.f.path, lon.name+"/"+lat.name, "coordinates of dimensions %v and %v form no grid swellgrid reads (1-D axes, 2-D curvilinear, or a station dimension)", lonDims, latDims)
 	}
+	s.invX, s.invY = invert(s.grid.XFile), invert(s.grid.YFile)
+	s.info.xFile, s.info.yFile = s.grid.XFile, s.grid.YFile
+	return nil
+}
+
+// projectedGrid builds the curvilinear grid of a file that gives only
+// projected x/y (or rotated rlon/rlat) axes and their grid mapping: every
+// node's longitude and latitude computed by PROJ (GridMapping.LonLat).
+func (s *scan) projectedGrid(gm *GridMapping) error {
+	lon, lat, err := gm.LonLat()
+	if err != nil {
+		return errf(s.f.path, gm.Var, "%v", err)
+	}
+	g, err := grid.NewCurvilinear(len(gm.X), len(gm.Y), lon, lat)
+	if err != nil {
+		return errf(s.f.path, gm.XName+"/"+gm.YName, "%v", err)
+	}
+	gm.Computed = true
+	s.grid, s.mapping = g, gm
+	xv, yv := s.f.find(gm.XName), s.f.find(gm.YName)
+	s.gridDim = map[string]axis{xv.dims[0]: axX, yv.dims[0]: axY}
 	s.invX, s.invY = invert(s.grid.XFile), invert(s.grid.YFile)
 	s.info.xFile, s.info.yFile = s.grid.XFile, s.grid.YFile
 	return nil

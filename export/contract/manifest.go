@@ -104,6 +104,9 @@ type Grid struct {
 	// LonFrame is the grid's continuous longitude frame ("-180..180" or
 	// "0..360"; empty in a manifest written before it was recorded).
 	LonFrame string `json:"lon_frame"`
+	// Mapping is the input's native grid and CRS when it is projected or
+	// rotated (CF grid mapping; absent otherwise): atlas.nc is written on it.
+	Mapping *ingest.GridMapping `json:"grid_mapping,omitempty"`
 }
 
 // Parameters is the part of the recorded spec the products use.

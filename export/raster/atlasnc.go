@@ -135,6 +135,10 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 	if regular {
 		yn, xn = "lat", "lon"
 	}
+	gm := nativeMapping(r)
+	if gm != nil {
+		yn, xn = axisNames(r, gm)
+	}
 	if yd, err = ds.AddDim(yn, uint64(ny)); err != nil {
 		return err
 	}
@@ -152,23 +156,30 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 	if err != nil {
 		return err
 	}
-	if err := text(crs.Attr("grid_mapping_name"), "latitude_longitude"); err != nil {
+	if gm != nil {
+		// the input's own grid mapping, every attribute as the input gave it
+		if err := nativeAxes(ds, crs, gm, yd, xd, yn, xn); err != nil {
+			return err
+		}
+	} else if err := text(crs.Attr("grid_mapping_name"), "latitude_longitude"); err != nil {
 		return err
 	}
-	if err := crs.Attr("semi_major_axis").WriteFloat64s([]float64{6378137}); err != nil {
-		return err
-	}
-	if err := crs.Attr("inverse_flattening").WriteFloat64s([]float64{298.257223563}); err != nil {
-		return err
-	}
-	if err := crs.Attr("longitude_of_prime_meridian").WriteFloat64s([]float64{0}); err != nil {
-		return err
-	}
-	if err := text(crs.Attr("crs_wkt"), WGS84WKT); err != nil {
-		return err
-	}
-	if err := text(crs.Attr("spatial_ref"), WGS84WKT); err != nil { // GDAL reads this name
-		return err
+	if gm == nil {
+		if err := crs.Attr("semi_major_axis").WriteFloat64s([]float64{6378137}); err != nil {
+			return err
+		}
+		if err := crs.Attr("inverse_flattening").WriteFloat64s([]float64{298.257223563}); err != nil {
+			return err
+		}
+		if err := crs.Attr("longitude_of_prime_meridian").WriteFloat64s([]float64{0}); err != nil {
+			return err
+		}
+		if err := text(crs.Attr("crs_wkt"), WGS84WKT); err != nil {
+			return err
+		}
+		if err := text(crs.Attr("spatial_ref"), WGS84WKT); err != nil { // GDAL reads this name
+			return err
+		}
 	}
 	fr := r.Frame()
 	lonComment := fmt.Sprintf("longitudes in the grid's continuous frame %s", fr)
@@ -372,4 +383,82 @@ func Climatology(monthly *rundir.Table, cells int) (map[string][]float64, error)
 		out[name] = a
 	}
 	return out, nil
+}
+
+// nativeMapping is the input's projected or rotated native grid when atlas.nc
+// is written on it (a curvilinear run whose manifest records the grid
+// mapping, with axes of the grid's shape), else nil.
+func nativeMapping(r *rundir.Run) *ingest.GridMapping {
+	gm := r.Manifest.Grid.Mapping
+	if gm == nil || r.GridKind != grid.Curvilinear || len(gm.X) != r.NX || len(gm.Y) != r.NY {
+		return nil
+	}
+	return gm
+}
+
+// axisNames are the names of atlas.nc's native axes: the input's, unless one
+// would clash with a name atlas.nc uses for something else.
+func axisNames(r *rundir.Run, gm *ingest.GridMapping) (y, x string) {
+	used := map[string]bool{"lat": true, "lon": true, "month": true, "crs": true}
+	for _, c := range r.Cells.Columns {
+		used[c.Name] = true
+	}
+	y, x = gm.YName, gm.XName
+	if used[y] || used[x] || y == x || y == "" || x == "" {
+		return "y", "x"
+	}
+	return y, x
+}
+
+// nativeAxes writes the native 1-D axes (the input's values, units and
+// standard names; CF 1.8 section 5.6) and the grid mapping's attributes on
+// crs, so that GDAL georeferences atlas.nc in the model's own CRS and the
+// 2-D lat/lon stay as auxiliary coordinates.
+func nativeAxes(ds netcdf.Dataset, crs netcdf.Var, gm *ingest.GridMapping, yd, xd netcdf.Dim, yn, xn string) error {
+	for _, a := range gm.Attrs {
+		var err error
+		if a.Nums != nil {
+			err = crs.Attr(a.Name).WriteFloat64s(a.Nums)
+		} else {
+			err = text(crs.Attr(a.Name), a.Text)
+		}
+		if err != nil {
+			return fmt.Errorf("grid mapping attribute %s: %w", a.Name, err)
+		}
+	}
+	has := func(n string) bool {
+		for _, a := range gm.Attrs {
+			if a.Name == n {
+				return true
+			}
+		}
+		return false
+	}
+	if gm.WKT != "" && !has("crs_wkt") {
+		if err := text(crs.Attr("crs_wkt"), gm.WKT); err != nil {
+			return err
+		}
+	}
+	for _, ax := range []struct {
+		name, std, units, axis string
+		dim                    netcdf.Dim
+		vals                   []float64
+	}{{yn, gm.YStd, gm.YUnits, "Y", yd, gm.Y}, {xn, gm.XStd, gm.XUnits, "X", xd, gm.X}} {
+		v, err := ds.AddVar(ax.name, netcdf.DOUBLE, []netcdf.Dim{ax.dim})
+		if err != nil {
+			return err
+		}
+		for _, kv := range [][2]string{{"standard_name", ax.std}, {"units", ax.units}, {"axis", ax.axis}} {
+			if kv[1] == "" {
+				continue
+			}
+			if err := text(v.Attr(kv[0]), kv[1]); err != nil {
+				return err
+			}
+		}
+		if err := v.WriteFloat64s(ax.vals); err != nil {
+			return err
+		}
+	}
+	return nil
 }

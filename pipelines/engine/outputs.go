@@ -148,7 +148,7 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 		}
 	}
 	a, b, cc, d := c.Grid.Bounds()
-	m.Grid = contract.Grid{Kind: c.Grid.Kind, Shape: [2]int{c.Grid.NY, c.Grid.NX}, Cells: c.Grid.NCells(), Masked: masked, BBox: [4]float64{a, b, cc, d}, LonFrame: c.Grid.Frame().String()}
+	m.Grid = contract.Grid{Kind: c.Grid.Kind, Shape: [2]int{c.Grid.NY, c.Grid.NX}, Cells: c.Grid.NCells(), Masked: masked, BBox: [4]float64{a, b, cc, d}, LonFrame: c.Grid.Frame().String(), Mapping: c.Mapping}
 	m.Assumptions = []string{fmt.Sprintf("water density %g kg/m3, gravity %g m/s2", e.spec.Physics.Rho, e.spec.Physics.G)}
 	if !e.spectral {
 		m.Assumptions = append(m.Assumptions, "wave power from bulk Hm0 and Te with linear-theory group velocity at the cell depth (deep water where the depth is unknown or the deep-water assumption is chosen)")
