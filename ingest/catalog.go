@@ -231,16 +231,16 @@ type Catalog struct {
 	Steps    int        `json:"steps"`
 	// StepSeconds is the most common step (ties: the shortest); each step's
 	// own duration is StepHours(i), and Segments lists where it changes.
-	StepSeconds int64             `json:"step_seconds"`
-	Segments    []Segment         `json:"time_segments"`
-	Start, End  string            `json:"-"`
-	Gaps        []Gap             `json:"gaps"`
-	Duplicates  []Duplicate       `json:"duplicate_steps,omitempty"`
-	Grid        *grid.Grid        `json:"-"`
+	StepSeconds int64       `json:"step_seconds"`
+	Segments    []Segment   `json:"time_segments"`
+	Start, End  string      `json:"-"`
+	Gaps        []Gap       `json:"gaps"`
+	Duplicates  []Duplicate `json:"duplicate_steps,omitempty"`
+	Grid        *grid.Grid  `json:"-"`
 	// Mapping is the CF grid mapping of a projected or rotated native grid
 	// (gridmapping.go; nil on a longitude/latitude grid, a point set or a mesh).
-	Mapping *GridMapping `json:"grid_mapping,omitempty"`
-	Vars        map[Role]*VarInfo `json:"roles"`
+	Mapping *GridMapping      `json:"grid_mapping,omitempty"`
+	Vars    map[Role]*VarInfo `json:"roles"`
 	// Spectral is the spectral axes of the first file with spectra, and
 	// SpectralAxes every distinct set of them, in order of first use (the
 	// first is Spectral); AxisSegments lists the record's stretches on one
