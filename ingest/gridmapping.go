@@ -292,9 +292,9 @@ func ProjFromCF(name string, attrs []MappingAttr) (string, error) {
 	return strings.Join(p, " "), nil
 }
 
-// axisScale is the factor from a projected axis's units to metres (CF units
+// AxisScale is the factor from a projected axis's units to metres (CF units
 // of length as UDUNITS spells them; a rotated grid's axes are in degrees).
-func axisScale(units string) (float64, bool) {
+func AxisScale(units string) (float64, bool) {
 	switch strings.TrimSpace(strings.ToLower(units)) {
 	case "m", "metre", "metres", "meter", "meters", "1":
 		return 1, true
@@ -311,8 +311,8 @@ func axisScale(units string) (float64, bool) {
 // OGC:CRS84 (WGS 84, longitude first). A node PROJ cannot place, or an axis
 // in units other than a length (or degrees, rotated), is an error.
 func (gm *GridMapping) LonLat() (lon, lat []float64, err error) {
-	sx, okx := axisScale(gm.XUnits)
-	sy, oky := axisScale(gm.YUnits)
+	sx, okx := AxisScale(gm.XUnits)
+	sy, oky := AxisScale(gm.YUnits)
 	if !okx || !oky {
 		return nil, nil, fmt.Errorf("axes %s/%s in units %q/%q; give them in m or km (degrees for a rotated grid)", gm.XName, gm.YName, ShortText(gm.XUnits), ShortText(gm.YUnits))
 	}

@@ -410,8 +410,9 @@ func axisNames(r *rundir.Run, gm *ingest.GridMapping) (y, x string) {
 	return y, x
 }
 
-// nativeAxes writes the native 1-D axes (the input's values, units and
-// standard names; CF 1.8 section 5.6) and the grid mapping's attributes on
+// nativeAxes writes the native 1-D axes (the input's values, in metres when
+// the input gives another length unit, with their standard names; CF 1.8
+// section 5.6) and the grid mapping's attributes on
 // crs, so that GDAL georeferences atlas.nc in the model's own CRS and the
 // 2-D lat/lon stay as auxiliary coordinates.
 func nativeAxes(ds netcdf.Dataset, crs netcdf.Var, gm *ingest.GridMapping, yd, xd netcdf.Dim, yn, xn string) error {
@@ -444,6 +445,15 @@ func nativeAxes(ds netcdf.Dataset, crs netcdf.Var, gm *ingest.GridMapping, yd, x
 		dim                    netcdf.Dim
 		vals                   []float64
 	}{{yn, gm.YStd, gm.YUnits, "Y", yd, gm.Y}, {xn, gm.XStd, gm.XUnits, "X", xd, gm.X}} {
+		// projected axes in metres, the unit of the mapping's CRS (GDAL
+		// takes the axis values as they are)
+		if f, ok := ingest.AxisScale(ax.units); ok && f != 1 {
+			vals := make([]float64, len(ax.vals))
+			for i, x := range ax.vals {
+				vals[i] = x * f
+			}
+			ax.vals, ax.units = vals, "m"
+		}
 		v, err := ds.AddVar(ax.name, netcdf.DOUBLE, []netcdf.Dim{ax.dim})
 		if err != nil {
 			return err

@@ -65,9 +65,9 @@ func TestGridMappingNativeGrids(t *testing.T) {
 		return c
 	}
 	for _, c := range []struct{ run, twin, ref, crsWord string }{
-		{"tm_latlon", "lonlat_tm", "tm", "Transverse_Mercator"},
-		{"tm_xy", "lonlat_tm", "tm", "Transverse_Mercator"},
-		{"rotated", "lonlat_rot", "rotated", "rotated"},
+		{"tm_latlon", "lonlat_tm", "tm", `(?i)transverse[ _]mercator`},
+		{"tm_xy", "lonlat_tm", "tm", `(?i)transverse[ _]mercator`},
+		{"rotated", "lonlat_rot", "rotated", `(?i)rotat|ob_tran`},
 	} {
 		got, want, r := cols(c.run), cols(c.twin), ref[c.ref]
 		if len(got["lon"]) != 35 {
@@ -120,7 +120,7 @@ func TestGridMappingNativeGrids(t *testing.T) {
 			t.Fatalf("gdalinfo %s: %v\n%s", c.run, err, out)
 		}
 		s := string(out)
-		if !strings.Contains(strings.ToLower(s), strings.ToLower(c.crsWord)) {
+		if !regexp.MustCompile(c.crsWord).MatchString(s) {
 			t.Errorf("%s: gdalinfo shows no %s CRS:\n%s", c.run, c.crsWord, s)
 		}
 		mo := regexp.MustCompile(`Origin = \(([-0-9.e+]+),([-0-9.e+]+)\)`).FindStringSubmatch(s)
@@ -131,15 +131,40 @@ func TestGridMappingNativeGrids(t *testing.T) {
 		}
 		ox, _ := strconv.ParseFloat(mo[1], 64)
 		px, _ := strconv.ParseFloat(mp[1], 64)
-		scale := 1.0
-		if c.run == "tm_xy" {
-			scale = 1.0 / 1000 // axes in km
-		}
+		scale := 1.0 // atlas.nc's projected axes are in metres whatever the input's unit (tm_xy: km)
 		dx := (r.X[1] - r.X[0]) * scale
 		if math.Abs(px-dx) > 1e-9*math.Abs(dx) || math.Abs(ox-(r.X[0]*scale-dx/2)) > 1e-6*math.Abs(dx) {
 			t.Errorf("%s: geotransform origin x %v, pixel %v; native axis from %v by %v", c.run, ox, px, r.X[0]*scale, dx)
 		}
-		t.Logf("%s: %d values equal to the lon/lat twin; gdalinfo: origin x %v, pixel %v, CRS %s", c.run, compared, ox, px, c.crsWord)
+		// QGIS opens the raster in the model's CRS, on the native axes, and
+		// draws it (a picture of more than one colour, kept)
+		py := testtool.NeedPython(t, "qgis.core")
+		shot := filepath.Join(os.TempDir(), "swellgrid-test-output", "atlas_nc_"+c.run+"_qgis.png")
+		os.MkdirAll(filepath.Dir(shot), 0o755)
+		cmd := exec.Command(py, "../../testdata/gridmapping/qgis_raster.py", filepath.Join(runs[c.run], "atlas.nc"), "power_mean_kw_m", shot)
+		cmd.Env = append(os.Environ(), "QT_QPA_PLATFORM=offscreen", "XDG_RUNTIME_DIR="+t.TempDir())
+		qout, err := cmd.Output()
+		if err != nil {
+			t.Fatalf("qgis_raster.py %s: %v", c.run, err)
+		}
+		var q struct {
+			Valid    bool      `json:"valid"`
+			CRSValid bool      `json:"crs_valid"`
+			WKT      string    `json:"crs_wkt"`
+			Extent   []float64 `json:"extent"`
+			Width    int       `json:"width"`
+			Height   int       `json:"height"`
+			Colours  int       `json:"colours"`
+		}
+		if err := json.Unmarshal(qout, &q); err != nil {
+			t.Fatalf("qgis_raster.py: %v\n%s", err, qout)
+		}
+		if !q.Valid || !q.CRSValid || !regexp.MustCompile(c.crsWord).MatchString(q.WKT) || q.Width != 7 || q.Height != 5 {
+			t.Errorf("%s: QGIS layer valid %v, CRS valid %v (%.80s...), %d x %d", c.run, q.Valid, q.CRSValid, q.WKT, q.Width, q.Height)
+		} else if math.Abs(q.Extent[0]-(r.X[0]*scale-dx/2)) > 1e-6*math.Abs(dx) || q.Colours < 3 {
+			t.Errorf("%s: QGIS extent %v (native axis from %v by %v), %d colours drawn", c.run, q.Extent, r.X[0]*scale, dx, q.Colours)
+		}
+		t.Logf("%s: %d values equal to the lon/lat twin; gdalinfo: origin x %v, pixel %v, CRS %s; QGIS extent %v, %d colours (%s)", c.run, compared, ox, px, c.crsWord, q.Extent, q.Colours, shot)
 	}
 }
 
