@@ -10,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"swellgrid/export/report"
 	"swellgrid/export/rundir"
 	"swellgrid/pipelines/fault"
 	"swellgrid/pipelines/runspec"
@@ -88,7 +89,10 @@ func TestModelUncertaintyFromValidation(t *testing.T) {
 		return s
 	}
 	a := filepath.Join(dir, "a")
-	mustRun(t, withVal(a))
+	sa := withVal(a)
+	sa.Output.Report = true
+	sa.Sites = []runspec.SiteSpec{{Name: "at the station", Lon: -19.5, Lat: 50.5}, {Name: "beyond reach", Lon: -19.5, Lat: 51.0}}
+	mustRun(t, sa)
 	tb, err := rundir.ReadTable(filepath.Join(a, "aep_bands.parquet"))
 	if err != nil {
 		t.Fatal(err)
@@ -170,6 +174,7 @@ func TestModelUncertaintyFromValidation(t *testing.T) {
 	if want := 3 * len(ref.HorizonsY); inReach != want || tb.Rows != 9*len(ref.HorizonsY) {
 		t.Errorf("%d rows, %d within reach; want %d and %d", tb.Rows, inReach, 9*len(ref.HorizonsY), want)
 	}
+	checkBandReport(t, a, ref)
 	man, err := os.ReadFile(filepath.Join(a, "manifest.json"))
 	if err != nil || !bytes.Contains(man, []byte("model uncertainty from the validation in")) {
 		t.Errorf("the manifest does not record the validation behind the model uncertainty (%v)", err)
@@ -187,5 +192,81 @@ func TestModelUncertaintyFromValidation(t *testing.T) {
 	bad.Uncertainty.Validation = t.TempDir()
 	if _, err := Run(context.Background(), bad, Options{Version: "test"}); err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "no finished validation") {
 		t.Errorf("a directory without validation.json: %v (exit %d), want exit 2 naming it", err, fault.ExitCode(err))
+	}
+}
+
+// checkBandReport checks the report of run dir against the numpy
+// reference: the P90/P50 maps' values (1 - z90 u_total with numpy's
+// components) and the site pages' uncertainty components, with the model
+// component's source named in the caption.
+func checkBandReport(t *testing.T, dir string, ref *uncRef) {
+	t.Helper()
+	const z90, stateTol = 1.2815515655446004, 1e-6
+	r, err := rundir.Open(dir, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	maps, err := report.BandRatios(r)
+	if err != nil || len(maps) != len(ref.HorizonsY) {
+		t.Fatalf("P90/P50 maps: %d, %v; want one per horizon", len(maps), err)
+	}
+	total := func(c int, h int, model float64) float64 {
+		x := ref.Cells[c]
+		return math.Sqrt(x.Record*x.Record + x.Future[h]*x.Future[h] + model*model)
+	}
+	tb, _ := rundir.ReadTable(filepath.Join(dir, "aep_bands.parquet"))
+	umodel := map[[2]int64]float64{}
+	for i := 0; i < tb.Rows; i++ {
+		umodel[[2]int64{tb.Col("cell_id").Int[i], int64(tb.Col("horizon_y").Float[i])}] = tb.Col("u_model_frac").Float[i]
+	}
+	for h, m := range maps {
+		if m.HorizonY != ref.HorizonsY[h] || m.Device != "unc_wec" {
+			t.Errorf("map %d: %s %g", h, m.Device, m.HorizonY)
+		}
+		for c, got := range m.Ratio {
+			want := 1 - z90*total(c, h, umodel[[2]int64{int64(c), int64(m.HorizonY)}])
+			if want <= 0 {
+				if !math.IsNaN(got) {
+					t.Errorf("P90/P50 map %gy cell %d: %g, want blank", m.HorizonY, c, got)
+				}
+			} else if math.Abs(got-want) > stateTol {
+				t.Errorf("P90/P50 map %gy cell %d: %.9g, numpy %.9g", m.HorizonY, c, got, want)
+			}
+		}
+	}
+	idx, _ := os.ReadFile(filepath.Join(dir, "report", "index.html"))
+	if !bytes.Contains(idx, []byte("map_p90_p50_unc_wec_1y.png")) {
+		t.Errorf("index.html has no P90/P50 map")
+	}
+	sites, _ := report.Sites(r)
+	if len(sites) != 2 {
+		t.Fatalf("%d sites", len(sites))
+	}
+	for k, s := range sites {
+		vals, err := report.PlottedValues(r, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		comps, ok := vals["site_"+s.Slug+"_uncertainty_components"].([]report.BandComponents)
+		if !ok || len(comps) != len(ref.HorizonsY) {
+			t.Fatalf("site %s: components %v", s.Name, vals["site_"+s.Slug+"_uncertainty_components"])
+		}
+		c := ref.Cells[s.Cell]
+		for h, b := range comps {
+			if math.Abs(b.Record-c.Record) > stateTol || math.Abs(b.Future-c.Future[h]) > stateTol || math.Abs(b.Total-total(s.Cell, h, b.Model)) > stateTol {
+				t.Errorf("site %s horizon %g: components %+v, numpy record %g future %g", s.Name, b.HorizonY, b, c.Record, c.Future[h])
+			}
+			if (k == 0) != (b.Station == ref.Station) || (k == 1 && b.Model != 0.1) {
+				t.Errorf("site %s: model component from %q (%g)", s.Name, b.Station, b.Model)
+			}
+		}
+		page, _ := os.ReadFile(filepath.Join(dir, "report", "site_"+s.Slug+".html"))
+		want := "validation station " + ref.Station
+		if k == 1 {
+			want = "the spec&#39;s assumed 0.1"
+		}
+		if !bytes.Contains(page, []byte(want)) {
+			t.Errorf("site page %s does not say %q", s.Slug, want)
+		}
 	}
 }
