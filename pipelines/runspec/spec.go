@@ -574,6 +574,17 @@ func (s *Spec) readNamedFiles() ([]NamedFile, error) {
 		}
 		named = append(named, NamedFile{Key: key, Path: s.Depth.BathymetryFile, SHA256: sum})
 	}
+	if v := s.Uncertainty.Validation; v != "" {
+		// a finished validation: validate writes validation.json after its tables
+		for _, f := range []string{"validation.json", "validation_pairs.parquet"} {
+			p := filepath.Join(v, f)
+			sum, err := hashBounded(p, maxNamedFileBytes)
+			if err != nil {
+				return nil, &Error{Key: "uncertainty.validation", Value: strconv.Quote(v), Why: fmt.Sprintf("holds no finished validation (%s: %v); run `swellgrid validate --run RUN_DIR --obs STATIONS` first and name its output directory, or remove the key", f, err)}
+			}
+			named = append(named, NamedFile{Key: "uncertainty.validation/" + f, Path: p, SHA256: sum})
+		}
+	}
 	return named, nil
 }
 
@@ -714,6 +725,9 @@ func (r *Resolved) Fingerprinted() FingerprintedSpec {
 	}
 	if _, ok := files["depth.bathymetry_file"]; ok {
 		c.Depth.BathymetryFile = ""
+	}
+	if _, ok := files["uncertainty.validation/validation_pairs.parquet"]; ok {
+		c.Uncertainty.Validation = "" // by content
 	}
 	if s.Screening != nil { // layers by content
 		sc := *s.Screening
