@@ -193,6 +193,15 @@ func TestModelUncertaintyFromValidation(t *testing.T) {
 	if _, err := Run(context.Background(), bad, Options{Version: "test"}); err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "no finished validation") {
 		t.Errorf("a directory without validation.json: %v (exit %d), want exit 2 naming it", err, fault.ExitCode(err))
 	}
+	// a validation.json that is not validate's summary: refused
+	fake := t.TempDir()
+	pairs, _ := os.ReadFile(filepath.Join(val, "validation_pairs.parquet"))
+	os.WriteFile(filepath.Join(fake, "validation_pairs.parquet"), pairs, 0o644)
+	os.WriteFile(filepath.Join(fake, "validation.json"), []byte(`{"stations": []}`), 0o644)
+	bad.Uncertainty.Validation = fake
+	if _, err := Run(context.Background(), bad, Options{Version: "test"}); err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "is not the summary of a finished") {
+		t.Errorf("a validation.json without stations: %v (exit %d), want exit 2", err, fault.ExitCode(err))
+	}
 }
 
 // checkBandReport checks the report of run dir against the numpy
