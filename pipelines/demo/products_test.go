@@ -580,7 +580,18 @@ func TestReportInChromium(t *testing.T) {
 	// (aep_bands.parquet; a map where some sea cell has a positive P90)
 	ratio := map[string][]float64{}
 	bp := filepath.Join(run, "aep_bands.parquet")
-	bid, bh, b50, b90 := runcheck.ReadColumn(t, bp, "cell_id"), runcheck.ReadColumn(t, bp, "horizon_y"), runcheck.ReadColumn(t, bp, "aep_p50_mwh"), runcheck.ReadColumn(t, bp, "aep_p90_mwh")
+	bc, err := parquetread.Columns(bp, "cell_id", "horizon_y", "aep_p50_mwh", "aep_p90_mwh")
+	if err != nil {
+		t.Fatal(err)
+	}
+	num := func(v []any) []float64 {
+		out := make([]float64, len(v))
+		for i, x := range v {
+			out[i] = runcheck.Num(x)
+		}
+		return out
+	}
+	bid, bh, b50, b90 := num(bc["cell_id"]), num(bc["horizon_y"]), num(bc["aep_p50_mwh"]), num(bc["aep_p90_mwh"])
 	for _, h := range []float64{1, 10} { // uncertainty.horizons_y by default
 		name := fmt.Sprintf("p90_p50_demo_wec_%gy", h)
 		v := make([]float64, len(land))
