@@ -158,6 +158,12 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 	}
 	add(smFiles...)
 	v.Maps = append(v.Maps, sm...)
+	bm, bmFiles, err := bandRatioMaps(r, tmp) // bands.go
+	if err != nil {
+		return nil, nil, err
+	}
+	add(bmFiles...)
+	v.Maps = append(v.Maps, bm...)
 	sites, sw := Sites(r)
 	warns = append(warns, sw...)
 	for _, s := range sites {

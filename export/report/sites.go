@@ -143,6 +143,11 @@ func siteFigures(r *rundir.Run, s Site) ([]*figure, []string, error) {
 	} else if f != nil {
 		figs = append(figs, f)
 	}
+	if f, err := componentsFigure(r, s, base+"uncertainty_components"); err != nil { // bands.go
+		return nil, nil, err
+	} else if f != nil {
+		figs = append(figs, f)
+	}
 	return figs, notes, nil
 }
 

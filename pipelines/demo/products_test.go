@@ -576,6 +576,39 @@ func TestReportInChromium(t *testing.T) {
 	// then one map per screening scenario (the demo has one, with passing
 	// and failing sea cells: a colour bar from 0 to 1)
 	want = append(want, "screening_demo_core")
+	// then the P90/P50 ratio of the device's annual energy per horizon
+	// (aep_bands.parquet; a map where some sea cell has a positive P90)
+	ratio := map[string][]float64{}
+	bp := filepath.Join(run, "aep_bands.parquet")
+	bc, err := parquetread.Columns(bp, "cell_id", "horizon_y", "aep_p50_mwh", "aep_p90_mwh")
+	if err != nil {
+		t.Fatal(err)
+	}
+	num := func(v []any) []float64 {
+		out := make([]float64, len(v))
+		for i, x := range v {
+			out[i] = runcheck.Num(x)
+		}
+		return out
+	}
+	bid, bh, b50, b90 := num(bc["cell_id"]), num(bc["horizon_y"]), num(bc["aep_p50_mwh"]), num(bc["aep_p90_mwh"])
+	for _, h := range []float64{1, 10} { // uncertainty.horizons_y by default
+		name := fmt.Sprintf("p90_p50_demo_wec_%gy", h)
+		v := make([]float64, len(land))
+		for k := range v {
+			v[k] = math.NaN()
+		}
+		some := false
+		for i := range bid {
+			if bh[i] == h && b50[i] > 0 && !math.IsNaN(b90[i]) && !land[int(bid[i])] {
+				v[int(bid[i])], some = b90[i]/b50[i], true
+			}
+		}
+		if some {
+			want = append(want, name)
+			ratio[name] = v
+		}
+	}
 	var got []string
 	for _, m := range maps {
 		got = append(got, m.Column)
@@ -587,6 +620,11 @@ func TestReportInChromium(t *testing.T) {
 		lo, hi := math.Inf(1), math.Inf(-1)
 		for k, v := range cells[m.Column] {
 			if x := runcheck.Num(v); !land[k] && !math.IsNaN(x) {
+				lo, hi = math.Min(lo, x), math.Max(hi, x)
+			}
+		}
+		for k, x := range ratio[m.Column] {
+			if !land[k] && !math.IsNaN(x) {
 				lo, hi = math.Min(lo, x), math.Max(hi, x)
 			}
 		}

@@ -159,7 +159,8 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 		m.Assumptions = append(m.Assumptions, "wave power from the spectra with finite-depth group velocity of linear theory")
 	}
 	if len(e.ccfg.Devices) > 0 {
-		m.Assumptions = append(m.Assumptions, fmt.Sprintf("AEP bands (aep_bands.parquet): model uncertainty %g of the mean annual energy (uncertainty.model_frac; assumed, not from a validation: replace it with a validated figure), combined with the record-length and future-period uncertainties from the inter-annual spread as independent errors (root-sum-square), normal quantiles for P90 and P99", e.spec.Uncertainty.ModelFrac))
+		u := e.spec.Uncertainty
+		m.Assumptions = append(m.Assumptions, e.model.assumption(u.ModelFrac, u.BlockPairs, u.BootstrapReps, u.Seed))
 	}
 	m.Assumptions = append(m.Assumptions, "each time step stands for the time until the next step (the last step, and a step before a gap, for the step before it); every statistic is weighted by that duration; a difference between steps longer than 1.5 times the upper quartile of the 24 differences around it is a gap, time that no step covers")
 	if n := e.seaStateNote(); n != "" {

@@ -48,7 +48,7 @@ func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResu
 	r.annual = c.clim.Annual(e.spec.Extremes.YearStartMonth)
 	r.iaYears, r.iaStd = climate.InterannualPower(r.annual)
 	if r.sum.Steps > 0 {
-		r.bands = climate.AEPBands(r.annual, r.sum.Devices, e.spec.Uncertainty.HorizonsY, e.spec.Uncertainty.ModelFrac)
+		r.bands = climate.AEPBands(r.annual, r.sum.Devices, e.spec.Uncertainty.HorizonsY, e.model.forCell(e.cat.Grid.Lon[id], e.cat.Grid.Lat[id]))
 	}
 	if r.sum.Steps > 0 {
 		cfg := acfg

@@ -47,6 +47,8 @@ type engine struct {
 	spans     [][2]int
 	// beyond is the first spectrum read whose Hm0 is beyond any sea.
 	beyond notSea
+	// model is the AEP bands' model component (loadModelErrors).
+	model *modelErrors
 }
 
 // streamTimes are the busy and waiting times of the stream stage's parts.
@@ -94,6 +96,9 @@ func newEngine(cat *ingest.Catalog, spec *runspec.Resolved, ccfg *climate.Config
 			}
 			e.layouts, e.sectors = append(e.layouts, l), append(e.sectors, sp)
 		}
+	}
+	if err := e.loadModelErrors(); err != nil {
+		return nil, err
 	}
 	return e, nil
 }

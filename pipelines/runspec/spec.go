@@ -209,7 +209,33 @@ type UncertaintySpec struct {
 	// of the hindcast's mean device energy, an assumption until a validation
 	// gives it (recorded in the manifest).
 	ModelFrac float64 `toml:"model_frac" json:"model_frac"`
+	// Validation names a finished `swellgrid validate` output directory
+	// (validation.json and validation_pairs.parquet); "" for none. A cell
+	// within ReachKm of a station takes its model component from that
+	// station's pairs; the others keep ModelFrac.
+	Validation string `toml:"validation" json:"validation"`
+	// ReachKm is the great-circle distance from a cell centre to its
+	// nearest validation station within which the station's figures apply.
+	ReachKm float64 `toml:"reach_km" json:"reach_km"`
+	// BlockPairs is the block length (consecutive matched pairs) of the
+	// circular block bootstrap; BootstrapReps its resamples; Seed its
+	// generator's seed.
+	BlockPairs    int    `toml:"block_pairs" json:"block_pairs"`
+	BootstrapReps int    `toml:"bootstrap_reps" json:"bootstrap_reps"`
+	Seed          uint64 `toml:"seed" json:"seed"`
 }
+
+// Defaults of the validation-based model component: a station's figures
+// apply within 50 km; blocks of 48 pairs (two days of hourly pairs, six of
+// 3-hourly: longer than the usual decorrelation of a hindcast's errors,
+// an assumption of this project); 1000 resamples (common practice for a
+// standard error).
+const (
+	defaultReachKm       = 50
+	defaultBlockPairs    = 48
+	defaultBootstrapReps = 1000
+	defaultBootstrapSeed = 30
+)
 
 // defaultModelFrac is uncertainty.model_frac by default: an assumed 10 %
 // relative standard uncertainty of a hindcast's mean device energy, a round
@@ -229,7 +255,7 @@ func DefaultSpec() *Spec {
 			ThresholdRule: thresholdByQuantile, ThresholdQuantile: 0.99, PeaksPerYear: 5, MinYears: 10, Seed: 1,
 			MinPeaks: 20, ShapeRange: []float64{-0.5, 0.5}, MaxExtrapolation: 4, BreakingRatio: 0.6},
 		Design:      DesignSpec{Enabled: true, ReturnPeriodsY: []float64{1, 10, 50, 100}, ContourPoints: 36},
-		Uncertainty: UncertaintySpec{HorizonsY: []float64{1, 10}, ModelFrac: defaultModelFrac},
+		Uncertainty: UncertaintySpec{HorizonsY: []float64{1, 10}, ModelFrac: defaultModelFrac, ReachKm: defaultReachKm, BlockPairs: defaultBlockPairs, BootstrapReps: defaultBootstrapReps, Seed: defaultBootstrapSeed},
 		Contours:    ContourSpec{Columns: []string{contract.ColPowerMean, contract.ColHm0Mean, contract.Hm0ReturnLevelColumn(100)}, Levels: map[string][]float64{}},
 		Output:      OutputSpec{Dir: "swellgrid-out", Report: true, NetCDF: true, GeoPackage: true},
 		Run:         RunSpec{MemoryLimit: "2GiB", BlockSteps: 64, CheckpointEveryS: 60},
@@ -273,6 +299,7 @@ func ParseSpec(data []byte, path string) (*Spec, error) {
 	if s.Depth.BathymetryFile != "" {
 		s.Depth.BathymetryFile = s.resolve(s.Depth.BathymetryFile)
 	}
+	s.Uncertainty.Validation = s.resolve(s.Uncertainty.Validation)
 	if s.Screening != nil {
 		for i := range s.Screening.Layers {
 			s.Screening.Layers[i].File = s.resolve(s.Screening.Layers[i].File)
@@ -429,6 +456,15 @@ func (s *Spec) Validate() error {
 	if m := s.Uncertainty.ModelFrac; !(m >= 0 && m < 1) {
 		return bad("uncertainty.model_frac", "must lie in [0, 1) (a relative standard uncertainty: 0.1 is 10 %)", m)
 	}
+	if r := s.Uncertainty.ReachKm; !(r > 0 && r <= 20000) {
+		return bad("uncertainty.reach_km", "must lie in (0, 20000] km", r)
+	}
+	if b := s.Uncertainty.BlockPairs; b < 1 || b > 100000 {
+		return bad("uncertainty.block_pairs", "must lie in 1..100000 pairs", b)
+	}
+	if n := s.Uncertainty.BootstrapReps; n < 100 || n > 100000 {
+		return bad("uncertainty.bootstrap_reps", "must lie in 100..100000", n)
+	}
 	names := map[string]bool{}
 	for i, d := range s.Devices {
 		key := fmt.Sprintf("device[%d]", i)
@@ -537,6 +573,17 @@ func (s *Spec) readNamedFiles() ([]NamedFile, error) {
 			return nil, fileErr(key, s.Depth.BathymetryFile, err)
 		}
 		named = append(named, NamedFile{Key: key, Path: s.Depth.BathymetryFile, SHA256: sum})
+	}
+	if v := s.Uncertainty.Validation; v != "" {
+		// a finished validation: validate writes validation.json after its tables
+		for _, f := range []string{"validation.json", "validation_pairs.parquet"} {
+			p := filepath.Join(v, f)
+			sum, err := hashBounded(p, maxNamedFileBytes)
+			if err != nil {
+				return nil, &Error{Key: "uncertainty.validation", Value: strconv.Quote(v), Why: fmt.Sprintf("holds no finished validation (%s: %v); run `swellgrid validate --run RUN_DIR --obs STATIONS` first and name its output directory, or remove the key", f, err)}
+			}
+			named = append(named, NamedFile{Key: "uncertainty.validation/" + f, Path: p, SHA256: sum})
+		}
 	}
 	return named, nil
 }
@@ -678,6 +725,9 @@ func (r *Resolved) Fingerprinted() FingerprintedSpec {
 	}
 	if _, ok := files["depth.bathymetry_file"]; ok {
 		c.Depth.BathymetryFile = ""
+	}
+	if _, ok := files["uncertainty.validation/validation_pairs.parquet"]; ok {
+		c.Uncertainty.Validation = "" // by content
 	}
 	if s.Screening != nil { // layers by content
 		sc := *s.Screening

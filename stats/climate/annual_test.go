@@ -80,7 +80,7 @@ func TestAEPBands(t *testing.T) {
 		{Year: 2002, Hours: 8760, DeviceEnergyMWh: []float64{110}},
 		{Year: 2003, Hours: 8760, DeviceEnergyMWh: []float64{500}, Excluded: true},
 	}
-	b := AEPBands(rows, []DeviceSummary{{Name: "d", AEPMWh: 100.5}}, []float64{1, 10}, 0.1)
+	b := AEPBands(rows, []DeviceSummary{{Name: "d", AEPMWh: 100.5}}, []float64{1, 10}, []ModelError{AssumedModelError(0.1)})
 	if len(b) != 2 {
 		t.Fatalf("%d bands, want 2", len(b))
 	}
@@ -106,7 +106,7 @@ func TestAEPBands(t *testing.T) {
 		t.Errorf("P50 %g, want the AEP 100.5", one.P50MWh)
 	}
 	// a band wider than the normal model allows is not published
-	if w := AEPBands(rows, []DeviceSummary{{Name: "d", AEPMWh: 100}}, []float64{1}, 0.5); !math.IsNaN(w[0].P99MWh) || !(w[0].P90MWh > 0) {
+	if w := AEPBands(rows, []DeviceSummary{{Name: "d", AEPMWh: 100}}, []float64{1}, []ModelError{AssumedModelError(0.5)}); !math.IsNaN(w[0].P99MWh) || !(w[0].P90MWh > 0) {
 		t.Errorf("model 0.5: P90 %g, P99 %g; want P99 null (z u > 1)", w[0].P90MWh, w[0].P99MWh)
 	}
 	if n, sd := InterannualPower([]YearRow{{PowerMeanKWm: 20}, {PowerMeanKWm: 30}, {PowerMeanKWm: 99, Excluded: true}}); n != 2 || math.Abs(sd-math.Sqrt(50)) > 1e-12 {

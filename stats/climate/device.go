@@ -270,6 +270,23 @@ func (d *Device) period(te float64, teOK bool, tp float64) (float64, bool) {
 	return tp, tp >= 0 && tp < maxT
 }
 
+// StepPowerKW returns the device's power (kW) in one sea state as a run's
+// state counts it (CellState.Add): the matrix's period from te or tp (Te,
+// Tp, or Te / TeOverTp), the matrix's lookup, zero below cut-in and beyond
+// the matrix's edges; NaN when hm0 or that period is missing. The device
+// must have been checked (Config.Validate).
+func (d *Device) StepPowerKW(hm0, te, tp float64) float64 {
+	if hm0 != hm0 {
+		return math.NaN()
+	}
+	x, ok := d.period(te, te == te, tp)
+	if !ok {
+		return math.NaN()
+	}
+	p, _ := d.power(hm0, x)
+	return p
+}
+
 // power returns the device power (kW) in sea state (hm0, te) and its class;
 // te is the matrix's period (Te or Tp, see period).
 // Below the lowest Hm0 edge the device is below cut-in; beyond the other

@@ -228,6 +228,20 @@ func combinedUncertainty(u ...float64) float64 {
 	return math.Sqrt(s)
 }
 
+// ModelUncertainty returns the model component of an energy band from a
+// validation: the relative bias b of the hindcast's mean device power at a
+// station and its standard error se,
+//
+//	u_model = sqrt(b^2 + se^2)
+//
+// The bias is not corrected in the raw figures, so its size counts as an
+// error of the P50 together with the uncertainty of its estimate; adding a
+// known but uncorrected bias to the uncertainty in quadrature is one of the
+// treatments discussed for uncorrected systematic errors (JCGM 100:2008
+// "GUM" F.2.4.5; quoted from memory), common practice in screening
+// assessments. NaN when either is NaN.
+func ModelUncertainty(bias, se float64) float64 { return combinedUncertainty(bias, se) }
+
 // exceedanceEnergy returns the energy exceeded with probability prob
 // (0.9 for P90) for a normal error of relative standard deviation u about
 // the central estimate p50:

@@ -24,9 +24,12 @@ type AEPBand struct {
 	// / sqrt(YearsUsed): uncertainty of the long-term mean from the record
 	// length. FutureFrac = InterannualFrac / sqrt(HorizonY): variability of
 	// the mean of HorizonY future years. ModelFrac: the model uncertainty
-	// given in the spec. TotalFrac: their root-sum-square (RecordFrac,
+	// (Model.Frac). TotalFrac: their root-sum-square (RecordFrac,
 	// FutureFrac, ModelFrac).
 	InterannualFrac, RecordFrac, FutureFrac, ModelFrac, TotalFrac float64
+	// Model is where ModelFrac comes from: a validation station's figures
+	// for this device, or the spec's assumption.
+	Model ModelError
 	// P90MWh, P99MWh: P50 (1 - z u) with z the normal quantile (NaN when
 	// z u >= 1).
 	P90MWh, P99MWh float64
@@ -46,11 +49,38 @@ func InterannualPower(rows []YearRow) (years int, stdKWm float64) {
 	return len(x), sd
 }
 
+// ModelError is the model component of one device's band at one cell: the
+// figures of the validation station assigned to the cell, or the spec's
+// assumed uncertainty when no station applies.
+type ModelError struct {
+	// Station names the station whose pairs gave the figures ("" when none
+	// applies: Frac is the spec's assumption and the rest NaN);
+	// StationKm is the great-circle distance from the cell to it.
+	Station   string
+	StationKm float64
+	// PowerBiasFrac and PowerBiasSEFrac: the relative bias of the
+	// hindcast's mean wave power at the station (validate.RelativeBias)
+	// and its block-bootstrap standard error; BiasFrac and BiasSEFrac the
+	// same of the device's mean power through its matrix (its AEP).
+	PowerBiasFrac, PowerBiasSEFrac, BiasFrac, BiasSEFrac float64
+	// Frac is the model component of the band (ModelUncertainty of the
+	// device's bias and standard error, or the spec's assumption).
+	Frac float64
+}
+
+// AssumedModelError is the model component when no station applies: the
+// spec's relative standard uncertainty frac, no station figures.
+func AssumedModelError(frac float64) ModelError {
+	nan := math.NaN()
+	return ModelError{StationKm: nan, PowerBiasFrac: nan, PowerBiasSEFrac: nan, BiasFrac: nan, BiasSEFrac: nan, Frac: frac}
+}
+
 // AEPBands returns, for every device of devs (in order) and every horizon
 // (years), the band of its annual energy, from the analysis years of rows
-// (Annual) and the model uncertainty modelFrac. A year enters when it is
-// complete (not Excluded) and the device has a valid step in it.
-func AEPBands(rows []YearRow, devs []DeviceSummary, horizons []float64, modelFrac float64) []AEPBand {
+// (Annual) and the model component of each device, model[k] (Frac used). A
+// year enters when it is complete (not Excluded) and the device has a
+// valid step in it.
+func AEPBands(rows []YearRow, devs []DeviceSummary, horizons []float64, model []ModelError) []AEPBand {
 	var out []AEPBand
 	for k, d := range devs {
 		var x []float64
@@ -68,7 +98,7 @@ func AEPBands(rows []YearRow, devs []DeviceSummary, horizons []float64, modelFra
 		rec := meanUncertainty(iav, float64(len(x)))
 		for _, h := range horizons {
 			b := AEPBand{Device: d.Name, HorizonY: h, YearsUsed: len(x), P50MWh: d.AEPMWh,
-				InterannualFrac: iav, RecordFrac: rec, FutureFrac: meanUncertainty(iav, h), ModelFrac: modelFrac}
+				InterannualFrac: iav, RecordFrac: rec, FutureFrac: meanUncertainty(iav, h), ModelFrac: model[k].Frac, Model: model[k]}
 			b.TotalFrac = combinedUncertainty(b.RecordFrac, b.FutureFrac, b.ModelFrac)
 			b.P90MWh = exceedanceEnergy(b.P50MWh, b.TotalFrac, 0.90)
 			b.P99MWh = exceedanceEnergy(b.P50MWh, b.TotalFrac, 0.99)
