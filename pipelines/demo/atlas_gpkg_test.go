@@ -373,30 +373,10 @@ func TestAtlasGpkgMeshFootprints(t *testing.T) {
 // half a spacing out), and draws it in more than a few colours; the PNG is
 // kept (testdata/gridmapping/qgis_raster.py).
 func TestAtlasNCInQGIS(t *testing.T) {
-	py := testtool.NeedPython(t, "qgis.core")
 	dir, _ := demoRun(t)
 	run := filepath.Join(dir, "atlas-grid")
 	cells := cellsOf(t, run)
-	shot := filepath.Join(os.TempDir(), "swellgrid-test-output", "atlas_nc_demo_qgis.png")
-	os.MkdirAll(filepath.Dir(shot), 0o755)
-	cmd := exec.Command(py, filepath.Join("..", "..", "testdata", "gridmapping", "qgis_raster.py"), filepath.Join(run, "atlas.nc"), "power_mean_kw_m", shot)
-	cmd.Env = append(os.Environ(), "QT_QPA_PLATFORM=offscreen", "XDG_RUNTIME_DIR="+t.TempDir())
-	out, err := cmd.Output()
-	if err != nil {
-		t.Fatalf("qgis_raster.py: %v", err)
-	}
-	var q struct {
-		Valid    bool      `json:"valid"`
-		CRSValid bool      `json:"crs_valid"`
-		WKT      string    `json:"crs_wkt"`
-		Extent   []float64 `json:"extent"`
-		Width    int       `json:"width"`
-		Height   int       `json:"height"`
-		Colours  int       `json:"colours"`
-	}
-	if err := json.Unmarshal(out, &q); err != nil {
-		t.Fatalf("qgis_raster.py: %v\n%s", err, out)
-	}
+	q := runcheck.OpenInQGIS(t, filepath.Join(run, "atlas.nc"), "power_mean_kw_m", "atlas_nc_demo_qgis")
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, v := range cells["lon"] {
 		lo, hi = math.Min(lo, runcheck.Num(v)), math.Max(hi, runcheck.Num(v))
@@ -408,5 +388,5 @@ func TestAtlasNCInQGIS(t *testing.T) {
 	if math.Abs(q.Extent[0]-(lo-dx/2)) > 1e-9 || math.Abs(q.Extent[2]-(hi+dx/2)) > 1e-9 || q.Colours < 4 {
 		t.Errorf("QGIS extent %v, want lon %v..%v; %d colours drawn", q.Extent, lo-dx/2, hi+dx/2, q.Colours)
 	}
-	t.Logf("QGIS: atlas.nc %d x %d, extent %v, %d colours (%s)", q.Width, q.Height, q.Extent, q.Colours, shot)
+	t.Logf("QGIS: atlas.nc %d x %d, extent %v, %d colours (%s)", q.Width, q.Height, q.Extent, q.Colours, q.PNG)
 }

@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"swellgrid/internal/parquetread"
+	"swellgrid/internal/runcheck"
 	"swellgrid/internal/testtool"
 )
 
@@ -138,33 +139,13 @@ func TestGridMappingNativeGrids(t *testing.T) {
 		}
 		// QGIS opens the raster in the model's CRS, on the native axes, and
 		// draws it (a picture of more than one colour, kept)
-		py := testtool.NeedPython(t, "qgis.core")
-		shot := filepath.Join(os.TempDir(), "swellgrid-test-output", "atlas_nc_"+c.run+"_qgis.png")
-		os.MkdirAll(filepath.Dir(shot), 0o755)
-		cmd := exec.Command(py, "../../testdata/gridmapping/qgis_raster.py", filepath.Join(runs[c.run], "atlas.nc"), "power_mean_kw_m", shot)
-		cmd.Env = append(os.Environ(), "QT_QPA_PLATFORM=offscreen", "XDG_RUNTIME_DIR="+t.TempDir())
-		qout, err := cmd.Output()
-		if err != nil {
-			t.Fatalf("qgis_raster.py %s: %v", c.run, err)
-		}
-		var q struct {
-			Valid    bool      `json:"valid"`
-			CRSValid bool      `json:"crs_valid"`
-			WKT      string    `json:"crs_wkt"`
-			Extent   []float64 `json:"extent"`
-			Width    int       `json:"width"`
-			Height   int       `json:"height"`
-			Colours  int       `json:"colours"`
-		}
-		if err := json.Unmarshal(qout, &q); err != nil {
-			t.Fatalf("qgis_raster.py: %v\n%s", err, qout)
-		}
+		q := runcheck.OpenInQGIS(t, filepath.Join(runs[c.run], "atlas.nc"), "power_mean_kw_m", "atlas_nc_"+c.run+"_qgis")
 		if !q.Valid || !q.CRSValid || !regexp.MustCompile(c.crsWord).MatchString(q.WKT) || q.Width != 7 || q.Height != 5 {
 			t.Errorf("%s: QGIS layer valid %v, CRS valid %v (%.80s...), %d x %d", c.run, q.Valid, q.CRSValid, q.WKT, q.Width, q.Height)
 		} else if math.Abs(q.Extent[0]-(r.X[0]*scale-dx/2)) > 1e-6*math.Abs(dx) || q.Colours < 3 {
 			t.Errorf("%s: QGIS extent %v (native axis from %v by %v), %d colours drawn", c.run, q.Extent, r.X[0]*scale, dx, q.Colours)
 		}
-		t.Logf("%s: %d values equal to the lon/lat twin; gdalinfo: origin x %v, pixel %v, CRS %s; QGIS extent %v, %d colours (%s)", c.run, compared, ox, px, c.crsWord, q.Extent, q.Colours, shot)
+		t.Logf("%s: %d values equal to the lon/lat twin; gdalinfo: origin x %v, pixel %v, CRS %s; QGIS extent %v, %d colours (%s)", c.run, compared, ox, px, c.crsWord, q.Extent, q.Colours, q.PNG)
 	}
 }
 
