@@ -103,3 +103,46 @@ func TestMeshOutlines(t *testing.T) {
 		t.Errorf("non-manifold node 1 got a dual cell %v", bow[1])
 	}
 }
+
+// DissolveRings on the dual cells of TestMeshOutlines' mesh: all of them give
+// one shell of the mesh's area; all but an interior node give that shell
+// with the node's dual cell as a hole (clockwise); two faces meeting at one
+// corner give two shells. Areas by the shoelace formula, validity by the
+// right-hand rule (RFC 7946 3.1.6).
+func TestDissolveRings(t *testing.T) {
+	lon := []float64{0, 1, 2, 3, 0, 1, 2, 3, 0, 1, 2, 3}
+	lat := []float64{0, 0, 0, 0, 1, 1, 1, 1, 2, 2, 2, 2}
+	id := func(i, j int) int { return j*4 + i }
+	var off, nodes []int
+	for j := 0; j < 2; j++ {
+		for i := 0; i < 3; i++ {
+			off = append(off, len(nodes))
+			nodes = append(nodes, id(i, j), id(i+1, j), id(i+1, j+1), id(i, j+1))
+		}
+	}
+	off = append(off, len(nodes))
+	duals := MeshOutlines(OnNodes, lon, lat, off, nodes)
+	all := make([]bool, len(duals))
+	for i := range all {
+		all[i] = true
+	}
+	mp := DissolveRings(duals, all)
+	if len(mp) != 1 || len(mp[0]) != 1 || math.Abs(shoelace(mp[0][0])-6) > 1e-12 {
+		t.Fatalf("all nodes: %d polygons, area %v; want one of 6", len(mp), mp)
+	}
+	hole := append([]bool(nil), all...)
+	hole[id(1, 1)] = false
+	mp = DissolveRings(duals, hole)
+	if len(mp) != 1 || len(mp[0]) != 2 {
+		t.Fatalf("all but node (1,1): %d polygons, %d rings; want a shell with a hole", len(mp), len(mp[0]))
+	}
+	if a, h := shoelace(mp[0][0]), shoelace(mp[0][1]); math.Abs(a-6) > 1e-12 || math.Abs(h+1) > 1e-12 {
+		t.Errorf("shell %v (want 6), hole %v (want -1, clockwise)", a, h)
+	}
+	faces := MeshOutlines(OnFaces, lon, lat, off, nodes)
+	corner := []bool{true, false, false, false, true, false} // faces (0,0) and (1,1) meet at node (1,1)
+	mp = DissolveRings(faces, corner)
+	if len(mp) != 2 || math.Abs(shoelace(mp[0][0])-1) > 1e-12 || math.Abs(shoelace(mp[1][0])-1) > 1e-12 {
+		t.Errorf("two faces at a corner: %v; want two unit shells", mp)
+	}
+}

@@ -17,6 +17,7 @@ import (
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/geojson"
 
+	"swellgrid/grid"
 	"swellgrid/internal/parquetread"
 	"swellgrid/internal/runcheck"
 	"swellgrid/internal/testtool"
@@ -357,6 +358,23 @@ func TestMeshScreenedByArea(t *testing.T) {
 	}
 	if sc.PowerMeanKWm == nil || math.Abs(*sc.PowerMeanKWm-wp/tot) > 1e-9*wp/tot {
 		t.Errorf("mean power %v, area-weighted %.9g", sc.PowerMeanKWm, wp/tot)
+	}
+	// the passing area's outline: the union of the dual cells, the mesh's
+	// rectangle, its area (grid.MultiPolygonAreaM2) the scenario's
+	b, err = os.ReadFile(filepath.Join(dir, "contours", "screening_all.geojson"))
+	if err != nil {
+		t.Fatalf("no outline of the mesh's passing area: %v", err)
+	}
+	fc, err := geojson.UnmarshalFeatureCollection(b)
+	if err != nil || len(fc.Features) != 1 {
+		t.Fatalf("outline: %v", err)
+	}
+	mp, ok := fc.Features[0].Geometry.(orb.MultiPolygon)
+	if !ok || len(mp) != 1 || len(mp[0]) != 1 {
+		t.Fatalf("outline is not one polygon without holes: %v", fc.Features[0].Geometry)
+	}
+	if a := grid.MultiPolygonAreaM2(mp) / 1e6; math.Abs(a-want)/want > 1e-6 {
+		t.Errorf("outline area %.6f km2, pyproj %.6f", a, want)
 	}
 	t.Logf("mesh screened: %d nodes, %.3f km2 (pyproj %.3f), mean power %.4f kW/m", sc.Cells, *sc.AreaKm2, want, *sc.PowerMeanKWm)
 }

@@ -66,7 +66,7 @@ const ParamLayer tables.Param = "layer"
 const screeningMethod = "criteria on cells.parquet columns (a missing value fails); a cell is in a polygon layer when its centre is " +
 	"inside or on the boundary of a polygon (planar in lon/lat, RFC 7946 edges); distances are geodesics on WGS 84 (Vincenty 1975) " +
 	"from the cell centre to the nearest point of the layer's features; cell areas on the WGS 84 ellipsoid from the grid's cell edges " +
-	"(midpoints between cell centres), on a mesh from its faces or its nodes' median dual cells; passing areas of a structured grid dissolved exactly along the cell edges"
+	"(midpoints between cell centres), on a mesh from its faces or its nodes' median dual cells; passing areas dissolved exactly along the cell edges"
 
 // screenResult is the screening of a run.
 type screenResult struct {
@@ -222,8 +222,13 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 	corners, structured := grid.CellCorners(g)
 	for k, c := range sc.Scenarios {
 		ss := summarise(c, passes[k], areaKm2, areas != nil, power, r.Cells.Col(contract.AEPColumn(c.Device)))
-		if structured {
+		switch {
+		case structured:
 			res.polys[c.Name] = grid.Dissolve(corners, passes[k], g.Kind == grid.Regular)
+		case r.Mesh != nil:
+			res.polys[c.Name] = grid.DissolveRings(meshRings(r), passes[k])
+		}
+		if _, ok := res.polys[c.Name]; ok {
 			ss.Polygons = filepath.ToSlash(filepath.Join(contract.ContourDir, contract.ScreeningOutlineFile(c.Name)))
 		}
 		sum.Scenarios = append(sum.Scenarios, ss)
@@ -487,18 +492,29 @@ func Apply(r *rundir.Run, s *runspec.Resolved) ([]string, *contract.ScreeningSum
 // faces or its nodes' median dual cells (grid.MeshOutlines, RingAreaM2; NaN
 // for a node without one); nil for a point set.
 func cellAreasM2(r *rundir.Run, g *grid.Grid) []float64 {
-	m := r.Mesh
-	if m == nil {
+	if r.Mesh == nil {
 		return grid.CellAreasM2(g)
 	}
-	rings := grid.MeshOutlines(m.Location, m.NodeLon, m.NodeLat, m.FaceOff, m.FaceNode)
 	out := make([]float64, g.NCells())
-	for i := range out {
-		out[i] = math.NaN()
+	for c, ring := range meshRings(r) {
+		out[c] = math.NaN()
+		if ring != nil {
+			out[c] = math.Abs(grid.RingAreaM2(ring))
+		}
 	}
+	return out
+}
+
+// meshRings is the outline of every cell of a mesh run in cell-id order:
+// its face, or its node's median dual cell (grid.MeshOutlines; nil for a
+// node without one).
+func meshRings(r *rundir.Run) []orb.Ring {
+	m := r.Mesh
+	rings := grid.MeshOutlines(m.Location, m.NodeLon, m.NodeLat, m.FaceOff, m.FaceNode)
+	out := make([]orb.Ring, r.Cells.Rows)
 	for e, c := range m.Cell {
-		if e < len(rings) && rings[e] != nil && c >= 0 && c < len(out) {
-			out[c] = math.Abs(grid.RingAreaM2(rings[e]))
+		if e < len(rings) && c >= 0 && c < len(out) {
+			out[c] = rings[e]
 		}
 	}
 	return out
