@@ -118,11 +118,11 @@ func TestPathTraversalRefused(t *testing.T) {
 // The embedded map library and coastline are there, with their licences.
 func TestVendoredAssets(t *testing.T) {
 	for name, want := range map[string]string{
-		"assets/vendor/ol/ol.js":                    "var ol=function()",
-		"assets/vendor/ol/ol.css":                   ".ol-",
-		"assets/vendor/ol/LICENSE.md":               "OpenLayers Contributors",
-		"assets/vendor/world-atlas/land-50m.json":   `"type":"Topology"`,
-		"assets/vendor/world-atlas/LICENSE":         "Michael Bostock",
+		"assets/vendor/ol/ol.js":                     "var ol=function()",
+		"assets/vendor/ol/ol.css":                    ".ol-",
+		"assets/vendor/ol/LICENSE.md":                "OpenLayers Contributors",
+		"assets/vendor/world-atlas/land-50m.json":    `"type":"Topology"`,
+		"assets/vendor/world-atlas/LICENSE":          "Michael Bostock",
 		"assets/vendor/world-atlas/NATURAL_EARTH.md": "public domain",
 	} {
 		b, err := assets.ReadFile(name)
