@@ -3,6 +3,7 @@ package demo
 import (
 	"bytes"
 	"context"
+	"encoding/json"
 	"fmt"
 	"image"
 	"image/png"
@@ -158,6 +159,11 @@ func TestServeInChromium(t *testing.T) {
 	}
 	pixel()
 	img1, shot1 := shoot("serve_map_power.png")
+	var win []byte
+	shotWin := filepath.Join(shotDir, "serve_atlas.png")
+	if err := chromedp.Run(ctx, chromedp.CaptureScreenshot(&win)); err == nil {
+		os.WriteFile(shotWin, win, 0o644)
+	}
 	// not blank: many colours, most pixels not the background
 	b := img1.Bounds()
 	colours, bg := map[[3]uint32]bool{}, 0
@@ -203,6 +209,24 @@ func TestServeInChromium(t *testing.T) {
 		t.Errorf("the legend of %s gives no unit: %q", p90name, legend)
 	}
 
+	// a contour layer switched on draws the features of its file
+	iso := "run/contours/" + contract.ColPowerMean + ".geojson"
+	var fc struct{ Features []json.RawMessage }
+	if b, err := os.ReadFile(filepath.Join(run, filepath.FromSlash(strings.TrimPrefix(iso, "run/")))); err != nil {
+		t.Fatal(err)
+	} else if err := json.Unmarshal(b, &fc); err != nil || len(fc.Features) == 0 {
+		t.Fatalf("%s: %v, %d features", iso, err, len(fc.Features))
+	}
+	var drawn int
+	if err := chromedp.Run(ctx, chromedp.Click(fmt.Sprintf(`input[data-file=%q]`, iso), chromedp.ByQuery),
+		chromedp.Poll(fmt.Sprintf(`(() => { const l = swellgrid.contours.find(l => l.get('file') === %q); return l.getVisible() && l.getSource().getFeatures().length > 0; })()`, iso), nil, chromedp.WithPollingTimeout(20*time.Second)),
+		chromedp.Evaluate(fmt.Sprintf(`swellgrid.contours.find(l => l.get('file') === %q).getSource().getFeatures().length`, iso), &drawn)); err != nil {
+		t.Fatalf("contour layer %s: %v", iso, err)
+	}
+	if drawn != len(fc.Features) {
+		t.Errorf("contour layer %s: %d features on the map, the file has %d", iso, drawn, len(fc.Features))
+	}
+
 	// hover, then click the known cell
 	var rect struct{ Left, Top float64 }
 	if err := chromedp.Run(ctx, chromedp.Evaluate(`(() => { const r = document.getElementById('map').getBoundingClientRect(); return {left: r.left, top: r.top}; })()`, &rect)); err != nil {
@@ -240,7 +264,20 @@ func TestServeInChromium(t *testing.T) {
 	}
 	compareNumbers(t, cells, known, rows)
 
-	// the cell page alone, in a tab of its own (the map's stays open)
+	// what the map page said and asked for, before another tab opens (a
+	// hidden tab's map has no size, and OpenLayers warns of it)
+	mu.Lock()
+	for _, e := range consoleErrs {
+		t.Errorf("chromium: %s", e)
+	}
+	for _, u := range requests {
+		if !strings.HasPrefix(u, ts.URL+"/") && !strings.HasPrefix(u, "data:") && !strings.HasPrefix(u, "blob:") {
+			t.Errorf("the map asked another server for %s", u)
+		}
+	}
+	nreq := len(requests)
+	mu.Unlock()
+	// the cell page alone, in a tab of its own
 	var page []byte
 	shotPage := filepath.Join(shotDir, "serve_cell_page.png")
 	tab, cancelTab := chromedp.NewContext(ctx)
@@ -252,17 +289,7 @@ func TestServeInChromium(t *testing.T) {
 	}
 	os.WriteFile(shotPage, page, 0o644)
 
-	mu.Lock()
-	for _, e := range consoleErrs {
-		t.Errorf("chromium: %s", e)
-	}
-	for _, u := range requests {
-		if !strings.HasPrefix(u, ts.URL+"/") && !strings.HasPrefix(u, "data:") && !strings.HasPrefix(u, "blob:") {
-			t.Errorf("the map asked another server for %s", u)
-		}
-	}
-	mu.Unlock()
-	t.Logf("screenshots: %s, %s, %s, %s (cell %d; %d requests, all to the local server)", shot1, shot2, shotPanel, shotPage, known, len(requests))
+	t.Logf("screenshots: %s, %s, %s, %s, %s (cell %d; %d requests, all to the local server)", shotWin, shot1, shot2, shotPanel, shotPage, known, nreq)
 }
 
 func absDiff(a, b uint32) uint32 {
@@ -324,5 +351,32 @@ func compareNumbers(t *testing.T, cells map[string][]any, cell int, rows [][]str
 	}
 	if len(seen) < 20 {
 		t.Errorf("cell page shows %d columns", len(seen))
+	}
+}
+
+// serve proves the run at start: a contour layer changed after the run
+// (a file rundir.Open itself does not read) is refused before serving,
+// naming the file (its SHA-256 no longer matches the manifest's).
+func TestServeRefusesDamagedRun(t *testing.T) {
+	dir, _ := demoRun(t)
+	cp := filepath.Join(t.TempDir(), "atlas-grid")
+	if err := os.CopyFS(cp, os.DirFS(filepath.Join(dir, "atlas-grid"))); err != nil {
+		t.Fatal(err)
+	}
+	s, err := serve.New(cp)
+	if err != nil {
+		t.Fatalf("the copied run: %v", err)
+	}
+	s.Close()
+	layer := filepath.Join(cp, "contours", contract.ColPowerMean+".geojson")
+	b, err := os.ReadFile(layer)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b[len(b)/2] ^= 1
+	os.WriteFile(layer, b, 0o644)
+	_, err = serve.New(cp)
+	if err == nil || !strings.Contains(err.Error(), contract.ColPowerMean+".geojson") || !strings.Contains(err.Error(), "SHA-256") {
+		t.Errorf("serve.New on a run with a changed contour layer: %v, want a refusal naming the file", err)
 	}
 }

@@ -105,6 +105,7 @@
         ? new ol.style.Style({ stroke: new ol.style.Stroke({ color: 'rgba(255,255,255,0.9)', width: 1 }) })
         : new ol.style.Style({ stroke: new ol.style.Stroke({ color: '#111', width: 1.2 }) })
     });
+    lyr.set('file', c.file);
     const lab = document.createElement('label');
     const cb = document.createElement('input');
     cb.type = 'checkbox'; cb.dataset.file = c.file;
@@ -113,6 +114,7 @@
     contourDiv.append(lab, document.createElement('br'));
     return lyr;
   });
+  state.contours = contourLayers;
   if (!atlas.contours.length) contourDiv.textContent = 'no contour layers in this run';
   // sites and stations
   const marks = new ol.source.Vector();
@@ -122,7 +124,7 @@
     image: f.get('kind') === 'site'
       ? new ol.style.Circle({ radius: 6, fill: new ol.style.Fill({ color: '#ffffff' }), stroke: new ol.style.Stroke({ color: '#000', width: 2 }) })
       : new ol.style.RegularShape({ points: 3, radius: 8, fill: new ol.style.Fill({ color: '#d62728' }), stroke: new ol.style.Stroke({ color: '#000', width: 1.5 }) }),
-    text: new ol.style.Text({ text: f.get('name') + (f.get('kind') === 'station' ? ' (station)' : ''), offsetY: -14, font: '12px sans-serif',
+    text: new ol.style.Text({ text: f.get('name') + (f.get('kind') === 'station' ? ' (station)' : ''), offsetY: f.get('kind') === 'station' ? 16 : -14, font: '12px sans-serif',
       fill: new ol.style.Fill({ color: '#000' }), stroke: new ol.style.Stroke({ color: '#fff', width: 3 }) })
   });
   const marksLayer = new ol.layer.Vector({ source: marks, style: siteStyle, zIndex: 5 });
