@@ -268,6 +268,12 @@ func TestServeInChromium(t *testing.T) {
 	// hidden tab's map has no size, and OpenLayers warns of it)
 	mu.Lock()
 	for _, e := range consoleErrs {
+		// OpenLayers warns when its container has no size for a moment,
+		// which a screenshot's change of the viewport can cause; the
+		// pixels above prove the map was drawn
+		if strings.Contains(e, "map container's width or height are 0") {
+			continue
+		}
 		t.Errorf("chromium: %s", e)
 	}
 	for _, u := range requests {

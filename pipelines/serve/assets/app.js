@@ -4,7 +4,9 @@
 // hover to read a cell's value, click to open the cell's page.
 (async function () {
   'use strict';
-  const state = { ready: false, layer: null, values: null, selected: -1, renders: 0 };
+  const state = { ready: false, layer: null, values: null, selected: -1, renders: 0, timings: {} };
+  const t0 = performance.now();
+  const mark = (k) => { state.timings[k] = Math.round(performance.now() - t0); };
   window.swellgrid = state;
   const get = async (url, kind) => {
     const r = await fetch(url);
@@ -19,21 +21,24 @@
   const clampLat = (y) => Math.max(-85, Math.min(85, y));
   const proj = (lon, lat) => ol.proj.fromLonLat([lon, clampLat(lat)]);
   // cell centres and outlines in the map's projection (EPSG:3857)
+  mark('fetched');
+  // lon/lat to the map's projection, flat [x0, y0, x1, y1, ...] arrays in one call
+  const toMap = ol.proj.getTransform('EPSG:4326', 'EPSG:3857');
+  const project = (flat) => {
+    for (let k = 1; k < flat.length; k += 2) flat[k] = clampLat(flat[k]);
+    return toMap(flat, flat, 2);
+  };
+  const cxy = new Float64Array(2 * n);
+  for (let i = 0; i < n; i++) { cxy[2 * i] = lonOf(i); cxy[2 * i + 1] = latOf(i); }
+  project(cxy);
   const cx = new Float64Array(n), cy = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    const p = proj(lonOf(i), latOf(i));
-    cx[i] = p[0]; cy[i] = p[1];
-  }
+  for (let i = 0; i < n; i++) { cx[i] = cxy[2 * i]; cy[i] = cxy[2 * i + 1]; }
   let outl = null;
   if (atlas.outlines) {
-    const o = new Float32Array(await get('api/outlines.bin'));
-    outl = new Float64Array(o.length);
-    for (let k = 0; k < o.length; k += 2) {
-      if (isNaN(o[k]) || isNaN(o[k + 1])) { outl[k] = outl[k + 1] = NaN; continue; }
-      const p = proj(o[k], o[k + 1]);
-      outl[k] = p[0]; outl[k + 1] = p[1];
-    }
+    outl = Float64Array.from(new Float32Array(await get('api/outlines.bin')));
+    project(outl); // NaN corners stay NaN
   }
+  mark('projected');
   // colour index of a value, as report.Viridis.Index: floor((v - min) / (max - min) * 256), clamped
   const colourIndex = (v, L) => {
     if (L.max === L.min) return 128;
@@ -59,6 +64,7 @@
       canvas.width = size[0]; canvas.height = size[1];
       const ctx = canvas.getContext('2d');
       if (!classes) return canvas;
+      const c0 = performance.now();
       const sx = size[0] / (extent[2] - extent[0]), sy = size[1] / (extent[3] - extent[1]);
       const X = (x) => (x - extent[0]) * sx, Y = (y) => (extent[3] - y) * sy;
       for (let k = 0; k < palette.length; k++) {
@@ -84,14 +90,18 @@
         ctx.fill();
         if (outl) ctx.stroke(); // closes the hairline gaps between neighbours
       }
+      state.timings.canvas = Math.round(performance.now() - c0);
       return canvas;
     }
   });
-  const landSource = new ol.source.Vector({
-    url: 'assets/vendor/world-atlas/land-50m.json',
-    format: new ol.format.TopoJSON({ layers: ['land'] }),
-    overlaps: false
-  });
+  // the coastline (Natural Earth land, the whole world) is read after the
+  // cells are first drawn: its parsing would hold up the first map
+  const landSource = new ol.source.Vector({ overlaps: false });
+  const loadLand = async () => {
+    const topo = await get('assets/vendor/world-atlas/land-50m.json', 'json');
+    landSource.addFeatures(new ol.format.TopoJSON({ layers: ['land'] }).readFeatures(topo, { featureProjection: 'EPSG:3857' }));
+    state.coastline = landSource.getFeatures().length;
+  };
   const coastFill = new ol.layer.Vector({ source: landSource, style: new ol.style.Style({ fill: new ol.style.Fill({ color: atlas.land }) }), zIndex: 0 });
   const cellsLayer = new ol.layer.Image({ source: cellsSource, zIndex: 1 });
   const coastLine = new ol.layer.Vector({ source: landSource, style: new ol.style.Style({ stroke: new ol.style.Stroke({ color: '#6b604a', width: 0.8 }) }), zIndex: 2 });
@@ -180,12 +190,15 @@
     state.ready = false;
     state.values = new Float64Array(await get('api/layer/' + encodeURIComponent(name) + '.bin'));
     state.layer = L;
+    mark('layer');
     classify();
+    mark('classified');
     drawLegend(L);
     const done = rendered();
     cellsSource.changed();
     map.render();
     await done;
+    mark('drawn');
     state.renders++;
     state.ready = true;
   };
@@ -271,6 +284,7 @@
     openCell(c.cell);
   });
   await setLayer(atlas.layers[0].column);
+  await loadLand();
 })().catch((err) => {
   const d = document.createElement('p');
   d.className = 'error';
