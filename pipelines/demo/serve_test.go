@@ -264,6 +264,37 @@ func TestServeInChromium(t *testing.T) {
 	}
 	compareNumbers(t, cells, known, rows)
 
+	// search by lon/lat: the nearest sea cell with a result by great-circle
+	// distance (haversine, R = 6371.0088 km: Moritz 2000), found here from
+	// cells.parquet
+	slon, slat := -34.3, 45.9
+	lons, lats := cells[contract.ColLon], cells[contract.ColLat]
+	want, wd := -1, math.Inf(1)
+	for k := range lons {
+		if land[k] || power[k] == nil {
+			continue
+		}
+		p1, p2 := slat*math.Pi/180, runcheck.Num(lats[k])*math.Pi/180
+		dl := (runcheck.Num(lons[k]) - slon) * math.Pi / 180
+		a := math.Pow(math.Sin((p2-p1)/2), 2) + math.Cos(p1)*math.Cos(p2)*math.Pow(math.Sin(dl/2), 2)
+		if d := 2 * 6371.0088 * math.Asin(math.Sqrt(a)); d < wd {
+			want, wd = k, d
+		}
+	}
+	var found string
+	var h1s string
+	if err := chromedp.Run(ctx, chromedp.SetValue("#lon", fmt.Sprint(slon), chromedp.ByID), chromedp.SetValue("#lat", fmt.Sprint(slat), chromedp.ByID),
+		chromedp.Click(`#search button`, chromedp.ByQuery),
+		chromedp.Poll(fmt.Sprintf(`swellgrid.selected === %d && document.getElementById('found').textContent !== ''`, want), nil, chromedp.WithPollingTimeout(20*time.Second)),
+		chromedp.Text("#found", &found, chromedp.ByID),
+		chromedp.Poll(fmt.Sprintf(`(() => { const d = document.getElementById('cellpage').contentDocument; return !!(d && d.querySelector('h1') && d.querySelector('h1').textContent.endsWith('cell %d')); })()`, want), nil, chromedp.WithPollingTimeout(30*time.Second)),
+		chromedp.Evaluate(`document.getElementById('cellpage').contentDocument.querySelector('h1').textContent`, &h1s)); err != nil {
+		t.Fatalf("search for %g, %g (want cell %d): %v", slon, slat, want, err)
+	}
+	if !strings.Contains(found, fmt.Sprintf("cell %d: ", want)) && !strings.Contains(found, fmt.Sprintf(": %d at", want)) {
+		t.Errorf("search for %g, %g: %q, want cell %d (%.2f km away)", slon, slat, found, want, wd)
+	}
+
 	// what the map page said and asked for, before another tab opens (a
 	// hidden tab's map has no size, and OpenLayers warns of it)
 	mu.Lock()

@@ -250,6 +250,10 @@
   });
   const panel = document.getElementById('panel');
   const frame = document.getElementById('cellpage');
+  frame.addEventListener('load', () => { // the page's link to the atlas leaves the panel
+    const d = frame.contentDocument;
+    if (d) for (const a of d.querySelectorAll('a[href="index.html"]')) a.target = '_top';
+  });
   const openCell = (i) => {
     state.selected = i;
     selSource.clear();
