@@ -29,7 +29,7 @@ TEST_DEBS  += python3-shapely python3-pyproj
 # QGIS (python3-qgis) opens atlas.gpkg with its default styles (pipelines/demo)
 TEST_DEBS  += python3-qgis
 
-.PHONY: all deps test-deps build demo test lint mutants bench bench-memory fuzz soak clean
+.PHONY: all deps test-deps build demo test lint mutants bench bench-serve bench-memory fuzz soak clean
 
 all: build
 
@@ -132,6 +132,16 @@ bench: deps
 	"$$($(GO) env GOPATH)/bin/benchstat" before=$(BENCH_OUT)/micro-before.txt after=$(BENCH_OUT)/micro.txt | tee $(BENCH_OUT)/micro-benchstat.txt
 	./internal/bench/compare_outputs.sh bin/swellgrid-before $(BIN) bin/sgdiff > $(BENCH_OUT)/tables.txt; cat $(BENCH_OUT)/tables.txt
 	$(MAKE) bench-memory BENCH_MEM_ONLY=grid,merge BENCH_GRID200_MONTHS=1
+	$(MAKE) bench-serve
+
+# bench-serve: `swellgrid serve` on a 200 x 200 atlas (the grid200 hindcast,
+# run once and cached beside it): time to the first map and to a cell's page
+# in headless Chromium (targets 2 s and 0.5 s, issue 33).
+BENCH_SERVE_MONTHS ?= 12
+bench-serve: deps
+	@mkdir -p $(BENCH_OUT)
+	$(GO) test -run '^$$' -bench 'ServeFirstMap200|ServeCellPage200' -benchtime 5x -timeout 2h ./pipelines/serve/ \
+	  -serve-months $(BENCH_SERVE_MONTHS) -serve-cache $(abspath $(BENCH_CACHE)) | tee $(BENCH_OUT)/serve.txt
 
 # bench-memory: peak RSS (each case's child rusage, ru_maxrss) of the bulk
 # benchmark under --memory-limit 256MiB (target 360 MB) and the default 2GiB

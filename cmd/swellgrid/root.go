@@ -143,7 +143,7 @@ as GeoParquet tables, GeoJSON contour layers and a manifest.
 		// not the help text with exit 0.
 		RunE: func(cmd *cobra.Command, args []string) error { return cmd.Help() },
 	}
-	root.AddCommand(newInspectCmd(), newRunCmd(), newDemoCmd(), newMergeCmd(), newClusterCmd(), newUnlockCmd(), newReportCmd(), newScreenCmd(), newValidateCmd())
+	root.AddCommand(newInspectCmd(), newRunCmd(), newDemoCmd(), newMergeCmd(), newClusterCmd(), newUnlockCmd(), newReportCmd(), newScreenCmd(), newValidateCmd(), newServeCmd())
 	markUsage(root)
 	return root
 }

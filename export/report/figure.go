@@ -48,6 +48,25 @@ func figureFiles(f *figure) []string { return []string{f.Name + ".png", f.Name +
 // and lines, which it packs nearly as well as the default level, in about
 // half the time (the report's largest cost, see renderAll).
 func save(dir string, f *figure) ([]string, error) {
+	pb, err := pngBytes(f)
+	if err != nil {
+		return nil, err
+	}
+	sb, err := svgBytes(f)
+	if err != nil {
+		return nil, err
+	}
+	names := figureFiles(f)
+	for i, b := range [][]byte{pb, sb} {
+		if err := os.WriteFile(filepath.Join(dir, names[i]), b, 0o644); err != nil {
+			return nil, fmt.Errorf("report: %w", err)
+		}
+	}
+	return names, nil
+}
+
+// pngBytes draws f as a PNG at DPI (see save).
+func pngBytes(f *figure) ([]byte, error) {
 	png := vgimg.NewWith(vgimg.UseWH(f.W, f.H), vgimg.UseDPI(DPI))
 	f.draw(draw.New(png))
 	var pb bytes.Buffer
@@ -55,19 +74,18 @@ func save(dir string, f *figure) ([]string, error) {
 	if err := enc.Encode(&pb, png.Image()); err != nil {
 		return nil, fmt.Errorf("report: figure %s: %w", f.Name, err)
 	}
+	return pb.Bytes(), nil
+}
+
+// svgBytes draws f as an SVG document (xmlChars: well-formed XML).
+func svgBytes(f *figure) ([]byte, error) {
 	svg := vgsvg.NewWith(vgsvg.UseWH(f.W, f.H))
 	f.draw(draw.New(svg))
 	var sb bytes.Buffer
 	if _, err := svg.WriteTo(&sb); err != nil {
 		return nil, fmt.Errorf("report: figure %s: %w", f.Name, err)
 	}
-	names := figureFiles(f)
-	for i, b := range [][]byte{pb.Bytes(), xmlChars(sb.Bytes())} {
-		if err := os.WriteFile(filepath.Join(dir, names[i]), b, 0o644); err != nil {
-			return nil, fmt.Errorf("report: %w", err)
-		}
-	}
-	return names, nil
+	return xmlChars(sb.Bytes()), nil
 }
 
 // xmlChars drops from an SVG document every character XML 1.0 forbids

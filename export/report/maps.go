@@ -63,6 +63,15 @@ func (f *Field) Range() (lo, hi float64, n int) {
 	return
 }
 
+// mapScale is the colour scale of a map whose values run from lo to hi:
+// viridis on [lo, hi], widened a little when every value is the same.
+func mapScale(lo, hi float64) *Viridis {
+	if hi == lo {
+		hi = lo + math.Max(1e-9, math.Abs(lo)*1e-6)
+	}
+	return NewViridis(lo, hi)
+}
+
 // cellPolygons returns each cell's outline in lon/lat: for a structured grid
 // the quadrilateral whose corners are the means of the four surrounding nodes
 // (nodes beyond the edge extrapolated linearly), nil where a corner is not
@@ -232,11 +241,7 @@ func Map(name, title string, f *Field) (*figure, *MapInfo, error) {
 			info.Land++
 		}
 	}
-	cmHi := hi
-	if cmHi == lo {
-		cmHi = lo + math.Max(1e-9, math.Abs(lo)*1e-6)
-	}
-	layer := &cellsLayer{f: f, cmap: NewViridis(lo, cmHi), pointRad: vg.Points(4)}
+	layer := &cellsLayer{f: f, cmap: mapScale(lo, hi), pointRad: vg.Points(4)}
 	layer.bounds = orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}
 	if f.Points {
 		for i := range f.Lon {
@@ -294,7 +299,7 @@ func Map(name, title string, f *Field) (*figure, *MapInfo, error) {
 	}
 	w, h := pl+dataW+pr, pb+dataH+pt
 	cb := plot.New()
-	cb.Add(&plotter.ColorBar{ColorMap: NewViridis(lo, cmHi), Vertical: true, Colors: 256})
+	cb.Add(&plotter.ColorBar{ColorMap: mapScale(lo, hi), Vertical: true, Colors: 256})
 	cb.HideX()
 	cb.Y.Tick.Marker = endTicks{}
 	cb.Y.Label.Text = f.Unit

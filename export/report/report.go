@@ -167,15 +167,10 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 	sites, sw := Sites(r)
 	warns = append(warns, sw...)
 	for _, s := range sites {
-		sv := &siteView{Site: s, File: "site_" + s.Slug + ".html", CellLon: lon[s.Cell], CellLat: lat[s.Cell]}
-		if r.GridKind != grid.Points {
-			sv.Distance = fmt.Sprintf("%.1f km", s.DistKM)
-		}
-		figs, fn, err := siteFigures(r, s)
+		sv, figs, err := newSiteView(r, s)
 		if err != nil {
-			return nil, nil, fmt.Errorf("report: site %s: %w", s.Name, err)
+			return nil, nil, err
 		}
-		sv.Notes = fn
 		for _, f := range figs {
 			names, err := save(tmp, f)
 			if err != nil {
@@ -183,18 +178,6 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 			}
 			add(names...)
 			sv.Figures = append(sv.Figures, pageFigure{Title: f.Title, Caption: f.Caption, PNG: names[0], SVG: names[1]})
-		}
-		for _, c := range r.Cells.Columns {
-			val := ""
-			switch c.Kind {
-			case rundir.Float, rundir.Int:
-				val = colText(c, s.Cell)
-			case rundir.String:
-				val = c.Str[s.Cell]
-			case rundir.Bool:
-				val = fmt.Sprint(c.Bool[s.Cell])
-			}
-			sv.Numbers = append(sv.Numbers, [4]string{c.Name, val, c.Unit, c.Doc})
 		}
 		v.Sites = append(v.Sites, sv)
 	}
@@ -255,6 +238,34 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 	os.RemoveAll(old)
 	sort.Strings(files)
 	return files, append(warns, notes...), nil
+}
+
+// newSiteView gathers the page of site s: its figures (drawn, not yet
+// rendered; the caller adds them to the view), notes and the cell's numbers.
+func newSiteView(r *rundir.Run, s Site) (*siteView, []*figure, error) {
+	lon, lat := r.Lon(), r.Lat()
+	sv := &siteView{Site: s, File: "site_" + s.Slug + ".html", CellLon: lon[s.Cell], CellLat: lat[s.Cell]}
+	if r.GridKind != grid.Points {
+		sv.Distance = fmt.Sprintf("%.1f km", s.DistKM)
+	}
+	figs, fn, err := siteFigures(r, s)
+	if err != nil {
+		return nil, nil, fmt.Errorf("report: site %s: %w", s.Name, err)
+	}
+	sv.Notes = fn
+	for _, c := range r.Cells.Columns {
+		val := ""
+		switch c.Kind {
+		case rundir.Float, rundir.Int:
+			val = colText(c, s.Cell)
+		case rundir.String:
+			val = c.Str[s.Cell]
+		case rundir.Bool:
+			val = fmt.Sprint(c.Bool[s.Cell])
+		}
+		sv.Numbers = append(sv.Numbers, [4]string{c.Name, val, c.Unit, c.Doc})
+	}
+	return sv, figs, nil
 }
 
 func unitSuffix(u string) string {
