@@ -5,7 +5,7 @@ GO      ?= go
 BIN     := bin/swellgrid
 DEMO_OUT ?= demo-out
 SUDO    := $(shell [ "$$(id -u)" = 0 ] || echo sudo)
-# Debian packages the build needs (cgo NetCDF), and every outside tool the
+# Debian packages the build needs (cgo NetCDF and GEOS), and every outside tool the
 # tests use as a reference: ncgen/ncdump (netcdf-bin), GDAL's ogrinfo and
 # gdal_contour (gdal-bin) and osgeo (python3-gdal), Debian's python3 with numpy,
 # scipy, netCDF4, xarray and cftime (fixtures and independent computations),
@@ -13,7 +13,7 @@ SUDO    := $(shell [ "$$(id -u)" = 0 ] || echo sudo)
 # DuckDB reader check). A failed install fails `make test`: under CI=true
 # (.ci/run) a test whose tool is missing fails instead of skipping
 # (internal/testtool), so nothing is skipped quietly.
-BUILD_DEBS := libnetcdf-dev libproj-dev pkg-config
+BUILD_DEBS := libnetcdf-dev libproj-dev libgeos-dev pkg-config
 TEST_DEBS  := netcdf-bin gdal-bin python3-gdal python3-numpy python3-scipy python3-netcdf4 \
 	python3-xarray python3-cftime r-base-core r-cran-evd slurm-wlm munge nodejs
 # The npm DuckDB package the export tests read our Parquet files with (the
@@ -109,6 +109,9 @@ BENCH_DRIVER := internal/bench cmd/sgbench
 BENCH_BEFORE_IMPORTS ?= swellgrid/pipelines/engine=swellgrid/pipelines swellgrid/pipelines/runspec=swellgrid/pipelines
 BENCH_MICRO_PKGS ?= ./pipelines/engine/ ./stats/...
 BENCH_MICRO_PKGS_BEFORE ?= ./pipelines/ ./stats/...
+# screening geometry (issue 35): one polygon layer of 10^5 and 10^6 vertices
+# against a 200 x 200 grid (validity, covers, distances); target < 5 s at 10^6
+BENCH_GEOMETRY ?= ScreenLayer
 bench: deps
 	@mkdir -p $(BENCH_OUT) bin
 	$(GO) build -o bin/sgbench ./cmd/sgbench
@@ -131,6 +134,7 @@ bench: deps
 	$(GO) install golang.org/x/perf/cmd/benchstat@$(BENCHSTAT_VERSION)
 	"$$($(GO) env GOPATH)/bin/benchstat" before=$(BENCH_OUT)/micro-before.txt after=$(BENCH_OUT)/micro.txt | tee $(BENCH_OUT)/micro-benchstat.txt
 	./internal/bench/compare_outputs.sh bin/swellgrid-before $(BIN) bin/sgdiff > $(BENCH_OUT)/tables.txt; cat $(BENCH_OUT)/tables.txt
+	$(GO) test -run '^$$' -bench '$(BENCH_GEOMETRY)' -benchtime 1x -count 3 ./pipelines/screening/ | tee $(BENCH_OUT)/geometry.txt
 	$(MAKE) bench-memory BENCH_MEM_ONLY=grid,merge BENCH_GRID200_MONTHS=1
 	$(MAKE) bench-serve
 

@@ -5,88 +5,64 @@ package grid
 //
 // Geometry follows RFC 7946 (GeoJSON), section 3.1.1: a line between two
 // positions is straight in longitude and latitude. So point-in-polygon is
-// planar in lon/lat (github.com/paulmach/orb/planar's ring test; exact for
-// rings whose edges are straight in lon/lat, which is what GeoJSON and
-// GeoPackage layers in EPSG:4326 mean), and the distance to a line is the
-// shortest geodesic (Inverse) from the point to any point of that lon/lat
-// straight segment. Rings must not cross the antimeridian (Validate refuses
+// planar in lon/lat and done by GEOS (Coverage, geos.go: exact for rings
+// whose edges are straight in lon/lat, which is what GeoJSON and GeoPackage
+// layers in EPSG:4326 mean), and the distance to a line is the shortest
+// geodesic (Inverse) from the point to any point of that lon/lat straight
+// segment, hand-written (GEOS's distances are planar; see geos.go and
+// distindex.go). Rings must not cross the antimeridian (CheckLine refuses
 // an edge longer than 180 degrees of longitude); a layer may give its
 // longitudes in -180..180 (cut at 180 degrees as RFC 7946 asks) or in
-// 0..360, and the point tested against it in either: the point is tried at
-// its longitude and 360 degrees east and west of it. Distances are geodesics
-// (Inverse takes the difference of longitudes modulo 360).
+// 0..360: its parts are placed in the grid's frame (Frame.Place) and the
+// point is tried at its longitude and 360 degrees east and west of it.
+// Distances are geodesics (Inverse takes the difference of longitudes
+// modulo 360).
 
 import (
 	"math"
 
 	"github.com/paulmach/orb"
-	"github.com/paulmach/orb/planar"
 )
 
-// Covers reports whether the polygon (outer ring, then holes) covers the
-// point: inside or on its boundary, as GEOS's covers (shapely
-// Polygon.covers): a point on the outer ring or on a hole's ring is covered,
-// a point strictly inside a hole is not.
-func Covers(p orb.Polygon, pt orb.Point) bool {
-	if len(p) == 0 || !planar.RingContains(p[0], pt) { // boundary counts as in
-		return false
-	}
-	for _, h := range p[1:] {
-		if planar.RingContains(h, pt) && !onRing(h, pt) {
-			return false
-		}
-	}
-	return true
-}
-
-// MultiCovers reports whether any polygon of mp covers pt, the point taken
-// at its longitude and at 360 degrees east and west of it (a layer and a
-// grid may use different longitude frames, -180..180 and 0..360).
-func MultiCovers(mp orb.MultiPolygon, pt orb.Point) bool {
-	for _, p := range mp {
-		for _, dx := range []float64{0, 360, -360} {
-			if Covers(p, orb.Point{pt[0] + dx, pt[1]}) {
-				return true
-			}
-		}
-	}
-	return false
-}
-
-// onRing reports whether pt lies exactly on an edge of r (collinear within
-// floating point and inside the edge's bounding box).
-func onRing(r orb.Ring, pt orb.Point) bool {
-	for i := 0; i+1 < len(r); i++ {
-		a, b := r[i], r[i+1]
-		if pt[0] < math.Min(a[0], b[0]) || pt[0] > math.Max(a[0], b[0]) || pt[1] < math.Min(a[1], b[1]) || pt[1] > math.Max(a[1], b[1]) {
-			continue
-		}
-		if (b[0]-a[0])*(pt[1]-a[1])-(b[1]-a[1])*(pt[0]-a[0]) == 0 {
-			return true
-		}
-	}
-	return false
-}
-
 // Target is a layer's geometry prepared for distances: its points, its
-// segments (lines and polygon rings) and its polygons (a point they cover is
-// at distance 0).
+// segments (lines and polygon rings), a tree of bounding boxes over them
+// (distIndex), and its polygons as a GEOS coverage (a point they cover is at
+// distance 0).
 type Target struct {
 	verts []orb.Point
 	segs  []segment
-	polys orb.MultiPolygon
+	cover *Coverage
+	tree  []node // tree[0] is the root (when there are segments)
 }
 
 type segment struct {
-	a, b int     // vertex indices
-	lenM float64 // upper bound of the segment's length on the ellipsoid, m
+	a, b   int     // vertex indices (a == b: a lone point)
+	lenM   float64 // upper bound of the segment's length on the ellipsoid, m (segmentLengthBound)
+	chord  float64 // straight-line distance between its ends in ECEF, m (endMinimum)
+	tanLat float64 // tan of the largest |latitude| of its ends (endMinimum)
+}
+
+func newSegment(a, b int, pa, pb orb.Point) segment {
+	ea, eb := ecef(pa[0], pa[1]), ecef(pb[0], pb[1])
+	phi := math.Max(math.Abs(pa[1]), math.Abs(pb[1])) * math.Pi / 180
+	return segment{a: a, b: b, lenM: segmentLengthBound(pa, pb),
+		chord:  math.Sqrt((ea[0]-eb[0])*(ea[0]-eb[0]) + (ea[1]-eb[1])*(ea[1]-eb[1]) + (ea[2]-eb[2])*(ea[2]-eb[2])),
+		tanLat: math.Tan(phi)}
 }
 
 // NewTarget prepares the geometries (Point, MultiPoint, LineString,
-// MultiLineString, Polygon, MultiPolygon; others are ignored) for DistanceM.
-func NewTarget(geoms []orb.Geometry) *Target {
+// MultiLineString, Polygon, MultiPolygon; others are ignored) for DistanceM,
+// each part placed in the frame fr (Frame.Place, the one function that puts
+// a layer into a continuous frame). Polygons must be valid (CheckPolygon).
+func NewTarget(geoms []orb.Geometry, fr Frame) (*Target, error) {
 	t := &Target{}
-	vid := map[orb.Point]int{}
+	nv := 0
+	for _, g := range geoms {
+		nv += countPoints(g)
+	}
+	vid := make(map[orb.Point]int, nv)
+	t.verts = make([]orb.Point, 0, nv)
+	t.segs = make([]segment, 0, nv)
 	vertex := func(p orb.Point) int {
 		if k, ok := vid[p]; ok {
 			return k
@@ -99,21 +75,22 @@ func NewTarget(geoms []orb.Geometry) *Target {
 		for i := 0; i+1 < len(ls); i++ {
 			a, b := vertex(ls[i]), vertex(ls[i+1])
 			if a != b {
-				t.segs = append(t.segs, segment{a: a, b: b, lenM: pathLengthBound(ls[i], ls[i+1])})
+				t.segs = append(t.segs, newSegment(a, b, ls[i], ls[i+1]))
 			}
 		}
 		if len(ls) == 1 {
-			vertex(ls[0])
+			k := vertex(ls[0])
+			t.segs = append(t.segs, segment{a: k, b: k})
 		}
 	}
 	var add func(g orb.Geometry)
 	add = func(g orb.Geometry) {
 		switch g := g.(type) {
 		case orb.Point:
-			vertex(g)
+			line([]orb.Point{g})
 		case orb.MultiPoint:
 			for _, p := range g {
-				vertex(p)
+				line([]orb.Point{p})
 			}
 		case orb.LineString:
 			line(g)
@@ -124,7 +101,6 @@ func NewTarget(geoms []orb.Geometry) *Target {
 		case orb.Ring:
 			line(g)
 		case orb.Polygon:
-			t.polys = append(t.polys, g)
 			for _, r := range g {
 				line(r)
 			}
@@ -138,79 +114,65 @@ func NewTarget(geoms []orb.Geometry) *Target {
 			}
 		}
 	}
-	for _, g := range geoms {
-		add(g)
+	placed := make([]orb.Geometry, len(geoms))
+	for k, g := range geoms {
+		placed[k] = fr.Place(g)
+		add(placed[k])
 	}
-	return t
+	cv, err := NewCoverage(placed, fr)
+	if err != nil {
+		return nil, err
+	}
+	t.cover = cv
+	t.buildIndex()
+	return t, nil
 }
 
 // Empty reports whether the target has nothing to measure to.
 func (t *Target) Empty() bool { return len(t.verts) == 0 }
 
-// pathLengthBound is an upper bound of the ellipsoidal length of the lon/lat
-// straight segment a-b: the sum of the geodesics between 32 points along it
-// (a chord sum, below the length by a relative O((kappa l)^2 / 24) for
-// pieces of length l and geodesic curvature kappa), enlarged by 1e-5.
-func pathLengthBound(a, b orb.Point) float64 {
-	const n = 32
-	s := 0.0
-	prev := a
-	for i := 1; i <= n; i++ {
-		q := lerp(a, b, float64(i)/n)
-		d, ok := Inverse(prev[0], prev[1], q[0], q[1])
-		if !ok {
-			return math.Inf(1)
-		}
-		s += d
-		prev = q
-	}
-	return s * (1 + 1e-5)
-}
+// Err is the first GEOS error met by DistanceM (whose answer was then not
+// ok); nil if none.
+func (t *Target) Err() error { return t.cover.Err() }
 
 func lerp(a, b orb.Point, t float64) orb.Point {
 	return orb.Point{a[0] + t*(b[0]-a[0]), a[1] + t*(b[1]-a[1])}
 }
 
 // DistanceM is the geodesic distance in metres on WGS 84 from (lon, lat) to
-// the nearest point of the target: 0 inside (or on) a polygon, else the
-// minimum over its points and over every point of its lon/lat straight
-// segments. ok is false if the target is empty or a geodesic could not be
-// solved (see Inverse).
+// the nearest point of the target: 0 inside (or on) a polygon (GEOS covers,
+// Coverage), else the minimum over its points and over every point of its
+// lon/lat straight segments. ok is false if the target is empty or a
+// geodesic could not be solved (see Inverse). Safe for concurrent use.
 //
-// Method: d = min over vertices of Inverse; a segment a-b of length at most
-// L is skipped when (d_a + d_b - L)/2 >= d (by the triangle inequality no
-// point of it is nearer); else the distance to it is minimised over its
-// parameter t in [0, 1]: 16 samples, then golden-section search on the
-// bracket around the best sample to |dt| < 1e-10.
+// Method: a branch-and-bound search of the segment tree (distindex.go),
+// nearer box first, which skips a box of segments when a lower bound of the
+// geodesic distance to any point of it (lowerBoundM) is not below the best
+// distance d found so far; in a leaf, d = min over its vertices of Inverse, and a segment a-b of
+// length at most L is skipped when (d_a + d_b - L)/2 >= d (by the triangle
+// inequality no point of it is nearer), and so is one whose nearest point
+// is an end (endMinimum); else the distance to it is
+// minimised over its parameter t in [0, 1]: 16 samples, then golden-section
+// search on the bracket around the best sample to |dt| < 1e-10. The
+// segments skipped are only ones that cannot hold a nearer point, so the
+// result is the minimum over every vertex and segment, as an exhaustive
+// search would find it.
 func (t *Target) DistanceM(lon, lat float64) (float64, bool) {
 	if len(t.verts) == 0 {
 		return math.NaN(), false
 	}
-	p := orb.Point{lon, lat}
-	if MultiCovers(t.polys, p) {
+	if t.cover.Covers(lon, lat) {
 		return 0, true
 	}
-	dv := make([]float64, len(t.verts))
-	best := math.Inf(1)
-	for i, v := range t.verts {
-		d, ok := Inverse(lon, lat, v[0], v[1])
-		if !ok {
-			return math.NaN(), false
-		}
-		dv[i] = d
-		best = math.Min(best, d)
+	p := orb.Point{lon, lat}
+	s := search{t: t, p: p, pe: ecef(lon, lat), best: math.Inf(1), ok: true}
+	if len(t.tree) > 0 {
+		s.visit(0)
 	}
-	for _, s := range t.segs {
-		if (dv[s.a]+dv[s.b]-s.lenM)/2 >= best {
-			continue
-		}
-		d, ok := segmentDistance(p, t.verts[s.a], t.verts[s.b])
-		if !ok {
-			return math.NaN(), false
-		}
-		best = math.Min(best, d)
+	if !s.ok || t.cover.Err() != nil {
+		return math.NaN(), false
 	}
-	return best, true
+	return s.best, true
 }
 
 // segmentDistance minimises Inverse(p, a + t (b - a)) over t in [0, 1].
@@ -248,4 +210,43 @@ func segmentDistance(p, a, b orb.Point) (float64, bool) {
 		}
 	}
 	return math.Min(bd, math.Min(f1, f2)), ok
+}
+
+// countPoints is the number of positions of g (a capacity hint).
+func countPoints(g orb.Geometry) int {
+	switch g := g.(type) {
+	case orb.Point:
+		return 1
+	case orb.MultiPoint:
+		return len(g)
+	case orb.LineString:
+		return len(g)
+	case orb.Ring:
+		return len(g)
+	case orb.MultiLineString:
+		n := 0
+		for _, l := range g {
+			n += len(l)
+		}
+		return n
+	case orb.Polygon:
+		n := 0
+		for _, r := range g {
+			n += len(r)
+		}
+		return n
+	case orb.MultiPolygon:
+		n := 0
+		for _, p := range g {
+			n += countPoints(p)
+		}
+		return n
+	case orb.Collection:
+		n := 0
+		for _, x := range g {
+			n += countPoints(x)
+		}
+		return n
+	}
+	return 0
 }

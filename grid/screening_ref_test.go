@@ -103,8 +103,12 @@ func TestCoversAgainstShapely(t *testing.T) {
 	fx, ref, shapes := loadScreenFixture(t)
 	n := 0
 	for k, mp := range shapes {
+		cv, err := NewCoverage([]orb.Geometry{mp}, Frame{West: -180})
+		if err != nil {
+			t.Fatal(err)
+		}
 		for i, p := range fx.Points {
-			got := MultiCovers(mp, orb.Point(p))
+			got := cv.Covers(p[0], p[1])
 			if got != ref.Covers[k][i] {
 				t.Errorf("%s covers %v: %v, shapely %v", k, p, got, ref.Covers[k][i])
 			}
@@ -117,8 +121,15 @@ func TestCoversAgainstShapely(t *testing.T) {
 func TestDistanceAgainstPyproj(t *testing.T) {
 	fx, ref, shapes := loadScreenFixture(t)
 	targets := map[string]*Target{}
+	target := func(gs []orb.Geometry) *Target {
+		tg, err := NewTarget(gs, Frame{West: -180})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return tg
+	}
 	for k, mp := range shapes {
-		targets[k] = NewTarget([]orb.Geometry{mp})
+		targets[k] = target([]orb.Geometry{mp})
 	}
 	var coast []orb.Geometry
 	for _, l := range fx.Lines["coast"] {
@@ -128,12 +139,12 @@ func TestDistanceAgainstPyproj(t *testing.T) {
 		}
 		coast = append(coast, ls)
 	}
-	targets["coast"] = NewTarget(coast)
+	targets["coast"] = target(coast)
 	var ports orb.MultiPoint
 	for _, p := range fx.Ports {
 		ports = append(ports, orb.Point(p))
 	}
-	targets["ports"] = NewTarget([]orb.Geometry{ports})
+	targets["ports"] = target([]orb.Geometry{ports})
 	worst := 0.0
 	for k, tg := range targets {
 		for i, p := range fx.Points {

@@ -649,3 +649,86 @@ func RejoinPolygons(mp orb.MultiPolygon, fr Frame) orb.MultiPolygon {
 	}
 	return out
 }
+
+// Place puts a layer's geometry into the frame, for the planar steps (GEOS
+// union and covers, the distance index) that must see it in one continuous
+// longitude frame: each part (a point, a line, a polygon with its holes) is
+// moved whole by a multiple of 360 degrees so that the middle of its
+// longitude extent lies within 180 degrees of the frame's Centre. Parts are
+// not cut or unwrapped: a part must already be continuous (no edge longer
+// than 180 degrees of longitude, which CheckLine refuses), as a layer cut at
+// 180 degrees (RFC 7946, 3.1.9) or given in 0..360 is; the pieces of a
+// polygon cut at 180 degrees come out beside each other, so that their union
+// is the one polygon. Coordinates of a part already in place are returned
+// bit for bit. Geometries other than points, lines and polygons (and their
+// Multi forms and collections) come back as they are.
+func (f Frame) Place(g orb.Geometry) orb.Geometry {
+	shift := func(pts []orb.Point) float64 {
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for _, p := range pts {
+			lo, hi = math.Min(lo, p[0]), math.Max(hi, p[0])
+		}
+		mid := (lo + hi) / 2
+		if math.IsNaN(mid) || math.IsInf(mid, 0) {
+			return 0
+		}
+		return 360 * math.Round((f.Centre-mid)/360)
+	}
+	moved := func(pts []orb.Point, dx float64) []orb.Point {
+		out := make([]orb.Point, len(pts))
+		for i, p := range pts {
+			out[i] = orb.Point{p[0] + dx, p[1]}
+		}
+		return out
+	}
+	switch g := g.(type) {
+	case orb.Point:
+		if dx := shift([]orb.Point{g}); dx != 0 {
+			return orb.Point{g[0] + dx, g[1]}
+		}
+		return g
+	case orb.MultiPoint:
+		out := make(orb.MultiPoint, len(g))
+		for i, p := range g {
+			out[i] = f.Place(p).(orb.Point)
+		}
+		return out
+	case orb.LineString:
+		if dx := shift(g); dx != 0 {
+			return orb.LineString(moved(g, dx))
+		}
+		return g
+	case orb.MultiLineString:
+		out := make(orb.MultiLineString, len(g))
+		for i, l := range g {
+			out[i] = f.Place(l).(orb.LineString)
+		}
+		return out
+	case orb.Polygon:
+		if len(g) == 0 {
+			return g
+		}
+		dx := shift(g[0])
+		if dx == 0 {
+			return g
+		}
+		out := make(orb.Polygon, len(g))
+		for k, r := range g {
+			out[k] = orb.Ring(moved(r, dx))
+		}
+		return out
+	case orb.MultiPolygon:
+		out := make(orb.MultiPolygon, len(g))
+		for i, p := range g {
+			out[i] = f.Place(p).(orb.Polygon)
+		}
+		return out
+	case orb.Collection:
+		out := make(orb.Collection, len(g))
+		for i, x := range g {
+			out[i] = f.Place(x)
+		}
+		return out
+	}
+	return g
+}

@@ -11,7 +11,9 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strings"
+	"sync"
 
 	"github.com/paulmach/orb"
 
@@ -103,6 +105,7 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 		}
 	}
 	res := &screenResult{polys: map[string]orb.MultiPolygon{}}
+	frame := g.Frame() // the layers are placed in the grid's frame (grid.Frame.Place)
 	sum := &contract.ScreeningSummary{Caution: tables.Caution, Note: Note, Method: screeningMethod}
 	for _, l := range s.Layers {
 		sum.Layers = append(sum.Layers, contract.ScreeningLayer{Name: l.Name, Path: l.File, Table: l.Table, SHA256: l.SHA256, Features: len(l.Geoms)})
@@ -119,15 +122,11 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 	}
 	dist := make([][]float64, len(res.distLayers))
 	for k, name := range res.distLayers {
-		t := grid.NewTarget(s.ScreeningLayer(name).Geoms)
-		dist[k] = make([]float64, n)
-		for i := 0; i < n; i++ {
-			d, ok := t.DistanceM(g.Lon[i], g.Lat[i])
-			if !ok {
-				d = math.NaN()
-			}
-			dist[k][i] = d / 1000
+		d, err := layerDistancesKm(g, s.ScreeningLayer(name).Geoms, frame)
+		if err != nil {
+			return nil, fmt.Errorf("screening: layer %s: %w", name, err)
 		}
+		dist[k] = d
 	}
 	// polygon membership, once per polygon layer used
 	inside := map[string][]bool{}
@@ -136,18 +135,9 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 			if inside[name] != nil {
 				continue
 			}
-			var mp orb.MultiPolygon
-			for _, gm := range s.ScreeningLayer(name).Geoms {
-				switch gm := gm.(type) {
-				case orb.Polygon:
-					mp = append(mp, gm)
-				case orb.MultiPolygon:
-					mp = append(mp, gm...)
-				}
-			}
-			in := make([]bool, n)
-			for i := 0; i < n; i++ {
-				in[i] = !math.IsNaN(g.Lon[i]) && grid.MultiCovers(mp, orb.Point{g.Lon[i], g.Lat[i]})
+			in, err := layerCovers(g, s.ScreeningLayer(name).Geoms, frame)
+			if err != nil {
+				return nil, fmt.Errorf("screening: layer %s: %w", name, err)
 			}
 			inside[name] = in
 		}
@@ -518,4 +508,58 @@ func meshRings(r *rundir.Run) []orb.Ring {
 		}
 	}
 	return out
+}
+
+// layerDistancesKm is the geodesic distance in km from every cell centre of
+// g to the layer's features (grid.Target.DistanceM; NaN where none can be
+// given), the layer placed in frame.
+func layerDistancesKm(g *grid.Grid, geoms []orb.Geometry, frame grid.Frame) ([]float64, error) {
+	t, err := grid.NewTarget(geoms, frame)
+	if err != nil {
+		return nil, err
+	}
+	n := g.NCells()
+	dist := make([]float64, n)
+	eachCell(n, func(i int) {
+		d, ok := t.DistanceM(g.Lon[i], g.Lat[i])
+		if !ok {
+			d = math.NaN()
+		}
+		dist[i] = d / 1000
+	})
+	return dist, t.Err()
+}
+
+// layerCovers reports for every cell of g whether the layer's polygons
+// cover its centre (grid.Coverage), the layer placed in frame.
+func layerCovers(g *grid.Grid, geoms []orb.Geometry, frame grid.Frame) ([]bool, error) {
+	cv, err := grid.NewCoverage(geoms, frame)
+	if err != nil {
+		return nil, err
+	}
+	n := g.NCells()
+	in := make([]bool, n)
+	eachCell(n, func(i int) {
+		in[i] = !math.IsNaN(g.Lon[i]) && cv.Covers(g.Lon[i], g.Lat[i])
+	})
+	return in, cv.Err()
+}
+
+// eachCell calls f for every cell index 0..n-1 on GOMAXPROCS goroutines, in
+// contiguous blocks (f writes only its own cell's slots, so results do not
+// depend on the scheduling).
+func eachCell(n int, f func(i int)) {
+	w := min(runtime.GOMAXPROCS(0), max(1, n/256))
+	var wg sync.WaitGroup
+	for k := 0; k < w; k++ {
+		lo, hi := k*n/w, (k+1)*n/w
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := lo; i < hi; i++ {
+				f(i)
+			}
+		}()
+	}
+	wg.Wait()
 }
