@@ -137,6 +137,34 @@ func TestGridMappingNativeGrids(t *testing.T) {
 		if math.Abs(px-dx) > 1e-9*math.Abs(dx) || math.Abs(ox-(r.X[0]*scale-dx/2)) > 1e-6*math.Abs(dx) {
 			t.Errorf("%s: geotransform origin x %v, pixel %v; native axis from %v by %v", c.run, ox, px, r.X[0]*scale, dx)
 		}
+		// every contour layer valid under GEOS (shapely), RFC 7946, and the
+		// same as the lon/lat twin's
+		py := testtool.NeedPython(t, "shapely")
+		cout, err := exec.Command(py, "../../testdata/gridmapping/check_contours.py", runs[c.run], runs[c.twin]).Output()
+		if err != nil {
+			t.Fatalf("check_contours.py %s: %v", c.run, err)
+		}
+		var feats []struct {
+			File         string
+			Feature      int
+			Valid        bool
+			Why          string
+			RFC          []string
+			Diff, Scale  float64
+			Features     int
+			TwinFeatures int `json:"twin_features"`
+		}
+		if err := json.Unmarshal(cout, &feats); err != nil {
+			t.Fatalf("check_contours.py: %v", err)
+		}
+		for _, f := range feats {
+			if !f.Valid || len(f.RFC) > 0 || f.Diff > 1e-9*math.Max(1, f.Scale) || f.Features != f.TwinFeatures {
+				t.Errorf("%s contours/%s feature %d: valid %v (%s), RFC 7946 %v, differs from the twin by %g of %g (%d vs %d features)", c.run, f.File, f.Feature, f.Valid, f.Why, f.RFC, f.Diff, f.Scale, f.Features, f.TwinFeatures)
+			}
+		}
+		if len(feats) < 10 {
+			t.Errorf("%s: only %d contour features checked", c.run, len(feats))
+		}
 		// QGIS opens the raster in the model's CRS, on the native axes, and
 		// draws it (a picture of more than one colour, kept)
 		q := runcheck.OpenInQGIS(t, filepath.Join(runs[c.run], "atlas.nc"), "power_mean_kw_m", "atlas_nc_"+c.run+"_qgis")
@@ -145,7 +173,7 @@ func TestGridMappingNativeGrids(t *testing.T) {
 		} else if math.Abs(q.Extent[0]-(r.X[0]*scale-dx/2)) > 1e-6*math.Abs(dx) || q.Colours < 3 {
 			t.Errorf("%s: QGIS extent %v (native axis from %v by %v), %d colours drawn", c.run, q.Extent, r.X[0]*scale, dx, q.Colours)
 		}
-		t.Logf("%s: %d values equal to the lon/lat twin; gdalinfo: origin x %v, pixel %v, CRS %s; QGIS extent %v, %d colours (%s)", c.run, compared, ox, px, c.crsWord, q.Extent, q.Colours, q.PNG)
+		t.Logf("%s: %d values equal to the lon/lat twin, %d contour features valid and RFC 7946 like the twin's; gdalinfo: origin x %v, pixel %v, CRS %s; QGIS extent %v, %d colours (%s)", c.run, compared, len(feats), ox, px, c.crsWord, q.Extent, q.Colours, q.PNG)
 	}
 }
 
