@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"log/slog"
 	"os"
-	"path/filepath"
 	"runtime"
 	"sync"
 	"time"
@@ -432,7 +431,7 @@ func (j *job) export(ctx context.Context, sums []string) (*Result, error) {
 	if err := j.eng.finishManifest(j.out, m, &written, &warns); err != nil {
 		return nil, fault.Output(err)
 	}
-	if err := export.WriteManifest(filepath.Join(j.out, "manifest.json"), m); err != nil {
+	if err := export.WriteRunManifest(j.out, m); err != nil {
 		return nil, fault.Output(err)
 	}
 	written = append(written, "manifest.json")
