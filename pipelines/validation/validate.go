@@ -81,6 +81,9 @@ func Validate(ctx context.Context, opt Options) (*Result, error) {
 	if err != nil {
 		return nil, fault.Input(err)
 	}
+	if len(stations) > runspec.MaxStations {
+		return nil, fault.Input(fmt.Errorf("validate: the observation files hold %d stations; at most %d are compared in one validation: split them over several output directories (--out)", len(stations), runspec.MaxStations))
+	}
 	stNames := make([]string, len(stations))
 	for i, st := range stations {
 		stNames[i] = st.Name
