@@ -38,7 +38,7 @@ func TestListLimits(t *testing.T) {
 	scen := "[[screening.layer]]\nname = \"zone\"\nfile = " + fmt.Sprintf("%q", layer) + "\n[[screening.scenario]]\nname = \"core\"\ncriteria = [\"power_mean_kw_m >= 1\"]\n"
 	for _, c := range []struct {
 		name, spec, key string
-		count          int
+		count           int
 	}{
 		{"3000 sites", n(3000, func(i int) string { return fmt.Sprintf("[[site]]\nname = \"s%d\"\nlon = 1\nlat = 50\n", i) }), "site", 3000},
 		{"65 sites", n(65, func(i int) string { return fmt.Sprintf("[[site]]\nname = \"s%d\"\nlon = 1\nlat = 50\n", i) }), "site", 65},
