@@ -597,3 +597,20 @@ func CreateExclusive(path string) (*os.File, error) {
 	}
 	return f, err
 }
+
+// CheckOutputs refuses, right after the lock is taken and before anything
+// is computed, a link (or another non-regular entry) standing at one of
+// the fixed names files, or a non-folder at one of the folders dirs, that a
+// command is about to write in the run directory root (CheckTarget,
+// CheckDirs); missing names are fine. The checks are repeated at each write.
+func CheckOutputs(root string, dirs, files []string) error {
+	if err := CheckDirs(root, dirs...); err != nil {
+		return err
+	}
+	for _, f := range files {
+		if err := CheckTarget(filepath.Join(root, filepath.FromSlash(f)), false); err != nil {
+			return err
+		}
+	}
+	return nil
+}

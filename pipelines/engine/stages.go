@@ -189,7 +189,7 @@ func (j *job) lock() (func(), error) {
 	}
 	// the folders the run makes at its end: a planted link is refused now,
 	// before anything is computed (export.MakeDir checks again)
-	if err := export.CheckDirs(j.out, export.ContourDir, contract.ReportDir); err != nil {
+	if err := export.CheckOutputs(j.out, []string{export.ContourDir, contract.ReportDir}, runFiles()); err != nil {
 		unlock()
 		return nil, fault.Input(err)
 	}
@@ -539,4 +539,15 @@ func (c *checksums) withSums(ids []inputID, n int) ([]inputID, error) {
 func (c *checksums) stop() {
 	c.once.Do(c.cancel)
 	<-c.done
+}
+
+// runFiles are the fixed names a run writes in its directory, checked for
+// planted links before anything is computed (export.CheckOutputs).
+func runFiles() []string {
+	fs := []string{contract.ManifestFile, contract.ManifestSeal, contract.CellsFile, contract.AtlasNCFile, contract.AtlasGPKGFile,
+		contract.ScreeningFile, contract.ParquetFile(contract.TableScreening), contract.ParquetFile(contract.TableMeshNodes), contract.ParquetFile(contract.TableMeshFaces)}
+	for _, n := range runspec.LongTableNames {
+		fs = append(fs, contract.ParquetFile(n))
+	}
+	return fs
 }

@@ -391,6 +391,9 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 		return nil, nil, err
 	}
 	defer unlock()
+	if err := export.CheckOutputs(dir, []string{export.ContourDir, contract.ReportDir}, []string{contract.ManifestFile, contract.ManifestSeal, contract.AtlasGPKGFile, File, "screening.parquet"}); err != nil {
+		return nil, nil, fault.Input(err)
+	}
 	r, err := rundir.Open(dir, raw)
 	if err != nil {
 		return nil, nil, fault.Input(err)

@@ -99,6 +99,39 @@ func Validate(ctx context.Context, opt Options) (*Result, error) {
 	if out == "" {
 		out = opt.RunDir
 	}
+	if err := os.MkdirAll(out, 0o755); err != nil {
+		return nil, fault.Output(fmt.Errorf("validate: output directory %s: %w", out, err))
+	}
+	// In the run directory, the tables are written and the run resealed
+	// under its lock (and through its door: export.OpenDoor); elsewhere
+	// through the output directory's door.
+	inRun := filepath.Clean(out) == filepath.Clean(opt.RunDir)
+	var release func()
+	if inRun {
+		release, err = lock.Dir(out)
+	} else {
+		release, err = export.OpenDoor(out)
+		if err != nil {
+			err = fault.Output(err)
+		}
+	}
+	if err != nil {
+		return nil, err
+	}
+	checked := append([]string{}, contract.SealedExtras...)
+	if inRun {
+		checked = append(checked, contract.ManifestFile, contract.ManifestSeal)
+	}
+	if err := export.CheckOutputs(out, []string{contract.ReportDir}, checked); err != nil {
+		release()
+		return nil, fault.Input(err)
+	}
+	released := false
+	defer func() {
+		if !released {
+			release()
+		}
+	}()
 	v := &validator{cat: cat, spec: spec, vs: vs, consts: seastate.Consts{Rho: spec.Physics.Rho, G: spec.Physics.G}}
 	var places []*stationPlace
 	for _, st := range stations {
@@ -122,31 +155,6 @@ func Validate(ctx context.Context, opt Options) (*Result, error) {
 		}
 		results = append(results, r)
 	}
-	if err := os.MkdirAll(out, 0o755); err != nil {
-		return nil, fault.Output(fmt.Errorf("validate: output directory %s: %w", out, err))
-	}
-	// In the run directory, the tables are written and the run resealed
-	// under its lock (and through its door: export.OpenDoor); elsewhere
-	// through the output directory's door.
-	inRun := filepath.Clean(out) == filepath.Clean(opt.RunDir)
-	var release func()
-	if inRun {
-		release, err = lock.Dir(out)
-	} else {
-		release, err = export.OpenDoor(out)
-		if err != nil {
-			err = fault.Output(err)
-		}
-	}
-	if err != nil {
-		return nil, err
-	}
-	released := false
-	defer func() {
-		if !released {
-			release()
-		}
-	}()
 	res := &Result{OutDir: out}
 	for name, t := range validationTables(results) {
 		if err := export.WriteParquet(filepath.Join(out, name), t); err != nil {
