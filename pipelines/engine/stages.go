@@ -435,6 +435,7 @@ func (j *job) export(ctx context.Context, sums []string) (*Result, error) {
 		return nil, fault.Output(err)
 	}
 	written = append(written, "manifest.json")
+	removePartials(j.out) // leftovers of a killed run that appeared since the start (none of ours: under the lock)
 	return &Result{OutDir: j.out, Files: written, Cells: j.cat.Grid.NCells(), Steps: j.cat.Steps,
 		Warnings: append(j.cat.Warnings, warns...), Wall: time.Since(j.t0)}, nil
 }
