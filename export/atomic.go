@@ -8,6 +8,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 )
 
 // WriteFileAtomic writes a file through write under a temporary name in the
@@ -39,27 +40,37 @@ func WriteFileAtomicMode(path string, perm os.FileMode, write func(w io.Writer) 
 // WriteFileAtomic for a file written over a longer time (a table written
 // as its rows come).
 type AtomicFile struct {
-	path, tmp string
+	path, tmp string // final and temporary names relative to the door
 	mode      os.FileMode
 	f         *os.File
 	bw        *bufio.Writer
 	done      bool
+	d         *door
+	release   func()
 }
 
-// CreateAtomic creates the temporary file of path.
+// CreateAtomic creates the temporary file of path through the door of its
+// run directory (see OpenDoor): a new file of a unique name, opened
+// O_EXCL (never through a link).
 func CreateAtomic(path string) (*AtomicFile, error) {
-	dir, base := filepath.Split(path)
-	if dir == "" {
-		dir = "."
-	}
-	if base == "" {
+	if filepath.Base(path) == "" || strings.HasSuffix(path, string(filepath.Separator)) {
 		return nil, fmt.Errorf("export: %q names a directory, not a file", path)
 	}
-	f, err := os.CreateTemp(dir, "."+base+PartialMark+"*")
+	d, rel, release, err := at(path)
 	if err != nil {
-		return nil, fmt.Errorf("export: cannot create a temporary file for %s (does the output directory exist and is it writable?): %w", path, err)
+		return nil, err
 	}
-	return &AtomicFile{path: path, tmp: f.Name(), mode: 0o644, f: f, bw: bufio.NewWriterSize(f, 1<<20)}, nil
+	tmp := tempName(filepath.Base(path))
+	if dir := filepath.ToSlash(filepath.Dir(rel)); dir != "." {
+		tmp = dir + "/" + tmp
+	}
+	beforeWrite(d.path(tmp))
+	f, err := d.root.OpenFile(tmp, os.O_RDWR|os.O_CREATE|os.O_EXCL, 0o600)
+	if err != nil {
+		release()
+		return nil, fmt.Errorf("export: cannot create a temporary file for %s (does the output directory exist and is it writable?): %w", path, d.explain(tmp, err))
+	}
+	return &AtomicFile{path: rel, tmp: tmp, mode: 0o644, f: f, bw: bufio.NewWriterSize(f, 1<<20), d: d, release: release}, nil
 }
 
 // Write writes to the temporary file.
@@ -68,7 +79,7 @@ func (a *AtomicFile) Write(p []byte) (int, error) { return a.bw.Write(p) }
 // Commit flushes the file to disk (fsync) and renames it to its path, unless
 // the path is a symbolic link (a *LinkError, see RenameInto). When it fails, the temporary file is removed: nothing is left behind.
 func (a *AtomicFile) Commit() error {
-	path := a.path
+	path := a.d.path(a.path)
 	if a.done {
 		return fmt.Errorf("export: %s: committed or aborted already", path)
 	}
@@ -93,13 +104,13 @@ func (a *AtomicFile) commit(path string) error {
 		return fmt.Errorf("export: closing %s: %w", path, err)
 	}
 	a.done = true
-	if err := RenameInto(a.tmp, path); err != nil {
+	defer a.release()
+	if err := a.d.renameInto(a.tmp, a.path); err != nil {
 		return err
 	}
 	// Make the rename itself durable; not every file system supports a
 	// directory fsync, so a failure here is not an error.
-	dir := filepath.Dir(path)
-	if d, err := os.Open(dir); err == nil {
+	if d, err := a.d.root.Open(filepath.ToSlash(filepath.Dir(a.path))); err == nil {
 		d.Sync()
 		d.Close()
 	}
@@ -114,7 +125,8 @@ func (a *AtomicFile) Abort() {
 	}
 	a.done = true
 	a.f.Close()
-	os.Remove(a.tmp)
+	a.d.root.Remove(a.tmp)
+	a.release()
 }
 
 // SHA256File returns the SHA-256 digest of the file at path as lower-case hex.

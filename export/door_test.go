@@ -184,47 +184,161 @@ func TestConcurrentWritersOwnTemps(t *testing.T) {
 	}
 }
 
-// PartialDir gives each library-written file (atlas.nc, atlas.gpkg) its own
-// private folder matched by PartialGlob; RenameInto refuses a final name
-// that is a link and removes the temporary file.
-func TestPartialDirAndRenameInto(t *testing.T) {
+// NewPartial gives each library-written file (atlas.nc, atlas.gpkg) its own
+// private folder matched by PartialGlob, written through its handle;
+// CommitFile refuses a final name that is a link; Close removes the rest.
+func TestPartialAndCommitFile(t *testing.T) {
 	dir := t.TempDir()
 	outside := t.TempDir()
 	c := newCanary(t, outside)
-	p1, clean1, err := PartialDir(dir, "atlas.nc")
+	p1, err := NewPartial(dir, "atlas.nc")
 	if err != nil {
 		t.Fatal(err)
 	}
-	p2, clean2, err := PartialDir(dir, "atlas.nc")
+	p2, err := NewPartial(dir, "atlas.nc")
 	if err != nil {
 		t.Fatal(err)
 	}
-	if p1 == p2 || filepath.Base(p1) != "atlas.nc" {
-		t.Fatalf("temporary paths %s and %s", p1, p2)
+	if p1.File() == p2.File() || filepath.Base(p1.File()) != "atlas.nc" {
+		t.Fatalf("temporary paths %s and %s", p1.File(), p2.File())
 	}
-	if m, _ := filepath.Glob(filepath.Join(dir, PartialGlob)); len(m) != 2 {
+	m, _ := filepath.Glob(filepath.Join(dir, PartialGlob))
+	if len(m) != 2 {
 		t.Fatalf("PartialGlob finds %v, want the 2 temporary folders", m)
 	}
-	os.WriteFile(p1, []byte("one"), 0o644)
-	os.WriteFile(p2, []byte("two"), 0o644)
+	for _, f := range m {
+		if st, err := os.Stat(f); err != nil || st.Mode().Perm() != 0o700 {
+			t.Errorf("%s is not a private folder: %v", f, st.Mode())
+		}
+	}
+	os.WriteFile(p1.File(), []byte("one"), 0o644)
+	os.WriteFile(p2.File(), []byte("two"), 0o644)
+	// the folder of p2 renamed away and a link to the outside planted at its
+	// name: the write through the handle still lands in p2's own folder
+	if _, err := os.Stat("/proc/self/fd"); err == nil && !strings.HasPrefix(p2.Dir, "/proc/self/fd/") {
+		t.Errorf("/proc is mounted but the partial folder is reached by name: %s", p2.Dir)
+	}
+	if strings.HasPrefix(p2.Dir, "/proc/self/fd/") {
+		moved := filepath.Join(dir, "moved")
+		var p2dir string
+		for _, f := range m {
+			if _, err := os.Stat(filepath.Join(f, "atlas.nc")); err == nil {
+				if b, _ := os.ReadFile(filepath.Join(f, "atlas.nc")); string(b) == "two" {
+					p2dir = f
+				}
+			}
+		}
+		if err := os.Rename(p2dir, moved); err != nil {
+			t.Fatal(err)
+		}
+		os.Symlink(outside, p2dir)
+		os.WriteFile(p2.File(), []byte("two!"), 0o644)
+		if b, _ := os.ReadFile(filepath.Join(moved, "atlas.nc")); string(b) != "two!" {
+			t.Errorf("the write by path did not reach the partial folder's handle: %q", b)
+		}
+		c.intact(t)
+		os.Remove(p2dir)
+		os.Rename(moved, p2dir)
+	}
 	final := filepath.Join(dir, "atlas.nc")
 	if err := os.Symlink(c.path, final); err != nil {
 		t.Fatal(err)
 	}
-	if err := RenameInto(p1, final); !IsLink(err) {
-		t.Fatalf("RenameInto over a link: %v", err)
+	if err := p1.CommitFile(final); !IsLink(err) {
+		t.Fatalf("CommitFile over a link: %v", err)
 	}
 	c.intact(t)
 	os.Remove(final)
-	if err := RenameInto(p2, final); err != nil {
+	if err := p2.CommitFile(final); err != nil {
 		t.Fatal(err)
 	}
-	if b, _ := os.ReadFile(final); string(b) != "two" {
+	if b, _ := os.ReadFile(final); string(b) != "two!" && string(b) != "two" {
 		t.Fatalf("atlas.nc is %q", b)
 	}
-	clean1()
-	clean2()
+	p1.Close()
+	p2.Close()
 	if m, _ := filepath.Glob(filepath.Join(dir, PartialGlob)); len(m) != 0 {
 		t.Fatalf("left: %v", m)
+	}
+}
+
+// A link re-planted between the checks and the write (BeforeWrite swaps a
+// folder of the run directory for a link to the outside at the moment of
+// the write) cannot lead any write out: the file, the temporary file, the
+// folder, the private partial folder, the lock file and the hard link are
+// all made through the run directory's handle (os.Root), which refuses the
+// link; the refusal names it (a *LinkError) and the outside is untouched.
+func TestReplantedLinkCannotLeadOut(t *testing.T) {
+	for _, c := range []struct {
+		name  string
+		write func(out string) error
+	}{
+		{"atomic file", func(out string) error {
+			return WriteFileAtomic(filepath.Join(out, ContourDir, "a.geojson"), func(w io.Writer) error { _, err := w.Write([]byte("{}")); return err })
+		}},
+		{"folder", func(out string) error { _, err := MakeDir(out, ContourDir+"/sub"); return err }},
+		{"partial folder", func(out string) error {
+			p, err := NewPartial(filepath.Join(out, ContourDir), "atlas.nc")
+			if err == nil {
+				p.Close()
+			}
+			return err
+		}},
+		{"library file committed", func(out string) error {
+			p, err := NewPartial(out, "atlas.nc")
+			if err != nil {
+				return err
+			}
+			defer p.Close()
+			os.WriteFile(p.File(), []byte("CDF"), 0o644)
+			return p.CommitFile(filepath.Join(out, ContourDir, "atlas.nc"))
+		}},
+		{"exclusive file", func(out string) error {
+			f, err := CreateExclusive(filepath.Join(out, ContourDir, "lock"))
+			if err == nil {
+				f.Close()
+			}
+			return err
+		}},
+		{"hard link", func(out string) error {
+			src := filepath.Join(out, "src.bin")
+			os.WriteFile(src, []byte("state"), 0o644)
+			return LinkInto(src, filepath.Join(out, ContourDir, "pass.ckpt"))
+		}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			tmp := t.TempDir()
+			outside := filepath.Join(tmp, "outside")
+			os.Mkdir(outside, 0o755)
+			canary := newCanary(t, outside)
+			out := filepath.Join(tmp, "out")
+			os.Mkdir(out, 0o755)
+			os.Mkdir(filepath.Join(out, ContourDir), 0o755)
+			closeDoor, err := OpenDoor(out)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer closeDoor()
+			link := filepath.Join(out, ContourDir)
+			planted := false
+			BeforeWrite = func(path string) {
+				if !planted && strings.HasPrefix(path, link+string(filepath.Separator)) {
+					planted = true
+					os.RemoveAll(link)
+					if err := os.Symlink(outside, link); err != nil {
+						t.Error(err)
+					}
+				}
+			}
+			defer func() { BeforeWrite = nil }()
+			err = c.write(out)
+			if !planted {
+				t.Fatal("the hook was not called before the write")
+			}
+			if !IsLink(err) || !strings.Contains(err.Error(), link) {
+				t.Errorf("want a LinkError naming %s, got %v", link, err)
+			}
+			canary.intact(t)
+		})
 	}
 }

@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"slices"
 	"swellgrid/export/contract"
 )
 
@@ -25,6 +26,33 @@ func WriteManifest(path string, m any) error {
 	}
 	return WriteFileAtomic(path, func(w io.Writer) error {
 		_, err := w.Write(buf.Bytes())
+		return err
+	})
+}
+
+// WriteRunManifest writes the manifest m of the run directory dir
+// (WriteManifest) and then its seal (SealManifest).
+func WriteRunManifest(dir string, m any) error {
+	if err := WriteManifest(filepath.Join(dir, contract.ManifestFile), m); err != nil {
+		return err
+	}
+	return SealManifest(dir)
+}
+
+// SealManifest writes the SHA-256 of dir/manifest.json to the run's sealed
+// state (contract.ManifestSeal, in .swellgrid/): rundir verifies the
+// manifest against it before reading a finished run, so that a changed
+// digit in manifest.json is refused rather than used.
+func SealManifest(dir string) error {
+	h, err := SHA256File(filepath.Join(dir, contract.ManifestFile))
+	if err != nil {
+		return err
+	}
+	if _, err := MakeDir(dir, contract.StateDir); err != nil {
+		return err
+	}
+	return WriteFileAtomic(filepath.Join(dir, filepath.FromSlash(contract.ManifestSeal)), func(w io.Writer) error {
+		_, err := fmt.Fprintf(w, "%s  %s\n", h, contract.ManifestFile)
 		return err
 	})
 }
@@ -132,10 +160,12 @@ func OutputChecksums(dir string, outputs []string) ([]contract.FileSum, error) {
 }
 
 // Reseal recomputes the output_checksums of dir/manifest.json over its
-// outputs list after a command rewrote files of a finished run (report,
-// screen), keeping every other byte of the manifest's content. A manifest
-// without output_checksums (a run of an earlier version) is left as it is:
-// resealing it would vouch for files nobody checked.
+// outputs list and the contract.SealedExtras present (validation's files)
+// after a command rewrote files of a finished run (report, screen,
+// validate), keeping every other byte of the manifest's content, and seals
+// the manifest again (SealManifest). It must run under the run's lock. A
+// manifest without output_checksums (a run of an earlier version) is left
+// as it is: resealing it would vouch for files nobody checked.
 func Reseal(dir string) error {
 	path := filepath.Join(dir, contract.ManifestFile)
 	raw, err := os.ReadFile(path)
@@ -152,7 +182,13 @@ func Reseal(dir string) error {
 	if m.Sums == nil {
 		return nil
 	}
-	sums, err := OutputChecksums(dir, m.Outputs)
+	files := append([]string{}, m.Outputs...)
+	for _, x := range contract.SealedExtras {
+		if st, err := os.Lstat(filepath.Join(dir, x)); err == nil && st.Mode().IsRegular() && !slices.Contains(files, x) {
+			files = append(files, x)
+		}
+	}
+	sums, err := OutputChecksums(dir, files)
 	if err != nil {
 		return err
 	}
@@ -160,5 +196,5 @@ func Reseal(dir string) error {
 	if err != nil {
 		return fmt.Errorf("export: %s: %w", path, err)
 	}
-	return WriteManifest(path, json.RawMessage(doc))
+	return WriteRunManifest(dir, json.RawMessage(doc))
 }

@@ -1,6 +1,7 @@
 package ingest
 
 import (
+	"bufio"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -21,6 +22,14 @@ import (
 // from, nautical). Lines starting with # are comments (a file says there
 // where its values come from). An empty value, "NaN" or "NA" is missing.
 var CSVColumns = []string{"time", "station", "lon", "lat", "hm0_m", "te_s", "tp_s", "dir_deg"}
+
+// Limits of an observation CSV file: a value (time, station name, number)
+// and a comment line, in bytes. Longer ones are refused, quoting a short
+// prefix (ShortText).
+const (
+	MaxCSVValue      = 256
+	maxCSVCommentLen = 4096
+)
 
 var csvRole = map[string]Role{"hm0_m": Hm0, "te_s": Te, "tp_s": Tp, "dir_deg": Dir}
 
@@ -99,6 +108,11 @@ func ReadObservationCSV(path string) ([]*Station, error) {
 		}
 		if len(rec) != len(header) {
 			return nil, bad(line, "", "%d fields, the header has %d; every row needs a value (possibly empty) for each column", len(rec), len(header))
+		}
+		for k, v := range rec {
+			if len(v) > MaxCSVValue {
+				return nil, bad(line, header[k], "a value of %d bytes (%q); a value of an observation CSV is at most %d bytes (a station name at most 200): fix the file", len(v), ShortText(v), MaxCSVValue)
+			}
 		}
 		get := func(c string) string { return strings.TrimSpace(rec[idx[c]]) }
 		ts := get("time")
@@ -199,7 +213,7 @@ func parseISOTime(s string) (Date, error) {
 	}
 	for _, l := range []string{"2006-01-02T15:04:05", "2006-01-02 15:04:05", "2006-01-02T15:04", "2006-01-02 15:04", "2006-01-02"} {
 		if _, err := time.Parse(l, s); err == nil {
-			return Date{}, fmt.Errorf("time %q has no zone; write it in ISO 8601 with a zone, e.g. %sZ for UTC or with an offset such as +01:00", ShortText(s), TermText(strings.Replace(s, " ", "T", 1)))
+			return Date{}, fmt.Errorf("time %q has no zone; write it in ISO 8601 with a zone, e.g. %sZ for UTC or with an offset such as +01:00", ShortText(s), ShortText(strings.Replace(s, " ", "T", 1)))
 		}
 	}
 	return Date{}, fmt.Errorf("%q is not an ISO 8601 time with a zone (e.g. 2031-01-01T00:00:00Z)", ShortText(s))
@@ -215,11 +229,21 @@ func readCSVComments(path string, st []*Station) error {
 		return fmt.Errorf("ingest: %w", err)
 	}
 	defer fh.Close()
-	b, err := io.ReadAll(fh)
-	if err != nil {
-		return fmt.Errorf("ingest: %s: %w", TermText(path), err)
-	}
-	for _, l := range strings.Split(string(b), "\n") {
+	// Only the leading comment lines are read, each at most maxCSVCommentLen
+	// bytes.
+	br := bufio.NewReaderSize(fh, maxCSVCommentLen+2)
+	for n := 1; ; n++ {
+		raw, err := br.ReadSlice('\n')
+		if errors.Is(err, bufio.ErrBufferFull) {
+			if len(raw) > 0 && raw[0] == '#' {
+				return fmt.Errorf("ingest: %s:%d: a comment line of more than %d bytes (%q); shorten it", TermText(path), n, maxCSVCommentLen, ShortText(string(raw)))
+			}
+			break
+		}
+		if err != nil && !errors.Is(err, io.EOF) {
+			return fmt.Errorf("ingest: %s: %w", TermText(path), err)
+		}
+		l := strings.TrimRight(string(raw), "\r\n")
 		if !strings.HasPrefix(l, "#") {
 			break
 		}
@@ -241,6 +265,9 @@ func readCSVComments(path string, st []*Station) error {
 			} else {
 				s.Attrs[k] = strings.TrimSpace(v)
 			}
+		}
+		if err != nil { // io.EOF after the last line
+			break
 		}
 	}
 	return nil

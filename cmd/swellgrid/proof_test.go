@@ -194,6 +194,7 @@ func TestUncheckedRunReadWithWarning(t *testing.T) {
 	delete(doc, contract.ManifestChecksumsKey)
 	b, _ = json.MarshalIndent(doc, "", "  ")
 	os.WriteFile(mpath, b, 0o644)
+	os.Remove(filepath.Join(dir, filepath.FromSlash(contract.ManifestSeal))) // an earlier version wrote none
 	r, err := rundir.Open(dir, nil)
 	if err != nil {
 		t.Fatal(err)

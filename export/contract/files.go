@@ -12,7 +12,16 @@ const (
 	ReportDir      = "report"          // sub-directory of the HTML report
 	ReportIndex    = "index.html"      // the report's first page, in ReportDir
 	StateDir       = ".swellgrid"      // the run's state: checkpoints, the lock, a cluster's scripts; no output
+	// ManifestSeal holds the SHA-256 of manifest.json ("<hex>  manifest.json",
+	// as sha256sum writes it): the manifest cannot hold its own checksum.
+	ManifestSeal = StateDir + "/manifest.sha256"
 )
+
+// SealedExtras are files that commands other than the run add to a finished
+// run directory (swellgrid validate) without listing them in its outputs:
+// when present, their size and SHA-256 are in the manifest's
+// output_checksums too (export.Reseal), and readers verify them.
+var SealedExtras = []string{ValidationFile, TableValidation + ".parquet", TableValidationQQ + ".parquet", TableValidationPairs + ".parquet"}
 
 // Long tables of a run directory by name: the file is the name with
 // ".parquet" (ParquetFile).

@@ -121,16 +121,17 @@ func Write(r *rundir.Run) error {
 		return err
 	}
 	final := filepath.Join(r.Dir, FileName)
-	tmp, cleanup, err := export.PartialDir(r.Dir, FileName)
+	part, err := export.NewPartial(r.Dir, FileName)
 	if err != nil {
 		return err
 	}
-	defer cleanup()
+	defer part.Close()
+	tmp := part.File() // NetCDF-C and SQLite write by path: see export.Partial
 	if err := write(tmp, stamp(r.Manifest.End), layers, styles(r, layers)); err != nil {
 		err = rundir.NoSpace(r.Dir, err) // SQLite says "database or disk is full"; before the partial file's space is freed
 		return fmt.Errorf("gpkg: writing %s: %w", final, err)
 	}
-	return export.RenameInto(tmp, final)
+	return part.CommitFile(final)
 }
 
 // stamp is the last_change of every layer: the end of the hindcast record,

@@ -71,11 +71,12 @@ func Write(r *rundir.Run) error {
 		return err
 	}
 	final := filepath.Join(r.Dir, FileName)
-	tmp, cleanup, err := export.PartialDir(r.Dir, FileName)
+	part, err := export.NewPartial(r.Dir, FileName)
 	if err != nil {
 		return err
 	}
-	defer cleanup()
+	defer part.Close()
+	tmp := part.File() // NetCDF-C and SQLite write by path: see export.Partial
 	err = ingest.WithNetCDF(func() error {
 		if r.Mesh != nil {
 			return writeMesh(tmp, r, monthly) // ugrid.go
@@ -86,7 +87,7 @@ func Write(r *rundir.Run) error {
 		err = rundir.NoSpace(r.Dir, err) // NetCDF-C says only "HDF error"; before the partial file's space is freed
 		return fmt.Errorf("raster: writing %s: %w", final, err)
 	}
-	return export.RenameInto(tmp, final)
+	return part.CommitFile(final)
 }
 
 func text(a netcdf.Attr, s string) error { return a.WriteBytes([]byte(s)) }

@@ -100,16 +100,12 @@ func Build(r *rundir.Run) ([]string, []string, error) { return BuildWith(r, 0) }
 // BuildWith is Build rendering the figures with at most workers goroutines
 // (0: one per core). The files do not depend on the number.
 func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
-	tmp, err := os.MkdirTemp(r.Dir, "."+Dir+export.PartialMark)
+	part, err := export.NewPartial(r.Dir, Dir)
 	if err != nil {
 		return nil, nil, fmt.Errorf("report: %w", err)
 	}
-	done := false
-	defer func() {
-		if !done {
-			os.RemoveAll(tmp)
-		}
-	}()
+	defer part.Close()
+	tmp := part.Dir // a private new folder, reached through its handle (export.Partial)
 	var files, warns, notes []string
 	add := func(names ...string) {
 		for _, n := range names {
@@ -217,25 +213,9 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 	if err := renderAll(tmp, queue, workers); err != nil {
 		return nil, nil, err
 	}
-	final := filepath.Join(r.Dir, Dir)
-	old := final + ".old"
-	os.RemoveAll(old)
-	if err := export.CheckTarget(final, true); err != nil {
-		return nil, nil, err
+	if err := part.CommitFolder(filepath.Join(r.Dir, Dir)); err != nil {
+		return nil, nil, fmt.Errorf("report: %w", err)
 	}
-	if err := export.CheckTarget(old, true); err != nil {
-		return nil, nil, err
-	}
-	if _, err := os.Lstat(final); err == nil {
-		if err := os.Rename(final, old); err != nil {
-			return nil, nil, fmt.Errorf("report: moving the earlier %s aside: %w", final, err)
-		}
-	}
-	if err := os.Rename(tmp, final); err != nil {
-		return nil, nil, fmt.Errorf("report: renaming the finished report into %s: %w", final, err)
-	}
-	done = true
-	os.RemoveAll(old)
 	sort.Strings(files)
 	return files, append(warns, notes...), nil
 }

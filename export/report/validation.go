@@ -30,17 +30,23 @@ type validationLink struct {
 // with the density of the pairs, a Q-Q plot and a time-series overlay of the
 // chosen period. It only draws what the validation tables hold.
 func validationPages(r *rundir.Run, tmp string, v *indexView, add func(...string)) ([]validationLink, error) {
-	b, err := os.ReadFile(filepath.Join(r.Dir, contract.ValidationFile))
-	if err != nil {
+	if _, err := os.Stat(filepath.Join(r.Dir, contract.ValidationFile)); err != nil {
 		return nil, nil // no validation yet
+	}
+	b, err := r.ReadFile(contract.ValidationFile) // verified when sealed
+	if err != nil {
+		return nil, err
 	}
 	var sum contract.ValidationSummary
 	if err := json.Unmarshal(b, &sum); err != nil {
 		return nil, fmt.Errorf("report: %s/validation.json: %w", r.Dir, err)
 	}
 	stats, err := r.Table(contract.TableValidation)
-	if err != nil || stats == nil {
-		return nil, fmt.Errorf("report: %s has validation.json but no readable validation.parquet (%v); run swellgrid validate again", r.Dir, err)
+	if err != nil {
+		return nil, fmt.Errorf("report: %w", err) // a damaged table stays a DamagedError (exit 2)
+	}
+	if stats == nil {
+		return nil, fmt.Errorf("report: %s has validation.json but no validation.parquet; run swellgrid validate again", r.Dir)
 	}
 	qq, err := r.Table(contract.TableValidationQQ)
 	if err != nil {

@@ -479,14 +479,77 @@ type Run struct {
 	verified map[string]error // verify's verdicts
 }
 
+// ReadManifest reads dir/manifest.json and proves it against its seal
+// (contract.ManifestSeal, the SHA-256 the run wrote in its sealed state):
+// a manifest that differs from its seal, or that records output checksums
+// but has no seal, is refused with a *DamagedError. A manifest of an
+// earlier version (no output_checksums, no seal) is returned as it is
+// (Open warns that it is unchecked).
+func ReadManifest(dir string) ([]byte, error) {
+	path := filepath.Join(dir, contract.ManifestFile)
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("rundir: %s is not a finished run directory (no manifest.json; run `swellgrid run` or `swellgrid merge` first): %w", dir, err)
+	}
+	sealPath := filepath.Join(dir, filepath.FromSlash(contract.ManifestSeal))
+	seal, serr := readSeal(sealPath)
+	if serr == nil {
+		sum := sha256.Sum256(b)
+		if seal != hex.EncodeToString(sum[:]) {
+			return nil, &DamagedError{Path: path, Why: fmt.Sprintf("differs from its seal %s (SHA-256 %.12s..., the manifest's %.12s...): it was changed after the run wrote it", sealPath, seal, hex.EncodeToString(sum[:]))}
+		}
+		return b, nil
+	}
+	var top struct {
+		Sums json.RawMessage `json:"output_checksums"`
+	}
+	if jerr := json.Unmarshal(b, &top); jerr != nil || len(top.Sums) > 0 {
+		return nil, &DamagedError{Path: path, Why: fmt.Sprintf("has no valid seal (%v); the run directory was copied without its %s folder, or changed", serr, contract.StateDir)}
+	}
+	return b, nil
+}
+
+// readSeal reads a seal ("<64 hex digits>  manifest.json"), a regular file
+// of at most 256 bytes.
+func readSeal(path string) (string, error) {
+	st, err := os.Lstat(path)
+	if err != nil {
+		return "", err
+	}
+	if !st.Mode().IsRegular() || st.Size() > 256 {
+		return "", fmt.Errorf("%s is not a seal", path)
+	}
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return "", err
+	}
+	f := strings.Fields(string(b))
+	if len(f) != 2 || len(f[0]) != 64 || f[1] != contract.ManifestFile {
+		return "", fmt.Errorf("%s is not a seal", path)
+	}
+	if _, err := hex.DecodeString(f[0]); err != nil {
+		return "", fmt.Errorf("%s is not a seal", path)
+	}
+	return strings.ToLower(f[0]), nil
+}
+
+// ReadFile reads the file rel of the run directory after verifying it
+// against the manifest's output_checksums when they list it (validation.json).
+func (r *Run) ReadFile(rel string) ([]byte, error) {
+	if err := r.verify(rel); err != nil {
+		return nil, err
+	}
+	return os.ReadFile(filepath.Join(r.Dir, filepath.FromSlash(rel)))
+}
+
 // Open reads the manifest and cells.parquet of the run directory dir. The
 // manifest bytes may be given (a run that is about to write its manifest);
 // nil reads dir/manifest.json.
 func Open(dir string, manifest []byte) (*Run, error) {
 	if manifest == nil {
-		b, err := os.ReadFile(filepath.Join(dir, contract.ManifestFile))
+		b, err := ReadManifest(dir)
 		if err != nil {
-			return nil, fmt.Errorf("rundir: %s is not a finished run directory (no manifest.json; run `swellgrid run` or `swellgrid merge` first): %w", dir, err)
+			return nil, err
 		}
 		manifest = b
 	}

@@ -1,7 +1,6 @@
 package engine
 
 import (
-	"path/filepath"
 	"time"
 
 	"swellgrid/export"
@@ -30,7 +29,7 @@ func (e *engine) finishManifest(out string, m *runManifest, written, warns *[]st
 	if m.OutputChecksums, err = export.OutputChecksums(out, m.Outputs); err != nil {
 		return err
 	}
-	if err := export.WriteManifest(filepath.Join(out, "manifest.json"), m); err != nil {
+	if err := export.WriteRunManifest(out, m); err != nil {
 		return err
 	}
 	t0 := time.Now()

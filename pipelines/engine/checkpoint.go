@@ -364,17 +364,12 @@ func (h *ckHeader) mismatch(w ckHeader, trusted int) string {
 
 // removePartials deletes the temporary files and folders
 // (export.PartialGlob: ".<name>.partial-*", see export.WriteFileAtomic and
-// export.PartialDir) that a run killed while writing left in the run
-// directory, its contours folder and its state folder. It runs under the lock,
-// so no live run owns them. A link is removed, never followed (RemoveAll).
+// export.Partial) that a run killed while writing left in the run
+// directory, its contours folder and its state folder (with its shards'
+// folder). It runs under the lock, so no live run owns them, through the
+// run directory's door: a link is removed, never followed.
 func removePartials(out string) {
-	for i, d := range []string{out, filepath.Join(out, export.ContourDir), filepath.Join(out, lock.StateDir)} {
-		if st, err := os.Lstat(d); i > 0 && (err != nil || !st.IsDir()) {
-			continue // --out may be a link, its folders may not
-		}
-		m, _ := filepath.Glob(filepath.Join(d, export.PartialGlob))
-		for _, p := range m {
-			os.RemoveAll(p)
-		}
+	for _, d := range []string{".", export.ContourDir, lock.StateDir, lock.StateDir + "/shards"} {
+		export.RemovePartials(out, d)
 	}
 }

@@ -266,15 +266,8 @@ func sameInputs(a, b []contract.Input) string {
 // existing name) and is renamed only over a dst that is not a symbolic link
 // (export.RenameInto).
 func copyFile(src, dst string) error {
-	if t, err := os.CreateTemp(filepath.Dir(dst), "."+filepath.Base(dst)+export.PartialMark+"*"); err == nil {
-		tmp := t.Name()
-		t.Close()
-		os.Remove(tmp)
-		if os.Link(src, tmp) == nil {
-			if err := export.RenameInto(tmp, dst); err == nil || export.IsLink(err) {
-				return err
-			}
-		}
+	if err := export.LinkInto(src, dst); err == nil || export.IsLink(err) {
+		return err
 	}
 	f, err := os.Open(src)
 	if err != nil {

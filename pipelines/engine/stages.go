@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"log/slog"
 	"os"
-	"path/filepath"
 	"runtime"
 	"sync"
 	"time"
@@ -190,7 +189,7 @@ func (j *job) lock() (func(), error) {
 	}
 	// the folders the run makes at its end: a planted link is refused now,
 	// before anything is computed (export.MakeDir checks again)
-	if err := export.CheckDirs(j.out, export.ContourDir, contract.ReportDir); err != nil {
+	if err := export.CheckOutputs(j.out, []string{export.ContourDir, contract.ReportDir}, runFiles()); err != nil {
 		unlock()
 		return nil, fault.Input(err)
 	}
@@ -432,10 +431,11 @@ func (j *job) export(ctx context.Context, sums []string) (*Result, error) {
 	if err := j.eng.finishManifest(j.out, m, &written, &warns); err != nil {
 		return nil, fault.Output(err)
 	}
-	if err := export.WriteManifest(filepath.Join(j.out, "manifest.json"), m); err != nil {
+	if err := export.WriteRunManifest(j.out, m); err != nil {
 		return nil, fault.Output(err)
 	}
 	written = append(written, "manifest.json")
+	removePartials(j.out) // leftovers of a killed run that appeared since the start (none of ours: under the lock)
 	return &Result{OutDir: j.out, Files: written, Cells: j.cat.Grid.NCells(), Steps: j.cat.Steps,
 		Warnings: append(j.cat.Warnings, warns...), Wall: time.Since(j.t0)}, nil
 }
@@ -540,4 +540,15 @@ func (c *checksums) withSums(ids []inputID, n int) ([]inputID, error) {
 func (c *checksums) stop() {
 	c.once.Do(c.cancel)
 	<-c.done
+}
+
+// runFiles are the fixed names a run writes in its directory, checked for
+// planted links before anything is computed (export.CheckOutputs).
+func runFiles() []string {
+	fs := []string{contract.ManifestFile, contract.ManifestSeal, contract.CellsFile, contract.AtlasNCFile, contract.AtlasGPKGFile,
+		contract.ScreeningFile, contract.ParquetFile(contract.TableScreening), contract.ParquetFile(contract.TableMeshNodes), contract.ParquetFile(contract.TableMeshFaces)}
+	for _, n := range runspec.LongTableNames {
+		fs = append(fs, contract.ParquetFile(n))
+	}
+	return fs
 }

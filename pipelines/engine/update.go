@@ -13,7 +13,9 @@ import (
 	"strings"
 
 	"swellgrid/export/contract"
+	"swellgrid/export/rundir"
 	"swellgrid/ingest"
+	"swellgrid/pipelines/fault"
 	"swellgrid/pipelines/lock"
 	"swellgrid/pipelines/runspec"
 )
@@ -67,6 +69,11 @@ func readPriorRun(dir string) (*priorRun, error) {
 		return &priorRun{inputs: m.Inputs, spec: b, shard: m, durations: m.StepDurations}, nil
 	}
 	path := filepath.Join(dir, "manifest.json")
+	if _, err := os.Stat(path); err == nil {
+		if _, err := rundir.ReadManifest(dir); err != nil { // proved against its seal
+			return nil, fault.Input(err)
+		}
+	}
 	b, err := os.ReadFile(path)
 	if err != nil {
 		if errors.Is(err, os.ErrNotExist) {

@@ -145,7 +145,25 @@ func (li *lockInfo) holder(out string) (why string, live bool) {
 
 // Dir takes the run directory's lock. A lock whose process is gone is
 // taken over; see the comment at the top of this file.
+//
+// While the lock is held, the run directory is the door of every write
+// below it (export.OpenDoor): files and folders are created through its
+// handle, never through a link planted in it. The returned release closes
+// the door and removes the lock.
 func Dir(out string) (func(), error) {
+	closeDoor, err := export.OpenDoor(out)
+	if err != nil {
+		return nil, fault.Output(fmt.Errorf("output directory %s: %w", out, err))
+	}
+	release, err := take(out)
+	if err != nil {
+		closeDoor()
+		return nil, err
+	}
+	return func() { release(); closeDoor() }, nil
+}
+
+func take(out string) (func(), error) {
 	if _, err := export.MakeDir(out, StateDir); err != nil {
 		return nil, fault.Output(fmt.Errorf("output directory %s: %w", out, err)) // a planted link: bad input (export.LinkError)
 	}
@@ -156,7 +174,7 @@ func Dir(out string) (func(), error) {
 	me := myLock()
 	body, _ := json.Marshal(me)
 	for attempt := 0; attempt < 2; attempt++ {
-		f, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o644)
+		f, err := export.CreateExclusive(path)
 		if err == nil {
 			_, werr := f.Write(append(body, '\n'))
 			if cerr := f.Close(); werr == nil {

@@ -11,6 +11,7 @@ import (
 	"path/filepath"
 
 	"swellgrid/export"
+	"swellgrid/export/contract"
 	"swellgrid/export/gpkg"
 	"swellgrid/export/raster"
 	atlasreport "swellgrid/export/report"
@@ -117,6 +118,9 @@ func Rebuild(dir string, p Products) ([]string, []string, error) {
 		return nil, nil, err
 	}
 	defer unlock()
+	if err := export.CheckOutputs(dir, []string{contract.ReportDir}, []string{contract.ManifestFile, contract.ManifestSeal, contract.AtlasNCFile, contract.AtlasGPKGFile}); err != nil {
+		return nil, nil, fault.Input(err)
+	}
 	if _, err := rundir.Open(dir, nil); err != nil {
 		return nil, nil, fault.Input(err)
 	}

@@ -11,6 +11,10 @@ import (
 const (
 	maxFileName = 255 // bytes of a file name on the usual file systems (ext4, XFS, NTFS, APFS: common practice)
 	maxNameLen  = 200 // bytes of a site or station name
+	// MaxStations is the most stations one validation compares: each gets a
+	// page with three figures (the work is linear in their number; the
+	// limit keeps a file of invented stations from running for hours).
+	MaxStations = 1000
 )
 
 // CheckFileNames checks names that become parts of file names (the report's

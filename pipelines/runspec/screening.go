@@ -180,8 +180,13 @@ func (s *Spec) checkScreening(devices map[string]bool) error {
 			return fmt.Errorf("spec: %s.name = %q appears twice", key, c.Name)
 		}
 		seen[c.Name] = true
-		if err := withinLimit(key+".criteria", len(c.Criteria)); err != nil {
-			return err
+		for _, l := range []struct {
+			k string
+			n int
+		}{{".criteria", len(c.Criteria)}, {".exclude", len(c.Exclude)}, {".within", len(c.Within)}, {".distance", len(c.Distance)}} {
+			if err := withinLimit(key+l.k, l.n); err != nil {
+				return err
+			}
 		}
 		for k, t := range c.Criteria {
 			if _, err := ParseCriterion(t); err != nil {

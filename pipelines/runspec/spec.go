@@ -365,7 +365,8 @@ func (s *Spec) Validate() error {
 		n   int
 	}{{"statistics.percentiles", len(st.Percentiles)}, {"statistics.window_limits_m", len(st.WindowLimitsM)},
 		{"statistics.window_durations_h", len(st.WindowDurationsH)}, {"extremes.return_periods_y", len(s.Extremes.ReturnPeriodsY)},
-		{"device", len(s.Devices)}, {"contours.columns", len(s.Contours.Columns)}, {"design.return_periods_y", len(s.Design.ReturnPeriodsY)}} {
+		{"device", len(s.Devices)}, {"contours.columns", len(s.Contours.Columns)}, {"design.return_periods_y", len(s.Design.ReturnPeriodsY)},
+		{"site", len(s.Sites)}, {"input.paths", len(s.Input.Paths)}, {"uncertainty.horizons_y", len(s.Uncertainty.HorizonsY)}} {
 		if err := withinLimit(l.key, l.n); err != nil {
 			return err
 		}
@@ -528,7 +529,7 @@ func (s *Spec) Validate() error {
 // Limits of the spec: lists longer than these are refused (each entry adds
 // columns or rows to every cell, or work to every step).
 const (
-	maxListLen        = 64      // percentiles, periods, window limits and durations, devices, contour columns and levels
+	maxListLen        = 64      // every list: percentiles, periods, window limits and durations, devices, sites, input paths, contour columns and levels, screening layers, scenarios and their criteria, exclude, within and distance rules, observation paths
 	maxDeviceName     = 40      // characters
 	maxMatrixBytes    = 1 << 20 // a power-matrix CSV
 	maxMatrixRows     = 1000    // rows (and cells per row) of a power matrix
@@ -539,7 +540,14 @@ var deviceName = regexp.MustCompile(fmt.Sprintf(`^[a-z][a-z0-9_]{0,%d}$`, maxDev
 
 func withinLimit(key string, n int) error {
 	if n > maxListLen {
-		return fmt.Errorf("spec: %s has %d entries; at most %d are allowed", key, n, maxListLen)
+		hint := ""
+		switch key {
+		case "input.paths":
+			hint = " (give a directory or a glob for many files)"
+		case "site":
+			hint = " (for more places, run on a point set: every point gets a page)"
+		}
+		return fmt.Errorf("spec: %s has %d entries; at most %d are allowed%s", key, n, maxListLen, hint)
 	}
 	return nil
 }

@@ -76,6 +76,9 @@ func (v *ValidationSpec) Check() error {
 	bad := func(key, why string, x any) error {
 		return fmt.Errorf("spec: validation.%s = %v: %s", key, x, why)
 	}
+	if err := withinLimit("validation.observations", len(v.Observations)); err != nil {
+		return err
+	}
 	switch {
 	case !(o.MaxDistanceKm > 0 && o.MaxDistanceKm <= 500):
 		return bad("max_distance_km", "must be a distance in km, 0 < d <= 500", o.MaxDistanceKm)

@@ -378,9 +378,9 @@ func ptrOrNil(p *float64) any {
 // atlas.gpkg where the run has them. It returns the files written.
 func Rescreen(dir, specPath string) ([]string, []string, error) {
 	mpath := filepath.Join(dir, "manifest.json")
-	raw, err := os.ReadFile(mpath)
+	raw, err := rundir.ReadManifest(dir) // proved against its seal
 	if err != nil {
-		return nil, nil, fault.Input(fmt.Errorf("screen: %s is not a finished run directory (no manifest.json); run `swellgrid run` first: %w", dir, err))
+		return nil, nil, fault.Input(fmt.Errorf("screen: %w", err))
 	}
 	spec, err := runspec.LoadScreeningSpec(specPath)
 	if err != nil {
@@ -391,6 +391,9 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 		return nil, nil, err
 	}
 	defer unlock()
+	if err := export.CheckOutputs(dir, []string{export.ContourDir, contract.ReportDir}, []string{contract.ManifestFile, contract.ManifestSeal, contract.AtlasGPKGFile, File, "screening.parquet"}); err != nil {
+		return nil, nil, fault.Input(err)
+	}
 	r, err := rundir.Open(dir, raw)
 	if err != nil {
 		return nil, nil, fault.Input(err)
@@ -445,7 +448,7 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 	}
 	_, hasReport := os.Stat(filepath.Join(dir, "report", "index.html"))
 	_, hasGpkg := os.Stat(filepath.Join(dir, "atlas.gpkg"))
-	if err := export.WriteManifest(mpath, json.RawMessage(m)); err != nil {
+	if err := export.WriteRunManifest(dir, json.RawMessage(m)); err != nil {
 		return nil, nil, fault.Output(err)
 	}
 	pf, warns, err := products.Build(dir, nil, products.Products{Report: hasReport == nil, GeoPackage: hasGpkg == nil})

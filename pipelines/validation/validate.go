@@ -18,6 +18,7 @@ import (
 	"swellgrid/grid"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/lock"
 	"swellgrid/pipelines/products"
 	"swellgrid/pipelines/runspec"
 	"swellgrid/pipelines/tables"
@@ -80,6 +81,9 @@ func Validate(ctx context.Context, opt Options) (*Result, error) {
 	if err != nil {
 		return nil, fault.Input(err)
 	}
+	if len(stations) > runspec.MaxStations {
+		return nil, fault.Input(fmt.Errorf("validate: the observation files hold %d stations; at most %d are compared in one validation: split them over several output directories (--out)", len(stations), runspec.MaxStations))
+	}
 	stNames := make([]string, len(stations))
 	for i, st := range stations {
 		stNames[i] = st.Name
@@ -95,6 +99,39 @@ func Validate(ctx context.Context, opt Options) (*Result, error) {
 	if out == "" {
 		out = opt.RunDir
 	}
+	if err := os.MkdirAll(out, 0o755); err != nil {
+		return nil, fault.Output(fmt.Errorf("validate: output directory %s: %w", out, err))
+	}
+	// In the run directory, the tables are written and the run resealed
+	// under its lock (and through its door: export.OpenDoor); elsewhere
+	// through the output directory's door.
+	inRun := filepath.Clean(out) == filepath.Clean(opt.RunDir)
+	var release func()
+	if inRun {
+		release, err = lock.Dir(out)
+	} else {
+		release, err = export.OpenDoor(out)
+		if err != nil {
+			err = fault.Output(err)
+		}
+	}
+	if err != nil {
+		return nil, err
+	}
+	checked := append([]string{}, contract.SealedExtras...)
+	if inRun {
+		checked = append(checked, contract.ManifestFile, contract.ManifestSeal)
+	}
+	if err := export.CheckOutputs(out, []string{contract.ReportDir}, checked); err != nil {
+		release()
+		return nil, fault.Input(err)
+	}
+	released := false
+	defer func() {
+		if !released {
+			release()
+		}
+	}()
 	v := &validator{cat: cat, spec: spec, vs: vs, consts: seastate.Consts{Rho: spec.Physics.Rho, G: spec.Physics.G}}
 	var places []*stationPlace
 	for _, st := range stations {
@@ -118,9 +155,6 @@ func Validate(ctx context.Context, opt Options) (*Result, error) {
 		}
 		results = append(results, r)
 	}
-	if err := os.MkdirAll(out, 0o755); err != nil {
-		return nil, fault.Output(fmt.Errorf("validate: output directory %s: %w", out, err))
-	}
 	res := &Result{OutDir: out}
 	for name, t := range validationTables(results) {
 		if err := export.WriteParquet(filepath.Join(out, name), t); err != nil {
@@ -133,9 +167,16 @@ func Validate(ctx context.Context, opt Options) (*Result, error) {
 		return nil, fault.Output(err)
 	}
 	res.Files = append(res.Files, "validation.json")
+	if inRun {
+		if err := export.Reseal(out); err != nil { // validation's files are sealed with the run
+			return nil, fault.Output(err)
+		}
+	}
+	released = true
+	release()
 	// The run's report gets its station pages now (swellgrid report DIR
 	// rebuilds them later too).
-	if filepath.Clean(out) == filepath.Clean(opt.RunDir) {
+	if inRun {
 		if _, err := os.Stat(filepath.Join(out, "report", "index.html")); err == nil {
 			files, warns, err := products.Rebuild(out, products.Products{Report: true})
 			if err != nil {
