@@ -35,6 +35,7 @@ const (
 	TableDesign               = "design"
 	TableDirections           = "directions"
 	TableAnnual               = "annual"
+	TableAnnualMaxima         = "annual_maxima"
 	TableAEPBands             = "aep_bands"
 	TableScreening            = "screening"
 	TableValidation           = "validation"

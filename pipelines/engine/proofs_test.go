@@ -204,6 +204,18 @@ var columnProofs = map[string]proof{
 	"aep_bands.parquet:u_total_frac":       byE2E,
 	"aep_bands.parquet:aep_p90_mwh":        byE2E,
 	"aep_bands.parquet:aep_p99_mwh":        byE2E,
+	// annual_maxima.parquet (the GEV's input, issue 33)
+	"annual_maxima.parquet:cell_id":         by("TestAnnualMaximaAgainstNumpy", "numpy's annual maxima of the python3-netcdf4 fixture extremes_points.nc (make_annual_maxima_refs.py)"),
+	"annual_maxima.parquet:name":            by("TestStationNamesInEveryTable", "station names in every table"),
+	"annual_maxima.parquet:year":            by("TestAnnualMaximaAgainstNumpy", "numpy's annual maxima of the python3-netcdf4 fixture extremes_points.nc (make_annual_maxima_refs.py)"),
+	"annual_maxima.parquet:time":            by("TestAnnualMaximaAgainstNumpy", "numpy's annual maxima of the python3-netcdf4 fixture extremes_points.nc (make_annual_maxima_refs.py)"),
+	"annual_maxima.parquet:hm0_m":           by("TestAnnualMaximaAgainstNumpy", "numpy's annual maxima of the python3-netcdf4 fixture extremes_points.nc (make_annual_maxima_refs.py)"),
+	"annual_maxima.parquet:te_s":            by("TestAnnualMaximaAgainstNumpy", "numpy's annual maxima of the python3-netcdf4 fixture extremes_points.nc (make_annual_maxima_refs.py)"),
+	"annual_maxima.parquet:tp_s":            by("TestAnnualMaximaAgainstNumpy", "numpy's annual maxima of the python3-netcdf4 fixture extremes_points.nc (make_annual_maxima_refs.py)"),
+	"annual_maxima.parquet:valid_hours":     by("TestAnnualMaximaAgainstNumpy", "numpy's annual maxima of the python3-netcdf4 fixture extremes_points.nc (make_annual_maxima_refs.py)"),
+	"annual_maxima.parquet:full_year_hours": by("TestAnnualMaximaAgainstNumpy", "numpy's annual maxima of the python3-netcdf4 fixture extremes_points.nc (make_annual_maxima_refs.py)"),
+	"annual_maxima.parquet:coverage_frac":   by("TestAnnualMaximaAgainstNumpy", "numpy's annual maxima of the python3-netcdf4 fixture extremes_points.nc (make_annual_maxima_refs.py)"),
+	"annual_maxima.parquet:excluded":        by("TestAnnualMaximaAgainstNumpy", "numpy's annual maxima of the python3-netcdf4 fixture extremes_points.nc (make_annual_maxima_refs.py)"),
 	// directions.parquet (the rose developer's table)
 	"directions.parquet:cell_id":           by("TestDirectionsAgainstNumpy", "every row against testdata/directions/reference.py (numpy) on the e2e bulk fixture and a python3-netcdf4 spectral fixture"),
 	"directions.parquet:name":              by("TestStationNamesInEveryTable", "station names in every table"),

@@ -4,6 +4,8 @@ import (
 	"math"
 	"slices"
 
+	"swellgrid/ingest"
+
 	"swellgrid/stats/climate"
 	"swellgrid/stats/extremes"
 )
@@ -25,7 +27,7 @@ type cellResult struct {
 	scatter []climate.ScatterRow
 	exceed  []climate.ExceedRow
 	windows []climate.WindowRow
-	maxima  []extremes.Maximum
+	amax    []annualMaxRow          // the GEV's annual maxima (extremes.Result.AnnualMaxima) with their times
 	ladder  []extremes.ThresholdRow // threshold diagnostics
 	design  *cellDesign             // design sea states (nil: not asked or no data)
 	dirs    []climate.DirectionRow  // directional distribution (nil: no step with power and direction)
@@ -56,7 +58,9 @@ func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResu
 		cfg.DepthM = e.cat.Depth[id]
 		r.ext = extremes.Analyse(c.col, cfg)
 		r.hasExt = true
-		r.maxima = c.col.AnnualMaxima()
+		for _, m := range r.ext.AnnualMaxima {
+			r.amax = append(r.amax, annualMaxRow{m: m, time: e.cat.Date(ingest.Stamp(math.Round(m.Hours * 3600))).String()})
+		}
 		r.ladder = ladderFor(r, c)
 		r.design = e.designFor(r)
 	}

@@ -421,6 +421,7 @@ var longSchemas = []longTable{
 	longSchema[designRow]{"design", designSchema, designRows},
 	longSchema[climate.DirectionRow]{"directions", directionsSchema, directionRows},
 	longSchema[annualRow]{"annual", annualSchema, annualRows},
+	longSchema[annualMaxRow]{"annual_maxima", annualMaxSchema, annualMaxRows},
 	longSchema[climate.AEPBand]{"aep_bands", bandsSchema, bandRows},
 }
 
@@ -733,6 +734,43 @@ func annualRows(r *cellResult) []annualRow {
 		}
 	}
 	return out
+}
+
+// annualMaxRow is one analysis year's maximum as the GEV saw it
+// (extremes.Result.AnnualMaxima) with its time in the data's calendar.
+type annualMaxRow struct {
+	m    extremes.AnnualMax
+	time string
+}
+
+type amRow = longRow[annualMaxRow]
+
+// annualMaxSchema: the GEV's input, one row per analysis year with valid
+// data, taken from extremes.Analyse (not recomputed), the years left out of
+// the fit flagged.
+var annualMaxSchema = []tables.Column[amRow]{
+	cellID[annualMaxRow](),
+	cellName[annualMaxRow](),
+	tables.I64("year", "1", "", "", "analysis year, named by the calendar year it begins in (extremes.year_start_month; 1: the calendar year)",
+		func(x amRow) int64 { return int64(x.v.m.Year) }),
+	tables.Str("time", "", "time of the year's largest Hm0 (the earliest on ties) in the data's calendar, YYYY-MM-DD hh:mm:ss",
+		func(x amRow) string { return x.v.time }),
+	tables.F64("hm0_m", "m", tables.CFHm0, "time: maximum", "the year's largest Hm0", func(x amRow) float64 { return x.v.m.Hm0 }),
+	tables.F64("te_s", "s", tables.CFTe, "", "Te of the maximum's time step (null where the step has none)", func(x amRow) float64 { return x.v.m.Te }),
+	tables.F64("tp_s", "s", tables.CFTp, "", "Tp of the maximum's time step (null where the step has none)", func(x amRow) float64 { return x.v.m.Tp }),
+	tables.F64("valid_hours", "h", "", "", "the year's time with a valid Hm0", func(x amRow) float64 { return float64(x.v.m.ValidMinutes) / 60 }),
+	tables.F64("full_year_hours", "h", "", "", "length of a full year for the coverage: the longest analysis year of the record in the data's calendar (or the longest covered year)",
+		func(x amRow) float64 { return float64(x.v.m.FullMinutes) / 60 }),
+	tables.F64("coverage_frac", "1", "", "", "valid_hours / full_year_hours", func(x amRow) float64 { return x.v.m.Coverage }),
+	tables.Bool("excluded", "", "coverage_frac is below the GEV's minimum year coverage (0.8): the maximum is left out of the GEV fit",
+		func(x amRow) bool { return !x.v.m.InGEV }),
+}
+
+func annualMaxRows(r *cellResult) []annualMaxRow {
+	if !r.hasExt {
+		return nil
+	}
+	return r.amax
 }
 
 type bRow = longRow[climate.AEPBand]

@@ -172,7 +172,7 @@ type OutputSpec struct {
 
 // LongTableNames are the run's long tables, by name (the file is the name
 // with ".parquet"), in file order: what output.long_tables may choose.
-var LongTableNames = []string{contract.TableAEPBands, contract.TableAnnual, contract.TableDesign, contract.TableDirections,
+var LongTableNames = []string{contract.TableAEPBands, contract.TableAnnual, contract.TableAnnualMaxima, contract.TableDesign, contract.TableDirections,
 	contract.TableExceedance, contract.TableExtremes, contract.TableMonthly, contract.TableScatter,
 	contract.TableThresholdDiagnostics, contract.TableWindows}
 

@@ -218,6 +218,20 @@ type Result struct {
 	Association  Association
 	Flags        Flag // union of both methods' flags
 	Caution      string
+	// AnnualMaxima are the GEV's input as Analyse chose it: one entry per
+	// analysis year with valid data, in year order, the ones with InGEV in
+	// the fit (so that the fit can be audited and refitted elsewhere).
+	AnnualMaxima []AnnualMax
+}
+
+// AnnualMax is one analysis year's maximum as the GEV sees it.
+type AnnualMax struct {
+	Maximum            // the year's largest Hm0 (earliest on ties), its time and the Te/Tp of that step
+	ValidMinutes int64 // V_y: the year's valid time (steps with a finite Hm0), minutes
+	FullMinutes  int64 // F: the length of a full year (see Analyse), minutes
+	Coverage     float64
+	// InGEV: the maximum entered the GEV fit (Coverage >= MinYearCoverage).
+	InGEV bool
 }
 
 // FitQuality is what the publication policy needs to know about one fit.
@@ -320,8 +334,12 @@ func Analyse(c *Collector, cfg AnalysisConfig) Result {
 	for _, y := range years {
 		cov[y.Year] = y.ValidMinutes
 	}
+	res.AnnualMaxima = make([]AnnualMax, len(am))
 	for i, m := range am {
-		if float64(cov[m.Year])/float64(full) >= cfg.MinYearCoverage {
+		share := float64(cov[m.Year]) / float64(full)
+		res.AnnualMaxima[i] = AnnualMax{Maximum: m, ValidMinutes: cov[m.Year], FullMinutes: full, Coverage: share}
+		if share >= cfg.MinYearCoverage {
+			res.AnnualMaxima[i].InGEV = true
 			amx = append(amx, m.Hm0)
 			if !(m.Hm0 <= res.MaxAnnual) {
 				res.MaxAnnual = m.Hm0
