@@ -33,6 +33,18 @@ type Field struct {
 	ShapeValue []float64
 	ShapeLand  []bool
 	Isolines   func(levels []float64) ([]orb.MultiLineString, error)
+
+	// Marks are places drawn on top: the spec's sites and the validation
+	// stations.
+	Marks []Mark
+}
+
+// Mark is a place marked on a map: a site (a filled red triangle) or a
+// validation station (a white diamond), labelled with its name.
+type Mark struct {
+	Name     string
+	Lon, Lat float64
+	Station  bool
 }
 
 // MapInfo says what a map shows; the HTML carries it so a reader (and the
@@ -49,6 +61,9 @@ type MapInfo struct {
 	// DataArea is the map's data rectangle on the figure in points (1/72
 	// inch) from the lower left corner, set when the figure is drawn.
 	DataArea vg.Rectangle `json:"-"`
+	// Marks are the places drawn on the map, their longitudes in the map's
+	// frame (as Extent).
+	Marks []Mark `json:"-"`
 }
 
 // Range is the min and max of the finite values of f on cells that are not land.
@@ -280,6 +295,21 @@ func Map(name, title string, f *Field) (*figure, *MapInfo, error) {
 	p := newPlot(title, "longitude (°E)", "latitude (°N)")
 	p.X.Tick.Marker = lonTicks{}
 	p.Add(layer)
+	if len(f.Marks) > 0 {
+		ml := &marksLayer{}
+		fr := grid.LonFrame(f.Lon)
+		for _, m := range f.Marks {
+			if f.Shapes == nil {
+				m.Lon = fr.Shift(m.Lon)
+			}
+			if m.Lon >= b.Min[0] && m.Lon <= b.Max[0] && m.Lat >= b.Min[1] && m.Lat <= b.Max[1] {
+				ml.marks = append(ml.marks, m)
+			}
+		}
+		info.Marks = ml.marks
+		p.Add(ml)
+	}
+	p.Y.Tick.Marker = degTicks{}
 	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = b.Min[0], b.Max[0], b.Min[1], b.Max[1]
 	midLat := (b.Min[1] + b.Max[1]) / 2
 	aspect := (b.Max[0] - b.Min[0]) * math.Cos(midLat*math.Pi/180) / (b.Max[1] - b.Min[1]) // width / height
@@ -329,13 +359,48 @@ func pathLen(pts []vg.Point) vg.Length {
 	return d
 }
 
-// lonTicks are the default ticks of a longitude axis, labelled in [-180,
-// 180] (a map in the 0..360 frame of a region across 180 degrees reads
-// 170, 180, -170).
+// marksLayer draws the sites (red triangles) and validation stations (white
+// diamonds) with their names.
+type marksLayer struct{ marks []Mark }
+
+func (l *marksLayer) Plot(c draw.Canvas, p *plot.Plot) {
+	tx, ty := p.Transforms(&c)
+	font := plot.DefaultFont
+	font.Size = vg.Points(7)
+	ts := draw.TextStyle{Color: lineColor, Font: font, Handler: plot.DefaultTextHandler, XAlign: draw.XLeft, YAlign: draw.YCenter}
+	for _, m := range l.marks {
+		pt := vg.Point{X: tx(m.Lon), Y: ty(m.Lat)}
+		g := draw.GlyphStyle{Color: color.NRGBA{0xd0, 0x10, 0x10, 0xff}, Radius: vg.Points(4), Shape: draw.TriangleGlyph{}}
+		if m.Station {
+			g = draw.GlyphStyle{Color: color.White, Radius: vg.Points(4), Shape: draw.PyramidGlyph{}}
+			c.DrawGlyph(draw.GlyphStyle{Color: lineColor, Radius: vg.Points(5.2), Shape: draw.PyramidGlyph{}}, pt)
+		} else {
+			c.DrawGlyph(draw.GlyphStyle{Color: color.White, Radius: vg.Points(5.2), Shape: draw.TriangleGlyph{}}, pt)
+		}
+		c.DrawGlyph(g, pt)
+		lab := m.Name
+		w, h := ts.Width(lab), ts.Height(lab)
+		at := vg.Point{X: pt.X + vg.Points(6), Y: pt.Y}
+		c.FillPolygon(color.NRGBA{255, 255, 255, 200}, []vg.Point{
+			{X: at.X - 1, Y: at.Y - h/2}, {X: at.X + w + 1, Y: at.Y - h/2}, {X: at.X + w + 1, Y: at.Y + h/2}, {X: at.X - 1, Y: at.Y + h/2}})
+		c.FillText(ts, at, lab)
+	}
+}
+
+// lonTicks are the ticks of a longitude axis (degTicks), labelled in
+// [-180, 180] (a map in the 0..360 frame of a region across 180 degrees
+// reads 170, 180, -170).
 type lonTicks struct{}
 
 func (lonTicks) Ticks(lo, hi float64) []plot.Tick {
-	ts := plot.DefaultTicks{}.Ticks(lo, hi)
+	ts := degTicks{}.Ticks(lo, hi)
+	var vals []float64
+	for _, t := range ts {
+		if t.Label != "" {
+			vals = append(vals, t.Value)
+		}
+	}
+	d := tickDecimals(vals)
 	for k := range ts {
 		if ts[k].Label == "" || (ts[k].Value >= -180 && ts[k].Value <= 180) {
 			continue
@@ -344,7 +409,75 @@ func (lonTicks) Ticks(lo, hi float64) []plot.Tick {
 		if v == -180 {
 			v = 180
 		}
-		ts[k].Label = strconv.FormatFloat(v, 'f', -1, 64)
+		ts[k].Label = strconv.FormatFloat(v, 'f', d, 64)
 	}
 	return ts
+}
+
+// degTicks are gonum's default tick positions with labels of as many
+// decimals as the labelled ticks need (tickLabels): on a small domain
+// ticks at 54.25 and 54.45 read so, not "54".
+type degTicks struct{}
+
+func (degTicks) Ticks(lo, hi float64) []plot.Tick {
+	ts := plot.DefaultTicks{}.Ticks(lo, hi)
+	var idx []int
+	var vals []float64
+	for k, t := range ts {
+		if t.Label != "" {
+			idx, vals = append(idx, k), append(vals, t.Value)
+		}
+	}
+	for j, lab := range tickLabels(vals) {
+		ts[idx[j]].Label = lab
+	}
+	return ts
+}
+
+// tickDecimals is the number of decimals (0 to 6) that labels every value
+// of vals and the step between neighbours exactly (to 1e-6 of the step):
+// the fewest d with |round(v 10^d) / 10^d - v| below that for all.
+func tickDecimals(vals []float64) int {
+	if len(vals) == 0 {
+		return 0
+	}
+	step := math.Inf(1)
+	for i := 1; i < len(vals); i++ {
+		step = math.Min(step, math.Abs(vals[i]-vals[i-1]))
+	}
+	tol := 1e-9
+	if !math.IsInf(step, 1) && step > 0 {
+		tol = 1e-6 * step
+	}
+	check := append([]float64{}, vals...)
+	if !math.IsInf(step, 1) {
+		check = append(check, step)
+	}
+	for d := 0; d < 6; d++ {
+		p := math.Pow(10, float64(d))
+		ok := true
+		for _, v := range check {
+			if math.Abs(math.Round(v*p)/p-v) > tol {
+				ok = false
+				break
+			}
+		}
+		if ok {
+			return d
+		}
+	}
+	return 6
+}
+
+// tickLabels labels tick values with tickDecimals(vals) decimals.
+func tickLabels(vals []float64) []string {
+	d := tickDecimals(vals)
+	out := make([]string, len(vals))
+	for i, v := range vals {
+		if math.Abs(v) < 0.5*math.Pow(10, -float64(d)) {
+			v = 0 // no "-0"
+		}
+		out[i] = strconv.FormatFloat(v, 'f', d, 64)
+	}
+	return out
 }

@@ -16,6 +16,7 @@ package report
 
 import (
 	"bytes"
+	"encoding/json"
 	"fmt"
 	"html/template"
 	"math"
@@ -74,7 +75,8 @@ type siteView struct {
 	CellLat  float64
 	Figures  []pageFigure
 	Notes    []string
-	Numbers  [][4]string // name, value, unit, meaning
+	Numbers  [][4]string  // name, value, unit, meaning
+	Tables   []*pageTable // yearly.go: the weather windows by month
 	Distance string
 }
 
@@ -121,12 +123,14 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 	v := &indexView{Title: "Wave-energy resource atlas", Caution: m.Caution, Software: m.Software, Version: m.Version, CSS: template.CSS(css)}
 	v.Synthetic = r.Cells.Meta["swellgrid:synthetic"]
 	lon, lat := r.Lon(), r.Lat()
+	marks := mapMarks(r)
 	for _, mc := range mapColumns(r) {
 		c := r.Cells.Col(mc[0])
 		if c == nil || c.Kind != rundir.Float {
 			continue
 		}
 		f := &Field{NX: r.NX, NY: r.NY, Points: !r.Structured(), Lon: lon, Lat: lat, Value: c.Float, Land: r.Land, Name: c.Name, Unit: c.Unit}
+		f.Marks = marks
 		meshField(r, f) // meshmap.go: a mesh is drawn as filled triangles
 		lo, hi, n := f.Range()
 		if n == 0 {
@@ -145,7 +149,7 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 			return nil, nil, err
 		}
 		add(names...)
-		fig.Caption = mapCaption(c.Name, c.Doc, c.Unit, lo, hi, f.Levels)
+		fig.Caption = mapCaption(c.Name, c.Doc, c.Unit, lo, hi, f.Levels) + marksCaption(info.Marks)
 		v.Maps = append(v.Maps, pageFigure{Title: fig.Title, Caption: fig.Caption, PNG: names[0], SVG: names[1], Map: info})
 	}
 	sm, smFiles, err := screeningMaps(r, tmp) // screening.go
@@ -233,6 +237,11 @@ func newSiteView(r *rundir.Run, s Site) (*siteView, []*figure, error) {
 		return nil, nil, fmt.Errorf("report: site %s: %w", s.Name, err)
 	}
 	sv.Notes = fn
+	if wl, err := windowLines(r, s); err != nil { // yearly.go
+		return nil, nil, fmt.Errorf("report: site %s: %w", s.Name, err)
+	} else if wt := windowsTable(wl); wt != nil {
+		sv.Tables = append(sv.Tables, wt)
+	}
 	for _, c := range r.Cells.Columns {
 		val := ""
 		switch c.Kind {
@@ -246,6 +255,65 @@ func newSiteView(r *rundir.Run, s Site) (*siteView, []*figure, error) {
 		sv.Numbers = append(sv.Numbers, [4]string{c.Name, val, c.Unit, c.Doc})
 	}
 	return sv, figs, nil
+}
+
+// mapMarks are the places marked on the maps: the spec's sites (manifest
+// parameters.sites; a point set's points are the map itself) and the
+// stations of the run's validation (validation.json), when it has one.
+func mapMarks(r *rundir.Run) []Mark {
+	var out []Mark
+	for _, s := range r.Manifest.Parameters.Sites {
+		out = append(out, Mark{Name: s.Name, Lon: s.Lon, Lat: s.Lat})
+	}
+	if b, err := os.ReadFile(filepath.Join(r.Dir, contract.ValidationFile)); err == nil {
+		var sum contract.ValidationSummary
+		if json.Unmarshal(b, &sum) == nil {
+			for _, st := range sum.Stations {
+				out = append(out, Mark{Name: st.Name, Lon: st.Lon, Lat: st.Lat, Station: true})
+			}
+		}
+	}
+	return out
+}
+
+// marksJSON is a map's marks as a JSON array of {name, lon, lat, station}
+// (the figure's data-marks attribute, for a reader and the tests).
+func marksJSON(marks []Mark) string {
+	type m struct {
+		Name    string  `json:"name"`
+		Lon     float64 `json:"lon"`
+		Lat     float64 `json:"lat"`
+		Station bool    `json:"station"`
+	}
+	out := make([]m, len(marks))
+	for i, k := range marks {
+		out[i] = m{k.Name, k.Lon, k.Lat, k.Station}
+	}
+	b, _ := json.Marshal(out)
+	return string(b)
+}
+
+// marksCaption says what the marks on a map are.
+func marksCaption(marks []Mark) string {
+	var sites, stations int
+	for _, m := range marks {
+		if m.Station {
+			stations++
+		} else {
+			sites++
+		}
+	}
+	var parts []string
+	if sites > 0 {
+		parts = append(parts, "red triangles: the sites of the spec")
+	}
+	if stations > 0 {
+		parts = append(parts, "white diamonds: the validation stations")
+	}
+	if len(parts) == 0 {
+		return ""
+	}
+	return " Marked: " + strings.Join(parts, "; ") + "."
 }
 
 func unitSuffix(u string) string {
@@ -387,7 +455,7 @@ func writePage(path string, t *template.Template, data any) error {
 	return nil
 }
 
-var funcs = template.FuncMap{"num": fmtNum, "nums": joinNums,
+var funcs = template.FuncMap{"num": fmtNum, "nums": joinNums, "marksJSON": marksJSON,
 	"colPowerMean": func() string { return contract.ColPowerMean }}
 
 const css = `body{font-family:sans-serif;margin:0 auto;max-width:1100px;padding:0 1.2em 3em;color:#1b1b1b;line-height:1.4}
@@ -397,7 +465,10 @@ h1{font-size:1.6em;margin-top:1em}h2{font-size:1.25em;border-bottom:1px solid #c
 table{border-collapse:collapse;margin:.5em 0}td,th{border:1px solid #ccc;padding:.2em .5em;text-align:left;vertical-align:top;font-size:.92em}
 th{background:#f2f2f2}figure{margin:1.2em 0}figure img{max-width:100%;height:auto;border:1px solid #ddd}
 figcaption{font-size:.9em;color:#333;max-width:60em}.files{font-size:.85em}.sw{display:inline-block;width:1em;height:.8em;border:1px solid #999;vertical-align:middle}
-nav a{margin-right:1em}`
+nav a{margin-right:1em}
+table.numbers{table-layout:fixed;width:100%}table.numbers td,table.numbers th{white-space:nowrap;overflow:hidden;text-overflow:ellipsis;height:1.4em;line-height:1.4em;vertical-align:middle}
+table.numbers col.c-name{width:24%}table.numbers col.c-value{width:12%}table.numbers col.c-unit{width:9%}table.numbers col.c-doc{width:55%}
+table.months{font-size:.85em}table.months caption{caption-side:top;text-align:left;font-size:.9em;color:#333;padding-bottom:.3em}table.months td{text-align:right;white-space:nowrap}`
 
 var indexPage = template.Must(template.New("index").Funcs(funcs).Parse(`<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8"><title>{{.Title}}</title>
@@ -422,7 +493,7 @@ var indexPage = template.Must(template.New("index").Funcs(funcs).Parse(`<!DOCTYP
 <span class="sw" style="background:#c8c8c8"></span> sea cells without a result. Axes in degrees on WGS 84, drawn with the
 aspect of the mean latitude, a region across 180° in one piece (longitudes 0..360 on the axis, labelled -180..180).
 Each figure is also an SVG file (link below it).</p>
-{{range .Maps}}<figure class="map" data-column="{{.Map.Column}}" data-min="{{printf "%.17g" .Map.Min}}" data-max="{{printf "%.17g" .Map.Max}}" data-unit="{{.Map.Unit}}" data-extent="{{range $i, $v := .Map.Extent}}{{if $i}} {{end}}{{printf "%.17g" $v}}{{end}}">
+{{range .Maps}}<figure class="map" data-column="{{.Map.Column}}" data-min="{{printf "%.17g" .Map.Min}}" data-max="{{printf "%.17g" .Map.Max}}" data-unit="{{.Map.Unit}}" data-extent="{{range $i, $v := .Map.Extent}}{{if $i}} {{end}}{{printf "%.17g" $v}}{{end}}"{{if .Map.Marks}} data-marks="{{marksJSON .Map.Marks}}"{{end}}>
 <img src="{{.PNG}}" alt="{{.Title}}"><figcaption>{{.Caption}} <a href="{{.SVG}}">SVG</a></figcaption></figure>
 {{else}}<p>No maps: no mapped column has values.</p>{{end}}
 <h2 id="sites">Sites</h2>
@@ -448,8 +519,12 @@ var sitePage = template.Must(template.New("site").Funcs(funcs).Parse(`<!DOCTYPE 
 {{range .S.Figures}}<figure><img src="{{.PNG}}" alt="{{.Title}}"><figcaption>{{.Caption}} <a href="{{.SVG}}">SVG</a></figcaption></figure>
 {{end}}
 {{if .S.Notes}}<ul>{{range .S.Notes}}<li>{{.}}</li>{{end}}</ul>{{end}}
+{{range .S.Tables}}<table class="months"><caption>{{.Caption}}</caption><tr>{{range .Header}}<th>{{.}}</th>{{end}}</tr>
+{{range .Rows}}<tr>{{range .}}<td>{{.}}</td>{{end}}</tr>{{end}}</table>
+{{end}}
 <h2>The cell's numbers</h2>
-<table><tr><th>column</th><th>value</th><th>unit</th><th>meaning</th></tr>
-{{range .S.Numbers}}<tr><td>{{index . 0}}</td><td>{{index . 1}}</td><td>{{index . 2}}</td><td>{{index . 3}}</td></tr>{{end}}</table>
+<table class="numbers"><colgroup><col class="c-name"><col class="c-value"><col class="c-unit"><col class="c-doc"></colgroup>
+<tr><th>column</th><th>value</th><th>unit</th><th>meaning</th></tr>
+{{range .S.Numbers}}<tr><td>{{index . 0}}</td><td>{{index . 1}}</td><td>{{index . 2}}</td><td title="{{index . 3}}">{{index . 3}}</td></tr>{{end}}</table>
 </body></html>
 `))

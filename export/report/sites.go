@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"sort"
+	"strconv"
 	"strings"
 
 	"github.com/paulmach/orb"
@@ -148,6 +149,20 @@ func siteFigures(r *rundir.Run, s Site) ([]*figure, []string, error) {
 	} else if f != nil {
 		figs = append(figs, f)
 	}
+	if f, err := annualFigure(r, s, base+"year_by_year"); err != nil { // yearly.go
+		return nil, nil, err
+	} else if f != nil {
+		figs = append(figs, f)
+	} else {
+		notes = append(notes, "year by year: not drawn, neither annual_maxima.parquet nor annual.parquet has rows for this cell")
+	}
+	if wl, err := windowLines(r, s); err != nil {
+		return nil, nil, err
+	} else if f := windowsFigure(wl, base+"windows_by_month"); f != nil {
+		figs = append(figs, f)
+	} else {
+		notes = append(notes, "weather windows: not drawn, windows.parquet has no rows for this cell")
+	}
 	return figs, notes, nil
 }
 
@@ -248,15 +263,26 @@ func exceedanceFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 		return nil, nil
 	}
 	vr, val, sh := t.Col("variable"), t.Col("value"), t.Col("share_exceeded")
+	data := ExceedanceSeries{}
 	panel := func(variable, title, x string) *plot.Plot {
-		p := newPlot(title, x, "time exceeded (%)")
+		p := newPlot(title, x, "time exceeded (%, log scale)")
 		var pts plotter.XYs
 		for _, i := range rows {
-			if vr.Str[i] == variable && !math.IsNaN(val.Float[i]) && !math.IsNaN(sh.Float[i]) {
+			// a share of 0 has no place on a log axis: the curve ends at the
+			// last level exceeded
+			if vr.Str[i] == variable && !math.IsNaN(val.Float[i]) && sh.Float[i] > 0 {
 				pts = append(pts, plotter.XY{X: val.Float[i], Y: 100 * sh.Float[i]})
 			}
 		}
-		sort.Slice(pts, func(i, j int) bool { return pts[i].X < pts[j].X })
+		sort.SliceStable(pts, func(i, j int) bool { return pts[i].X < pts[j].X })
+		data[variable] = pts
+		ymin := 100.0
+		for _, q := range pts {
+			ymin = math.Min(ymin, q.Y)
+		}
+		if len(pts) == 0 {
+			ymin = 1
+		}
 		if len(pts) > 0 {
 			l, err := plotter.NewLine(pts)
 			if err == nil {
@@ -265,14 +291,16 @@ func exceedanceFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 			}
 		}
 		p.Add(plotter.NewGrid())
-		p.Y.Min, p.Y.Max = 0, 100
+		p.Y.Scale = plot.LogScale{}
+		p.Y.Tick.Marker = percentLogTicks{}
+		p.Y.Min, p.Y.Max = math.Pow(10, math.Floor(math.Log10(ymin))), 100
 		p.X.Min = 0
 		return p
 	}
 	a := panel("hm0_m", "Exceedance of Hm0", "Hm0 (m)")
 	b := panel("power_kw_m", "Exceedance of wave power", "J (kW/m)")
-	f := &figure{Name: name, Title: "Exceedance curves", Caption: "Share of the valid time with Hm0 (left) and wave power (right) above each level (histogram bin edges; resolution in the manifest).",
-		W: 7 * vg.Inch, H: 3.2 * vg.Inch}
+	f := &figure{Name: name, Title: "Exceedance curves", Caption: "Share of the valid time with Hm0 (left) and wave power (right) above each level (histogram bin edges; resolution in the manifest), on a logarithmic axis so that the rare large values stay readable; the curves end at the highest level exceeded.",
+		W: 7 * vg.Inch, H: 3.2 * vg.Inch, data: data}
 	f.draw = func(dc draw.Canvas) {
 		dc.SetColor(color.White)
 		dc.Fill(dc.Rectangle.Path())
@@ -281,6 +309,32 @@ func exceedanceFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 		b.Draw(tiles.At(dc, 1, 0))
 	}
 	return f, nil
+}
+
+// ExceedanceSeries is what PlottedValues gives for the exceedance figure:
+// per variable (hm0_m, power_kw_m) the points drawn, level against the
+// percentage of time exceeded (levels with a share above 0).
+type ExceedanceSeries = map[string]plotter.XYs
+
+// percentLogTicks marks the decades of a log axis of percentages (0.001 %
+// to 100 %) with labels of as many decimals as the decade needs, and the
+// 2 and 5 of each decade unlabelled.
+type percentLogTicks struct{}
+
+func (percentLogTicks) Ticks(lo, hi float64) []plot.Tick {
+	var ts []plot.Tick
+	for e := math.Floor(math.Log10(lo)); e <= math.Ceil(math.Log10(hi)); e++ {
+		d := math.Pow(10, e)
+		if d >= lo*(1-1e-9) && d <= hi*(1+1e-9) {
+			ts = append(ts, plot.Tick{Value: d, Label: strconv.FormatFloat(d, 'f', max(0, int(-e)), 64)})
+		}
+		for _, m := range []float64{2, 5} {
+			if v := m * d; v > lo && v < hi {
+				ts = append(ts, plot.Tick{Value: v})
+			}
+		}
+	}
+	return ts
 }
 
 // binsLayer fills the scatter bins with viridis by time share (empty bins stay white).
