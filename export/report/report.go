@@ -1,9 +1,12 @@
 // Package report writes report/ of a finished run: index.html (a summary of
-// the run, maps of the main per-cell results on the grid) and a page per
-// site (monthly climatology with the inter-annual spread, exceedance curves,
-// the joint Hm0 x Te occurrence with power isolines, the directional power
-// rose, return levels with their
-// intervals, design contours where the run has them, and the site's numbers).
+// the run, maps of the main per-cell results on the grid with the sites and
+// validation stations marked) and a page per site (monthly climatology with
+// the inter-annual spread, exceedance curves on a log axis, the joint Hm0 x
+// Te occurrence with power isolines, the directional power rose, return
+// levels with their intervals, design contours where the run has them, the
+// energy bands, year by year the annual maxima, mean power and device
+// energy, the weather windows by month with their table, and the site's
+// numbers).
 // Every figure is written beside the pages as PNG and SVG, named after what
 // it shows; the pages hold their CSS inline and load nothing from the
 // network, so the directory can be opened from disk, mailed or archived.

@@ -55,7 +55,7 @@ func screeningMaps(r *rundir.Run, dir string) ([]pageFigure, []string, error) {
 				}
 			}
 		}
-		f := &Field{NX: r.NX, NY: r.NY, Points: !r.Structured(), Lon: r.Lon(), Lat: r.Lat(), Value: v, Land: r.Land, Name: "screening_" + s.Name, Unit: "1"}
+		f := &Field{NX: r.NX, NY: r.NY, Points: !r.Structured(), Lon: r.Lon(), Lat: r.Lat(), Value: v, Land: r.Land, Name: "screening_" + s.Name, Unit: "1", Marks: mapMarks(r)}
 		title := "Screening scenario " + s.Name + ": passing cells (yellow)"
 		fig, info, err := Map("map_screening_"+s.Name, title, f)
 		if err != nil {
@@ -87,6 +87,7 @@ func screeningMaps(r *rundir.Run, dir string) ([]pageFigure, []string, error) {
 			c += fmt.Sprintf(" Layout of %s: %s GWh/yr.", s.Device, fmtNum(*s.AnnualEnergyGWh))
 		}
 		c += " Reasons per cell in screening.parquet, outline in " + contract.ContourDir + "/" + contract.ScreeningOutlineFile(s.Name) + ". " + sum.Note
+		c += marksCaption(info.Marks)
 		figs = append(figs, pageFigure{Title: title, Caption: c, PNG: names[0], SVG: names[1], Map: info})
 	}
 	return figs, files, nil
