@@ -367,23 +367,40 @@ func (l *marksLayer) Plot(c draw.Canvas, p *plot.Plot) {
 	tx, ty := p.Transforms(&c)
 	font := plot.DefaultFont
 	font.Size = vg.Points(7)
-	ts := draw.TextStyle{Color: lineColor, Font: font, Handler: plot.DefaultTextHandler, XAlign: draw.XLeft, YAlign: draw.YCenter}
+	mid := (c.Min.X + c.Max.X) / 2
 	for _, m := range l.marks {
 		pt := vg.Point{X: tx(m.Lon), Y: ty(m.Lat)}
-		g := draw.GlyphStyle{Color: color.NRGBA{0xd0, 0x10, 0x10, 0xff}, Radius: vg.Points(4), Shape: draw.TriangleGlyph{}}
-		if m.Station {
-			g = draw.GlyphStyle{Color: color.White, Radius: vg.Points(4), Shape: draw.PyramidGlyph{}}
-			c.DrawGlyph(draw.GlyphStyle{Color: lineColor, Radius: vg.Points(5.2), Shape: draw.PyramidGlyph{}}, pt)
-		} else {
-			c.DrawGlyph(draw.GlyphStyle{Color: color.White, Radius: vg.Points(5.2), Shape: draw.TriangleGlyph{}}, pt)
+		r := vg.Points(4.5)
+		if m.Station { // a white diamond with a black outline
+			d := []vg.Point{{X: pt.X, Y: pt.Y + r}, {X: pt.X + r, Y: pt.Y}, {X: pt.X, Y: pt.Y - r}, {X: pt.X - r, Y: pt.Y}}
+			c.FillPolygon(color.White, d)
+			c.StrokeLines(draw.LineStyle{Color: lineColor, Width: vg.Points(1)}, append(d, d[0]))
+		} else { // a red triangle with a white outline
+			tr := []vg.Point{{X: pt.X, Y: pt.Y + r}, {X: pt.X + 0.87*r, Y: pt.Y - r/2}, {X: pt.X - 0.87*r, Y: pt.Y - r/2}}
+			c.FillPolygon(color.NRGBA{0xd0, 0x10, 0x10, 0xff}, tr)
+			c.StrokeLines(draw.LineStyle{Color: color.White, Width: vg.Points(0.8)}, append(tr, tr[0]))
 		}
-		c.DrawGlyph(g, pt)
-		lab := m.Name
-		w, h := ts.Width(lab), ts.Height(lab)
-		at := vg.Point{X: pt.X + vg.Points(6), Y: pt.Y}
-		c.FillPolygon(color.NRGBA{255, 255, 255, 200}, []vg.Point{
-			{X: at.X - 1, Y: at.Y - h/2}, {X: at.X + w + 1, Y: at.Y - h/2}, {X: at.X + w + 1, Y: at.Y + h/2}, {X: at.X - 1, Y: at.Y + h/2}})
-		c.FillText(ts, at, lab)
+		// the label beside the mark, towards the middle of the map; a
+		// station's below a site's, so that a station at a site stays legible
+		ts := draw.TextStyle{Color: lineColor, Font: font, Handler: plot.DefaultTextHandler, XAlign: draw.XLeft, YAlign: draw.YBottom}
+		at := vg.Point{X: pt.X + r + 1, Y: pt.Y + 1}
+		if pt.X > mid {
+			ts.XAlign, at.X = draw.XRight, pt.X-r-1
+		}
+		if m.Station {
+			ts.YAlign, at.Y = draw.YTop, pt.Y-1
+		}
+		w, h := ts.Width(m.Name), ts.Height(m.Name)
+		x0 := at.X - 1
+		if ts.XAlign == draw.XRight {
+			x0 = at.X - w - 1
+		}
+		y0 := at.Y
+		if m.Station {
+			y0 = at.Y - h
+		}
+		c.FillPolygon(color.NRGBA{255, 255, 255, 210}, []vg.Point{{X: x0, Y: y0}, {X: x0 + w + 2, Y: y0}, {X: x0 + w + 2, Y: y0 + h}, {X: x0, Y: y0 + h}})
+		c.FillText(ts, at, m.Name)
 	}
 }
 

@@ -232,49 +232,81 @@ func windowLines(r *rundir.Run, s Site) ([]WindowLine, error) {
 }
 
 // windowsFigure draws the share of the time inside weather windows by
-// calendar month, a line per criterion.
+// calendar month: a panel per Hm0 limit, a line per minimum duration.
 func windowsFigure(lines []WindowLine, name string) *figure {
 	if len(lines) == 0 {
 		return nil
 	}
-	p := newPlot("Weather windows by month", "calendar month", "time inside windows (%)")
-	for k, w := range lines {
-		var pts plotter.XYs
-		for m, v := range w.Fraction {
-			if !math.IsNaN(v) {
-				pts = append(pts, plotter.XY{X: float64(m + 1), Y: 100 * v})
-			}
+	var limits, durs []float64
+	for _, w := range lines {
+		if !slices.Contains(limits, w.LimitM) {
+			limits = append(limits, w.LimitM)
 		}
-		if len(pts) == 0 {
-			continue
+		if !slices.Contains(durs, w.DurationH) {
+			durs = append(durs, w.DurationH)
 		}
-		ln, sc, err := plotter.NewLinePoints(pts)
-		if err != nil {
-			continue
-		}
-		c := NewViridis(0, 1).color(20 + (210*k)/max(1, len(lines)-1))
-		ln.Color, ln.Width = c, vg.Points(1.3)
-		ln.Dashes = [][]vg.Length{nil, {vg.Points(4), vg.Points(2)}, {vg.Points(1), vg.Points(1.5)}}[k%3]
-		sc.Color, sc.Shape, sc.Radius = c, draw.CircleGlyph{}, vg.Points(2)
-		p.Add(ln, sc)
-		p.Legend.Add(fmt.Sprintf("Hm0 < %s m for ≥ %s h", fmtNum(w.LimitM), fmtNum(w.DurationH)), ln, sc)
 	}
-	p.Add(plotter.NewGrid())
-	p.Legend.Top = true
-	p.Legend.TextStyle.Font.Size = vg.Points(7)
-	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0.5, 12.5, 0, 100
+	slices.Sort(limits)
+	slices.Sort(durs)
 	var ticks []plot.Tick
 	for m := 1; m <= 12; m++ {
-		ticks = append(ticks, plot.Tick{Value: float64(m), Label: monthNames[m-1]})
+		lab := monthNames[m-1]
+		if len(limits) > 2 && m%2 == 0 {
+			lab = "" // narrow panels: every other month named
+		}
+		ticks = append(ticks, plot.Tick{Value: float64(m), Label: lab})
 	}
-	p.X.Tick.Marker = plot.ConstantTicks(ticks)
+	var panels []*plot.Plot
+	for pi, lim := range limits {
+		ylab := ""
+		if pi == 0 {
+			ylab = "time inside windows (%)"
+		}
+		p := newPlot(fmt.Sprintf("Hm0 below %s m", fmtNum(lim)), "calendar month", ylab)
+		for _, w := range lines {
+			if w.LimitM != lim {
+				continue
+			}
+			var pts plotter.XYs
+			for m, v := range w.Fraction {
+				if !math.IsNaN(v) {
+					pts = append(pts, plotter.XY{X: float64(m + 1), Y: 100 * v})
+				}
+			}
+			if len(pts) == 0 {
+				continue
+			}
+			ln, sc, err := plotter.NewLinePoints(pts)
+			if err != nil {
+				continue
+			}
+			k := slices.Index(durs, w.DurationH)
+			c := NewViridis(0, 1).color(20 + (200*k)/max(1, len(durs)-1))
+			ln.Color, ln.Width = c, vg.Points(1.3)
+			ln.Dashes = [][]vg.Length{nil, {vg.Points(4), vg.Points(2)}, {vg.Points(1), vg.Points(1.5)}}[k%3]
+			sc.Color, sc.Shape, sc.Radius = c, draw.CircleGlyph{}, vg.Points(1.8)
+			p.Add(ln, sc)
+			if pi == 0 {
+				p.Legend.Add(fmt.Sprintf("at least %s h", fmtNum(w.DurationH)), ln, sc)
+			}
+		}
+		p.Add(plotter.NewGrid())
+		p.Legend.Top, p.Legend.Left = true, true
+		p.Legend.TextStyle.Font.Size = vg.Points(7)
+		p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0.5, 12.5, 0, 100
+		p.X.Tick.Marker = plot.ConstantTicks(ticks)
+		panels = append(panels, p)
+	}
 	f := &figure{Name: name, Title: "Weather windows by month",
-		Caption: "Share of the valid time inside weather windows (spells with Hm0 below the limit lasting at least the duration) by calendar month, a line per criterion (windows.parquet; the table below also gives the mean number of windows per month).",
-		W:       6.5 * vg.Inch, H: 3.8 * vg.Inch, data: lines}
+		Caption: "Share of the valid time inside weather windows (spells with Hm0 below the limit lasting at least the duration) by calendar month: a panel per Hm0 limit, a line per minimum duration (windows.parquet; the table below also gives the mean number of windows per month).",
+		W:       vg.Length(max(6.5, 2.4*float64(len(panels)))) * vg.Inch, H: 3.4 * vg.Inch, data: lines}
 	f.draw = func(dc draw.Canvas) {
 		dc.SetColor(color.White)
 		dc.Fill(dc.Rectangle.Path())
-		p.Draw(dc)
+		tiles := draw.Tiles{Rows: 1, Cols: len(panels), PadX: vg.Points(6), PadTop: vg.Points(4), PadBottom: vg.Points(4), PadLeft: vg.Points(4), PadRight: vg.Points(4)}
+		for k, p := range panels {
+			p.Draw(tiles.At(dc, k, 0))
+		}
 	}
 	return f
 }

@@ -521,8 +521,23 @@ func TestReportInChromium(t *testing.T) {
 			acts = append(acts, chromedp.Evaluate(`Array.from(document.querySelectorAll('figure.map')).map(f => ({column: f.dataset.column, min: f.dataset.min, max: f.dataset.max, img: f.querySelector('img').getAttribute('src')}))`, &maps),
 				chromedp.FullScreenshot(&buf, 100), chromedp.ActionFunc(func(context.Context) error { return os.WriteFile(shot, buf, 0o644) }))
 		}
+		var rowH []float64
+		if pi > 0 {
+			acts = append(acts, chromedp.Evaluate(`Array.from(document.querySelectorAll('table.numbers tr')).map(r => r.getBoundingClientRect().height)`, &rowH))
+		}
 		if err := chromedp.Run(ctx, acts...); err != nil {
 			t.Fatalf("chromium on %s: %v", page, err)
+		}
+		if pi > 0 {
+			// the site's numbers: rows of one height (issue 33: some were very tall)
+			lo, hi := math.Inf(1), math.Inf(-1)
+			for _, h := range rowH {
+				lo, hi = math.Min(lo, h), math.Max(hi, h)
+			}
+			if len(rowH) < 10 || hi-lo > 1 {
+				t.Errorf("%s: %d rows in the table of numbers, heights %.1f to %.1f px, want one height", filepath.Base(page), len(rowH), lo, hi)
+			}
+			t.Logf("%s: %d rows of the numbers table, heights %.1f to %.1f px", filepath.Base(page), len(rowH), lo, hi)
 		}
 		rose := false
 		for _, im := range imgs {
