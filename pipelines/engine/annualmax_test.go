@@ -9,6 +9,8 @@ import (
 	"strings"
 	"testing"
 
+	sgreport "swellgrid/export/report"
+	"swellgrid/export/rundir"
 	"swellgrid/internal/parquetread"
 	"swellgrid/internal/runcheck"
 )
@@ -80,6 +82,44 @@ func TestAnnualMaximaAgainstNumpy(t *testing.T) {
 			t.Errorf("cell %d: gev_years %v, annual_maxima.parquet has %v years not excluded", c, years[c], want)
 		}
 	}
+	// The report's year-by-year figure draws these maxima, the two half
+	// years hollow (excluded), at every point of the set.
+	run, err := rundir.Open(out, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sites, _ := sgreport.Sites(run)
+	if len(sites) != len(perCell) {
+		t.Fatalf("%d site pages, %d cells", len(sites), len(perCell))
+	}
+	for _, st := range sites {
+		vals, err := sgreport.PlottedValues(run, st)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ys, ok := vals["site_"+st.Slug+"_year_by_year"].(*sgreport.AnnualSeries)
+		if !ok {
+			t.Errorf("site %s: no year-by-year figure", st.Name)
+			continue
+		}
+		var want []annualMaxRef
+		for _, r := range ref {
+			if r.cell == int64(st.Cell) {
+				want = append(want, r)
+			}
+		}
+		if len(ys.MaxHm0) != len(want) {
+			t.Errorf("site %s: %d annual maxima drawn, numpy %d", st.Name, len(ys.MaxHm0), len(want))
+			continue
+		}
+		for k, w := range want {
+			g := ys.MaxHm0[k]
+			if g.Year != w.year || g.Excluded != w.excluded || float32(g.Value) != float32(w.hm0) {
+				t.Errorf("site %s year %d: drawn %+v, numpy %d %v excluded %v", st.Name, k, g, w.year, w.hm0, w.excluded)
+			}
+		}
+	}
+
 	ext, err := parquetread.Columns(filepath.Join(out, "extremes.parquet"), "cell_id", "method", "n")
 	if err != nil {
 		t.Fatal(err)
