@@ -265,7 +265,7 @@ func exceedanceFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 	vr, val, sh := t.Col("variable"), t.Col("value"), t.Col("share_exceeded")
 	data := ExceedanceSeries{}
 	panel := func(variable, title, x string) *plot.Plot {
-		p := newPlot(title, x, "time exceeded (%, log scale)")
+		p := newPlot(title, x, "time exceeded (%)")
 		var pts plotter.XYs
 		for _, i := range rows {
 			// a share of 0 has no place on a log axis: the curve ends at the
