@@ -67,7 +67,7 @@ func bandRatioMaps(r *rundir.Run, dir string) ([]pageFigure, []string, error) {
 	var files []string
 	for _, m := range maps {
 		name := fmt.Sprintf("p90_p50_%s_%sy", m.Device, fmtNum(m.HorizonY))
-		f := &Field{NX: r.NX, NY: r.NY, Points: !r.Structured(), Lon: r.Lon(), Lat: r.Lat(), Value: m.Ratio, Land: r.Land, Name: name, Unit: "1"}
+		f := &Field{NX: r.NX, NY: r.NY, Points: !r.Structured(), Lon: r.Lon(), Lat: r.Lat(), Value: m.Ratio, Land: r.Land, Name: name, Unit: "1", Marks: mapMarks(r)}
 		meshField(r, f)
 		lo, hi, nv := f.Range()
 		if nv == 0 {
@@ -85,6 +85,7 @@ func bandRatioMaps(r *rundir.Run, dir string) ([]pageFigure, []string, error) {
 		files = append(files, names...)
 		c := fmt.Sprintf("aep_p90_mwh / aep_p50_mwh of aep_bands.parquet (horizon_y = %s): 1 - 1.2816 u_total_frac, from %s to %s; the lower, the less sure the energy. Blank sea cells have no positive P90. The model component is a validation station's near it (model_station) and the spec's assumption elsewhere: a step in the map can be that boundary. Screening estimates; see the caution.",
 			fmtNum(m.HorizonY), fmtNum(lo), fmtNum(hi))
+		c += marksCaption(info.Marks)
 		figs = append(figs, pageFigure{Title: title, Caption: c, PNG: names[0], SVG: names[1], Map: info})
 	}
 	return figs, files, nil
