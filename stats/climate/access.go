@@ -478,3 +478,69 @@ func MeanWaitH(integralMin2, coveredMin float64) float64 {
 	}
 	return integralMin2 / coveredMin / 60
 }
+
+// encode writes the state's fields in a fixed order (the rule is the
+// config's, checked by its fingerprint).
+func (a *AccessState) encode(e *enc) {
+	e.bool(a.hasAcc)
+	e.bool(a.startBroken)
+	e.bool(a.endBroken)
+	e.i64(a.first)
+	e.i64(a.lastEnd)
+	for k := range a.cov {
+		e.u64(a.cov[k])
+		e.u64(a.closed[k].hi)
+		e.u64(a.closed[k].lo)
+	}
+	e.bool(a.hasStart)
+	e.i64(a.firstStart)
+	e.bool(a.pend.has)
+	e.i64(a.pend.ref)
+	for k := range a.pend.c {
+		e.i64(a.pend.c[k])
+		e.u64(a.pend.m[k].hi)
+		e.u64(a.pend.m[k].lo)
+	}
+	e.i64(a.run.start)
+	e.i64(a.run.end)
+	e.u64(uint64(a.run.nseg))
+	for _, s := range a.run.seg {
+		e.u64(uint64(s.cm))
+		e.i64(s.p)
+		e.i64(s.q)
+	}
+	e.bool(a.leadOpen)
+	e.i64(a.leadLen)
+}
+
+// decode reads what encode wrote into a state made for the same rule.
+func (a *AccessState) decode(d *dec) {
+	a.hasAcc, a.startBroken, a.endBroken = d.bool(), d.bool(), d.bool()
+	a.first, a.lastEnd = d.i64(), d.i64()
+	for k := range a.cov {
+		a.cov[k] = d.u64()
+		a.closed[k] = i128{d.u64(), d.u64()}
+	}
+	a.hasStart, a.firstStart = d.bool(), d.i64()
+	a.pend.has, a.pend.ref = d.bool(), d.i64()
+	for k := range a.pend.c {
+		a.pend.c[k] = d.i64()
+		a.pend.m[k] = i128{d.u64(), d.u64()}
+	}
+	a.run.start, a.run.end = d.i64(), d.i64()
+	n := d.u64()
+	if d.err == nil && n > uint64(len(a.run.seg)) {
+		d.err = errors.New("climate: checkpoint holds a corrupt access state (calm-run segments)")
+		return
+	}
+	a.run.nseg = int8(n)
+	for k := range a.run.seg {
+		cm := d.u64()
+		if d.err == nil && cm > 11 {
+			d.err = errors.New("climate: checkpoint holds a corrupt access state (month)")
+			return
+		}
+		a.run.seg[k] = accSeg{int8(cm), d.i64(), d.i64()}
+	}
+	a.leadOpen, a.leadLen = d.bool(), d.i64()
+}

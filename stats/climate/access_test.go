@@ -213,3 +213,54 @@ func TestAccessRuleValidate(t *testing.T) {
 		t.Error(err)
 	}
 }
+
+// TestAccessInCellState feeds the fixture through a CellState with two
+// access rules, split in two parts, each checkpointed and restored, then
+// merged: the waits equal those of the standalone states (checked against
+// numpy above) and the checkpoint bytes equal those of the whole record.
+func TestAccessInCellState(t *testing.T) {
+	steps := readAccessSeries(t)
+	rules := []AccessRule{{Hm0M: 1.5, RepairH: 24}, {Hm0M: 2.0, TeS: 8, RepairH: 12}}
+	cfg := DefaultConfig()
+	cfg.AccessRules = rules
+	if err := cfg.Validate(); err != nil {
+		t.Fatal(err)
+	}
+	for cell := 0; cell < 2; cell++ {
+		feed := func(part []accessStep) *CellState {
+			s := NewCellState(cfg)
+			for i := range part {
+				p := &part[i]
+				st := PrepareTime(2001, p.month, float64(p.start)/60, float64(p.w)/60)
+				s.AddAt(&st, math.NaN(), p.hm0[cell], p.te[cell], math.NaN(), math.NaN())
+			}
+			return s
+		}
+		whole := feed(steps)
+		wb, _ := whole.MarshalBinary()
+		k := len(steps) / 3
+		a, b := feed(steps[:k]), feed(steps[k:])
+		for _, x := range []*CellState{a, b} {
+			bb, _ := x.MarshalBinary()
+			y := NewCellState(cfg)
+			if err := y.UnmarshalBinary(bb); err != nil {
+				t.Fatal(err)
+			}
+			*x = *y
+		}
+		if err := a.Merge(b); err != nil {
+			t.Fatal(err)
+		}
+		ab, _ := a.MarshalBinary()
+		if string(ab) != string(wb) {
+			t.Errorf("cell %d: merged checkpoint differs from the whole record's", cell)
+		}
+		sum := a.Summary()
+		for r, rule := range rules {
+			want := feedAccess(t, rule, steps, cell).Result().MeanWaitH
+			if got := sum.Access[r].MeanWaitH; got != want {
+				t.Errorf("cell %d rule %d: summary wait %g, standalone %g", cell, r, got, want)
+			}
+		}
+	}
+}

@@ -15,10 +15,12 @@ import (
 // version 4 writes the month table as the years with data, each with its
 // twelve months (3: a first year and every year of the span); version 5
 // adds, after each year's months, its device sums per month and device
-// (minutes u32, power sum u128), for the year-by-year device energy.
+// (minutes u32, power sum u128), for the year-by-year device energy;
+// version 6 adds the repair-access states (their count, then each one's
+// fields in AccessState.encode's order) at the end.
 const (
 	binMagic   = "SGCS"
-	binVersion = 5
+	binVersion = 6
 )
 
 type enc struct{ b []byte }
@@ -154,6 +156,10 @@ func (s *CellState) MarshalBinary() ([]byte, error) {
 		e.u64(s.rose.j[k])
 	}
 	e.u64(s.rose.wJ)
+	e.u64(uint64(len(s.acc)))
+	for k := range s.acc {
+		s.acc[k].encode(e)
+	}
 	return e.b, nil
 }
 
@@ -242,6 +248,10 @@ func (s *CellState) UnmarshalBinary(b []byte) error {
 		t.rose.w[k], t.rose.j[k] = d.u64(), d.u64()
 	}
 	t.rose.wJ = d.u64()
+	arrLen(len(t.acc), "access rules")
+	for k := range t.acc {
+		t.acc[k].decode(d)
+	}
 	if d.err != nil {
 		return d.err
 	}
@@ -255,5 +265,5 @@ func (s *CellState) UnmarshalBinary(b []byte) error {
 // approxBytes is the size of the checkpoint encoding.
 func (s *CellState) approxBytes() int {
 	return 4 + 2 + 8 + 27*16 + 4*(len(s.histH)+len(s.histJ)+len(s.scW)+len(s.winCnt)+len(s.winMin)) +
-		8*len(s.scJ) + 24*len(s.ym) + 20*len(s.yd) + 8*len(s.ys) + 64*len(s.runs) + 96*len(s.dev) + 16*len(s.rose.w) + 144
+		8*len(s.scJ) + 24*len(s.ym) + 20*len(s.yd) + 8*len(s.ys) + 64*len(s.runs) + 96*len(s.dev) + 16*len(s.rose.w) + 144 + 8 + 700*len(s.acc)
 }

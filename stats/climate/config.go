@@ -51,6 +51,10 @@ type Config struct {
 	// Devices whose yield is computed per cell (may be empty).
 	Devices []*Device
 
+	// AccessRules are the repair-access rules whose waiting time is kept
+	// per cell (access.go; at most 16, may be empty).
+	AccessRules []AccessRule
+
 	// DirectionSectors is the number of equal direction sectors of the
 	// directional distribution of power and occurrence (directions.go),
 	// MinDirectionSectors..MaxDirectionSectors.
@@ -107,6 +111,7 @@ type layout struct {
 	maxDurMin      int64
 	nDev           int
 	nRose          int
+	nAcc           int
 }
 
 func positiveFinite(x float64) bool { return x > 0 && !math.IsInf(x, 1) }
@@ -178,6 +183,14 @@ func (c *Config) Validate() error {
 	if c.DirectionSectors < MinDirectionSectors || c.DirectionSectors > MaxDirectionSectors {
 		bad("DirectionSectors=%d: must be %d..%d", c.DirectionSectors, MinDirectionSectors, MaxDirectionSectors)
 	}
+	if len(c.AccessRules) > 16 {
+		bad("at most 16 access rules (got %d)", len(c.AccessRules))
+	}
+	for i, r := range c.AccessRules {
+		if err := r.Validate(); err != nil {
+			errs = append(errs, fmt.Errorf("climate config: AccessRules[%d]: %w", i, err))
+		}
+	}
 	seen := map[string]bool{}
 	for i, d := range c.Devices {
 		if d == nil {
@@ -213,6 +226,7 @@ func (c *Config) Validate() error {
 	}
 	l.nDev = len(c.Devices)
 	l.nRose = c.DirectionSectors
+	l.nAcc = len(c.AccessRules)
 	c.lay = l
 	c.fingerprint = c.computeFingerprint()
 	c.valid = true
@@ -253,6 +267,14 @@ func (c *Config) computeFingerprint() uint64 {
 			}
 		}
 	}
+	if len(c.AccessRules) > 0 { // configs without access rules keep their fingerprint
+		w("access rules " + strconv.Itoa(len(c.AccessRules)))
+		for _, r := range c.AccessRules {
+			f(r.Hm0M)
+			f(r.TeS)
+			f(r.RepairH)
+		}
+	}
 	return h.Sum64()
 }
 
@@ -266,7 +288,8 @@ func (c *Config) StateBytes(years int) int {
 		4*(l.nHm0Hist+1) + 4*(l.nPowerHist+1) + 12*l.nScH*l.nScT +
 		8*l.nLim*l.nDur*12 + (2*int(unsafe.Sizeof(run{}))+1)*l.nLim +
 		int(unsafe.Sizeof(devAcc{}))*l.nDev +
-		(int(unsafe.Sizeof(ymRec{}))*12+int(unsafe.Sizeof(ydRec{}))*12*l.nDev+8)*years + 16*l.nRose
+		(int(unsafe.Sizeof(ymRec{}))*12+int(unsafe.Sizeof(ydRec{}))*12*l.nDev+8)*years + 16*l.nRose +
+		int(unsafe.Sizeof(AccessState{}))*l.nAcc
 }
 
 // CellMemory is the memory model of one cell of a run, in bytes: what a

@@ -104,6 +104,11 @@ func (s *CellState) Merge(later *CellState) error {
 		a.eOut += b.eOut
 	}
 	s.rose.merge(&o.rose)
+	for k := range s.acc {
+		if err := s.acc[k].Merge(&o.acc[k]); err != nil {
+			return err
+		}
+	}
 	return nil
 }
 
@@ -183,8 +188,10 @@ func (s *CellState) mergeWindows(o *CellState, adjacent bool) {
 // copyFrom makes s a deep copy of o (same Config).
 func (s *CellState) copyFrom(o *CellState) {
 	histH, histJ, scW, scJ, ys, ym, yd := s.histH, s.histJ, s.scW, s.scJ, s.ys, s.ym, s.yd
-	winCnt, winMin, runs, leads, leadOpen, dev, rose := s.winCnt, s.winMin, s.runs, s.leads, s.leadOpen, s.dev, s.rose
+	winCnt, winMin, runs, leads, leadOpen, dev, rose, acc := s.winCnt, s.winMin, s.runs, s.leads, s.leadOpen, s.dev, s.rose, s.acc
 	*s = *o
+	s.acc = acc
+	copy(s.acc, o.acc)
 	s.rose = rose
 	s.rose.copyFrom(&o.rose)
 	s.histH, s.histJ, s.scW, s.scJ = histH, histJ, scW, scJ

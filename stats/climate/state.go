@@ -121,7 +121,8 @@ type CellState struct {
 	// step (len 0 if that step was not calm).
 	leadOpen []bool
 	dev      []devAcc
-	rose     roseAcc // directional distribution, see directions.go
+	rose     roseAcc       // directional distribution, see directions.go
+	acc      []AccessState // one per Config.AccessRules, see access.go
 }
 
 // NewCellState returns an empty state for cfg, which must have passed
@@ -143,6 +144,10 @@ func NewCellState(cfg *Config) *CellState {
 	s.leadOpen = make([]bool, l.nLim)
 	s.dev = make([]devAcc, l.nDev)
 	s.rose = newRoseAcc(l.nRose)
+	s.acc = make([]AccessState, l.nAcc)
+	for k, r := range cfg.AccessRules {
+		s.acc[k] = AccessState{rule: r, d: int64(math.Round(r.RepairH * 60))}
+	}
 	s.Reset()
 	return s
 }
@@ -150,7 +155,10 @@ func NewCellState(cfg *Config) *CellState {
 // Reset empties the state, keeping its allocations.
 func (s *CellState) Reset() {
 	*s = CellState{cfg: s.cfg, histH: s.histH, histJ: s.histJ, scW: s.scW, scJ: s.scJ, ys: s.ys[:0], ym: s.ym[:0], yd: s.yd[:0],
-		winCnt: s.winCnt, winMin: s.winMin, runs: s.runs, leads: s.leads, leadOpen: s.leadOpen, dev: s.dev, rose: s.rose}
+		winCnt: s.winCnt, winMin: s.winMin, runs: s.runs, leads: s.leads, leadOpen: s.leadOpen, dev: s.dev, rose: s.rose, acc: s.acc}
+	for k := range s.acc {
+		s.acc[k].Reset()
+	}
 	s.rose.clear()
 	clear(s.histH)
 	clear(s.histJ)
@@ -217,6 +225,9 @@ func (s *CellState) findYear(year int) int {
 func (s *CellState) reject() {
 	s.nRejected++
 	s.breakRuns()
+	for k := range s.acc {
+		s.acc[k].brk()
+	}
 	if !s.hasAcc {
 		s.startBroken = true
 	}
@@ -452,6 +463,12 @@ func (s *CellState) AddAt(t *StepTime, j, h, te, tp, d float64) (j2, h2, te2, tp
 	// weather windows
 	if lay.nLim > 0 {
 		s.addWindows(hOK, h, int8(cm), int64(wi))
+	}
+
+	// repair access
+	for k := range s.acc {
+		a := &s.acc[k]
+		a.add(start, int64(wi), int8(cm), a.rule.calm(h, te))
 	}
 
 	// devices

@@ -27,6 +27,10 @@ type DeviceSummary struct {
 	// CoverageFrac is the share of the accepted step time with valid Hm0 and
 	// matrix period (Te, or Tp for a matrix over Tp).
 	CoverageFrac float64
+	// MonthEnergyShare[m] is the share of the device's energy over the
+	// record produced in calendar month m+1 (all years; NaN without energy),
+	// the weights of the energy-weighted availability.
+	MonthEnergyShare [12]float64
 }
 
 // Summary holds the scalar results of one cell. Power (J) is in kW per metre
@@ -66,6 +70,10 @@ type Summary struct {
 	MonthsUsed, MonthsExcluded                   int
 
 	Devices []DeviceSummary
+
+	// Access holds the repair-access waiting time of each of
+	// Config.AccessRules (access.go), in order.
+	Access []AccessResult
 }
 
 // Summary computes the scalar results. It does not change the state.
@@ -157,9 +165,36 @@ func (s *CellState) Summary() Summary {
 		ds.BelowCutInEnergyShare = share(a.eBelow, a.eAll)
 		ds.OutsideMatrixEnergyShare = share(a.eOut, a.eAll)
 		ds.CoverageFrac = share(a.w, s.wAll)
+		ds.MonthEnergyShare = s.monthEnergyShare(k)
 		out.Devices = append(out.Devices, ds)
 	}
+	for k := range s.acc {
+		out.Access = append(out.Access, s.acc[k].Result())
+	}
 	return out
+}
+
+// monthEnergyShare returns the share of device k's energy (sum over the
+// years of w x power) in each calendar month; NaN without energy.
+func (s *CellState) monthEnergyShare(k int) [12]float64 {
+	nd := s.cfg.lay.nDev
+	var e [12]float64
+	var tot float64
+	for yi := range s.ys {
+		for m := 0; m < 12; m++ {
+			v, _ := s.yd[(yi*12+m)*nd+k].sP.bigFloat().Float64()
+			e[m] += v
+			tot += v
+		}
+	}
+	for m := range e {
+		if tot > 0 {
+			e[m] /= tot
+		} else {
+			e[m] = math.NaN()
+		}
+	}
+	return e
 }
 
 // meanStd returns the mean and the population standard deviation (ddof 0,
