@@ -37,6 +37,7 @@ const (
 	TableAnnual               = "annual"
 	TableAnnualMaxima         = "annual_maxima"
 	TableAEPBands             = "aep_bands"
+	TableAccess               = "access"
 	TableScreening            = "screening"
 	TableValidation           = "validation"
 	TableValidationQQ         = "validation_qq"

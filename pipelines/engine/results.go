@@ -33,6 +33,7 @@ type cellResult struct {
 	dirs    []climate.DirectionRow  // directional distribution (nil: no step with power and direction)
 	annual  []climate.YearRow       // analysis years with data
 	bands   []climate.AEPBand       // AEP bands per device and horizon
+	access  []accessRow             // repair access per device and calendar month
 	iaYears int                     // complete analysis years
 	iaStd   float64                 // inter-annual sample std of annual mean J, kW/m
 }
@@ -51,6 +52,7 @@ func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResu
 	r.iaYears, r.iaStd = climate.InterannualPower(r.annual)
 	if r.sum.Steps > 0 {
 		r.bands = climate.AEPBands(r.annual, r.sum.Devices, e.spec.Uncertainty.HorizonsY, e.model.forCell(e.cat.Grid.Lon[id], e.cat.Grid.Lat[id]))
+		r.access = e.accessRows(r)
 	}
 	if r.sum.Steps > 0 {
 		cfg := acfg

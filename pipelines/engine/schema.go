@@ -68,6 +68,17 @@ func gpdLevel(c *cellRow, get func(extremes.Level) float64) float64 {
 
 func device(c *cellRow) climate.DeviceSummary { return c.r.sum.Devices[c.k] }
 
+// access is the repair access of the column's device at the cell (NaN
+// fields when the device has no access rule).
+func access(c *cellRow) deviceAccess {
+	a, _, ok := c.e.accessOf(c.r, c.k)
+	if !ok {
+		nan := math.NaN()
+		return deviceAccess{waitH: nan, availability: nan, censoredShare: nan}
+	}
+	return a
+}
+
 // cellsSchema is cells.parquet, one row per cell of the grid in cell-id order.
 var cellsSchema = []tables.Column[*cellRow]{
 	tables.I64("cell_id", "1", "", "", "stable cell id: index in swellgrid's canonical cell order",
@@ -173,6 +184,14 @@ var cellsSchema = []tables.Column[*cellRow]{
 		func(c *cellRow) float64 { return device(c).BelowCutInEnergyShare }).When(nullNoData).Per(tables.ParamDevice),
 	tables.F64("energy_outside_matrix_<device>_frac", "1", "", "", "share of incident wave energy arriving in sea states outside the power matrix of <device> (Hm0 above its top row's edge, or the period beyond its outer columns' edges), where it yields nothing",
 		func(c *cellRow) float64 { return device(c).OutsideMatrixEnergyShare }).When(nullNoData).Per(tables.ParamDevice),
+	tables.F64("access_wait_<device>_h", "h", "", "", "mean wait from a failure of <device> at a random instant to the first instant from which its repair (repair_h) can go on in an unbroken access window (Hm0 below access_hm0_m, and Te below access_te_s when set), from the record by duration (null: no access rule)",
+		func(c *cellRow) float64 { return access(c).waitH }).When(nullNoData).Per(tables.ParamDevice),
+	tables.F64("access_censored_<device>_frac", "1", "", "", "share of the record after its last access window for <device>: failures there wait until the record's end, so access_wait_<device>_h is a lower bound when this is large",
+		func(c *cellRow) float64 { return access(c).censoredShare }).When(nullNoData).Per(tables.ParamDevice),
+	tables.F64("availability_<device>", "1", "", "", "availability of <device>: 1 - failures_per_year (wait + repair_h) / 8766 h per calendar month of the failure, weighted by the device's energy in that month (see access.parquet; screening estimate)",
+		func(c *cellRow) float64 { return access(c).availability }).When(nullNoData).Per(tables.ParamDevice),
+	tables.F64("energy_available_<device>_mwh", "MWh/yr", "", "", "aep_<device>_mwh x availability_<device>: the device's yield with its downtime, before array interaction and export losses (screening.parquet adds them per scenario)",
+		func(c *cellRow) float64 { return device(c).AEPMWh * access(c).availability }).When(nullNoData).Per(tables.ParamDevice),
 	tables.I64("bad_bins", "1", "", "", "missing, negative or non-finite spectral densities seen, each set to 0",
 		func(c *cellRow) int64 { return c.r.badBins }).When(nullNoCell),
 	tables.I64("invalid_values", "1", "", "", "values that were present but unusable (negative, infinite or out of range), left out",
@@ -423,6 +442,7 @@ var longSchemas = []longTable{
 	longSchema[annualRow]{"annual", annualSchema, annualRows},
 	longSchema[annualMaxRow]{"annual_maxima", annualMaxSchema, annualMaxRows},
 	longSchema[climate.AEPBand]{"aep_bands", bandsSchema, bandRows},
+	longSchema[accessRow]{"access", accessSchema, func(r *cellResult) []accessRow { return r.access }},
 }
 
 // Schema lists every column of every table the run writes, patterns
@@ -801,3 +821,18 @@ var bandsSchema = []tables.Column[bRow]{
 }
 
 func bandRows(r *cellResult) []climate.AEPBand { return r.bands }
+
+type acRow = longRow[accessRow]
+
+// accessSchema is access.parquet: per cell, device with an access rule and
+// calendar month, the repair access (see pipelines/engine/delivery.go).
+var accessSchema = []tables.Column[acRow]{
+	cellID[accessRow](),
+	cellName[accessRow](),
+	tables.Str("device", "", "device (a [[device]] with failures_per_year, repair_h and access_hm0_m)", func(x acRow) string { return x.v.device }),
+	tables.I64("month", "1", "", "", "calendar month 1..12 of the failure", func(x acRow) int64 { return int64(x.v.month) }),
+	tables.F64("record_hours", "h", "", "", "covered time of the calendar month over the record", func(x acRow) float64 { return x.v.hours }),
+	tables.F64("access_wait_h", "h", "", "", "mean wait from a failure in the month to the first instant from which the repair can go on in an unbroken access window", func(x acRow) float64 { return x.v.waitH }),
+	tables.F64("availability", "1", "", "", "1 - failures_per_year (access_wait_h + repair_h) / 8766 h, clipped to [0, 1]", func(x acRow) float64 { return x.v.availability }),
+	tables.F64("energy_share", "1", "", "", "share of the device's energy over the record produced in the calendar month (the weight of availability_<device> in cells.parquet)", func(x acRow) float64 { return x.v.energyShare }),
+}

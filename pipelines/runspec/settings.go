@@ -143,6 +143,9 @@ func (r *Resolved) ClimateConfig(cat *ingest.Catalog) (*climate.Config, error) {
 		}
 		dev.Rated = d.RatedKW
 		c.Devices = append(c.Devices, dev)
+		if d.HasAccess() {
+			c.AccessRules = append(c.AccessRules, d.AccessRule())
+		}
 	}
 	if err := c.Validate(); err != nil {
 		return nil, err
@@ -217,4 +220,24 @@ func (s *Spec) devicePeriod(dev *climate.Device, d DeviceSpec, cat *ingest.Catal
 		dev.TeOverTp = s.Physics.TeOverTp
 	}
 	return nil
+}
+
+// AccessRule is the device's repair-access rule (HasAccess must hold).
+func (d DeviceSpec) AccessRule() climate.AccessRule {
+	return climate.AccessRule{Hm0M: d.AccessHm0M, TeS: d.AccessTeS, RepairH: d.RepairH}
+}
+
+// AccessIndex returns, for each device of the spec, the index of its rule
+// in the climate config's AccessRules, or -1 when it has none.
+func (s *Spec) AccessIndex() []int {
+	out := make([]int, len(s.Devices))
+	n := 0
+	for i, d := range s.Devices {
+		out[i] = -1
+		if d.HasAccess() {
+			out[i] = n
+			n++
+		}
+	}
+	return out
 }

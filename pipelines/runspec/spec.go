@@ -148,7 +148,20 @@ type DeviceSpec struct {
 	Period MatrixPeriod `toml:"period" json:"period"`
 	// RatedKW is the data sheet's rated power, kW (0: the largest matrix entry).
 	RatedKW float64 `toml:"rated_kw" json:"rated_kw"`
+	// Repair access (issue 32; all of failures_per_year, repair_h and
+	// access_hm0_m, or none): failures per device-year, the repair's
+	// duration (h), and the access limits: Hm0 below access_hm0_m (m) and,
+	// if set, Te below access_te_s (s) for an unbroken window of at least
+	// repair_h. They give the access_wait_<device>_h and
+	// availability_<device> columns (stats/delivery).
+	FailuresPerYear float64 `toml:"failures_per_year" json:"failures_per_year,omitempty"`
+	RepairH         float64 `toml:"repair_h" json:"repair_h,omitempty"`
+	AccessHm0M      float64 `toml:"access_hm0_m" json:"access_hm0_m,omitempty"`
+	AccessTeS       float64 `toml:"access_te_s" json:"access_te_s,omitempty"`
 }
+
+// HasAccess reports whether the device has a repair-access rule.
+func (d DeviceSpec) HasAccess() bool { return d.AccessHm0M > 0 }
 
 // ContourSpec chooses the contour layers.
 type ContourSpec struct {
@@ -172,7 +185,7 @@ type OutputSpec struct {
 
 // LongTableNames are the run's long tables, by name (the file is the name
 // with ".parquet"), in file order: what output.long_tables may choose.
-var LongTableNames = []string{contract.TableAEPBands, contract.TableAnnual, contract.TableAnnualMaxima, contract.TableDesign, contract.TableDirections,
+var LongTableNames = []string{contract.TableAccess, contract.TableAEPBands, contract.TableAnnual, contract.TableAnnualMaxima, contract.TableDesign, contract.TableDirections,
 	contract.TableExceedance, contract.TableExtremes, contract.TableMonthly, contract.TableScatter,
 	contract.TableThresholdDiagnostics, contract.TableWindows}
 
@@ -484,6 +497,14 @@ func (s *Spec) Validate() error {
 		}
 		if !(d.RatedKW >= 0 && d.RatedKW < 1<<30) {
 			return bad(key+".rated_kw", "must be a power in kW >= 0 (0: the largest matrix entry)", d.RatedKW)
+		}
+		if d.FailuresPerYear != 0 || d.RepairH != 0 || d.AccessHm0M != 0 || d.AccessTeS != 0 {
+			if !(d.FailuresPerYear > 0 && d.FailuresPerYear < 1000) {
+				return bad(key+".failures_per_year", "must be a failure rate per device-year, > 0 and < 1000, when repair access is given (failures_per_year, repair_h, access_hm0_m)", d.FailuresPerYear)
+			}
+			if err := (climate.AccessRule{Hm0M: d.AccessHm0M, TeS: d.AccessTeS, RepairH: d.RepairH}).Validate(); err != nil {
+				return fmt.Errorf("spec: %s (repair_h, access_hm0_m, access_te_s): %w", key, err)
+			}
 		}
 	}
 	for col, lv := range s.Contours.Levels {

@@ -3,8 +3,8 @@
 (stats/climate/access.go, issue 32), with Debian's python3-netcdf4 and
 python3-numpy; no swellgrid code.
 
-Invented, synthetic data (no real place): two cells of one CF file,
-access.nc (global attribute synthetic = "yes"):
+Invented, synthetic data (no real place): two cells in monthly CF files,
+nc/access_2001MM.nc (global attribute synthetic = "yes"):
   cell 0  a known calm/storm pattern: 30 h calm (Hm0 1.0 m) then 18 h of
           storm (Hm0 3.0 m), repeated from 2001-01-01 00:00;
   cell 1  a random sea (fixed seed): an Ornstein-Uhlenbeck variable mapped
@@ -30,6 +30,13 @@ The reference (reference.json), for each cell and access rule:
    uniformly over the covered time, continuous): the wait to the next start
    interval [a, a + L - D] of each calm run of length L >= D; its mean and
    95 % interval (mean +- 1.96 s / sqrt(n)).
+3. for the run of spec.toml (pipelines/engine/access_e2e_test.go): each
+   device's power per step by bin lookup in its matrix (the function of
+   testdata/e2e/reference.py), its energy by calendar month (sum of w P),
+   the availability per month A_m = clip(1 - lambda (W_m + R) / 8766 h)
+   with W_m the scan's mean wait, the energy-weighted availability
+   sum A_m E_m / sum E_m, the AEP (time-weighted mean power x 8766 h) and
+   AEP x availability.
 Also series.csv (start minute, duration minutes, month, Hm0, Te per cell)
 for the unit test, which does not read NetCDF.
 Run: /usr/bin/python3 testdata/access/make_reference.py
@@ -39,12 +46,22 @@ import json
 import math
 import os
 
+import importlib.util
+import sys
+
 import netCDF4
 import numpy as np
+
+sys.dont_write_bytecode = True  # no __pycache__ in testdata
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 EPOCH = datetime.datetime(2001, 1, 1)
 RULES = {"a": (1.5, 0.0, 24.0), "b": (2.0, 8.0, 12.0)}
+# spec.toml's devices: (matrix, failures per year, access rule)
+DEVICES = {"wec_a": ("device_a.csv", 3.0, "a"), "wec_b": ("device_b.csv", 6.0, "b")}
+_spec = importlib.util.spec_from_file_location("e2e_reference", os.path.join(HERE, "..", "e2e", "reference.py"))
+E2E = importlib.util.module_from_spec(_spec)
+_spec.loader.exec_module(E2E)
 
 
 def times_h():
@@ -138,6 +155,7 @@ def minute_scan(start, w, mon, calm, dmin):
         k = cov & (cm == m)
         mw.append(float(integ[k].sum() / k.sum() / 60.0) if k.any() else None)
     out["month_wait_h"] = mw
+    out["month_hours"] = [float(np.sum(cov & (cm == m))) / 60.0 for m in range(1, 13)]
     return out
 
 
@@ -168,15 +186,10 @@ def monte_carlo(start, w, calm, dmin, n=200000, seed=20261205):
     return {"mean_h": m, "lo_h": m - h, "hi_h": m + h, "n": n, "seed": seed}
 
 
-def main():
-    t = times_h()
-    w = weights(t)
-    hm0, te = series(t)
-    mon = months(t)
-    start = np.round(t * 60).astype(np.int64)
-    wm = np.round(w * 60).astype(np.int64)
-
-    ds = netCDF4.Dataset(os.path.join(HERE, "access.nc"), "w")
+def write_month(path, t, hm0, te):
+    """One CF file of the record (the fixture is split by month, as
+    hindcasts are, so that calm runs cross the files' edges)."""
+    ds = netCDF4.Dataset(path, "w")
     ds.synthetic = "yes"
     ds.comment = "Invented, synthetic sea states for the repair-access tests of swellgrid (no real place)."
     ds.Conventions = "CF-1.8"
@@ -200,12 +213,26 @@ def main():
     v.standard_name = "sea_surface_wave_mean_period_from_variance_spectral_density_inverse_frequency_moment"
     v[:] = te.reshape(len(t), 1, 2)
     ds.close()
+
+
+def main():
+    t = times_h()
+    w = weights(t)
+    hm0, te = series(t)
+    mon = months(t)
+    start = np.round(t * 60).astype(np.int64)
+    wm = np.round(w * 60).astype(np.int64)
+
+    os.makedirs(os.path.join(HERE, "nc"), exist_ok=True)
+    for m in sorted(set(mon)):
+        k = mon == m
+        write_month(os.path.join(HERE, "nc", "access_2001%02d.nc" % m), t[k], hm0[k], te[k])
     # the values as stored (float32), for the unit test and the reference
     hm0 = hm0.astype(np.float32).astype(np.float64)
     te = te.astype(np.float32).astype(np.float64)
 
     with open(os.path.join(HERE, "series.csv"), "w") as f:
-        f.write("# synthetic: invented sea states of testdata/access/access.nc (make_reference.py)\n")
+        f.write("# synthetic: invented sea states of testdata/access/nc/ (make_reference.py)\n")
         f.write("start_min,dur_min,month,hm0_0,te_0,hm0_1,te_1\n")
         for i in range(len(t)):
             f.write("%d,%d,%d,%r,%r,%r,%r\n" % (start[i], wm[i], mon[i], hm0[i, 0], te[i, 0], hm0[i, 1], te[i, 1]))
@@ -219,6 +246,19 @@ def main():
             r["monte_carlo"] = monte_carlo(start, wm, calm, int(dh * 60))
             cell[name] = r
         ref["cells"].append(cell)
+    for c in range(2):
+        for name, (mfile, lam, rule) in DEVICES.items():
+            dev = E2E.matrix(os.path.join(HERE, "..", "e2e", mfile))
+            p, _, _ = E2E.device_power(hm0[:, c], te[:, c], dev)
+            e = np.array([np.sum(wm[mon == m] * p[mon == m]) for m in range(1, 13)], float)
+            waits = ref["cells"][c][rule]["month_wait_h"]
+            rh = RULES[rule][2]
+            am = [min(1.0, max(0.0, 1 - lam * (wt + rh) / 8766.0)) if wt is not None else None for wt in waits]
+            num = sum(am[m] * e[m] for m in range(12) if am[m] is not None and e[m] > 0)
+            den = sum(e[m] for m in range(12) if am[m] is not None and e[m] > 0)
+            aep = float(np.sum(wm * p) / np.sum(wm)) * 8766.0 / 1000.0
+            ref["cells"][c][name] = {"availability": num / den, "aep_mwh": aep, "energy_available_mwh": aep * num / den,
+                                     "month_availability": am, "month_energy_share": [float(x / e.sum()) for x in e]}
     ref["rules"] = {k: {"hm0_m": v[0], "te_s": v[1], "repair_h": v[2]} for k, v in RULES.items()}
     with open(os.path.join(HERE, "reference.json"), "w") as f:
         json.dump(ref, f, indent=1, sort_keys=True)
