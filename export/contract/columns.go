@@ -47,6 +47,10 @@ func Hm0ReturnLevelColumn(t float64) string { return "hm0_rl" + Tag(t) + "y_m" }
 // aep_<device>_mwh.
 func AEPColumn(device string) string { return "aep_" + device + "_mwh" }
 
+// AvailabilityColumn is cells.parquet's energy-weighted availability of a
+// device from its repair access: availability_<device>.
+func AvailabilityColumn(device string) string { return "availability_" + device }
+
 // CapacityFactorColumn is cells.parquet's capacity factor of a device:
 // cf_<device>.
 func CapacityFactorColumn(device string) string { return "cf_" + device }

@@ -49,6 +49,25 @@ type ScenarioSummary struct {
 	Devices         *float64 `json:"devices,omitempty"`
 	AnnualEnergyGWh *float64 `json:"annual_energy_gwh,omitempty"`
 	CellsWithoutAEP int      `json:"cells_without_aep,omitempty"`
+	// Delivered energy (issue 32): the layout's energy at the grid
+	// connection, sum(area_km2 x density x delivered_mwh) / 1000 over the
+	// passing cells with one, and the factors' assumptions: the array
+	// factor, the route factor, the loss model (fixed share and share per
+	// km) and the route length at which AC and DC export lose the same
+	// (stats/delivery defaults, common practice).
+	DeliveredEnergyGWh *float64 `json:"delivered_energy_gwh,omitempty"`
+	ArrayFactor        float64  `json:"array_factor,omitempty"`
+	Connection         string   `json:"connection,omitempty"`
+	RouteFactor        float64  `json:"route_factor,omitempty"`
+	LossFixed          float64  `json:"loss_fixed,omitempty"`
+	LossPerKm          float64  `json:"loss_per_km,omitempty"`
+	LossCrossoverKm    *float64 `json:"ac_dc_loss_crossover_km,omitempty"`
+	// LCOE is the layout's levelised cost (currency per MWh delivered):
+	// (capital x CRF + operating) / delivered energy, summed over the
+	// passing cells; LCOERank its rank among the scenarios with one (1:
+	// cheapest). Screening figures from stated assumptions, not advice.
+	LCOE     *float64 `json:"lcoe_per_mwh,omitempty"`
+	LCOERank int      `json:"lcoe_rank,omitempty"`
 	// Polygons is ContourDir/ScreeningOutlineFile(Name) (structured grids).
 	Polygons string `json:"polygons,omitempty"`
 }

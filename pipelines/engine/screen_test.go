@@ -27,7 +27,7 @@ func smallScreenRun(t *testing.T) string {
 	nan := math.NaN()
 	power := []float64{20, 25, 30, 35, 40, 10, 18, nan, 22, 50, 16, 17, 19, 21, 23}
 	depth := []float64{60, 60, 60, 60, 60, 60, 60, 60, 200, 60, 20, 60, 60, 60, 60}
-	var lon, lat, aep []float64
+	var lon, lat, aep, avail, cf []float64
 	var ids []int64
 	flags := make([]string, 15)
 	for j, y := range latAx {
@@ -38,6 +38,8 @@ func smallScreenRun(t *testing.T) string {
 	}
 	for i, p := range power {
 		aep = append(aep, 100*p)
+		avail = append(avail, 0.99-0.01*float64(i)) // invented availabilities for the delivered-energy test
+		cf = append(cf, 100*p/(0.5*8766))            // a 500 kW device
 		if i == 11 {
 			aep[i] = nan
 		}
@@ -50,6 +52,8 @@ func smallScreenRun(t *testing.T) string {
 		export.Float64Column("depth_m", "m", "depth", depth),
 		export.Float64Column("power_mean_kw_m", "kW/m", "power", power),
 		export.Float64Column("aep_wec_mwh", "MWh/yr", "aep", aep),
+		export.Float64Column("availability_wec", "1", "availability", avail),
+		export.Float64Column("cf_wec", "1", "capacity factor", cf),
 		export.StringColumn("qc_flags", "", "flags", flags, nil),
 	}}
 	if err := export.WriteGeoParquet(filepath.Join(dir, "cells.parquet"), tb, lon, lat); err != nil {

@@ -24,6 +24,7 @@ import (
 	"swellgrid/export/contract"
 	"swellgrid/grid"
 	"swellgrid/pipelines/fault"
+	"swellgrid/stats/delivery"
 )
 
 // ScreeningSpec is the [screening] section: layers, then scenarios using
@@ -58,7 +59,89 @@ type ScenarioSpec struct {
 	// DevicesPerKm2 devices per km2 of passing area ("": no layout energy).
 	Device        string  `toml:"device" json:"device,omitempty"`
 	DevicesPerKm2 float64 `toml:"devices_per_km2" json:"devices_per_km2,omitempty"`
+	// SpacingAlongM and SpacingAcrossM (m, along and across the mean wave
+	// direction) give the density instead: 1e6 / (along x across) devices
+	// per km2 (stats/delivery.DevicesPerKm2).
+	SpacingAlongM  float64 `toml:"spacing_along_m" json:"spacing_along_m,omitempty"`
+	SpacingAcrossM float64 `toml:"spacing_across_m" json:"spacing_across_m,omitempty"`
+
+	// Energy delivered ashore (issue 32; with device). ArrayFactor is the
+	// array interaction (0: the default 1, recorded as an assumption).
+	// Connection names a layer of grid connection points or lines: the
+	// export route is the geodesic distance to its nearest feature times
+	// RouteFactor (0: DefaultRouteFactor); Export "ac" (default) or "dc"
+	// chooses the loss defaults (stats/delivery.DefaultAC, DefaultDC),
+	// which LossFixed and LossPerKm replace when given.
+	ArrayFactor float64  `toml:"array_factor" json:"array_factor,omitempty"`
+	Connection  string   `toml:"connection" json:"connection,omitempty"`
+	RouteFactor float64  `toml:"route_factor" json:"route_factor,omitempty"`
+	Export      string   `toml:"export" json:"export,omitempty"`
+	LossFixed   *float64 `toml:"loss_fixed" json:"loss_fixed,omitempty"`
+	LossPerKm   *float64 `toml:"loss_per_km" json:"loss_per_km,omitempty"`
+
+	// Levelised cost (optional; all five, with connection): capital cost
+	// per MW installed, export cable cost per km of route, operating cost
+	// per MW-year, discount rate (0.08 is 8 %) and lifetime in years.
+	// Currency as the user's; the figures are screening figures from stated
+	// assumptions, not investment advice.
+	CapexPerMW   float64 `toml:"capex_per_mw" json:"capex_per_mw,omitempty"`
+	CablePerKm   float64 `toml:"cable_per_km" json:"cable_per_km,omitempty"`
+	OpexPerMWYr  float64 `toml:"opex_per_mw_yr" json:"opex_per_mw_yr,omitempty"`
+	DiscountRate float64 `toml:"discount_rate" json:"discount_rate,omitempty"`
+	LifetimeY    int     `toml:"lifetime_y" json:"lifetime_y,omitempty"`
 }
+
+// DefaultRouteFactor is the export route's length over the geodesic
+// distance when the spec gives none: 1.1 (common practice for screening;
+// from memory).
+const DefaultRouteFactor = 1.1
+
+// Density returns the scenario's devices per km2 (devices_per_km2, or
+// from the spacings).
+func (c ScenarioSpec) Density() float64 {
+	if c.DevicesPerKm2 > 0 {
+		return c.DevicesPerKm2
+	}
+	if c.SpacingAlongM > 0 && c.SpacingAcrossM > 0 {
+		return delivery.DevicesPerKm2(c.SpacingAlongM, c.SpacingAcrossM)
+	}
+	return 0
+}
+
+// Array returns the scenario's array factor (1 when not given).
+func (c ScenarioSpec) Array() float64 {
+	if c.ArrayFactor > 0 {
+		return c.ArrayFactor
+	}
+	return 1
+}
+
+// Route returns the scenario's route factor.
+func (c ScenarioSpec) Route() float64 {
+	if c.RouteFactor > 0 {
+		return c.RouteFactor
+	}
+	return DefaultRouteFactor
+}
+
+// Losses returns the scenario's export loss model: the AC or DC default,
+// with loss_fixed and loss_per_km in its place when given.
+func (c ScenarioSpec) Losses() delivery.LossModel {
+	m := delivery.DefaultAC
+	if c.Export == "dc" {
+		m = delivery.DefaultDC
+	}
+	if c.LossFixed != nil {
+		m.Fixed = *c.LossFixed
+	}
+	if c.LossPerKm != nil {
+		m.PerKm = *c.LossPerKm
+	}
+	return m
+}
+
+// HasCost reports whether the scenario gives the levelised-cost inputs.
+func (c ScenarioSpec) HasCost() bool { return c.LifetimeY > 0 }
 
 // DistanceRule bounds the geodesic distance from a cell's centre to the
 // nearest feature of a layer: at least MinKm, at most MaxKm (0: no bound).
@@ -212,15 +295,26 @@ func (s *Spec) checkScreening(devices map[string]bool) error {
 				return fmt.Errorf("spec: %s: min_km = %v, max_km = %v: give min_km and/or max_km, positive distances in km with min_km <= max_km", dk, d.MinKm, d.MaxKm)
 			}
 		}
+		spaced := c.SpacingAlongM != 0 || c.SpacingAcrossM != 0
 		if c.Device != "" {
 			if devices != nil && !devices[c.Device] {
 				return fmt.Errorf("spec: %s.device = %q is not a [[device]] of the run", key, c.Device)
 			}
-			if !(c.DevicesPerKm2 > 0) || math.IsInf(c.DevicesPerKm2, 0) {
-				return fmt.Errorf("spec: %s.devices_per_km2 = %v: give the layout density, devices per km2 (> 0), with device", key, c.DevicesPerKm2)
+			switch {
+			case spaced && c.DevicesPerKm2 != 0:
+				return fmt.Errorf("spec: %s: give devices_per_km2 or spacing_along_m and spacing_across_m, not both", key)
+			case spaced:
+				if !(c.SpacingAlongM > 0 && c.SpacingAcrossM > 0) || math.IsInf(c.SpacingAlongM, 0) || math.IsInf(c.SpacingAcrossM, 0) {
+					return fmt.Errorf("spec: %s: spacing_along_m = %v, spacing_across_m = %v: give both, positive distances between devices in m", key, c.SpacingAlongM, c.SpacingAcrossM)
+				}
+			case !(c.DevicesPerKm2 > 0) || math.IsInf(c.DevicesPerKm2, 0):
+				return fmt.Errorf("spec: %s.devices_per_km2 = %v: give the layout density, devices per km2 (> 0), or spacing_along_m and spacing_across_m, with device", key, c.DevicesPerKm2)
 			}
-		} else if c.DevicesPerKm2 != 0 {
-			return fmt.Errorf("spec: %s.devices_per_km2 is set without device; name the [[device]] whose AEP the layout uses", key)
+		} else if c.DevicesPerKm2 != 0 || spaced {
+			return fmt.Errorf("spec: %s.devices_per_km2 (or a spacing) is set without device; name the [[device]] whose AEP the layout uses", key)
+		}
+		if err := c.checkDelivery(key, byName); err != nil {
+			return err
 		}
 	}
 	return nil
@@ -552,6 +646,47 @@ func (sc *ScreeningSpec) CheckColumns(names map[string]string) error {
 			if _, ok := names[cr.Column]; !ok {
 				return fmt.Errorf("spec: screening.scenario[%d] (%s): criterion %q: %q is not a column of cells.parquet (see the README's column list)", i, c.Name, t, cr.Column)
 			}
+		}
+	}
+	return nil
+}
+
+// checkDelivery checks the scenario's delivered-energy and cost settings.
+func (c ScenarioSpec) checkDelivery(key string, layers map[string]bool) error {
+	set := c.ArrayFactor != 0 || c.Connection != "" || c.RouteFactor != 0 || c.Export != "" || c.LossFixed != nil || c.LossPerKm != nil
+	cost := c.CapexPerMW != 0 || c.CablePerKm != 0 || c.OpexPerMWYr != 0 || c.DiscountRate != 0 || c.LifetimeY != 0
+	if (set || cost) && c.Device == "" {
+		return fmt.Errorf("spec: %s: delivered energy and cost settings need a device; name the [[device]] of the layout", key)
+	}
+	if c.ArrayFactor != 0 && !(c.ArrayFactor > 0 && c.ArrayFactor <= 2) {
+		return fmt.Errorf("spec: %s.array_factor = %v: give the array interaction factor, > 0 and at most 2 (1: none)", key, c.ArrayFactor)
+	}
+	if c.Connection != "" && !layers[c.Connection] {
+		return fmt.Errorf("spec: %s.connection = %q: no [[screening.layer]] of that name; give the layer of grid connection points or lines", key, c.Connection)
+	}
+	if c.RouteFactor != 0 && !(c.RouteFactor >= 1 && c.RouteFactor <= 5) {
+		return fmt.Errorf("spec: %s.route_factor = %v: give the route length over the geodesic distance, 1 to 5", key, c.RouteFactor)
+	}
+	if c.Export != "" && c.Export != "ac" && c.Export != "dc" {
+		return fmt.Errorf("spec: %s.export = %q: must be \"ac\" or \"dc\"", key, c.Export)
+	}
+	for _, v := range []struct {
+		name string
+		p    *float64
+		max  float64
+	}{{"loss_fixed", c.LossFixed, 1}, {"loss_per_km", c.LossPerKm, 0.01}} {
+		if v.p != nil && !(*v.p >= 0 && *v.p < v.max) {
+			return fmt.Errorf("spec: %s.%s = %v: give a share of the energy (0.01 is 1 %%), at least 0 and below %g", key, v.name, *v.p, v.max)
+		}
+	}
+	if (set || cost) && c.Connection == "" {
+		return fmt.Errorf("spec: %s: delivered energy needs connection, the layer of grid connection points or lines the export route runs to", key)
+	}
+	if cost {
+		if !(c.CapexPerMW > 0) || !(c.CablePerKm >= 0) || !(c.OpexPerMWYr >= 0) || !(c.DiscountRate >= 0 && c.DiscountRate < 1) || c.LifetimeY < 1 || c.LifetimeY > 100 ||
+			math.IsInf(c.CapexPerMW, 0) || math.IsInf(c.CablePerKm, 0) || math.IsInf(c.OpexPerMWYr, 0) {
+			return fmt.Errorf("spec: %s: levelised cost: give capex_per_mw > 0, cable_per_km >= 0, opex_per_mw_yr >= 0, discount_rate in [0, 1) and lifetime_y 1 to 100 (got %v, %v, %v, %v, %d)",
+				key, c.CapexPerMW, c.CablePerKm, c.OpexPerMWYr, c.DiscountRate, c.LifetimeY)
 		}
 	}
 	return nil

@@ -46,6 +46,7 @@ type screenRow struct {
 	areaKm2  float64
 	dist     []float64 // km, per distance layer of the run (screenResult.distLayers)
 	k        int       // index of the column's distance layer
+	del      delivered // energy delivered ashore (NaN: the scenario has no device or connection)
 }
 
 // screeningSchema is screening.parquet, one row per cell and scenario, in
@@ -60,6 +61,22 @@ var screeningSchema = []tables.Column[*screenRow]{
 		func(r *screenRow) float64 { return r.areaKm2 }),
 	tables.F64("dist_<layer>_km", "km", "", "", "geodesic distance on WGS 84 from the cell centre to the nearest feature of layer <layer> (0 inside its polygons)",
 		func(r *screenRow) float64 { return r.dist[r.k] }).Per(ParamLayer),
+	tables.F64("aep_mwh", "MWh/yr", "", "", "open-water annual energy of one device of the scenario (aep_<device>_mwh of cells.parquet; null: no device)",
+		func(r *screenRow) float64 { return r.del.aep }),
+	tables.F64("array_factor", "1", "", "", "array interaction factor of the scenario (array_factor; 1 unless given: an assumption)",
+		func(r *screenRow) float64 { return r.del.array }),
+	tables.F64("availability", "1", "", "", "availability of the device from its repair access (availability_<device> of cells.parquet)",
+		func(r *screenRow) float64 { return r.del.avail }),
+	tables.F64("route_km", "km", "", "", "export route: geodesic distance to the nearest feature of the connection layer x route_factor",
+		func(r *screenRow) float64 { return r.del.routeKm }),
+	tables.F64("loss_frac", "1", "", "", "export loss: loss_fixed + loss_per_km x route_km (AC or DC common-practice defaults unless given), at most 1",
+		func(r *screenRow) float64 { return r.del.loss }),
+	tables.F64("delivered_mwh", "MWh/yr", "", "", "energy of one device delivered at the connection: aep_mwh x array_factor x availability x (1 - loss_frac) (screening estimate)",
+		func(r *screenRow) float64 { return r.del.energy }),
+	tables.F64("cf_delivered", "1", "", "", "capacity factor of the delivered energy: cf_<device> x array_factor x availability x (1 - loss_frac)",
+		func(r *screenRow) float64 { return r.del.cf }),
+	tables.F64("lcoe_per_mwh", "currency/MWh", "", "", "levelised cost of the cell's layout (area_km2 x density devices, with an export cable of its own): ((capex_per_mw x MW + cable_per_km x route_km) x CRF(discount_rate, lifetime_y) + opex_per_mw_yr x MW) over its delivered energy; CRF = r (1+r)^n / ((1+r)^n - 1) (null: no cost inputs or no area; a screening figure from stated assumptions, not investment advice)",
+		func(r *screenRow) float64 { return r.del.lcoe }),
 }
 
 // ParamLayer is the screening layer a distance column is repeated over.
@@ -159,6 +176,10 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 			return nil, fault.Input(fmt.Errorf("screening: scenario %s: device %q: the run has no column aep_%s_mwh; name a [[device]] of the run", c.Name, c.Device, c.Device))
 		}
 	}
+	conn, err := connections(r, s, g)
+	if err != nil {
+		return nil, err
+	}
 	power := r.Cells.Col(contract.ColPowerMean)
 	passes := make([][]bool, len(sc.Scenarios))
 	for k := range passes {
@@ -204,6 +225,7 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 					row.reasons = append(row.reasons, fmt.Sprintf("%s distance > %g km", d.Layer, d.MaxKm))
 				}
 			}
+			row.del = deliveredAt(r, c, i, areaKm2[i], conn[c.Connection])
 			row.pass = len(row.reasons) == 0
 			passes[k][i] = row.pass
 			res.rows = append(res.rows, row)
@@ -212,6 +234,7 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 	corners, structured := grid.CellCorners(g)
 	for k, c := range sc.Scenarios {
 		ss := summarise(c, passes[k], areaKm2, areas != nil, power, r.Cells.Col(contract.AEPColumn(c.Device)))
+		summariseDelivered(&ss, c, res.rows, k, len(sc.Scenarios), areas != nil)
 		switch {
 		case structured:
 			res.polys[c.Name] = grid.Dissolve(corners, passes[k], g.Kind == grid.Regular)
@@ -223,6 +246,7 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 		}
 		sum.Scenarios = append(sum.Scenarios, ss)
 	}
+	rankLCOE(sum.Scenarios)
 	res.summary = sum
 	return res, nil
 }
@@ -240,7 +264,7 @@ func fptr(v float64) *float64 {
 // layout's devices rho sum a_i and annual energy rho sum(a_i AEP_i) / 1000
 // (GWh/yr; no array interaction, availability or transmission losses).
 func summarise(c runspec.ScenarioSpec, pass []bool, areaKm2 []float64, hasArea bool, power, aep *rundir.Column) contract.ScenarioSummary {
-	s := contract.ScenarioSummary{Name: c.Name, Exclude: c.Exclude, Within: c.Within, Distance: c.Distance, Device: c.Device, DevicesPerKm2: c.DevicesPerKm2}
+	s := contract.ScenarioSummary{Name: c.Name, Exclude: c.Exclude, Within: c.Within, Distance: c.Distance, Device: c.Device, DevicesPerKm2: c.Density()}
 	for _, t := range c.Criteria {
 		cr, _ := runspec.ParseCriterion(t)
 		s.Criteria = append(s.Criteria, cr.Text)
@@ -270,7 +294,7 @@ func summarise(c runspec.ScenarioSpec, pass []bool, areaKm2 []float64, hasArea b
 		}
 		if c.Device != "" && hasArea {
 			if v := aep.Value(i); !math.IsNaN(v) {
-				energy += areaKm2[i] * c.DevicesPerKm2 * v
+				energy += areaKm2[i] * c.Density() * v
 			} else {
 				s.CellsWithoutAEP++
 			}
@@ -285,7 +309,7 @@ func summarise(c runspec.ScenarioSpec, pass []bool, areaKm2 []float64, hasArea b
 		s.ResourceMWhPerMYr = fptr(m * 8766 / 1000)
 	}
 	if c.Device != "" && hasArea {
-		s.Devices = fptr(area * c.DevicesPerKm2)
+		s.Devices = fptr(area * c.Density())
 		s.AnnualEnergyGWh = fptr(energy / 1000)
 	}
 	return s

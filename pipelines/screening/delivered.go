@@ -1,0 +1,136 @@
+package screening
+
+// Energy delivered ashore per cell and scenario (issue 32): the open-water
+// AEP of the scenario's device times the array factor, the availability
+// from repair access (cells.parquet) and one minus the export loss over
+// the route to the nearest connection feature; the layout's levelised
+// cost. The formulas are stats/delivery's.
+
+import (
+	"fmt"
+	"math"
+	"path/filepath"
+	"sort"
+
+	"swellgrid/export/contract"
+	"swellgrid/export/rundir"
+	"swellgrid/grid"
+	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
+	"swellgrid/stats/delivery"
+)
+
+// delivered is one cell's delivered energy under one scenario.
+type delivered struct {
+	aep, array, avail, routeKm, loss, energy, cf, lcoe float64
+	// layout sums for the scenario's summary (area x density devices)
+	mw, capex, opex, layoutMWh float64
+}
+
+func noDelivery() delivered {
+	n := math.NaN()
+	return delivered{n, n, n, n, n, n, n, n, n, n, n, n}
+}
+
+// connections measures, once per connection layer, the geodesic distance
+// (km) from every cell centre to the nearest feature.
+func connections(r *rundir.Run, s *runspec.Resolved, g *grid.Grid) (map[string][]float64, error) {
+	out := map[string][]float64{}
+	for _, c := range s.Screening.Scenarios {
+		if c.Connection == "" || out[c.Connection] != nil {
+			continue
+		}
+		if c.Device != "" && r.Cells.Col(contract.AvailabilityColumn(c.Device)) == nil {
+			return nil, fault.Input(fmt.Errorf("screening: scenario %s: delivered energy needs the availability of device %q, and %s has no column %s: give the [[device]] failures_per_year, repair_h and access_hm0_m",
+				c.Name, c.Device, filepath.Join(r.Dir, "cells.parquet"), contract.AvailabilityColumn(c.Device)))
+		}
+		d, err := layerDistancesKm(g, s.ScreeningLayer(c.Connection).Geoms, g.Frame())
+		if err != nil {
+			return nil, fmt.Errorf("screening: connection layer %s: %w", c.Connection, err)
+		}
+		out[c.Connection] = d
+	}
+	return out, nil
+}
+
+// deliveredAt computes cell i's delivered energy under scenario c (dist:
+// the distances to c's connection layer, nil without one).
+func deliveredAt(r *rundir.Run, c runspec.ScenarioSpec, i int, areaKm2 float64, dist []float64) delivered {
+	d := noDelivery()
+	if c.Device == "" || dist == nil {
+		return d
+	}
+	d.aep = r.Cells.Col(contract.AEPColumn(c.Device)).Value(i)
+	d.array = c.Array()
+	d.avail = r.Cells.Col(contract.AvailabilityColumn(c.Device)).Value(i)
+	d.routeKm = delivery.RouteKm(dist[i], c.Route())
+	d.loss = c.Losses().Loss(d.routeKm)
+	if math.IsNaN(d.routeKm) {
+		d.loss = math.NaN()
+	}
+	d.energy = delivery.Delivered(d.aep, d.array, d.avail, d.loss)
+	cf := r.Cells.Col(contract.CapacityFactorColumn(c.Device)).Value(i)
+	d.cf = delivery.Delivered(cf, d.array, d.avail, d.loss)
+	// rated power from the open-water AEP and capacity factor (AEP = CF x
+	// rated x 8766 h)
+	ratedMW := d.aep / (cf * delivery.HoursPerYear)
+	if c.HasCost() && areaKm2 > 0 && cf > 0 {
+		n := areaKm2 * c.Density()
+		d.mw = n * ratedMW
+		d.capex = c.CapexPerMW*d.mw + c.CablePerKm*d.routeKm
+		d.opex = c.OpexPerMWYr * d.mw
+		d.layoutMWh = n * d.energy
+		d.lcoe = delivery.LCOE(d.capex, d.opex, d.layoutMWh, c.DiscountRate, c.LifetimeY)
+	}
+	return d
+}
+
+// summariseDelivered adds scenario k's delivered energy and levelised cost
+// over its passing cells (rows: every cell's row of every scenario, nsc
+// scenarios per cell) to its summary.
+func summariseDelivered(s *contract.ScenarioSummary, c runspec.ScenarioSpec, rows []*screenRow, k, nsc int, hasArea bool) {
+	if c.Device == "" || c.Connection == "" {
+		return
+	}
+	m := c.Losses()
+	s.ArrayFactor, s.Connection, s.RouteFactor, s.LossFixed, s.LossPerKm = c.Array(), c.Connection, c.Route(), m.Fixed, m.PerKm
+	s.LossCrossoverKm = fptr(delivery.LossCrossoverKm(delivery.DefaultAC, delivery.DefaultDC))
+	if !hasArea {
+		return
+	}
+	var e, capex, opex, mwh float64
+	costOK := c.HasCost()
+	for j := k; j < len(rows); j += nsc {
+		r := rows[j]
+		if !r.pass {
+			continue
+		}
+		if v := r.areaKm2 * c.Density() * r.del.energy; !math.IsNaN(v) {
+			e += v
+		}
+		if costOK && !math.IsNaN(r.del.lcoe) { // cells without a delivered energy add nothing, as to the energy
+			capex += r.del.capex
+			opex += r.del.opex
+			mwh += r.del.layoutMWh
+		}
+	}
+	s.DeliveredEnergyGWh = fptr(e / 1000)
+	if costOK && mwh > 0 {
+		s.LCOE = fptr(delivery.LCOE(capex, opex, mwh, c.DiscountRate, c.LifetimeY))
+	}
+}
+
+// rankLCOE ranks the scenarios with a levelised cost, cheapest first (ties
+// in spec order).
+func rankLCOE(sc []contract.ScenarioSummary) {
+	var idx []int
+	for i := range sc {
+		if sc[i].LCOE != nil {
+			idx = append(idx, i)
+		}
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return *sc[idx[a]].LCOE < *sc[idx[b]].LCOE })
+	for r, i := range idx {
+		sc[i].LCOERank = r + 1
+	}
+}
