@@ -6,6 +6,7 @@ package engine
 // x calendar month). The formulas are stats/delivery's.
 
 import (
+	"fmt"
 	"math"
 
 	"swellgrid/stats/delivery"
@@ -69,6 +70,24 @@ func (e *engine) accessRows(r *cellResult) []accessRow {
 				}
 			}
 		}
+	}
+	return out
+}
+
+// accessAssumptions states the availability model and each device's
+// access rule, for the manifest.
+func (e *engine) accessAssumptions() []string {
+	var out []string
+	for _, d := range e.spec.Devices {
+		if !d.HasAccess() {
+			continue
+		}
+		te := ""
+		if d.AccessTeS > 0 {
+			te = fmt.Sprintf(" and Te below %g s", d.AccessTeS)
+		}
+		out = append(out, fmt.Sprintf("availability of %s: %g failures per device-year, each stopping it for the wait until Hm0 stays below %g m%s for an unbroken %g h, then the %g h repair; the wait from the cell's own record by duration (failure at a uniformly random instant); availability 1 - failures x (wait + repair) / 8766 h per calendar month of the failure, weighted by the device's energy in that month (assumed, not from a reliability study: replace the rates with the device's)",
+			d.Name, d.FailuresPerYear, d.AccessHm0M, te, d.RepairH, d.RepairH))
 	}
 	return out
 }

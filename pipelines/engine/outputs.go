@@ -167,6 +167,7 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 		m.Assumptions = append(m.Assumptions, n)
 	}
 	m.Assumptions = append(m.Assumptions, e.deviceAssumptions()...)
+	m.Assumptions = append(m.Assumptions, e.accessAssumptions()...)
 	if strings.HasPrefix(c.DepthSource, "deep-water") {
 		m.Assumptions = append(m.Assumptions, "deep water everywhere (given)")
 	}

@@ -39,7 +39,7 @@ func smallScreenRun(t *testing.T) string {
 	for i, p := range power {
 		aep = append(aep, 100*p)
 		avail = append(avail, 0.99-0.01*float64(i)) // invented availabilities for the delivered-energy test
-		cf = append(cf, 100*p/(0.5*8766))            // a 500 kW device
+		cf = append(cf, 100*p/(0.5*8766))           // a 500 kW device
 		if i == 11 {
 			aep[i] = nan
 		}
