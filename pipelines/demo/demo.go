@@ -44,7 +44,10 @@ func Specs(dir string) []*runspec.Spec {
 		s := runspec.DefaultSpec()
 		s.Input.Paths = []string{filepath.Join(hind, glob)}
 		s.Output.Dir = filepath.Join(dir, out)
-		s.Devices = []runspec.DeviceSpec{{Name: "demo_wec", PowerMatrix: filepath.Join(hind, "demo_device.csv"), Lookup: "bilinear"}}
+		// Repair access (invented failure rate and repair; an assumption the
+		// manifest states): availability and the access waits by month.
+		s.Devices = []runspec.DeviceSpec{{Name: "demo_wec", PowerMatrix: filepath.Join(hind, "demo_device.csv"), Lookup: "bilinear",
+			FailuresPerYear: 2, RepairH: 12, AccessHm0M: 2.0}}
 		s.Contours.Columns = contours
 		return s
 	}
@@ -59,7 +62,17 @@ func Specs(dir string) []*runspec.Spec {
 		Scenarios: []runspec.ScenarioSpec{{Name: "demo_core",
 			Criteria: []string{contract.ColPowerMean + " >= 15", contract.ColDepth + " between 30 and 150", contract.Hm0ReturnLevelColumn(100) + " <= 14", contract.CapacityFactorColumn("demo_wec") + " >= 0.1"},
 			Exclude:  []string{"reserve"}, Distance: []runspec.DistanceRule{{Layer: "ports", MaxKm: 150}},
-			Device: "demo_wec", DevicesPerKm2: 2}},
+			Device: "demo_wec", DevicesPerKm2: 2,
+			// energy delivered ashore and its levelised cost (invented costs)
+			ArrayFactor: 0.95, Connection: "ports", Export: "ac",
+			CapexPerMW: 5e6, CablePerKm: 1.5e6, OpexPerMWYr: 1.5e5, DiscountRate: 0.08, LifetimeY: 20},
+			// the same sieve without the depth criterion, farther out, exporting DC
+			{Name: "demo_offshore",
+				Criteria: []string{contract.ColPowerMean + " >= 15", contract.CapacityFactorColumn("demo_wec") + " >= 0.1"},
+				Exclude:  []string{"reserve"}, Distance: []runspec.DistanceRule{{Layer: "ports", MinKm: 60}},
+				Device: "demo_wec", SpacingAlongM: 500, SpacingAcrossM: 1000,
+				ArrayFactor: 0.95, Connection: "ports", Export: "dc",
+				CapexPerMW: 5.5e6, CablePerKm: 2.5e6, OpexPerMWYr: 2e5, DiscountRate: 0.08, LifetimeY: 20}},
 	}
 	return []*runspec.Spec{
 		grid,

@@ -588,9 +588,9 @@ func TestReportInChromium(t *testing.T) {
 	if len(want) < 5 {
 		t.Errorf("only %v have values", want)
 	}
-	// then one map per screening scenario (the demo has one, with passing
+	// then one map per screening scenario (the demo has two, with passing
 	// and failing sea cells: a colour bar from 0 to 1)
-	want = append(want, "screening_demo_core")
+	want = append(want, "screening_demo_core", "screening_demo_offshore")
 	// then the P90/P50 ratio of the device's annual energy per horizon
 	// (aep_bands.parquet; a map where some sea cell has a positive P90)
 	ratio := map[string][]float64{}
