@@ -226,6 +226,8 @@ var columnProofs = map[string]proof{
 	"screening.parquet:delivered_mwh":             by("TestScreeningDeliveredByHand", "aep x array factor x availability x (1 - loss) written out"),
 	"screening.parquet:cf_delivered":              by("TestScreeningDeliveredByHand", "delivered / (500 kW x 8766 h)"),
 	"screening.parquet:lcoe_per_mwh":              by("TestScreeningDeliveredByHand", "(capex x CRF + opex) / energy with CRF(8 %, 20 y) written out and checked against 0.1018522088"),
+	"cells.parquet:availability_<device>":         by("TestAccessAgainstNumpy", "the energy-weighted availability computed with numpy from the scan's monthly waits and the bin-lookup device energy by month"),
+	"cells.parquet:energy_available_<device>_mwh": by("TestAccessAgainstNumpy", "numpy AEP x availability"),
 	"access.parquet:cell_id":                      by("TestAccessAgainstNumpy", "the fixture's cells"),
 	"access.parquet:name":                         by("TestStationNamesInEveryTable", "station names in every table"),
 	"access.parquet:device":                       by("TestAccessAgainstNumpy", "the spec's devices with an access rule"),
