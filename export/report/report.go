@@ -290,7 +290,7 @@ func marksJSON(marks []Mark) string {
 	}
 	out := make([]m, len(marks))
 	for i, k := range marks {
-		out[i] = m{k.Name, k.Lon, k.Lat, k.Station}
+		out[i] = m(k)
 	}
 	b, _ := json.Marshal(out)
 	return string(b)
