@@ -445,6 +445,22 @@ func browserProfile(t *testing.T) string {
 	return dir
 }
 
+// headlessChrome starts Debian's chromium headless (no sandbox, no GPU, no
+// background network, a private profile) with a window of w x h and a
+// context that ends after three minutes; cancel stops it.
+func headlessChrome(t *testing.T, chrome string, w, h int) (context.Context, func()) {
+	opts := append(chromedp.DefaultExecAllocatorOptions[:0:0],
+		chromedp.ExecPath(chrome), chromedp.Headless, chromedp.NoSandbox, chromedp.DisableGPU,
+		chromedp.NoFirstRun, chromedp.NoDefaultBrowserCheck,
+		chromedp.Flag("disable-quic", true), chromedp.Flag("disable-background-networking", true),
+		chromedp.Flag("disable-component-update", true), chromedp.Flag("disable-sync", true),
+		chromedp.UserDataDir(browserProfile(t)), chromedp.WindowSize(w, h))
+	actx, cancel := chromedp.NewExecAllocator(context.Background(), opts...)
+	ctx, cancel2 := chromedp.NewContext(actx)
+	ctx, cancel3 := context.WithTimeout(ctx, 3*time.Minute)
+	return ctx, func() { cancel3(); cancel2(); cancel() }
+}
+
 // Headless chromium (Debian chromium) opens the demo's report from disk:
 // no console error, no request to the network, every image loads; each map
 // is not blank (luminance variance of its data area above a floor) and its
@@ -460,18 +476,8 @@ func TestReportInChromium(t *testing.T) {
 	os.MkdirAll(shotDir, 0o755)
 	shot := filepath.Join(shotDir, "report_demo_index.png")
 
-	opts := append(chromedp.DefaultExecAllocatorOptions[:0:0],
-		chromedp.ExecPath(chrome), chromedp.Headless, chromedp.NoSandbox, chromedp.DisableGPU,
-		chromedp.NoFirstRun, chromedp.NoDefaultBrowserCheck,
-		chromedp.Flag("disable-quic", true), chromedp.Flag("disable-background-networking", true),
-		chromedp.Flag("disable-component-update", true), chromedp.Flag("disable-sync", true),
-		chromedp.UserDataDir(browserProfile(t)), chromedp.WindowSize(1280, 1000))
-	actx, cancel := chromedp.NewExecAllocator(context.Background(), opts...)
+	ctx, cancel := headlessChrome(t, chrome, 1280, 1000)
 	defer cancel()
-	ctx, cancel2 := chromedp.NewContext(actx)
-	defer cancel2()
-	ctx, cancel3 := context.WithTimeout(ctx, 3*time.Minute)
-	defer cancel3()
 	var mu sync.Mutex
 	var consoleErrs, requests []string
 	chromedp.ListenTarget(ctx, func(ev any) {

@@ -2,7 +2,6 @@ package demo
 
 import (
 	"bytes"
-	"context"
 	"encoding/json"
 	"fmt"
 	"image"
@@ -88,18 +87,8 @@ func TestServeInChromium(t *testing.T) {
 		return c
 	}
 
-	opts := append(chromedp.DefaultExecAllocatorOptions[:0:0],
-		chromedp.ExecPath(chrome), chromedp.Headless, chromedp.NoSandbox, chromedp.DisableGPU,
-		chromedp.NoFirstRun, chromedp.NoDefaultBrowserCheck,
-		chromedp.Flag("disable-quic", true), chromedp.Flag("disable-background-networking", true),
-		chromedp.Flag("disable-component-update", true), chromedp.Flag("disable-sync", true),
-		chromedp.UserDataDir(browserProfile(t)), chromedp.WindowSize(1400, 900))
-	actx, cancel := chromedp.NewExecAllocator(context.Background(), opts...)
+	ctx, cancel := headlessChrome(t, chrome, 1400, 900)
 	defer cancel()
-	ctx, cancel2 := chromedp.NewContext(actx)
-	defer cancel2()
-	ctx, cancel3 := context.WithTimeout(ctx, 3*time.Minute)
-	defer cancel3()
 	var mu sync.Mutex
 	var consoleErrs, requests []string
 	chromedp.ListenTarget(ctx, func(ev any) {
