@@ -180,6 +180,19 @@ var e2eFixtureChecks = map[string]string{
 	"bad_bins": "0 on bulk input", "invalid_values": "0", "rejected_steps": "0", "qc_flags": "no no_data", "name": "empty (no station names in the files)",
 }
 
+// e2eNoAccessRule are the columns of a device's repair access, null for
+// every cell when the spec gives the device no access rule (as
+// testdata/e2e/spec.toml does; testdata/access checks them against numpy).
+var e2eNoAccessRule = []string{"access_wait_%s_h", "access_censored_%s_frac", "availability_%s", "energy_available_%s_mwh"}
+
+func init() {
+	for _, d := range []string{"wec_a", "wec_b"} {
+		for _, c := range e2eNoAccessRule {
+			e2eFixtureChecks[fmt.Sprintf(c, d)] = "null without an access rule"
+		}
+	}
+}
+
 func near(got, want float64, tl tol) bool {
 	if math.IsNaN(want) {
 		return math.IsNaN(got)
@@ -347,6 +360,13 @@ func TestE2EColumnsAgainstNumpy(t *testing.T) {
 		for _, c := range []string{"directionality", "width_mean"} {
 			if v := num(c)[id]; !math.IsNaN(v) {
 				t.Errorf("cell %d: %s = %g on bulk input, want null", id, c, v)
+			}
+		}
+		for _, d := range []string{"wec_a", "wec_b"} {
+			for _, c := range e2eNoAccessRule {
+				if v := num(fmt.Sprintf(c, d))[id]; !math.IsNaN(v) {
+					t.Errorf("cell %d: %s = %g without an access rule, want null", id, fmt.Sprintf(c, d), v)
+				}
 			}
 		}
 		for _, c := range []string{"bad_bins", "invalid_values", "rejected_steps"} {

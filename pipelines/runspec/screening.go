@@ -69,7 +69,7 @@ type ScenarioSpec struct {
 	// array interaction (0: the default 1, recorded as an assumption).
 	// Connection names a layer of grid connection points or lines: the
 	// export route is the geodesic distance to its nearest feature times
-	// RouteFactor (0: DefaultRouteFactor); Export "ac" (default) or "dc"
+	// RouteFactor (0: defaultRouteFactor); Export "ac" (default) or "dc"
 	// chooses the loss defaults (stats/delivery.DefaultAC, DefaultDC),
 	// which LossFixed and LossPerKm replace when given.
 	ArrayFactor float64  `toml:"array_factor" json:"array_factor,omitempty"`
@@ -91,10 +91,10 @@ type ScenarioSpec struct {
 	LifetimeY    int     `toml:"lifetime_y" json:"lifetime_y,omitempty"`
 }
 
-// DefaultRouteFactor is the export route's length over the geodesic
+// defaultRouteFactor is the export route's length over the geodesic
 // distance when the spec gives none: 1.1 (common practice for screening;
 // from memory).
-const DefaultRouteFactor = 1.1
+const defaultRouteFactor = 1.1
 
 // Density returns the scenario's devices per km2 (devices_per_km2, or
 // from the spacings).
@@ -121,7 +121,7 @@ func (c ScenarioSpec) Route() float64 {
 	if c.RouteFactor > 0 {
 		return c.RouteFactor
 	}
-	return DefaultRouteFactor
+	return defaultRouteFactor
 }
 
 // Losses returns the scenario's export loss model: the AC or DC default,
