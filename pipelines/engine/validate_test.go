@@ -388,6 +388,9 @@ func TestValidateRelativeManifestHint(t *testing.T) {
 		}
 		m["path"] = rel
 	}
+	// a manifest of that time also predates the checksums and the seal
+	// (rundir reads such a run with a warning)
+	delete(doc, "output_checksums")
 	b, _ = json.Marshal(doc)
 	os.WriteFile(filepath.Join(dir, "manifest.json"), b, 0o644)
 	cells, _ := os.ReadFile(filepath.Join(run, "cells.parquet"))

@@ -224,6 +224,15 @@ func TestConstantStepScaleFree(t *testing.T) {
 	var ref string
 	for _, w := range []float64{24, 3, 1, 0.5} {
 		res := Analyse(streamMaximaW(w, gumbelDraws(30, 3), 0, 4, 10, 29), AnalysisConfig{})
+		// the annual maxima's valid and full-year times scale with the
+		// step; their ratio, the coverage, must not
+		for i := range res.AnnualMaxima {
+			am := &res.AnnualMaxima[i]
+			if r := float64(am.ValidMinutes) / float64(am.FullMinutes); math.Abs(r-am.Coverage) > 1e-12 {
+				t.Errorf("step %g h, year %d: valid/full %g, coverage %g", w, am.Year, r, am.Coverage)
+			}
+			am.ValidMinutes, am.FullMinutes = 0, 0
+		}
 		s := nanSafe(res)
 		if ref == "" {
 			ref = s
