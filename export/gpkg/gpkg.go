@@ -573,14 +573,11 @@ func footprints(r *rundir.Run, frameNote string) *Layer {
 // median dual cell, per cell in cell-id order (empty where a node has none).
 func meshFootprints(r *rundir.Run) *Layer {
 	m := r.Mesh
-	rings := grid.MeshOutlines(m.Location, m.NodeLon, m.NodeLat, m.FaceOff, m.FaceNode)
 	geoms := make([]orb.Geometry, r.Cells.Rows)
-	for i := range geoms {
-		geoms[i] = orb.MultiPolygon{}
-	}
-	for e, c := range m.Cell {
-		if e < len(rings) && rings[e] != nil && c >= 0 && c < len(geoms) {
-			geoms[c] = orb.MultiPolygon{orb.Polygon{rings[e]}}
+	for c, ring := range m.CellOutlines(r.Cells.Rows) {
+		geoms[c] = orb.MultiPolygon{}
+		if ring != nil {
+			geoms[c] = orb.MultiPolygon{orb.Polygon{ring}}
 		}
 	}
 	what := "its face"

@@ -50,11 +50,11 @@ func styles(r *rundir.Run, layers []*Layer) []style {
 		switch {
 		case strings.HasPrefix(l.Name, "bands_"):
 			col := strings.TrimPrefix(l.Name, "bands_")
-			lo, hi, ok := colRange(r, col)
+			cm, ok := colScale(r, col)
 			if !ok {
 				continue
 			}
-			cm := report.NewViridis(lo, hi)
+			lo, hi := cm.Min(), cm.Max()
 			unit := unitSuffix(l.Columns)
 			lower, upper := colOf(l, "lower"), colOf(l, "upper")
 			if lower == nil || upper == nil {
@@ -119,17 +119,17 @@ func styles(r *rundir.Run, layers []*Layer) []style {
 			continue
 		}
 		col := contract.ColPowerMean
-		lo, hi, ok := colRange(r, col)
+		cm, ok := colScale(r, col)
 		if !ok {
 			continue
 		}
+		lo, hi := cm.Min(), cm.Max()
 		edges := bandEdges[col]
 		if len(edges) == 0 { // no bands of the column: six equal classes
 			for k := 1; k < 6; k++ {
 				edges = append(edges, lo+(hi-lo)*float64(k)/6)
 			}
 		}
-		cm := report.NewViridis(lo, hi)
 		unit := ""
 		if c := r.Cells.Col(col); c != nil {
 			unit = unitText(c.Unit)
@@ -178,13 +178,15 @@ func writeStyles(exec func(string, ...any) error, lastChange string, ss []style)
 		StylesTable, StylesTable, "default layer styles (QGIS styleQML, OGC SLD 1.1 styleSLD)", lastChange)
 }
 
-// colRange is the range of the cells' finite values of col on sea cells.
-func colRange(r *rundir.Run, col string) (lo, hi float64, ok bool) {
+// colScale is the colour scale of col as the report's map of it takes it
+// (report.MapColours over the range of its finite values on sea cells);
+// ok is false when col has none.
+func colScale(r *rundir.Run, col string) (*report.Viridis, bool) {
 	c := r.Cells.Col(col)
 	if c == nil || !c.Numeric() {
-		return 0, 0, false
+		return nil, false
 	}
-	lo, hi = math.Inf(1), math.Inf(-1)
+	lo, hi := math.Inf(1), math.Inf(-1)
 	for i := 0; i < r.Cells.Rows; i++ {
 		if r.Land != nil && r.Land[i] {
 			continue
@@ -196,12 +198,9 @@ func colRange(r *rundir.Run, col string) (lo, hi float64, ok bool) {
 		lo, hi = math.Min(lo, v), math.Max(hi, v)
 	}
 	if lo > hi {
-		return 0, 0, false
+		return nil, false
 	}
-	if hi == lo { // as the report's maps widen a flat range
-		hi = lo + math.Max(1e-9, math.Abs(lo)*1e-6)
-	}
-	return lo, hi, true
+	return report.MapColours(lo, hi), true
 }
 
 func colourAt(cm *report.Viridis, v, lo, hi float64) color.NRGBA {

@@ -130,6 +130,10 @@ func MapScale(lo, hi float64) Scale {
 	return s
 }
 
+// MapColours is the viridis of the report's map of a column whose sea cells
+// run from lo to hi (Map): a flat range widened as the map widens it.
+func MapColours(lo, hi float64) *Viridis { return mapScale(lo, hi) }
+
 func hexColour(c color.NRGBA) string { return fmt.Sprintf("#%02x%02x%02x", c.R, c.G, c.B) }
 
 // UnitLabel is a unit as the report's titles give it: " (unit)", nothing

@@ -4,7 +4,10 @@ import (
 	"fmt"
 	"path/filepath"
 
+	"github.com/paulmach/orb"
+
 	"swellgrid/export/contract"
+	"swellgrid/grid"
 )
 
 // Mesh is the UGRID mesh of a run on one (from mesh_nodes.parquet and
@@ -87,4 +90,18 @@ func readMesh(dir string, cells int) (*Mesh, error) {
 		return nil, bad(nodes, "the mesh (data on %q) has %d cells, cells.parquet %d", m.Location, seen, cells)
 	}
 	return m, nil
+}
+
+// CellOutlines is the outline of each of the run's cells cells in cell-id
+// order: its face, or its node's median dual cell (grid.MeshOutlines; nil
+// for a node without one).
+func (m *Mesh) CellOutlines(cells int) []orb.Ring {
+	rings := grid.MeshOutlines(m.Location, m.NodeLon, m.NodeLat, m.FaceOff, m.FaceNode)
+	out := make([]orb.Ring, cells)
+	for e, c := range m.Cell {
+		if e < len(rings) && c >= 0 && c < cells {
+			out[c] = rings[e]
+		}
+	}
+	return out
 }

@@ -113,7 +113,11 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 	sc := s.Screening
 	g := runGrid(r)
 	n := g.NCells()
-	areas := cellAreasM2(r, g)
+	var outlines []orb.Ring // a mesh's cells (faces or median dual cells)
+	if r.Mesh != nil {
+		outlines = r.Mesh.CellOutlines(n)
+	}
+	areas := cellAreasM2(g, outlines)
 	areaKm2 := make([]float64, n)
 	for i := range areaKm2 {
 		areaKm2[i] = math.NaN()
@@ -239,7 +243,7 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 		case structured:
 			res.polys[c.Name] = grid.Dissolve(corners, passes[k], g.Kind == grid.Regular)
 		case r.Mesh != nil:
-			res.polys[c.Name] = grid.DissolveRings(meshRings(r), passes[k])
+			res.polys[c.Name] = grid.DissolveRings(outlines, passes[k])
 		}
 		if _, ok := res.polys[c.Name]; ok {
 			ss.Polygons = filepath.ToSlash(filepath.Join(contract.ContourDir, contract.ScreeningOutlineFile(c.Name)))
@@ -505,33 +509,18 @@ func Apply(r *rundir.Run, s *runspec.Resolved) ([]string, *contract.ScreeningSum
 }
 
 // cellAreasM2 is every cell's area on WGS 84 in m^2, in cell-id order: a
-// structured grid's from its cell edges (grid.CellAreasM2), a mesh's from its
-// faces or its nodes' median dual cells (grid.MeshOutlines, RingAreaM2; NaN
-// for a node without one); nil for a point set.
-func cellAreasM2(r *rundir.Run, g *grid.Grid) []float64 {
-	if r.Mesh == nil {
+// structured grid's from its cell edges (grid.CellAreasM2), a mesh's from
+// its cells' outlines (rundir.Mesh.CellOutlines: faces or median dual cells;
+// RingAreaM2, NaN for a node without one); nil for a point set.
+func cellAreasM2(g *grid.Grid, outlines []orb.Ring) []float64 {
+	if outlines == nil {
 		return grid.CellAreasM2(g)
 	}
-	out := make([]float64, g.NCells())
-	for c, ring := range meshRings(r) {
+	out := make([]float64, len(outlines))
+	for c, ring := range outlines {
 		out[c] = math.NaN()
 		if ring != nil {
 			out[c] = math.Abs(grid.RingAreaM2(ring))
-		}
-	}
-	return out
-}
-
-// meshRings is the outline of every cell of a mesh run in cell-id order:
-// its face, or its node's median dual cell (grid.MeshOutlines; nil for a
-// node without one).
-func meshRings(r *rundir.Run) []orb.Ring {
-	m := r.Mesh
-	rings := grid.MeshOutlines(m.Location, m.NodeLon, m.NodeLat, m.FaceOff, m.FaceNode)
-	out := make([]orb.Ring, r.Cells.Rows)
-	for e, c := range m.Cell {
-		if e < len(rings) && c >= 0 && c < len(out) {
-			out[c] = rings[e]
 		}
 	}
 	return out
