@@ -481,6 +481,19 @@ func rowMeanHm0(h Hist, lo, hi float64) float64 {
 // describes; A2, B0 and B2 are kept non-negative so that the functions stay
 // monotone and Sigma positive when extrapolated. Checked against
 // scipy.optimize.curve_fit (TestConditionalAgainstScipy).
+//
+// Each function is linear in two of its parameters (A0, A1; B0, B1), so the
+// least-squares problem is solved by variable projection (Golub and Pereyra
+// 1973, SIAM J. Numer. Anal. 10(2), 413-432): for a given exponent (A2, B2)
+// the linear pair has the closed-form weighted regression (meanProfile,
+// spreadProfile), and the exponent minimises the remaining sum of squares,
+// a function of one variable (profileMin). This is the same estimator as a
+// search over all three parameters, found without one: where the least
+// squares have their infimum on the edge (A2 -> 0, Mu -> c + d ln h, or
+// B2 -> 0, a straight line), a search in three parameters never converges,
+// while here the exponent stops at the bound of its range (A2 and B2 in
+// [expMin, expMax]), where the fitted curve is that limit within rounding
+// over the rows.
 func FitConditional(rows []Row) (Conditional, error) {
 	if len(rows) < MinRows {
 		return Conditional{}, fmt.Errorf("%w: %d occupied Hm0 rows, need %d", ErrFewData, len(rows), MinRows)
@@ -489,74 +502,163 @@ func FitConditional(rows []Row) (Conditional, error) {
 	for _, r := range rows {
 		wt += r.Weight
 	}
-	mu, ok := minimiseGrad(func(p, g []float64) float64 { return meanLSQ(p, g, rows, wt) },
-		[]float64{rows[0].Mean, 0.5, math.Log(0.5)})
-	if !ok {
-		return Conditional{}, fmt.Errorf("design: the fit of the mean of ln Te did not converge")
+	if !(wt > 0) {
+		return Conditional{}, fmt.Errorf("%w: the Hm0 rows carry no time", ErrFewData)
 	}
-	sg, ok := minimiseGrad(func(p, g []float64) float64 { return spreadLSQ(p, g, rows, wt) },
-		[]float64{math.Log(0.05), 0.1, math.Log(0.3)})
-	if !ok {
-		return Conditional{}, fmt.Errorf("design: the fit of the spread of ln Te did not converge")
+	n := len(rows)
+	buf := make([]float64, 4*n)
+	lh, hm, v, x := buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:]
+	for k, r := range rows {
+		lh[k], hm[k], v[k] = math.Log(r.Hm0Mean), r.Hm0Mean, r.Weight/wt
 	}
-	return Conditional{A0: mu[0], A1: mu[1], A2: math.Exp(mu[2]), B0: math.Exp(sg[0]), B1: sg[1], B2: math.Exp(sg[2])}, nil
+	var c Conditional
+	a2 := math.Exp(profileMin(func(t float64) float64 {
+		f, _, _ := meanProfile(math.Exp(t), rows, lh, v, x)
+		return f
+	}, math.Log(expMin), math.Log(expMax)))
+	f, a0, a1 := meanProfile(a2, rows, lh, v, x)
+	c.A0, c.A1, c.A2 = a0, a1, a2
+	b2 := math.Exp(profileMin(func(t float64) float64 {
+		f, _, _ := spreadProfile(math.Exp(t), rows, hm, v, x)
+		return f
+	}, math.Log(expMin), math.Log(expMax)))
+	g, b0, b1 := spreadProfile(b2, rows, hm, v, x)
+	c.B0, c.B1, c.B2 = b0, b1, b2
+	if math.IsNaN(f+g+a0+a1+b0+b1) || math.IsInf(f+g+a0+a1+b0+b1, 0) {
+		return Conditional{}, fmt.Errorf("design: the least-squares fit of ln Te given Hm0 has no finite solution")
+	}
+	return c, nil
 }
 
-// meanLSQ is the weighted least-squares objective of the mean of ln Te in
-// p = (A0, A1, log A2), with r_k = Mean_k - (A0 + A1 h_k^A2), h_k the row's
-// mean Hm0 and v_k its weight over the total wt,
+// The range of the exponents A2 and B2 of FitConditional.
+const (
+	expMin = 1e-6
+	expMax = 20
+)
+
+// meanProfile is the weighted least-squares fit of Mu(h) = A0 + A1 h^A2 for a
+// given A2: with u_k = h_k^A2 - 1 (computed as expm1(A2 ln h_k) so that a
+// small A2 loses no digits) and v_k the rows' weights summing to 1, the
+// weighted regression of the rows' means y_k on u_k,
 //
-//	f = sum_k v_k r_k^2,
-//	df/dA0 = -2 sum v_k r_k,  df/dA1 = -2 sum v_k r_k h_k^A2,
-//	df/dlog A2 = -2 sum v_k r_k A1 A2 h_k^A2 ln h_k
+//	A1 = sum v_k (u_k - ū)(y_k - ȳ) / sum v_k (u_k - ū)^2,  A0 = ȳ - A1 ū - A1,
 //
-// (gradient derived here), which it writes into grad when grad is non-nil.
-func meanLSQ(p, grad []float64, rows []Row, wt float64) float64 {
-	a2 := math.Exp(p[2])
-	var f, g0, g1, g2 float64
-	for _, r := range rows {
-		v := r.Weight / wt
-		ha := math.Pow(r.Hm0Mean, a2)
-		d := r.Mean - (p[0] + p[1]*ha)
-		f += v * d * d
-		g0 -= 2 * v * d
-		g1 -= 2 * v * d * ha
-		if ha != 0 {
-			g2 -= 2 * v * d * p[1] * a2 * ha * math.Log(r.Hm0Mean)
+// and the sum of squares f = sum v_k (y_k - A0 - A1 h_k^A2)^2 (the normal
+// equations of a straight line; variable projection, see FitConditional).
+// lh holds ln h_k, u is scratch of len(rows).
+func meanProfile(a2 float64, rows []Row, lh, v, u []float64) (f, a0, a1 float64) {
+	for k := range rows {
+		u[k] = math.Expm1(a2 * lh[k])
+	}
+	c, a1 := lineFit(rows, u, v, func(r Row) float64 { return r.Mean }, false)
+	for k, r := range rows {
+		d := r.Mean - (c + a1*u[k])
+		f += v[k] * d * d
+	}
+	return f, c - a1, a1
+}
+
+// spreadProfile is the weighted least-squares fit of
+// Sigma(h) = B0 + B1 exp(-B2 h) for a given B2: the weighted regression of
+// the rows' standard deviations s_k on e_k = exp(-B2 h_k),
+//
+//	B1 = sum v_k (e_k - ē)(s_k - s̄) / sum v_k (e_k - ē)^2,  B0 = s̄ - B1 ē,
+//
+// or, where that B0 is negative, the fit on the bound B0 = 0,
+// B1 = sum v_k e_k s_k / sum v_k e_k^2; and its sum of squares
+// f = sum v_k (s_k - B0 - B1 e_k)^2. hm holds h_k, e is scratch.
+func spreadProfile(b2 float64, rows []Row, hm, v, e []float64) (f, b0, b1 float64) {
+	for k := range rows {
+		e[k] = math.Exp(-b2 * hm[k])
+	}
+	b0, b1 = lineFit(rows, e, v, func(r Row) float64 { return r.Std }, true)
+	for k, r := range rows {
+		d := r.Std - (b0 + b1*e[k])
+		f += v[k] * d * d
+	}
+	return f, b0, b1
+}
+
+// lineFit is the weighted least-squares line y = c + m x through the points
+// (x_k, y(rows[k])) with weights v_k summing to 1:
+// m = sum v (x - x̄)(y - ȳ) / sum v (x - x̄)^2, c = ȳ - m x̄ (the normal
+// equations, centred). With nonNeg a negative c is replaced by the fit
+// through the origin, c = 0, m = sum v x y / sum v x^2 (the least squares
+// with c >= 0, whose optimum is then on that bound).
+func lineFit(rows []Row, x, v []float64, y func(Row) float64, nonNeg bool) (c, m float64) {
+	var xm, ym float64
+	for k, r := range rows {
+		xm += v[k] * x[k]
+		ym += v[k] * y(r)
+	}
+	var sxy, sxx float64
+	for k, r := range rows {
+		dx := x[k] - xm
+		sxy += v[k] * dx * (y(r) - ym)
+		sxx += v[k] * dx * dx
+	}
+	if sxx > 0 {
+		m = sxy / sxx
+	}
+	c = ym - m*xm
+	if nonNeg && c < 0 {
+		var sxy0, sxx0 float64
+		for k, r := range rows {
+			sxy0 += v[k] * x[k] * y(r)
+			sxx0 += v[k] * x[k] * x[k]
+		}
+		c, m = 0, 0
+		if sxx0 > 0 {
+			m = sxy0 / sxx0
 		}
 	}
-	if grad != nil {
-		grad[0], grad[1], grad[2] = g0, g1, g2
-	}
-	return f
+	return c, m
 }
 
-// spreadLSQ is the weighted least-squares objective of the standard
-// deviation of ln Te in p = (log B0, B1, log B2), with
-// r_k = Std_k - (B0 + B1 exp(-B2 h_k)) and v_k as in meanLSQ,
-//
-//	f = sum_k v_k r_k^2,
-//	df/dlog B0 = -2 sum v_k r_k B0,  df/dB1 = -2 sum v_k r_k exp(-B2 h_k),
-//	df/dlog B2 = 2 sum v_k r_k B1 B2 h_k exp(-B2 h_k)
-//
-// (gradient derived here), which it writes into grad when grad is non-nil.
-func spreadLSQ(p, grad []float64, rows []Row, wt float64) float64 {
-	b0, b2 := math.Exp(p[0]), math.Exp(p[2])
-	var f, g0, g1, g2 float64
-	for _, r := range rows {
-		v := r.Weight / wt
-		e := math.Exp(-b2 * r.Hm0Mean)
-		d := r.Std - (b0 + p[1]*e)
-		f += v * d * d
-		g0 -= 2 * v * d * b0
-		g1 -= 2 * v * d * e
-		g2 += 2 * v * d * p[1] * b2 * r.Hm0Mean * e
+// profileMin returns the t in [lo, hi] that minimises f: the best of
+// profileGrid points evenly spaced over [lo, hi], then golden-section search
+// (Kiefer 1953; Press et al., Numerical Recipes, section 10.2) in the
+// interval between that point's neighbours, to a width of 1e-9. A minimum on
+// an end of [lo, hi] is returned there.
+func profileMin(f func(t float64) float64, lo, hi float64) float64 {
+	step := (hi - lo) / (profileGrid - 1)
+	best, fb := 0, math.Inf(1)
+	for i := 0; i < profileGrid; i++ {
+		if v := f(lo + float64(i)*step); v < fb {
+			best, fb = i, v
+		}
 	}
-	if grad != nil {
-		grad[0], grad[1], grad[2] = g0, g1, g2
+	if math.IsInf(fb, 1) {
+		return lo + float64(best)*step
 	}
-	return f
+	a, b := lo+float64(max(best-1, 0))*step, lo+float64(min(best+1, profileGrid-1))*step
+	const r = 0.6180339887498949 // (sqrt(5) - 1) / 2
+	x1, x2 := b-r*(b-a), a+r*(b-a)
+	f1, f2 := f(x1), f(x2)
+	for b-a > 1e-9 {
+		if f1 <= f2 {
+			b, x2, f2 = x2, x1, f1
+			x1 = b - r*(b-a)
+			f1 = f(x1)
+		} else {
+			a, x1, f1 = x1, x2, f2
+			x2 = a + r*(b-a)
+			f2 = f(x2)
+		}
+	}
+	t := 0.5 * (a + b)
+	// The ends themselves, where the minimum lies on the bound.
+	switch {
+	case best == 0 && f(lo) <= f(t):
+		return lo
+	case best == profileGrid-1 && f(hi) <= f(t):
+		return hi
+	}
+	return t
 }
+
+// profileGrid is the number of points profileMin tries before its golden-section search.
+const profileGrid = 64
 
 // FitJoint fits the joint model to a cell's Hm0 histogram and occurrence
 // table. Binning error (TestWeibullAgainstScipy, TestConditionalAgainstScipy,
