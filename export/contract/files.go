@@ -46,6 +46,16 @@ const (
 	TableMeshFaces            = "mesh_faces"
 )
 
+// The values of the spec's output.long_tables_cells: which cells have rows
+// in the long tables. LongCellsAll (the default; an empty setting means
+// it too): every cell. LongCellsSites: only the cells nearest to the
+// spec's sites (for very large grids); atlas.nc then leaves out the
+// monthly layers, which would be blank away from the sites.
+const (
+	LongCellsAll   = "all"
+	LongCellsSites = "sites"
+)
+
 // ParquetFile is the file of the table named table: table + ".parquet".
 func ParquetFile(table string) string { return table + ".parquet" }
 

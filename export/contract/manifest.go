@@ -127,7 +127,12 @@ type Parameters struct {
 		Rho float64 `json:"rho_kg_m3"`
 		G   float64 `json:"g_m_s2"`
 	} `json:"physics"`
-	Sites []Site `json:"sites"`
+	Sites  []Site `json:"sites"`
+	Output struct {
+		// LongTablesCells is output.long_tables_cells (LongCellsAll
+		// or LongCellsSites; empty in a run that did not set it: all).
+		LongTablesCells string `json:"long_tables_cells"`
+	} `json:"output"`
 }
 
 // Site is a named place of the spec's [[site]] list.

@@ -66,9 +66,15 @@ func Write(r *rundir.Run) error {
 	}
 	// the columns Climatology reads, not the whole table (a large grid's
 	// monthly.parquet has a row per cell and month)
-	monthly, err := r.Columns(contract.TableMonthly, "period", contract.ColCellID, "month", contract.ColPowerMean, contract.ColHm0Mean)
-	if err != nil {
-		return err
+	var monthly *rundir.Table
+	if r.Manifest == nil || r.Manifest.Parameters.Output.LongTablesCells != contract.LongCellsSites {
+		// (With output.long_tables_cells = "sites", monthly.parquet has the
+		// sites' cells only: the monthly layers would be blank everywhere
+		// else, so they are left out.)
+		var err error
+		if monthly, err = r.Columns(contract.TableMonthly, "period", contract.ColCellID, "month", contract.ColPowerMean, contract.ColHm0Mean); err != nil {
+			return err
+		}
 	}
 	final := filepath.Join(r.Dir, FileName)
 	part, err := export.NewPartial(r.Dir, FileName)

@@ -27,10 +27,11 @@ type tableSink struct {
 	workers int                   // the run's workers (sinkEncoders caps the goroutines)
 	next    int                   // the next cell id to write
 	contour map[string][]float64  // the contour columns over the grid
+	keep    map[int]bool          // the cells with long-table rows (siteCells; nil: all)
 }
 
 func (e *engine) openSink(out string, workers int) (*tableSink, error) {
-	s := &tableSink{e: e, out: out, workers: workers, contour: map[string][]float64{}}
+	s := &tableSink{e: e, out: out, workers: workers, contour: map[string][]float64{}, keep: e.siteCells()}
 	g := e.cat.Grid
 	var err error
 	if s.cells, err = export.NewGeoParquetStream(filepath.Join(out, "cells.parquet"), e.cellsTable(0, 0, nil), g.Lon, g.Lat); err != nil {
@@ -79,8 +80,9 @@ func (s *tableSink) add(lo, hi int, res []*cellResult) error {
 	// Each long table is its own stream: they are built and encoded
 	// side by side, each by one goroutine in cell order, so the bytes are
 	// those of one table after the other.
+	lres := longRowCells(res, s.keep)
 	if err := s.eachLong(func(k int) error {
-		if err := s.long[k].Append(s.schemas[k].build(res)); err != nil {
+		if err := s.long[k].Append(s.schemas[k].build(lres)); err != nil {
 			return fmt.Errorf("writing %s: %w", s.names[k], err)
 		}
 		return nil

@@ -181,7 +181,17 @@ type OutputSpec struct {
 	// grids, where a table of rows per cell and bin is more than a study
 	// needs. Empty: every long table (the default).
 	LongTables []string `toml:"long_tables" json:"long_tables,omitempty"`
+	// LongTablesCells chooses the cells that have rows in the long
+	// tables: "all" (the default; empty means it too) or "sites", only the
+	// nearest sea cell of each [[site]] (for very large grids, where the
+	// study needs the per-cell maps of cells.parquet everywhere and the
+	// distributions only at its sites). cells.parquet has every cell either way.
+	LongTablesCells string `toml:"long_tables_cells" json:"long_tables_cells,omitempty"`
 }
+
+// SitesOnlyLongRows reports whether the long tables have rows only for the
+// sites' cells (output.long_tables_cells = "sites").
+func (o OutputSpec) SitesOnlyLongRows() bool { return o.LongTablesCells == contract.LongCellsSites }
 
 // LongTableNames are the run's long tables, by name (the file is the name
 // with ".parquet"), in file order: what output.long_tables may choose.
@@ -519,6 +529,15 @@ func (s *Spec) Validate() error {
 		if !slices.Contains(LongTableNames, t) {
 			return bad(fmt.Sprintf("output.long_tables[%d]", i), fmt.Sprintf("not a long table; the long tables are %s (or leave output.long_tables out for all)", strings.Join(LongTableNames, ", ")), strconv.Quote(t))
 		}
+	}
+	switch s.Output.LongTablesCells {
+	case "", contract.LongCellsAll:
+	case contract.LongCellsSites:
+		if len(s.Sites) == 0 {
+			return bad("output.long_tables_cells", "is \"sites\" but the spec has no [[site]]: name the sites whose cells the long tables keep, or set \"all\"", strconv.Quote(s.Output.LongTablesCells))
+		}
+	default:
+		return bad("output.long_tables_cells", fmt.Sprintf("must be %q (every cell, the default) or %q (only the cells of the [[site]] list)", contract.LongCellsAll, contract.LongCellsSites), strconv.Quote(s.Output.LongTablesCells))
 	}
 	if s.Output.Dir == "" {
 		return fmt.Errorf("spec: output.dir is empty; give --out or output.dir")
