@@ -108,12 +108,12 @@ BENCH_OUT   ?= bench-out
 BENCH_CACHE ?= $(HOME)/.cache/swellgrid-bench
 BENCH_BEFORE ?= a042283
 BENCH_PARTS ?= full,half
-BENCH_MICRO ?= FeedBulk|FeedSpectral|FinishBulk|FitStage|GroupVelocity|BulkDepthPower|FitGEV|FitGPD|^BenchmarkAdd
+BENCH_MICRO ?= FeedBulk|FeedSpectral|FinishBulk|FitStage|GroupVelocity|BulkDepthPower|FitGEV|FitGPD|^BenchmarkAdd|FitJoint|ProfileIntervals|LongTables|WriteGeoParquet
 BENCHSTAT_VERSION := v0.0.0-20260908200009-22c9c6c9d4da
 BENCH_DRIVER := internal/bench cmd/sgbench
 BENCH_BEFORE_IMPORTS ?=
-BENCH_MICRO_PKGS ?= ./pipelines/engine/ ./stats/...
-BENCH_MICRO_PKGS_BEFORE ?= ./pipelines/engine/ ./stats/...
+BENCH_MICRO_PKGS ?= ./pipelines/engine/ ./stats/... ./export/
+BENCH_MICRO_PKGS_BEFORE ?= ./pipelines/engine/ ./stats/... ./export/
 # screening geometry (issue 35): one polygon layer of 10^5 and 10^6 vertices
 # against a 200 x 200 grid (validity, covers, distances); target < 5 s at 10^6
 BENCH_GEOMETRY ?= ScreenLayer
