@@ -368,7 +368,14 @@ func ConditionalRows(cells []Cell, h Hist) []Row {
 		v := math.Max(a.s2/wf-m*m-a.sh/wf, 1e-6)
 		gd := newGrouped(a.bins)
 		nll := func(p, grad []float64) float64 { return normalBinnedNLL(p, grad, gd, a.w) }
-		min := minimiseGrad
+		min := func(f func(x, grad []float64) float64, x0 []float64) ([]float64, bool) {
+			// Quasi-Newton from the finite-difference Hessian (few
+			// evaluations for two parameters), else minimiseGrad.
+			if x, _, _, ok := localopt.QuasiNewton2(f, x0, f(x0, nil), 1e-9, [2][2]float64{}); ok {
+				return x, true
+			}
+			return minimiseGrad(f, x0)
+		}
 		if len(a.bins) < 3 {
 			// With its time in one or two Te bins the grouped likelihood
 			// has no interior maximum (it still grows as s -> 0): the

@@ -1,6 +1,10 @@
 package extremes
 
-import "math"
+import (
+	"math"
+
+	"swellgrid/stats/internal/localopt"
+)
 
 // chi2Crit95 is the 0.95 quantile of the chi-squared distribution with one
 // degree of freedom (1.959963984540054^2), the deviance drop bounding a 95%
@@ -39,7 +43,7 @@ func (f GEVFit) ProfileGEV(T float64, z []float64, limit float64) (lo, hi float6
 	zs := finiteSorted(z)
 	s := -math.Log(-math.Log1p(-1 / T))
 	nllMax := -f.LogLik
-	var curv [2][2]float64 // Hessian of the last inner fit, the first of the next (minimise2D)
+	var curv [2][2]float64 // Hessian of the last inner fit, the first of the next (localopt.QuasiNewton2)
 	inner := func(level float64, start []float64) (float64, float64, []float64, bool) {
 		// Parameters (log Scale, Shape); Loc follows from the level.
 		x0 := []float64{start[0], start[1]}
@@ -77,7 +81,7 @@ func (f GEVFit) ProfileGEV(T float64, z []float64, limit float64) (lo, hi float6
 		}
 		tol := 1e-7 * float64(len(zs))
 		xo, v, conv, err := []float64{0, 0}, 0.0, false, error(nil)
-		if x1, v1, h1, ok := minimise2D(nll, x0, v0, tol, curv); ok {
+		if x1, v1, h1, ok := localopt.QuasiNewton2(nll, x0, v0, tol, curv); ok {
 			xo, v, conv, curv = x1, v1, true, h1
 		} else {
 			xo, v, conv, err = minimise(nll, x0, tol)
@@ -389,92 +393,4 @@ func minimise1D(f objective, x0, f0, gradTol, curv float64) (x, fx, h float64, o
 		x, fx, gx = xn, fn, gn
 	}
 	return x0, f0, curv, false
-}
-
-// minimise2D minimises f of two variables from x0 (where f is f0) to
-// |grad f|_inf < gradTol by quasi-Newton steps (Nocedal and Wright 2006,
-// section 6.1: the BFGS update of the Hessian itself, with backtracking to
-// the Armijo condition, c1 = 1e-4). The first Hessian is h0, the last one
-// of the previous inner fit of the profile, or, when h0 is not positive
-// definite (the first fit), forward differences of the analytic gradient
-// (step 1e-6 relative; Nocedal and Wright 2006, section 8.1). It is the
-// inner fit of ProfileGEV: started from the optimum and the curvature at
-// the previous level, it needs fewer evaluations than BFGS, which starts
-// each search without curvature. It returns the minimiser, f there and the
-// last Hessian; ok = false when it does not converge within 50 steps or
-// meets a value it cannot back away from (the caller then runs minimise,
-// BFGS with its fallbacks).
-func minimise2D(f objective, x0 []float64, f0, gradTol float64, h0 [2][2]float64) (x []float64, fx float64, h [2][2]float64, ok bool) {
-	var g, gp, gn [2]float64
-	x = []float64{x0[0], x0[1]}
-	g[0], g[1] = math.NaN(), math.NaN()
-	fx = f(x, g[:])
-	if fx != f0 || math.IsInf(fx, 0) || math.IsNaN(fx) || math.IsNaN(g[0]+g[1]) {
-		return x0, f0, h0, false
-	}
-	h = h0
-	xn := make([]float64, 2)
-	if !(h[0][0] > 0 && h[0][0]*h[1][1]-h[0][1]*h[1][0] > 0) {
-		xp := make([]float64, 2)
-		for i := 0; i < 2; i++ {
-			d := 1e-6 * math.Max(1, math.Abs(x[i]))
-			xp[0], xp[1] = x[0], x[1]
-			xp[i] += d
-			gp[0], gp[1] = math.NaN(), math.NaN()
-			if v := f(xp, gp[:]); math.IsInf(v, 0) || math.IsNaN(v) || math.IsNaN(gp[0]+gp[1]) {
-				return x0, f0, h0, false
-			}
-			h[0][i], h[1][i] = (gp[0]-g[0])/d, (gp[1]-g[1])/d
-		}
-		h[0][1] = 0.5 * (h[0][1] + h[1][0])
-		h[1][0] = h[0][1]
-	}
-	for k := 0; k < 50; k++ {
-		if math.Max(math.Abs(g[0]), math.Abs(g[1])) < gradTol {
-			return x, fx, h, true
-		}
-		det := h[0][0]*h[1][1] - h[0][1]*h[1][0]
-		var p [2]float64
-		if h[0][0] > 0 && det > 0 {
-			p[0] = -(h[1][1]*g[0] - h[0][1]*g[1]) / det
-			p[1] = -(h[0][0]*g[1] - h[1][0]*g[0]) / det
-		} else {
-			p[0], p[1] = -g[0], -g[1]
-			h = [2][2]float64{{1, 0}, {0, 1}}
-		}
-		slope := p[0]*g[0] + p[1]*g[1]
-		if !(slope < 0) {
-			return x0, f0, h0, false
-		}
-		t := 1.0
-		accepted := false
-		var fn float64
-		for b := 0; b < 40; b++ {
-			xn[0], xn[1] = x[0]+t*p[0], x[1]+t*p[1]
-			gn[0], gn[1] = math.NaN(), math.NaN()
-			fn = f(xn, gn[:])
-			if !math.IsInf(fn, 0) && !math.IsNaN(fn) && !math.IsNaN(gn[0]+gn[1]) && fn <= fx+1e-4*t*slope {
-				accepted = true
-				break
-			}
-			t /= 2
-		}
-		if !accepted {
-			return x0, f0, h0, false
-		}
-		// BFGS update of the Hessian: H - H s s'H / s'H s + y y' / y's.
-		s0, s1 := xn[0]-x[0], xn[1]-x[1]
-		y0, y1 := gn[0]-g[0], gn[1]-g[1]
-		if ys := y0*s0 + y1*s1; ys > 0 {
-			hs0, hs1 := h[0][0]*s0+h[0][1]*s1, h[1][0]*s0+h[1][1]*s1
-			if shs := s0*hs0 + s1*hs1; shs > 0 {
-				h[0][0] += y0*y0/ys - hs0*hs0/shs
-				h[0][1] += y0*y1/ys - hs0*hs1/shs
-				h[1][1] += y1*y1/ys - hs1*hs1/shs
-				h[1][0] = h[0][1]
-			}
-		}
-		x[0], x[1], fx, g = xn[0], xn[1], fn, gn
-	}
-	return x0, f0, h0, false
 }
