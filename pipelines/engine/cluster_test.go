@@ -61,7 +61,7 @@ func TestShardsMergeSameBytesAsSingleRun(t *testing.T) {
 	clRun(t, clSpec(in, single), Options{})
 	want := runcheck.RunOutputs(t, single)
 
-	for _, n := range []int{4, 5} { // 5 rows: 4 shards of uneven size, and one row each
+	for _, n := range []int{1, 3, 4, 5} { // 5 rows (5 blocks): shards of uneven size, and one row each
 		root := filepath.Join(tmp, "n"+string(rune('0'+n)))
 		dirs := runShards(t, in, root, n)
 		// Give the shards out of order: merge sorts them by index.
@@ -104,8 +104,8 @@ func TestShardCellsWholeRows(t *testing.T) {
 	if at != g.NCells() {
 		t.Errorf("3 shards end at cell %d, want %d", at, g.NCells())
 	}
-	if _, _, err := (Shard{1, 6}).Cells(g); err == nil || !strings.Contains(err.Error(), "only 5 rows") {
-		t.Errorf("6 shards of 5 rows: got %v, want a refusal naming the 5 rows", err)
+	if _, _, err := (Shard{1, 6}).Cells(g); err == nil || !strings.Contains(err.Error(), "only 5 blocks") {
+		t.Errorf("6 shards of 5 rows: got %v, want a refusal naming the 5 blocks", err)
 	}
 	for _, bad := range []string{"0/4", "5/4", "4", "a/b", "1/0"} {
 		if _, err := ParseShard(bad); err == nil {

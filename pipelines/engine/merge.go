@@ -21,10 +21,14 @@ import (
 // Merge combines the shard directories written by runs with Options.Shard
 // into the normal outputs in out: it checks that the shards were run with the
 // same spec over the same, unchanged inputs and cover every cell exactly
-// once, then fits and writes through the same code as a single run, so the
-// tables are byte-identical to a single-process run. The shards' final states
-// are copied to out/.swellgrid, so that the merged run can later be updated
-// (Options.Update) like any run. opt.Restart and opt.Shard are not used.
+// once, and that their tables are those shard.json lists (size and SHA-256);
+// then it assembles every table from the shards' row groups, without
+// refitting (the shards fitted their cells and wrote their rows at the
+// grid's cell blocks, so the tables are byte-identical to a single-process
+// run), and computes what needs every cell: contours, products, manifest.
+// The shards' final states are copied to out/.swellgrid, so that the merged
+// run can later be updated (Options.Update) like any run. opt.Restart and
+// opt.Shard are not used.
 func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*Result, error) {
 	j, parts, err := validateMerge(ctx, out, shardDirs, opt)
 	if err != nil {
@@ -39,13 +43,13 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 		j.mem.applyToProcess()
 	}
 	defer j.abortSink()
-	// Each pass of each shard: its states read a chunk at a time (within
-	// the merge's memory_limit, however large the shard's passes were),
-	// fitted and written, then the state file copied into out/.swellgrid
-	// so that the merged run can be updated.
+	// Each pass of each shard: its state file's seal and header checked
+	// (not its states, which the merge does not need), its counts taken,
+	// the file copied into out/.swellgrid so that the merged run can be
+	// updated.
+	ts := time.Now()
 	for pi, pt := range parts {
 		p := j.passes[pi]
-		ts := time.Now()
 		r, err := openStates(pt.src, pt.want, len(j.ids), j.eng.newCell)
 		if err != nil {
 			if IsResumeRefused(err) || errors.Is(err, os.ErrNotExist) {
@@ -54,30 +58,16 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 			return nil, err
 		}
 		j.seen[pi] = ingest.TallyOf(r.h.Seen) // the shard's counts: CheckTally sees every cell
-		if next := r.h.NextFile; next != len(j.cat.Files) {
-			r.close()
-			return nil, fault.Input(fmt.Errorf("merge: shard %d/%d in %s has read %d of %d files; rerun it to finish", pt.m.Shard, pt.m.Shards, pt.dir, next, len(j.cat.Files)))
-		}
-		j.mark("load_s", ts)
-		err = j.fitPass(ctx, p[0], p[1]-p[0], func(off, k int) ([]*cell, error) {
-			ts := time.Now()
-			defer j.mark("load_s", ts)
-			return r.next(k)
-		})
-		if err == nil {
-			err = r.end()
-		}
+		next := r.h.NextFile
 		r.close()
-		if err != nil {
-			return nil, err
+		if next != len(j.cat.Files) {
+			return nil, fault.Input(fmt.Errorf("merge: shard %d/%d in %s has read %d of %d files; rerun it to finish", pt.m.Shard, pt.m.Shards, pt.dir, next, len(j.cat.Files)))
 		}
 		if err := copyFile(pt.src, ckPath(j.out, p[0], p[1])); err != nil {
 			return nil, fault.Output(fmt.Errorf("merge: saving the states in %s: %w", j.out, err))
 		}
-		if pt.lastOfShard {
-			j.log.Info("merged", "dir", pt.dir, "shard", fmt.Sprintf("%d/%d", pt.m.Shard, pt.m.Shards), "cells", pt.m.C1-pt.m.C0)
-		}
 	}
+	j.mark("load_s", ts)
 	// Every shard's counts are in: a role variable without data in any
 	// cell is refused before a table is put in place.
 	if err := j.checkData(); err != nil {
@@ -86,6 +76,24 @@ func Merge(ctx context.Context, out string, shardDirs []string, opt Options) (*R
 	if err := removeStaleCheckpoints(j.out, j.passes); err != nil {
 		return nil, fault.Output(err)
 	}
+	ts = time.Now()
+	hold(ctx, "fit") // where a run fits: the merge assembles
+	if err := j.openSink(); err != nil {
+		return nil, err
+	}
+	for _, pt := range parts {
+		if !pt.lastOfShard {
+			continue
+		}
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		if err := j.sink.assemble(ctx, pt.dir, pt.m.C0, pt.m.C1); err != nil {
+			return nil, fault.Output(fmt.Errorf("merge: shard %d/%d in %s: %w", pt.m.Shard, pt.m.Shards, pt.dir, err))
+		}
+		j.log.Info("merged", "dir", pt.dir, "shard", fmt.Sprintf("%d/%d", pt.m.Shard, pt.m.Shards), "cells", pt.m.C1-pt.m.C0)
+	}
+	j.mark("assemble_s", ts)
 	if ctx.Err() != nil {
 		return nil, ctx.Err()
 	}
@@ -198,8 +206,37 @@ func validateMerge(ctx context.Context, out string, shardDirs []string, opt Opti
 			parts = append(parts, pt)
 			j.passes = append(j.passes, p)
 		}
+		if why := shardTablesIntact(dir, m, j.eng.tableFiles()); why != "" {
+			return nil, nil, fault.Input(fmt.Errorf("merge: shard %d/%d in %s: %s", m.Shard, m.Shards, dir, why))
+		}
 	}
 	return j, parts, nil
+}
+
+// shardTablesIntact says "" when the shard in dir holds the tables want,
+// each of the size and SHA-256 its shard.json records, or what is wrong.
+func shardTablesIntact(dir string, m *ShardManifest, want []string) string {
+	if len(m.Tables) == 0 {
+		return fmt.Sprintf("it holds no tables (a shard of swellgrid %s, which kept only its states); rerun the shard with this version", m.Version)
+	}
+	have := map[string]contract.FileSum{}
+	for _, t := range m.Tables {
+		have[t.Path] = t
+	}
+	for _, name := range want {
+		t, ok := have[name]
+		if !ok {
+			return fmt.Sprintf("its %s lists no table %s; rerun the shard", shardFile, name)
+		}
+		got, err := export.OutputChecksums(dir, []string{name})
+		if err != nil {
+			return fmt.Sprintf("its table %s cannot be read (%v); rerun the shard", name, err)
+		}
+		if g := got[0]; g.Size != t.Size || g.SHA256 != t.SHA256 {
+			return fmt.Sprintf("its table %s is damaged or changed since the shard wrote it (%d bytes, SHA-256 %s; %s records %d bytes, SHA-256 %s); rerun the shard", filepath.Join(dir, name), g.Size, short(g.SHA256), shardFile, t.Size, short(t.SHA256))
+		}
+	}
+	return ""
 }
 
 // shardsBelongTogether reports "" when the shards (in order, sorted by

@@ -23,8 +23,8 @@ type Options struct {
 	Progress Progress     // progress display (nil: none)
 	Version  string       // software version for the manifest
 	// Shard, if set, restricts the run to one share of the cells and writes a
-	// shard directory (final states and shard.json) instead of tables; see
-	// Merge.
+	// shard directory (final states, its cells' rows of every table and
+	// shard.json); see Merge.
 	Shard *Shard
 	// Update continues the finished run in the output directory with the
 	// input files that are new (later in time); see update.go.
@@ -136,7 +136,14 @@ func Run(ctx context.Context, spec *runspec.Spec, opt Options) (res *Result, err
 		return nil, fault.Output(err)
 	}
 	if j.opt.Shard != nil {
-		return writeShard(j.out, j.spec, j.cat, *j.opt.Shard, j.lo, j.hi, j.passes, s, opt.Version, j.t0)
+		if err := j.openSink(); err != nil {
+			return nil, err
+		}
+		files, _, err := j.sink.close()
+		if err != nil {
+			return nil, fault.Output(err)
+		}
+		return writeShard(j.out, j.spec, j.cat, *j.opt.Shard, j.lo, j.hi, j.passes, s, files, opt.Version, j.t0)
 	}
 	return j.export(ctx, s)
 }

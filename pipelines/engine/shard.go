@@ -41,23 +41,23 @@ func ParseShard(s string) (Shard, error) {
 
 func (s Shard) String() string { return fmt.Sprintf("%d/%d", s.Index, s.Count) }
 
-// Cells returns the shard's cell range c0..c1-1 on grid g: rows
-// NY*(I-1)/N .. NY*I/N-1 of a structured grid, or the same share of the
-// points of a point set.
+// Cells returns the shard's cell range c0..c1-1 on grid g: blocks
+// B*(I-1)/N .. B*I/N-1 of the grid's B cell blocks (blocks.go: whole rows of
+// a structured grid, or a share of the points of a point set), so that its
+// tables' row groups are those of the single run.
 func (s Shard) Cells(g *grid.Grid) (c0, c1 int, err error) {
-	units, per := g.NCells(), 1
-	what := "cells"
-	if g.Structured() {
-		units, per, what = g.NY, g.NX, "rows"
+	b := blocksOf(g)
+	what := "blocks of rows"
+	if b.per == 1 && !g.Structured() {
+		what = "blocks of points"
 	}
 	if s.Count < 1 || s.Index < 1 || s.Index > s.Count {
 		return 0, 0, fmt.Errorf("shard %s: the index must lie in 1..%d", s, s.Count)
 	}
-	if s.Count > units {
-		return 0, 0, fmt.Errorf("shard %s: the grid has only %d %s, so at most %d shards; use fewer shards", s, units, what, units)
+	if s.Count > b.n {
+		return 0, 0, fmt.Errorf("shard %s: the grid has only %d %s (the tables' row groups), so at most %d shards; use fewer shards", s, b.n, what, b.n)
 	}
-	r0, r1 := units*(s.Index-1)/s.Count, units*s.Index/s.Count
-	return r0 * per, r1 * per, nil
+	return b.start(b.n * (s.Index - 1) / s.Count), b.start(b.n * s.Index / s.Count), nil
 }
 
 // shardFile is the name of a shard directory's manifest.
@@ -80,19 +80,27 @@ type ShardManifest struct {
 	// StepDurations identifies the durations the steps were weighted by.
 	StepDurations ingest.Durations `json:"step_durations"`
 	Spec          *runspec.Spec    `json:"spec"`
-	WallS         float64          `json:"wall_s"`
-	Note          string           `json:"note"`
+	// Tables are the shard's rows of every table (files in the shard
+	// directory, row groups ending at the grid's cell blocks) with their
+	// sizes and SHA-256, which Merge checks before assembling them.
+	Tables []contract.FileSum `json:"tables"`
+	WallS  float64            `json:"wall_s"`
+	Note   string             `json:"note"`
 }
 
 // writeShard finishes a shard run: it writes shard.json beside the final
-// states.
-func writeShard(out string, spec *runspec.Resolved, cat *ingest.Catalog, sh Shard, c0, c1 int, passes [][2]int, sums []string, version string, t0 time.Time) (*Result, error) {
+// states and the shard's tables (tables, relative to out).
+func writeShard(out string, spec *runspec.Resolved, cat *ingest.Catalog, sh Shard, c0, c1 int, passes [][2]int, sums []string, tables []string, version string, t0 time.Time) (*Result, error) {
+	ts, err := export.OutputChecksums(out, tables)
+	if err != nil {
+		return nil, fault.Output(err)
+	}
 	st := *spec.Spec
 	st.Input.Paths = absPaths(spec.Input.Paths)
 	m := &ShardManifest{Software: "swellgrid", Version: version, Shard: sh.Index, Shards: sh.Count, C0: c0, C1: c1,
 		GridCells: cat.Grid.NCells(), Passes: passes, Fingerprint: spec.Fingerprint(), Spec: &st, StepDurations: cat.DurationsOf(cat.Steps),
-		WallS: time.Since(t0).Seconds(),
-		Note:  "a shard of a swellgrid run: its per-cell states are in .swellgrid/; combine all shards with `swellgrid merge --out DIR SHARD_DIR...`"}
+		Tables: ts, WallS: time.Since(t0).Seconds(),
+		Note: "a shard of a swellgrid run: its cells' rows of every table are beside this file, its per-cell states in .swellgrid/; combine all shards with `swellgrid merge --out DIR SHARD_DIR...`"}
 	for i, f := range cat.Files {
 		m.Inputs = append(m.Inputs, contract.Input{Path: ingest.PathText(absPath(f.Path)), Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})
 	}
@@ -107,7 +115,7 @@ func writeShard(out string, spec *runspec.Resolved, cat *ingest.Catalog, sh Shar
 	}); err != nil {
 		return nil, fault.Output(fmt.Errorf("writing %s: %w", path, err))
 	}
-	return &Result{OutDir: out, Files: []string{shardFile}, Cells: c1 - c0, Steps: cat.Steps, Warnings: cat.Warnings, Wall: time.Since(t0)}, nil
+	return &Result{OutDir: out, Files: append(tables, shardFile), Cells: c1 - c0, Steps: cat.Steps, Warnings: cat.Warnings, Wall: time.Since(t0)}, nil
 }
 
 // readShardManifest reads a shard directory's shard.json.

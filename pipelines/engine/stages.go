@@ -8,6 +8,7 @@ import (
 	"os"
 	"runtime"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"swellgrid/export"
@@ -27,9 +28,10 @@ import (
 //	restore   each pass's states: fresh, from the run's own checkpoint (resume,
 //	          update) or from a shard directory (merge)
 //	stream    the input files not yet in the states, checkpointing as it goes
-//	fit       the per-cell results of a pass (not for a shard, which keeps
-//	          its states for a merge)
-//	export    tables, contours and manifest (or a shard's shard.json)
+//	fit       the per-cell results of a pass, written to the tables (a
+//	          shard's to its share of them; a merge fits nothing)
+//	export    tables, contours and manifest (or a shard's shard.json; a
+//	          merge assembles the shards' tables first)
 //
 // Fresh, resume, update, shard and merge differ only in where the states come
 // from (restore) and where they go (the pass's checkpoint, a merge's copy).
@@ -323,10 +325,9 @@ func (j *job) checkData() error {
 
 // runPasses runs restore, stream and fit for every pass. restore gives a
 // pass's states and the first file they lack; saved, if set, is called once
-// a pass is done (a merge copies the states it loaded). A shard fits
-// nothing: its states are its result. Otherwise each pass's results go to
-// the tables as they are fitted (fitPass), so that the run holds the
-// results of one chunk of cells, never those of every pass.
+// a pass is done. Each pass's results go to the tables as they are fitted
+// (fitPass; a shard's to its share of the tables), so that the run holds
+// the results of one chunk of cells, never those of every pass.
 func (j *job) runPasses(ctx context.Context, restore func(pi int, p [2]int) ([]*cell, int, error), saved func(pi int, p [2]int) error) error {
 	for pi, p := range j.passes {
 		ts := time.Now()
@@ -338,10 +339,8 @@ func (j *job) runPasses(ctx context.Context, restore func(pi int, p [2]int) ([]*
 			return err
 		}
 		j.mark("stream_s", ts)
-		if j.opt.Shard == nil {
-			if err := j.fitPass(ctx, p[0], len(cells), func(off, n int) ([]*cell, error) { return cells[off : off+n], nil }); err != nil {
-				return err
-			}
+		if err := j.fitPass(ctx, p[0], len(cells), func(off, n int) ([]*cell, error) { return cells[off : off+n], nil }); err != nil {
+			return err
 		}
 		cells = nil
 		if saved != nil {
@@ -369,12 +368,8 @@ func (j *job) fitPass(ctx context.Context, c0, n int, next func(off, k int) ([]*
 	hold(ctx, "fit")
 	ts := time.Now()
 	defer j.mark("fit_s", ts)
-	if j.sink == nil {
-		s, err := j.eng.openSink(j.out, j.workers)
-		if err != nil {
-			return fault.Output(err)
-		}
-		j.sink = s
+	if err := j.openSink(); err != nil {
+		return err
 	}
 	if pr := j.opt.Progress; pr != nil {
 		pr.Start("fit extremes", int64(n), 0)
@@ -387,6 +382,7 @@ func (j *job) fitPass(ctx context.Context, c0, n int, next func(off, k int) ([]*
 		if err != nil {
 			return err
 		}
+		fitCalls.Add(1)
 		res, err := j.eng.finishAll(ctx, c0+off, cells, j.acfg, j.workers, j.opt.Progress)
 		if err != nil {
 			return err
@@ -401,6 +397,23 @@ func (j *job) fitPass(ctx context.Context, c0, n int, next func(off, k int) ([]*
 	return nil
 }
 
+// fitCalls counts the fit stage's chunks since the process started: a test
+// hook (a merge must fit nothing).
+var fitCalls atomic.Int64
+
+// openSink starts the job's tables (once): the grid's, or a shard's share.
+func (j *job) openSink() error {
+	if j.sink != nil {
+		return nil
+	}
+	s, err := j.eng.openSink(j.out, j.workers, j.lo, j.hi, j.opt.Shard != nil)
+	if err != nil {
+		return fault.Output(err)
+	}
+	j.sink = s
+	return nil
+}
+
 // export is the export stage: it puts the tables in place, writes the
 // contours and then the manifest, each file atomically.
 func (j *job) export(ctx context.Context, sums []string) (*Result, error) {
@@ -409,12 +422,8 @@ func (j *job) export(ctx context.Context, sums []string) (*Result, error) {
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
-	if j.sink == nil { // no cells at all
-		s, err := j.eng.openSink(j.out, j.workers)
-		if err != nil {
-			return nil, fault.Output(err)
-		}
-		j.sink = s
+	if err := j.openSink(); err != nil { // no cells at all
+		return nil, err
 	}
 	written, warns, err := j.sink.close()
 	if err != nil {
