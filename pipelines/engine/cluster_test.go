@@ -128,6 +128,40 @@ func TestMergeRefusals(t *testing.T) {
 			t.Errorf("%s: got %v, want an error containing %q", what, err, frag)
 		}
 	}
+	// The merge assembles the shards' tables: it fits no cell (fitCalls
+	// counts the fit stage's chunks in this process).
+	before := fitCalls.Load()
+	if _, err := Merge(context.Background(), filepath.Join(tmp, "m-ok"), dirs, Options{}); err != nil {
+		t.Fatalf("merge of 3 shards: %v", err)
+	}
+	if n := fitCalls.Load() - before; n != 0 {
+		t.Errorf("the merge fitted %d chunks of cells; the shards fit, the merge only assembles", n)
+	}
+	// A shard table damaged after the shard wrote it: exit 2 naming it,
+	// before anything is written.
+	for _, name := range []string{"cells.parquet", "monthly.parquet"} {
+		path := filepath.Join(dirs[1], name)
+		orig, err := os.ReadFile(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		bad := append([]byte(nil), orig...)
+		bad[len(bad)/2] ^= 0x20
+		if err := os.WriteFile(path, bad, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		mdir := filepath.Join(tmp, "m-damaged-"+name)
+		_, err = Merge(context.Background(), mdir, dirs, Options{})
+		if code := fault.ExitCode(err); code != 2 || !strings.Contains(err.Error(), path) || !strings.Contains(err.Error(), "damaged") {
+			t.Errorf("merge with %s damaged: exit %d, %v; want exit 2 naming %s as damaged", name, code, err, path)
+		}
+		if _, serr := os.Stat(mdir); serr == nil {
+			t.Errorf("merge with %s damaged created %s", name, mdir)
+		}
+		if err := os.WriteFile(path, orig, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
 	expect("missing", []string{dirs[0], dirs[2]}, "shard 2/3 missing")
 	expect("duplicate", []string{dirs[0], dirs[1], dirs[1], dirs[2]}, "both shard 2/3")
 	expect("not a shard", []string{dirs[0], tmp}, "no shard.json")
