@@ -104,8 +104,8 @@ func TestShardCellsWholeRows(t *testing.T) {
 	if at != g.NCells() {
 		t.Errorf("3 shards end at cell %d, want %d", at, g.NCells())
 	}
-	if _, _, err := (Shard{1, 6}).Cells(g); err == nil || !strings.Contains(err.Error(), "only 5 blocks") {
-		t.Errorf("6 shards of 5 rows: got %v, want a refusal naming the 5 blocks", err)
+	if _, _, err := (Shard{1, 6}).Cells(g); err == nil || !strings.Contains(err.Error(), "only 5 rows") {
+		t.Errorf("6 shards of 5 rows: got %v, want a refusal naming the 5 rows", err)
 	}
 	for _, bad := range []string{"0/4", "5/4", "4", "a/b", "1/0"} {
 		if _, err := ParseShard(bad); err == nil {

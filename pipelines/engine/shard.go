@@ -47,17 +47,18 @@ func (s Shard) String() string { return fmt.Sprintf("%d/%d", s.Index, s.Count) }
 // tables' row groups are those of the single run.
 func (s Shard) Cells(g *grid.Grid) (c0, c1 int, err error) {
 	b := blocksOf(g)
-	what := "blocks of rows"
-	if b.per == 1 && !g.Structured() {
-		what = "blocks of points"
+	unit := "row"
+	if !g.Structured() {
+		unit = "point"
 	}
 	if s.Count < 1 || s.Index < 1 || s.Index > s.Count {
 		return 0, 0, fmt.Errorf("shard %s: the index must lie in 1..%d", s, s.Count)
 	}
 	if s.Count > b.n {
-		return 0, 0, fmt.Errorf("shard %s: the grid has only %d %s (the tables' row groups), so at most %d shards; use fewer shards", s, b.n, what, b.n)
+		return 0, 0, fmt.Errorf("shard %s: the grid has only %d %s, so at most %d shards; use fewer shards", s, b.n, b.what(unit), b.n)
 	}
-	return b.start(b.n * (s.Index - 1) / s.Count), b.start(b.n * s.Index / s.Count), nil
+	c0, c1 = b.shard(s.Index, s.Count)
+	return c0, c1, nil
 }
 
 // shardFile is the name of a shard directory's manifest.

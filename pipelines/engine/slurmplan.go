@@ -36,6 +36,7 @@ type SlurmPlan struct {
 // model of budget.go.
 type slurmModel struct {
 	cells, nx, ny, steps, years int
+	blocks                      cellBlocks // the grid's cell blocks (a shard holds whole blocks)
 	chunks                      chunkModel
 	structured                  bool
 	perCell, perResult          float64
@@ -50,6 +51,7 @@ func (j *job) slurmModel() slurmModel {
 	if !m.structured {
 		m.nx, m.ny = 1, g.NCells()
 	}
+	m.blocks = blocksFor(m.ny, m.nx)
 	return m
 }
 
@@ -66,8 +68,12 @@ func planSlurm(m slurmModel, mem int64, shards int) (*SlurmPlan, error) {
 	if !m.structured {
 		unit = "points"
 	}
-	// cells of the largest shard of n (Shard.Cells: ceil(NY/n) rows)
-	shardCells := func(n int) int { return (m.ny + n - 1) / n * m.nx }
+	if m.blocks.n == 0 {
+		m.blocks = blocksFor(m.ny, m.nx)
+	}
+	// cells of the largest shard of n (Shard.Cells: whole blocks)
+	shardCells := func(n int) int { return m.blocks.largestShard(n) }
+	bunit := strings.TrimSuffix(unit, "s")
 	passCells := func(budget int64) int {
 		pl, err := planMemory(budget, m.chunks, m.perCell, m.perResult, m.fixed, shardCells(1), 0)
 		if err != nil {
@@ -78,8 +84,8 @@ func planSlurm(m slurmModel, mem int64, shards int) (*SlurmPlan, error) {
 	switch {
 	case mem == 0 && shards == 0:
 		return nil, fmt.Errorf("cluster slurm: give --mem (the shards are counted for it) or --shards (the memory per shard is computed), or both (checked)")
-	case shards > m.ny:
-		return nil, fmt.Errorf("cluster slurm: --shards %d: the grid has only %d %s, so at most %d shards; use fewer shards", shards, m.ny, unit, m.ny)
+	case shards > m.blocks.n:
+		return nil, fmt.Errorf("cluster slurm: --shards %d: the grid has only %d %s, so at most %d shards; use fewer shards", shards, m.blocks.n, m.blocks.what(bunit), m.blocks.n)
 	}
 	if mem > 0 {
 		budget := mem - ProcessOverhead
@@ -87,18 +93,29 @@ func planSlurm(m slurmModel, mem int64, shards int) (*SlurmPlan, error) {
 		if budget >= 16<<20 {
 			per = passCells(budget)
 		}
-		rows := per / m.nx
-		if rows < 1 {
-			need := neededLimit(m.chunks, m.perCell, m.perResult, m.fixed, shardCells(1), 0, m.nx) + ProcessOverhead
-			return nil, fmt.Errorf("cluster slurm: --mem %s cannot hold one %s of the grid (%d cells of %s each, plus %s fixed and %s of chunk cache and decompression, plus %s for the process): give --mem %s or more",
-				SizeText(mem), strings.TrimSuffix(unit, "s"), m.nx, kib(m.perCell), mib(m.fixed), mib(m.chunks.cMemory(max(budget, 16<<20))), mib(ProcessOverhead), SizeText(roundUp(need, 1<<20)))
+		// the fewest shards whose largest fits one pass
+		need := 0
+		for n := 1; n <= m.blocks.n; n++ {
+			if shardCells(n) <= per {
+				need = n
+				break
+			}
 		}
-		need := (m.ny + rows - 1) / rows
+		if need == 0 {
+			block := shardCells(m.blocks.n) // one block
+			what := bunit
+			if m.blocks.rows > 1 {
+				what = fmt.Sprintf("block of %d %ss (the tables' row groups)", m.blocks.rows, bunit)
+			}
+			need := neededLimit(m.chunks, m.perCell, m.perResult, m.fixed, shardCells(1), 0, block) + ProcessOverhead
+			return nil, fmt.Errorf("cluster slurm: --mem %s cannot hold one %s of the grid (%d cells of %s each, plus %s fixed and %s of chunk cache and decompression, plus %s for the process): give --mem %s or more",
+				SizeText(mem), what, block, kib(m.perCell), mib(m.fixed), mib(m.chunks.cMemory(max(budget, 16<<20))), mib(ProcessOverhead), SizeText(roundUp(need, 1<<20)))
+		}
 		if shards == 0 {
 			shards = need
 		} else if shards < need {
 			return nil, fmt.Errorf("cluster slurm: --shards %d with --mem %s cannot fit: a shard of %d %s (%d cells) needs more than one pass (%d cells fit one pass under a budget of %s, so each shard would read its files %d times); give --shards %d or more, or --mem %s or more",
-				shards, SizeText(mem), (m.ny+shards-1)/shards, unit, shardCells(shards), per, SizeText(budget), (shardCells(shards)+per-1)/per, need, SizeText(memFor(m, shardCells(shards))))
+				shards, SizeText(mem), shardCells(shards)/m.nx, unit, shardCells(shards), per, SizeText(budget), (shardCells(shards)+per-1)/per, need, SizeText(memFor(m, shardCells(shards))))
 		}
 		p.Shards, p.BudgetBytes, p.MemBytes, p.CellsPerPass = shards, budget, mem, per
 	} else {
@@ -107,8 +124,8 @@ func planSlurm(m slurmModel, mem int64, shards int) (*SlurmPlan, error) {
 		p.BudgetBytes = p.MemBytes - ProcessOverhead
 		p.CellsPerPass = passCells(p.BudgetBytes)
 	}
-	p.UnitsPerShard = (m.ny + p.Shards - 1) / p.Shards
-	p.CellsPerShard = p.UnitsPerShard * m.nx
+	p.CellsPerShard = shardCells(p.Shards)
+	p.UnitsPerShard = p.CellsPerShard / m.nx
 	p.CacheBytes = m.chunks.cMemory(p.BudgetBytes)
 	return p, nil
 }
