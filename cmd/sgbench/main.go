@@ -37,9 +37,10 @@ func main() {
 	before := flag.String("before", "", "also run every pipeline case with this benchmark program (built on an earlier commit)")
 	parts := flag.String("parts", "full,half", "record lengths to measure (full, half)")
 	mem256 := flag.Bool("mem256", true, "also run the bulk benchmark under --memory-limit 256MiB (about 9 minutes a program)")
+	shards := flag.Bool("shards", true, "also run the sharded-run benchmark: 4 shards and their merge against a single run (50 x 50 cells, 5 years)")
 	flag.Parse()
 	cfg := bench.Config{Cache: *cache, Markdown: *md, Only: *only, Before: *before, Parts: strings.Split(*parts, ","),
-		SkipMem256: !*mem256, Log: os.Stderr, Out: os.Stdout}
+		SkipMem256: !*mem256, Shards: *shards, Log: os.Stderr, Out: os.Stdout}
 	if err := bench.Main(cfg); err != nil {
 		fmt.Fprintln(os.Stderr, "sgbench:", err)
 		os.Exit(1)

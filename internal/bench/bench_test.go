@@ -1,6 +1,9 @@
 package bench
 
 import (
+	"bytes"
+	"fmt"
+	"os"
 	"path/filepath"
 	"testing"
 
@@ -71,5 +74,51 @@ func TestCacheKeyByValue(t *testing.T) {
 	}
 	if c := SpectralScenario(1); key(c) == key(a) {
 		t.Errorf("record length changed, key still %s", key(a))
+	}
+}
+
+// The sharded-run cases (MeasureShards) run what they say: 4 shards and
+// their merge give the single run's cells.parquet, byte for byte (the
+// design's byte-identity; the engine's tests check every table).
+func TestShardCasesMergeToSingleRun(t *testing.T) {
+	files, err := filepath.Glob(filepath.Join("..", "..", "testdata", "bulk_monthly", "*.nc"))
+	if err != nil || len(files) == 0 {
+		t.Fatalf("fixture files: %v %v", files, err)
+	}
+	tmp := t.TempDir()
+	single := filepath.Join(tmp, "single")
+	if _, err := RunChild(Case{Data: "bulk", Part: "full", Mode: "pipeline", Files: files, Out: single}); err != nil {
+		t.Fatal(err)
+	}
+	var dirs []string
+	for i := 1; i <= ShardCount; i++ {
+		d := filepath.Join(tmp, fmt.Sprintf("s%d", i))
+		m, err := RunChild(Case{Data: "bulk", Part: "full", Mode: "shard", Files: files, Out: d, Shard: fmt.Sprintf(shardsCaseFormat, i, ShardCount)})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if m.Cells == 0 || m.Cells >= 30 {
+			t.Errorf("shard %d/%d ran %d cells of 30", i, ShardCount, m.Cells)
+		}
+		dirs = append(dirs, d)
+	}
+	merged := filepath.Join(tmp, "merged")
+	m, err := RunChild(Case{Data: "bulk", Part: "full", Mode: "merge", Out: merged, ShardDirs: dirs})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m.Cells != 30 {
+		t.Errorf("merge: %d cells, want 30 (6 x 5 fixture)", m.Cells)
+	}
+	a, err := os.ReadFile(filepath.Join(single, "cells.parquet"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := os.ReadFile(filepath.Join(merged, "cells.parquet"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(a, b) {
+		t.Errorf("merged cells.parquet (%d bytes) differs from the single run's (%d bytes)", len(b), len(a))
 	}
 }

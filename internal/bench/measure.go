@@ -29,6 +29,10 @@ type Case struct {
 	Out   string   `json:"out"`   // scratch output directory (pipeline)
 	// MemoryLimit, if set, is the pipeline's run.memory_limit (default 2GiB).
 	MemoryLimit string `json:"memory_limit,omitempty"`
+	// Shard is the share ("I/N") a "shard" case runs into Out; ShardDirs the
+	// shard directories a "merge" case merges into Out.
+	Shard     string   `json:"shard,omitempty"`
+	ShardDirs []string `json:"shard_dirs,omitempty"`
 }
 
 // Measure is what a child reports.
@@ -101,6 +105,27 @@ func RunChild(c Case) (*Measure, error) {
 			return nil, fmt.Errorf("bench: manifest: %v", err)
 		}
 		m.Timings = man.Timings
+	case "shard":
+		sh, err := engine.ParseShard(c.Shard)
+		if err != nil {
+			return nil, err
+		}
+		spec.Input.Paths, spec.Output.Dir = c.Files, c.Out
+		opt := processOptions()
+		opt.Shard = &sh
+		t0 := time.Now()
+		res, err := engine.Run(context.Background(), spec, opt)
+		if err != nil {
+			return nil, err
+		}
+		m.WallS, m.Cells, m.Steps = time.Since(t0).Seconds(), res.Cells, res.Steps
+	case "merge":
+		t0 := time.Now()
+		res, err := engine.Merge(context.Background(), c.Out, c.ShardDirs, processOptions())
+		if err != nil {
+			return nil, err
+		}
+		m.WallS, m.Cells, m.Steps = time.Since(t0).Seconds(), res.Cells, res.Steps
 	default:
 		return nil, fmt.Errorf("bench: unknown mode %q", c.Mode)
 	}

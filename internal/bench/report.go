@@ -26,7 +26,10 @@ type Config struct {
 	// (about 9 minutes a program here): for a quick before/after of the
 	// default cases.
 	SkipMem256 bool
-	Log, Out   io.Writer // progress and the report
+	// Shards adds the sharded-run benchmark (ShardScenario: a single run
+	// against 4 shards and their merge), with Before too if set.
+	Shards   bool
+	Log, Out io.Writer // progress and the report
 }
 
 // Row gathers the cases of one data set and record length.
@@ -130,7 +133,28 @@ func Main(cfg Config) error {
 			rows = append(rows, r)
 		}
 	}
-	text := Report(rows, sets, time.Since(start))
+	var shardText string
+	if cfg.Shards {
+		d, err := Ensure(cfg.Cache, "bulk50", ShardScenario(), logf)
+		if err != nil {
+			return err
+		}
+		var srows []*ShardRow
+		exe, _ := os.Executable()
+		progs := [][2]string{{cfg.Before, "before"}, {exe, "after"}}
+		for _, p := range progs {
+			if p[0] == "" {
+				continue
+			}
+			r, err := MeasureShards(p[0], p[1], d, scratch, logf)
+			if err != nil {
+				return err
+			}
+			srows = append(srows, r)
+		}
+		shardText = ShardReport(srows, d)
+	}
+	text := Report(rows, sets, time.Since(start)) + shardText
 	fmt.Fprint(cfg.Out, text)
 	if cfg.Markdown != "" {
 		if err := os.WriteFile(cfg.Markdown, []byte(text), 0o644); err != nil {

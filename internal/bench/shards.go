@@ -1,0 +1,90 @@
+package bench
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"swellgrid/pipelines/synth"
+)
+
+// ShardScenario is the hindcast of the sharded-run benchmark (issue 29): the
+// bulk benchmark's invented shelf on a 50 x 50 grid, 5 years.
+func ShardScenario() synth.Scenario {
+	s := BulkScenario(5)
+	s.Name = "sgbench_bulk50"
+	s.Title = "swellgrid benchmark: synthetic regular bulk grid 50 x 50, 3-hourly, one file per month"
+	s.Grid.NX, s.Grid.NY = 50, 50
+	s.Grid.LonMax, s.Grid.LatMax = -30.2, 49.8
+	return s
+}
+
+// ShardCount is the number of shards of the sharded-run benchmark.
+const ShardCount = 4
+
+// ShardRow is the sharded-run benchmark of one program: a single run, then
+// ShardCount shards one after another and their merge, each in a child.
+type ShardRow struct {
+	Program string
+	Single  *Measure
+	Shards  []*Measure
+	Merge   *Measure
+}
+
+// Targets of the sharded run (issue 29): CPU of the shards and the merge
+// over the single run's, and the merge's wall time over the single run's.
+const (
+	ShardCPUTarget   = 1.25
+	MergeWallTarget  = 0.20
+	shardsCaseFormat = "%d/%d"
+)
+
+// MeasureShards runs the sharded-run benchmark on d with the program exe
+// (scratch holds the outputs, removed after).
+func MeasureShards(exe, program string, d *Dataset, scratch string, logf func(string, ...any)) (*ShardRow, error) {
+	r := &ShardRow{Program: program}
+	if err := warm(d.Files); err != nil {
+		return nil, err
+	}
+	root := filepath.Join(scratch, "shards-"+program)
+	defer os.RemoveAll(root)
+	logf("measuring %s: single run (%s) ...", d.Name, program)
+	m, err := SpawnWith(exe, Case{Data: d.Name, Part: "full", Mode: "pipeline", Files: d.Files, Out: filepath.Join(root, "single")})
+	if err != nil {
+		return nil, err
+	}
+	r.Single = m
+	var dirs []string
+	for i := 1; i <= ShardCount; i++ {
+		dir := filepath.Join(root, fmt.Sprintf("shard%d", i))
+		logf("measuring %s: shard %d/%d (%s) ...", d.Name, i, ShardCount, program)
+		m, err := SpawnWith(exe, Case{Data: d.Name, Part: "full", Mode: "shard", Files: d.Files, Out: dir, Shard: fmt.Sprintf(shardsCaseFormat, i, ShardCount)})
+		if err != nil {
+			return nil, err
+		}
+		r.Shards, dirs = append(r.Shards, m), append(dirs, dir)
+	}
+	logf("measuring %s: merge (%s) ...", d.Name, program)
+	if r.Merge, err = SpawnWith(exe, Case{Data: d.Name, Part: "full", Mode: "merge", Files: d.Files, Out: filepath.Join(root, "merged"), ShardDirs: dirs}); err != nil {
+		return nil, err
+	}
+	return r, nil
+}
+
+// ShardReport formats the sharded-run rows as Markdown.
+func ShardReport(rows []*ShardRow, d *Dataset) string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "\nSharded run (%s; %d shards one after another, then the merge; CPU = user + system of each child):\n\n", Describe(d.Scenario), ShardCount)
+	fmt.Fprintf(&b, "| program | single s | single CPU s | shards CPU s | merge s | merge CPU s | (shards + merge) CPU / single | target | merge s / single s | target |\n")
+	fmt.Fprintf(&b, "|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|\n")
+	for _, r := range rows {
+		var cpu float64
+		for _, s := range r.Shards {
+			cpu += s.CPUS
+		}
+		fmt.Fprintf(&b, "| %s | %.1f | %.1f | %.1f | %.1f | %.1f | %.2f | %.2f | %.2f | %.2f |\n", r.Program, r.Single.WallS, r.Single.CPUS, cpu,
+			r.Merge.WallS, r.Merge.CPUS, (cpu+r.Merge.CPUS)/r.Single.CPUS, ShardCPUTarget, r.Merge.WallS/r.Single.WallS, MergeWallTarget)
+	}
+	return b.String()
+}
