@@ -96,6 +96,7 @@ type VarInfo struct {
 	// and Filtered says the chunks are compressed or shuffled (chunkBytes).
 	ChunkBytes int64 `json:"-"`
 	Filtered   bool  `json:"-"`
+	chunks     []int // the chunk's extent along each dimension (nil: not chunked)
 	axes       []axis
 	v          *ncVar
 	// Encoding is how a spectral density's values are stored (linear,
@@ -283,6 +284,33 @@ func (c *Catalog) FilteredChunks() map[Role]int64 {
 		}
 	}
 	return out
+}
+
+// RowChunks gives the largest chunk extent along the grid's rows (the y
+// axis of a structured grid, the point axis of a point set or mesh) over the
+// time-varying role variables of every file, with one variable of that
+// extent, its file and its chunk shape by dimension ("time/1,lat/100,
+// lon/100"); rows is 0 when no such variable is chunked. A shard reading
+// rows r0..r1-1 decompresses the chunks that cover them whole.
+func (c *Catalog) RowChunks() (rows int, name, file, shape string) {
+	for _, f := range c.Files {
+		for _, r := range Roles { // in a fixed order: the first of the largest
+			vi := f.vars[r]
+			if vi == nil || vi.Static() || vi.chunks == nil {
+				continue
+			}
+			for k, a := range vi.axes {
+				if (a == axY || a == axP) && k < len(vi.chunks) && vi.chunks[k] > rows {
+					parts := make([]string, len(vi.Dims))
+					for d := range vi.Dims {
+						parts[d] = fmt.Sprintf("%s/%d", vi.Dims[d], vi.chunks[d])
+					}
+					rows, name, file, shape = vi.chunks[k], vi.Name, f.Path, strings.Join(parts, ",")
+				}
+			}
+		}
+	}
+	return rows, name, file, shape
 }
 
 // Times returns the time of every step of the record, in order.

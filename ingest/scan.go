@@ -513,7 +513,7 @@ func (s *scan) findRole(r Role, opt Options, timeDim string) (*VarInfo, error) {
 	vi := &VarInfo{Role: r, Name: v.name, StandardName: v.str("standard_name"), Dims: v.dims, Type: v.typ.String(), v: v}
 	vi.DirTo = strings.Contains(vi.StandardName, "_to_direction")
 	var err error
-	if vi.ChunkBytes, vi.Filtered, err = v.chunkBytes(); err != nil {
+	if vi.ChunkBytes, vi.Filtered, vi.chunks, err = v.chunkBytes(); err != nil {
 		return nil, errf(s.f.path, v.name, "%v; the file may be corrupt", err)
 	}
 	// Axes and rank.

@@ -20,7 +20,7 @@ const blockCells = 1024
 // minBlocks is the number of blocks of any grid with at least that many rows
 // (points): a small grid is cut into single rows, so that its shard counts
 // are not limited by the blocks.
-const minBlocks = 64
+const minBlocks = 32
 
 // cellBlocks are the blocks of a grid: block k holds units
 // k*rows .. min((k+1)*rows, units)-1, where a unit is a row of a structured

@@ -28,6 +28,16 @@ type SlurmPlan struct {
 	CellsPerShard                        int   // cells of the largest shard
 	BudgetBytes                          int64 // --memory-limit of each task
 	MemBytes                             int64 // sbatch --mem of each task (budget + ProcessOverhead)
+	// ChunkRows is the inputs' largest chunk extent along the rows (points),
+	// 0 when unchunked; ReadAmplification is the bytes the shards decompress
+	// over the bytes they need (chunks that a shard boundary cuts are
+	// decompressed by both shards); ChunkNote says how to rechunk when the
+	// chunks span the whole grid.
+	ChunkRows         int
+	ReadAmplification float64
+	ChunkVar          string // a variable of ChunkRows and its chunk shape
+	ChunkShape        string
+	ChunkNote         string
 	// CellsPerPass is what one pass holds under BudgetBytes (>= CellsPerShard).
 	CellsPerPass int
 }
@@ -35,12 +45,14 @@ type SlurmPlan struct {
 // slurmModel is what the planner needs of a run: the grid and the memory
 // model of budget.go.
 type slurmModel struct {
-	cells, nx, ny, steps, years int
-	blocks                      cellBlocks // the grid's cell blocks (a shard holds whole blocks)
-	chunks                      chunkModel
-	structured                  bool
-	perCell, perResult          float64
-	fixed                       int64
+	cells, nx, ny, steps, years     int
+	chunkRows                       int // ingest.Catalog.RowChunks
+	chunkVar, chunkFile, chunkShape string
+	blocks                          cellBlocks // the grid's cell blocks (a shard holds whole blocks)
+	chunks                          chunkModel
+	structured                      bool
+	perCell, perResult              float64
+	fixed                           int64
 }
 
 func (j *job) slurmModel() slurmModel {
@@ -52,6 +64,7 @@ func (j *job) slurmModel() slurmModel {
 		m.nx, m.ny = 1, g.NCells()
 	}
 	m.blocks = blocksFor(m.ny, m.nx)
+	m.chunkRows, m.chunkVar, m.chunkFile, m.chunkShape = j.cat.RowChunks()
 	return m
 }
 
@@ -74,6 +87,7 @@ func planSlurm(m slurmModel, mem int64, shards int) (*SlurmPlan, error) {
 	// cells of the largest shard of n (Shard.Cells: whole blocks)
 	shardCells := func(n int) int { return m.blocks.largestShard(n) }
 	bunit := strings.TrimSuffix(unit, "s")
+	free := mem > 0 && shards == 0 // the plan counts the shards
 	passCells := func(budget int64) int {
 		pl, err := planMemory(budget, m.chunks, m.perCell, m.perResult, m.fixed, shardCells(1), 0)
 		if err != nil {
@@ -124,10 +138,71 @@ func planSlurm(m slurmModel, mem int64, shards int) (*SlurmPlan, error) {
 		p.BudgetBytes = p.MemBytes - ProcessOverhead
 		p.CellsPerPass = passCells(p.BudgetBytes)
 	}
+	if free && m.chunkRows > 1 {
+		// shard boundaries on the chunk tiles, where a few more shards
+		// (each smaller, so it still fits) put them there
+		for n := p.Shards; n <= min(m.blocks.n, 2*p.Shards); n++ {
+			if readAmplification(m, n) == 1 {
+				p.Shards = n
+				break
+			}
+		}
+	}
+	p.ChunkRows, p.ChunkVar, p.ChunkShape = m.chunkRows, m.chunkVar, m.chunkShape
+	p.ReadAmplification = readAmplification(m, p.Shards)
+	if m.chunkRows >= m.ny && p.Shards > 1 {
+		p.ChunkNote = fmt.Sprintf("the inputs' chunks span the whole grid (%s of %s: %s), so every shard decompresses every chunk; rechunk each file first, e.g. `nccopy -c %s IN.nc OUT.nc` (netcdf-bin), so that each shard reads only its own %s",
+			m.chunkVar, m.chunkFile, m.chunkShape, rechunkSpec(m, p.Shards), unit)
+	}
 	p.CellsPerShard = shardCells(p.Shards)
 	p.UnitsPerShard = p.CellsPerShard / m.nx
 	p.CacheBytes = m.chunks.cMemory(p.BudgetBytes)
 	return p, nil
+}
+
+// readAmplification is what shards of n decompress over what they read
+// (Slurm plan): a shard of rows r0..r1-1 decompresses the chunks of
+// chunkRows rows that cover them whole (floor(r0/c)c .. ceil(r1/c)c, at
+// most the grid); 1 when unchunked or every boundary falls on a tile.
+func readAmplification(m slurmModel, n int) float64 {
+	c := m.chunkRows
+	if c <= 1 || m.ny == 0 {
+		return 1
+	}
+	got := 0
+	for i := 1; i <= n; i++ {
+		c0, c1 := m.blocks.shard(i, n)
+		r0, r1 := c0/m.nx, c1/m.nx
+		got += min((r1+c-1)/c*c, m.ny) - r0/c*c
+	}
+	return float64(got) / float64(m.ny)
+}
+
+// rechunkSpec is nccopy's -c argument that puts every shard boundary of n
+// shards on a chunk boundary: the rows' dimension chunked by the greatest
+// common divisor of the boundaries, every other dimension as it is.
+func rechunkSpec(m slurmModel, n int) string {
+	g := m.ny
+	for i := 1; i < n; i++ {
+		c0, _ := m.blocks.shard(i+1, n)
+		g = gcd(g, c0/m.nx)
+	}
+	parts := strings.Split(m.chunkShape, ",")
+	for k, p := range parts {
+		dim, size, _ := strings.Cut(p, "/")
+		if size == fmt.Sprint(m.chunkRows) && m.chunkRows >= m.ny {
+			parts[k] = fmt.Sprintf("%s/%d", dim, g)
+			break
+		}
+	}
+	return strings.Join(parts, ",")
+}
+
+func gcd(a, b int) int {
+	for b != 0 {
+		a, b = b, a%b
+	}
+	return a
 }
 
 // memFor is the Slurm request (rounded up to 64 MiB) whose budget holds
@@ -163,6 +238,14 @@ func (p *SlurmPlan) Text() string {
 	}
 	fmt.Fprintf(&b, "shards:   %d (at most %d %s, %d cells each; one pass holds %d cells)\n", p.Shards, p.UnitsPerShard, unit, p.CellsPerShard, p.CellsPerPass)
 	fmt.Fprintf(&b, "memory:   --mem %s per task = --memory-limit %s + %s for the process\n", SizeText(p.MemBytes), SizeText(p.BudgetBytes), mib(ProcessOverhead))
+	if p.ChunkRows > 0 {
+		fmt.Fprintf(&b, "reading:  chunks of %d %s (%s: %s); read amplification %.2f (bytes decompressed / bytes needed)\n", p.ChunkRows, unit, p.ChunkVar, p.ChunkShape, p.ReadAmplification)
+	} else {
+		fmt.Fprintf(&b, "reading:  unchunked inputs; read amplification 1.00 (bytes decompressed / bytes needed)\n")
+	}
+	if p.ChunkNote != "" {
+		fmt.Fprintf(&b, "note:     %s\n", p.ChunkNote)
+	}
 	return b.String()
 }
 

@@ -1,6 +1,8 @@
 package engine
 
 import (
+	"fmt"
+	"math"
 	"strings"
 	"testing"
 )
@@ -65,5 +67,43 @@ func TestSlurmPlanArithmetic(t *testing.T) {
 	}
 	if _, err := planSlurm(m, 0, 0); err == nil {
 		t.Error("neither --mem nor --shards: no refusal")
+	}
+}
+
+// The plan's read amplification against a hand count, on the model grid of
+// TestSlurmPlanArithmetic (1000 x 1000, --mem 1152M: 250 shards of 4 rows):
+//   - chunks of 10 rows: every 20 rows hold 5 shards, of which [8, 12)
+//     straddles a chunk boundary and decompresses 2 chunks (20 rows), the
+//     other 4 one chunk (10 rows each): 60 rows decompressed per 20 needed,
+//     amplification 3.00; no shard count from 250 to 500 puts every
+//     boundary on a multiple of 10 (that needs n to divide 100), so 250 stay;
+//   - chunks of 3 rows: 333 shards put every boundary on a multiple of 3
+//     (floor(1000 i / 333) = 3i for i < 333), amplification 1;
+//   - chunks spanning the grid (1000 rows): each of the 250 shards
+//     decompresses all 1000 rows, amplification 250, and the note gives the
+//     nccopy -c that chunks the rows by 4 (the gcd of the boundaries 4i).
+func TestSlurmPlanReadAmplification(t *testing.T) {
+	m := slurmModel{cells: 1000 * 1000, nx: 1000, ny: 1000, steps: 87660, years: 30, chunks: chunkModel{chunks: make([]int64, 4)}, structured: true,
+		perCell: 100000, perResult: 200000, fixed: 10 << 20, chunkVar: "hm0", chunkFile: "f.nc"}
+	for _, c := range []struct {
+		rows, shards int
+		amp          float64
+		note         string
+	}{{10, 250, 3, ""}, {3, 333, 1, ""}, {1000, 250, 250, "nccopy -c time/1,lat/4,lon/1000 IN.nc OUT.nc"}, {0, 250, 1, ""}} {
+		m.chunkRows = c.rows
+		m.chunkShape = fmt.Sprintf("time/1,lat/%d,lon/1000", c.rows)
+		p, err := planSlurm(m, 1152<<20, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if p.Shards != c.shards || math.Abs(p.ReadAmplification-c.amp) > 1e-12 {
+			t.Errorf("chunks of %d rows: %d shards, read amplification %.4f; want %d, %.2f", c.rows, p.Shards, p.ReadAmplification, c.shards, c.amp)
+		}
+		if c.note == "" && p.ChunkNote != "" || !strings.Contains(p.ChunkNote, c.note) {
+			t.Errorf("chunks of %d rows: note %q, want one containing %q", c.rows, p.ChunkNote, c.note)
+		}
+		if txt := p.Text(); !strings.Contains(txt, fmt.Sprintf("read amplification %.2f", c.amp)) {
+			t.Errorf("chunks of %d rows: the plan's text does not state the read amplification %.2f:\n%s", c.rows, c.amp, txt)
+		}
 	}
 }
