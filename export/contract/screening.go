@@ -70,6 +70,9 @@ type ScenarioSummary struct {
 	LCOERank int      `json:"lcoe_rank,omitempty"`
 	// Polygons is ContourDir/ScreeningOutlineFile(Name) (structured grids).
 	Polygons string `json:"polygons,omitempty"`
+	// LCOEBands is ContourDir/ContourBandsFile(LCOELayer(Name)), the bands
+	// of the per-cell levelised cost (structured grids with costs).
+	LCOEBands string `json:"lcoe_bands,omitempty"`
 }
 
 // DistanceRule bounds the geodesic distance from a cell's centre to the

@@ -183,6 +183,10 @@ func Layers(r *rundir.Run) ([]*Layer, error) {
 		} else if col, ok := strings.CutSuffix(base, ".bands"); ok {
 			l.Name, l.GeomType, props = "bands_"+col, "MULTIPOLYGON", bandProps
 			l.Description = "filled contour bands [lower, upper) of " + col + " (null bound: open band)"
+			if sc, ok := strings.CutPrefix(col, contract.LCOEPrefix); ok {
+				l.Description = "filled bands [lower, upper) of the levelised cost of energy per cell under screening scenario " + sc +
+					" (screening.parquet's lcoe_per_mwh; null bound: open band). " + contract.LCOENote + " " + r.Manifest.Caution
+			}
 		} else {
 			l.Name, l.GeomType, props = "isolines_"+col, "MULTILINESTRING", isolineProps
 			l.Description = "isolines of " + col

@@ -183,6 +183,9 @@ func writeStyles(exec func(string, ...any) error, lastChange string, ss []style)
 // ok is false when col has none.
 func colScale(r *rundir.Run, col string) (*report.Viridis, bool) {
 	c := r.Cells.Col(col)
+	if c == nil && strings.HasPrefix(col, contract.LCOEPrefix) {
+		c, _ = r.LCOEColumn(col) // a screening scenario's levelised cost; an unreadable one has no style
+	}
 	if c == nil || !c.Numeric() {
 		return nil, false
 	}

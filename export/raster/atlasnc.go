@@ -50,6 +50,8 @@ func CFUnits(u string) string {
 		return "MW h yr-1"
 	case "1/yr":
 		return "yr-1"
+	case contract.LCOEUnit: // UDUNITS has no currency: per MWh, the currency in long_name
+		return "MWh-1"
 	case "degree":
 		return "degree"
 	case "":
@@ -304,6 +306,9 @@ func write(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 			}
 		}
 	}
+	if err := lcoeVars(ds, r, func(c *rundir.Column, long string) error { return floatVar(c.Name, dims2, c, long, c.Float) }); err != nil {
+		return err
+	}
 	if monthly == nil {
 		return nil
 	}
@@ -474,6 +479,34 @@ func nativeAxes(ds netcdf.Dataset, crs netcdf.Var, gm *ingest.GridMapping, yd, x
 			}
 		}
 		if err := v.WriteFloat64s(ax.vals); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// lcoeVars adds, through add, a variable per screening scenario with a
+// levelised cost (rundir.LCOEFields: screening.parquet's lcoe_per_mwh, named
+// contract.LCOELayer), with the caution and contract.LCOENote as its
+// comment. A run without screening costs has none.
+func lcoeVars(ds netcdf.Dataset, r *rundir.Run, add func(c *rundir.Column, long string) error) error {
+	fs, err := r.LCOEFields()
+	if err != nil {
+		return err
+	}
+	for _, f := range fs {
+		if r.Cells.Col(f.Column.Name) != nil {
+			return fmt.Errorf("%s: the levelised cost of scenario %s would be named %s, which cells.parquet already has", r.Dir, f.Scenario, f.Column.Name)
+		}
+		long := "levelised cost of energy of the cell's layout under screening scenario " + f.Scenario + " (currency of the spec's cost inputs per MWh; screening.parquet lcoe_per_mwh)"
+		if err := add(f.Column, long); err != nil {
+			return err
+		}
+		v, err := ds.Var(f.Column.Name)
+		if err != nil {
+			return err
+		}
+		if err := text(v.Attr("comment"), contract.LCOENote+" "+r.Manifest.Caution); err != nil {
 			return err
 		}
 	}

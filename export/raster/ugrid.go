@@ -194,6 +194,11 @@ func writeMesh(path string, r *rundir.Run, monthly *rundir.Table) (err error) {
 			}
 		}
 	}
+	if err := lcoeVars(ds, r, func(c *rundir.Column, long string) error {
+		return floatVar(c.Name, []netcdf.Dim{locDim}, c, long, order(c.Float))
+	}); err != nil {
+		return err
+	}
 	if monthly == nil {
 		return nil
 	}

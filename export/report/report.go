@@ -167,6 +167,12 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 	}
 	add(bmFiles...)
 	v.Maps = append(v.Maps, bm...)
+	lm, lmFiles, err := lcoeMaps(r, tmp) // lcoe.go
+	if err != nil {
+		return nil, nil, err
+	}
+	add(lmFiles...)
+	v.Maps = append(v.Maps, lm...)
 	sites, sw := Sites(r)
 	warns = append(warns, sw...)
 	for _, s := range sites {
@@ -174,6 +180,11 @@ func BuildWith(r *rundir.Run, workers int) ([]string, []string, error) {
 		if err != nil {
 			return nil, nil, err
 		}
+		wf, err := waterfallFigures(r, s) // lcoe.go
+		if err != nil {
+			return nil, nil, fmt.Errorf("report: site %s: %w", s.Name, err)
+		}
+		figs = append(figs, wf...)
 		for _, f := range figs {
 			names, err := save(tmp, f)
 			if err != nil {

@@ -4,52 +4,13 @@ import (
 	"fmt"
 	"path/filepath"
 
-	"github.com/paulmach/orb"
-
 	"swellgrid/export"
 	"swellgrid/grid"
 )
 
-// contourFunc computes the isolines at levels and the bands between edges
-// of one per-cell column, in the grid's continuous longitude frame
-// (grid.LonFrame; export cuts them at 180 degrees for GeoJSON).
-type contourFunc func(vals, levels, edges []float64) ([]orb.MultiLineString, []orb.MultiPolygon, error)
-
-// contourer chooses how the grid is contoured: marching squares on a
-// structured grid (in its continuous longitude frame, grid.GeoField),
-// marching triangles on a mesh with values on its nodes. It returns nil and
-// the reason when the grid has no contours.
-func contourer(g *grid.Grid, masked []bool) (contourFunc, string) {
-	switch {
-	case g.Structured() && (g.NX < 2 || g.NY < 2):
-		return nil, fmt.Sprintf("no contours: the grid is %d x %d cells, and isolines need at least 2 x 2", g.NY, g.NX)
-	case g.Structured():
-		return func(vals, levels, edges []float64) ([]orb.MultiLineString, []orb.MultiPolygon, error) {
-			f, _ := grid.GeoField(g.NX, g.NY, g.Lon, g.Lat, vals, masked)
-			lines, err := grid.Isolines(f, levels)
-			if err != nil {
-				return nil, nil, err
-			}
-			bands, err := grid.Bands(f, edges)
-			return lines, bands, err
-		}, ""
-	case g.Kind == grid.MeshKind && g.Mesh.Location == grid.OnNodes:
-		return func(vals, levels, edges []float64) ([]orb.MultiLineString, []orb.MultiPolygon, error) {
-			f, err := g.NodeField(vals, masked)
-			if err != nil {
-				return nil, nil, err
-			}
-			lines, err := grid.TriIsolines(f, levels)
-			if err != nil {
-				return nil, nil, err
-			}
-			bands, err := grid.TriBands(f, edges)
-			return lines, bands, err
-		}, ""
-	case g.Kind == grid.MeshKind:
-		return nil, "no contour layers: the data are on the mesh's faces (one value per face), and contours need values on nodes; use cells.parquet or atlas.gpkg as points"
-	}
-	return nil, "no contour layers: the grid is a point set, which has no cells to contour between; use cells.parquet as points"
+// contourer chooses how the grid is contoured (grid.Contourer).
+func contourer(g *grid.Grid, masked []bool) (grid.ContourFunc, string) {
+	return grid.Contourer(g, masked)
 }
 
 // seamWarning says how many cells of a structured grid span the seam of its

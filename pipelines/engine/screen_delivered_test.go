@@ -28,40 +28,7 @@ import (
 // defaults of stats/delivery) and AC export with its loss given.
 func TestScreeningDeliveredByHand(t *testing.T) {
 	dir := smallScreenRun(t)
-	os.WriteFile(filepath.Join(dir, "deliv.toml"), []byte(`
-[[screening.layer]]
-name = "ports"
-file = "ports.geojson"
-[[screening.scenario]]
-name = "far_dc"
-criteria = ["power_mean_kw_m >= 15"]
-device = "wec"
-spacing_along_m = 200
-spacing_across_m = 250
-array_factor = 0.9
-connection = "ports"
-route_factor = 1.2
-export = "dc"
-capex_per_mw = 5e6
-cable_per_km = 2e6
-opex_per_mw_yr = 1.5e5
-discount_rate = 0.08
-lifetime_y = 20
-[[screening.scenario]]
-name = "near_ac"
-criteria = ["power_mean_kw_m >= 15"]
-distance = [{layer = "ports", max_km = 100}]
-device = "wec"
-devices_per_km2 = 20
-connection = "ports"
-loss_fixed = 0.01
-loss_per_km = 0.0004
-capex_per_mw = 5e6
-cable_per_km = 1e6
-opex_per_mw_yr = 1.5e5
-discount_rate = 0.08
-lifetime_y = 20
-`), 0o644)
+	os.WriteFile(filepath.Join(dir, "deliv.toml"), []byte(delivSpec), 0o644)
 	if _, _, err := screening.Rescreen(dir, filepath.Join(dir, "deliv.toml")); err != nil {
 		t.Fatal(err)
 	}
@@ -158,3 +125,40 @@ lifetime_y = 20
 		}
 	}
 }
+
+// delivSpec is the screening of TestScreeningDeliveredByHand: two
+// scenarios with delivered energy and costs on smallScreenRun's grid.
+const delivSpec = `
+[[screening.layer]]
+name = "ports"
+file = "ports.geojson"
+[[screening.scenario]]
+name = "far_dc"
+criteria = ["power_mean_kw_m >= 15"]
+device = "wec"
+spacing_along_m = 200
+spacing_across_m = 250
+array_factor = 0.9
+connection = "ports"
+route_factor = 1.2
+export = "dc"
+capex_per_mw = 5e6
+cable_per_km = 2e6
+opex_per_mw_yr = 1.5e5
+discount_rate = 0.08
+lifetime_y = 20
+[[screening.scenario]]
+name = "near_ac"
+criteria = ["power_mean_kw_m >= 15"]
+distance = [{layer = "ports", max_km = 100}]
+device = "wec"
+devices_per_km2 = 20
+connection = "ports"
+loss_fixed = 0.01
+loss_per_km = 0.0004
+capex_per_mw = 5e6
+cable_per_km = 1e6
+opex_per_mw_yr = 1.5e5
+discount_rate = 0.08
+lifetime_y = 20
+`

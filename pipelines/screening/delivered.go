@@ -9,9 +9,13 @@ package screening
 import (
 	"fmt"
 	"math"
+	"os"
 	"path/filepath"
 	"sort"
 
+	"github.com/paulmach/orb"
+
+	"swellgrid/export"
 	"swellgrid/export/contract"
 	"swellgrid/export/rundir"
 	"swellgrid/grid"
@@ -133,4 +137,71 @@ func rankLCOE(sc []contract.ScenarioSummary) {
 	for r, i := range idx {
 		sc[i].LCOERank = r + 1
 	}
+}
+
+// lcoeBands is the band layer of one scenario's per-cell levelised cost.
+type lcoeBands struct {
+	scenario string
+	edges    []float64
+	bands    []orb.MultiPolygon
+}
+
+// lcoeBandsOf contours the per-cell levelised cost of every scenario with
+// one (rows: nsc rows per cell, scenarios in summary order) into bands
+// between nice levels over its range on sea cells (grid.NiceLevels, open at
+// both ends, as the contours of cells.parquet's columns), and sets each
+// scenario's LCOEBands. Grids without contours (points, meshes) and
+// scenarios with fewer than two distinct costs have none.
+func lcoeBandsOf(g *grid.Grid, land []bool, rows []*screenRow, sc []contract.ScenarioSummary) ([]lcoeBands, error) {
+	contour, _ := grid.Contourer(g, land)
+	if contour == nil {
+		return nil, nil
+	}
+	n, nsc := g.NCells(), len(sc)
+	var out []lcoeBands
+	for k := range sc {
+		vals := make([]float64, n)
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for i := range vals {
+			vals[i] = rows[i*nsc+k].del.lcoe
+			if v := vals[i]; !math.IsNaN(v) && !land[i] {
+				lo, hi = math.Min(lo, v), math.Max(hi, v)
+			}
+		}
+		if !(hi > lo) {
+			continue
+		}
+		levels := grid.NiceLevels(lo, hi, 8)
+		if len(levels) == 0 {
+			continue
+		}
+		edges := append(append([]float64{math.Inf(-1)}, levels...), math.Inf(1))
+		_, bands, err := contour(vals, nil, edges)
+		if err != nil {
+			return nil, fmt.Errorf("screening: scenario %s: bands of the levelised cost: %w", sc[k].Name, err)
+		}
+		out = append(out, lcoeBands{sc[k].Name, edges, bands})
+		sc[k].LCOEBands = filepath.ToSlash(filepath.Join(contract.ContourDir, contract.ContourBandsFile(contract.LCOELayer(sc[k].Name))))
+	}
+	return out, nil
+}
+
+// writeLCOEBands writes the band layers of the levelised cost into dir's
+// ContourDir (export.WriteContours: RFC 7946, cut at 180 degrees, with the
+// caution) after removing those of an earlier screening; it returns the
+// files written.
+func writeLCOEBands(dir string, ls []lcoeBands) ([]string, error) {
+	old, _ := filepath.Glob(filepath.Join(dir, contract.ContourDir, contract.LCOEPrefix+"*.geojson"))
+	for _, o := range old {
+		os.Remove(o)
+	}
+	var files []string
+	for _, l := range ls {
+		col := contract.LCOELayer(l.scenario)
+		if err := export.WriteContours(dir, col, contract.LCOEUnit, nil, nil, l.edges, l.bands); err != nil {
+			return nil, fmt.Errorf("screening: scenario %s: %w", l.scenario, err)
+		}
+		files = append(files, filepath.ToSlash(filepath.Join(contract.ContourDir, contract.ContourBandsFile(col))))
+	}
+	return files, nil
 }

@@ -93,6 +93,7 @@ type screenResult struct {
 	distLayers []string // layers with a distance column, in spec order
 	summary    *contract.ScreeningSummary
 	polys      map[string]orb.MultiPolygon // passing outline per scenario (structured grids)
+	lcoe       []lcoeBands                 // bands of the levelised cost per scenario (delivered.go)
 }
 
 // runGrid rebuilds the grid geometry of a finished run from cells.parquet.
@@ -251,6 +252,9 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 		sum.Scenarios = append(sum.Scenarios, ss)
 	}
 	rankLCOE(sum.Scenarios)
+	if res.lcoe, err = lcoeBandsOf(g, r.Land, res.rows, sum.Scenarios); err != nil {
+		return nil, err
+	}
 	res.summary = sum
 	return res, nil
 }
@@ -386,6 +390,11 @@ func writeScreening(dir string, res *screenResult) ([]string, error) {
 		}
 		files = append(files, s.Polygons)
 	}
+	lf, err := writeLCOEBands(dir, res.lcoe)
+	if err != nil {
+		return nil, err
+	}
+	files = append(files, lf...)
 	if err := export.WriteManifest(filepath.Join(dir, File), res.summary); err != nil {
 		return nil, err
 	}
@@ -444,7 +453,7 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 		return nil, nil, fault.Input(fmt.Errorf("screen: %s: %w", mpath, err))
 	}
 	for _, o := range top.Outputs {
-		if o != "manifest.json" && !(strings.HasPrefix(o, export.ContourDir+"/screening_") || o == "screening.parquet" || o == File) {
+		if o != "manifest.json" && !(strings.HasPrefix(o, export.ContourDir+"/screening_") || strings.HasPrefix(o, export.ContourDir+"/"+contract.LCOEPrefix) || o == "screening.parquet" || o == File) {
 			outputs = append(outputs, o)
 		}
 	}
@@ -476,10 +485,11 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 	}
 	_, hasReport := os.Stat(filepath.Join(dir, "report", "index.html"))
 	_, hasGpkg := os.Stat(filepath.Join(dir, "atlas.gpkg"))
+	_, hasNC := os.Stat(filepath.Join(dir, contract.AtlasNCFile)) // its levelised-cost variables
 	if err := export.WriteRunManifest(dir, json.RawMessage(m)); err != nil {
 		return nil, nil, fault.Output(err)
 	}
-	pf, warns, err := products.Build(dir, nil, products.Products{Report: hasReport == nil, GeoPackage: hasGpkg == nil})
+	pf, warns, err := products.Build(dir, nil, products.Products{Report: hasReport == nil, GeoPackage: hasGpkg == nil, NetCDF: hasNC == nil})
 	if err != nil {
 		return nil, nil, fault.Output(err)
 	}

@@ -36,6 +36,14 @@ def colour(v, lo, hi):
 
 cells = QgsVectorLayer(gp + "|layername=cells", "cells", "ogr")
 def col_range(col):
+    if col.startswith("lcoe_per_mwh_"):
+        # a screening scenario's levelised cost is not a column of cells:
+        # its range from atlas.nc's variable of it (python3-netcdf4)
+        import netCDF4, numpy
+        with netCDF4.Dataset(os.path.join(run, "atlas.nc")) as ds:
+            v = numpy.ma.filled(ds.variables[col][:].astype(float), numpy.nan)
+        v = v[numpy.isfinite(v)]
+        return (float(v.min()), float(v.max())) if v.size else (None, None)
     vals = [f[col] for f in cells.getFeatures() if f[col] is not None and f[col] == f[col]]
     vals = [float(v) for v in vals if not hasattr(v, "isNull") or not v.isNull()]
     return (min(vals), max(vals)) if vals else (None, None)
