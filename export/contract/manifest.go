@@ -115,6 +115,9 @@ type Parameters struct {
 		Name        string `json:"name"`
 		PowerMatrix string `json:"power_matrix"`
 		Lookup      string `json:"lookup"`
+		// WidthM is the device's stated width (m; 0: not given), the unit
+		// of a screening's spacings in widths.
+		WidthM float64 `json:"width_m"`
 	} `json:"devices"`
 	Extremes struct {
 		ReturnPeriodsY []float64 `json:"return_periods_y"`

@@ -2,6 +2,7 @@ package engine
 
 import (
 	"database/sql"
+	"encoding/json"
 	"encoding/xml"
 	"math"
 	"os"
@@ -317,5 +318,47 @@ func TestWaterfallAgainstParquet(t *testing.T) {
 	}
 	if k != 2 {
 		t.Fatalf("%d scenarios at the site's cell, want 2", k)
+	}
+}
+
+// TestSpacingInWidths: a layout spaced 10 device widths along and 20
+// across the waves, for a device 12.5 m wide (the run's manifest), is 125
+// m by 250 m: 1e6 / (125 x 250) = 32 devices per km2 by hand, as
+// devices_per_km2 = 32 gives; without a width it is refused.
+func TestSpacingInWidths(t *testing.T) {
+	dir := smallScreenRun(t)
+	mp := filepath.Join(dir, "manifest.json")
+	b, _ := os.ReadFile(mp)
+	os.WriteFile(mp, []byte(strings.Replace(string(b), `{"name": "wec"}`, `{"name": "wec", "width_m": 12.5}`, 1)), 0o644)
+	spec := strings.Replace(strings.Replace(delivSpec, "spacing_along_m = 200", "spacing_along_widths = 10", 1), "spacing_across_m = 250", "spacing_across_widths = 20", 1)
+	os.WriteFile(filepath.Join(dir, "w.toml"), []byte(spec), 0o644)
+	if _, _, err := screening.Rescreen(dir, filepath.Join(dir, "w.toml")); err != nil {
+		t.Fatal(err)
+	}
+	var sum contract.ScreeningSummary
+	b, _ = os.ReadFile(filepath.Join(dir, screening.File))
+	if err := json.Unmarshal(b, &sum); err != nil {
+		t.Fatal(err)
+	}
+	sc := sum.Scenarios[0]
+	if sc.Name != "far_dc" || math.Abs(sc.DevicesPerKm2-32) > 1e-12 || sc.AreaKm2 == nil || sc.Devices == nil || math.Abs(*sc.Devices-32**sc.AreaKm2) > 1e-9**sc.Devices {
+		t.Errorf("%s: %v devices per km2 (by hand 32), %v devices over %v km2", sc.Name, sc.DevicesPerKm2, sc.Devices, sc.AreaKm2)
+	}
+	// the same layout by density: the same delivered energy and cost
+	byW, _ := parquetread.Columns(filepath.Join(dir, "screening.parquet"))
+	os.WriteFile(filepath.Join(dir, "d.toml"), []byte(strings.Replace(strings.Replace(delivSpec, "spacing_along_m = 200", "devices_per_km2 = 32", 1), "spacing_across_m = 250\n", "", 1)), 0o644)
+	if _, _, err := screening.Rescreen(dir, filepath.Join(dir, "d.toml")); err != nil {
+		t.Fatal(err)
+	}
+	byD, _ := parquetread.Columns(filepath.Join(dir, "screening.parquet"))
+	for k := range byD["lcoe_per_mwh"] {
+		if byD["lcoe_per_mwh"][k] != byW["lcoe_per_mwh"][k] {
+			t.Errorf("row %d: LCOE %v with spacing in widths, %v with the same density", k, byW["lcoe_per_mwh"][k], byD["lcoe_per_mwh"][k])
+		}
+	}
+	plain := smallScreenRun(t) // a run whose device states no width
+	os.WriteFile(filepath.Join(plain, "w.toml"), []byte(spec), 0o644)
+	if _, _, err := screening.Rescreen(plain, filepath.Join(plain, "w.toml")); err == nil || !strings.Contains(err.Error(), "width_m") {
+		t.Errorf("spacing in widths without a width: %v, want a refusal naming width_m", err)
 	}
 }

@@ -64,6 +64,10 @@ type ScenarioSpec struct {
 	// per km2 (stats/delivery.DevicesPerKm2).
 	SpacingAlongM  float64 `toml:"spacing_along_m" json:"spacing_along_m,omitempty"`
 	SpacingAcrossM float64 `toml:"spacing_across_m" json:"spacing_across_m,omitempty"`
+	// SpacingAlongWidths and SpacingAcrossWidths give the spacings in
+	// multiples of the device's width_m instead (DensityOf).
+	SpacingAlongWidths  float64 `toml:"spacing_along_widths" json:"spacing_along_widths,omitempty"`
+	SpacingAcrossWidths float64 `toml:"spacing_across_widths" json:"spacing_across_widths,omitempty"`
 
 	// Energy delivered ashore (issue 32; with device). ArrayFactor is the
 	// array interaction (0: the default 1, recorded as an assumption).
@@ -106,6 +110,20 @@ func (c ScenarioSpec) Density() float64 {
 		return delivery.DevicesPerKm2(c.SpacingAlongM, c.SpacingAcrossM)
 	}
 	return 0
+}
+
+// DensityOf returns the scenario's devices per km2 for a device of width
+// widthM (m): from the spacings in widths when given (spacing along x
+// widthM by spacing across x widthM, stats/delivery.DevicesPerKm2; NaN
+// without a positive width), else Density.
+func (c ScenarioSpec) DensityOf(widthM float64) float64 {
+	if c.SpacingAlongWidths > 0 && c.SpacingAcrossWidths > 0 {
+		if !(widthM > 0) {
+			return math.NaN()
+		}
+		return delivery.DevicesPerKm2(c.SpacingAlongWidths*widthM, c.SpacingAcrossWidths*widthM)
+	}
+	return c.Density()
 }
 
 // Array returns the scenario's array factor (1 when not given).
@@ -296,11 +314,23 @@ func (s *Spec) checkScreening(devices map[string]bool) error {
 			}
 		}
 		spaced := c.SpacingAlongM != 0 || c.SpacingAcrossM != 0
+		widths := c.SpacingAlongWidths != 0 || c.SpacingAcrossWidths != 0
 		if c.Device != "" {
 			if devices != nil && !devices[c.Device] {
 				return fmt.Errorf("spec: %s.device = %q is not a [[device]] of the run", key, c.Device)
 			}
 			switch {
+			case widths && (spaced || c.DevicesPerKm2 != 0):
+				return fmt.Errorf("spec: %s: give one of devices_per_km2, spacing_along_m and spacing_across_m, or spacing_along_widths and spacing_across_widths", key)
+			case widths:
+				if !(c.SpacingAlongWidths > 0 && c.SpacingAcrossWidths > 0) || math.IsInf(c.SpacingAlongWidths, 0) || math.IsInf(c.SpacingAcrossWidths, 0) {
+					return fmt.Errorf("spec: %s: spacing_along_widths = %v, spacing_across_widths = %v: give both, positive multiples of the device's width_m", key, c.SpacingAlongWidths, c.SpacingAcrossWidths)
+				}
+				for _, d := range s.Devices {
+					if d.Name == c.Device && !(d.WidthM > 0 && !math.IsInf(d.WidthM, 0)) {
+						return fmt.Errorf("spec: %s: spacing in widths needs the [[device]] %s's width_m (m, > 0), got %v", key, d.Name, d.WidthM)
+					}
+				}
 			case spaced && c.DevicesPerKm2 != 0:
 				return fmt.Errorf("spec: %s: give devices_per_km2 or spacing_along_m and spacing_across_m, not both", key)
 			case spaced:
@@ -310,7 +340,7 @@ func (s *Spec) checkScreening(devices map[string]bool) error {
 			case !(c.DevicesPerKm2 > 0) || math.IsInf(c.DevicesPerKm2, 0):
 				return fmt.Errorf("spec: %s.devices_per_km2 = %v: give the layout density, devices per km2 (> 0), or spacing_along_m and spacing_across_m, with device", key, c.DevicesPerKm2)
 			}
-		} else if c.DevicesPerKm2 != 0 || spaced {
+		} else if c.DevicesPerKm2 != 0 || spaced || widths {
 			return fmt.Errorf("spec: %s.devices_per_km2 (or a spacing) is set without device; name the [[device]] whose AEP the layout uses", key)
 		}
 		if err := c.checkDelivery(key, byName); err != nil {

@@ -158,6 +158,9 @@ type DeviceSpec struct {
 	RepairH         float64 `toml:"repair_h" json:"repair_h,omitempty"`
 	AccessHm0M      float64 `toml:"access_hm0_m" json:"access_hm0_m,omitempty"`
 	AccessTeS       float64 `toml:"access_te_s" json:"access_te_s,omitempty"`
+	// WidthM is the device's stated width (m, across the waves), the unit
+	// of a scenario's spacing_along_widths and spacing_across_widths.
+	WidthM float64 `toml:"width_m" json:"width_m,omitempty"`
 }
 
 // HasAccess reports whether the device has a repair-access rule.

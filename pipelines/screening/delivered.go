@@ -205,3 +205,38 @@ func writeLCOEBands(dir string, ls []lcoeBands) ([]string, error) {
 	}
 	return files, nil
 }
+
+// layoutDensities returns the spec's scenarios with the density of every
+// scenario spaced in device widths (spacing_along_widths,
+// spacing_across_widths) resolved into its DevicesPerKm2
+// (runspec.ScenarioSpec.DensityOf), the device's width_m taken from the
+// spec's [[device]] or, for a spec of screening alone, from the run's
+// manifest. The spec itself is left as given (the manifest records it).
+func layoutDensities(r *rundir.Run, s *runspec.Resolved) ([]runspec.ScenarioSpec, error) {
+	out := append([]runspec.ScenarioSpec(nil), s.Screening.Scenarios...)
+	for k, c := range out {
+		if !(c.SpacingAlongWidths > 0 && c.SpacingAcrossWidths > 0) {
+			continue
+		}
+		w := 0.0
+		for _, d := range s.Devices {
+			if d.Name == c.Device {
+				w = d.WidthM
+			}
+		}
+		if w == 0 {
+			for _, d := range r.Manifest.Parameters.Devices {
+				if d.Name == c.Device {
+					w = d.WidthM
+				}
+			}
+		}
+		rho := c.DensityOf(w)
+		if !(rho > 0) || math.IsInf(rho, 0) {
+			return nil, fault.Input(fmt.Errorf("screening: scenario %s: spacing in widths of device %s needs its width_m (m, > 0) in the [[device]] of the run (%s) or of the spec, got %v",
+				c.Name, c.Device, filepath.Join(r.Dir, contract.ManifestFile), w))
+		}
+		out[k].DevicesPerKm2, out[k].SpacingAlongWidths, out[k].SpacingAcrossWidths = rho, 0, 0
+	}
+	return out, nil
+}

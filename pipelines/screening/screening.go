@@ -111,7 +111,10 @@ func runGrid(r *rundir.Run) *grid.Grid {
 // screenRun screens the run r with the spec's [screening] section (its
 // layers read by validateScreening).
 func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
-	sc := s.Screening
+	scen, err := layoutDensities(r, s)
+	if err != nil {
+		return nil, err
+	}
 	g := runGrid(r)
 	n := g.NCells()
 	var outlines []orb.Ring // a mesh's cells (faces or median dual cells)
@@ -134,7 +137,7 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 	}
 	// distances, once per layer used in a distance rule
 	distIdx := map[string]int{}
-	for _, c := range sc.Scenarios {
+	for _, c := range scen {
 		for _, d := range c.Distance {
 			if _, ok := distIdx[d.Layer]; !ok {
 				distIdx[d.Layer] = len(res.distLayers)
@@ -152,7 +155,7 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 	}
 	// polygon membership, once per polygon layer used
 	inside := map[string][]bool{}
-	for _, c := range sc.Scenarios {
+	for _, c := range scen {
 		for _, name := range append(append([]string{}, c.Exclude...), c.Within...) {
 			if inside[name] != nil {
 				continue
@@ -164,8 +167,8 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 			inside[name] = in
 		}
 	}
-	crits := make([][]runspec.Criterion, len(sc.Scenarios))
-	for k, c := range sc.Scenarios {
+	crits := make([][]runspec.Criterion, len(scen))
+	for k, c := range scen {
 		for _, t := range c.Criteria {
 			cr, _ := runspec.ParseCriterion(t) // checked by validateScreening
 			col := r.Cells.Col(cr.Column)
@@ -186,12 +189,12 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 		return nil, err
 	}
 	power := r.Cells.Col(contract.ColPowerMean)
-	passes := make([][]bool, len(sc.Scenarios))
+	passes := make([][]bool, len(scen))
 	for k := range passes {
 		passes[k] = make([]bool, n)
 	}
 	for i := 0; i < n; i++ {
-		for k, c := range sc.Scenarios {
+		for k, c := range scen {
 			row := &screenRow{id: i, scenario: c.Name, areaKm2: areaKm2[i], dist: make([]float64, len(res.distLayers))}
 			for l := range res.distLayers {
 				row.dist[l] = dist[l][i]
@@ -237,9 +240,9 @@ func screenRun(r *rundir.Run, s *runspec.Resolved) (*screenResult, error) {
 		}
 	}
 	corners, structured := grid.CellCorners(g)
-	for k, c := range sc.Scenarios {
+	for k, c := range scen {
 		ss := summarise(c, passes[k], areaKm2, areas != nil, power, r.Cells.Col(contract.AEPColumn(c.Device)))
-		summariseDelivered(&ss, c, res.rows, k, len(sc.Scenarios), areas != nil)
+		summariseDelivered(&ss, c, res.rows, k, len(scen), areas != nil)
 		switch {
 		case structured:
 			res.polys[c.Name] = grid.Dissolve(corners, passes[k], g.Kind == grid.Regular)
