@@ -108,6 +108,7 @@ BENCH_OUT   ?= bench-out
 BENCH_CACHE ?= $(HOME)/.cache/swellgrid-bench
 BENCH_BEFORE ?= a042283
 BENCH_PARTS ?= full,half
+# (^BenchmarkAdd covers BenchmarkAdd, AddTwoDevices and AddAccess: the feed with repair-access rules, issue 32)
 BENCH_MICRO ?= FeedBulk|FeedSpectral|FinishBulk|FitStage|GroupVelocity|BulkDepthPower|FitGEV|FitGPD|^BenchmarkAdd|FitJoint|ProfileIntervals|LongTables|WriteGeoParquet
 BENCHSTAT_VERSION := v0.0.0-20260908200009-22c9c6c9d4da
 BENCH_DRIVER := internal/bench cmd/sgbench

@@ -38,11 +38,12 @@ func synthSteps(years int, seed uint64, dtH float64) []Step {
 	return steps
 }
 
-func benchConfig(b *testing.B, devices bool) *Config {
+func benchConfig(b *testing.B, devices bool, access ...AccessRule) *Config {
 	cfg := DefaultConfig()
 	if devices {
 		cfg.Devices = []*Device{testDevice(BinLookup, "bin"), testDevice(Bilinear, "bilin")}
 	}
+	cfg.AccessRules = access
 	if err := cfg.Validate(); err != nil {
 		b.Fatal(err)
 	}
@@ -66,8 +67,8 @@ func testDevice(l Lookup, name string) *Device {
 	return d
 }
 
-func benchAdd(b *testing.B, devices bool) {
-	cfg := benchConfig(b, devices)
+func benchAdd(b *testing.B, devices bool, access ...AccessRule) {
+	cfg := benchConfig(b, devices, access...)
 	steps := synthSteps(2, 7, 1)
 	const cells = 64
 	states := make([]*CellState, cells)
@@ -100,6 +101,14 @@ func BenchmarkAdd(b *testing.B) { benchAdd(b, false) }
 
 // BenchmarkAddTwoDevices adds a bin-lookup and a bilinear device.
 func BenchmarkAddTwoDevices(b *testing.B) { benchAdd(b, true) }
+
+// BenchmarkAddAccess is BenchmarkAddTwoDevices with two repair-access
+// rules (issue 32: Hm0 below 2 m for 12 h; Hm0 below 1.5 m and Te below
+// 7 s for 24 h), the feed cost of the waiting times for access: compare it
+// with BenchmarkAddTwoDevices (make bench's BENCH_MICRO runs both).
+func BenchmarkAddAccess(b *testing.B) {
+	benchAdd(b, true, AccessRule{Hm0M: 2, RepairH: 12}, AccessRule{Hm0M: 1.5, TeS: 7, RepairH: 24})
+}
 
 // BenchmarkMerge merges two 10-year states of one cell.
 func BenchmarkMerge(b *testing.B) {
