@@ -23,9 +23,10 @@ as geodesics on WGS 84. Layers are GeoJSON or GeoPackage files in WGS 84 (anythi
 else is refused: reproject with ogr2ogr -t_srs EPSG:4326). It writes
 screening.parquet (cell x scenario: pass, reasons, area, distances),
 screening.json (per scenario: passing area, mean resource, the annual energy of a
-device layout), contours/screening_<scenario>.geojson (the passing area), records
-them in manifest.json and rebuilds the report and atlas.gpkg where the run has
-them. Exit codes: 0 ok, 1 internal error, 2 not a finished run or a bad spec or
+device layout), contours/screening_<scenario>.geojson (the passing area) and,
+with costs, contours/lcoe_per_mwh_<scenario>.bands.geojson (the levelised cost),
+records them in manifest.json and rebuilds the report, atlas.gpkg and atlas.nc
+where the run has them. Exit codes: 0 ok, 1 internal error, 2 not a finished run or a bad spec or
 constraint file (named), 4 output directory locked or not writable.
 
 ` + wrapText(screening.Note, 86) + "\n\n" + caution,

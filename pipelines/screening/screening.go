@@ -414,8 +414,8 @@ func ptrOrNil(p *float64) any {
 // Rescreen screens the finished run in dir again with the [screening]
 // section of the spec at specPath, without recomputing anything: it
 // rewrites screening.parquet, screening.json and the scenario outlines,
-// records the screening in the manifest, and rebuilds the report and
-// atlas.gpkg where the run has them. It returns the files written.
+// records the screening in the manifest, and rebuilds the report,
+// atlas.gpkg and atlas.nc (the levelised-cost layers) where the run has them. It returns the files written.
 func Rescreen(dir, specPath string) ([]string, []string, error) {
 	mpath := filepath.Join(dir, "manifest.json")
 	raw, err := rundir.ReadManifest(dir) // proved against its seal
@@ -431,7 +431,7 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 		return nil, nil, err
 	}
 	defer unlock()
-	if err := export.CheckOutputs(dir, []string{export.ContourDir, contract.ReportDir}, []string{contract.ManifestFile, contract.ManifestSeal, contract.AtlasGPKGFile, File, "screening.parquet"}); err != nil {
+	if err := export.CheckOutputs(dir, []string{export.ContourDir, contract.ReportDir}, []string{contract.ManifestFile, contract.ManifestSeal, contract.AtlasGPKGFile, contract.AtlasNCFile, File, "screening.parquet"}); err != nil {
 		return nil, nil, fault.Input(err)
 	}
 	r, err := rundir.Open(dir, raw)
