@@ -77,7 +77,7 @@ func TestPlantedLinkMatrix(t *testing.T) {
 		{"report", grid, func(d string) []string { return []string{"report", "--atlas", d} },
 			[]string{"report/", "atlas.nc", "atlas.gpkg", ".swellgrid/", ".swellgrid/lock", ".swellgrid/manifest.sha256"}, "report/index.html"},
 		{"screen", grid, func(d string) []string { return []string{"screen", d, "--spec", spec} },
-			[]string{"contours/", "report/", "screening.parquet", "screening.json", ".swellgrid/lock", ".swellgrid/manifest.sha256"}, "screening.parquet"},
+			[]string{"contours/", "report/", "screening.parquet", "screening.json", "atlas.nc", ".swellgrid/lock", ".swellgrid/manifest.sha256"}, "screening.parquet"},
 		{"validate", bulk, func(d string) []string { return []string{"validate", "--run", d, "--obs", obs} },
 			[]string{"validation.json", "validation.parquet", "validation_qq.parquet", "validation_pairs.parquet", ".swellgrid/lock", ".swellgrid/manifest.sha256"}, "validation.parquet"},
 	} {

@@ -415,7 +415,8 @@ func ptrOrNil(p *float64) any {
 // section of the spec at specPath, without recomputing anything: it
 // rewrites screening.parquet, screening.json and the scenario outlines,
 // records the screening in the manifest, and rebuilds the report,
-// atlas.gpkg and atlas.nc (the levelised-cost layers) where the run has them. It returns the files written.
+// atlas.gpkg and atlas.nc (the levelised-cost layers) where the run has
+// them. It returns the files written.
 func Rescreen(dir, specPath string) ([]string, []string, error) {
 	mpath := filepath.Join(dir, "manifest.json")
 	raw, err := rundir.ReadManifest(dir) // proved against its seal
