@@ -99,9 +99,9 @@ func Waterfall(aep, arrayFactor, availability, loss float64) []WaterfallStep {
 	d := delivery.Delivered(aep, arrayFactor, availability, loss)
 	return []WaterfallStep{
 		{"open-water AEP", 0, aep, true},
-		{"array factor " + fmtNum(arrayFactor), a, aep, false},
-		{"availability " + fmtNum(availability), b, a, false},
-		{"export loss " + fmtNum(100*loss) + " %", d, b, false},
+		{"array factor\n" + fmtNum(arrayFactor), a, aep, false},
+		{"availability\n" + fmtNum(availability), b, a, false},
+		{"export loss\n" + fmtNum(100*loss) + " %", d, b, false},
 		{"delivered", 0, d, true},
 	}
 }
