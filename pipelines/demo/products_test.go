@@ -630,6 +630,25 @@ func TestReportInChromium(t *testing.T) {
 			ratio[name] = v
 		}
 	}
+	// then the levelised cost per cell of each scenario with costs
+	// (screening.parquet's lcoe_per_mwh)
+	sc, err := parquetread.Columns(filepath.Join(run, "screening.parquet"), "cell_id", "scenario", "lcoe_per_mwh")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range []string{"demo_core", "demo_offshore"} {
+		v := make([]float64, len(land))
+		for k := range v {
+			v[k] = math.NaN()
+		}
+		for i, id := range sc["cell_id"] {
+			if sc["scenario"][i] == name {
+				v[id.(int64)] = runcheck.Num(sc["lcoe_per_mwh"][i])
+			}
+		}
+		want = append(want, "lcoe_per_mwh_"+name)
+		ratio["lcoe_per_mwh_"+name] = v
+	}
 	var got []string
 	for _, m := range maps {
 		got = append(got, m.Column)
