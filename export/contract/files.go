@@ -36,6 +36,7 @@ const (
 	TableDirections           = "directions"
 	TableAnnual               = "annual"
 	TableAnnualMaxima         = "annual_maxima"
+	TableMonthlyYield         = "monthly_yield"
 	TableAEPBands             = "aep_bands"
 	TableAccess               = "access"
 	TableScreening            = "screening"

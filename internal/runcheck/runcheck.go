@@ -21,7 +21,7 @@ import (
 )
 
 // AllTables are the files every run directory holds.
-var AllTables = []string{"cells.parquet", "monthly.parquet", "scatter.parquet", "exceedance.parquet", "windows.parquet", "extremes.parquet", "manifest.json", "threshold_diagnostics.parquet", "design.parquet", "directions.parquet", "annual.parquet", "annual_maxima.parquet", "aep_bands.parquet"}
+var AllTables = []string{"cells.parquet", "monthly.parquet", "scatter.parquet", "exceedance.parquet", "windows.parquet", "extremes.parquet", "manifest.json", "threshold_diagnostics.parquet", "design.parquet", "directions.parquet", "annual.parquet", "annual_maxima.parquet", "monthly_yield.parquet", "aep_bands.parquet"}
 
 // RequireFiles fails t for each of names missing or empty in dir.
 func RequireFiles(t *testing.T, dir string, names ...string) {

@@ -159,6 +159,12 @@ var e2eTables = []e2eTable{
 	{"annual.parquet", "annual", []string{"cell_id", "year", "device"}, nil,
 		map[string]tol{"power_mean_kw_m": tolPower, "energy_mwh": {1e-3, 1e-9}, "valid_hours": exact, "hours": exact,
 			"coverage_frac": tolShare, "excluded": exact}},
+	// monthly device yield: device power in 2^-16 kW fixed point, as
+	// annual.parquet's energies; every year-month of the record and the
+	// calendar-month climatology of the included ones
+	{"monthly_yield.parquet", "monthly_yield", []string{"cell_id", "device", "period", "year", "month"}, nil,
+		map[string]tol{"mean_power_kw": tolPower, "energy_mwh": {1e-3, 1e-9}, "valid_hours": exact, "hours": {1e-9, 0},
+			"coverage_frac": tolShare, "years_used": exact, "excluded": exact}},
 	// AEP bands: fractions are ratios of the fixed-point year means (a
 	// relative error near 1e-8); energies as aep_<device>_mwh. The reference
 	// takes z from scipy.stats.norm.ppf, swellgrid from gonum's UnitNormal.

@@ -248,7 +248,7 @@ func TestStationNamesInEveryTable(t *testing.T) {
 		runLayout(t, c.input, out, func(s *runspec.Spec) {
 			s.Devices = []runspec.DeviceSpec{{Name: "wec_a", PowerMatrix: dev, Lookup: "bin"}}
 		})
-		for _, table := range append(runcheck.AllTables[:6:6], "directions.parquet", "annual.parquet", "annual_maxima.parquet", "aep_bands.parquet") {
+		for _, table := range append(runcheck.AllTables[:6:6], "directions.parquet", "annual.parquet", "annual_maxima.parquet", "monthly_yield.parquet", "aep_bands.parquet") {
 			cols, err := parquetread.Columns(filepath.Join(out, table), "cell_id", "name")
 			if err != nil {
 				t.Fatalf("%s %s: %v", c.input, table, err)

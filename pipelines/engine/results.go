@@ -34,6 +34,7 @@ type cellResult struct {
 	annual  []climate.YearRow       // analysis years with data
 	bands   []climate.AEPBand       // AEP bands per device and horizon
 	access  []accessRow             // repair access per device and calendar month
+	yield   []climate.MonthYieldRow // each device's energy by calendar month and year-month
 	iaYears int                     // complete analysis years
 	iaStd   float64                 // inter-annual sample std of annual mean J, kW/m
 }
@@ -49,6 +50,7 @@ func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResu
 	r.monthly, r.season, r.scatter, r.exceed, r.windows = c.clim.MonthlyIn(e.recordSpans()), c.clim.Seasonal(), c.clim.Scatter(), c.clim.Exceedance(), c.clim.Windows()
 	r.dirs = c.clim.Directions()
 	r.annual = c.clim.Annual(e.spec.Extremes.YearStartMonth)
+	r.yield = c.clim.MonthlyYieldIn(e.recordSpans())
 	r.iaYears, r.iaStd = climate.InterannualPower(r.annual)
 	if r.sum.Steps > 0 {
 		r.bands = climate.AEPBands(r.annual, r.sum.Devices, e.spec.Uncertainty.HorizonsY, e.model.forCell(e.cat.Grid.Lon[id], e.cat.Grid.Lat[id]))

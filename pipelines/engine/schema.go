@@ -441,6 +441,7 @@ var longSchemas = []longTable{
 	longSchema[climate.DirectionRow]{"directions", directionsSchema, directionRows},
 	longSchema[annualRow]{"annual", annualSchema, annualRows},
 	longSchema[annualMaxRow]{"annual_maxima", annualMaxSchema, annualMaxRows},
+	longSchema[yieldRow]{"monthly_yield", monthlyYieldSchema, monthlyYieldRows}, // schema_yield.go
 	longSchema[climate.AEPBand]{"aep_bands", bandsSchema, bandRows},
 	longSchema[accessRow]{"access", accessSchema, func(r *cellResult) []accessRow { return r.access }},
 }

@@ -199,7 +199,7 @@ func (o OutputSpec) SitesOnlyLongRows() bool { return o.LongTablesCells == contr
 // LongTableNames are the run's long tables, by name (the file is the name
 // with ".parquet"), in file order: what output.long_tables may choose.
 var LongTableNames = []string{contract.TableAccess, contract.TableAEPBands, contract.TableAnnual, contract.TableAnnualMaxima, contract.TableDesign, contract.TableDirections,
-	contract.TableExceedance, contract.TableExtremes, contract.TableMonthly, contract.TableScatter,
+	contract.TableExceedance, contract.TableExtremes, contract.TableMonthly, contract.TableMonthlyYield, contract.TableScatter,
 	contract.TableThresholdDiagnostics, contract.TableWindows}
 
 // WritesLongTable reports whether the run writes the long table name

@@ -43,6 +43,13 @@ Definitions (README "Methods"; sources named beside each):
   coverage_min; each device's energy = mean device power over the year's
   steps with Hm0 and Te x the year's hours / 1000 MWh;
   interannual_std_kw_m = numpy.std(ddof=1) of the complete years' mean J.
+- monthly device yield (monthly_yield): per device, each year-month's mean
+  device power over its steps with Hm0 and Te, valid hours (6 h a step),
+  the month's hours (calendar.monthrange), coverage_frac = valid / hours,
+  excluded below coverage_min or without data, energy = mean power x hours /
+  1000 MWh; the calendar-month rows pool the device power of the included
+  year-months (mean of their steps), times the mean hours of those months,
+  coverage_frac = included / year-months with data, years_used = included.
 - AEP bands (aep_bands): over the complete years, interannual_frac =
   std(ddof=1) / mean of the years' mean device power; u_record =
   interannual / sqrt(years), u_future = interannual / sqrt(horizon),
@@ -656,6 +663,41 @@ def annual_years(cid, h, e, J, v, years, devs, c, tables):
                                         "aep_p99_mwh": p50 * (1 - stats.norm.ppf(0.99) * tot)})
 
 
+def monthly_yield(cid, h, e, years, months, devs, tables):
+    """Monthly device yield (see the module docstring)."""
+    ok = np.isfinite(h) & np.isfinite(e)
+    for name, dev in devs.items():
+        pw = np.full(h.shape, np.nan)
+        pw[ok] = device_power(h[ok], e[ok], dev)[0]
+        pooled = {m: [] for m in range(1, 13)}
+        hours = {m: [] for m in range(1, 13)}
+        with_data = {m: 0 for m in range(1, 13)}
+        rows = []
+        for y in range(2001, 2013):
+            for m in range(1, 13):
+                ds = (years == y) & (months == m) & ok
+                hrs = calendar.monthrange(y, m)[1] * 24.0
+                vh = 6.0 * ds.sum()
+                cov = min(1.0, vh / hrs)
+                mean = pw[ds].mean() if ds.any() else None
+                excl = bool(vh == 0 or cov < COVERAGE_MIN)
+                rows.append({"cell_id": cid, "device": name, "period": "year_month", "year": y, "month": m,
+                             "mean_power_kw": mean, "energy_mwh": None if mean is None else mean * hrs / 1000,
+                             "valid_hours": vh, "hours": hrs, "coverage_frac": cov, "years_used": 0, "excluded": excl})
+                if ds.any():
+                    with_data[m] += 1
+                if not excl:
+                    pooled[m].append(pw[ds])
+                    hours[m].append(hrs)
+        for m in range(1, 13):
+            x = np.concatenate(pooled[m])
+            tables["monthly_yield"].append({"cell_id": cid, "device": name, "period": "calendar_month", "year": 0, "month": m,
+                                            "mean_power_kw": x.mean(), "energy_mwh": x.mean() * np.mean(hours[m]) / 1000,
+                                            "valid_hours": 6.0 * len(x), "hours": np.mean(hours[m]),
+                                            "coverage_frac": len(pooled[m]) / with_data[m], "years_used": len(pooled[m]), "excluded": False})
+        tables["monthly_yield"].extend(rows)
+
+
 def main():
     t, hs, te, tp, dr, depth = read()
     dates = np.datetime64("2001-01-01T00") + t.astype("timedelta64[h]")
@@ -665,7 +707,7 @@ def main():
     devs = {n: matrix(os.path.join(HERE, "device_%s.csv" % n[-1])) for n in ["wec_a", "wec_b"]}
     ny, nx = depth.shape
     cells, monthly = [], []
-    tables = {k: [] for k in ["climatology", "scatter", "exceedance", "windows", "extremes", "threshold_diagnostics", "design", "annual", "aep_bands"]}
+    tables = {k: [] for k in ["climatology", "scatter", "exceedance", "windows", "extremes", "threshold_diagnostics", "design", "annual", "aep_bands", "monthly_yield"]}
     for cid in range(ny * nx):
         j, i = divmod(cid, nx)
         h, e, p, d = hs[:, j, i], te[:, j, i], tp[:, j, i], dr[:, j, i]
@@ -713,6 +755,7 @@ def main():
             c["aep_%s_mwh" % name] = mean_kw * HOURS_PER_YEAR / 1000
             c["cf_%s" % name] = mean_kw / dev[2].max()
         annual_years(cid, h, e, J, v, years, devs, c, tables)
+        monthly_yield(cid, h, e, years, months, devs, tables)
         # GEV on calendar-year maxima
         mx = np.array([h[(years == y) & np.isfinite(h)].max() for y in range(2001, 2013)])
         cc, loc, scale = stats.genextreme.fit(mx)
