@@ -156,6 +156,11 @@ func siteFigures(r *rundir.Run, s Site) ([]*figure, []string, error) {
 	} else {
 		notes = append(notes, "year by year: not drawn, neither annual_maxima.parquet nor annual.parquet has rows for this cell")
 	}
+	if f, err := monthYieldFigure(r, s, base+"monthly_yield"); err != nil { // monthyield.go
+		return nil, nil, err
+	} else if f != nil {
+		figs = append(figs, f)
+	}
 	if wl, err := windowLines(r, s); err != nil {
 		return nil, nil, err
 	} else if f := windowsFigure(wl, base+"windows_by_month"); f != nil {
