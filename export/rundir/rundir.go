@@ -117,28 +117,55 @@ func ReadCellRows(path string, cell int64) (*Table, error) { return readTable(pa
 // rowGroupsOf lists the row groups of rdr whose cell_id statistics include
 // cell (nil, false when a row group lacks them: read all).
 func rowGroupsOf(rdr *file.Reader, cell int64) ([]int, bool) {
+	return cellRanges(rdr).groupsOf(cell)
+}
+
+// groupRanges is the cell_id range (statistics min .. max) of each row
+// group of a Parquet file; ok false when a row group lacks them.
+type groupRanges struct {
+	lo, hi []int64
+	ok     bool
+}
+
+// cellRanges reads the cell_id range of every row group of rdr from its
+// footer.
+func cellRanges(rdr *file.Reader) groupRanges {
 	ci := rdr.MetaData().Schema.ColumnIndexByName(contract.ColCellID)
 	if ci < 0 {
-		return nil, false
+		return groupRanges{}
 	}
-	var rgs []int
+	var g groupRanges
 	for i := 0; i < rdr.NumRowGroups(); i++ {
 		cc, err := rdr.MetaData().RowGroup(i).ColumnChunk(ci)
 		if err != nil {
-			return nil, false
+			return groupRanges{}
 		}
 		if ok, err := cc.StatsSet(); err != nil || !ok {
-			return nil, false
+			return groupRanges{}
 		}
 		st, err := cc.Statistics()
 		if err != nil {
-			return nil, false
+			return groupRanges{}
 		}
 		is, ok := st.(*metadata.Int64Statistics)
 		if !ok || !is.HasMinMax() {
-			return nil, false
+			return groupRanges{}
 		}
-		if is.Min() <= cell && cell <= is.Max() {
+		g.lo, g.hi = append(g.lo, is.Min()), append(g.hi, is.Max())
+	}
+	g.ok = true
+	return g
+}
+
+// groupsOf lists the row groups whose range includes cell (nil, false
+// without ranges: read all).
+func (g groupRanges) groupsOf(cell int64) ([]int, bool) {
+	if !g.ok {
+		return nil, false
+	}
+	var rgs []int
+	for i := range g.lo {
+		if g.lo[i] <= cell && cell <= g.hi[i] {
 			rgs = append(rgs, i)
 		}
 	}
@@ -171,7 +198,7 @@ func readTable(path string, cell *int64, names []string) (*Table, error) {
 // withParquet opens the Parquet file at path for fn. A panic of the Parquet
 // reader on a damaged file (a failed page CRC, a bad length) is an error
 // (*DamagedError), never a crash.
-func withParquet(path string, fn func(rdr *file.Reader) error) (err error) {
+func withParquet(path string, fn func(rdr *file.Reader) error, opts ...file.ReadOption) (err error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return fmt.Errorf("rundir: %w", err)
@@ -182,7 +209,7 @@ func withParquet(path string, fn func(rdr *file.Reader) error) (err error) {
 			err = &DamagedError{Path: path, Why: fmt.Sprintf("cannot be read as Parquet (%v)", p)}
 		}
 	}()
-	rdr, err := file.NewParquetReader(f)
+	rdr, err := file.NewParquetReader(f, opts...)
 	if err != nil {
 		return fmt.Errorf("rundir: %s: not a readable Parquet file (rerun the run or its export): %w", path, err)
 	}
@@ -475,6 +502,7 @@ type Run struct {
 	Warnings []string
 	tables   map[string]*Table
 	groups   map[string]*groupRead // CellTable's last row groups of each table
+	footers  map[string]*footer    // CellTable's parsed footer of each table
 	sums     map[string]contract.FileSum
 	verified map[string]error // verify's verdicts
 }
@@ -668,25 +696,81 @@ func (r *Run) CellTable(name string, cell int64) (*Table, error) {
 	if err := r.verify(contract.ParquetFile(name)); err != nil {
 		return nil, err
 	}
+	ft, err := r.footerOf(name)
+	if err != nil {
+		return nil, err
+	}
+	rgs, ok := ft.ranges.groupsOf(cell)
+	if !ok {
+		rgs = make([]int, len(ft.md.GetRowGroups()))
+		for i := range rgs {
+			rgs[i] = i
+		}
+	}
+	if g := r.groups[name]; g != nil && slices.Equal(g.rgs, rgs) { // decoded already: the file is not opened
+		return g.t.subset(g.t.RowsOf(contract.ColCellID, cell)), nil
+	}
 	var out *Table
-	err := withParquet(p, func(rdr *file.Reader) error {
-		rgs, ok := rowGroupsOf(rdr, cell)
-		if !ok {
-			rgs = allGroups(rdr)
+	err = withParquet(p, func(rdr *file.Reader) error {
+		t, err := decodeGroups(p, rdr, nil, rgs)
+		if err != nil {
+			return err
 		}
-		g := r.groups[name]
-		if g == nil || !slices.Equal(g.rgs, rgs) {
-			t, err := decodeGroups(p, rdr, nil, rgs)
-			if err != nil {
-				return err
-			}
-			g = &groupRead{rgs: rgs, t: t}
-			r.groups[name] = g
-		}
+		g := &groupRead{rgs: rgs, t: t}
+		r.groups[name] = g
 		out = g.t.subset(g.t.RowsOf(contract.ColCellID, cell))
 		return nil
-	})
+	}, file.WithMetadata(ft.md))
 	return out, err
+}
+
+// ReadFooters parses and keeps the footers of the named long tables, as
+// CellTable's first read of each does (a table the run lacks is left
+// out), so that the first cell read does not pay for them: a large grid's
+// footers (the statistics of every row group) are much of a cell's read.
+func (r *Run) ReadFooters(names ...string) error {
+	for _, n := range names {
+		p := filepath.Join(r.Dir, contract.ParquetFile(n))
+		if _, err := os.Stat(p); errors.Is(err, os.ErrNotExist) {
+			continue
+		}
+		if err := r.verify(contract.ParquetFile(n)); err != nil {
+			return err
+		}
+		if _, err := r.footerOf(n); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// footerOf returns the kept footer of the long table name, parsing it on
+// first use (the file verified by the caller).
+func (r *Run) footerOf(name string) (*footer, error) {
+	if ft := r.footers[name]; ft != nil {
+		return ft, nil
+	}
+	var ft *footer
+	err := withParquet(filepath.Join(r.Dir, contract.ParquetFile(name)), func(rdr *file.Reader) error {
+		ft = &footer{md: rdr.MetaData(), ranges: cellRanges(rdr)}
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	if r.footers == nil {
+		r.footers = map[string]*footer{}
+	}
+	r.footers[name] = ft
+	return ft, nil
+}
+
+// footer is a long table's parsed Parquet footer and the cell_id range of
+// each of its row groups, kept by CellTable after the table's first read
+// (the file was proved against its checksum then and is not rewritten).
+type footer struct {
+	md     *metadata.FileMetaData
+	ranges groupRanges
 }
 
 // groupRead is the row groups of a long table last decoded by CellTable.

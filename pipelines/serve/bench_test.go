@@ -134,3 +134,33 @@ func BenchmarkServeCellPage200(b *testing.B) {
 	}
 	b.ReportMetric(sum.Seconds()/float64(b.N), "s/page")
 }
+
+// The server's side of a cell's page on the 200 x 200 atlas, without the
+// browser (for profiling, -cpuprofile): a cell not seen before, its page
+// built (the long tables' row groups of that cell read) and every figure
+// drawn as the page asks for it (PNG).
+func BenchmarkServeCellPageBuild200(b *testing.B) {
+	dir := atlas200(b)
+	s, err := New(dir)
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer s.Close()
+	n := s.run.Cells.Rows
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		cell := (7919*(i+1) + 12345) % n
+		for s.run.Land[cell] {
+			cell = (cell + 1) % n
+		}
+		p, err := s.page(cell)
+		if err != nil {
+			b.Fatal(err)
+		}
+		for _, f := range p.Figures() {
+			if _, ok, err := p.File(f); err != nil || !ok {
+				b.Fatalf("cell %d figure %s: %v", cell, f, err)
+			}
+		}
+	}
+}

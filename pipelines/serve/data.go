@@ -72,9 +72,10 @@ var notLayers = map[string]bool{contract.ColCellID: true, contract.ColLon: true,
 // prepare makes the map's data, once: atlas.json (the layers with their
 // colour scales, the contour files, sites, stations), the cells' centres
 // (centres.bin: lon then lat, float64 little-endian, lon in the run's
-// continuous frame), the land mask (land.bin: a byte per cell) and, on a
-// structured grid, the cells' outlines as the report draws them
-// (outlines.bin: 4 corners x (lon, lat) per cell, float32, NaN where none).
+// continuous frame), the land mask (land.bin: a byte per cell) and the
+// cells' outlines (outlines.bin, see outlinesBin) on a structured grid (as
+// the report draws them) or a mesh (its faces, or its nodes' median dual
+// cells: rundir.Mesh.CellOutlines, as atlas.gpkg's footprints).
 func (s *Server) prepare() error {
 	r := s.run
 	m := r.Manifest
@@ -161,25 +162,9 @@ func (s *Server) prepare() error {
 		}
 	}
 	s.bins["land.bin"] = land
-	if out := report.CellOutlines(r); out != nil {
+	if out := s.outlines(); out != nil {
 		d.Outlines = true
-		v := make([]float32, 0, 8*len(out))
-		nan := float32(math.NaN())
-		for _, p := range out {
-			if len(p) != 4 {
-				v = append(v, nan, nan, nan, nan, nan, nan, nan, nan)
-				continue
-			}
-			for _, q := range p {
-				v = append(v, float32(q[0]), float32(q[1]))
-			}
-		}
-		var ob bytes.Buffer
-		binary.Write(&ob, binary.LittleEndian, v)
-		s.bins["outlines.bin"] = ob.Bytes()
-	}
-	if r.GridKind == grid.MeshKind || r.GridKind == grid.Points {
-		d.Outlines = false
+		s.bins["outlines.bin"] = outlinesBin(out)
 	}
 	b, err := json.Marshal(d)
 	if err != nil {
@@ -218,4 +203,56 @@ func jsonNum(x float64) string {
 		return "null"
 	}
 	return strconv.FormatFloat(x, 'g', -1, 64)
+}
+
+// outlines returns each cell's outline in the run's continuous longitude
+// frame (corners without the closing repeat; nil where a cell has none):
+// a structured grid's as the report draws them, a mesh's faces or median
+// dual cells; nil for a point set.
+func (s *Server) outlines() [][][2]float64 {
+	r := s.run
+	if out := report.CellOutlines(r); out != nil {
+		return out
+	}
+	if r.GridKind != grid.MeshKind || r.Mesh == nil {
+		return nil
+	}
+	frame := r.FrameLon()
+	out := make([][][2]float64, r.Cells.Rows)
+	for c, ring := range r.Mesh.CellOutlines(r.Cells.Rows) {
+		if len(ring) > 1 && ring[0] == ring[len(ring)-1] {
+			ring = ring[:len(ring)-1]
+		}
+		if len(ring) < 3 || c >= len(frame) || math.IsNaN(frame[c]) {
+			continue
+		}
+		p := make([][2]float64, len(ring))
+		prev := frame[c]
+		for k, q := range ring {
+			// each corner within half a turn of the one before (the first
+			// of the cell's centre): the ring stays whole in the frame
+			lon := q[0] + 360*math.Round((prev-q[0])/360)
+			p[k], prev = [2]float64{lon, q[1]}, lon
+		}
+		out[c] = p
+	}
+	return out
+}
+
+// outlinesBin encodes outlines for the page: n+1 uint32 offsets (cell i
+// has corners off[i] to off[i+1]-1; none for a cell without an outline),
+// then the corners as (lon, lat) float32 pairs, little-endian.
+func outlinesBin(out [][][2]float64) []byte {
+	off := make([]uint32, 1, len(out)+1)
+	var xy []float32
+	for _, p := range out {
+		for _, q := range p {
+			xy = append(xy, float32(q[0]), float32(q[1]))
+		}
+		off = append(off, uint32(len(xy)/2))
+	}
+	var b bytes.Buffer
+	binary.Write(&b, binary.LittleEndian, off)
+	binary.Write(&b, binary.LittleEndian, xy)
+	return b.Bytes()
 }

@@ -32,6 +32,7 @@ import (
 	"swellgrid/export/report"
 	"swellgrid/export/rundir"
 	"swellgrid/pipelines/fault"
+	"swellgrid/pipelines/runspec"
 )
 
 //go:embed assets
@@ -107,6 +108,14 @@ func New(dir string) (*Server, error) {
 		root.Close()
 		return nil, err
 	}
+	// the long tables' footers (every row group's cell range), parsed once
+	// while the map loads rather than by the first cell page; an error
+	// comes back to the page that reads the table
+	s.mu.Lock()
+	go func() {
+		defer s.mu.Unlock()
+		s.run.ReadFooters(runspec.LongTableNames...)
+	}()
 	return s, nil
 }
 

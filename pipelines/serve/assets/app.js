@@ -15,6 +15,7 @@
   };
   const atlas = await get('api/atlas.json', 'json');
   const n = atlas.cells;
+  state.cells = n;
   const cen = new Float64Array(await get('api/centres.bin'));
   const land = new Uint8Array(await get('api/land.bin'));
   const lonOf = (i) => cen[i], latOf = (i) => cen[n + i];
@@ -33,11 +34,24 @@
   project(cxy);
   const cx = new Float64Array(n), cy = new Float64Array(n);
   for (let i = 0; i < n; i++) { cx[i] = cxy[2 * i]; cy[i] = cxy[2 * i + 1]; }
-  let outl = null;
+  // outlines (structured grids and meshes): cell i has the corners
+  // off[i] .. off[i+1]-1 of outl (x, y pairs)
+  let outl = null, off = null;
   if (atlas.outlines) {
-    outl = Float64Array.from(new Float32Array(await get('api/outlines.bin')));
-    project(outl); // NaN corners stay NaN
+    const buf = await get('api/outlines.bin');
+    off = new Uint32Array(buf, 0, n + 1);
+    outl = Float64Array.from(new Float32Array(buf, 4 * (n + 1)));
+    project(outl);
   }
+  const hasOutline = (i) => off && off[i + 1] - off[i] >= 3;
+  const inOutline = (i, p) => {
+    let inside = false;
+    for (let a = off[i], c = off[i + 1] - 1; a < off[i + 1]; c = a++) {
+      const xa = outl[2 * a], ya = outl[2 * a + 1], xc = outl[2 * c], yc = outl[2 * c + 1];
+      if ((ya > p[1]) !== (yc > p[1]) && p[0] < (xc - xa) * (p[1] - ya) / (yc - ya) + xa) inside = !inside;
+    }
+    return inside;
+  };
   mark('projected');
   // colour index of a value, as report.Viridis.Index: floor((v - min) / (max - min) * 256), clamped
   const colourIndex = (v, L) => {
@@ -76,10 +90,10 @@
         ctx.beginPath();
         for (const i of list) {
           if (outl) {
-            const b = 8 * i;
-            if (isNaN(outl[b])) continue;
-            ctx.moveTo(X(outl[b]), Y(outl[b + 1]));
-            for (let c = 1; c < 4; c++) ctx.lineTo(X(outl[b + 2 * c]), Y(outl[b + 2 * c + 1]));
+            if (!hasOutline(i)) continue;
+            const a = off[i];
+            ctx.moveTo(X(outl[2 * a]), Y(outl[2 * a + 1]));
+            for (let c = a + 1; c < off[i + 1]; c++) ctx.lineTo(X(outl[2 * c]), Y(outl[2 * c + 1]));
             ctx.closePath();
           } else {
             const x = X(cx[i]), y = Y(cy[i]);
@@ -211,25 +225,27 @@
   }
   sel.addEventListener('change', () => setLayer(sel.value));
 
-  // the cell under a pixel: the nearest centre, if the point is inside its
-  // outline (structured grid) or within a few pixels of it (points, meshes)
+  // the cell under a pixel: with outlines, the cell whose outline holds the
+  // point, tried from the nearest centre out (a mesh's median dual cell
+  // need not hold every point nearest its node); without them (points),
+  // the nearest centre within a few pixels
   const cellAt = (coord) => {
     let best = -1, bd = Infinity;
+    const d2 = new Float64Array(n);
     for (let i = 0; i < n; i++) {
       const dx = cx[i] - coord[0], dy = cy[i] - coord[1];
       const d = dx * dx + dy * dy;
+      d2[i] = d;
       if (d < bd) { bd = d; best = i; }
     }
     if (best < 0) return -1;
     if (outl) {
-      const b = 8 * best;
-      if (isNaN(outl[b])) return -1;
-      let inside = false;
-      for (let a = 0, c = 3; a < 4; c = a++) {
-        const xa = outl[b + 2 * a], ya = outl[b + 2 * a + 1], xc = outl[b + 2 * c], yc = outl[b + 2 * c + 1];
-        if ((ya > coord[1]) !== (yc > coord[1]) && coord[0] < (xc - xa) * (coord[1] - ya) / (yc - ya) + xa) inside = !inside;
-      }
-      return inside ? best : -1;
+      if (hasOutline(best) && inOutline(best, coord)) return best;
+      const near = [];
+      for (let i = 0; i < n; i++) if (i !== best && d2[i] <= 9 * bd && hasOutline(i)) near.push(i);
+      near.sort((a, b) => d2[a] - d2[b]);
+      for (const i of near) if (inOutline(i, coord)) return i;
+      return -1;
     }
     const r = map.getView().getResolution() * (pointRadius + 3);
     return bd <= r * r ? best : -1;
@@ -257,9 +273,9 @@
   const openCell = (i) => {
     state.selected = i;
     selSource.clear();
-    if (outl && !isNaN(outl[8 * i])) {
+    if (hasOutline(i)) {
       const ring = [];
-      for (let c = 0; c < 4; c++) ring.push([outl[8 * i + 2 * c], outl[8 * i + 2 * c + 1]]);
+      for (let c = off[i]; c < off[i + 1]; c++) ring.push([outl[2 * c], outl[2 * c + 1]]);
       ring.push(ring[0]);
       selSource.addFeature(new ol.Feature(new ol.geom.Polygon([ring])));
     } else {
