@@ -4,6 +4,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"testing"
 
 	"github.com/apache/arrow/go/v17/arrow"
@@ -96,6 +97,17 @@ func TestReadCellRowsAndColumns(t *testing.T) {
 				t.Errorf("cell %d row %d: (%d, %v, %q), want (%d, %v, %q)", c, k, id.Int[k], v.Float[k], name.Str[k], c, vals[i], names[i])
 			}
 		}
+	}
+
+	// the footer was parsed once and kept, with the row groups' cell ranges
+	// (4 rows a group: cells 0-2, 2-3, 3-4, ...); ReadFooters keeps the same
+	ft := run.footers["long"]
+	if ft == nil || !ft.ranges.ok || len(ft.ranges.lo) != (len(ids)+3)/4 || ft.ranges.lo[0] != 0 || ft.ranges.hi[len(ft.ranges.hi)-1] != 8 {
+		t.Errorf("CellTable kept no footer with the row groups' cell ranges: %+v", ft)
+	}
+	run2 := &Run{Dir: filepath.Dir(path), tables: map[string]*Table{}, groups: map[string]*groupRead{}}
+	if err := run2.ReadFooters("long", "absent_table"); err != nil || run2.footers["long"] == nil || !slices.Equal(run2.footers["long"].ranges.lo, ft.ranges.lo) {
+		t.Errorf("ReadFooters: %v, %+v", err, run2.footers["long"])
 	}
 
 	cols, err := ReadColumns(path, "v", "cell_id", "absent")
