@@ -38,7 +38,7 @@ var BarFill = NewViridis(0, 1).color(110)
 // device (their scales may differ by orders of magnitude).
 func monthYieldFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 	cell := int64(s.Cell)
-	t, err := r.CellTable(contract.TableMonthlyYield, cell)
+	t, err := r.CellTable(contract.TableMonthlyYield, cell, "device", "period", "month", "energy_mwh", "excluded")
 	if err != nil || t == nil {
 		return nil, err
 	}

@@ -38,7 +38,7 @@ func bearingPoint(c vg.Point, r vg.Length, deg float64) vg.Point {
 // directionsFigure draws the site's directional power rose from
 // directions.parquet (nil when the run has no rows for the cell).
 func directionsFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.CellTable(contract.TableDirections, int64(s.Cell))
+	t, err := r.CellTable(contract.TableDirections, int64(s.Cell), "sector_from_deg", "sector_to_deg", "sector_centre_deg", "occurrence_share", "power_share")
 	if err != nil || t == nil {
 		return nil, err
 	}

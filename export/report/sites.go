@@ -172,7 +172,7 @@ func siteFigures(r *rundir.Run, s Site) ([]*figure, []string, error) {
 }
 
 func monthlyFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.CellTable(contract.TableMonthly, int64(s.Cell))
+	t, err := r.CellTable(contract.TableMonthly, int64(s.Cell), "period", "year", "month", "excluded", contract.ColPowerMean, contract.ColHm0Mean)
 	if err != nil || t == nil {
 		return nil, err
 	}
@@ -259,7 +259,7 @@ func monthlyFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 }
 
 func exceedanceFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.CellTable(contract.TableExceedance, int64(s.Cell))
+	t, err := r.CellTable(contract.TableExceedance, int64(s.Cell), "variable", "value", "share_exceeded")
 	if err != nil || t == nil {
 		return nil, err
 	}
@@ -414,7 +414,7 @@ func (l *binsLayer) DataRange() (xmin, xmax, ymin, ymax float64) {
 }
 
 func occurrenceFigure(r *rundir.Run, s Site, name string) (*figure, []string, error) {
-	t, err := r.CellTable(contract.TableScatter, int64(s.Cell))
+	t, err := r.CellTable(contract.TableScatter, int64(s.Cell), "hm0_lo_m", "hm0_hi_m", "te_lo_s", "te_hi_s", "time_share")
 	if err != nil || t == nil {
 		return nil, nil, err
 	}
@@ -591,7 +591,7 @@ func (e *errBars) Plot(c draw.Canvas, p *plot.Plot) {
 }
 
 func returnLevelFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.CellTable(contract.TableExtremes, int64(s.Cell))
+	t, err := r.CellTable(contract.TableExtremes, int64(s.Cell), "method", "return_period_y", "hm0_m", "hm0_lo_m", "hm0_hi_m")
 	if err != nil || t == nil {
 		return nil, err
 	}
@@ -646,7 +646,7 @@ func returnLevelFigure(r *rundir.Run, s Site, name string) (*figure, error) {
 // designFigure draws the environmental design contours of design.parquet
 // (when the run has them): Hm0 against the period column per return period.
 func designFigure(r *rundir.Run, s Site, name string) (*figure, error) {
-	t, err := r.CellTable(contract.TableDesign, int64(s.Cell))
+	t, err := r.CellTable(contract.TableDesign, int64(s.Cell), "return_period_y", "hm0_m", "te_s", "tp_s")
 	if err != nil || t == nil {
 		return nil, err
 	}

@@ -200,7 +200,7 @@ type WindowLine struct {
 // windowLines reads the windows of a site's cell, criteria in the table's
 // order of first appearance.
 func windowLines(r *rundir.Run, s Site) ([]WindowLine, error) {
-	t, err := r.CellTable(contract.TableWindows, int64(s.Cell))
+	t, err := r.CellTable(contract.TableWindows, int64(s.Cell), "hm0_limit_m", "min_duration_h", "month", "fraction_in_windows", "windows_per_month")
 	if err != nil || t == nil {
 		return nil, err
 	}

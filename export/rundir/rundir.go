@@ -682,7 +682,10 @@ func (r *Run) Columns(name string, cols ...string) (*Table, error) {
 // holding the whole table. The row groups last decoded of each table are
 // kept, so that sites in cell-id order (every point of a point set) decode
 // each row group once. nil, nil when the run has no such file.
-func (r *Run) CellTable(name string, cell int64) (*Table, error) {
+//
+// cols, when given, are the only columns decoded (with cell_id; a name the
+// file lacks is left out): what a figure needs of a wide table.
+func (r *Run) CellTable(name string, cell int64, cols ...string) (*Table, error) {
 	if t, ok := r.tables[name]; ok { // already read whole
 		if t == nil {
 			return nil, nil
@@ -707,16 +710,22 @@ func (r *Run) CellTable(name string, cell int64) (*Table, error) {
 			rgs[i] = i
 		}
 	}
-	if g := r.groups[name]; g != nil && slices.Equal(g.rgs, rgs) { // decoded already: the file is not opened
+	var names []string // nil: every column
+	if len(cols) > 0 {
+		names = append([]string{contract.ColCellID}, cols...)
+		slices.Sort(names)
+		names = slices.Compact(names)
+	}
+	if g := r.groups[name]; g != nil && slices.Equal(g.rgs, rgs) && g.holds(names) { // decoded already: the file is not opened
 		return g.t.subset(g.t.RowsOf(contract.ColCellID, cell)), nil
 	}
 	var out *Table
 	err = withParquet(p, func(rdr *file.Reader) error {
-		t, err := decodeGroups(p, rdr, nil, rgs)
+		t, err := decodeGroups(p, rdr, names, rgs)
 		if err != nil {
 			return err
 		}
-		g := &groupRead{rgs: rgs, t: t}
+		g := &groupRead{rgs: rgs, names: names, t: t}
 		r.groups[name] = g
 		out = g.t.subset(g.t.RowsOf(contract.ColCellID, cell))
 		return nil
@@ -775,8 +784,25 @@ type footer struct {
 
 // groupRead is the row groups of a long table last decoded by CellTable.
 type groupRead struct {
-	rgs []int
-	t   *Table
+	rgs   []int
+	names []string // the columns decoded (sorted; nil: every column)
+	t     *Table
+}
+
+// holds reports whether g decoded every column of names (nil: all).
+func (g *groupRead) holds(names []string) bool {
+	if g.names == nil {
+		return true
+	}
+	if names == nil {
+		return false
+	}
+	for _, n := range names {
+		if _, ok := slices.BinarySearch(g.names, n); !ok {
+			return false
+		}
+	}
+	return true
 }
 
 // Lon and Lat of every cell (cells.parquet: lon in [-180, 180)).

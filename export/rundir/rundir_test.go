@@ -110,6 +110,15 @@ func TestReadCellRowsAndColumns(t *testing.T) {
 		t.Errorf("ReadFooters: %v, %+v", err, run2.footers["long"])
 	}
 
+	// only the asked columns (with cell_id), then every column again
+	part, err := run2.CellTable("long", 4, "v", "absent")
+	if err != nil || part.Rows != 2 || part.Col("name") != nil || part.Col("v") == nil || part.Col("cell_id") == nil || part.Col("v").Float[1] != 41 {
+		t.Fatalf("CellTable with columns v: %v, %d rows, columns %v", err, part.Rows, colNames(part))
+	}
+	if whole, err := run2.CellTable("long", 4); err != nil || whole.Col("name") == nil || whole.Col("name").Str[0] != "e" {
+		t.Fatalf("CellTable of every column after a partial read: %v, columns %v", err, colNames(whole))
+	}
+
 	cols, err := ReadColumns(path, "v", "cell_id", "absent")
 	if err != nil {
 		t.Fatal(err)
