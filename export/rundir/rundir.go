@@ -197,9 +197,15 @@ func withParquet(path string, fn func(rdr *file.Reader) error) (err error) {
 type DamagedError struct {
 	Path string
 	Why  string
+	// Fix, when set, says what to do instead of the general advice (the
+	// file is damaged or foreign: rerun).
+	Fix string
 }
 
 func (e *DamagedError) Error() string {
+	if e.Fix != "" {
+		return fmt.Sprintf("rundir: %s %s: %s", e.Path, e.Why, e.Fix)
+	}
 	return fmt.Sprintf("rundir: %s %s: the file is damaged or was copied from another run; rerun the run (`swellgrid run` with the same spec and --out) to make it again", e.Path, e.Why)
 }
 
@@ -504,7 +510,8 @@ func ReadManifest(dir string) ([]byte, error) {
 		Sums json.RawMessage `json:"output_checksums"`
 	}
 	if jerr := json.Unmarshal(b, &top); jerr != nil || len(top.Sums) > 0 {
-		return nil, &DamagedError{Path: path, Why: fmt.Sprintf("has no valid seal (%v); the run directory was copied without its %s folder, or changed", serr, contract.StateDir)}
+		return nil, &DamagedError{Path: path, Why: fmt.Sprintf("has no valid seal (%v), although it records output checksums", serr),
+			Fix: fmt.Sprintf("if the run directory was copied, copy its %s folder with it; if the run was made by a swellgrid from before the seal (checksums but no %s) or the seal was removed, run the same `swellgrid run` command again (its spec and the same --out: it rewrites the products from the run's checkpoints and seals them) or rerun into a new --out", contract.StateDir, contract.ManifestSeal)}
 	}
 	return b, nil
 }
