@@ -554,7 +554,7 @@ func (c *checksums) stop() {
 // runFiles are the fixed names a run writes in its directory, checked for
 // planted links before anything is computed (export.CheckOutputs).
 func runFiles() []string {
-	fs := []string{contract.ManifestFile, contract.ManifestSeal, contract.CellsFile, contract.AtlasNCFile, contract.AtlasGPKGFile,
+	fs := []string{contract.ManifestFile, contract.ManifestSeal, shardFile, shardSeal, contract.CellsFile, contract.AtlasNCFile, contract.AtlasGPKGFile,
 		contract.ScreeningFile, contract.ParquetFile(contract.TableScreening), contract.ParquetFile(contract.TableMeshNodes), contract.ParquetFile(contract.TableMeshFaces)}
 	for _, n := range runspec.LongTableNames {
 		fs = append(fs, contract.ParquetFile(n))
