@@ -129,6 +129,8 @@ func Validate(ctx context.Context, opt Options) (*Result, error) {
 	checked := append([]string{}, contract.SealedExtras...)
 	if inRun {
 		checked = append(checked, contract.ManifestFile, contract.ManifestSeal)
+	} else {
+		checked = append(checked, contract.ValidationSeal)
 	}
 	if err := export.CheckOutputs(out, []string{contract.ReportDir}, checked); err != nil {
 		release()
@@ -179,6 +181,8 @@ func Validate(ctx context.Context, opt Options) (*Result, error) {
 		if err := export.Reseal(out); err != nil { // validation's files are sealed with the run
 			return nil, fault.Output(err)
 		}
+	} else if err := export.SealFiles(out, contract.ValidationSeal, res.Files...); err != nil { // a seal of their own
+		return nil, fault.Output(err)
 	}
 	released = true
 	release()
