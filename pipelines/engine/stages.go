@@ -161,6 +161,11 @@ func validateRun(ctx context.Context, given *runspec.Spec, opt Options) (*job, e
 			return nil, fault.Input(err)
 		}
 	}
+	if opt.Shard == nil { // a shard builds no products
+		if err := checkProductBudget(spec.Exec.MemoryBytes, spec.Exec.MemoryText, cat.Grid.NCells(), productsOf(spec)); err != nil {
+			return nil, fault.Input(err)
+		}
+	}
 	if j.passes, err = j.plan(j.lo, j.hi); err != nil {
 		return nil, fault.Input(err)
 	}
