@@ -598,6 +598,22 @@ func CreateExclusive(path string) (*os.File, error) {
 	return f, err
 }
 
+// RemoveFile removes the file path (a lock) through the door of its run
+// directory: a link standing at one of its folders is not followed (the
+// removal is refused naming it), so nothing outside the run directory is
+// removed; a link at path itself is removed, not its target.
+func RemoveFile(path string) error {
+	d, rel, release, err := at(path)
+	if err != nil {
+		return err
+	}
+	defer release()
+	if err := d.root.Remove(rel); err != nil && !errors.Is(err, os.ErrNotExist) {
+		return d.explain(rel, err)
+	}
+	return nil
+}
+
 // CheckOutputs refuses, right after the lock is taken and before anything
 // is computed, a link (or another non-regular entry) standing at one of
 // the fixed names files, or a non-folder at one of the folders dirs, that a

@@ -44,15 +44,28 @@ func WriteRunManifest(dir string, m any) error {
 // manifest against it before reading a finished run, so that a changed
 // digit in manifest.json is refused rather than used.
 func SealManifest(dir string) error {
-	h, err := SHA256File(filepath.Join(dir, contract.ManifestFile))
-	if err != nil {
+	return SealFiles(dir, contract.ManifestSeal, contract.ManifestFile)
+}
+
+// SealFiles writes the SHA-256 of each of the files (relative to dir,
+// slash-separated) to the seal sealRel (a file in dir's .swellgrid/ folder),
+// one line each as sha256sum writes them ("<hex>  <name>"), atomically:
+// rundir.ProveSealed checks the files against it before they are read
+// (the manifest, a shard's shard.json, a validation written outside a run).
+func SealFiles(dir, sealRel string, files ...string) error {
+	var b bytes.Buffer
+	for _, f := range files {
+		h, err := SHA256File(filepath.Join(dir, filepath.FromSlash(f)))
+		if err != nil {
+			return err
+		}
+		fmt.Fprintf(&b, "%s  %s\n", h, f)
+	}
+	if _, err := MakeDir(dir, filepath.Dir(filepath.FromSlash(sealRel))); err != nil {
 		return err
 	}
-	if _, err := MakeDir(dir, contract.StateDir); err != nil {
-		return err
-	}
-	return WriteFileAtomic(filepath.Join(dir, filepath.FromSlash(contract.ManifestSeal)), func(w io.Writer) error {
-		_, err := fmt.Fprintf(w, "%s  %s\n", h, contract.ManifestFile)
+	return WriteFileAtomic(filepath.Join(dir, filepath.FromSlash(sealRel)), func(w io.Writer) error {
+		_, err := w.Write(b.Bytes())
 		return err
 	})
 }

@@ -72,8 +72,17 @@ func TestManifestSealRefusesChangedDigit(t *testing.T) {
 		dir := copyRun(t, src)
 		os.Remove(filepath.Join(dir, filepath.FromSlash(contract.ManifestSeal)))
 		code, stderr := codeWithin(t, time.Minute, "report", dir)
-		if code != 2 || !strings.Contains(stderr, "no valid seal") {
-			t.Fatalf("exit %d, want 2 (no seal): %s", code, stderr)
+		if code != 2 || !strings.Contains(stderr, "no valid seal") || !strings.Contains(stderr, "run the same `swellgrid run` command again") {
+			t.Fatalf("exit %d, want 2 (no seal) saying what to do: %s", code, stderr)
+		}
+		// what the message says to do works: the same run command again
+		// seals the run, and report reads it
+		in := filepath.Join("..", "..", "testdata", "points_bulk.nc")
+		if code, stderr := codeWithin(t, time.Minute, "run", "--input", in, "--out", dir, "--workers", "1"); code != 0 {
+			t.Fatalf("the same run again: exit %d: %s", code, stderr)
+		}
+		if code, stderr := codeWithin(t, time.Minute, "report", dir); code != 0 {
+			t.Fatalf("report after the run again: exit %d: %s", code, stderr)
 		}
 	})
 }

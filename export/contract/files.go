@@ -15,6 +15,10 @@ const (
 	// ManifestSeal holds the SHA-256 of manifest.json ("<hex>  manifest.json",
 	// as sha256sum writes it): the manifest cannot hold its own checksum.
 	ManifestSeal = StateDir + "/manifest.sha256"
+	// ValidationSeal holds the SHA-256 of a validation's files written
+	// outside a run directory (validate --out; inside a run they are in its
+	// output_checksums).
+	ValidationSeal = StateDir + "/validation.sha256"
 )
 
 // SealedExtras are files that commands other than the run add to a finished

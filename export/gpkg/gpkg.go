@@ -24,9 +24,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"os"
 	"path/filepath"
-	"sort"
 	"strings"
 	"time"
 
@@ -163,10 +161,12 @@ func Layers(r *rundir.Run) ([]*Layer, error) {
 	if fp := footprints(r, frameNote); fp != nil {
 		out = append(out, fp)
 	}
-	files, _ := filepath.Glob(filepath.Join(r.Dir, contract.ContourDir, "*.geojson"))
-	sort.Strings(files)
+	files, err := r.FilesIn(contract.ContourDir, ".geojson")
+	if err != nil {
+		return nil, fmt.Errorf("gpkg: %w", err)
+	}
 	for _, f := range files {
-		b, err := os.ReadFile(f)
+		b, err := r.ReadFile(f) // verified against the manifest when sealed
 		if err != nil {
 			return nil, fmt.Errorf("gpkg: %w", err)
 		}

@@ -279,7 +279,9 @@ func mapMarks(r *rundir.Run) []Mark {
 	for _, s := range r.Manifest.Parameters.Sites {
 		out = append(out, Mark{Name: s.Name, Lon: s.Lon, Lat: s.Lat})
 	}
-	if b, err := os.ReadFile(filepath.Join(r.Dir, contract.ValidationFile)); err == nil {
+	// verified when sealed; a damaged one gives no marks here and is
+	// refused by the validation section (validation.go)
+	if b, err := r.ReadFile(contract.ValidationFile); err == nil {
 		var sum contract.ValidationSummary
 		if json.Unmarshal(b, &sum) == nil {
 			for _, st := range sum.Stations {

@@ -2,10 +2,10 @@ package report
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
+	"io/fs"
 	"math"
-	"os"
-	"path/filepath"
 	"sort"
 	"strconv"
 	"strings"
@@ -19,8 +19,8 @@ import (
 // failing sea cells in purple (0), land in sand, into dir. A run without
 // screening has none.
 func screeningMaps(r *rundir.Run, dir string) ([]pageFigure, []string, error) {
-	b, err := os.ReadFile(filepath.Join(r.Dir, contract.ScreeningFile))
-	if os.IsNotExist(err) {
+	b, err := r.ReadFile(contract.ScreeningFile) // verified when sealed
+	if errors.Is(err, fs.ErrNotExist) {
 		return nil, nil, nil
 	}
 	if err != nil {

@@ -224,9 +224,15 @@ func withParquet(path string, fn func(rdr *file.Reader) error, opts ...file.Read
 type DamagedError struct {
 	Path string
 	Why  string
+	// Fix, when set, says what to do instead of the general advice (the
+	// file is damaged or foreign: rerun).
+	Fix string
 }
 
 func (e *DamagedError) Error() string {
+	if e.Fix != "" {
+		return fmt.Sprintf("rundir: %s %s: %s", e.Path, e.Why, e.Fix)
+	}
 	return fmt.Sprintf("rundir: %s %s: the file is damaged or was copied from another run; rerun the run (`swellgrid run` with the same spec and --out) to make it again", e.Path, e.Why)
 }
 
@@ -257,6 +263,26 @@ func (r *Run) verify(rel string) error {
 }
 
 func (r *Run) check(rel string) error {
+	err := r.checkSum(rel)
+	if de, ok := err.(*DamagedError); ok {
+		de.Fix = rebuildFix(r.Dir, rel)
+	}
+	return err
+}
+
+// rebuildFix says how to make the product rel of the run dir again from
+// the run's tables ("" for a table: the general advice, rerun the run).
+func rebuildFix(dir, rel string) string {
+	switch {
+	case rel == contract.AtlasNCFile || rel == contract.AtlasGPKGFile:
+		return fmt.Sprintf("the file is damaged or was copied from another run; it is made from the run's tables: rebuild it with `swellgrid report --atlas %s` (or rerun the run)", dir)
+	case strings.HasPrefix(rel, contract.ReportDir+"/"):
+		return fmt.Sprintf("the file is damaged or was copied from another run; rebuild the report with `swellgrid report %s` (or rerun the run)", dir)
+	}
+	return ""
+}
+
+func (r *Run) checkSum(rel string) error {
 	path := filepath.Join(r.Dir, filepath.FromSlash(rel))
 	want, ok := r.sums[rel]
 	if !ok {
@@ -532,33 +558,67 @@ func ReadManifest(dir string) ([]byte, error) {
 		Sums json.RawMessage `json:"output_checksums"`
 	}
 	if jerr := json.Unmarshal(b, &top); jerr != nil || len(top.Sums) > 0 {
-		return nil, &DamagedError{Path: path, Why: fmt.Sprintf("has no valid seal (%v); the run directory was copied without its %s folder, or changed", serr, contract.StateDir)}
+		return nil, &DamagedError{Path: path, Why: fmt.Sprintf("has no valid seal (%v), although it records output checksums", serr),
+			Fix: fmt.Sprintf("if the run directory was copied, copy its %s folder with it; if the run was made by a swellgrid from before the seal (checksums but no %s) or the seal was removed, run the same `swellgrid run` command again (its spec and the same --out: it rewrites the products from the run's checkpoints and seals them) or rerun into a new --out", contract.StateDir, contract.ManifestSeal)}
 	}
 	return b, nil
 }
 
-// readSeal reads a seal ("<64 hex digits>  manifest.json"), a regular file
-// of at most 256 bytes.
+// readSeal reads the seal of the manifest (readSeals: its one line is of
+// manifest.json).
 func readSeal(path string) (string, error) {
-	st, err := os.Lstat(path)
+	seals, err := readSeals(path)
 	if err != nil {
 		return "", err
 	}
-	if !st.Mode().IsRegular() || st.Size() > 256 {
-		return "", fmt.Errorf("%s is not a seal", path)
+	h, ok := seals[contract.ManifestFile]
+	if !ok || len(seals) != 1 {
+		return "", fmt.Errorf("%s is not a seal of %s", path, contract.ManifestFile)
+	}
+	return h, nil
+}
+
+// readSeals reads a seal: a regular file of at most 64 KiB, one line per
+// file as sha256sum writes them ("<64 hex digits>  <name>"); it returns
+// the lower-case digests by name.
+func readSeals(path string) (map[string]string, error) {
+	st, err := os.Lstat(path)
+	if err != nil {
+		return nil, err
+	}
+	if !st.Mode().IsRegular() || st.Size() > 64<<10 {
+		return nil, fmt.Errorf("%s is not a seal", path)
 	}
 	b, err := os.ReadFile(path)
 	if err != nil {
+		return nil, err
+	}
+	out := map[string]string{}
+	for _, line := range strings.Split(strings.TrimSuffix(string(b), "\n"), "\n") {
+		f := strings.Fields(line)
+		if len(f) != 2 || len(f[0]) != 64 {
+			return nil, fmt.Errorf("%s is not a seal", path)
+		}
+		if _, err := hex.DecodeString(f[0]); err != nil {
+			return nil, fmt.Errorf("%s is not a seal", path)
+		}
+		out[f[1]] = strings.ToLower(f[0])
+	}
+	return out, nil
+}
+
+// sha256Of is the SHA-256 of the file at path (FIPS 180-4), in hex.
+func sha256Of(path string) (string, error) {
+	f, err := os.Open(path)
+	if err != nil {
 		return "", err
 	}
-	f := strings.Fields(string(b))
-	if len(f) != 2 || len(f[0]) != 64 || f[1] != contract.ManifestFile {
-		return "", fmt.Errorf("%s is not a seal", path)
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return "", err
 	}
-	if _, err := hex.DecodeString(f[0]); err != nil {
-		return "", fmt.Errorf("%s is not a seal", path)
-	}
-	return strings.ToLower(f[0]), nil
+	return hex.EncodeToString(h.Sum(nil)), nil
 }
 
 // ReadFile reads the file rel of the run directory after verifying it

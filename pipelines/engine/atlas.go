@@ -44,6 +44,15 @@ func (e *engine) finishManifest(out string, m *runManifest, written, warns *[]st
 		}
 		*written = append(*written, sf...)
 		m.Screening = sum
+		// sealed with the screening's files, so that the products read
+		// them as files of the run (rundir.FilesIn, verified)
+		m.Outputs = append(append([]string{}, *written...), "manifest.json")
+		if m.OutputChecksums, err = export.OutputChecksums(out, m.Outputs); err != nil {
+			return err
+		}
+		if err := export.WriteRunManifest(out, m); err != nil {
+			return err
+		}
 	}
 	files, w, err := products.Build(out, nil, productsOf(e.spec))
 	if err != nil {

@@ -7,6 +7,7 @@ import (
 
 	"swellgrid/grid"
 	"swellgrid/ingest"
+	"swellgrid/pipelines/products"
 )
 
 // The memory budget. run.memory_limit is what a run or a merge may hold, in
@@ -241,6 +242,33 @@ func (e *engine) planBudget(lo, hi int) (*memPlan, error) {
 			e.spec.Exec.MemoryText, e.cat.Grid.NCells(), e.cat.Steps, e.recordYears(), mib(need), mib(cm.cacheBytes(limit)), mib(cm.decodeBytes()), mib(fixed), kib(perCell), mib(need))
 	}
 	return p, nil
+}
+
+// productBytesPerCell is what the end products (the report's maps and
+// pages, atlas.nc, atlas.gpkg), built after the passes from the whole
+// cells table, hold per cell of the grid at their peak, beyond the
+// process overhead. They are not streamed, so their memory grows with the
+// grid and not with the limit. Measured (peak RSS, /usr/bin/time -v, on a
+// loaded machine; RSS does not depend on the load) with `swellgrid report
+// --atlas`: 321 MB on a 200 x 200 grid (1 month) and 90 MB on the 12-cell
+// testdata/regular_packed.nc, where the process overhead is all:
+// (321 - 90) MB / 40000 cells = 5.8 kB a cell, rounded up to 6 KiB.
+const productBytesPerCell = 6 << 10
+
+// checkProductBudget refuses, before computing, a limit below what the end
+// products of a grid of cells cells need (productBytesPerCell a cell) when
+// the spec builds any: the smallest limit a run accepts is the larger of
+// what one pass needs (planBudget) and this.
+func checkProductBudget(limit int64, limitText string, cells int, p products.Products) error {
+	if !p.Report && !p.NetCDF && !p.GeoPackage {
+		return nil
+	}
+	need := int64(cells) * productBytesPerCell
+	if limit >= need {
+		return nil
+	}
+	return fmt.Errorf("run.memory_limit %s is too small for the end products of this grid: the report, atlas.nc and atlas.gpkg are built from the whole cells table and hold about %s a cell, %s for %d cells; set run.memory_limit or --memory-limit to %s or more, or switch them off ([output] report, netcdf and geopackage = false) and build them later with `swellgrid report --atlas DIR` where the memory is",
+		limitText, kib(productBytesPerCell), mib(need), cells, mib(need))
 }
 
 // applyToProcess sets Go's soft memory limit to what the plan lets Go use

@@ -190,6 +190,9 @@ func validateMerge(ctx context.Context, out string, shardDirs []string, opt Opti
 	if j.mem, err = j.eng.planMergeBudget(); err != nil {
 		return nil, nil, fault.Input(err)
 	}
+	if err := checkProductBudget(j.spec.Exec.MemoryBytes, j.spec.Exec.MemoryText, j.cat.Grid.NCells(), productsOf(j.spec)); err != nil {
+		return nil, nil, fault.Input(err)
+	}
 	j.fitChunk = j.mem.fitChunk
 	var parts []mergePart
 	for _, k := range order {

@@ -60,6 +60,21 @@ func (e *engine) loadModelErrors() error {
 		}
 		return fmt.Errorf("%s: %w", what, err)
 	}
+	// proved before it is read: by the run's seal when the validation is
+	// in a finished run, else by the validation's own seal
+	pairsRel := contract.ParquetFile(contract.TableValidationPairs)
+	var perr error
+	if _, err := os.Lstat(filepath.Join(u.Validation, contract.ManifestFile)); err == nil {
+		perr = rundir.ProveFiles(u.Validation, contract.ValidationFile, pairsRel)
+	} else {
+		perr = rundir.ProveSealed(u.Validation, contract.ValidationSeal, contract.ValidationFile, pairsRel)
+	}
+	if de, ok := perr.(*rundir.DamagedError); ok {
+		de.Fix = "it is damaged, or was changed or copied from another validation; run `swellgrid validate` again into that folder"
+	}
+	if perr != nil {
+		return fmt.Errorf("%s: %w", what, perr)
+	}
 	var sum contract.ValidationSummary
 	if err := json.Unmarshal(b, &sum); err != nil || sum.Software != "swellgrid" || len(sum.Stations) == 0 {
 		return fmt.Errorf("%s: %s is not the summary of a finished `swellgrid validate` (no stations); run validate again", what, doc)

@@ -14,6 +14,7 @@ import (
 
 	"swellgrid/export"
 	"swellgrid/export/contract"
+	"swellgrid/export/rundir"
 	"swellgrid/grid"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/fault"
@@ -61,8 +62,12 @@ func (s Shard) Cells(g *grid.Grid) (c0, c1 int, err error) {
 	return c0, c1, nil
 }
 
-// shardFile is the name of a shard directory's manifest.
-const shardFile = "shard.json"
+// shardFile is the name of a shard directory's manifest, sealed by its
+// SHA-256 in shardSeal (export.SealFiles; merge and --update prove it).
+const (
+	shardFile = "shard.json"
+	shardSeal = contract.StateDir + "/shard.sha256"
+)
 
 // ShardManifest is shard.json: what a shard run covered and with what, so
 // that Merge can check the shards belong together. The final per-cell states
@@ -116,6 +121,9 @@ func writeShard(out string, spec *runspec.Resolved, cat *ingest.Catalog, sh Shar
 	}); err != nil {
 		return nil, fault.Output(fmt.Errorf("writing %s: %w", path, err))
 	}
+	if err := export.SealFiles(out, shardSeal, shardFile); err != nil {
+		return nil, fault.Output(fmt.Errorf("sealing %s: %w", path, err))
+	}
 	return &Result{OutDir: out, Files: append(tables, shardFile), Cells: c1 - c0, Steps: cat.Steps, Warnings: cat.Warnings, Wall: time.Since(t0)}, nil
 }
 
@@ -128,6 +136,9 @@ func readShardManifest(dir string) (*ShardManifest, error) {
 			return nil, fmt.Errorf("%s is not a finished shard: it has no %s (run `swellgrid run --shard I/N --out %s` first, or wait for it to finish)", dir, shardFile, dir)
 		}
 		return nil, err
+	}
+	if err := rundir.ProveSealed(dir, shardSeal, shardFile); err != nil {
+		return nil, fault.Input(err)
 	}
 	var m ShardManifest
 	if err := json.Unmarshal(b, &m); err != nil {

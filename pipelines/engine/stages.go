@@ -161,6 +161,11 @@ func validateRun(ctx context.Context, given *runspec.Spec, opt Options) (*job, e
 			return nil, fault.Input(err)
 		}
 	}
+	if opt.Shard == nil { // a shard builds no products
+		if err := checkProductBudget(spec.Exec.MemoryBytes, spec.Exec.MemoryText, cat.Grid.NCells(), productsOf(spec)); err != nil {
+			return nil, fault.Input(err)
+		}
+	}
 	if j.passes, err = j.plan(j.lo, j.hi); err != nil {
 		return nil, fault.Input(err)
 	}
@@ -554,7 +559,7 @@ func (c *checksums) stop() {
 // runFiles are the fixed names a run writes in its directory, checked for
 // planted links before anything is computed (export.CheckOutputs).
 func runFiles() []string {
-	fs := []string{contract.ManifestFile, contract.ManifestSeal, contract.CellsFile, contract.AtlasNCFile, contract.AtlasGPKGFile,
+	fs := []string{contract.ManifestFile, contract.ManifestSeal, shardFile, shardSeal, contract.CellsFile, contract.AtlasNCFile, contract.AtlasGPKGFile,
 		contract.ScreeningFile, contract.ParquetFile(contract.TableScreening), contract.ParquetFile(contract.TableMeshNodes), contract.ParquetFile(contract.TableMeshFaces)}
 	for _, n := range runspec.LongTableNames {
 		fs = append(fs, contract.ParquetFile(n))

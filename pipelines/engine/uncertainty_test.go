@@ -10,6 +10,8 @@ import (
 	"strings"
 	"testing"
 
+	"swellgrid/export"
+	"swellgrid/export/contract"
 	"swellgrid/export/report"
 	"swellgrid/export/rundir"
 	"swellgrid/pipelines/fault"
@@ -199,8 +201,44 @@ func TestModelUncertaintyFromValidation(t *testing.T) {
 	os.WriteFile(filepath.Join(fake, "validation_pairs.parquet"), pairs, 0o644)
 	os.WriteFile(filepath.Join(fake, "validation.json"), []byte(`{"stations": []}`), 0o644)
 	bad.Uncertainty.Validation = fake
+	if _, err := Run(context.Background(), bad, Options{Version: "test"}); err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "no valid seal") {
+		t.Errorf("an unsealed validation: %v (exit %d), want exit 2 (no seal)", err, fault.ExitCode(err))
+	}
+	if err := export.SealFiles(fake, contract.ValidationSeal, "validation.json", "validation_pairs.parquet"); err != nil {
+		t.Fatal(err)
+	}
 	if _, err := Run(context.Background(), bad, Options{Version: "test"}); err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), "is not the summary of a finished") {
 		t.Errorf("a validation.json without stations: %v (exit %d), want exit 2", err, fault.ExitCode(err))
+	}
+	// the validation's files prove themselves before they are read: a
+	// byte altered, truncated, emptied or swapped with another
+	// validation's (the run's own, validated in place) is refused naming
+	// the file, in a folder of its own (its seal) and in a run (the run's
+	// seal)
+	if _, err := validation.Validate(context.Background(), validation.Options{RunDir: raw, Obs: []string{"../../testdata/uncertainty/station.csv"}}); err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range []string{"validation.json", "validation_pairs.parquet"} {
+		for _, folder := range []string{val, raw} {
+			path := filepath.Join(folder, name)
+			good, _ := os.ReadFile(path)
+			foreign := append([]byte(nil), good...)
+			foreign[len(foreign)/2] ^= 0x20
+			if name == "validation.json" { // one digit changed: still valid JSON
+				foreign = append([]byte(nil), good...)
+				i := bytes.LastIndexAny(foreign, "123456789")
+				foreign[i] = '1' + (foreign[i]-'1'+1)%9
+			}
+			for _, damaged := range [][]byte{foreign, good[:len(good)-1], nil} {
+				os.WriteFile(path, damaged, 0o644)
+				bad.Uncertainty.Validation = folder
+				_, err := Run(context.Background(), bad, Options{Version: "test"})
+				if err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), path) {
+					t.Errorf("%s damaged (%d bytes of %d): %v (exit %d), want exit 2 naming it", path, len(damaged), len(good), err, fault.ExitCode(err))
+				}
+			}
+			os.WriteFile(path, good, 0o644)
+		}
 	}
 }
 

@@ -69,17 +69,12 @@ func readPriorRun(dir string) (*priorRun, error) {
 		return &priorRun{inputs: m.Inputs, spec: b, shard: m, durations: m.StepDurations}, nil
 	}
 	path := filepath.Join(dir, "manifest.json")
-	if _, err := os.Stat(path); err == nil {
-		if _, err := rundir.ReadManifest(dir); err != nil { // proved against its seal
-			return nil, fault.Input(err)
-		}
+	if _, err := os.Lstat(path); errors.Is(err, os.ErrNotExist) {
+		return nil, &updateRefused{dir, "it holds no finished run (no manifest.json or shard.json); run without --update first, or finish the earlier run by rerunning it"}
 	}
-	b, err := os.ReadFile(path)
+	b, err := rundir.ReadManifest(dir) // proved against its seal; these bytes are the ones read
 	if err != nil {
-		if errors.Is(err, os.ErrNotExist) {
-			return nil, &updateRefused{dir, "it holds no finished run (no manifest.json or shard.json); run without --update first, or finish the earlier run by rerunning it"}
-		}
-		return nil, err
+		return nil, fault.Input(err)
 	}
 	var m struct {
 		Inputs        []contract.Input `json:"inputs"`

@@ -95,6 +95,13 @@ func myLock() lockInfo {
 
 // readLock reads a lock file; a lock of an earlier version holds only the pid.
 func readLock(path string) (*lockInfo, error) {
+	st, err := os.Lstat(path)
+	if err != nil {
+		return nil, err
+	}
+	if !st.Mode().IsRegular() || st.Size() > 4096 { // a link, a named pipe: never followed or opened
+		return nil, fmt.Errorf("the lock %s is not a swellgrid lock (not a regular file of at most 4096 bytes)", path)
+	}
 	b, err := os.ReadFile(path)
 	if err != nil {
 		return nil, err
@@ -181,10 +188,10 @@ func take(out string) (func(), error) {
 				werr = cerr
 			}
 			if werr != nil {
-				os.Remove(path)
+				export.RemoveFile(path)
 				return nil, fault.Output(fmt.Errorf("output directory %s: cannot write the lock %s: %w", out, path, werr))
 			}
-			return func() { os.Remove(path) }, nil
+			return func() { export.RemoveFile(path) }, nil
 		}
 		if !os.IsExist(err) {
 			return nil, fault.Output(fmt.Errorf("output directory %s: cannot create the lock: %w", out, err))
@@ -196,7 +203,9 @@ func take(out string) (func(), error) {
 		if why, _ := li.holder(out); why != "" {
 			return nil, fault.Output(errors.New(why))
 		}
-		os.Remove(path) // stale: its process is gone
+		if err := export.RemoveFile(path); err != nil { // stale: its process is gone; removed through the door
+			return nil, fault.Input(fmt.Errorf("output directory %s: cannot remove the stale lock: %w", out, err))
+		}
 	}
 	return nil, fault.Output(fmt.Errorf("output directory %s: cannot take the lock %s", out, path))
 }
@@ -206,6 +215,11 @@ func take(out string) (func(), error) {
 // (exit code 4); a lock of another host is broken on request, since this
 // host cannot check it.
 func Unlock(dir string) (string, error) {
+	closeDoor, err := export.OpenDoor(dir) // the lock is removed through the run directory's handle
+	if err != nil {
+		return "", fault.Output(fmt.Errorf("%s: %w", dir, err))
+	}
+	defer closeDoor()
 	path := lockPath(dir)
 	li, err := readLock(path)
 	if errors.Is(err, os.ErrNotExist) {
@@ -221,7 +235,10 @@ func Unlock(dir string) (string, error) {
 		}
 		what = "the lock of " + li.String()
 	}
-	if err := os.Remove(path); err != nil {
+	if err := export.RemoveFile(path); err != nil {
+		if export.IsLink(err) {
+			return "", fault.Input(fmt.Errorf("removing the lock %s: %w", path, err))
+		}
 		return "", fault.Output(fmt.Errorf("removing the lock %s: %w", path, err))
 	}
 	return fmt.Sprintf("removed %s (%s)", path, what), nil

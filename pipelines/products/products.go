@@ -9,6 +9,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"swellgrid/export"
 	"swellgrid/export/contract"
@@ -93,6 +94,11 @@ func Build(out string, manifest []byte, p Products) ([]string, []string, error) 
 	if err != nil {
 		return nil, nil, err
 	}
+	return buildFrom(r, p)
+}
+
+// buildFrom makes the products p of the opened run r.
+func buildFrom(r *rundir.Run, p Products) ([]string, []string, error) {
 	var files []string
 	warns := append([]string{}, r.Warnings...)
 	for _, pr := range p.chosen() {
@@ -121,10 +127,18 @@ func Rebuild(dir string, p Products) ([]string, []string, error) {
 	if err := export.CheckOutputs(dir, []string{contract.ReportDir}, []string{contract.ManifestFile, contract.ManifestSeal, contract.AtlasNCFile, contract.AtlasGPKGFile}); err != nil {
 		return nil, nil, fault.Input(err)
 	}
-	if _, err := rundir.Open(dir, nil); err != nil {
+	r, err := rundir.Open(dir, nil)
+	if err != nil {
 		return nil, nil, fault.Input(err)
 	}
-	files, warns, err := Build(dir, nil, p)
+	// every sealed file proves itself before anything is built, but for
+	// those about to be rewritten (a damaged report is repaired)
+	if err := r.VerifyAllBut(func(rel string) bool {
+		return strings.HasPrefix(rel, contract.ReportDir+"/") || (p.NetCDF && rel == contract.AtlasNCFile) || (p.GeoPackage && rel == contract.AtlasGPKGFile)
+	}); err != nil {
+		return nil, nil, fault.Input(err)
+	}
+	files, warns, err := buildFrom(r, p)
 	if err != nil {
 		return nil, nil, fault.Output(err)
 	}

@@ -439,6 +439,14 @@ func Rescreen(dir, specPath string) ([]string, []string, error) {
 	if err != nil {
 		return nil, nil, fault.Input(err)
 	}
+	// every sealed file proves itself before screening, but for those
+	// screen rewrites
+	if err := r.VerifyAllBut(func(rel string) bool {
+		return rel == File || rel == "screening.parquet" || rel == contract.AtlasGPKGFile ||
+			strings.HasPrefix(rel, contract.ReportDir+"/") || strings.HasPrefix(rel, export.ContourDir+"/"+contract.ScreeningOutlinePrefix)
+	}); err != nil {
+		return nil, nil, fault.Input(err)
+	}
 	res, err := screenRun(r, spec)
 	if err != nil {
 		return nil, nil, err

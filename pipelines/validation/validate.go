@@ -8,6 +8,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 
@@ -59,6 +60,13 @@ type Result struct {
 func Validate(ctx context.Context, opt Options) (*Result, error) {
 	run, spec, err := openValidationRun(opt.RunDir)
 	if err != nil {
+		return nil, fault.Input(err)
+	}
+	// every sealed file proves itself before the comparison, but for
+	// those validate rewrites (its own files, the report)
+	if err := run.VerifyAllBut(func(rel string) bool {
+		return slices.Contains(contract.SealedExtras, rel) || strings.HasPrefix(rel, contract.ReportDir+"/")
+	}); err != nil {
 		return nil, fault.Input(err)
 	}
 	if opt.Spec != nil {
@@ -121,6 +129,8 @@ func Validate(ctx context.Context, opt Options) (*Result, error) {
 	checked := append([]string{}, contract.SealedExtras...)
 	if inRun {
 		checked = append(checked, contract.ManifestFile, contract.ManifestSeal)
+	} else {
+		checked = append(checked, contract.ValidationSeal)
 	}
 	if err := export.CheckOutputs(out, []string{contract.ReportDir}, checked); err != nil {
 		release()
@@ -171,6 +181,8 @@ func Validate(ctx context.Context, opt Options) (*Result, error) {
 		if err := export.Reseal(out); err != nil { // validation's files are sealed with the run
 			return nil, fault.Output(err)
 		}
+	} else if err := export.SealFiles(out, contract.ValidationSeal, res.Files...); err != nil { // a seal of their own
+		return nil, fault.Output(err)
 	}
 	released = true
 	release()
