@@ -141,7 +141,7 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 	for i := 1; i <= j.Shards; i++ {
 		res.ShardDirs = append(res.ShardDirs, filepath.Join(shardRoot, strconv.Itoa(i)))
 	}
-	header := func(name, log string, extra ...string) string {
+	header := func(name, log, mem string, extra ...string) string {
 		var b strings.Builder
 		b.WriteString("#!/bin/bash\n")
 		fmt.Fprintf(&b, "#SBATCH --job-name=%s\n", name)
@@ -165,15 +165,18 @@ func WriteSlurmScripts(j SlurmJobs) (*SlurmScripts, error) {
 	// The run's budget is the request less what the process takes beyond
 	// it, so that the scheduler does not kill a task sized by the plan.
 	memFlag := " --memory-limit " + shQuote(budget)
-	array := header("swellgrid-shards", "shard-%a.log", fmt.Sprintf("--array=1-%d", j.Shards)) +
+	array := header("swellgrid-shards", "shard-%a.log", mem, fmt.Sprintf("--array=1-%d", j.Shards)) +
 		fmt.Sprintf("exec %s run --spec %s --shard \"${SLURM_ARRAY_TASK_ID}/%d\" --out %s/\"${SLURM_ARRAY_TASK_ID}\" --workers \"${SLURM_CPUS_PER_TASK:-%d}\"%s\n",
 			shQuote(bin), shQuote(specFile), j.Shards, shQuote(shardRoot), cpus, memFlag)
 	dirs := make([]string, len(res.ShardDirs))
 	for i, d := range res.ShardDirs {
 		dirs[i] = shQuote(d)
 	}
-	merge := header("swellgrid-merge", "merge.log", "--kill-on-invalid-dep=yes") +
-		fmt.Sprintf("exec %s merge --out %s --workers \"${SLURM_CPUS_PER_TASK:-%d}\"%s %s\n", shQuote(bin), shQuote(out), cpus, memFlag, strings.Join(dirs, " "))
+	// The merge builds the end products of the whole grid, which may need
+	// more than a shard (SlurmPlan.MergeBudgetBytes).
+	mergeFlag := " --memory-limit " + shQuote(engine.SizeText(plan.MergeBudgetBytes))
+	merge := header("swellgrid-merge", "merge.log", engine.SizeText(plan.MergeMemBytes), "--kill-on-invalid-dep=yes") +
+		fmt.Sprintf("exec %s merge --out %s --workers \"${SLURM_CPUS_PER_TASK:-%d}\"%s %s\n", shQuote(bin), shQuote(out), cpus, mergeFlag, strings.Join(dirs, " "))
 	for _, f := range [][2]string{{res.ArrayScript, array}, {res.MergeScript, merge}} {
 		body := f[1]
 		if err := export.WriteFileAtomicMode(f[0], 0o755, func(w io.Writer) error {

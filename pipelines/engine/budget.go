@@ -255,15 +255,22 @@ func (e *engine) planBudget(lo, hi int) (*memPlan, error) {
 // (321 - 90) MB / 40000 cells = 5.8 kB a cell, rounded up to 6 KiB.
 const productBytesPerCell = 6 << 10
 
+// productLimit is the smallest memory limit under which the end products
+// of a grid of cells cells are built (productBytesPerCell a cell), 0 when
+// the spec builds none.
+func productLimit(cells int, p products.Products) int64 {
+	if !p.Report && !p.NetCDF && !p.GeoPackage {
+		return 0
+	}
+	return int64(cells) * productBytesPerCell
+}
+
 // checkProductBudget refuses, before computing, a limit below what the end
 // products of a grid of cells cells need (productBytesPerCell a cell) when
 // the spec builds any: the smallest limit a run accepts is the larger of
 // what one pass needs (planBudget) and this.
 func checkProductBudget(limit int64, limitText string, cells int, p products.Products) error {
-	if !p.Report && !p.NetCDF && !p.GeoPackage {
-		return nil
-	}
-	need := int64(cells) * productBytesPerCell
+	need := productLimit(cells, p)
 	if limit >= need {
 		return nil
 	}

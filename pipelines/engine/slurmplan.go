@@ -40,6 +40,10 @@ type SlurmPlan struct {
 	ChunkNote         string
 	// CellsPerPass is what one pass holds under BudgetBytes (>= CellsPerShard).
 	CellsPerPass int
+	// MergeBudgetBytes and MergeMemBytes are the merge job's --memory-limit
+	// and sbatch --mem: a task's, or more when the end products of the whole
+	// grid need more (productLimit), so that the merge is not refused.
+	MergeBudgetBytes, MergeMemBytes int64
 }
 
 // slurmModel is what the planner needs of a run: the grid and the memory
@@ -238,6 +242,9 @@ func (p *SlurmPlan) Text() string {
 	}
 	fmt.Fprintf(&b, "shards:   %d (at most %d %s, %d cells each; one pass holds %d cells)\n", p.Shards, p.UnitsPerShard, unit, p.CellsPerShard, p.CellsPerPass)
 	fmt.Fprintf(&b, "memory:   --mem %s per task = --memory-limit %s + %s for the process\n", SizeText(p.MemBytes), SizeText(p.BudgetBytes), mib(ProcessOverhead))
+	if p.MergeMemBytes > p.MemBytes {
+		fmt.Fprintf(&b, "merge:    --mem %s = --memory-limit %s + %s for the process (the report, atlas.nc and atlas.gpkg of the whole grid)\n", SizeText(p.MergeMemBytes), SizeText(p.MergeBudgetBytes), mib(ProcessOverhead))
+	}
 	if p.ChunkRows > 0 {
 		fmt.Fprintf(&b, "reading:  chunks of %d %s (%s: %s); read amplification %.2f (bytes decompressed / bytes needed)\n", p.ChunkRows, unit, p.ChunkVar, p.ChunkShape, p.ReadAmplification)
 	} else {
@@ -262,5 +269,17 @@ func PlanShards(spec *runspec.Resolved, cat *ingest.Catalog, mem int64, shards i
 	if err != nil {
 		return nil, fault.Input(err)
 	}
+	p.sizeMerge(productLimit(cat.Grid.NCells(), productsOf(spec)))
 	return p, nil
+}
+
+// sizeMerge sets the merge job's memory: a task's, or the smallest limit
+// (rounded up to 64 MiB) that holds need bytes, the end products of the
+// whole grid (productLimit), when that is more.
+func (p *SlurmPlan) sizeMerge(need int64) {
+	p.MergeBudgetBytes, p.MergeMemBytes = p.BudgetBytes, p.MemBytes
+	if need > p.MergeBudgetBytes {
+		p.MergeBudgetBytes = roundUp(need, 64<<20)
+		p.MergeMemBytes = p.MergeBudgetBytes + ProcessOverhead
+	}
 }

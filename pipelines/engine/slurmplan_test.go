@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"strings"
+	"swellgrid/pipelines/products"
 	"testing"
 )
 
@@ -67,6 +68,18 @@ func TestSlurmPlanArithmetic(t *testing.T) {
 	}
 	if _, err := planSlurm(m, 0, 0); err == nil {
 		t.Error("neither --mem nor --shards: no refusal")
+	}
+	// The merge job: the end products of 10^6 cells need 10^6 x 6 KiB =
+	// 5859.375 MiB (productLimit), more than a task's 1 GiB budget, so the
+	// merge asks its own: 5888 MiB (rounded up to 64 MiB) + 128 MiB for
+	// the process = 6016 MiB. Without products it asks a task's.
+	p.sizeMerge(productLimit(m.cells, products.Products{Report: true}))
+	if p.MergeBudgetBytes != 5888<<20 || p.MergeMemBytes != 6016<<20 || !strings.Contains(p.Text(), "merge:    --mem 6016M = --memory-limit 5888M") {
+		t.Errorf("merge of 10^6 cells with products: budget %s, --mem %s; want 5888M, 6016M, printed\n%s", SizeText(p.MergeBudgetBytes), SizeText(p.MergeMemBytes), p.Text())
+	}
+	p.sizeMerge(productLimit(m.cells, products.Products{}))
+	if p.MergeBudgetBytes != p.BudgetBytes || p.MergeMemBytes != p.MemBytes || strings.Contains(p.Text(), "merge:") {
+		t.Errorf("merge without products: budget %s, --mem %s; want a task's %s, %s", SizeText(p.MergeBudgetBytes), SizeText(p.MergeMemBytes), SizeText(p.BudgetBytes), SizeText(p.MemBytes))
 	}
 }
 
