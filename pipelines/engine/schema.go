@@ -211,9 +211,13 @@ var cellsSchema = []tables.Column[*cellRow]{
 	tables.F64("te_mean_corr_s", "s", "", "time: mean", "bias-corrected: mean of Te'",
 		func(c *cellRow) float64 { return corrSum(c, func(s *climate.Summary) float64 { return s.TeMeanS }) }).When(nullNoData),
 	tables.F64("power_mean_corr_kw_m", "kW/m", "", "time: mean", "bias-corrected: mean wave power of the corrected sea states, J(Hm0', Te') at the cell's depth, each step corrected before its power",
-		func(c *cellRow) float64 { return corrSum(c, func(s *climate.Summary) float64 { return s.PowerMeanKWm }) }).When(nullNoData),
+		func(c *cellRow) float64 {
+			return corrSum(c, func(s *climate.Summary) float64 { return s.PowerMeanKWm })
+		}).When(nullNoData),
 	tables.F64("power_p<P>_corr_kw_m", "kW/m", "", "", "bias-corrected: <P> th percentile of J(Hm0', Te') (the raw histogram's resolution)",
-		func(c *cellRow) float64 { return corrSum(c, func(s *climate.Summary) float64 { return s.PowerPercentilesKWm[c.k] }) }).When(nullNoData).Per(tables.ParamPercentile),
+		func(c *cellRow) float64 {
+			return corrSum(c, func(s *climate.Summary) float64 { return s.PowerPercentilesKWm[c.k] })
+		}).When(nullNoData).Per(tables.ParamPercentile),
 	tables.F64("aep_<device>_corr_mwh", "MWh/yr", "", "", "bias-corrected: mean annual energy of device <device> from its power matrix at (Hm0', Te', Tp') of every step",
 		func(c *cellRow) float64 {
 			return corrSum(c, func(s *climate.Summary) float64 { return s.Devices[c.k].AEPMWh })
