@@ -19,7 +19,7 @@ import sys
 import tempfile
 
 FILE = "pipelines/engine/schema.go"
-TESTS = "TestE2EColumnsAgainstNumpy|TestSpectralColumnsAgainstNumpy|TestInvalidValuesAgainstNumpy|TestBootstrapColumnsAgainstScipy"
+TESTS = "TestE2EColumnsAgainstNumpy|TestSpectralColumnsAgainstNumpy|TestInvalidValuesAgainstNumpy|TestBootstrapColumnsAgainstScipy|TestBiasCorrectedAtlas"
 
 # (name, [(old, new), ...])
 MUTATIONS = [
@@ -128,6 +128,21 @@ MUTATIONS = [
        "j, _, te, tp, dir := c.clim.AddAt(&st.ct, jv[t*w+k], hm0s[i], tev[t*w+k], tp, dir)\n\t\t\thm0 := hm0s[i]")]),
     ("power kept when Hm0 or Te is unusable",
      [("stats/climate/state.go", "\tif bad {\n\t\tj = nan\n\t} else if", "\tif bad && false {\n\t\tj = nan\n\t} else if")]),
+    # the bias-corrected atlas (TestBiasCorrectedAtlas)
+    ("bias correction applied to the raw columns",
+     [("pipelines/engine/results.go", "r.corr, r.corrOf = &cs, c.corr", "r.sum, r.corr, r.corrOf = cs, &cs, c.corr")]),
+    ("Hm0 correction slope inverted",
+     [("pipelines/engine/biascorr.go", "h, T, P := k.fit.slopeH*hm0,", "h, T, P := hm0/k.fit.slopeH,")]),
+    ("Te left uncorrected",
+     [("pipelines/engine/biascorr.go", "k.fit.slopeT*te, k.fit.slopeT*tp", "te, k.fit.slopeT*tp")]),
+    ("corrected power from the raw Hm0",
+     [("pipelines/engine/biascorr.go", "seastate.BulkStep(bd, h, T, P,", "seastate.BulkStep(bd, hm0, T, P,")]),
+    ("corrected power percentiles in reversed order",
+     [("s.PowerPercentilesKWm[c.k]", "s.PowerPercentilesKWm[len(s.PowerPercentilesKWm)-1-c.k]")]),
+    ("corrected AEP of the raw state",
+     [("return corrSum(c, func(s *climate.Summary) float64 { return s.Devices[c.k].AEPMWh })", "return corrSum(c, func(s *climate.Summary) float64 { return device(c).AEPMWh })")]),
+    ("corrected state left out of the state files",
+     [("pipelines/engine/checkpoint.go", "\t\t\twriteBytes(bw, cs)", "\t\t\twriteBytes(bw, cs[:0])")]),
 ]
 
 

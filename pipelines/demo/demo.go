@@ -28,8 +28,9 @@ type Result struct {
 	Dir      string
 	Hindcast []string
 	Runs     []Atlas
-	// Validation is the grid atlas against the invented station
-	// (station.go).
+	// Validation is the plain grid run against the invented station
+	// (station.go), in dir/validation: the grid atlas's bands and bias
+	// correction take it.
 	Validation *validation.Result
 	Wall       time.Duration
 }
@@ -55,6 +56,10 @@ func Specs(dir string) []*runspec.Spec {
 	// Two invented places of interest get a report page each: a mooring on
 	// the inner shelf by the coast (about 20 m deep) and a site on the outer
 	// shelf offshore (about 180 m; depths of the demo's cells.parquet).
+	// Its P50/P90/P99 energies take their model uncertainty from the demo's
+	// own validation (Run: a plain grid run is validated first), which
+	// also gives the bias-corrected figures beside the raw ones.
+	grid.Uncertainty.Validation, grid.Uncertainty.Correct = filepath.Join(dir, validationDir), "linear"
 	grid.Sites = []runspec.SiteSpec{{Name: "Inner shelf mooring (invented)", Lon: -32.0, Lat: 45.6}, {Name: "Outer shelf (invented)", Lon: -34.4, Lat: 45.1}}
 	// A screening scenario on invented constraint layers.
 	grid.Screening = &runspec.ScreeningSpec{
@@ -81,8 +86,33 @@ func Specs(dir string) []*runspec.Spec {
 	}
 }
 
-// Run writes the synthetic scenario and runs the whole job on it three
-// times: on the bulk grid, on the spectral points and on the mesh.
+// validationDir is where the demo's first validation goes (below dir): the
+// plain grid run against the invented station, whose pairs the grid
+// atlas's bands and bias correction use.
+const validationDir = "validation"
+
+// plainDir is the plain grid run the first validation compares.
+const plainDir = "atlas-grid-plain"
+
+// plainSpec is the grid atlas's spec without what needs its validation
+// (uncertainty.validation, the bias correction) and without the products,
+// sites, screening and contours a validation does not read.
+func plainSpec(grid *runspec.Spec, dir string) *runspec.Spec {
+	p := *grid
+	p.Output.Dir = filepath.Join(dir, plainDir)
+	p.Uncertainty.Validation, p.Uncertainty.Correct = "", ""
+	p.Output.Report, p.Output.NetCDF, p.Output.GeoPackage = false, false, false
+	p.Sites, p.Screening, p.Contours.Columns = nil, nil, nil
+	return &p
+}
+
+// Run writes the synthetic scenario and runs the whole job on it: first a
+// plain run of the bulk grid, validated against an invented station made
+// from it (into dir/validation); then the three atlases, the grid's taking
+// its P50/P90/P99 model uncertainty and its bias-corrected figures from
+// that validation (the grid atlas is validated again in place, for its
+// report's validation page: the same pairs); then the spectral points and
+// the mesh.
 func Run(ctx context.Context, dir string, opt engine.Options) (*Result, error) {
 	t0 := time.Now()
 	hind := filepath.Join(dir, "hindcast")
@@ -106,7 +136,24 @@ func Run(ctx context.Context, dir string, opt engine.Options) (*Result, error) {
 		}
 	}
 	res := &Result{Dir: dir, Hindcast: files}
-	for i, spec := range Specs(dir) {
+	specs := Specs(dir)
+	plain := plainSpec(specs[0], dir)
+	if opt.Log != nil {
+		opt.Log.Info("demo: plain grid run, to validate first", "out", plain.Output.Dir)
+	}
+	if _, err := engine.Run(ctx, plain, opt); err != nil {
+		return nil, err
+	}
+	// An invented station at the first site, made from the plain run.
+	st := filepath.Join(hind, "synthetic_station.csv")
+	if err := writeDemoStation(ctx, plain.Output.Dir, st, specs[0].Sites[0].Lon, specs[0].Sites[0].Lat); err != nil {
+		return nil, fmt.Errorf("demo: synthetic station: %w", err)
+	}
+	var err error
+	if res.Validation, err = validation.Validate(ctx, validation.Options{RunDir: plain.Output.Dir, Obs: []string{st}, OutDir: filepath.Join(dir, validationDir)}); err != nil {
+		return nil, fmt.Errorf("demo: validation: %w", err)
+	}
+	for i, spec := range specs {
 		name := []string{"bulk fields on the grid", "directional spectra at offshore points", "bulk fields on an unstructured mesh"}[i]
 		if opt.Log != nil {
 			opt.Log.Info("demo: atlas", "of", name, "out", spec.Output.Dir)
@@ -117,12 +164,8 @@ func Run(ctx context.Context, dir string, opt engine.Options) (*Result, error) {
 		}
 		res.Runs = append(res.Runs, Atlas{Name: name, Input: spec.Input.Paths[0], Result: r})
 		if i == 0 {
-			// An invented station at the first site, validated against the grid atlas.
-			st := filepath.Join(hind, "synthetic_station.csv")
-			if err := writeDemoStation(ctx, spec.Output.Dir, st, spec.Sites[0].Lon, spec.Sites[0].Lat); err != nil {
-				return nil, fmt.Errorf("demo: synthetic station: %w", err)
-			}
-			if res.Validation, err = validation.Validate(ctx, validation.Options{RunDir: spec.Output.Dir, Obs: []string{st}}); err != nil {
+			// the grid atlas against the same station, for its report's page
+			if _, err = validation.Validate(ctx, validation.Options{RunDir: spec.Output.Dir, Obs: []string{st}}); err != nil {
 				return nil, fmt.Errorf("demo: validation: %w", err)
 			}
 		}

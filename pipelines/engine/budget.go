@@ -144,7 +144,7 @@ func (e *engine) memoryModel() (perCell, perResult float64, fixed int64) {
 			values++
 		}
 	}
-	perCell = float64(m.State) + float64(blocksInFlight*e.spec.Exec.BlockSteps*values*8)
+	perCell = float64(m.State) + e.corrStateBytes() + float64(blocksInFlight*e.spec.Exec.BlockSteps*values*8)
 	if e.spectral {
 		for _, l := range e.layouts {
 			perCell += float64(l.Len())*16 + 2048 // the cell's spectral kernel for each set of axes
@@ -295,7 +295,7 @@ func kib(b float64) string { return fmt.Sprintf("%.1f KiB", b/1024) }
 func (e *engine) planMergeBudget() (*memPlan, error) {
 	limit := e.spec.Exec.MemoryBytes
 	_, perResult, fixed := e.memoryModel()
-	state := float64(e.ccfg.CellMemory(e.recordYears(), 0).State)
+	state := float64(e.ccfg.CellMemory(e.recordYears(), 0).State) + e.corrStateBytes()
 	per := state + perResult
 	// a merge reads no blocks (no chunk is decompressed), but opens the
 	// catalog (chunk cache set)

@@ -19,7 +19,9 @@ import (
 	"swellgrid/pipelines/runspec"
 )
 
-var ckMagic = []byte("SWGCKPT2")
+// ckMagic starts every state file; its version (3: the bias-corrected
+// state after the spectral one) changes with the layout of a cell.
+var ckMagic = []byte("SWGCKPT3")
 
 // inputID identifies one input file for resuming: a checkpoint is only
 // resumed over the same files, unchanged.
@@ -67,8 +69,9 @@ func ckPath(out string, c0, c1 int) string {
 
 // A checkpoint (and a shard's state file, which is the same) is
 //
-//	magic "SWGCKPT2" | header (JSON, length-prefixed) | per cell: flag byte,
-//	then the climate, extremes and spectral states (length-prefixed)
+//	magic "SWGCKPT3" | header (JSON, length-prefixed) | per cell: flag byte,
+//	then the climate, extremes, spectral and bias-corrected climate states
+//	(length-prefixed; an empty spectral or corrected state has length 0)
 //	| SHA-256 of every byte before it (32 bytes)
 //
 // so that any damage (a flipped byte, a truncation) is found before a state
@@ -107,6 +110,13 @@ func saveCheckpoint(path string, h ckHeader, cells []*cell) error {
 				sp, _ = c.spec.MarshalBinary()
 			}
 			writeBytes(bw, sp)
+			var cs []byte
+			if c.corr != nil {
+				if cs, err = c.corr.st.MarshalBinary(); err != nil {
+					return err
+				}
+			}
+			writeBytes(bw, cs)
 		}
 		if err := bw.Flush(); err != nil {
 			return err
@@ -306,6 +316,20 @@ func (s *stateReader) next(n int) ([]*cell, error) {
 		if c.spec != nil {
 			if err := c.spec.UnmarshalBinary(sp); err != nil {
 				return nil, fault.Input(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
+			}
+		}
+		cs, err := readBytes(r)
+		if err != nil {
+			return nil, fault.Input(&damagedState{path, fmt.Sprintf("cell %d: %v", id, err)})
+		}
+		switch {
+		case c.corr == nil && len(cs) > 0:
+			return nil, fault.Input(&damagedState{path, fmt.Sprintf("cell %d: a bias-corrected state where this run keeps none", id)})
+		case c.corr != nil && len(cs) == 0:
+			return nil, fault.Input(&damagedState{path, fmt.Sprintf("cell %d: no bias-corrected state where this run keeps one", id)})
+		case c.corr != nil:
+			if err := c.corr.st.UnmarshalBinary(cs); err != nil {
+				return nil, fault.Input(&damagedState{path, fmt.Sprintf("cell %d: bias-corrected state: %v", id, err)})
 			}
 		}
 		cells[i] = c

@@ -191,6 +191,13 @@ var e2eFixtureChecks = map[string]string{
 // testdata/e2e/spec.toml does; testdata/access checks them against numpy).
 var e2eNoAccessRule = []string{"access_wait_%s_h", "access_censored_%s_frac", "availability_%s", "energy_available_%s_mwh"}
 
+// isCorrColumn: a column of the bias-corrected atlas (uncertainty.correct;
+// TestBiasCorrectedAtlas checks them against numpy), null or empty for
+// every cell of the e2e run, which asks for no correction.
+func isCorrColumn(name string) bool {
+	return strings.HasPrefix(name, "corr_") || strings.Contains(name, "_corr_")
+}
+
 func init() {
 	for _, d := range []string{"wec_a", "wec_b"} {
 		for _, c := range e2eNoAccessRule {
@@ -339,6 +346,14 @@ func TestE2EColumnsAgainstNumpy(t *testing.T) {
 	w.log(t, "cells.parquet")
 	// Every column of the file is compared or checked below.
 	for name := range cols {
+		if isCorrColumn(name) { // no uncertainty.correct: empty or null everywhere
+			for id, x := range cols[name] {
+				if s, ok := x.(string); ok && s != "" || !ok && !math.IsNaN(asFloat(x)) {
+					t.Errorf("cell %d: %s = %v without uncertainty.correct, want null (or empty)", id, name, x)
+				}
+			}
+			continue
+		}
 		_, a := e2eCellTolerances[name]
 		_, b := e2eFixtureChecks[name]
 		if !a && !b && name != "geometry" {

@@ -21,6 +21,7 @@ type stationError struct {
 	lon, lat float64
 	pairs    int
 	devs     []climate.ModelError // Station, biases and Frac set; StationKm per cell
+	fit      corrFit              // the linear bias correction from its pairs (biascorr.go)
 }
 
 // modelErrors is the model component of the bands: the validation's
@@ -122,7 +123,7 @@ func (e *engine) loadModelErrors() error {
 			m, o = append(m, dm), append(o, do)
 		}
 		bias, se := boot.RelativeBiasSE(m, o)
-		s := stationError{name: st.Name, lon: st.Lon, lat: st.Lat, pairs: len(rows)}
+		s := stationError{name: st.Name, lon: st.Lon, lat: st.Lat, pairs: len(rows), fit: fitCorrection(hMod, hObs, teMod, teObs)}
 		for k := range e.ccfg.Devices {
 			s.devs = append(s.devs, climate.ModelError{Station: st.Name, PowerBiasFrac: bias[0], PowerBiasSEFrac: se[0],
 				BiasFrac: bias[k+1], BiasSEFrac: se[k+1], Frac: climate.ModelUncertainty(bias[k+1], se[k+1])})
@@ -137,13 +138,8 @@ func (e *engine) loadModelErrors() error {
 // (rundir.Haversine) from the cell centre is at most uncertainty.reach_km
 // (the first station listed wins a tie), else the spec's assumption.
 func (me *modelErrors) forCell(lon, lat float64) []climate.ModelError {
-	best, bd := -1, math.Inf(1)
-	for i, s := range me.stations {
-		if d := rundir.Haversine(lon, lat, s.lon, s.lat); d < bd {
-			best, bd = i, d
-		}
-	}
-	if best < 0 || !(bd <= me.reachKm) {
+	best, bd := me.nearest(lon, lat)
+	if best < 0 {
 		return me.assumed
 	}
 	out := make([]climate.ModelError, len(me.stations[best].devs))
@@ -152,6 +148,23 @@ func (me *modelErrors) forCell(lon, lat float64) []climate.ModelError {
 		out[k] = d
 	}
 	return out
+}
+
+// nearest returns the index of the validation station nearest to (lon,
+// lat) by great-circle distance (rundir.Haversine; the first listed wins a
+// tie) and that distance in km, or -1 when no station lies within
+// uncertainty.reach_km.
+func (me *modelErrors) nearest(lon, lat float64) (int, float64) {
+	best, bd := -1, math.Inf(1)
+	for i, s := range me.stations {
+		if d := rundir.Haversine(lon, lat, s.lon, s.lat); d < bd {
+			best, bd = i, d
+		}
+	}
+	if best < 0 || !(bd <= me.reachKm) {
+		return -1, bd
+	}
+	return best, bd
 }
 
 // assumption is the manifest's sentence on the bands' model component.

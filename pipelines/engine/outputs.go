@@ -162,6 +162,9 @@ func (e *engine) manifest(version string, sums, warns []string, timings map[stri
 		u := e.spec.Uncertainty
 		m.Assumptions = append(m.Assumptions, e.model.assumption(u.ModelFrac, u.BlockPairs, u.BootstrapReps, u.Seed))
 	}
+	if a := e.corrAssumption(); a != "" {
+		m.Assumptions = append(m.Assumptions, a)
+	}
 	m.Assumptions = append(m.Assumptions, "each time step stands for the time until the next step (the last step, and a step before a gap, for the step before it); every statistic is weighted by that duration; a difference between steps longer than 1.5 times the upper quartile of the 24 differences around it is a gap, time that no step covers")
 	if n := e.seaStateNote(); n != "" {
 		m.Assumptions = append(m.Assumptions, n)

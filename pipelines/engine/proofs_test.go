@@ -217,6 +217,16 @@ var columnProofs = map[string]proof{
 	"aep_bands.parquet:u_total_frac":       byE2E,
 	"aep_bands.parquet:aep_p90_mwh":        byE2E,
 	"aep_bands.parquet:aep_p99_mwh":        byE2E,
+	// the bias-corrected atlas (uncertainty.correct; null in the e2e run, which asks for none)
+	"cells.parquet:corr_station":          by("TestBiasCorrectedAtlas", "the station within uncertainty.reach_km by numpy's great-circle distance (make_corr_ref.py), empty beyond"),
+	"cells.parquet:corr_station_km":       by("TestBiasCorrectedAtlas", "numpy haversine distance cell to station"),
+	"cells.parquet:corr_hm0_slope":        by("TestBiasCorrectedAtlas", "numpy's sum(m o)/sum(m m) over the invented station's Hm0 pairs"),
+	"cells.parquet:corr_te_slope":         by("TestBiasCorrectedAtlas", "numpy's sum(m o)/sum(m m) over the invented station's Te pairs"),
+	"cells.parquet:hm0_mean_corr_m":       by("TestBiasCorrectedAtlas", "numpy's mean of b_H Hm0 over every step of the python3-netcdf4 fixture"),
+	"cells.parquet:te_mean_corr_s":        by("TestBiasCorrectedAtlas", "numpy's mean of b_T Te"),
+	"cells.parquet:power_mean_corr_kw_m":  by("TestBiasCorrectedAtlas", "numpy's mean of rho g^2 (b_H Hm0)^2 (b_T Te) / (64 pi), each step corrected first"),
+	"cells.parquet:power_p<P>_corr_kw_m":  by("TestBiasCorrectedAtlas", "numpy.percentile of the corrected J, within one histogram bin"),
+	"cells.parquet:aep_<device>_corr_mwh": by("TestBiasCorrectedAtlas", "numpy's bin lookup of the matrix at the corrected (Hm0, Te) of every step, mean x 8766 h"),
 	// annual_maxima.parquet (the GEV's input, issue 33)
 	"annual_maxima.parquet:cell_id":               by("TestAnnualMaximaAgainstNumpy", "numpy's annual maxima of the python3-netcdf4 fixture extremes_points.nc (make_annual_maxima_refs.py)"),
 	"annual_maxima.parquet:name":                  by("TestStationNamesInEveryTable", "station names in every table"),

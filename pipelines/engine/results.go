@@ -37,6 +37,8 @@ type cellResult struct {
 	yield   []climate.MonthYieldRow // each device's energy by calendar month and year-month
 	iaYears int                     // complete analysis years
 	iaStd   float64                 // inter-annual sample std of annual mean J, kW/m
+	corr    *climate.Summary        // the bias-corrected state's summary (nil: none, or out of reach)
+	corrOf  *cellCorr               // its station and slopes
 }
 
 // finish computes the results of one cell from its state (fits included).
@@ -52,6 +54,10 @@ func (e *engine) finish(id int, c *cell, acfg extremes.AnalysisConfig) *cellResu
 	r.annual = c.clim.Annual(e.spec.Extremes.YearStartMonth)
 	r.yield = c.clim.MonthlyYieldIn(e.recordSpans())
 	r.iaYears, r.iaStd = climate.InterannualPower(r.annual)
+	if c.corr != nil {
+		cs := c.corr.st.Summary()
+		r.corr, r.corrOf = &cs, c.corr
+	}
 	if r.sum.Steps > 0 {
 		r.bands = climate.AEPBands(r.annual, r.sum.Devices, e.spec.Uncertainty.HorizonsY, e.model.forCell(e.cat.Grid.Lon[id], e.cat.Grid.Lat[id]))
 		r.access = e.accessRows(r)
@@ -152,6 +158,9 @@ func (e *engine) cellFlags(id int, r *cellResult) []string {
 	}
 	if r.sum.RejectedSteps > 0 {
 		out = append(out, "rejected_steps")
+	}
+	if r.corr != nil {
+		out = append(out, "bias_corrected")
 	}
 	if r.hasExt {
 		for _, n := range r.ext.GEV.Flags.Names() {

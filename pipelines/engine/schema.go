@@ -198,8 +198,52 @@ var cellsSchema = []tables.Column[*cellRow]{
 		func(c *cellRow) int64 { return int64(c.r.sum.InvalidValues) }).When(nullNoCell),
 	tables.I64("rejected_steps", "1", "", "", "time steps that could not be placed in the calendar, left out",
 		func(c *cellRow) int64 { return int64(c.r.sum.RejectedSteps) }).When(nullNoCell),
+	tables.Str("corr_station", "", "validation station whose pairs correct the cell's sea states (uncertainty.correct; the nearest within uncertainty.reach_km); empty: no bias-corrected columns for the cell",
+		func(c *cellRow) string { return corrOf(c).name }),
+	tables.F64("corr_station_km", "km", "", "", "great-circle distance from the cell centre to corr_station",
+		func(c *cellRow) float64 { return corrOf(c).km }).When(nullNoData),
+	tables.F64("corr_hm0_slope", "1", "", "", "b_H: least-squares slope through the origin of measured on modelled Hm0 over corr_station's pairs; each sea state's Hm0' = b_H Hm0",
+		func(c *cellRow) float64 { return corrOf(c).fit.slopeH }).When(nullNoData),
+	tables.F64("corr_te_slope", "1", "", "", "b_T: the same for Te (1: too few Te pairs); Te' = b_T Te and Tp' = b_T Tp",
+		func(c *cellRow) float64 { return corrOf(c).fit.slopeT }).When(nullNoData),
+	tables.F64("hm0_mean_corr_m", "m", "", "time: mean", "bias-corrected: mean of Hm0' (beside hm0_mean_m, which stays raw)",
+		func(c *cellRow) float64 { return corrSum(c, func(s *climate.Summary) float64 { return s.Hm0MeanM }) }).When(nullNoData),
+	tables.F64("te_mean_corr_s", "s", "", "time: mean", "bias-corrected: mean of Te'",
+		func(c *cellRow) float64 { return corrSum(c, func(s *climate.Summary) float64 { return s.TeMeanS }) }).When(nullNoData),
+	tables.F64("power_mean_corr_kw_m", "kW/m", "", "time: mean", "bias-corrected: mean wave power of the corrected sea states, J(Hm0', Te') at the cell's depth, each step corrected before its power",
+		func(c *cellRow) float64 {
+			return corrSum(c, func(s *climate.Summary) float64 { return s.PowerMeanKWm })
+		}).When(nullNoData),
+	tables.F64("power_p<P>_corr_kw_m", "kW/m", "", "", "bias-corrected: <P> th percentile of J(Hm0', Te') (the raw histogram's resolution)",
+		func(c *cellRow) float64 {
+			return corrSum(c, func(s *climate.Summary) float64 { return s.PowerPercentilesKWm[c.k] })
+		}).When(nullNoData).Per(tables.ParamPercentile),
+	tables.F64("aep_<device>_corr_mwh", "MWh/yr", "", "", "bias-corrected: mean annual energy of device <device> from its power matrix at (Hm0', Te', Tp') of every step",
+		func(c *cellRow) float64 {
+			return corrSum(c, func(s *climate.Summary) float64 { return s.Devices[c.k].AEPMWh })
+		}).When(nullNoData).Per(tables.ParamDevice),
 	tables.Str(contract.ColQCFlags, "", "comma-separated quality flags (see README)",
 		func(c *cellRow) string { return strings.Join(c.e.cellFlags(c.id, c.r), ",") }),
+}
+
+// noCorr is the correction of a cell without one: no station, NaN figures.
+var noCorr = &cellCorr{km: math.NaN(), fit: &corrFit{slopeH: math.NaN(), slopeT: math.NaN()}}
+
+// corrOf is the cell's bias correction (noCorr when it has none).
+func corrOf(c *cellRow) *cellCorr {
+	if c.r == nil || c.r.corrOf == nil {
+		return noCorr
+	}
+	return c.r.corrOf
+}
+
+// corrSum is a figure of the cell's bias-corrected summary, NaN (null)
+// when it has none.
+func corrSum(c *cellRow, get func(*climate.Summary) float64) float64 {
+	if c.r == nil || c.r.corr == nil {
+		return math.NaN()
+	}
+	return get(c.r.corr)
 }
 
 // A row of a long table: the cell and one row of the cell's results.

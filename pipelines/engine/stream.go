@@ -25,6 +25,7 @@ type cell struct {
 	// first comes (spectral runs only).
 	kerns []*seastate.Kernel
 	spec  *seastate.RecordMeans // spectral runs only
+	corr  *cellCorr             // the bias-corrected state (biascorr.go; nil: none or out of reach)
 }
 
 // engine holds what every worker shares read-only during a pass.
@@ -49,6 +50,9 @@ type engine struct {
 	beyond notSea
 	// model is the AEP bands' model component (loadModelErrors).
 	model *modelErrors
+	// corrCfg is the configuration of the bias-corrected states (nil: no
+	// correction asked).
+	corrCfg *climate.Config
 }
 
 // streamTimes are the busy and waiting times of the stream stage's parts.
@@ -100,11 +104,14 @@ func newEngine(cat *ingest.Catalog, spec *runspec.Resolved, ccfg *climate.Config
 	if err := e.loadModelErrors(); err != nil {
 		return nil, err
 	}
+	if err := e.setupCorrection(); err != nil {
+		return nil, err
+	}
 	return e, nil
 }
 
 func (e *engine) newCell(id int) *cell {
-	c := &cell{clim: climate.NewCellState(e.ccfg), col: extremes.NewCollector(e.xcfg)}
+	c := &cell{clim: climate.NewCellState(e.ccfg), col: extremes.NewCollector(e.xcfg), corr: e.newCorr(id)}
 	if e.spectral {
 		c.kerns = make([]*seastate.Kernel, len(e.layouts))
 		c.spec = &seastate.RecordMeans{}
@@ -248,6 +255,9 @@ func (e *engine) feedBulk(b *ingest.Block, times []stepTime, cells []*cell, lo, 
 			// screened: unusable values counted and left out, here as in the state
 			j, hm0, te, tp, dir := c.clim.AddAt(&st.ct, jv[t*w+k], hm0s[i], tev[t*w+k], tp, dir)
 			c.clim.AddDirection(&st.ct, j, dir)
+			if c.corr != nil {
+				e.addCorrected(c.corr, &st.ct, bulkDepthAt(bds[k], depths, i, e.consts.G), j, hm0, te, tp)
+			}
 			c.col.Add(st.year, st.month, st.hours, st.weightH, hm0, te, tp)
 		}
 	}

@@ -249,6 +249,11 @@ type UncertaintySpec struct {
 	BlockPairs    int    `toml:"block_pairs" json:"block_pairs"`
 	BootstrapReps int    `toml:"bootstrap_reps" json:"bootstrap_reps"`
 	Seed          uint64 `toml:"seed" json:"seed"`
+	// Correct asks for the bias-corrected atlas beside the raw one: ""
+	// (none) or "linear" (Hm0 and Te of each sea state scaled by the
+	// least-squares slope through the origin of measured on modelled, from
+	// the pairs of the nearest station of Validation within ReachKm).
+	Correct string `toml:"correct" json:"correct,omitempty"`
 }
 
 // Defaults of the validation-based model component: a station's figures
@@ -491,6 +496,15 @@ func (s *Spec) Validate() error {
 	}
 	if n := s.Uncertainty.BootstrapReps; n < 100 || n > 100000 {
 		return bad("uncertainty.bootstrap_reps", "must lie in 100..100000", n)
+	}
+	switch s.Uncertainty.Correct {
+	case "":
+	case "linear":
+		if s.Uncertainty.Validation == "" {
+			return bad("uncertainty.correct", "needs uncertainty.validation: the bias-corrected atlas takes its correction from a finished validation's pairs; run `swellgrid validate` first and name its output directory, or remove uncertainty.correct", strconv.Quote(s.Uncertainty.Correct))
+		}
+	default:
+		return bad("uncertainty.correct", `must be "linear" (or left out for no bias-corrected atlas)`, strconv.Quote(s.Uncertainty.Correct))
 	}
 	names := map[string]bool{}
 	for i, d := range s.Devices {

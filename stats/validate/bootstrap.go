@@ -118,3 +118,25 @@ func sampleSD(x []float64) float64 {
 	}
 	return math.Sqrt(ss / float64(len(x)-1))
 }
+
+// OriginSlope is the linear bias correction of a modelled quantity: the
+// least-squares slope through the origin of measured on modelled,
+//
+//	b = sum(m_i o_i) / sum(m_i^2)
+//
+// over the pairs where both are finite (ordinary least squares without an
+// intercept; common practice for a multiplicative model error), so that a
+// corrected value is b m. It returns b and the number of pairs used; b is
+// NaN with fewer than 2 pairs or when every modelled value is 0.
+func OriginSlope(m, o []float64) (b float64, n int) {
+	var mo, mm kahan
+	for _, i := range finitePairs(m, o) {
+		mo.add(m[i] * o[i])
+		mm.add(m[i] * m[i])
+		n++
+	}
+	if n < 2 || !(mm.sum() > 0) {
+		return math.NaN(), n
+	}
+	return mo.sum() / mm.sum(), n
+}
