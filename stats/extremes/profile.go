@@ -80,7 +80,10 @@ func (f GEVFit) ProfileGEV(T float64, z []float64, limit float64) (lo, hi float6
 			return math.Inf(1), math.NaN(), start, false
 		}
 		tol := 1e-7 * float64(len(zs))
-		xo, v, conv, err := []float64{0, 0}, 0.0, false, error(nil)
+		var xo []float64
+		var v float64
+		var conv bool
+		var err error
 		if x1, v1, h1, ok := localopt.QuasiNewton2(nll, x0, v0, tol, curv); ok {
 			xo, v, conv, curv = x1, v1, true, h1
 		} else {
