@@ -82,7 +82,11 @@ func RunChild(c Case) (*Measure, error) {
 		}
 		m.WallS, m.Values = r.Wall.Seconds(), r.Values
 	case "pipeline":
-		spec.Input.Paths = c.Files
+		paths, err := specPaths(c.Files)
+		if err != nil {
+			return nil, err
+		}
+		spec.Input.Paths = paths
 		spec.Output.Dir = c.Out
 		if c.MemoryLimit != "" {
 			spec.Run.MemoryLimit = c.MemoryLimit
@@ -110,7 +114,10 @@ func RunChild(c Case) (*Measure, error) {
 		if err != nil {
 			return nil, err
 		}
-		spec.Input.Paths, spec.Output.Dir = c.Files, c.Out
+		if spec.Input.Paths, err = specPaths(c.Files); err != nil {
+			return nil, err
+		}
+		spec.Output.Dir = c.Out
 		opt := processOptions()
 		opt.Shard = &sh
 		t0 := time.Now()
