@@ -98,7 +98,15 @@ func Write(r *rundir.Run) error {
 	return part.CommitFile(final)
 }
 
-func text(a netcdf.Attr, s string) error { return a.WriteBytes([]byte(s)) }
+// text writes the text attribute a; an empty value is left out (go-netcdf's
+// WriteBytes takes the address of the first byte, so a zero-length value
+// would panic, and an absent attribute reads the same to CF readers).
+func text(a netcdf.Attr, s string) error {
+	if s == "" {
+		return nil
+	}
+	return a.WriteBytes([]byte(s))
+}
 
 // globalAttrs writes the global attributes of atlas.nc, on grids and on
 // meshes alike: conventions, title, source (what the file holds), the record,
