@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"image/png"
 	"math"
-	"net/http/httptest"
 	"os"
 	"path/filepath"
 	"testing"
@@ -14,9 +13,7 @@ import (
 	"github.com/chromedp/chromedp"
 
 	"swellgrid/export/contract"
-	"swellgrid/export/report"
 	"swellgrid/internal/runcheck"
-	"swellgrid/pipelines/serve"
 )
 
 // `swellgrid serve` draws a mesh atlas filled, each cell its median dual
@@ -31,39 +28,19 @@ func TestServeMeshInChromium(t *testing.T) {
 	chrome := needTool(t, "chromium", "chromium")
 	dir, _ := demoRun(t)
 	run := filepath.Join(dir, "atlas-mesh")
-	srv, err := serve.New(run)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer srv.Close()
-	ts := httptest.NewServer(srv.Handler())
-	defer ts.Close()
+	ts := serveRun(t, run)
 
 	cells := cellsOf(t, run)
 	power := cells[contract.ColPowerMean]
-	land := make([]bool, len(power))
-	lo, hi := math.Inf(1), math.Inf(-1)
-	for k, f := range cells[contract.ColQCFlags] {
-		s, _ := f.(string)
-		land[k] = runcheck.HasFlag(s, contract.QCFlagMasked)
-		if x := runcheck.Num(power[k]); !land[k] && !math.IsNaN(x) {
-			lo, hi = math.Min(lo, x), math.Max(hi, x)
-		}
-	}
+	land := seaMask(cells)
 	known, best := -1, math.Inf(-1)
 	for k, v := range power {
 		if x := runcheck.Num(v); !land[k] && x > best {
 			known, best = k, x
 		}
 	}
-	scale := report.MapScale(lo, hi)
-	palette := make([][3]int, len(scale.Colours))
-	for k, h := range scale.Colours {
-		fmt.Sscanf(h, "#%02x%02x%02x", &palette[k][0], &palette[k][1], &palette[k][2])
-	}
-	// the colour of the known value: entry floor((v - lo) / (hi - lo) * 256)
-	// (matplotlib's ListedColormap indexing; TestViridisMatchesMatplotlib)
-	want := palette[min(max(int(math.Floor((best-lo)/(hi-lo)*256)), 0), 255)]
+	lo, hi, palette := viridisScale(power, land)
+	want := colourAt(palette, lo, hi, best)
 
 	ctx, cancel := headlessChrome(t, chrome, 1200, 900)
 	defer cancel()

@@ -38,13 +38,7 @@ func TestServeInChromium(t *testing.T) {
 	chrome := needTool(t, "chromium", "chromium")
 	dir, _ := demoRun(t)
 	run := filepath.Join(dir, "atlas-grid")
-	srv, err := serve.New(run)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer srv.Close()
-	ts := httptest.NewServer(srv.Handler())
-	defer ts.Close()
+	ts := serveRun(t, run)
 	shotDir := filepath.Join(os.TempDir(), "swellgrid-test-output")
 	os.MkdirAll(shotDir, 0o755)
 
@@ -53,20 +47,7 @@ func TestServeInChromium(t *testing.T) {
 	power := cells[contract.ColPowerMean]
 	p90name := contract.Hm0PercentileColumn(90)
 	p90 := cells[p90name]
-	land := make([]bool, len(power))
-	for k, f := range cells[contract.ColQCFlags] {
-		s, _ := f.(string)
-		land[k] = runcheck.HasFlag(s, contract.QCFlagMasked)
-	}
-	rangeOf := func(col []any) (lo, hi float64) {
-		lo, hi = math.Inf(1), math.Inf(-1)
-		for k, v := range col {
-			if x := runcheck.Num(v); !land[k] && !math.IsNaN(x) {
-				lo, hi = math.Min(lo, x), math.Max(hi, x)
-			}
-		}
-		return
-	}
+	land := seaMask(cells)
 	// the known cell: the sea cell of highest mean power
 	known, best := -1, math.Inf(-1)
 	for k, v := range power {
@@ -74,17 +55,10 @@ func TestServeInChromium(t *testing.T) {
 			known, best = k, x
 		}
 	}
-	// the colour of a value: entry floor((v - lo) / (hi - lo) * 256) of the
-	// viridis table (as matplotlib's ListedColormap indexes it; the table
-	// itself is checked against matplotlib by TestViridisMatchesMatplotlib)
+	// the colour of a value on the report's scale over the column's sea cells
 	colourOf := func(col []any, k int) [3]int {
-		lo, hi := rangeOf(col)
-		i := int(math.Floor((runcheck.Num(col[k]) - lo) / (hi - lo) * 256))
-		i = min(max(i, 0), 255)
-		hex := report.MapScale(lo, hi).Colours[i]
-		var c [3]int
-		fmt.Sscanf(hex, "#%02x%02x%02x", &c[0], &c[1], &c[2])
-		return c
+		lo, hi, palette := viridisScale(col, land)
+		return colourAt(palette, lo, hi, runcheck.Num(col[k]))
 	}
 
 	ctx, cancel := headlessChrome(t, chrome, 1400, 900)
@@ -405,4 +379,53 @@ func TestServeRefusesDamagedRun(t *testing.T) {
 	if err == nil || !strings.Contains(err.Error(), contract.ColPowerMean+".geojson") || !strings.Contains(err.Error(), "SHA-256") {
 		t.Errorf("serve.New on a run with a changed contour layer: %v, want a refusal naming the file", err)
 	}
+}
+
+// serveRun serves the run directory run (swellgrid serve's handler) behind
+// a local test server, both closed when the test ends.
+func serveRun(t *testing.T, run string) *httptest.Server {
+	t.Helper()
+	srv, err := serve.New(run)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { srv.Close() })
+	ts := httptest.NewServer(srv.Handler())
+	t.Cleanup(ts.Close)
+	return ts
+}
+
+// seaMask is true for the cells whose qc_flags say masked (land), from
+// cells.parquet read independently (cellsOf).
+func seaMask(cells map[string][]any) []bool {
+	land := make([]bool, len(cells[contract.ColQCFlags]))
+	for k, f := range cells[contract.ColQCFlags] {
+		s, _ := f.(string)
+		land[k] = runcheck.HasFlag(s, contract.QCFlagMasked)
+	}
+	return land
+}
+
+// viridisScale is the report's colour scale of column col (report.MapScale)
+// over its finite sea values: their range and the scale's colours as RGB.
+func viridisScale(col []any, land []bool) (lo, hi float64, palette [][3]int) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for k, v := range col {
+		if x := runcheck.Num(v); !land[k] && !math.IsNaN(x) {
+			lo, hi = math.Min(lo, x), math.Max(hi, x)
+		}
+	}
+	scale := report.MapScale(lo, hi)
+	palette = make([][3]int, len(scale.Colours))
+	for k, h := range scale.Colours {
+		fmt.Sscanf(h, "#%02x%02x%02x", &palette[k][0], &palette[k][1], &palette[k][2])
+	}
+	return lo, hi, palette
+}
+
+// colourAt is the colour of value v: entry floor((v - lo) / (hi - lo) * 256)
+// of the 256-entry table (as matplotlib's ListedColormap indexes it; the
+// table itself is checked against matplotlib by TestViridisMatchesMatplotlib).
+func colourAt(palette [][3]int, lo, hi, v float64) [3]int {
+	return palette[min(max(int(math.Floor((v-lo)/(hi-lo)*256)), 0), 255)]
 }
