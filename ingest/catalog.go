@@ -289,10 +289,11 @@ func (c *Catalog) FilteredChunks() map[Role]int64 {
 // RowChunks gives the largest chunk extent along the grid's rows (the y
 // axis of a structured grid, the point axis of a point set or mesh) over the
 // time-varying role variables of every file, with one variable of that
-// extent, its file and its chunk shape by dimension ("time/1,lat/100,
-// lon/100"); rows is 0 when no such variable is chunked. A shard reading
-// rows r0..r1-1 decompresses the chunks that cover them whole.
-func (c *Catalog) RowChunks() (rows int, name, file, shape string) {
+// extent, the name of its rows' dimension, its file and its chunk shape by
+// dimension ("time/1,lat/100,lon/100"); rows is 0 when no such variable is
+// chunked. A shard reading rows r0..r1-1 decompresses the chunks that cover
+// them whole.
+func (c *Catalog) RowChunks() (rows int, dim, name, file, shape string) {
 	for _, f := range c.Files {
 		for _, r := range Roles { // in a fixed order: the first of the largest
 			vi := f.vars[r]
@@ -305,12 +306,12 @@ func (c *Catalog) RowChunks() (rows int, name, file, shape string) {
 					for d := range vi.Dims {
 						parts[d] = fmt.Sprintf("%s/%d", vi.Dims[d], vi.chunks[d])
 					}
-					rows, name, file, shape = vi.chunks[k], vi.Name, f.Path, strings.Join(parts, ",")
+					rows, dim, name, file, shape = vi.chunks[k], vi.Dims[k], vi.Name, f.Path, strings.Join(parts, ",")
 				}
 			}
 		}
 	}
-	return rows, name, file, shape
+	return rows, dim, name, file, shape
 }
 
 // Times returns the time of every step of the record, in order.

@@ -51,6 +51,7 @@ type SlurmPlan struct {
 type slurmModel struct {
 	cells, nx, ny, steps, years     int
 	chunkRows                       int // ingest.Catalog.RowChunks
+	chunkDim                        string // the rows' dimension in chunkShape
 	chunkVar, chunkFile, chunkShape string
 	blocks                          cellBlocks // the grid's cell blocks (a shard holds whole blocks)
 	chunks                          chunkModel
@@ -68,7 +69,7 @@ func (j *job) slurmModel() slurmModel {
 		m.nx, m.ny = 1, g.NCells()
 	}
 	m.blocks = blocksFor(m.ny, m.nx)
-	m.chunkRows, m.chunkVar, m.chunkFile, m.chunkShape = j.cat.RowChunks()
+	m.chunkRows, m.chunkDim, m.chunkVar, m.chunkFile, m.chunkShape = j.cat.RowChunks()
 	return m
 }
 
@@ -154,9 +155,13 @@ func planSlurm(m slurmModel, mem int64, shards int) (*SlurmPlan, error) {
 	}
 	p.ChunkRows, p.ChunkVar, p.ChunkShape = m.chunkRows, m.chunkVar, m.chunkShape
 	p.ReadAmplification = readAmplification(m, p.Shards)
-	if m.chunkRows >= m.ny && p.Shards > 1 {
+	switch {
+	case p.Shards > 1 && m.chunkRows >= m.ny:
 		p.ChunkNote = fmt.Sprintf("the inputs' chunks span the whole grid (%s of %s: %s), so every shard decompresses every chunk; rechunk each file first, e.g. `nccopy -c %s IN.nc OUT.nc` (netcdf-bin), so that each shard reads only its own %s",
 			m.chunkVar, m.chunkFile, m.chunkShape, rechunkSpec(m, p.Shards), unit)
+	case p.ReadAmplification > 1:
+		p.ChunkNote = fmt.Sprintf("the shard boundaries cut the inputs' chunks of %d %s (%s of %s: %s), so neighbouring shards decompress the same chunks; rechunk each file first, e.g. `nccopy -c %s IN.nc OUT.nc` (netcdf-bin), so that each shard reads only its own %s",
+			m.chunkRows, unit, m.chunkVar, m.chunkFile, m.chunkShape, rechunkSpec(m, p.Shards), unit)
 	}
 	p.CellsPerShard = shardCells(p.Shards)
 	p.UnitsPerShard = p.CellsPerShard / m.nx
@@ -183,8 +188,9 @@ func readAmplification(m slurmModel, n int) float64 {
 }
 
 // rechunkSpec is nccopy's -c argument that puts every shard boundary of n
-// shards on a chunk boundary: the rows' dimension chunked by the greatest
-// common divisor of the boundaries, every other dimension as it is.
+// shards on a chunk boundary: the rows' dimension (by name, so that a time
+// chunk of the same length is left alone) chunked by the greatest common
+// divisor of the boundaries, every other dimension as it is.
 func rechunkSpec(m slurmModel, n int) string {
 	g := m.ny
 	for i := 1; i < n; i++ {
@@ -194,7 +200,7 @@ func rechunkSpec(m slurmModel, n int) string {
 	parts := strings.Split(m.chunkShape, ",")
 	for k, p := range parts {
 		dim, size, _ := strings.Cut(p, "/")
-		if size == fmt.Sprint(m.chunkRows) && m.chunkRows >= m.ny {
+		if dim == m.chunkDim && size == fmt.Sprint(m.chunkRows) {
 			parts[k] = fmt.Sprintf("%s/%d", dim, g)
 			break
 		}

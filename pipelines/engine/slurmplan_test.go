@@ -89,12 +89,15 @@ func TestSlurmPlanArithmetic(t *testing.T) {
 //     straddles a chunk boundary and decompresses 2 chunks (20 rows), the
 //     other 4 one chunk (10 rows each): 60 rows decompressed per 20 needed,
 //     amplification 3.00; no shard count from 250 to 500 puts every
-//     boundary on a multiple of 10 (that needs n to divide 100), so 250 stay;
+//     boundary on a multiple of 10 (that needs n to divide 100), so 250 stay,
+//     and the note gives the nccopy -c that chunks the rows by 4;
 //   - chunks of 3 rows: 333 shards put every boundary on a multiple of 3
 //     (floor(1000 i / 333) = 3i for i < 333), amplification 1;
 //   - chunks spanning the grid (1000 rows): each of the 250 shards
 //     decompresses all 1000 rows, amplification 250, and the note gives the
-//     nccopy -c that chunks the rows by 4 (the gcd of the boundaries 4i).
+//     nccopy -c that chunks the rows by 4 (the gcd of the boundaries 4i);
+//     when the time chunk is as long as the rows' (time/1000), the rows'
+//     dimension is still the one rechunked (it is found by name).
 func TestSlurmPlanReadAmplification(t *testing.T) {
 	m := slurmModel{cells: 1000 * 1000, nx: 1000, ny: 1000, steps: 87660, years: 30, chunks: chunkModel{chunks: make([]int64, 4)}, structured: true,
 		perCell: 100000, perResult: 200000, fixed: 10 << 20, chunkVar: "hm0", chunkFile: "f.nc"}
@@ -102,9 +105,11 @@ func TestSlurmPlanReadAmplification(t *testing.T) {
 		rows, shards int
 		amp          float64
 		note         string
-	}{{10, 250, 3, ""}, {3, 333, 1, ""}, {1000, 250, 250, "nccopy -c time/1,lat/4,lon/1000 IN.nc OUT.nc"}, {0, 250, 1, ""}} {
-		m.chunkRows = c.rows
-		m.chunkShape = fmt.Sprintf("time/1,lat/%d,lon/1000", c.rows)
+		time         int // the time dimension's chunk length
+	}{{10, 250, 3, "nccopy -c time/1,lat/4,lon/1000 IN.nc OUT.nc", 1}, {3, 333, 1, "", 1}, {1000, 250, 250, "nccopy -c time/1,lat/4,lon/1000 IN.nc OUT.nc", 1},
+		{1000, 250, 250, "nccopy -c time/1000,lat/4,lon/1000 IN.nc OUT.nc", 1000}, {0, 250, 1, "", 1}} {
+		m.chunkRows, m.chunkDim = c.rows, "lat"
+		m.chunkShape = fmt.Sprintf("time/%d,lat/%d,lon/1000", c.time, c.rows)
 		p, err := planSlurm(m, 1152<<20, 0)
 		if err != nil {
 			t.Fatal(err)
