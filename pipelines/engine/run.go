@@ -143,7 +143,10 @@ func Run(ctx context.Context, spec *runspec.Spec, opt Options) (res *Result, err
 		if err != nil {
 			return nil, fault.Output(err)
 		}
-		return writeShard(j.out, j.spec, j.cat, *j.opt.Shard, j.lo, j.hi, j.passes, s, files, opt.Version, j.t0)
+		if j.streamed {
+			j.eng.addStreamTimings(j.timings)
+		}
+		return writeShard(j.out, j.spec, j.cat, *j.opt.Shard, j.lo, j.hi, j.passes, s, files, opt.Version, j.t0, j.timings)
 	}
 	return j.export(ctx, s)
 }

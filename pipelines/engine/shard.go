@@ -91,12 +91,16 @@ type ShardManifest struct {
 	// sizes and SHA-256, which Merge checks before assembling them.
 	Tables []contract.FileSum `json:"tables"`
 	WallS  float64            `json:"wall_s"`
+	// Timings are the shard's stage times in seconds, as a run manifest's
+	// timings_s (catalog, stream with its busy and waiting times, fit,
+	// export), to size a sharded run from one measured shard.
+	Timings map[string]float64 `json:"timings_s,omitempty"`
 	Note   string             `json:"note"`
 }
 
 // writeShard finishes a shard run: it writes shard.json beside the final
 // states and the shard's tables (tables, relative to out).
-func writeShard(out string, spec *runspec.Resolved, cat *ingest.Catalog, sh Shard, c0, c1 int, passes [][2]int, sums []string, tables []string, version string, t0 time.Time) (*Result, error) {
+func writeShard(out string, spec *runspec.Resolved, cat *ingest.Catalog, sh Shard, c0, c1 int, passes [][2]int, sums []string, tables []string, version string, t0 time.Time, timings map[string]float64) (*Result, error) {
 	ts, err := export.OutputChecksums(out, tables)
 	if err != nil {
 		return nil, fault.Output(err)
@@ -105,7 +109,7 @@ func writeShard(out string, spec *runspec.Resolved, cat *ingest.Catalog, sh Shar
 	st.Input.Paths = absPaths(spec.Input.Paths)
 	m := &ShardManifest{Software: "swellgrid", Version: version, Shard: sh.Index, Shards: sh.Count, C0: c0, C1: c1,
 		GridCells: cat.Grid.NCells(), Passes: passes, Fingerprint: spec.Fingerprint(), Spec: &st, StepDurations: cat.DurationsOf(cat.Steps),
-		Tables: ts, WallS: time.Since(t0).Seconds(),
+		Tables: ts, WallS: time.Since(t0).Seconds(), Timings: timings,
 		Note: "a shard of a swellgrid run: its cells' rows of every table are beside this file, its per-cell states in .swellgrid/; combine all shards with `swellgrid merge --out DIR SHARD_DIR...`"}
 	for i, f := range cat.Files {
 		m.Inputs = append(m.Inputs, contract.Input{Path: ingest.PathText(absPath(f.Path)), Size: f.Size, SHA256: sums[i], First: f.From, Last: f.To, Steps: f.Steps})

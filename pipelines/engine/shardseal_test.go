@@ -64,3 +64,28 @@ func TestShardManifestSealed(t *testing.T) {
 		t.Fatalf("the restored shards do not merge: %v", err)
 	}
 }
+
+// A shard's shard.json carries its stage times (timings_s: catalog, stream,
+// fit, export, as a run manifest's), so that a sharded run can be sized from
+// a measured shard; the stages lie inside the shard's wall time. (The
+// values are not judged: no unit test is timed.)
+func TestShardManifestTimings(t *testing.T) {
+	dirs := runShards(t, []string{filepath.Join("..", "..", "testdata", "points_bulk.nc")}, t.TempDir(), 2)
+	for _, dir := range dirs {
+		m, err := readShardManifest(dir)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sum := 0.0
+		for _, k := range []string{"catalog_s", "stream_s", "fit_s"} {
+			v, ok := m.Timings[k]
+			if !ok || v < 0 {
+				t.Fatalf("%s: timings_s %v lacks %s", dir, m.Timings, k)
+			}
+			sum += v
+		}
+		if sum > m.WallS {
+			t.Errorf("%s: catalog, stream and fit take %.3f s, more than the shard's wall time %.3f s", dir, sum, m.WallS)
+		}
+	}
+}
