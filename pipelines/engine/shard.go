@@ -95,7 +95,7 @@ type ShardManifest struct {
 	// timings_s (catalog, stream with its busy and waiting times, fit,
 	// export), to size a sharded run from one measured shard.
 	Timings map[string]float64 `json:"timings_s,omitempty"`
-	Note   string             `json:"note"`
+	Note    string             `json:"note"`
 }
 
 // writeShard finishes a shard run: it writes shard.json beside the final

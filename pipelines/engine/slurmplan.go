@@ -50,7 +50,7 @@ type SlurmPlan struct {
 // model of budget.go.
 type slurmModel struct {
 	cells, nx, ny, steps, years     int
-	chunkRows                       int // ingest.Catalog.RowChunks
+	chunkRows                       int    // ingest.Catalog.RowChunks
 	chunkDim                        string // the rows' dimension in chunkShape
 	chunkVar, chunkFile, chunkShape string
 	blocks                          cellBlocks // the grid's cell blocks (a shard holds whole blocks)
