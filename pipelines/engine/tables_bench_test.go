@@ -13,8 +13,12 @@ import (
 // export.TableStream, which encodes full row groups; then Close), one
 // goroutine, table after table: the fitted results of the 12-year e2e
 // fixture's 6 cells, repeated to 600 cells (100 chunks of 6), every long
-// table of the default spec. rows/s counts the rows of all tables.
-// Target (issue 29): at least 1 M rows/s per core.
+// table of the default spec. rows/s counts the rows of all tables per
+// second of wall time; rows/cpu-s per second of this process's CPU time
+// (user + system, getrusage(2)), which is the figure of the target since
+// the encoders and the collector may run on other cores (and, on a shared
+// machine, wall time includes waiting for a core).
+// Target (issue 29): at least 1 M rows/s per core, i.e. 1 M rows/cpu-s.
 func BenchmarkLongTables(b *testing.B) {
 	e, cells, ids := fitStageCells(b, filepath.Join("..", "..", "testdata", "e2e", "bulk"))
 	acfg := e.spec.AnalysisConfig()
@@ -35,6 +39,7 @@ func BenchmarkLongTables(b *testing.B) {
 	tabs := e.writtenLongTables()
 	var rows int64
 	b.ReportAllocs()
+	cpu0 := processCPU()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
 		for _, t := range tabs {
@@ -55,6 +60,8 @@ func BenchmarkLongTables(b *testing.B) {
 		}
 	}
 	b.StopTimer()
+	cpu := processCPU() - cpu0
 	b.ReportMetric(float64(rows)/b.Elapsed().Seconds(), "rows/s")
+	b.ReportMetric(float64(rows)/cpu.Seconds(), "rows/cpu-s")
 	b.ReportMetric(float64(rows)/float64(b.N), "rows/op")
 }
