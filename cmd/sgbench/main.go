@@ -33,7 +33,7 @@ func main() {
 	home, _ := os.UserCacheDir()
 	cache := flag.String("cache", filepath.Join(home, "swellgrid-bench"), "directory for the generated benchmark hindcasts")
 	md := flag.String("md", "", "also write the figures as Markdown to this file")
-	only := flag.String("only", "", `measure only this data set ("bulk" or "spectral")`)
+	only := flag.String("only", "", `measure only this data set ("bulk" or "spectral"), or only the sharded run ("shards")`)
 	before := flag.String("before", "", "also run every pipeline case with this benchmark program (built on an earlier commit)")
 	parts := flag.String("parts", "full,half", "record lengths to measure (full, half)")
 	mem256 := flag.Bool("mem256", true, "also run the bulk benchmark under --memory-limit 256MiB (about 9 minutes a program)")

@@ -15,7 +15,7 @@ import (
 type Config struct {
 	Cache    string // cache directory of the generated hindcasts
 	Markdown string // if set, write the figures as Markdown here
-	Only     string // "bulk", "spectral" or "" (both)
+	Only     string // "bulk", "spectral", "" (both) or "shards" (the sharded run only)
 	// Before, if set, is the benchmark program built on the library of an
 	// earlier commit (`make bench` builds it from BENCH_BEFORE): every
 	// pipeline case then runs with it too, right before the current one.
@@ -68,8 +68,11 @@ func Main(cfg Config) error {
 		}
 		sets = append(sets, d)
 	}
-	if len(sets) == 0 {
-		return fmt.Errorf("-only %q: want bulk or spectral", cfg.Only)
+	if len(sets) == 0 && cfg.Only != "shards" {
+		return fmt.Errorf("-only %q: want bulk, spectral or shards", cfg.Only)
+	}
+	if cfg.Only == "shards" {
+		cfg.Shards = true
 	}
 	scratch, err := os.MkdirTemp("", "sgbench-out-")
 	if err != nil {
@@ -139,22 +142,42 @@ func Main(cfg Config) error {
 		if err != nil {
 			return err
 		}
+		// as generated (one chunk per variable and file: every shard
+		// decompresses the whole grid), then rechunked once as the Slurm
+		// plan advises (shard boundaries on chunk tiles)
+		a, plan, err := AlignShardData(d, logf)
+		if err != nil {
+			return err
+		}
+		inputs := []*Dataset{d}
+		if a != nil {
+			inputs = append(inputs, a)
+		}
 		var srows []*ShardRow
 		exe, _ := os.Executable()
 		progs := [][2]string{{cfg.Before, "before"}, {exe, "after"}}
-		for _, p := range progs {
-			if p[0] == "" {
-				continue
+		for _, in := range inputs {
+			for _, p := range progs {
+				if p[0] == "" {
+					continue
+				}
+				r, err := MeasureShards(p[0], p[1], in, scratch, logf)
+				if err != nil {
+					return err
+				}
+				r.Input = "as generated"
+				if in != d {
+					r.Input = "rechunked as the plan advises"
+				}
+				srows = append(srows, r)
 			}
-			r, err := MeasureShards(p[0], p[1], d, scratch, logf)
-			if err != nil {
-				return err
-			}
-			srows = append(srows, r)
 		}
-		shardText = ShardReport(srows, d)
+		shardText = ShardReport(srows, d) + "\nThe Slurm plan for these files (`swellgrid cluster slurm --shards 4`, as generated):\n\n```\n" + plan + "```\n"
 	}
-	text := Report(rows, sets, time.Since(start)) + shardText
+	text := shardText
+	if len(sets) > 0 {
+		text = Report(rows, sets, time.Since(start)) + shardText
+	}
 	fmt.Fprint(cfg.Out, text)
 	if cfg.Markdown != "" {
 		if err := os.WriteFile(cfg.Markdown, []byte(text), 0o644); err != nil {

@@ -3,9 +3,14 @@ package bench
 import (
 	"fmt"
 	"os"
+	"os/exec"
 	"path/filepath"
+	"regexp"
 	"strings"
 
+	"swellgrid/ingest"
+	"swellgrid/pipelines/engine"
+	"swellgrid/pipelines/runspec"
 	"swellgrid/pipelines/synth"
 )
 
@@ -27,6 +32,7 @@ const ShardCount = 4
 // ShardCount shards one after another and their merge, each in a child.
 type ShardRow struct {
 	Program string
+	Input   string // which input: as generated, or rechunked as the plan advises
 	Single  *Measure
 	Shards  []*Measure
 	Merge   *Measure
@@ -76,15 +82,78 @@ func MeasureShards(exe, program string, d *Dataset, scratch string, logf func(st
 func ShardReport(rows []*ShardRow, d *Dataset) string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "\nSharded run (%s; %d shards one after another, then the merge; CPU = user + system of each child):\n\n", Describe(d.Scenario), ShardCount)
-	fmt.Fprintf(&b, "| program | single s | single CPU s | shards CPU s | merge s | merge CPU s | (shards + merge) CPU / single | target | merge s / single s | target |\n")
-	fmt.Fprintf(&b, "|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|\n")
+	fmt.Fprintf(&b, "| input | program | single s | single CPU s | shards CPU s | merge s | merge CPU s | (shards + merge) CPU / single | target | merge s / single s | target |\n")
+	fmt.Fprintf(&b, "|---|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|\n")
 	for _, r := range rows {
 		var cpu float64
 		for _, s := range r.Shards {
 			cpu += s.CPUS
 		}
-		fmt.Fprintf(&b, "| %s | %.1f | %.1f | %.1f | %.1f | %.1f | %.2f | %.2f | %.2f | %.2f |\n", r.Program, r.Single.WallS, r.Single.CPUS, cpu,
+		fmt.Fprintf(&b, "| %s | %s | %.1f | %.1f | %.1f | %.1f | %.1f | %.2f | %.2f | %.2f | %.2f |\n", r.Input, r.Program, r.Single.WallS, r.Single.CPUS, cpu,
 			r.Merge.WallS, r.Merge.CPUS, (cpu+r.Merge.CPUS)/r.Single.CPUS, ShardCPUTarget, r.Merge.WallS/r.Single.WallS, MergeWallTarget)
 	}
 	return b.String()
+}
+
+// planAdvice finds nccopy's -c argument in a `cluster slurm` plan text
+// (engine.SlurmPlan.Text: "... `nccopy -c SPEC IN.nc OUT.nc` ...").
+var planAdvice = regexp.MustCompile("`nccopy -c (\\S+) IN\\.nc OUT\\.nc`")
+
+// AlignShardData is d as an analyst following the Slurm plan would shard
+// it: the plan for ShardCount shards (engine.PlanShards, what `swellgrid
+// cluster slurm --shards 4` prints) is made on d, and when its note says the
+// chunks span the grid, every file is rechunked once with the plan's own
+// `nccopy -c` command (netcdf-bin) into a cache directory beside d's, reused
+// while it is complete and made by the same advice. The plan text is
+// returned with the data set (nil, when the plan gives no rechunk advice:
+// d's shards already read their own chunks).
+func AlignShardData(d *Dataset, logf func(string, ...any)) (*Dataset, string, error) {
+	cat, err := ingest.Open(d.Files, ingest.Options{})
+	if err != nil {
+		return nil, "", err
+	}
+	spec := runspec.DefaultSpec()
+	if spec.Input.Paths, err = specPaths(d.Files); err != nil {
+		return nil, "", err
+	}
+	spec.Output.Dir = filepath.Join(os.TempDir(), "sgbench-plan")
+	rs, err := spec.Resolve()
+	if err != nil {
+		return nil, "", err
+	}
+	p, err := engine.PlanShards(rs, cat, 0, ShardCount)
+	if err != nil {
+		return nil, "", err
+	}
+	text := p.Text()
+	m := planAdvice.FindStringSubmatch(text)
+	if m == nil {
+		return nil, text, nil
+	}
+	dir := d.Dir + "-rechunked"
+	done := filepath.Join(dir, doneMarker)
+	if raw, err := os.ReadFile(done); err != nil || strings.TrimSpace(string(raw)) != m[1] {
+		logf("rechunking %s as the Slurm plan advises (nccopy -c %s; once, later runs reuse it)", d.Name, m[1])
+		if err := os.RemoveAll(dir); err != nil {
+			return nil, "", fmt.Errorf("bench: clear %s: %v", dir, err)
+		}
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			return nil, "", err
+		}
+		for _, f := range d.Files {
+			out, err := exec.Command("nccopy", "-c", m[1], f, filepath.Join(dir, filepath.Base(f))).CombinedOutput()
+			if err != nil {
+				return nil, "", fmt.Errorf("bench: nccopy -c %s %s (netcdf-bin): %v\n%s", m[1], f, err, out)
+			}
+		}
+		if err := os.WriteFile(done, []byte(m[1]+"\n"), 0o644); err != nil {
+			return nil, "", err
+		}
+	}
+	a := *d
+	a.Name, a.Dir, a.Files = d.Name+"-rechunked", dir, nil
+	for _, f := range d.Files {
+		a.Files = append(a.Files, filepath.Join(dir, filepath.Base(f)))
+	}
+	return &a, text, nil
 }

@@ -53,11 +53,15 @@ type slurmModel struct {
 	chunkRows                       int    // ingest.Catalog.RowChunks
 	chunkDim                        string // the rows' dimension in chunkShape
 	chunkVar, chunkFile, chunkShape string
-	blocks                          cellBlocks // the grid's cell blocks (a shard holds whole blocks)
-	chunks                          chunkModel
-	structured                      bool
-	perCell, perResult              float64
-	fixed                           int64
+	// fileSteps are chunkFile's time steps, minSteps the fewest of any
+	// file with a time axis (rechunkSpec: nccopy refuses a chunk longer
+	// than a file's dimension)
+	fileSteps, minSteps int
+	blocks              cellBlocks // the grid's cell blocks (a shard holds whole blocks)
+	chunks              chunkModel
+	structured          bool
+	perCell, perResult  float64
+	fixed               int64
 }
 
 func (j *job) slurmModel() slurmModel {
@@ -70,6 +74,17 @@ func (j *job) slurmModel() slurmModel {
 	}
 	m.blocks = blocksFor(m.ny, m.nx)
 	m.chunkRows, m.chunkDim, m.chunkVar, m.chunkFile, m.chunkShape = j.cat.RowChunks()
+	for _, f := range j.cat.Files {
+		if f.Static {
+			continue
+		}
+		if f.Path == m.chunkFile {
+			m.fileSteps = f.Steps
+		}
+		if m.minSteps == 0 || f.Steps < m.minSteps {
+			m.minSteps = f.Steps
+		}
+	}
 	return m
 }
 
@@ -190,7 +205,15 @@ func readAmplification(m slurmModel, n int) float64 {
 // rechunkSpec is nccopy's -c argument that puts every shard boundary of n
 // shards on a chunk boundary: the rows' dimension (by name, so that a time
 // chunk of the same length is left alone) chunked by the greatest common
-// divisor of the boundaries, every other dimension as it is.
+// divisor of the boundaries, every other dimension as it is, except that a
+// chunk spanning chunkFile's whole time axis is cut to the shortest file's
+// steps: nccopy refuses ("Bad chunk sizes") a chunk longer than the
+// dimension, so time/248 of a 31-day 3-hourly month fails on February's 224
+// steps. (That dimension is matched by its chunk size, as RowChunks names
+// the rows' dimension only; another dimension as long as that file's record
+// would be cut too.) Every dimension is named: nccopy 4.9 left the rows of
+// a file chunked by time steps unchanged when given the rows' dimension
+// alone.
 func rechunkSpec(m slurmModel, n int) string {
 	g := m.ny
 	for i := 1; i < n; i++ {
@@ -200,9 +223,11 @@ func rechunkSpec(m slurmModel, n int) string {
 	parts := strings.Split(m.chunkShape, ",")
 	for k, p := range parts {
 		dim, size, _ := strings.Cut(p, "/")
-		if dim == m.chunkDim && size == fmt.Sprint(m.chunkRows) {
+		switch {
+		case dim == m.chunkDim && size == fmt.Sprint(m.chunkRows):
 			parts[k] = fmt.Sprintf("%s/%d", dim, g)
-			break
+		case dim != m.chunkDim && m.minSteps > 0 && m.fileSteps > m.minSteps && size == fmt.Sprint(m.fileSteps):
+			parts[k] = fmt.Sprintf("%s/%d", dim, m.minSteps)
 		}
 	}
 	return strings.Join(parts, ",")

@@ -125,3 +125,24 @@ func TestSlurmPlanReadAmplification(t *testing.T) {
 		}
 	}
 }
+
+// The rechunk advice fits every file: one chunk per file and variable on a
+// 50 x 50 grid of monthly 3-hourly files (248 steps in a 31-day month, 224
+// in February), 4 shards of whole rows (boundaries 12, 25, 37: the gcd
+// with 50 is 1). nccopy refuses a chunk longer than the file's time axis
+// ("NetCDF: Bad chunk sizes" for time/248 on February, seen with nccopy
+// 4.9.0), so the time chunk is the shortest file's 224 steps.
+func TestSlurmPlanRechunkFitsShortestFile(t *testing.T) {
+	m := slurmModel{cells: 2500, nx: 50, ny: 50, steps: 14608, years: 5, chunks: chunkModel{chunks: make([]int64, 4)}, structured: true,
+		perCell: 100000, perResult: 200000, fixed: 10 << 20, chunkVar: "hm0", chunkFile: "f.nc",
+		chunkRows: 50, chunkDim: "lat", chunkShape: "time/248,lat/50,lon/50", fileSteps: 248, minSteps: 224}
+	m.blocks = blocksFor(m.ny, m.nx)
+	p, err := planSlurm(m, 0, 4)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := "nccopy -c time/224,lat/1,lon/50 IN.nc OUT.nc"
+	if !strings.Contains(p.ChunkNote, want) || p.ReadAmplification != 4 {
+		t.Errorf("note %q, amplification %.2f; want a note containing %q, amplification 4", p.ChunkNote, p.ReadAmplification, want)
+	}
+}
