@@ -108,24 +108,10 @@ var planAdvice = regexp.MustCompile("`nccopy -c (\\S+) IN\\.nc OUT\\.nc`")
 // returned with the data set (nil, when the plan gives no rechunk advice:
 // d's shards already read their own chunks).
 func AlignShardData(d *Dataset, logf func(string, ...any)) (*Dataset, string, error) {
-	cat, err := ingest.Open(d.Files, ingest.Options{})
+	text, err := shardPlan(d.Files)
 	if err != nil {
 		return nil, "", err
 	}
-	spec := runspec.DefaultSpec()
-	if spec.Input.Paths, err = specPaths(d.Files); err != nil {
-		return nil, "", err
-	}
-	spec.Output.Dir = filepath.Join(os.TempDir(), "sgbench-plan")
-	rs, err := spec.Resolve()
-	if err != nil {
-		return nil, "", err
-	}
-	p, err := engine.PlanShards(rs, cat, 0, ShardCount)
-	if err != nil {
-		return nil, "", err
-	}
-	text := p.Text()
 	m := planAdvice.FindStringSubmatch(text)
 	if m == nil {
 		return nil, text, nil
@@ -146,14 +132,50 @@ func AlignShardData(d *Dataset, logf func(string, ...any)) (*Dataset, string, er
 				return nil, "", fmt.Errorf("bench: nccopy -c %s %s (netcdf-bin): %v\n%s", m[1], f, err, out)
 			}
 		}
-		if err := os.WriteFile(done, []byte(m[1]+"\n"), 0o644); err != nil {
-			return nil, "", err
-		}
 	}
 	a := *d
 	a.Name, a.Dir, a.Files = d.Name+"-rechunked", dir, nil
 	for _, f := range d.Files {
 		a.Files = append(a.Files, filepath.Join(dir, filepath.Base(f)))
 	}
+	if _, err := os.Stat(done); err != nil {
+		// the plan of the rechunked files must find nothing to rechunk:
+		// nccopy leaves a variable's chunks as they are, without a word,
+		// when the chunks asked for are below its minimum chunk size (-M)
+		again, err := shardPlan(a.Files)
+		if err != nil {
+			return nil, "", err
+		}
+		if planAdvice.MatchString(again) {
+			return nil, "", fmt.Errorf("bench: nccopy -c %s left the chunks of the files in %s unaligned (chunks below nccopy's minimum chunk size are not applied); the plan of the rechunked files:\n%s", m[1], dir, again)
+		}
+		if err := os.WriteFile(done, []byte(m[1]+"\n"), 0o644); err != nil {
+			return nil, "", err
+		}
+	}
 	return &a, text, nil
+}
+
+// shardPlan is the Slurm plan's text for ShardCount shards of files
+// (engine.PlanShards with the default spec, as `swellgrid cluster slurm
+// --shards 4` prints it).
+func shardPlan(files []string) (string, error) {
+	cat, err := ingest.Open(files, ingest.Options{})
+	if err != nil {
+		return "", err
+	}
+	spec := runspec.DefaultSpec()
+	if spec.Input.Paths, err = specPaths(files); err != nil {
+		return "", err
+	}
+	spec.Output.Dir = filepath.Join(os.TempDir(), "sgbench-plan")
+	rs, err := spec.Resolve()
+	if err != nil {
+		return "", err
+	}
+	p, err := engine.PlanShards(rs, cat, 0, ShardCount)
+	if err != nil {
+		return "", err
+	}
+	return p.Text(), nil
 }
