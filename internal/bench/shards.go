@@ -36,6 +36,9 @@ type ShardRow struct {
 	Single  *Measure
 	Shards  []*Measure
 	Merge   *Measure
+	// Floor is the read floor of the input (ReadFloor, measured once per
+	// input), for the single run's end-to-end target (EndToEndTarget).
+	Floor *Measure
 }
 
 // Targets of the sharded run (issue 29): CPU of the shards and the merge
@@ -43,6 +46,9 @@ type ShardRow struct {
 const (
 	ShardCPUTarget   = 1.25
 	MergeWallTarget  = 0.20
+	// EndToEndTarget is the single run's wall time over the read floor on
+	// this 50 x 50 x 5-year grid (issue 29).
+	EndToEndTarget = 3.0
 	shardsCaseFormat = "%d/%d"
 )
 
@@ -82,15 +88,19 @@ func MeasureShards(exe, program string, d *Dataset, scratch string, logf func(st
 func ShardReport(rows []*ShardRow, d *Dataset) string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "\nSharded run (%s; %d shards one after another, then the merge; CPU = user + system of each child):\n\n", Describe(d.Scenario), ShardCount)
-	fmt.Fprintf(&b, "| input | program | single s | single CPU s | shards CPU s | merge s | merge CPU s | (shards + merge) CPU / single | target | merge s / single s | target |\n")
-	fmt.Fprintf(&b, "|---|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|\n")
+	fmt.Fprintf(&b, "| input | program | read floor s | single s | single s / floor | target | single CPU s | shards CPU s | merge s | merge CPU s | (shards + merge) CPU / single | target | merge s / single s | target |\n")
+	fmt.Fprintf(&b, "|---|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|\n")
 	for _, r := range rows {
 		var cpu float64
 		for _, s := range r.Shards {
 			cpu += s.CPUS
 		}
-		fmt.Fprintf(&b, "| %s | %s | %.1f | %.1f | %.1f | %.1f | %.1f | %.2f | %.2f | %.2f | %.2f |\n", r.Input, r.Program, r.Single.WallS, r.Single.CPUS, cpu,
-			r.Merge.WallS, r.Merge.CPUS, (cpu+r.Merge.CPUS)/r.Single.CPUS, ShardCPUTarget, r.Merge.WallS/r.Single.WallS, MergeWallTarget)
+		floor, ratio := "-", "-"
+		if r.Floor != nil && r.Floor.WallS > 0 {
+			floor, ratio = fmt.Sprintf("%.1f", r.Floor.WallS), fmt.Sprintf("%.2f", r.Single.WallS/r.Floor.WallS)
+		}
+		fmt.Fprintf(&b, "| %s | %s | %s | %.1f | %s | %.1f | %.1f | %.1f | %.1f | %.1f | %.2f | %.2f | %.2f | %.2f |\n", r.Input, r.Program, floor, r.Single.WallS, ratio, EndToEndTarget,
+			r.Single.CPUS, cpu, r.Merge.WallS, r.Merge.CPUS, (cpu+r.Merge.CPUS)/r.Single.CPUS, ShardCPUTarget, r.Merge.WallS/r.Single.WallS, MergeWallTarget)
 	}
 	return b.String()
 }
