@@ -44,11 +44,11 @@ type ShardRow struct {
 // Targets of the sharded run (issue 29): CPU of the shards and the merge
 // over the single run's, and the merge's wall time over the single run's.
 const (
-	ShardCPUTarget   = 1.25
-	MergeWallTarget  = 0.20
+	ShardCPUTarget  = 1.25
+	MergeWallTarget = 0.20
 	// EndToEndTarget is the single run's wall time over the read floor on
 	// this 50 x 50 x 5-year grid (issue 29).
-	EndToEndTarget = 3.0
+	EndToEndTarget   = 3.0
 	shardsCaseFormat = "%d/%d"
 )
 
