@@ -51,3 +51,44 @@ func boundCHeap() {
 func trimCHeap() {
 	C.malloc_trim(0)
 }
+
+// readOnceCache turns off the chunk cache of v, a variable of an open file
+// whose chunks each hold one time step (chunks, its chunk extents, and
+// axes, its dimensions' roles). The reader reads a file in blocks of
+// whole time steps, so each such chunk is wanted by one read only: caching
+// it saves no decompression, and a cache that holds the file's chunks until
+// the file is closed costs fresh memory for every chunk (the heap is given
+// back after each file, trimCHeap), whose page faults doubled the reader's
+// CPU time on step-chunked files (BENCHMARKS.md, issue 29). Without a
+// cache HDF5 decompresses each chunk into a buffer it frees at once, which
+// the next chunk reuses. Call it with ncMu held.
+func readOnceCache(v *ncVar, chunks []int, axes []axis) error {
+	if len(chunks) != len(axes) {
+		return nil
+	}
+	one := false
+	for k, a := range axes {
+		if a == axT {
+			one = chunks[k] == 1
+		}
+	}
+	if !one {
+		return nil
+	}
+	if rc := C.nc_set_var_chunk_cache(C.int(v.ds), C.int(v.id), 0, 0, 0.75); rc != 0 {
+		return fmt.Errorf("turning its chunk cache off failed (code %d); the file may be corrupt", int(rc))
+	}
+	return nil
+}
+
+// varChunkCache is the chunk cache size of v in its open file (bytes).
+func varChunkCache(v *ncVar) (int64, error) {
+	var size, nelems C.size_t
+	var pre C.float
+	ncMu.Lock()
+	defer ncMu.Unlock()
+	if rc := C.nc_get_var_chunk_cache(C.int(v.ds), C.int(v.id), &size, &nelems, &pre); rc != 0 {
+		return 0, fmt.Errorf("reading its chunk cache failed (code %d)", int(rc))
+	}
+	return int64(size), nil
+}

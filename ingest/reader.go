@@ -155,6 +155,12 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 			if v == nil {
 				return errf(fe.Path, vi.Name, "variable disappeared since the catalog was built; was the file replaced during the run?")
 			}
+			ncMu.Lock()
+			err := readOnceCache(v, vi.chunks, vi.axes)
+			ncMu.Unlock()
+			if err != nil {
+				return errf(fe.Path, vi.Name, "%v", err)
+			}
 			cp := *vi
 			cp.v = v
 			// Each file is read in its own orientation: the catalog's grid

@@ -16,9 +16,11 @@ func (vi *VarInfo) cook(raw float64, dirRole bool) (x float64, ok bool) {
 		if vi.DirTo {
 			x += 180
 		}
-		x = math.Mod(x, 360)
-		if x < 0 {
-			x += 360
+		if !(x >= 0 && x < 360) { // math.Mod returns x itself in [0, 360)
+			x = math.Mod(x, 360)
+			if x < 0 {
+				x += 360
+			}
 		}
 	}
 	return x, true

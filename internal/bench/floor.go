@@ -117,8 +117,9 @@ func ReadFloor(cat *ingest.Catalog, blockSteps int) (FloorResult, error) {
 }
 
 // ReadIngest reads the record through ingest's reader (unpacking, unit
-// conversion and the scatter into canonical cell order) and drops every
-// block: the read stage of a run without any computation.
+// conversion and the scatter into canonical cell order) and releases every
+// block once counted (ingest.Block.Release), as the run's workers do: the
+// read stage of a run without any computation.
 func ReadIngest(cat *ingest.Catalog, blockSteps int) (FloorResult, error) {
 	var res FloorResult
 	t0 := time.Now()
@@ -133,6 +134,7 @@ func ReadIngest(cat *ingest.Catalog, blockSteps int) (FloorResult, error) {
 			res.Values += int64(len(v))
 		}
 		res.Values += int64(len(b.Spec))
+		b.Release()
 	}
 	if err := <-errc; err != nil {
 		return res, err
