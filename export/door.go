@@ -598,6 +598,24 @@ func CreateExclusive(path string) (*os.File, error) {
 	return f, err
 }
 
+// CreateScratch creates the new file path (mode 0600, read and write)
+// through the door of its run directory, failing when anything (a link
+// included) stands at its name: a scratch file, which the caller removes
+// (RemoveFile) and keeps using through the handle.
+func CreateScratch(path string) (*os.File, error) {
+	d, rel, release, err := at(path)
+	if err != nil {
+		return nil, err
+	}
+	defer release()
+	beforeWrite(path)
+	f, err := d.root.OpenFile(rel, os.O_RDWR|os.O_CREATE|os.O_EXCL, 0o600)
+	if err != nil {
+		return nil, d.explain(rel, err)
+	}
+	return f, nil
+}
+
 // RemoveFile removes the file path (a lock) through the door of its run
 // directory: a link standing at one of its folders is not followed (the
 // removal is refused naming it), so nothing outside the run directory is

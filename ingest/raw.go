@@ -227,6 +227,32 @@ func cookSlab[T rawNum](s *rawSlab, raw []T, dst []float64, c0, c1, lo, hi, per 
 // cells c0..c1-1, as stored (float, double and short kept in their type,
 // other types widened to float64).
 func (c *Catalog) readRaw(path string, vi *VarInfo, g *grid.Grid, invX, invY []int, t0, nt, c0, c1 int) (*rawSlab, error) {
+	s, total := slabGeom(vi, g, invX, invY, t0, nt, c0, c1)
+	v := vi.v
+	var err error
+	ncMu.Lock()
+	switch v.typ {
+	case netcdf.FLOAT:
+		s.f32, _ = f32Pool.get(total) // every value is read over
+		err = v.readTyped(s.f32, s.start, s.count)
+	case netcdf.SHORT:
+		s.i16, _ = i16Pool.get(total)
+		err = v.readTyped(s.i16, s.start, s.count)
+	default:
+		s.f64 = make([]float64, total)
+		err = v.readSlab(path, s.start, s.count, s.f64)
+	}
+	ncMu.Unlock()
+	if err != nil && s.f64 == nil {
+		err = fmt.Errorf("ingest: %s: variable %q: read of %v+%v failed: %v; the file may be truncated or corrupt", path, v.name, s.start, s.count, err)
+	}
+	return s, err
+}
+
+// slabGeom is the slab readRaw reads for the file's steps t0..t0+nt-1 and
+// the cells c0..c1-1 (its start and count, without values) and its number
+// of values.
+func slabGeom(vi *VarInfo, g *grid.Grid, invX, invY []int, t0, nt, c0, c1 int) (*rawSlab, int) {
 	v := vi.v
 	rank := len(v.shape)
 	start := make([]uint64, rank)
@@ -266,25 +292,7 @@ func (c *Catalog) readRaw(path string, vi *VarInfo, g *grid.Grid, invX, invY []i
 	for _, n := range count {
 		total *= int(n)
 	}
-	s := &rawSlab{vi: vi, g: g, invX: invX, invY: invY, start: start, count: count}
-	var err error
-	ncMu.Lock()
-	switch v.typ {
-	case netcdf.FLOAT:
-		s.f32, _ = f32Pool.get(total) // every value is read over
-		err = v.readTyped(s.f32, start, count)
-	case netcdf.SHORT:
-		s.i16, _ = i16Pool.get(total)
-		err = v.readTyped(s.i16, start, count)
-	default:
-		s.f64 = make([]float64, total)
-		err = v.readSlab(path, start, count, s.f64)
-	}
-	ncMu.Unlock()
-	if err != nil && s.f64 == nil {
-		err = fmt.Errorf("ingest: %s: variable %q: read of %v+%v failed: %v; the file may be truncated or corrupt", path, v.name, start, count, err)
-	}
-	return s, err
+	return &rawSlab{vi: vi, g: g, invX: invX, invY: invY, start: start, count: count}, total
 }
 
 // TallyKey is one role variable of one input file (an index into

@@ -3,6 +3,7 @@ package ingest
 import (
 	"context"
 	"fmt"
+	"io"
 	"sort"
 	"time"
 
@@ -53,6 +54,13 @@ type ReadRange struct {
 	// Otherwise Read cooks every block itself and refuses a role file
 	// without data once a full cell range has read all of it.
 	Raw bool
+	// SpillTo, on the first pass of a run of several, makes Read also read
+	// the later passes' cells and write their raw slabs to their streams
+	// (spill.go); SpillFrom, on a later pass, makes it take its slabs
+	// from the stream the first pass wrote instead of the files. A spilt
+	// pass is read from file FromFile = 0 to the end in both.
+	SpillTo   []SpillOut
+	SpillFrom io.Reader
 }
 
 // ReadStats is where the reader's time went: Wait is the time spent blocked
@@ -74,6 +82,14 @@ func (c *Catalog) Read(ctx context.Context, r ReadRange, out chan<- *Block) erro
 	}
 	if r.MaxSteps <= 0 {
 		r.MaxSteps = 64
+	}
+	if (r.SpillTo != nil || r.SpillFrom != nil) && (r.FromFile != 0 || r.Sample > 0) {
+		return fmt.Errorf("ingest: a spilt pass is read whole, from its first file (asked: from file %d, sample %d)", r.FromFile, r.Sample)
+	}
+	for _, o := range r.SpillTo {
+		if o.C0 < 0 || o.C1 > c.Grid.NCells() || o.C0 >= o.C1 {
+			return fmt.Errorf("ingest: spill cell range %d..%d outside the grid's %d cells", o.C0, o.C1, c.Grid.NCells())
+		}
 	}
 	defer DropBlockBuffers()
 	if r.Sample > 0 {
@@ -212,7 +228,16 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 				k1 := sort.SearchInts(u, b0+nt)
 				if k1 > k0 {
 					// uidx[k] is the file's step lead+k
-					sl, err := c.readRaw(c.Files[src.fi].Path, src.vi, src.g, src.invX, src.invY, c.Files[src.fi].lead+k0, k1-k0, r.C0, r.C1)
+					path, t0 := c.Files[src.fi].Path, c.Files[src.fi].lead+k0
+					var sl *rawSlab
+					var err error
+					if r.SpillFrom != nil {
+						sl, err = spillRaw(r.SpillFrom, src.vi, src.g, src.invX, src.invY, t0, k1-k0, r.C0, r.C1)
+					} else {
+						if err = c.spillSlabs(r.SpillTo, path, src.vi, src.g, src.invX, src.invY, t0, k1-k0); err == nil {
+							sl, err = c.readRaw(path, src.vi, src.g, src.invX, src.invY, t0, k1-k0, r.C0, r.C1)
+						}
+					}
 					if err != nil {
 						return err
 					}

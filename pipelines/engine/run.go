@@ -41,6 +41,10 @@ type Options struct {
 	// the chunk cache. The CLI sets it; a library caller that runs other
 	// work in the same process may leave it off.
 	LimitProcess bool
+	// NoSpill makes a run of several passes read the input files in every
+	// pass instead of spilling the later passes' values to scratch files
+	// in its first (spill.go): for comparisons.
+	NoSpill bool
 }
 
 // Result says what a run wrote.

@@ -334,13 +334,37 @@ func (j *job) checkData() error {
 // (fitPass; a shard's to its share of the tables), so that the run holds
 // the results of one chunk of cells, never those of every pass.
 func (j *job) runPasses(ctx context.Context, restore func(pi int, p [2]int) ([]*cell, int, error), saved func(pi int, p [2]int) error) error {
+	var spill *spillSet
+	defer func() { spill.close() }()
 	for pi, p := range j.passes {
 		ts := time.Now()
 		cells, from, err := restore(pi, p)
 		if err != nil {
 			return err
 		}
-		if err := j.stream(ctx, pi, p, cells, from); err != nil {
+		j.eng.spillTo, j.eng.spillFrom = nil, nil
+		if pi == 0 && from == 0 && len(j.passes) > 1 && !j.opt.NoSpill {
+			// later passes that start afresh take their values from a
+			// scratch spill the first pass writes (spill.go)
+			var later []int
+			for k := 1; k < len(j.passes); k++ {
+				if _, err := os.Stat(ckPath(j.out, j.passes[k][0], j.passes[k][1])); j.opt.Restart || err != nil {
+					later = append(later, k)
+				}
+			}
+			if spill = j.openSpill(later); spill != nil {
+				j.eng.spillTo = spill.to(j.passes)
+			}
+		} else if r := spill.from(pi); r != nil && from == 0 {
+			j.eng.spillFrom = r
+			spillPasses.Add(1)
+		}
+		err = j.stream(ctx, pi, p, cells, from)
+		j.eng.spillTo, j.eng.spillFrom = nil, nil
+		if pi > 0 {
+			spill.done(pi)
+		}
+		if err != nil {
 			return err
 		}
 		j.mark("stream_s", ts)

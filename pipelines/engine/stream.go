@@ -3,6 +3,7 @@ package engine
 import (
 	"context"
 	"fmt"
+	"io"
 	"math"
 	"sync"
 	"time"
@@ -53,6 +54,10 @@ type engine struct {
 	// corrCfg is the configuration of the bias-corrected states (nil: no
 	// correction asked).
 	corrCfg *climate.Config
+	// spillTo and spillFrom are the scratch spill of the pass being read
+	// (ingest.ReadRange.SpillTo, SpillFrom; spill.go).
+	spillTo   []ingest.SpillOut
+	spillFrom io.Reader
 }
 
 // streamTimes are the busy and waiting times of the stream stage's parts.
@@ -294,7 +299,8 @@ func (e *engine) streamPass(ctx context.Context, c0, c1, fromFile, workers int, 
 	readErr := make(chan error, 1)
 	go func() {
 		readErr <- fault.Catch(func() error {
-			return e.cat.Read(ctx, ingest.ReadRange{C0: c0, C1: c1, MaxSteps: e.spec.Exec.BlockSteps, FromFile: fromFile, Stats: &e.times.read, Raw: true}, blocks)
+			return e.cat.Read(ctx, ingest.ReadRange{C0: c0, C1: c1, MaxSteps: e.spec.Exec.BlockSteps, FromFile: fromFile, Stats: &e.times.read, Raw: true,
+				SpillTo: e.spillTo, SpillFrom: e.spillFrom}, blocks)
 		})
 		close(blocks)
 	}()
