@@ -1,0 +1,57 @@
+package engine
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"swellgrid/internal/runcheck"
+)
+
+// A run of several passes reads the inputs once: its first pass spills the
+// later passes' values to scratch files (spill.go), and the tables are the
+// same bytes as the one-pass run's and as the same passes reading the
+// files in every pass (Options.NoSpill). The fixture is the bulk fixture
+// (testdata/bulk_monthly, 6 x 5 cells, 24 months, chunked a month per
+// chunk) and its step-chunked copy by python3-netcdf4
+// (testdata/stepchunk/rechunk.py). The reference is the one-pass run at
+// the default budget, the comparison byte for byte (runcheck.SameOutputs).
+func TestSpillSameBytesAsOnePass(t *testing.T) {
+	in := []string{runcheck.BulkFixture(t)}
+	tmp := t.TempDir()
+	ref := filepath.Join(tmp, "ref")
+	s := clSpec(in, ref)
+	clRun(t, s, Options{})
+	want := runcheck.RunOutputs(t, ref)
+	for _, c := range []struct {
+		name    string
+		noSpill bool
+	}{{"spill", false}, {"reread", true}} {
+		out := filepath.Join(tmp, c.name)
+		s := clSpec(in, out)
+		s.Run.MemoryLimit = "32MiB"
+		j := mustPlan(t, s)
+		if len(j.passes) < 2 {
+			t.Fatalf("32MiB: %d passes; the test needs several", len(j.passes))
+		}
+		before := spillPasses.Load()
+		clRun(t, s, Options{NoSpill: c.noSpill})
+		got := spillPasses.Load() - before
+		if wantSpilt := int64(len(j.passes) - 1); c.noSpill && got != 0 || !c.noSpill && got != wantSpilt {
+			t.Fatalf("%s: %d passes read from the spill, want %d of %d", c.name, got, map[bool]int64{true: 0, false: wantSpilt}[c.noSpill], len(j.passes))
+		}
+		runcheck.SameOutputs(t, fmt.Sprintf("%s (%d passes)", c.name, len(j.passes)), want, runcheck.RunOutputs(t, out))
+		// nothing of the spill is left in the state folder
+		ents, err := os.ReadDir(filepath.Join(out, ".swellgrid"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, e := range ents {
+			if strings.HasPrefix(e.Name(), "spill") {
+				t.Errorf("%s: %s left in the state folder", c.name, e.Name())
+			}
+		}
+	}
+}
