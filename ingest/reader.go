@@ -171,11 +171,15 @@ func (c *Catalog) readFile(ctx context.Context, fi int, r ReadRange, out chan<- 
 			if v == nil {
 				return errf(fe.Path, vi.Name, "variable disappeared since the catalog was built; was the file replaced during the run?")
 			}
-			ncMu.Lock()
-			err := readOnceCache(v, vi.chunks, vi.axes)
-			ncMu.Unlock()
-			if err != nil {
-				return errf(fe.Path, vi.Name, "%v", err)
+			if r.SpillTo == nil {
+				// (a spilling pass reads each block's chunks once per
+				// pass: the cache keeps them for the later passes' reads)
+				ncMu.Lock()
+				err := readOnceCache(v, vi.chunks, vi.axes)
+				ncMu.Unlock()
+				if err != nil {
+					return errf(fe.Path, vi.Name, "%v", err)
+				}
 			}
 			cp := *vi
 			cp.v = v

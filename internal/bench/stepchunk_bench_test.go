@@ -41,13 +41,13 @@ func stepChunked(b *testing.B) []string {
 		b.Fatalf("fixture files: %v %v", src, err)
 	}
 	dir := b.TempDir()
+	args := append(append([]string{filepath.Join("..", "..", "testdata", "stepchunk", "rechunk.py")}, src...), dir)
+	if out, err := exec.Command(py, args...).CombinedOutput(); err != nil {
+		b.Fatalf("rechunk.py: %v\n%s", err, out)
+	}
 	var files []string
 	for _, f := range src {
-		dst := filepath.Join(dir, filepath.Base(f))
-		if out, err := exec.Command(py, filepath.Join("..", "..", "testdata", "stepchunk", "rechunk.py"), f, dst).CombinedOutput(); err != nil {
-			b.Fatalf("rechunk.py %s: %v\n%s", f, err, out)
-		}
-		files = append(files, dst)
+		files = append(files, filepath.Join(dir, filepath.Base(f)))
 	}
 	return files
 }

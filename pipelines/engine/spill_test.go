@@ -3,11 +3,13 @@ package engine
 import (
 	"fmt"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	"swellgrid/internal/runcheck"
+	"swellgrid/internal/testtool"
 )
 
 // A run of several passes reads the inputs once: its first pass spills the
@@ -19,7 +21,21 @@ import (
 // (testdata/stepchunk/rechunk.py). The reference is the one-pass run at
 // the default budget, the comparison byte for byte (runcheck.SameOutputs).
 func TestSpillSameBytesAsOnePass(t *testing.T) {
-	in := []string{runcheck.BulkFixture(t)}
+	py := testtool.NeedPython(t, "netCDF4")
+	src, err := filepath.Glob(filepath.Join(runcheck.BulkFixture(t), "*.nc"))
+	if err != nil || len(src) == 0 {
+		t.Fatalf("fixture: %v %v", src, err)
+	}
+	step := t.TempDir()
+	args := append(append([]string{filepath.Join("..", "..", "testdata", "stepchunk", "rechunk.py")}, src...), step)
+	if out, err := exec.Command(py, args...).CombinedOutput(); err != nil {
+		t.Fatalf("rechunk.py: %v\n%s", err, out)
+	}
+	t.Run("month-chunked", func(t *testing.T) { spillSameBytes(t, []string{runcheck.BulkFixture(t)}) })
+	t.Run("step-chunked", func(t *testing.T) { spillSameBytes(t, []string{step}) })
+}
+
+func spillSameBytes(t *testing.T, in []string) {
 	tmp := t.TempDir()
 	ref := filepath.Join(tmp, "ref")
 	s := clSpec(in, ref)

@@ -7,25 +7,31 @@ Used by ingest's TestStepChunkedReadOnce and the engine's spill test to make
 step-chunked copies of the synthetic bulk fixture (its own metadata says it
 is synthetic). Debian python3-netcdf4.
 
-usage: rechunk.py SRC DST
+usage: rechunk.py SRC... DSTDIR (each SRC copied to DSTDIR under its own name)
 """
+import os
 import sys
 
 import netCDF4
 
-src, dst = sys.argv[1], sys.argv[2]
-with netCDF4.Dataset(src) as a, netCDF4.Dataset(dst, "w", format="NETCDF4") as b:
-    b.setncatts({k: a.getncattr(k) for k in a.ncattrs()})
-    for name, d in a.dimensions.items():
-        b.createDimension(name, None if d.isunlimited() else len(d))
-    for name, v in a.variables.items():
-        v.set_auto_maskandscale(False)
-        fill = v.getncattr("_FillValue") if "_FillValue" in v.ncattrs() else None
-        chunks = None
-        if "time" in v.dimensions and len(v.dimensions) > 1:
-            chunks = [1 if dn == "time" else len(a.dimensions[dn]) for dn in v.dimensions]
-        w = b.createVariable(name, v.dtype, v.dimensions, zlib=True, complevel=1, shuffle=True,
-                             chunksizes=chunks, fill_value=fill)
-        w.set_auto_maskandscale(False)
-        w.setncatts({k: v.getncattr(k) for k in v.ncattrs() if k != "_FillValue"})
-        w[...] = v[...]
+
+def rechunk(src, dst):
+    with netCDF4.Dataset(src) as a, netCDF4.Dataset(dst, "w", format="NETCDF4") as b:
+        b.setncatts({k: a.getncattr(k) for k in a.ncattrs()})
+        for name, d in a.dimensions.items():
+            b.createDimension(name, None if d.isunlimited() else len(d))
+        for name, v in a.variables.items():
+            v.set_auto_maskandscale(False)
+            fill = v.getncattr("_FillValue") if "_FillValue" in v.ncattrs() else None
+            chunks = None
+            if "time" in v.dimensions and len(v.dimensions) > 1:
+                chunks = [1 if dn == "time" else len(a.dimensions[dn]) for dn in v.dimensions]
+            w = b.createVariable(name, v.dtype, v.dimensions, zlib=True, complevel=1, shuffle=True,
+                                 chunksizes=chunks, fill_value=fill)
+            w.set_auto_maskandscale(False)
+            w.setncatts({k: v.getncattr(k) for k in v.ncattrs() if k != "_FillValue"})
+            w[...] = v[...]
+
+
+for src in sys.argv[1:-1]:
+    rechunk(src, os.path.join(sys.argv[-1], os.path.basename(src)))
