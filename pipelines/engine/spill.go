@@ -9,6 +9,7 @@ import (
 	"syscall"
 
 	"swellgrid/export"
+	"swellgrid/grid"
 	"swellgrid/ingest"
 	"swellgrid/pipelines/lock"
 )
@@ -30,6 +31,38 @@ import (
 // and otherwise reads the files in every pass). Before it spills, the run
 // checks the free space of the state folder's file system and reads the
 // files in every pass instead, saying so, when it is short.
+
+// spillHelps reports whether a later pass reading the files would
+// decompress chunks the first pass decompressed as well: not when the
+// inputs are not chunked (a pass reads its own cells' bytes), nor when
+// every pass boundary falls on a boundary of the chunks' tiles along the
+// rows (each chunk is then decompressed by one pass only: the hyperslab of
+// a pass already reads only its chunks), on a structured grid whose rows
+// the tiles divide (so that a file stored the other way up is tiled alike)
+// or a point set.
+func (j *job) spillHelps() bool {
+	rows, _, _, _, _ := j.cat.RowChunks()
+	if rows == 0 {
+		return false
+	}
+	g := j.cat.Grid
+	if g.Kind == grid.MeshKind {
+		return true // a pass's nodes come from a file range of its own
+	}
+	nx, ny := 1, g.NCells()
+	if g.Structured() {
+		nx, ny = g.NX, g.NY
+	}
+	if ny%rows != 0 {
+		return true
+	}
+	for _, p := range j.passes[1:] {
+		if p[0]%nx != 0 || (p[0]/nx)%rows != 0 {
+			return true
+		}
+	}
+	return false
+}
 
 // spillSet is the scratch streams of the later passes (by pass index).
 type spillSet struct {

@@ -343,7 +343,7 @@ func (j *job) runPasses(ctx context.Context, restore func(pi int, p [2]int) ([]*
 			return err
 		}
 		j.eng.spillTo, j.eng.spillFrom = nil, nil
-		if pi == 0 && from == 0 && len(j.passes) > 1 && !j.opt.NoSpill {
+		if pi == 0 && from == 0 && len(j.passes) > 1 && !j.opt.NoSpill && j.spillHelps() {
 			// later passes that start afresh take their values from a
 			// scratch spill the first pass writes (spill.go)
 			var later []int

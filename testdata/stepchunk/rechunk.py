@@ -7,7 +7,10 @@ Used by ingest's TestStepChunkedReadOnce and the engine's spill test to make
 step-chunked copies of the synthetic bulk fixture (its own metadata says it
 is synthetic). Debian python3-netcdf4.
 
-usage: rechunk.py SRC... DSTDIR (each SRC copied to DSTDIR under its own name)
+With --rows N first, the chunks instead hold every step of the file and N
+rows of the grid (tiles along the rows).
+
+usage: rechunk.py [--rows N] SRC... DSTDIR (each SRC copied to DSTDIR under its own name)
 """
 import os
 import sys
@@ -15,7 +18,7 @@ import sys
 import netCDF4
 
 
-def rechunk(src, dst):
+def rechunk(src, dst, rows):
     with netCDF4.Dataset(src) as a, netCDF4.Dataset(dst, "w", format="NETCDF4") as b:
         b.setncatts({k: a.getncattr(k) for k in a.ncattrs()})
         for name, d in a.dimensions.items():
@@ -26,6 +29,8 @@ def rechunk(src, dst):
             chunks = None
             if "time" in v.dimensions and len(v.dimensions) > 1:
                 chunks = [1 if dn == "time" else len(a.dimensions[dn]) for dn in v.dimensions]
+                if rows:
+                    chunks = [len(a.dimensions[dn]) if dn != "lat" else rows for dn in v.dimensions]
             w = b.createVariable(name, v.dtype, v.dimensions, zlib=True, complevel=1, shuffle=True,
                                  chunksizes=chunks, fill_value=fill)
             w.set_auto_maskandscale(False)
@@ -33,5 +38,8 @@ def rechunk(src, dst):
             w[...] = v[...]
 
 
-for src in sys.argv[1:-1]:
-    rechunk(src, os.path.join(sys.argv[-1], os.path.basename(src)))
+args, rows = sys.argv[1:], 0
+if args[0] == "--rows":
+    rows, args = int(args[1]), args[2:]
+for src in args[:-1]:
+    rechunk(src, os.path.join(args[-1], os.path.basename(src)), rows)
