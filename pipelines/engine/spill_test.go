@@ -1,6 +1,7 @@
 package engine
 
 import (
+	"context"
 	"fmt"
 	"os"
 	"os/exec"
@@ -82,4 +83,58 @@ func spillSameBytes(t *testing.T, in []string, spills bool) {
 			}
 		}
 	}
+}
+
+// cancelIn cancels the run once the stage named stage has gone on for
+// after steps.
+type cancelIn struct {
+	stage  string
+	after  int64
+	cancel func()
+	on     bool
+	n      int64
+}
+
+func (c *cancelIn) Start(stage string, total, done int64) { c.on = stage == c.stage }
+func (c *cancelIn) Add(n int64) {
+	if c.on {
+		if c.n += n; c.n >= c.after {
+			c.cancel()
+		}
+	}
+}
+func (c *cancelIn) Done() { c.on = false }
+
+// A run stopped while its second pass reads the spill resumes from that
+// pass's checkpoint reading the files (no spill is kept between processes)
+// and gives the one-pass run's bytes.
+func TestSpillInterruptedResumes(t *testing.T) {
+	in := []string{runcheck.BulkFixture(t)}
+	tmp := t.TempDir()
+	ref := filepath.Join(tmp, "ref")
+	clRun(t, clSpec(in, ref), Options{})
+	out := filepath.Join(tmp, "cut")
+	s := clSpec(in, out)
+	s.Run.MemoryLimit = "32MiB"
+	s.Run.CheckpointEveryS = 0
+	j := mustPlan(t, s)
+	if len(j.passes) < 2 {
+		t.Fatalf("32MiB: %d passes; the test needs several", len(j.passes))
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	before := spillPasses.Load()
+	pr := &cancelIn{stage: fmt.Sprintf("read pass 2/%d", len(j.passes)), after: int64(j.cat.Steps / 2), cancel: cancel}
+	if _, err := Run(ctx, s, Options{Version: "test", Progress: pr}); err == nil {
+		t.Fatal("the run was not stopped in its second pass")
+	}
+	if n := spillPasses.Load() - before; n != 1 {
+		t.Fatalf("%d passes read from the spill before the stop, want 1", n)
+	}
+	before = spillPasses.Load()
+	clRun(t, s, Options{})
+	if n := spillPasses.Load() - before; n != 0 {
+		t.Errorf("the resumed run read %d passes from a spill, want 0 (it resumes from checkpoints)", n)
+	}
+	runcheck.SameOutputs(t, "stopped in pass 2 and resumed", runcheck.RunOutputs(t, ref), runcheck.RunOutputs(t, out))
 }
