@@ -97,13 +97,30 @@ func gevNegLogLik(x, grad, z []float64) float64 {
 	return -l
 }
 
-// gpdNegLogLik returns -l(log Scale, Shape) for the excesses y and its gradient,
-// where per excess, with v = y/Scale, w = 1 + Shape v, L = log(w)/Shape:
+// gpdNegLogLik returns -l(log Scale, Shape) for the excesses y and writes
+// its gradient into grad (if non-nil); see gpdNegLogLikHess for the formulas.
+func gpdNegLogLik(x, grad, y []float64) float64 {
+	return gpdNegLogLikHess(x, grad, nil, y)
+}
+
+// gpdNegLogLikHess returns -l(log Scale, Shape) for the excesses y, its
+// gradient (if grad is non-nil) and its Hessian (if hess is non-nil as
+// well), where per excess, with v = y/Scale, w = 1 + Shape v,
+// L = log(w)/Shape, L' = dL/dShape = (v/w - L)/Shape and
+// L” = d2L/dShape2 = -(v^2/w^2 + 2 L')/Shape:
 //
 //	l = -log Scale - (1 + Shape) L                              (Coles 2001, eq. 4.10)
 //	dl/dlogScale = -1 + (1 + Shape) v / w
-//	dl/dShape    = -L - (1 + Shape) dL/dShape
-func gpdNegLogLik(x, grad, y []float64) float64 {
+//	dl/dShape    = -L - (1 + Shape) L'
+//	d2l/dlogScale2       = -(1 + Shape) v / w^2
+//	d2l/dlogScale dShape = v / w - (1 + Shape) v^2 / w^2
+//	d2l/dShape2          = -2 L' - (1 + Shape) L''
+//
+// The derivatives are derived here by the chain rule (dv/dlogScale = -v);
+// boxLog supplies L and L', and for |Shape v| < smallShape L” is its
+// series v^3 (2/3 - 3/2 u + 12/5 u^2 - 10/3 u^3), u = Shape v (from
+// L = sum_k (-1)^k Shape^k v^(k+1)/(k+1)). Outside the support it returns +Inf.
+func gpdNegLogLikHess(x, grad []float64, hess *[2][2]float64, y []float64) float64 {
 	phi, xi := x[0], x[1]
 	if xi <= minShapeML || math.Abs(phi) > 700 {
 		return math.Inf(1)
@@ -122,6 +139,7 @@ func gpdNegLogLik(x, grad, y []float64) float64 {
 		return -l
 	}
 	var l, gphi, gxi float64
+	var hpp, hpx, hxx float64
 	for _, yi := range y {
 		v := yi / sigma
 		L, dL, ok := boxLog(xi, v)
@@ -132,9 +150,22 @@ func gpdNegLogLik(x, grad, y []float64) float64 {
 		l += -phi - (1+xi)*L
 		gphi += -1 + (1+xi)*v/w
 		gxi += -L - (1+xi)*dL
+		if hess != nil {
+			vw := v / w
+			var d2L float64
+			if u := xi * v; math.Abs(u) < smallShape {
+				d2L = v * v * v * (2.0/3 + u*(-1.5+u*(2.4-u*10.0/3)))
+			} else {
+				d2L = -(vw*vw + 2*dL) / xi
+			}
+			hpp += -(1 + xi) * vw / w
+			hpx += vw - (1+xi)*vw*vw
+			hxx += -2*dL - (1+xi)*d2L
+		}
 	}
-	if grad != nil {
-		grad[0], grad[1] = -gphi, -gxi
+	grad[0], grad[1] = -gphi, -gxi
+	if hess != nil {
+		hess[0][0], hess[0][1], hess[1][0], hess[1][1] = -hpp, -hpx, -hpx, -hxx
 	}
 	return -l
 }
@@ -379,15 +410,23 @@ func FitGPD(excessesOrPeaks []float64, threshold float64, peaksPerYear float64) 
 	if math.IsInf(f(x0, nil), 1) {
 		x0[1] = 0
 	}
-	xo, nll, conv, oerr := minimise(f, x0, 1e-7*float64(len(y)))
+	fh := func(p, g []float64, h *[2][2]float64) float64 { return gpdNegLogLikHess(p, g, h, y) }
+	tol := 1e-7 * float64(len(y))
+	var xo []float64
+	var nll float64
+	var conv bool
+	var oerr error
+	var h [2][2]float64
+	var g [2]float64
+	if x1, v1, g1, h1, ok := localopt.Newton2(fh, x0, tol); ok {
+		xo, nll, conv, g, h = x1, v1, true, g1, h1
+	} else {
+		xo, nll, conv, oerr = minimise(f, x0, tol)
+		nll = fh(xo, g[:], &h)
+	}
 	fit := GPDFit{GPD: GPD{Threshold: threshold, Scale: math.Exp(xo[0]), Shape: xo[1]}, Start: start,
 		PeaksPerYear: peaksPerYear, LogLik: -nll, Converged: conv && oerr == nil && !math.IsInf(nll, 0), N: len(y), OptErr: oerr}
-	gradNat := func(p, g []float64) {
-		q := []float64{math.Log(p[0]), p[1]}
-		gpdNegLogLik(q, g, y)
-		g[0] /= p[0]
-	}
-	inv, ok := invertInfo(observedInfo(gradNat, []float64{fit.Scale, fit.Shape}))
+	inv, ok := invertInfo(gpdInfoNatural(h, g, fit.Scale))
 	fit.InfoOK = ok
 	for i := 0; i < 2; i++ {
 		for j := 0; j < 2; j++ {
@@ -399,6 +438,22 @@ func FitGPD(excessesOrPeaks []float64, threshold float64, peaksPerYear float64) 
 		fit.StdErr[i] = math.Sqrt(fit.Cov[i][i])
 	}
 	return fit, nil
+}
+
+// gpdInfoNatural returns the observed information in (Scale, Shape) from
+// the Hessian h and gradient g of the negative log-likelihood in
+// (log Scale, Shape) at Scale = sigma, by the chain rule with
+// dlogScale/dScale = 1/sigma:
+//
+//	I_ss = (h_00 - g_0)/sigma^2,  I_sx = h_01/sigma,  I_xx = h_11
+//
+// (the g_0 term is the second derivative of log Scale; it vanishes at the
+// optimum up to the search tolerance).
+func gpdInfoNatural(h [2][2]float64, g [2]float64, sigma float64) *mat.SymDense {
+	return mat.NewSymDense(2, []float64{
+		(h[0][0] - g[0]) / (sigma * sigma), h[0][1] / sigma,
+		h[0][1] / sigma, h[1][1],
+	})
 }
 
 // ErrNoSpread is the optimiser error of a fit to values that are all equal:

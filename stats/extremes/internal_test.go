@@ -6,8 +6,9 @@ import (
 	"testing"
 )
 
-// TestGradients compares the analytic log-likelihood gradients with central
-// differences (common practice for checking derived gradients), including
+// TestGradients compares the analytic log-likelihood gradients (and the GPD
+// Hessian) with central differences (common practice for checking derived
+// gradients), including
 // shapes at and next to the series switch of boxLog.
 func TestGradients(t *testing.T) {
 	z := readColumn(t, "portpirie.csv", 1)
@@ -46,6 +47,23 @@ func TestGradients(t *testing.T) {
 			pm[i] -= h
 			num := (gpdNegLogLik(pp, nil, y) - gpdNegLogLik(pm, nil, y)) / (2 * h)
 			near(t, "GPD gradient", gp[i], num, 1e-5*(1+math.Abs(num)))
+		}
+		// The analytic Hessian against central differences of the gradient.
+		var hs [2][2]float64
+		gpdNegLogLikHess(p, gp, &hs, y)
+		for i := range p {
+			h := 1e-6
+			pp := append([]float64(nil), p...)
+			pm := append([]float64(nil), p...)
+			pp[i] += h
+			pm[i] -= h
+			gpp, gpm := make([]float64, 2), make([]float64, 2)
+			gpdNegLogLik(pp, gpp, y)
+			gpdNegLogLik(pm, gpm, y)
+			for j := range p {
+				num := (gpp[j] - gpm[j]) / (2 * h)
+				near(t, "GPD Hessian", hs[i][j], num, 1e-5*(1+math.Abs(num)))
+			}
 		}
 	}
 }

@@ -139,3 +139,36 @@ func TestMinimise2DRosenbrock(t *testing.T) {
 	}
 	t.Logf("evaluations: %d from (-1.2, 1), %d from (0.9, 0.8) with the curvature at the optimum", first, evals)
 }
+
+// Newton2 (extremes.FitGPD's search) finds the minimum of the Rosenbrock
+// function, (1, 1) (Nocedal and Wright 2006, exercise 2.1), from the usual
+// start (-1.2, 1), where the Hessian is not positive definite at first
+// (Hessian modification), and stops with its gradient threshold met; the
+// Hessian it returns is the analytic one at the minimum,
+// [[802, -400], [-400, 200]].
+func TestNewton2Rosenbrock(t *testing.T) {
+	evals := 0
+	f := func(x, g []float64, h *[2][2]float64) float64 {
+		evals++
+		a, b := 1-x[0], x[1]-x[0]*x[0]
+		if g != nil {
+			g[0] = -2*a - 400*x[0]*b
+			g[1] = 200 * b
+			h[0][0] = 2 - 400*b + 800*x[0]*x[0]
+			h[0][1], h[1][0] = -400*x[0], -400*x[0]
+			h[1][1] = 200
+		}
+		return a*a + 100*b*b
+	}
+	x, fx, g, h, ok := Newton2(f, []float64{-1.2, 1}, 1e-9)
+	if !ok || math.Abs(x[0]-1) > 1e-9 || math.Abs(x[1]-1) > 1e-9 || fx > 1e-18 {
+		t.Fatalf("(%g, %g), f %g, ok %v; want (1, 1)", x[0], x[1], fx, ok)
+	}
+	if math.Max(math.Abs(g[0]), math.Abs(g[1])) >= 1e-9 {
+		t.Errorf("gradient %v at the end", g)
+	}
+	if math.Abs(h[0][0]-802) > 1e-6 || math.Abs(h[0][1]+400) > 1e-6 || h[1][1] != 200 {
+		t.Errorf("Hessian %v, want [[802 -400] [-400 200]]", h)
+	}
+	t.Logf("%d evaluations from (-1.2, 1)", evals)
+}
