@@ -43,6 +43,22 @@ func boxLog(xi, y float64) (L, dL float64, ok bool) {
 	return L, dL, true
 }
 
+// boxLogCurv returns d2L/dxi2 at fixed y for L = log(1 + xi y)/xi, given
+// w = 1 + xi y and dL = dL/dxi from boxLog:
+//
+//	d2L/dxi2 = -((y/w)^2 + 2 dL/dxi)/xi,
+//
+// and for |xi y| < smallShape, where that cancels, its Taylor series
+// y^3 (2/3 - 3/2 u + 12/5 u^2 - 10/3 u^3), u = xi y (from
+// L = sum_k (-1)^k xi^k y^(k+1)/(k+1)). Source: elementary calculus.
+func boxLogCurv(xi, y, w, dL float64) float64 {
+	if u := xi * y; math.Abs(u) < smallShape {
+		return y * y * y * (2.0/3 + u*(-1.5+u*(2.4-u*10.0/3)))
+	}
+	yw := y / w
+	return -(yw*yw + 2*dL) / xi
+}
+
 // boxL is the L of boxLog alone (the same operations, without dL/dxi), for
 // the likelihoods evaluated without a gradient.
 func boxL(xi, y float64) (L float64, ok bool) {
@@ -103,6 +119,22 @@ func expShapeTerm(xi, s float64) (a, da float64) {
 	a = e / xi
 	da = (s*(e+1)*xi - e) / (xi * xi)
 	return a, da
+}
+
+// expShapeCurv returns d2a/dxi2 of a = (exp(xi s) - 1)/xi (expShapeTerm):
+//
+//	d2a/dxi2 = (exp(u) (u^2 - 2u + 2) - 2)/xi^3,  u = xi s,
+//
+// and, for |u| < 0.05, where that difference cancels, its Taylor series
+// s^3 (1/3 + u/4 + u^2/10 + u^3/36 + u^4/168 + u^5/960) (from
+// a = sum_k s^(k+1) xi^k/(k+1)!; truncation below 3e-12 relative).
+// Source: elementary calculus.
+func expShapeCurv(xi, s float64) float64 {
+	u := xi * s
+	if math.Abs(u) < 0.05 {
+		return s * s * s * (1.0/3 + u*(0.25+u*(0.1+u*(1.0/36+u*(1.0/168+u/960)))))
+	}
+	return (math.Exp(u)*(u*u-2*u+2) - 2) / (xi * xi * xi)
 }
 
 // ReturnLevel returns the level exceeded by an annual maximum with probability

@@ -47,18 +47,32 @@ type GPDFit struct {
 // summarised in Coles 2001, section 3.3.2), so such points are infeasible.
 const minShapeML = -1
 
-// gevNegLogLik returns -l(Loc, log Scale, Shape) for the maxima z and writes its
-// gradient into grad (if non-nil), where per observation, with y = (z-Loc)/Scale,
-// w = 1 + Shape y, L = log(w)/Shape, t = exp(-L):
+// gevNegLogLik returns -l(Loc, log Scale, Shape) for the maxima z and writes
+// its gradient into grad (if non-nil); see gevNegLogLikHess for the formulas.
+func gevNegLogLik(x, grad, z []float64) float64 {
+	return gevNegLogLikHess(x, grad, nil, z)
+}
+
+// gevNegLogLikHess returns -l(Loc, log Scale, Shape) for the maxima z, its
+// gradient into grad (if non-nil) and its Hessian into hess (3 x 3,
+// row-major; if non-nil as well), where per observation, with
+// y = (z-Loc)/Scale, w = 1 + Shape y, L = log(w)/Shape, t = exp(-L),
+// c = t - 1 - Shape, and the derivatives of L
+// D = (dL/dLoc, dL/dlogScale, dL/dShape) = (-1/(w Scale), -y/w, L'):
 //
 //	l     = -log Scale - (1 + Shape) L - t                    (Coles 2001, eq. 3.7)
 //	dl/dLoc      = -(t - 1 - Shape) / (w Scale)
 //	dl/dlogScale = -1 - y (t - 1 - Shape) / w
 //	dl/dShape    = -L + (t - 1 - Shape) dL/dShape
+//	d2l/dp dq    = -t D_p D_q + c dD_p/dq - [q = Shape] D_p - [p = Shape] D_q
 //
-// The gradient is derived here by the chain rule; boxLog supplies L and dL/dShape
-// with their smooth Shape -> 0 (Gumbel) limits. Outside the support it returns +Inf.
-func gevNegLogLik(x, grad, z []float64) float64 {
+// with dD/dq symmetric: dD_Loc/d(Loc, logScale, Shape) = (-Shape/(Scale^2 w^2),
+// 1/(Scale w^2), y/(Scale w^2)), dD_logScale/d(logScale, Shape) =
+// (y/w^2, y^2/w^2), dD_Shape/dShape = L'' (boxLogCurv).
+// The derivatives are derived here by the chain rule (dy/dLoc = -1/Scale,
+// dy/dlogScale = -y, dt = -t dL); boxLog supplies L and L' with their smooth
+// Shape -> 0 (Gumbel) limits. Outside the support it returns +Inf.
+func gevNegLogLikHess(x, grad, hess, z []float64) float64 {
 	mu, phi, xi := x[0], x[1], x[2]
 	if xi <= minShapeML || math.Abs(phi) > 700 {
 		return math.Inf(1)
@@ -77,6 +91,7 @@ func gevNegLogLik(x, grad, z []float64) float64 {
 		return -l
 	}
 	var l, gmu, gphi, gxi float64
+	var h [6]float64 // mm, mp, mx, pp, px, xx
 	for _, zi := range z {
 		y := (zi - mu) / sigma
 		L, dL, ok := boxLog(xi, y)
@@ -90,9 +105,23 @@ func gevNegLogLik(x, grad, z []float64) float64 {
 		gmu -= c / sigma
 		gphi += -1 - y*c
 		gxi += -L + (t-1-xi)*dL
+		if hess != nil {
+			cc := t - 1 - xi
+			dm, dp, dx := -1/(w*sigma), -y/w, dL
+			iw2 := 1 / (w * w)
+			h[0] += -t*dm*dm + cc*(-xi*iw2/(sigma*sigma))
+			h[1] += -t*dm*dp + cc*iw2/sigma
+			h[2] += -t*dm*dx + cc*y*iw2/sigma - dm
+			h[3] += -t*dp*dp + cc*y*iw2
+			h[4] += -t*dp*dx + cc*y*y*iw2 - dp
+			h[5] += -t*dx*dx + cc*boxLogCurv(xi, y, w, dL) - 2*dx
+		}
 	}
-	if grad != nil {
-		grad[0], grad[1], grad[2] = -gmu, -gphi, -gxi
+	grad[0], grad[1], grad[2] = -gmu, -gphi, -gxi
+	if hess != nil {
+		hess[0], hess[1], hess[2] = -h[0], -h[1], -h[2]
+		hess[3], hess[4], hess[5] = -h[1], -h[3], -h[4]
+		hess[6], hess[7], hess[8] = -h[2], -h[4], -h[5]
 	}
 	return -l
 }
@@ -152,12 +181,7 @@ func gpdNegLogLikHess(x, grad []float64, hess *[2][2]float64, y []float64) float
 		gxi += -L - (1+xi)*dL
 		if hess != nil {
 			vw := v / w
-			var d2L float64
-			if u := xi * v; math.Abs(u) < smallShape {
-				d2L = v * v * v * (2.0/3 + u*(-1.5+u*(2.4-u*10.0/3)))
-			} else {
-				d2L = -(vw*vw + 2*dL) / xi
-			}
+			d2L := boxLogCurv(xi, v, w, dL)
 			hpp += -(1 + xi) * vw / w
 			hpx += vw - (1+xi)*vw*vw
 			hxx += -2*dL - (1+xi)*d2L

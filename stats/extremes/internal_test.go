@@ -32,6 +32,25 @@ func TestGradients(t *testing.T) {
 			num := (gevNegLogLik(xp, nil, z) - gevNegLogLik(xm, nil, z)) / (2 * h)
 			near(t, "GEV gradient", g[i], num, 1e-5*(1+math.Abs(num)))
 		}
+		if xi > -0.2 {
+			// The analytic GEV Hessian against central differences of the gradient.
+			hs := make([]float64, 9)
+			gevNegLogLikHess(x, g, hs, z)
+			for i := range x {
+				h := 1e-6
+				xp := append([]float64(nil), x...)
+				xm := append([]float64(nil), x...)
+				xp[i] += h
+				xm[i] -= h
+				gp, gm := make([]float64, 3), make([]float64, 3)
+				gevNegLogLik(xp, gp, z)
+				gevNegLogLik(xm, gm, z)
+				for j := range x {
+					num := (gp[j] - gm[j]) / (2 * h)
+					near(t, "GEV Hessian", hs[i*3+j], num, 1e-5*(1+math.Abs(num)))
+				}
+			}
+		}
 		y := make([]float64, len(z))
 		for i, v := range z {
 			y[i] = v - 3.5

@@ -103,8 +103,31 @@ func (f GEVFit) ProfileGEV(T float64, z []float64, limit float64) (lo, hi float6
 		step = 0.1 * f.Scale
 	}
 	start := []float64{math.Log(f.Scale), f.Shape}
-	lo = profileEnd(inner, zt, -step, 0, nllMax, start)
-	hi = profileEnd(inner, zt, step, searchLimit(zt+math.Max(50*step, 20*f.Scale), limit, zt), nllMax, start)
+	// The ends directly from the Lagrange conditions where they hold, else
+	// by searching the profile; z_T = Loc + Scale a(Shape) (the formula above).
+	fh := func(p, g, h []float64) float64 { return gevNegLogLikHess(p, g, h, zs) }
+	lev := func(p, g, h []float64) float64 {
+		a, da := expShapeTerm(p[2], s)
+		e := math.Exp(p[1])
+		g[0], g[1], g[2] = 1, e*a, e*da
+		clear(h)
+		h[4], h[5], h[7], h[8] = e*a, e*da, e*da, e*expShapeCurv(p[2], s)
+		return p[0] + e*a
+	}
+	that := []float64{f.Loc, math.Log(f.Scale), f.Shape}
+	g0, h0 := make([]float64, 3), make([]float64, 9)
+	fh(that, g0, h0)
+	top := searchLimit(zt+math.Max(50*step, 20*f.Scale), limit, zt)
+	if z, ok := lagrangeEnd(fh, lev, that, h0, nllMax, -1); ok && z > 0 && z < zt {
+		lo = z
+	} else {
+		lo = profileEnd(inner, zt, -step, 0, nllMax, start)
+	}
+	if z, ok := lagrangeEnd(fh, lev, that, h0, nllMax, 1); ok && z > zt && z < top {
+		hi = z
+	} else {
+		hi = profileEnd(inner, zt, step, top, nllMax, start)
+	}
 	return lo, hi
 }
 
@@ -185,8 +208,38 @@ func (f GPDFit) ProfileGPD(T float64, peaks []float64, limit float64) (lo, hi fl
 	if !(step > 0) {
 		step = 0.1 * f.Scale
 	}
-	lo = profileEnd(inner, xt, -step, u, -f.LogLik, []float64{f.Shape})
-	hi = profileEnd(inner, xt, step, searchLimit(xt+math.Max(50*step, 20*f.Scale), limit, xt), -f.LogLik, []float64{f.Shape})
+	// The ends directly from the Lagrange conditions where they hold, else
+	// by searching the profile.
+	fh := func(p, g, h []float64) float64 {
+		if g == nil {
+			return gpdNegLogLik(p, nil, y)
+		}
+		var hh [2][2]float64
+		v := gpdNegLogLikHess(p, g, &hh, y)
+		h[0], h[1], h[2], h[3] = hh[0][0], hh[0][1], hh[1][0], hh[1][1]
+		return v
+	}
+	lev := func(p, g, h []float64) float64 {
+		a, da := expShapeTerm(p[1], s)
+		e := math.Exp(p[0])
+		g[0], g[1] = e*a, e*da
+		h[0], h[1], h[2], h[3] = e*a, e*da, e*da, e*expShapeCurv(p[1], s)
+		return u + e*a
+	}
+	that := []float64{math.Log(f.Scale), f.Shape}
+	g0, h0 := make([]float64, 2), make([]float64, 4)
+	fh(that, g0, h0)
+	top := searchLimit(xt+math.Max(50*step, 20*f.Scale), limit, xt)
+	if z, ok := lagrangeEnd(fh, lev, that, h0, -f.LogLik, -1); ok && z > u && z < xt {
+		lo = z
+	} else {
+		lo = profileEnd(inner, xt, -step, u, -f.LogLik, []float64{f.Shape})
+	}
+	if z, ok := lagrangeEnd(fh, lev, that, h0, -f.LogLik, 1); ok && z > xt && z < top {
+		hi = z
+	} else {
+		hi = profileEnd(inner, xt, step, top, -f.LogLik, []float64{f.Shape})
+	}
 	return lo, hi
 }
 
@@ -396,4 +449,235 @@ func minimise1D(f objective, x0, f0, gradTol, curv float64) (x, fx, h float64, o
 		x, fx, gx = xn, fn, gn
 	}
 	return x0, f0, curv, false
+}
+
+// lagrangeEnd returns one end of the 95% profile-likelihood interval of a
+// level z(theta) of a likelihood of n = len(that) parameters (2 or 3)
+// directly, as the extremum of z over the likelihood region
+// {theta : 2 [nll(theta) - nllMax] <= chi2Crit95}: the profile interval is
+// the image of that region under z (Coles 2001, section 2.6.6: z is in the
+// interval iff some theta with z(theta) = z lies in the region). The end on
+// the side sgn (+1 upper, -1 lower) solves the Lagrange conditions of
+// max (sgn z) on the region's boundary,
+//
+//	grad z(theta) = mu grad nll(theta),  nll(theta) = nllMax + chi2Crit95/2,
+//
+// by Newton's method on (theta, mu) (Nocedal and Wright 2006, section 18.1,
+// Newton's method on the first-order conditions), started from the end of
+// the quadratic model: theta = that + sgn sqrt(chi2Crit95) H^-1 grad z /
+// sqrt(grad z' H^-1 grad z), H the Hessian h0 of nll at the optimum that.
+// nll writes its gradient and Hessian (row-major, n x n) when g is non-nil;
+// level returns z with its gradient and Hessian. The answer is accepted
+// (ok) only when the conditions hold to 1e-10, mu has the sign of sgn and
+// the Lagrangian's Hessian on the boundary's tangent space is that of a
+// maximum of sgn z (second-order conditions, ibid. section 12.5); otherwise
+// (and where nll is not finite along the way) the caller searches the
+// profile itself (profileEnd). Where the profile rises monotonically on
+// that side from the level, the two give the same end.
+func lagrangeEnd(nll func(x, g, h []float64) float64, level func(x, g, h []float64) float64,
+	that, h0 []float64, nllMax, sgn float64) (float64, bool) {
+	n := len(that)
+	target := nllMax + chi2Crit95/2
+	gz, hz := make([]float64, n), make([]float64, n*n)
+	level(that, gz, hz)
+	d, ok := solveN(append([]float64(nil), h0...), append([]float64(nil), gz...), n)
+	if !ok {
+		return math.NaN(), false
+	}
+	var q float64
+	for i := range d {
+		q += gz[i] * d[i]
+	}
+	if !(q > 0) {
+		return math.NaN(), false
+	}
+	r := math.Sqrt(chi2Crit95 / q)
+	x := make([]float64, n)
+	for i := range x {
+		x[i] = that[i] + sgn*r*d[i]
+	}
+	mu := sgn / r // grad z = mu H (x - that) on the quadratic model
+	g, h := make([]float64, n), make([]float64, n*n)
+	nv := nll(x, g, h)
+	for k := 0; k < 30 && (math.IsInf(nv, 0) || math.IsNaN(nv)); k++ {
+		for i := range x {
+			x[i] = 0.5 * (x[i] + that[i])
+		}
+		nv = nll(x, g, h)
+	}
+	xn, gn, hn := make([]float64, n), make([]float64, n), make([]float64, n*n)
+	m := n + 1
+	rhs, jm := make([]float64, m), make([]float64, m*m)
+	for it := 0; it < 40; it++ {
+		if math.IsInf(nv, 0) || math.IsNaN(nv) {
+			return math.NaN(), false
+		}
+		z := level(x, gz, hz)
+		var res, scale float64
+		for i := 0; i < n; i++ {
+			rhs[i] = -(gz[i] - mu*g[i])
+			res = math.Max(res, math.Abs(rhs[i]))
+			scale = math.Max(scale, math.Abs(gz[i]))
+		}
+		rhs[n] = -(nv - target)
+		if res <= 1e-10*scale && math.Abs(rhs[n]) <= 1e-10*math.Max(1, math.Abs(target)) {
+			if !(sgn*mu > 0) || !tangentMax(hz, h, g, mu, sgn, n) {
+				return math.NaN(), false
+			}
+			return z, true
+		}
+		// J [dx dmu]' = rhs, J = [[Hz - mu H, -g], [g', 0]].
+		for i := 0; i < n; i++ {
+			for j := 0; j < n; j++ {
+				jm[i*m+j] = hz[i*n+j] - mu*h[i*n+j]
+			}
+			jm[i*m+n] = -g[i]
+			jm[n*m+i] = g[i]
+		}
+		jm[n*m+n] = 0
+		st, ok := solveN(jm, rhs, m)
+		if !ok {
+			return math.NaN(), false
+		}
+		t := 1.0
+		var nn float64
+		for bt := 0; bt < 30; bt++ {
+			for i := range xn {
+				xn[i] = x[i] + t*st[i]
+			}
+			nn = nll(xn, gn, hn)
+			if !math.IsInf(nn, 0) && !math.IsNaN(nn) {
+				break
+			}
+			t /= 2
+		}
+		x, xn = xn, x
+		g, gn = gn, g
+		h, hn = hn, h
+		mu += t * st[n]
+		nv = nn
+	}
+	return math.NaN(), false
+}
+
+// tangentMax reports whether the Lagrangian Hessian Hz - mu H (n x n,
+// row-major) is negative definite times sgn on the tangent space of the
+// constraint (the vectors orthogonal to g): its projection on an
+// orthonormal basis of that space (Gram-Schmidt) is checked by Cholesky.
+func tangentMax(hz, h, g []float64, mu, sgn float64, n int) bool {
+	var gg float64
+	for _, v := range g {
+		gg += v * v
+	}
+	if !(gg > 0) {
+		return false
+	}
+	var basis [][]float64
+	for k := 0; k < n && len(basis) < n-1; k++ {
+		v := make([]float64, n)
+		v[k] = 1
+		c := g[k] / gg
+		for i := range v {
+			v[i] -= c * g[i]
+		}
+		for _, b := range basis {
+			var p float64
+			for i := range v {
+				p += v[i] * b[i]
+			}
+			for i := range v {
+				v[i] -= p * b[i]
+			}
+		}
+		var nv float64
+		for _, e := range v {
+			nv += e * e
+		}
+		if nv < 0.1 {
+			continue
+		}
+		nv = math.Sqrt(nv)
+		for i := range v {
+			v[i] /= nv
+		}
+		basis = append(basis, v)
+	}
+	k := len(basis)
+	if k != n-1 {
+		return false
+	}
+	// P = -sgn B' (Hz - mu H) B must be positive definite.
+	p := make([]float64, k*k)
+	for a := 0; a < k; a++ {
+		for b := 0; b < k; b++ {
+			var s float64
+			for i := 0; i < n; i++ {
+				for j := 0; j < n; j++ {
+					s += basis[a][i] * (hz[i*n+j] - mu*h[i*n+j]) * basis[b][j]
+				}
+			}
+			p[a*k+b] = -sgn * s
+		}
+	}
+	for j := 0; j < k; j++ {
+		d := p[j*k+j]
+		for l := 0; l < j; l++ {
+			d -= p[j*k+l] * p[j*k+l]
+		}
+		if !(d > 0) {
+			return false
+		}
+		d = math.Sqrt(d)
+		p[j*k+j] = d
+		for i := j + 1; i < k; i++ {
+			s := p[i*k+j]
+			for l := 0; l < j; l++ {
+				s -= p[i*k+l] * p[j*k+l]
+			}
+			p[i*k+j] = s / d
+		}
+	}
+	return true
+}
+
+// solveN solves a x = b for an n x n matrix a (row-major; both are
+// overwritten) by Gaussian elimination with partial pivoting; ok = false
+// when a is singular to working precision.
+func solveN(a, b []float64, n int) ([]float64, bool) {
+	for c := 0; c < n; c++ {
+		p := c
+		for r := c + 1; r < n; r++ {
+			if math.Abs(a[r*n+c]) > math.Abs(a[p*n+c]) {
+				p = r
+			}
+		}
+		if !(math.Abs(a[p*n+c]) > 0) {
+			return nil, false
+		}
+		if p != c {
+			for k := 0; k < n; k++ {
+				a[c*n+k], a[p*n+k] = a[p*n+k], a[c*n+k]
+			}
+			b[c], b[p] = b[p], b[c]
+		}
+		for r := c + 1; r < n; r++ {
+			f := a[r*n+c] / a[c*n+c]
+			for k := c; k < n; k++ {
+				a[r*n+k] -= f * a[c*n+k]
+			}
+			b[r] -= f * b[c]
+		}
+	}
+	x := make([]float64, n)
+	for c := n - 1; c >= 0; c-- {
+		v := b[c]
+		for k := c + 1; k < n; k++ {
+			v -= a[c*n+k] * x[k]
+		}
+		x[c] = v / a[c*n+c]
+		if math.IsNaN(x[c]) || math.IsInf(x[c], 0) {
+			return nil, false
+		}
+	}
+	return x, true
 }

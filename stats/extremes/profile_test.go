@@ -130,3 +130,112 @@ func TestMinimise1D(t *testing.T) {
 		}
 	}
 }
+
+// TestGPDProfileEndsOnTheDeviance checks each end of ProfileGPD (found from
+// the Lagrange conditions, lagrangeEnd, where they hold) by the definition
+// of the interval (Coles 2001, section 2.6.6): the profile deviance there,
+// 2 [nll_p(x) - nllMax] with nll_p maximised over the shape by a
+// golden-section search independent of the code under test, equals
+// chi2_1(0.95); a point 1e-4 inside the end has a smaller deviance. Data:
+// the rainfall excesses of Coles (2001), threshold 30 mm.
+func TestGPDProfileEndsOnTheDeviance(t *testing.T) {
+	rain := readColumn(t, "rain_exceedances.csv", 0)
+	lambda := 152 / (17531.0 / 365)
+	pf, err := FitGPD(rain, 30, lambda)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var y []float64
+	for _, v := range rain {
+		if v > 30 {
+			y = append(y, v-30)
+		}
+	}
+	dev := func(x, T float64) float64 {
+		s := math.Log(lambda * T)
+		nll := func(xi float64) float64 {
+			a := (math.Exp(xi*s) - 1) / xi
+			return gpdNegLogLik([]float64{math.Log((x - 30) / a), xi}, nil, y)
+		}
+		lo, hi := -0.9, 2.0
+		r := (math.Sqrt(5) - 1) / 2
+		for k := 0; k < 200; k++ {
+			c, d := hi-r*(hi-lo), lo+r*(hi-lo)
+			if nll(c) < nll(d) {
+				hi = d
+			} else {
+				lo = c
+			}
+		}
+		return 2 * (nll(0.5*(lo+hi)) + pf.LogLik)
+	}
+	for _, T := range []float64{10, 50, 100} {
+		lv, _ := pf.GPD.ReturnLevel(T, lambda)
+		lo, hi := pf.ProfileGPD(T, rain, 0)
+		for _, e := range []struct {
+			name  string
+			x, in float64
+		}{{"lower", lo, lo + 1e-4*(lv-lo)}, {"upper", hi, hi - 1e-4*(hi-lv)}} {
+			d := dev(e.x, T)
+			if math.Abs(d-chi2Crit95) > 1e-6 {
+				t.Errorf("T=%g %s end %.8f: deviance %.9f, want %.9f", T, e.name, e.x, d, chi2Crit95)
+			}
+			if din := dev(e.in, T); !(din < d) {
+				t.Errorf("T=%g %s end %.8f: deviance inside %.9f not below %.9f", T, e.name, e.x, din, d)
+			}
+		}
+	}
+}
+
+// TestGEVProfileEndsOnTheDeviance is TestGPDProfileEndsOnTheDeviance for
+// ProfileGEV on the Port Pirie annual maxima (Coles 2001, section 3.4.1):
+// the profile deviance at each end, nll_p maximised over (log Scale, Shape)
+// by nested golden-section searches, equals chi2_1(0.95), and is smaller
+// 1e-4 inside the end.
+func TestGEVProfileEndsOnTheDeviance(t *testing.T) {
+	pp := readColumn(t, "portpirie.csv", 1)
+	gf, err := FitGEV(pp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	golden := func(f func(float64) float64, lo, hi float64) (float64, float64) {
+		r := (math.Sqrt(5) - 1) / 2
+		for k := 0; k < 80; k++ {
+			c, d := hi-r*(hi-lo), lo+r*(hi-lo)
+			if f(c) < f(d) {
+				hi = d
+			} else {
+				lo = c
+			}
+		}
+		x := 0.5 * (lo + hi)
+		return x, f(x)
+	}
+	dev := func(z, T float64) float64 {
+		s := -math.Log(-math.Log1p(-1 / T))
+		_, v := golden(func(xi float64) float64 {
+			a := (math.Exp(xi*s) - 1) / xi
+			_, v := golden(func(phi float64) float64 {
+				return gevNegLogLik([]float64{z - math.Exp(phi)*a, phi, xi}, nil, pp)
+			}, math.Log(0.05), math.Log(1))
+			return v
+		}, -0.6, 0.6)
+		return 2 * (v + gf.LogLik)
+	}
+	for _, T := range []float64{10, 100} {
+		lv, _ := gf.GEV.ReturnLevel(T)
+		lo, hi := gf.ProfileGEV(T, pp, 0)
+		for _, e := range []struct {
+			name string
+			x, in float64
+		}{{"lower", lo, lo + 1e-4*(lv-lo)}, {"upper", hi, hi - 1e-4*(hi-lv)}} {
+			d := dev(e.x, T)
+			if math.Abs(d-chi2Crit95) > 1e-6 {
+				t.Errorf("T=%g %s end %.8f: deviance %.9f, want %.9f", T, e.name, e.x, d, chi2Crit95)
+			}
+			if din := dev(e.in, T); !(din < d) {
+				t.Errorf("T=%g %s end %.8f: deviance inside %.9f not below %.9f", T, e.name, e.x, din, d)
+			}
+		}
+	}
+}
