@@ -68,7 +68,7 @@ func gevNegLogLik(x, grad, z []float64) float64 {
 //
 // with dD/dq symmetric: dD_Loc/d(Loc, logScale, Shape) = (-Shape/(Scale^2 w^2),
 // 1/(Scale w^2), y/(Scale w^2)), dD_logScale/d(logScale, Shape) =
-// (y/w^2, y^2/w^2), dD_Shape/dShape = L'' (boxLogCurv).
+// (y/w^2, y^2/w^2), dD_Shape/dShape = L” (boxLogCurv).
 // The derivatives are derived here by the chain rule (dy/dLoc = -1/Scale,
 // dy/dlogScale = -y, dt = -t dL); boxLog supplies L and L' with their smooth
 // Shape -> 0 (Gumbel) limits. Outside the support it returns +Inf.

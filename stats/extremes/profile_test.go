@@ -226,7 +226,7 @@ func TestGEVProfileEndsOnTheDeviance(t *testing.T) {
 		lv, _ := gf.GEV.ReturnLevel(T)
 		lo, hi := gf.ProfileGEV(T, pp, 0)
 		for _, e := range []struct {
-			name string
+			name  string
 			x, in float64
 		}{{"lower", lo, lo + 1e-4*(lv-lo)}, {"upper", hi, hi - 1e-4*(hi-lv)}} {
 			d := dev(e.x, T)
