@@ -104,17 +104,28 @@ func (f GEVFit) ProfileGEV(T float64, z []float64, limit float64) (lo, hi float6
 	}
 	start := []float64{math.Log(f.Scale), f.Shape}
 	// The ends directly from the Lagrange conditions where they hold, else
-	// by searching the profile; z_T = Loc + Scale a(Shape) (the formula above).
-	fh := func(p, g, h []float64) float64 { return gevNegLogLikHess(p, g, h, zs) }
-	lev := func(p, g, h []float64) float64 {
+	// by searching the profile. The likelihood is taken in (z_T, log Scale,
+	// Shape), Loc = z_T - Scale a(Shape) (the formula above), where the
+	// level is the first coordinate.
+	fh := func(p, g, h []float64) float64 {
 		a, da := expShapeTerm(p[2], s)
-		e := math.Exp(p[1])
-		g[0], g[1], g[2] = 1, e*a, e*da
-		clear(h)
-		h[4], h[5], h[7], h[8] = e*a, e*da, e*da, e*expShapeCurv(p[2], s)
-		return p[0] + e*a
+		sig := math.Exp(p[1])
+		q := []float64{p[0] - sig*a, p[1], p[2]}
+		if g == nil {
+			return gevNegLogLik(q, nil, zs)
+		}
+		var gq [3]float64
+		var hq [9]float64
+		v := gevNegLogLikHess(q, gq[:], hq[:], zs)
+		reparamLevel(gq, hq, sig*a, sig*da, sig*expShapeCurv(p[2], s), g, h)
+		return v
 	}
-	that := []float64{f.Loc, math.Log(f.Scale), f.Shape}
+	lev := func(p, g, h []float64) float64 {
+		g[0], g[1], g[2] = 1, 0, 0
+		clear(h)
+		return p[0]
+	}
+	that := []float64{zt, math.Log(f.Scale), f.Shape}
 	g0, h0 := make([]float64, 3), make([]float64, 9)
 	fh(that, g0, h0)
 	top := searchLimit(zt+math.Max(50*step, 20*f.Scale), limit, zt)
@@ -451,6 +462,44 @@ func minimise1D(f objective, x0, f0, gradTol, curv float64) (x, fx, h float64, o
 	return x0, f0, curv, false
 }
 
+// reparamLevel maps the gradient gq and Hessian hq (3 x 3, row-major) of a
+// function of (Loc, log Scale, Shape) to the coordinates (z, log Scale,
+// Shape) with Loc = z - b, b = Scale a(Shape), given b, its derivatives
+// db = d b/dShape... as b1 = Scale a, b2 = Scale a', b3 = Scale a” (so that
+// dLoc/d(z, log Scale, Shape) = (1, -b1, -b2)), by the chain rule:
+//
+//	g = J' gq,  H = J' hq J + gq_Loc d2Loc,  J = [[1, -b1, -b2], [0, 1, 0], [0, 0, 1]]',
+//	d2Loc/dlogScale2 = -b1, d2Loc/dlogScale dShape = -b2, d2Loc/dShape2 = -b3.
+//
+// Source: elementary calculus.
+func reparamLevel(gq [3]float64, hq [9]float64, b1, b2, b3 float64, g, h []float64) {
+	d := [3]float64{1, -b1, -b2} // dLoc/dp
+	g[0] = gq[0]
+	g[1] = gq[1] + d[1]*gq[0]
+	g[2] = gq[2] + d[2]*gq[0]
+	// J[i][k] = dq_k/dp_i: row i of p; q = (Loc, logScale, Shape).
+	var jm [3][3]float64
+	for i := 0; i < 3; i++ {
+		jm[i][0] = d[i]
+	}
+	jm[1][1], jm[2][2] = 1, 1
+	for i := 0; i < 3; i++ {
+		for j := 0; j < 3; j++ {
+			var v float64
+			for k := 0; k < 3; k++ {
+				for l := 0; l < 3; l++ {
+					v += jm[i][k] * hq[k*3+l] * jm[j][l]
+				}
+			}
+			h[i*3+j] = v
+		}
+	}
+	h[4] -= gq[0] * b1
+	h[5] -= gq[0] * b2
+	h[7] -= gq[0] * b2
+	h[8] -= gq[0] * b3
+}
+
 // lagrangeEnd returns one end of the 95% profile-likelihood interval of a
 // level z(theta) of a likelihood of n = len(that) parameters (2 or 3)
 // directly, as the extremum of z over the likelihood region
@@ -466,6 +515,10 @@ func minimise1D(f objective, x0, f0, gradTol, curv float64) (x, fx, h float64, o
 // Newton's method on the first-order conditions), started from the end of
 // the quadratic model: theta = that + sgn sqrt(chi2Crit95) H^-1 grad z /
 // sqrt(grad z' H^-1 grad z), H the Hessian h0 of nll at the optimum that.
+// A step moves no coordinate further than the start lay from the optimum
+// (at least 5 % of 1 + |that|) and is halved where nll is not finite; the
+// search gives up after 25 steps, or when mu still has the wrong sign after
+// 5 (it is headed for the other end).
 // nll writes its gradient and Hessian (row-major, n x n) when g is non-nil;
 // level returns z with its gradient and Hessian. The answer is accepted
 // (ok) only when the conditions hold to 1e-10, mu has the sign of sgn and
@@ -497,6 +550,7 @@ func lagrangeEnd(nll func(x, g, h []float64) float64, level func(x, g, h []float
 		x[i] = that[i] + sgn*r*d[i]
 	}
 	mu := sgn / r // grad z = mu H (x - that) on the quadratic model
+	x0 := append([]float64(nil), x...)
 	g, h := make([]float64, n), make([]float64, n*n)
 	nv := nll(x, g, h)
 	for k := 0; k < 30 && (math.IsInf(nv, 0) || math.IsNaN(nv)); k++ {
@@ -511,6 +565,9 @@ func lagrangeEnd(nll func(x, g, h []float64) float64, level func(x, g, h []float
 	for it := 0; it < 40; it++ {
 		if math.IsInf(nv, 0) || math.IsNaN(nv) {
 			return math.NaN(), false
+		}
+		if it >= 5 && !(sgn*mu > 0) {
+			return math.NaN(), false // headed for the other end
 		}
 		z := level(x, gz, hz)
 		var res, scale float64
@@ -539,7 +596,14 @@ func lagrangeEnd(nll func(x, g, h []float64) float64, level func(x, g, h []float
 		if !ok {
 			return math.NaN(), false
 		}
+		// No coordinate moves further in one step than the start lay from
+		// the optimum (a step bound; the first-order model is poor far out).
 		t := 1.0
+		for i := 0; i < n; i++ {
+			if lim := math.Max(math.Abs(x0[i]-that[i]), 0.05*(1+math.Abs(that[i]))); math.Abs(st[i])*t > lim {
+				t = lim / math.Abs(st[i])
+			}
+		}
 		var nn float64
 		for bt := 0; bt < 30; bt++ {
 			for i := range xn {
