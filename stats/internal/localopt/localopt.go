@@ -428,9 +428,10 @@ func QuasiNewton2(f func(x, grad []float64) float64, x0 []float64, f0, gradTol f
 // non-nil, writes the gradient and the Hessian. It is for small smooth fits
 // whose Hessian costs little beside the value (one pass over the data gives
 // all three), where it needs fewer passes than BFGS. ok = false when it does
-// not converge within 100 steps or meets a value it cannot back away from
-// (the caller then falls back to BFGS); it returns the last point, f, the
-// gradient and the Hessian there in either case.
+// not converge within 30 steps (where the likelihood has no interior
+// maximum, as for a few equal-ish excesses) or meets a value it cannot back
+// away from (the caller then falls back to BFGS); it returns the last
+// point, f, the gradient and the Hessian there in either case.
 func Newton2(f func(x, grad []float64, hess *[2][2]float64) float64, x0 []float64, gradTol float64) (x []float64, fx float64, g [2]float64, h [2][2]float64, ok bool) {
 	var gn [2]float64
 	var hn [2][2]float64
@@ -441,7 +442,7 @@ func Newton2(f func(x, grad []float64, hess *[2][2]float64) float64, x0 []float6
 		return x, fx, g, h, false
 	}
 	xn := make([]float64, 2)
-	for k := 0; k < 100; k++ {
+	for k := 0; k < 30; k++ {
 		if math.Max(math.Abs(g[0]), math.Abs(g[1])) < gradTol {
 			return x, fx, g, h, true
 		}
