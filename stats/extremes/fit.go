@@ -68,7 +68,7 @@ func gevNegLogLik(x, grad, z []float64) float64 {
 //
 // with dD/dq symmetric: dD_Loc/d(Loc, logScale, Shape) = (-Shape/(Scale^2 w^2),
 // 1/(Scale w^2), y/(Scale w^2)), dD_logScale/d(logScale, Shape) =
-// (y/w^2, y^2/w^2), dD_Shape/dShape = L” (boxLogCurv).
+// (y/w^2, y^2/w^2), dD_Shape/dShape = d2L/dShape2 (boxLogCurv).
 // The derivatives are derived here by the chain rule (dy/dLoc = -1/Scale,
 // dy/dlogScale = -y, dt = -t dL); boxLog supplies L and L' with their smooth
 // Shape -> 0 (Gumbel) limits. Outside the support it returns +Inf.
@@ -135,20 +135,17 @@ func gpdNegLogLik(x, grad, y []float64) float64 {
 // gpdNegLogLikHess returns -l(log Scale, Shape) for the excesses y, its
 // gradient (if grad is non-nil) and its Hessian (if hess is non-nil as
 // well), where per excess, with v = y/Scale, w = 1 + Shape v,
-// L = log(w)/Shape, L' = dL/dShape = (v/w - L)/Shape and
-// L” = d2L/dShape2 = -(v^2/w^2 + 2 L')/Shape:
+// L = log(w)/Shape, L1 = dL/dShape and L2 = d2L/dShape2:
 //
 //	l = -log Scale - (1 + Shape) L                              (Coles 2001, eq. 4.10)
 //	dl/dlogScale = -1 + (1 + Shape) v / w
-//	dl/dShape    = -L - (1 + Shape) L'
+//	dl/dShape    = -L - (1 + Shape) L1
 //	d2l/dlogScale2       = -(1 + Shape) v / w^2
 //	d2l/dlogScale dShape = v / w - (1 + Shape) v^2 / w^2
-//	d2l/dShape2          = -2 L' - (1 + Shape) L''
+//	d2l/dShape2          = -2 L1 - (1 + Shape) L2
 //
 // The derivatives are derived here by the chain rule (dv/dlogScale = -v);
-// boxLog supplies L and L', and for |Shape v| < smallShape L” is its
-// series v^3 (2/3 - 3/2 u + 12/5 u^2 - 10/3 u^3), u = Shape v (from
-// L = sum_k (-1)^k Shape^k v^(k+1)/(k+1)). Outside the support it returns +Inf.
+// boxLog supplies L and L1, boxLogCurv L2. Outside the support it returns +Inf.
 func gpdNegLogLikHess(x, grad []float64, hess *[2][2]float64, y []float64) float64 {
 	phi, xi := x[0], x[1]
 	if xi <= minShapeML || math.Abs(phi) > 700 {

@@ -464,9 +464,9 @@ func minimise1D(f objective, x0, f0, gradTol, curv float64) (x, fx, h float64, o
 
 // reparamLevel maps the gradient gq and Hessian hq (3 x 3, row-major) of a
 // function of (Loc, log Scale, Shape) to the coordinates (z, log Scale,
-// Shape) with Loc = z - b, b = Scale a(Shape), given b, its derivatives
-// db = d b/dShape... as b1 = Scale a, b2 = Scale a', b3 = Scale a” (so that
-// dLoc/d(z, log Scale, Shape) = (1, -b1, -b2)), by the chain rule:
+// Shape) with Loc = z - Scale a(Shape), given b1 = Scale a, b2 = Scale da/dShape
+// and b3 = Scale d2a/dShape2 (so that dLoc/d(z, log Scale, Shape) =
+// (1, -b1, -b2)), by the chain rule:
 //
 //	g = J' gq,  H = J' hq J + gq_Loc d2Loc,  J = [[1, -b1, -b2], [0, 1, 0], [0, 0, 1]]',
 //	d2Loc/dlogScale2 = -b1, d2Loc/dlogScale dShape = -b2, d2Loc/dShape2 = -b3.
