@@ -443,7 +443,7 @@ func FitGPD(excessesOrPeaks []float64, threshold float64, peaksPerYear float64) 
 		xo, nll, conv, g, h = x1, v1, true, g1, h1
 	} else {
 		xo, nll, conv, oerr = minimise(f, x0, tol)
-		nll = fh(xo, g[:], &h)
+		fh(xo, g[:], &h) // the gradient and Hessian there, for the information
 	}
 	fit := GPDFit{GPD: GPD{Threshold: threshold, Scale: math.Exp(xo[0]), Shape: xo[1]}, Start: start,
 		PeaksPerYear: peaksPerYear, LogLik: -nll, Converged: conv && oerr == nil && !math.IsInf(nll, 0), N: len(y), OptErr: oerr}
