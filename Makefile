@@ -109,12 +109,17 @@ BENCH_CACHE ?= $(HOME)/.cache/swellgrid-bench
 BENCH_BEFORE ?= a042283
 BENCH_PARTS ?= full,half
 # (^BenchmarkAdd covers BenchmarkAdd, AddTwoDevices and AddAccess: the feed with repair-access rules, issue 32)
-BENCH_MICRO ?= FeedBulk|FeedSpectral|FinishBulk|FitStage|GroupVelocity|BulkDepthPower|FitGEV|FitGPD|^BenchmarkAdd|FitJoint|ProfileIntervals|LongTables|WriteGeoParquet
+BENCH_MICRO ?= FeedBulk|FeedSpectral|FinishBulk|FitStage|GroupVelocity|BulkDepthPower|FitGEV|FitGPD|^BenchmarkAdd|FitJoint|ProfileIntervals|LongTables|WriteGeoParquet|ReadStepChunked
 BENCHSTAT_VERSION := v0.0.0-20260908200009-22c9c6c9d4da
 BENCH_DRIVER := internal/bench cmd/sgbench
 BENCH_BEFORE_IMPORTS ?=
-BENCH_MICRO_PKGS ?= ./pipelines/engine/ ./stats/... ./export/
-BENCH_MICRO_PKGS_BEFORE ?= ./pipelines/engine/ ./stats/... ./export/
+# (ReadStepChunked: the reader on files chunked one step per chunk against the
+# read floor, issue 29; it is in the driver, copied into the before tree too)
+# ReadStepChunked reads the first 3 months of the bulk benchmark rechunked
+# one step per chunk (testdata/stepchunk/rechunk.py, made once here).
+BENCH_STEPCHUNK ?= $(BENCH_CACHE)/stepchunk-bulk-3m
+BENCH_MICRO_PKGS ?= ./pipelines/engine/ ./stats/... ./export/ ./internal/bench/
+BENCH_MICRO_PKGS_BEFORE ?= ./pipelines/engine/ ./stats/... ./export/ ./internal/bench/
 # screening geometry (issue 35): one polygon layer of 10^5 and 10^6 vertices
 # against a 200 x 200 grid (validity, covers, distances); target < 5 s at 10^6
 BENCH_GEOMETRY ?= ScreenLayer
@@ -133,10 +138,13 @@ bench: deps
 	cd $(BENCH_OUT)/before-src && $(GO) build -o $(CURDIR)/bin/sgbench-before ./cmd/sgbench \
 	  && $(GO) build -o $(CURDIR)/bin/swellgrid-before ./cmd/swellgrid
 	./bin/sgbench -cache $(BENCH_CACHE) -before bin/sgbench-before -parts $(BENCH_PARTS) -md $(BENCH_OUT)/pipeline.md
-	cd $(BENCH_OUT)/before-src && $(GO) test -run '^$$' -bench '$(BENCH_MICRO)' -benchmem -count 5 -benchtime 0.2s \
+	test -f $(BENCH_STEPCHUNK)/COMPLETE || { rm -rf $(BENCH_STEPCHUNK) && mkdir -p $(BENCH_STEPCHUNK) \
+	  && /usr/bin/python3 testdata/stepchunk/rechunk.py $$(ls $(BENCH_CACHE)/sgbench_bulk-*/sgbench_bulk_2001-0[123].nc) $(BENCH_STEPCHUNK) \
+	  && touch $(BENCH_STEPCHUNK)/COMPLETE; }
+	cd $(BENCH_OUT)/before-src && SWELLGRID_STEPCHUNK='$(BENCH_STEPCHUNK)/*.nc' $(GO) test -run '^$$' -bench '$(BENCH_MICRO)' -benchmem -count 5 -benchtime 0.2s \
 	  $(BENCH_MICRO_PKGS_BEFORE) > $(CURDIR)/$(BENCH_OUT)/micro-before.txt
 	sed -i 's#^pkg: swellgrid/pipelines$$#pkg: swellgrid/pipelines/engine#' $(BENCH_OUT)/micro-before.txt
-	$(GO) test -run '^$$' -bench '$(BENCH_MICRO)' -benchmem -count 5 -benchtime 0.2s $(BENCH_MICRO_PKGS) > $(BENCH_OUT)/micro.txt
+	SWELLGRID_STEPCHUNK='$(BENCH_STEPCHUNK)/*.nc' $(GO) test -run '^$$' -bench '$(BENCH_MICRO)' -benchmem -count 5 -benchtime 0.2s $(BENCH_MICRO_PKGS) > $(BENCH_OUT)/micro.txt
 	$(GO) install golang.org/x/perf/cmd/benchstat@$(BENCHSTAT_VERSION)
 	"$$($(GO) env GOPATH)/bin/benchstat" before=$(BENCH_OUT)/micro-before.txt after=$(BENCH_OUT)/micro.txt | tee $(BENCH_OUT)/micro-benchstat.txt
 	./internal/bench/compare_outputs.sh bin/swellgrid-before $(BIN) bin/sgdiff > $(BENCH_OUT)/tables.txt; cat $(BENCH_OUT)/tables.txt
