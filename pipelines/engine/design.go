@@ -114,14 +114,43 @@ func (e *engine) designFor(r *cellResult) *cellDesign {
 	years := r.ext.RecordYears
 	for _, T := range e.spec.Design.ReturnPeriodsY {
 		big := m.Largest(T, dur)
+		c := m.Contour(T, dur, e.spec.Design.ContourPoints)
+		if g := e.spec.Physics.G; !seaStates(c, g) || !seaStates([]design.Point{big}, g) {
+			return &cellDesign{why: "design_implausible"}
+		}
 		d.periods = append(d.periods, T)
 		d.largest = append(d.largest, big)
-		d.contours = append(d.contours, m.Contour(T, dur, e.spec.Design.ContourPoints))
+		d.contours = append(d.contours, c)
 		if T >= years && big.Hm0 < r.sum.Hm0MaxM {
 			d.belowMax = true
 		}
 	}
 	return d
+}
+
+// seaStates reports whether every point is a sea state: Hm0 positive and
+// below maxSeaHm0M, Te below climate.MaxSeaPeriodS, and the deep-water
+// steepness no more than the limit of a breaking wave (g: the run's
+// physics.g),
+//
+//	2 pi Hm0 / (g Te^2) <= 1/7
+//
+// (Michell 1893's limiting steepness H/L = 1/7, with the deep-water length
+// L = g T^2 / (2 pi); common practice, quoted from memory, and loose for a
+// sea state, whose Hm0 over the length of its energy period stays far
+// below it). A contour beyond them (the conditional mean of ln Te, A0 + A1
+// Hm0^A2, extrapolated far past the record's rows with a large A2) is no
+// design sea state: the cell's design is withheld and flagged
+// design_implausible rather than published.
+func seaStates(ps []design.Point, g float64) bool {
+	const limit = 1.0 / 7
+	for _, p := range ps {
+		if !(p.Hm0 > 0 && p.Hm0 < maxSeaHm0M && p.Te > 0 && p.Te < climate.MaxSeaPeriodS) ||
+			2*math.Pi*p.Hm0/(g*p.Te*p.Te) > limit {
+			return false
+		}
+	}
+	return true
 }
 
 // designFlags lists the design flags of a cell.

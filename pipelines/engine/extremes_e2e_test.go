@@ -296,3 +296,48 @@ func TestExtremesRowFlags(t *testing.T) {
 	}
 	t.Logf("%d rows, %d depth_limited, %d period_outside_model", len(m["cell_id"]), limited, outside)
 }
+
+// Every published design point is a sea state: on the 24-cell descending
+// lon/lat fixture (a short record, where the conditional mean of ln Te,
+// A0 + A1 Hm0^A2, fitted with a large A2, explodes beyond the record's
+// rows: Te of 1e18 s on the 100-year contour before the guard), each point
+// of design.parquet has Te below 64 s (the bound of any period,
+// climate.ScreenStep) and a deep-water steepness 2 pi Hm0 / (g Te^2) of at
+// most 1/7 (Michell 1893's limiting steepness, common practice, quoted from
+// memory); the cells whose contour leaves that range publish no design rows
+// and carry design_implausible, and others keep their contours.
+func TestDesignContoursAreSeaStates(t *testing.T) {
+	out := t.TempDir()
+	mustRun(t, testSpec(t, "testdata/regular_desc_lonlat.nc", out))
+	m, err := parquetread.Columns(filepath.Join(out, "design.parquet"), "cell_id", "hm0_m", "te_s")
+	if err != nil {
+		t.Fatal(err)
+	}
+	withDesign := map[int64]bool{}
+	for i := range m["cell_id"] {
+		h, te := runcheck.Num(m["hm0_m"][i]), runcheck.Num(m["te_s"][i])
+		if !(te < 64) || 2*math.Pi*h/(9.81*te*te) > 1.0/7 {
+			t.Fatalf("design.parquet row %d: Hm0 %g m, Te %g s is no sea state", i, h, te)
+		}
+		withDesign[int64(runcheck.Num(m["cell_id"][i]))] = true
+	}
+	cp := filepath.Join(out, "cells.parquet")
+	cm, err := parquetread.Columns(cp, "cell_id")
+	if err != nil {
+		t.Fatal(err)
+	}
+	flags := runcheck.ReadStrings(t, cp, "qc_flags")
+	flagged := 0
+	for i, f := range flags {
+		id := int64(runcheck.Num(cm["cell_id"][i]))
+		if runcheck.HasFlag(f, "design_implausible") {
+			flagged++
+			if withDesign[id] {
+				t.Errorf("cell %d: flagged design_implausible but has design rows", id)
+			}
+		}
+	}
+	if flagged == 0 || len(withDesign) == 0 {
+		t.Errorf("%d cells flagged design_implausible, %d with design rows: the fixture should have both", flagged, len(withDesign))
+	}
+}

@@ -29,6 +29,10 @@ const (
 	noTim = math.MinInt64
 )
 
+// MaxSeaPeriodS is the bound of any wave period, s: a Te or Tp at or above it
+// is not a sea state (ScreenStep leaves such a value out as unusable).
+const MaxSeaPeriodS = maxT
+
 // With these bounds a weight x value product is below 2^50 and the unsigned
 // 64-bit sums of them cannot overflow for records shorter than 2^34 minutes
 // (32 000 years); squares go to 128-bit sums.
