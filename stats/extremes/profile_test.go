@@ -153,36 +153,51 @@ func TestGPDProfileEndsOnTheDeviance(t *testing.T) {
 	}
 	dev := func(x, T float64) float64 {
 		s := math.Log(lambda * T)
-		nll := func(xi float64) float64 {
+		_, v := goldenMin(func(xi float64) float64 {
 			a := (math.Exp(xi*s) - 1) / xi
 			return gpdNegLogLik([]float64{math.Log((x - 30) / a), xi}, nil, y)
-		}
-		lo, hi := -0.9, 2.0
-		r := (math.Sqrt(5) - 1) / 2
-		for k := 0; k < 200; k++ {
-			c, d := hi-r*(hi-lo), lo+r*(hi-lo)
-			if nll(c) < nll(d) {
-				hi = d
-			} else {
-				lo = c
-			}
-		}
-		return 2 * (nll(0.5*(lo+hi)) + pf.LogLik)
+		}, -0.9, 2.0, 200)
+		return 2 * (v + pf.LogLik)
 	}
 	for _, T := range []float64{10, 50, 100} {
 		lv, _ := pf.GPD.ReturnLevel(T, lambda)
 		lo, hi := pf.ProfileGPD(T, rain, 0)
-		for _, e := range []struct {
-			name  string
-			x, in float64
-		}{{"lower", lo, lo + 1e-4*(lv-lo)}, {"upper", hi, hi - 1e-4*(hi-lv)}} {
-			d := dev(e.x, T)
-			if math.Abs(d-chi2Crit95) > 1e-6 {
-				t.Errorf("T=%g %s end %.8f: deviance %.9f, want %.9f", T, e.name, e.x, d, chi2Crit95)
-			}
-			if din := dev(e.in, T); !(din < d) {
-				t.Errorf("T=%g %s end %.8f: deviance inside %.9f not below %.9f", T, e.name, e.x, din, d)
-			}
+		checkEndsOnDeviance(t, T, lv, lo, hi, dev)
+	}
+}
+
+// goldenMin minimises f over [lo, hi] by iters golden-section steps
+// (Kiefer 1953), independent of the code under test, and returns the
+// midpoint of the last bracket and f there.
+func goldenMin(f func(float64) float64, lo, hi float64, iters int) (float64, float64) {
+	r := (math.Sqrt(5) - 1) / 2
+	for k := 0; k < iters; k++ {
+		c, d := hi-r*(hi-lo), lo+r*(hi-lo)
+		if f(c) < f(d) {
+			hi = d
+		} else {
+			lo = c
+		}
+	}
+	x := 0.5 * (lo + hi)
+	return x, f(x)
+}
+
+// checkEndsOnDeviance checks the ends lo, hi of the interval of the level
+// lv for period T by the interval's definition: the profile deviance dev
+// equals chi2_1(0.95) at each end, to 1e-6, and is smaller 1e-4 inside it.
+func checkEndsOnDeviance(t *testing.T, T, lv, lo, hi float64, dev func(x, T float64) float64) {
+	t.Helper()
+	for _, e := range []struct {
+		name  string
+		x, in float64
+	}{{"lower", lo, lo + 1e-4*(lv-lo)}, {"upper", hi, hi - 1e-4*(hi-lv)}} {
+		d := dev(e.x, T)
+		if math.Abs(d-chi2Crit95) > 1e-6 {
+			t.Errorf("T=%g %s end %.8f: deviance %.9f, want %.9f", T, e.name, e.x, d, chi2Crit95)
+		}
+		if din := dev(e.in, T); !(din < d) {
+			t.Errorf("T=%g %s end %.8f: deviance inside %.9f not below %.9f", T, e.name, e.x, din, d)
 		}
 	}
 }
@@ -198,19 +213,7 @@ func TestGEVProfileEndsOnTheDeviance(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	golden := func(f func(float64) float64, lo, hi float64) (float64, float64) {
-		r := (math.Sqrt(5) - 1) / 2
-		for k := 0; k < 80; k++ {
-			c, d := hi-r*(hi-lo), lo+r*(hi-lo)
-			if f(c) < f(d) {
-				hi = d
-			} else {
-				lo = c
-			}
-		}
-		x := 0.5 * (lo + hi)
-		return x, f(x)
-	}
+	golden := func(f func(float64) float64, lo, hi float64) (float64, float64) { return goldenMin(f, lo, hi, 80) }
 	dev := func(z, T float64) float64 {
 		s := -math.Log(-math.Log1p(-1 / T))
 		_, v := golden(func(xi float64) float64 {
@@ -225,17 +228,6 @@ func TestGEVProfileEndsOnTheDeviance(t *testing.T) {
 	for _, T := range []float64{10, 100} {
 		lv, _ := gf.GEV.ReturnLevel(T)
 		lo, hi := gf.ProfileGEV(T, pp, 0)
-		for _, e := range []struct {
-			name  string
-			x, in float64
-		}{{"lower", lo, lo + 1e-4*(lv-lo)}, {"upper", hi, hi - 1e-4*(hi-lv)}} {
-			d := dev(e.x, T)
-			if math.Abs(d-chi2Crit95) > 1e-6 {
-				t.Errorf("T=%g %s end %.8f: deviance %.9f, want %.9f", T, e.name, e.x, d, chi2Crit95)
-			}
-			if din := dev(e.in, T); !(din < d) {
-				t.Errorf("T=%g %s end %.8f: deviance inside %.9f not below %.9f", T, e.name, e.x, din, d)
-			}
-		}
+		checkEndsOnDeviance(t, T, lv, lo, hi, dev)
 	}
 }
