@@ -159,14 +159,7 @@ func planSlurm(m slurmModel, mem int64, shards int) (*SlurmPlan, error) {
 		p.CellsPerPass = passCells(p.BudgetBytes)
 	}
 	if free && m.chunkRows > 1 {
-		// shard boundaries on the chunk tiles, where a few more shards
-		// (each smaller, so it still fits) put them there
-		for n := p.Shards; n <= min(m.blocks.n, 2*p.Shards); n++ {
-			if readAmplification(m, n) == 1 {
-				p.Shards = n
-				break
-			}
-		}
+		p.Shards = alignedShards(m, p.Shards)
 	}
 	p.ChunkRows, p.ChunkVar, p.ChunkShape = m.chunkRows, m.chunkVar, m.chunkShape
 	p.ReadAmplification = readAmplification(m, p.Shards)
@@ -215,11 +208,7 @@ func readAmplification(m slurmModel, n int) float64 {
 // a file chunked by time steps unchanged when given the rows' dimension
 // alone.
 func rechunkSpec(m slurmModel, n int) string {
-	g := m.ny
-	for i := 1; i < n; i++ {
-		c0, _ := m.blocks.shard(i+1, n)
-		g = gcd(g, c0/m.nx)
-	}
+	g := boundaryGCD(m, n)
 	parts := strings.Split(m.chunkShape, ",")
 	for k, p := range parts {
 		dim, size, _ := strings.Cut(p, "/")
@@ -231,6 +220,43 @@ func rechunkSpec(m slurmModel, n int) string {
 		}
 	}
 	return strings.Join(parts, ",")
+}
+
+// alignedShards is the shard count a plan that counts its shards takes,
+// from need (the fewest that fit) up to 2 need (each shard smaller, so it
+// still fits): the first whose boundaries all fall on the inputs' chunk
+// tiles (read amplification 1); where none does, so that the files must be
+// rechunked, the one whose boundaries share the largest divisor (the
+// smallest such count), because rechunkSpec chunks the rows by that
+// divisor: on a 50-row grid 4 shards (boundaries 12, 25, 37) would ask for
+// chunks of one row, 5 shards (10, 20, 30, 40) for chunks of 10 rows, and
+// tiny chunks slow every later read of the files.
+func alignedShards(m slurmModel, need int) int {
+	hi := min(m.blocks.n, 2*need)
+	for n := need; n <= hi; n++ {
+		if readAmplification(m, n) == 1 {
+			return n
+		}
+	}
+	best, bestG := need, boundaryGCD(m, need)
+	for n := need + 1; n <= hi; n++ {
+		if g := boundaryGCD(m, n); g > bestG {
+			best, bestG = n, g
+		}
+	}
+	return best
+}
+
+// boundaryGCD is the greatest common divisor of the grid's rows and the
+// first row of every shard of n: the longest chunk along the rows whose
+// tiles every shard boundary respects.
+func boundaryGCD(m slurmModel, n int) int {
+	g := m.ny
+	for i := 1; i < n; i++ {
+		c0, _ := m.blocks.shard(i+1, n)
+		g = gcd(g, c0/m.nx)
+	}
+	return g
 }
 
 func gcd(a, b int) int {

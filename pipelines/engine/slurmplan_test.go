@@ -146,3 +146,34 @@ func TestSlurmPlanRechunkFitsShortestFile(t *testing.T) {
 		t.Errorf("note %q, amplification %.2f; want a note containing %q, amplification 4", p.ChunkNote, p.ReadAmplification, want)
 	}
 }
+
+// A plan that counts its shards and must advise rechunking takes, from the
+// fewest that fit up to twice as many, the count whose boundaries share the
+// largest divisor, so that the advised chunks are not tiny: on a 50 x 50 grid
+// of one-row blocks whose chunks span the grid, 4 shards start at rows 12,
+// 25, 37 (divisor 1: chunks of one row), 5 at 10, 20, 30, 40 (divisor 10),
+// and 6 to 8 again share only 1 (counted by hand). Where a count puts every
+// boundary on the existing tiles (chunks of 25 rows: 2 shards, at 25), that
+// count is taken.
+func TestSlurmPlanAdvisesWholeChunks(t *testing.T) {
+	m := slurmModel{cells: 2500, nx: 50, ny: 50, structured: true, blocks: blocksFor(50, 50),
+		chunkRows: 50, chunkDim: "lat", chunkShape: "time/248,lat/50,lon/50"}
+	if n := alignedShards(m, 4); n != 5 {
+		t.Fatalf("chunks spanning the grid, 4 shards needed: %d taken, want 5", n)
+	}
+	if got, want := rechunkSpec(m, 5), "time/248,lat/10,lon/50"; got != want {
+		t.Errorf("advice for 5 shards %q, want %q", got, want)
+	}
+	if got, want := rechunkSpec(m, 4), "time/248,lat/1,lon/50"; got != want {
+		t.Errorf("advice for 4 shards %q, want %q", got, want)
+	}
+	m.chunkRows, m.chunkShape = 25, "time/248,lat/25,lon/50"
+	if n := alignedShards(m, 2); n != 2 || readAmplification(m, 2) != 1 {
+		t.Errorf("chunks of 25 rows, 2 shards needed: %d taken (amplification %.2f), want 2 (1.00)", n, readAmplification(m, 2))
+	}
+	// 3 to 6 shards all cut the 25-row tiles (3 at 16, 4 at 12, 5 at 10,
+	// 6 at 8): 5 shares the largest divisor, 10
+	if n := alignedShards(m, 3); n != 5 || rechunkSpec(m, n) != "time/248,lat/10,lon/50" {
+		t.Errorf("chunks of 25 rows, 3 shards needed: %d taken, advice %q; want 5, lat/10", n, rechunkSpec(m, n))
+	}
+}
