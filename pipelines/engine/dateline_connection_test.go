@@ -10,7 +10,6 @@ import (
 	"path/filepath"
 	"testing"
 
-	"swellgrid/export"
 	"swellgrid/internal/parquetread"
 	"swellgrid/internal/testtool"
 	"swellgrid/pipelines/screening"
@@ -79,20 +78,7 @@ func TestConnectionAcrossDateLine(t *testing.T) {
 		cf = append(cf, c.AEP/(0.5*8766)) // a 500 kW device
 		power, depth = append(power, 30), append(depth, 60)
 	}
-	tb := &export.Table{Columns: []export.Column{
-		export.Int64Column("cell_id", "1", "cell id", ids, nil),
-		export.Float64Column("lon", "degree_east", "lon", lon),
-		export.Float64Column("lat", "degree_north", "lat", lat),
-		export.Float64Column("depth_m", "m", "depth", depth),
-		export.Float64Column("power_mean_kw_m", "kW/m", "power", power),
-		export.Float64Column("aep_wec_mwh", "MWh/yr", "aep", aep),
-		export.Float64Column("availability_wec", "1", "availability", avail),
-		export.Float64Column("cf_wec", "1", "capacity factor", cf),
-		export.StringColumn("qc_flags", "", "flags", flags, nil),
-	}}
-	if err := export.WriteGeoParquet(filepath.Join(dir, "cells.parquet"), tb, lon, lat); err != nil {
-		t.Fatal(err)
-	}
+	writeScreenCells(t, dir, ids, lon, lat, depth, power, aep, avail, cf, flags)
 	m := fmt.Sprintf(`{"software": "swellgrid", "caution": "test", "time_end": "2001-12-31T00:00:00Z",
  "grid": {"kind": "regular", "shape_ny_nx": [%d, %d], "cells": %d, "masked_cells": 0, "bbox_lon_lat": [179, 50, -179.5, 51]},
  "parameters": {"devices": [{"name": "wec"}]}, "columns": {}, "outputs": ["cells.parquet", "manifest.json"]}`, ref.NY, ref.NX, n)

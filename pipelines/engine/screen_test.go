@@ -45,20 +45,7 @@ func smallScreenRun(t *testing.T) string {
 		}
 	}
 	flags[9] = "masked"
-	tb := &export.Table{Columns: []export.Column{
-		export.Int64Column("cell_id", "1", "cell id", ids, nil),
-		export.Float64Column("lon", "degree_east", "lon", lon),
-		export.Float64Column("lat", "degree_north", "lat", lat),
-		export.Float64Column("depth_m", "m", "depth", depth),
-		export.Float64Column("power_mean_kw_m", "kW/m", "power", power),
-		export.Float64Column("aep_wec_mwh", "MWh/yr", "aep", aep),
-		export.Float64Column("availability_wec", "1", "availability", avail),
-		export.Float64Column("cf_wec", "1", "capacity factor", cf),
-		export.StringColumn("qc_flags", "", "flags", flags, nil),
-	}}
-	if err := export.WriteGeoParquet(filepath.Join(dir, "cells.parquet"), tb, lon, lat); err != nil {
-		t.Fatal(err)
-	}
+	writeScreenCells(t, dir, ids, lon, lat, depth, power, aep, avail, cf, flags)
 	m := `{"software": "swellgrid", "caution": "test", "time_end": "2001-12-31T00:00:00Z",
  "grid": {"kind": "regular", "shape_ny_nx": [3, 5], "cells": 15, "masked_cells": 1, "bbox_lon_lat": [-3, 58, 0.5, 59.25]},
  "parameters": {"devices": [{"name": "wec"}]}, "columns": {}, "outputs": ["cells.parquet", "manifest.json"]}`
@@ -243,5 +230,26 @@ func TestScreeningBadLayers(t *testing.T) {
 		if _, _, err := screening.Rescreen(dir, spec); err == nil || fault.ExitCode(err) != 2 || !strings.Contains(err.Error(), want) {
 			t.Errorf("want exit 2 with %q, got %v", want, err)
 		}
+	}
+}
+
+// writeScreenCells writes the cells.parquet of a screening test's run
+// directory: one device ("wec") with its AEP, availability and capacity
+// factor, the mean power, depth and qc flags of each cell.
+func writeScreenCells(t *testing.T, dir string, ids []int64, lon, lat, depth, power, aep, avail, cf []float64, flags []string) {
+	t.Helper()
+	tb := &export.Table{Columns: []export.Column{
+		export.Int64Column("cell_id", "1", "cell id", ids, nil),
+		export.Float64Column("lon", "degree_east", "lon", lon),
+		export.Float64Column("lat", "degree_north", "lat", lat),
+		export.Float64Column("depth_m", "m", "depth", depth),
+		export.Float64Column("power_mean_kw_m", "kW/m", "power", power),
+		export.Float64Column("aep_wec_mwh", "MWh/yr", "aep", aep),
+		export.Float64Column("availability_wec", "1", "availability", avail),
+		export.Float64Column("cf_wec", "1", "capacity factor", cf),
+		export.StringColumn("qc_flags", "", "flags", flags, nil),
+	}}
+	if err := export.WriteGeoParquet(filepath.Join(dir, "cells.parquet"), tb, lon, lat); err != nil {
+		t.Fatal(err)
 	}
 }
