@@ -2,7 +2,6 @@ package engine
 
 import (
 	"context"
-	"encoding/json"
 	"math"
 	"os"
 	"path/filepath"
@@ -14,7 +13,6 @@ import (
 	"swellgrid/internal/runcheck"
 	"swellgrid/pipelines/fault"
 	"swellgrid/pipelines/runspec"
-	"swellgrid/pipelines/validation"
 )
 
 // corrRef is testdata/uncertainty/corr_reference.json (make_corr_ref.py,
@@ -54,21 +52,8 @@ type corrRef struct {
 // no bias_corrected flag. Workers, shards and a resume give the same bytes.
 // Without a validation the correction is refused (exit 2).
 func TestBiasCorrectedAtlas(t *testing.T) {
-	b, err := os.ReadFile("../../testdata/uncertainty/corr_reference.json")
-	if err != nil {
-		t.Fatalf("run testdata/uncertainty/make_corr_ref.py: %v", err)
-	}
 	ref := &corrRef{}
-	if err := json.Unmarshal(b, ref); err != nil {
-		t.Fatal(err)
-	}
-	dir := t.TempDir()
-	raw := filepath.Join(dir, "raw")
-	mustRun(t, uncSpec(t, raw))
-	val := filepath.Join(dir, "validation")
-	if _, err := validation.Validate(context.Background(), validation.Options{RunDir: raw, Obs: []string{"../../testdata/uncertainty/station_corr.csv"}, OutDir: val}); err != nil {
-		t.Fatal(err)
-	}
+	dir, _, val := validatedUncRun(t, "corr_reference.json", "make_corr_ref.py", ref, "station_corr.csv")
 	corrSpec := func(out string, workers int) *runspec.Spec {
 		s := uncSpec(t, out)
 		s.Uncertainty.Validation, s.Uncertainty.ReachKm, s.Uncertainty.Correct = val, ref.ReachKm, "linear"

@@ -68,21 +68,8 @@ func uncSpec(t *testing.T, out string) *runspec.Spec {
 // from memory). Two runs give byte-identical tables (seeded bootstrap); a
 // directory without a finished validation is refused (exit 2).
 func TestModelUncertaintyFromValidation(t *testing.T) {
-	b, err := os.ReadFile("../../testdata/uncertainty/reference.json")
-	if err != nil {
-		t.Fatalf("run testdata/uncertainty/make_ref.py: %v", err)
-	}
 	ref := &uncRef{}
-	if err := json.Unmarshal(b, ref); err != nil {
-		t.Fatal(err)
-	}
-	dir := t.TempDir()
-	raw := filepath.Join(dir, "raw")
-	mustRun(t, uncSpec(t, raw))
-	val := filepath.Join(dir, "validation")
-	if _, err := validation.Validate(context.Background(), validation.Options{RunDir: raw, Obs: []string{"../../testdata/uncertainty/station.csv"}, OutDir: val}); err != nil {
-		t.Fatal(err)
-	}
+	dir, raw, val := validatedUncRun(t, "reference.json", "make_ref.py", ref, "station.csv")
 	withVal := func(out string) *runspec.Spec {
 		s := uncSpec(t, out)
 		s.Uncertainty.Validation, s.Uncertainty.ReachKm = val, ref.ReachKm
@@ -316,4 +303,27 @@ func checkBandReport(t *testing.T, dir string, ref *uncRef) {
 			t.Errorf("site page %s does not say %q", s.Slug, want)
 		}
 	}
+}
+
+// validatedUncRun reads the reference testdata/uncertainty/refName (made by
+// script) into ref, runs the uncertainty fixture plainly into DIR/raw and
+// validates it against the station file into DIR/validation; it returns
+// DIR, the run and the validation.
+func validatedUncRun(t *testing.T, refName, script string, ref any, station string) (dir, raw, val string) {
+	t.Helper()
+	b, err := os.ReadFile("../../testdata/uncertainty/" + refName)
+	if err != nil {
+		t.Fatalf("run testdata/uncertainty/%s: %v", script, err)
+	}
+	if err := json.Unmarshal(b, ref); err != nil {
+		t.Fatal(err)
+	}
+	dir = t.TempDir()
+	raw = filepath.Join(dir, "raw")
+	mustRun(t, uncSpec(t, raw))
+	val = filepath.Join(dir, "validation")
+	if _, err := validation.Validate(context.Background(), validation.Options{RunDir: raw, Obs: []string{"../../testdata/uncertainty/" + station}, OutDir: val}); err != nil {
+		t.Fatal(err)
+	}
+	return dir, raw, val
 }
